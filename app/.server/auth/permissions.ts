@@ -1,0 +1,72 @@
+import { data, redirect } from "react-router";
+import { User } from "../db";
+import { apiError, isApiRequest } from "../http";
+import { getSession } from "./session";
+import { userFromBearerToken } from "./api-tokens";
+import type { Role } from "~/lib/roles";
+import { roleLabels } from "~/lib/roles";
+
+export interface CurrentUser {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+}
+
+function toCurrent(user: User): CurrentUser {
+  return { id: user.id, email: user.email, name: user.name, role: user.role };
+}
+
+/** Who is asking: a bearer token (API), else the session cookie. Inactive people count as nobody. */
+export async function getCurrentUser(request: Request): Promise<CurrentUser | null> {
+  const auth = request.headers.get("Authorization");
+  if (auth) {
+    if (!isApiRequest(request)) return null;
+    const user = await userFromBearerToken(auth);
+    if (user === "invalid") {
+      throw apiError(401, "invalid_token", "That API token is wrong, revoked or expired.");
+    }
+    return user && user.active ? toCurrent(user) : null;
+  }
+  const session = await getSession(request);
+  const userId = session.get("userId");
+  if (!userId) return null;
+  const user = await User.findByPk(userId);
+  return user && user.active ? toCurrent(user) : null;
+}
+
+export function safeRedirectTo(value: FormDataEntryValue | string | null | undefined, fallback = "/"): string {
+  if (typeof value !== "string" || !value) return fallback;
+  // Only a path inside this app: no scheme, no host, no protocol-relative or backslash tricks.
+  if (!value.startsWith("/") || value.startsWith("//") || value.includes("\\")) return fallback;
+  try {
+    const url = new URL(value, "http://tankside.invalid");
+    if (url.host !== "tankside.invalid") return fallback;
+    if (url.pathname.startsWith("/sign-in") || url.pathname.startsWith("/sign-out")) return fallback;
+    return url.pathname + url.search + url.hash;
+  } catch {
+    return fallback;
+  }
+}
+
+export async function requireUser(request: Request): Promise<CurrentUser> {
+  const user = await getCurrentUser(request);
+  if (user) return user;
+  if (isApiRequest(request)) throw apiError(401, "unauthenticated", "Sign in first (or send an API token).");
+  const url = new URL(request.url);
+  const back = safeRedirectTo(url.pathname + url.search, "/");
+  throw redirect(back === "/" ? "/sign-in" : `/sign-in?redirectTo=${encodeURIComponent(back)}`);
+}
+
+export function forbidden(request: Request, message: string): never {
+  if (isApiRequest(request)) throw apiError(403, "forbidden", message);
+  throw data(message, { status: 403 });
+}
+
+export async function requireRole(request: Request, ...allowed: Role[]): Promise<CurrentUser> {
+  const user = await requireUser(request);
+  if (!allowed.includes(user.role)) {
+    forbidden(request, `This needs the role of ${allowed.map((r) => roleLabels[r].toLowerCase()).join(" or ")}.`);
+  }
+  return user;
+}

@@ -1,0 +1,37 @@
+import { migrate, sequelize } from "./db";
+import { env } from "./env";
+import { startFakeSmtp } from "./mail/fake-smtp";
+import { purgeExpiredSessions } from "./auth/session";
+
+type Hook = { name: string; start: () => Promise<void> | void; stop?: () => Promise<void> | void };
+const hooks: Hook[] = [];
+
+/** Features register what must run in the server process (job queue, reminders) here. */
+export function onBoot(hook: Hook) {
+  if (!hooks.some((h) => h.name === hook.name)) hooks.push(hook);
+}
+
+const key = "__tanksideBoot" as const;
+const g = globalThis as typeof globalThis & { [key]?: Promise<void> };
+
+/** Runs once per process before the first request: migrations, the fake mail server, background tasks. */
+export function boot(): Promise<void> {
+  g[key] ??= (async () => {
+    // Touch the session secret early so a production start without one fails loudly.
+    void env.sessionSecret;
+    const applied = await migrate();
+    if (applied.length) console.log(`[tankside] migrations applied: ${applied.join(", ")}`);
+    if (!env.smtpUrl) {
+      const { port } = await startFakeSmtp();
+      console.log(`[tankside] no SMTP_URL: mail goes to the built-in fake server on 127.0.0.1:${port}`);
+    }
+    await purgeExpiredSessions();
+    for (const hook of hooks) await hook.start();
+  })();
+  return g[key];
+}
+
+export async function shutdown() {
+  for (const hook of [...hooks].reverse()) await hook.stop?.();
+  await sequelize.close();
+}

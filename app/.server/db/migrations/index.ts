@@ -1,0 +1,11 @@
+import type { QueryInterface } from "sequelize";
+import * as m0001 from "./0001-people-and-sessions";
+
+export interface Migration {
+  name: string;
+  up: (params: { context: QueryInterface }) => Promise<void>;
+  down: (params: { context: QueryInterface }) => Promise<void>;
+}
+
+/** Listed explicitly (not globbed) so the built server, tsx scripts and Vitest all see the same list. */
+export const migrations: Migration[] = [{ name: "0001-people-and-sessions", ...m0001 }];

@@ -1,0 +1,180 @@
+import { Op } from "sequelize";
+import { AuthToken, User, sequelize } from "./db";
+import type { AuthTokenPurpose } from "./db/models/auth-token";
+import { env } from "./env";
+import { hashPassword, verifyPassword } from "./auth/password";
+import { hashToken, newSecretToken } from "./auth/tokens";
+import { endAllSessionsOf } from "./auth/session";
+import { sendMail, type MailOutcome } from "./mail/send";
+import { roleLabels, type Role } from "~/lib/roles";
+import { INVITATION_HOURS, RESET_MINUTES } from "~/lib/validation/people";
+export { INVITATION_HOURS, RESET_MINUTES };
+
+
+
+
+export class PeopleError extends Error {
+  constructor(
+    message: string,
+    readonly field?: string,
+    readonly status = 400,
+  ) {
+    super(message);
+  }
+}
+
+export function listPeople() {
+  return User.findAll({ order: [["active", "DESC"], ["name", "ASC"]] });
+}
+
+async function issueToken(userId: number, purpose: AuthTokenPurpose, minutes: number, createdById: number | null) {
+  // Any earlier link of the same purpose stops working once a new one is sent.
+  await AuthToken.update(
+    { usedAt: new Date() },
+    { where: { userId, purpose, usedAt: { [Op.is]: null } } },
+  );
+  const token = newSecretToken();
+  await AuthToken.create({
+    userId,
+    purpose,
+    tokenHash: hashToken(token),
+    expiresAt: new Date(Date.now() + minutes * 60_000),
+    usedAt: null,
+    createdById,
+  });
+  return token;
+}
+
+export async function invitePerson(
+  input: { email: string; name: string; role: Role },
+  invitedBy: { id: number; name: string },
+): Promise<{ user: User; mail: MailOutcome }> {
+  const email = input.email.trim().toLowerCase();
+  if (await User.findOne({ where: { email } })) {
+    throw new PeopleError("Someone with that e-mail address is already on the list.", "email", 409);
+  }
+  const user = await User.create({ email, name: input.name.trim(), role: input.role, passwordHash: null, passwordChangedAt: null });
+  const token = await issueToken(user.id, "invitation", INVITATION_HOURS * 60, invitedBy.id);
+  const link = `${env.appUrl}/welcome/${token}`;
+  const mail = await sendMail({
+    to: email,
+    subject: "You are invited to Tankside",
+    text: [
+      `Hello ${user.name},`,
+      "",
+      `${invitedBy.name} has added you to Tankside, the lab's run log, as ${roleLabels[input.role].toLowerCase()}.`,
+      `Choose your password here (the link works once, for ${INVITATION_HOURS} hours):`,
+      "",
+      link,
+      "",
+      "If you did not expect this, you can ignore this message.",
+    ].join("\n"),
+  });
+  return { user, mail };
+}
+
+export async function resendInvitation(userId: number, invitedBy: { id: number; name: string }) {
+  const user = await User.findByPk(userId);
+  if (!user) throw new PeopleError("No such person.", undefined, 404);
+  if (user.passwordHash) throw new PeopleError(`${user.name} has already chosen a password.`, undefined, 409);
+  const token = await issueToken(user.id, "invitation", INVITATION_HOURS * 60, invitedBy.id);
+  return sendMail({
+    to: user.email,
+    subject: "Your Tankside invitation (sent again)",
+    text: `Hello ${user.name},\n\nChoose your Tankside password here (works once, for ${INVITATION_HOURS} hours):\n\n${env.appUrl}/welcome/${token}\n`,
+  });
+}
+
+/** Finds a usable token without spending it; null when unknown, used or expired. */
+export async function findUsableToken(token: string, purpose: AuthTokenPurpose) {
+  if (!token || token.length > 200) return null;
+  const row = await AuthToken.findOne({ where: { tokenHash: hashToken(token), purpose } });
+  if (!row || row.usedAt || row.expiresAt.getTime() < Date.now()) return null;
+  const user = await User.findByPk(row.userId);
+  if (!user || !user.active) return null;
+  return { row, user };
+}
+
+/** Spends the token and sets the password, in one transaction so a link can never work twice. */
+export async function setPasswordWithToken(token: string, purpose: AuthTokenPurpose, password: string) {
+  const passwordHash = await hashPassword(password);
+  return sequelize.transaction(async (transaction) => {
+    const row = await AuthToken.findOne({ where: { tokenHash: hashToken(token), purpose }, transaction });
+    if (!row || row.usedAt || row.expiresAt.getTime() < Date.now()) {
+      throw new PeopleError("This link has expired or has already been used. Ask for a new one.", undefined, 410);
+    }
+    const [spent] = await AuthToken.update(
+      { usedAt: new Date() },
+      { where: { id: row.id, usedAt: { [Op.is]: null } }, transaction },
+    );
+    if (spent !== 1) throw new PeopleError("This link has already been used.", undefined, 410);
+    const user = await User.findByPk(row.userId, { transaction });
+    if (!user || !user.active) throw new PeopleError("This account is not active.", undefined, 410);
+    await user.update({ passwordHash, passwordChangedAt: new Date() }, { transaction });
+    return user;
+  }).then(async (user) => {
+    await endAllSessionsOf(user.id);
+    return user;
+  });
+}
+
+/**
+ * Sends a reset link if an active account has this address. The caller shows the same message
+ * either way, so the page does not reveal who has an account.
+ */
+export async function requestPasswordReset(emailInput: string): Promise<MailOutcome | null> {
+  const email = emailInput.trim().toLowerCase();
+  const user = await User.findOne({ where: { email, active: true } });
+  if (!user) return null;
+  const token = await issueToken(user.id, "password_reset", RESET_MINUTES, null);
+  return sendMail({
+    to: user.email,
+    subject: "Reset your Tankside password",
+    text: [
+      `Hello ${user.name},`,
+      "",
+      "Someone (we hope you) asked to reset your Tankside password. Choose a new one here:",
+      "",
+      `${env.appUrl}/reset-password/${token}`,
+      "",
+      `The link works once and expires in ${RESET_MINUTES} minutes. If you did not ask, ignore this message; your password stays as it is.`,
+    ].join("\n"),
+  });
+}
+
+export async function changeOwnPassword(userId: number, current: string, next: string, keepSessionId?: string) {
+  const user = await User.findByPk(userId);
+  if (!user || !user.passwordHash) throw new PeopleError("No such account.", undefined, 404);
+  if (!(await verifyPassword(user.passwordHash, current))) {
+    throw new PeopleError("Your current password is not right.", "current");
+  }
+  await user.update({ passwordHash: await hashPassword(next), passwordChangedAt: new Date() });
+  await endAllSessionsOf(user.id, keepSessionId);
+}
+
+async function activeManagerCount(transaction: import("sequelize").Transaction) {
+  return User.count({ where: { role: "lab_manager", active: true }, transaction });
+}
+
+export async function changeRole(userId: number, role: Role) {
+  await sequelize.transaction(async (transaction) => {
+    const user = await User.findByPk(userId, { transaction });
+    if (!user) throw new PeopleError("No such person.", undefined, 404);
+    if (user.role === "lab_manager" && role !== "lab_manager" && user.active && (await activeManagerCount(transaction)) <= 1) {
+      throw new PeopleError("The lab needs at least one active lab manager: make someone else lab manager first.", "role", 409);
+    }
+    await user.update({ role }, { transaction });
+  });
+}
+
+export async function setActive(userId: number, active: boolean) {
+  await sequelize.transaction(async (transaction) => {
+    const user = await User.findByPk(userId, { transaction });
+    if (!user) throw new PeopleError("No such person.", undefined, 404);
+    if (!active && user.role === "lab_manager" && user.active && (await activeManagerCount(transaction)) <= 1) {
+      throw new PeopleError("You cannot deactivate the last active lab manager.", undefined, 409);
+    }
+    await user.update({ active }, { transaction });
+  });
+  if (!active) await endAllSessionsOf(userId);
+}

@@ -1,0 +1,85 @@
+import type { InputHTMLAttributes, ReactNode, SelectHTMLAttributes, TextareaHTMLAttributes } from "react";
+
+const control =
+  "block w-full min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-3 py-2 text-ink aria-[invalid=true]:border-disagrees-ink";
+
+interface FieldShell {
+  label: ReactNode;
+  name: string;
+  hint?: ReactNode;
+  error?: string | string[] | null;
+  unit?: string;
+}
+
+function errorText(error: FieldShell["error"]) {
+  if (!error) return null;
+  return Array.isArray(error) ? error[0] : error;
+}
+
+function Shell({ label, name, hint, error, children }: FieldShell & { children: ReactNode }) {
+  const message = errorText(error);
+  return (
+    <div className="flex flex-col gap-1">
+      <label htmlFor={name} className="font-bold">
+        {label}
+      </label>
+      {children}
+      {hint && !message ? (
+        <p id={`${name}-hint`} className="text-sm text-muted">
+          {hint}
+        </p>
+      ) : null}
+      {message ? (
+        <p id={`${name}-error`} className="text-sm font-bold text-disagrees-ink" role="alert">
+          {message}
+        </p>
+      ) : null}
+    </div>
+  );
+}
+
+export function TextField({ label, name, hint, error, unit, ...input }: FieldShell & InputHTMLAttributes<HTMLInputElement>) {
+  const message = errorText(error);
+  return (
+    <Shell label={label} name={name} hint={hint} error={error}>
+      <div className="flex items-center gap-2">
+        <input
+          id={name}
+          name={name}
+          aria-invalid={message ? true : undefined}
+          aria-describedby={message ? `${name}-error` : hint ? `${name}-hint` : undefined}
+          className={control}
+          {...input}
+        />
+        {unit ? <span className="min-w-12 text-muted">{unit}</span> : null}
+      </div>
+    </Shell>
+  );
+}
+
+export function SelectField({
+  label,
+  name,
+  hint,
+  error,
+  children,
+  ...select
+}: FieldShell & SelectHTMLAttributes<HTMLSelectElement>) {
+  const message = errorText(error);
+  return (
+    <Shell label={label} name={name} hint={hint} error={error}>
+      <select id={name} name={name} aria-invalid={message ? true : undefined} className={control} {...select}>
+        {children}
+      </select>
+    </Shell>
+  );
+}
+
+export function TextAreaField({ label, name, hint, error, ...area }: FieldShell & TextareaHTMLAttributes<HTMLTextAreaElement>) {
+  const message = errorText(error);
+  return (
+    <Shell label={label} name={name} hint={hint} error={error}>
+      <textarea id={name} name={name} aria-invalid={message ? true : undefined} className={`${control} min-h-24`} {...area} />
+    </Shell>
+  );
+}

@@ -1,0 +1,22 @@
+export const roles = ["technician", "instructor", "lab_manager"] as const;
+export type Role = (typeof roles)[number];
+
+export const roleLabels: Record<Role, string> = {
+  technician: "Technician",
+  instructor: "Instructor",
+  lab_manager: "Lab manager",
+};
+
+export function isRole(value: unknown): value is Role {
+  return typeof value === "string" && (roles as readonly string[]).includes(value);
+}
+
+/** The sections of the app and who may open them; the server checks the same list. */
+export const sections = [
+  { key: "dashboard", label: "Today", to: "/", roles: ["technician", "instructor", "lab_manager"] },
+  { key: "runs", label: "Runs", to: "/runs", roles: ["technician", "instructor", "lab_manager"] },
+  { key: "equipment", label: "Equipment", to: "/equipment", roles: ["technician", "instructor", "lab_manager"] },
+  { key: "bookings", label: "Bookings", to: "/bookings", roles: ["technician", "instructor", "lab_manager"] },
+  { key: "people", label: "People", to: "/people", roles: ["lab_manager"] },
+  { key: "mail", label: "Captured mail", to: "/mail", roles: ["lab_manager"] },
+] as const satisfies readonly { key: string; label: string; to: string; roles: readonly Role[] }[];

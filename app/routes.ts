@@ -1,0 +1,24 @@
+import { type RouteConfig, index, prefix, route } from "@react-router/dev/routes";
+
+export default [
+  index("routes/dashboard.tsx"),
+
+  route("sign-in", "routes/auth/sign-in.tsx"),
+  route("sign-out", "routes/auth/sign-out.tsx"),
+  route("forgot-password", "routes/auth/forgot-password.tsx"),
+  route("reset-password/:token", "routes/auth/reset-password.tsx", { id: "reset-password" }),
+  route("welcome/:token", "routes/auth/reset-password.tsx", { id: "welcome" }),
+
+  route("account", "routes/account/account.tsx"),
+  route("people", "routes/people/people.tsx"),
+  route("mail", "routes/people/mail.tsx"),
+
+  ...prefix("api/v1", [
+    route("me", "routes/api/me.ts"),
+    route("users", "routes/api/users.ts"),
+    route("mail", "routes/api/mail.ts"),
+    route("*", "routes/api/not-found.ts"),
+  ]),
+
+  route("*", "routes/not-found.tsx"),
+] satisfies RouteConfig;

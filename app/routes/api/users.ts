@@ -1,0 +1,11 @@
+import type { Route } from "./+types/users";
+import { requireRole } from "~/.server/auth/permissions";
+import { listPeople } from "~/.server/people";
+
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireRole(request, "lab_manager");
+  const people = await listPeople();
+  return Response.json(
+    people.map((p) => ({ id: p.id, email: p.email, name: p.name, role: p.role, active: p.active, invited: !p.passwordHash })),
+  );
+}

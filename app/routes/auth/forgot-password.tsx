@@ -1,0 +1,58 @@
+import { Form, data } from "react-router";
+import { getFormProps, useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
+import type { Route } from "./+types/forgot-password";
+import { requestPasswordReset } from "~/.server/people";
+import { forgotSchema, RESET_MINUTES } from "~/lib/validation/people";
+import { Button } from "~/components/ui/button";
+import { TextField } from "~/components/ui/field";
+import { Notice } from "~/components/ui/notice";
+
+export const meta: Route.MetaFunction = () => [{ title: "Forgot password · Tankside" }];
+
+export async function action({ request }: Route.ActionArgs) {
+  const submission = parseWithZod(await request.formData(), { schema: forgotSchema });
+  if (submission.status !== "success") return data({ result: submission.reply(), sent: false, mailError: null }, { status: 400 });
+  const outcome = await requestPasswordReset(submission.value.email);
+  if (outcome && !outcome.ok) {
+    return data(
+      { result: submission.reply(), sent: false, mailError: "The reset e-mail could not be sent. Tell the lab manager; the mail server said: " + outcome.error },
+      { status: 502 },
+    );
+  }
+  return { result: submission.reply({ resetForm: true }), sent: true, mailError: null };
+}
+
+export default function ForgotPassword({ actionData }: Route.ComponentProps) {
+  const [form, fields] = useForm({
+    lastResult: actionData?.result,
+    shouldValidate: "onBlur",
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: forgotSchema }),
+  });
+  return (
+    <div className="mx-auto max-w-xl rounded-card border border-line bg-sheet p-8">
+      <h1>Forgot your password?</h1>
+      <p className="mt-2 text-muted">
+        Give the e-mail address of your Tankside account. If it has one, a link to choose a new password goes there; it works
+        once and for {RESET_MINUTES} minutes.
+      </p>
+      {actionData?.sent ? (
+        <div className="mt-4">
+          <Notice kind="success" title="Check your mail">
+            If that address belongs to an active account, a reset link is on its way.
+          </Notice>
+        </div>
+      ) : null}
+      {actionData?.mailError ? (
+        <div className="mt-4">
+          <Notice kind="error">{actionData.mailError}</Notice>
+        </div>
+      ) : null}
+      <Form method="post" className="mt-4 flex flex-col gap-4" {...getFormProps(form)}>
+        <TextField label="E-mail" type="email" name={fields.email.name} key={fields.email.key} defaultValue={fields.email.initialValue} error={fields.email.errors} autoComplete="username" />
+        <Button type="submit">Send the reset link</Button>
+        <a href="/sign-in">Back to sign-in</a>
+      </Form>
+    </div>
+  );
+}

@@ -1,0 +1,154 @@
+import { Form, data } from "react-router";
+import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
+import type { Route } from "./+types/people";
+import { requireRole } from "~/.server/auth/permissions";
+import { invitePerson, listPeople, PeopleError, changeRole, resendInvitation, setActive } from "~/.server/people";
+import { inviteSchema, roleChangeSchema } from "~/lib/validation/people";
+import { roleLabels, roles } from "~/lib/roles";
+import { Button } from "~/components/ui/button";
+import { Card, PageHeader, Tag } from "~/components/ui/card";
+import { SelectField, TextField } from "~/components/ui/field";
+import { Notice } from "~/components/ui/notice";
+
+export const meta: Route.MetaFunction = () => [{ title: "People · Tankside" }];
+
+export async function loader({ request }: Route.LoaderArgs) {
+  const me = await requireRole(request, "lab_manager");
+  const people = await listPeople();
+  return {
+    me,
+    people: people.map((p) => ({ id: p.id, name: p.name, email: p.email, role: p.role, active: p.active, invited: !p.passwordHash })),
+  };
+}
+
+type Outcome = { notice?: string; problem?: string };
+
+export async function action({ request }: Route.ActionArgs) {
+  const me = await requireRole(request, "lab_manager");
+  const form = await request.formData();
+  const intent = String(form.get("intent") ?? "");
+  try {
+    if (intent === "invite") {
+      const submission = parseWithZod(form, { schema: inviteSchema });
+      if (submission.status !== "success") return data({ invite: submission.reply() }, { status: 400 });
+      const { user, mail } = await invitePerson(submission.value, me);
+      return {
+        invite: submission.reply({ resetForm: true }),
+        ...(mail.ok
+          ? { notice: `Invitation sent to ${user.email}.` }
+          : { problem: `${user.name} was added, but the invitation e-mail failed: ${mail.error}. Use "Send invitation again" once mail works.` }),
+      };
+    }
+    const userId = Number(form.get("userId"));
+    if (intent === "role") {
+      const parsed = roleChangeSchema.safeParse({ userId, role: form.get("role") });
+      if (!parsed.success) return data({ problem: parsed.error.issues[0].message }, { status: 400 });
+      await changeRole(parsed.data.userId, parsed.data.role);
+      return { notice: "Role changed." };
+    }
+    if (intent === "deactivate" || intent === "reactivate") {
+      if (!Number.isInteger(userId) || userId <= 0) return data({ problem: "No such person." }, { status: 400 });
+      await setActive(userId, intent === "reactivate");
+      return { notice: intent === "deactivate" ? "Deactivated and signed out everywhere." : "Reactivated." };
+    }
+    if (intent === "resend") {
+      const mail = await resendInvitation(userId, me);
+      return mail.ok ? { notice: "Invitation sent again." } : data({ problem: `The e-mail failed: ${mail.error}` }, { status: 502 });
+    }
+    return data({ problem: "Unknown action." }, { status: 400 });
+  } catch (err) {
+    if (err instanceof PeopleError) return data({ problem: err.message }, { status: err.status });
+    throw err;
+  }
+}
+
+export default function People({ loaderData, actionData }: Route.ComponentProps) {
+  const outcome = (actionData ?? {}) as Outcome & { invite?: SubmissionResult<string[]> };
+  const [form, fields] = useForm({
+    lastResult: outcome.invite,
+    shouldValidate: "onBlur",
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: inviteSchema }),
+  });
+  return (
+    <div>
+      <PageHeader title="People" subtitle="Who may use Tankside, and in what role." />
+      <div className="mb-4 flex flex-col gap-3">
+        {outcome.notice ? <Notice kind="success">{outcome.notice}</Notice> : null}
+        {outcome.problem ? <Notice kind="error">{outcome.problem}</Notice> : null}
+      </div>
+      <div className="grid gap-6 lg:grid-cols-[2fr_1fr]">
+        <Card title={`${loaderData.people.length} people`}>
+          <table className="w-full text-left">
+            <thead>
+              <tr className="border-b-2 border-line">
+                <th className="py-2 pr-3">Name</th>
+                <th className="py-2 pr-3">Role</th>
+                <th className="py-2 pr-3">State</th>
+                <th className="py-2">Actions</th>
+              </tr>
+            </thead>
+            <tbody>
+              {loaderData.people.map((p) => (
+                <tr key={p.id} className="border-b border-line align-top" data-testid={`person-${p.email}`}>
+                  <td className="py-3 pr-3">
+                    <p className="font-bold">{p.name}</p>
+                    <p className="text-sm text-muted">{p.email}</p>
+                  </td>
+                  <td className="py-3 pr-3">
+                    <Form method="post" className="flex items-center gap-2">
+                      <input type="hidden" name="intent" value="role" />
+                      <input type="hidden" name="userId" value={p.id} />
+                      <label className="sr-only" htmlFor={`role-${p.id}`}>Role of {p.name}</label>
+                      <select id={`role-${p.id}`} name="role" defaultValue={p.role} className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-2">
+                        {roles.map((r) => (
+                          <option key={r} value={r}>{roleLabels[r]}</option>
+                        ))}
+                      </select>
+                      <Button tone="plain" type="submit">Set</Button>
+                    </Form>
+                  </td>
+                  <td className="py-3 pr-3">
+                    {!p.active ? <Tag tone="disagrees">deactivated</Tag> : p.invited ? <Tag tone="caution">invited</Tag> : <Tag tone="agrees">active</Tag>}
+                  </td>
+                  <td className="py-3">
+                    <div className="flex flex-wrap gap-2">
+                      {p.id !== loaderData.me.id ? (
+                        <Form method="post">
+                          <input type="hidden" name="userId" value={p.id} />
+                          <Button tone={p.active ? "danger" : "plain"} type="submit" name="intent" value={p.active ? "deactivate" : "reactivate"}>
+                            {p.active ? "Deactivate" : "Reactivate"}
+                          </Button>
+                        </Form>
+                      ) : null}
+                      {p.invited && p.active ? (
+                        <Form method="post">
+                          <input type="hidden" name="userId" value={p.id} />
+                          <Button tone="quiet" type="submit" name="intent" value="resend">Send invitation again</Button>
+                        </Form>
+                      ) : null}
+                    </div>
+                  </td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </Card>
+        <Card title="Invite someone">
+          <Form method="post" className="flex flex-col gap-4" {...getFormProps(form)}>
+            <input type="hidden" name="intent" value="invite" />
+            <TextField label="Name" name={fields.name.name} key={fields.name.key} defaultValue={fields.name.initialValue} error={fields.name.errors} maxLength={120} />
+            <TextField label="E-mail" type="email" name={fields.email.name} key={fields.email.key} defaultValue={fields.email.initialValue} error={fields.email.errors} />
+            <SelectField label="Role" name={fields.role.name} key={fields.role.key} defaultValue={fields.role.initialValue ?? "technician"} error={fields.role.errors}>
+              {roles.map((r) => (
+                <option key={r} value={r}>{roleLabels[r]}</option>
+              ))}
+            </SelectField>
+            <Button type="submit">Send invitation</Button>
+            <p className="text-sm text-muted">The invitation link lets them choose a password; it works once, for three days.</p>
+          </Form>
+        </Card>
+      </div>
+    </div>
+  );
+}

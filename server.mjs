@@ -1,0 +1,111 @@
+// Tankside's HTTP server: security headers and the same-origin check in front of React Router.
+import crypto from "node:crypto";
+import express from "express";
+import compression from "compression";
+import { createRequestHandler } from "@react-router/express";
+
+const dev = process.argv.includes("--dev");
+const port = Number(process.env.PORT ?? 3000);
+const host = process.env.HOST ?? "127.0.0.1";
+
+function securityHeaders(req, res, next) {
+  const nonce = crypto.randomBytes(16).toString("base64");
+  res.locals.cspNonce = nonce;
+  const scriptSrc = dev ? "'self' 'unsafe-inline'" : `'self' 'nonce-${nonce}'`;
+  const connectSrc = dev ? "'self' ws: wss:" : "'self'";
+  res.setHeader(
+    "Content-Security-Policy",
+    [
+      "default-src 'self'",
+      `script-src ${scriptSrc}`,
+      // Inline style attributes come from the chart and upload components; styles still load only from here.
+      "style-src 'self' 'unsafe-inline'",
+      "img-src 'self' data: blob:",
+      "media-src 'self' blob:",
+      "font-src 'self'",
+      `connect-src ${connectSrc}`,
+      "worker-src 'self' blob:",
+      "object-src 'none'",
+      "base-uri 'self'",
+      "form-action 'self'",
+      "frame-ancestors 'none'",
+    ].join("; "),
+  );
+  res.setHeader("X-Content-Type-Options", "nosniff");
+  res.setHeader("Referrer-Policy", "same-origin");
+  res.setHeader("X-Frame-Options", "DENY");
+  res.setHeader("Cross-Origin-Opener-Policy", "same-origin");
+  res.setHeader("Permissions-Policy", "camera=(), microphone=(), geolocation=()");
+  next();
+}
+
+const safeMethods = new Set(["GET", "HEAD", "OPTIONS"]);
+
+// Every state-changing request from a browser must come from Tankside's own pages.
+function sameOriginOnly(req, res, next) {
+  if (safeMethods.has(req.method)) return next();
+  const origin = req.get("origin");
+  const fetchSite = req.get("sec-fetch-site");
+  const own = `${req.protocol}://${req.get("host")}`;
+  const configured = process.env.APP_URL ? new URL(process.env.APP_URL).origin : null;
+  const originOk = !origin || origin === own || origin === configured;
+  const siteOk = !fetchSite || fetchSite === "same-origin" || fetchSite === "none";
+  if (originOk && siteOk) return next();
+  const message = "This request came from another site and was refused.";
+  if (req.path.startsWith("/api/") || (req.get("accept") ?? "").includes("json")) {
+    return res.status(403).json({ error: { code: "cross_origin", message } });
+  }
+  res.status(403).type("text/plain").send(message);
+}
+
+const app = express();
+app.disable("x-powered-by");
+if (process.env.TRUST_PROXY) app.set("trust proxy", process.env.TRUST_PROXY);
+app.use(compression());
+app.use(securityHeaders);
+app.use(sameOriginOnly);
+
+let build;
+if (dev) {
+  const vite = await import("vite");
+  const viteServer = await vite.createServer({ server: { middlewareMode: true } });
+  app.use(viteServer.middlewares);
+  build = () => viteServer.ssrLoadModule("virtual:react-router/server-build");
+  const mod = await build();
+  await mod.entry.module.boot();
+} else {
+  build = await import("./build/server/index.js");
+  await build.entry.module.boot();
+  app.use("/assets", express.static("build/client/assets", { immutable: true, maxAge: "1y" }));
+  app.use(express.static("build/client", { maxAge: "1h", index: false }));
+}
+
+app.all(
+  "/{*splat}",
+  createRequestHandler({
+    build,
+    mode: dev ? "development" : "production",
+    getLoadContext: (req, res) => ({ cspNonce: res.locals.cspNonce }),
+  }),
+);
+
+const server = app.listen(port, host, () => {
+  console.log(`[tankside] serving on http://${host === "0.0.0.0" ? "localhost" : host}:${port}`);
+});
+
+let stopping = false;
+async function stop(signal) {
+  if (stopping) return;
+  stopping = true;
+  console.log(`[tankside] ${signal}: stopping`);
+  server.close();
+  try {
+    const mod = typeof build === "function" ? await build() : build;
+    await mod.entry.module.shutdown();
+  } catch (err) {
+    console.error(err);
+  }
+  process.exit(0);
+}
+process.on("SIGINT", () => stop("SIGINT"));
+process.on("SIGTERM", () => stop("SIGTERM"));

@@ -1,0 +1,18 @@
+/// <reference types="vitest/config" />
+import { reactRouter } from "@react-router/dev/vite";
+import tailwindcss from "@tailwindcss/vite";
+import { defineConfig } from "vite";
+
+export default defineConfig({
+  // The React Router plugin stays out of Vitest: with it active, route modules cannot be imported in tests.
+  plugins: [tailwindcss(), !process.env.VITEST && reactRouter()],
+  resolve: { tsconfigPaths: true },
+  build: { chunkSizeWarningLimit: 1500 },
+  test: {
+    include: ["app/**/*.test.ts", "app/**/*.test.tsx", "tests/unit/**/*.test.ts"],
+    setupFiles: ["tests/setup/vitest-env.ts"],
+    environment: "node",
+    testTimeout: 30_000,
+    hookTimeout: 60_000,
+  },
+});

@@ -13,10 +13,19 @@ export default [
   route("people", "routes/people/people.tsx"),
   route("mail", "routes/people/mail.tsx"),
 
+  ...prefix("equipment", [
+    index("routes/equipment/list.tsx"),
+    route("new", "routes/equipment/edit.tsx", { id: "equipment-new" }),
+    route(":id", "routes/equipment/detail.tsx"),
+    route(":id/edit", "routes/equipment/edit.tsx", { id: "equipment-edit" }),
+  ]),
+
   ...prefix("api/v1", [
     route("me", "routes/api/me.ts"),
     route("users", "routes/api/users.ts"),
     route("mail", "routes/api/mail.ts"),
+    route("equipment", "routes/api/equipment.ts"),
+    route("equipment/:id", "routes/api/equipment-item.ts"),
     route("*", "routes/api/not-found.ts"),
   ]),
 

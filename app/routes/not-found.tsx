@@ -1,7 +1,7 @@
 import { data } from "react-router";
 
 export function loader() {
-  throw data("There is no page at this address.", { status: 404 });
+  throw data(null, { status: 404 });
 }
 
 export default function NotFound() {

@@ -6,3 +6,6 @@ export { AuthToken } from "./models/auth-token";
 export { CapturedMail, MailLog } from "./models/captured-mail";
 export { LabSetting } from "./models/lab-setting";
 export { ApiToken } from "./models/api-token";
+export { Equipment } from "./models/equipment";
+export { Run } from "./models/run";
+export { Frame, ViewSetup, TrackingJob, Track, Detection, TheoryCheck, RunHistory } from "./models/tracking";

@@ -1,2 +1,2 @@
 // Importing this registers every feature's demo step with seedDemo(), in order.
-export {};
+import "./equipment";

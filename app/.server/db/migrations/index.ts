@@ -1,5 +1,7 @@
 import type { QueryInterface } from "sequelize";
 import * as m0001 from "./0001-people-and-sessions";
+import * as m0002 from "./0002-equipment";
+import * as m0003 from "./0003-runs-and-tracking";
 
 export interface Migration {
   name: string;
@@ -8,4 +10,8 @@ export interface Migration {
 }
 
 /** Listed explicitly (not globbed) so the built server, tsx scripts and Vitest all see the same list. */
-export const migrations: Migration[] = [{ name: "0001-people-and-sessions", ...m0001 }];
+export const migrations: Migration[] = [
+  { name: "0001-people-and-sessions", ...m0001 },
+  { name: "0002-equipment", ...m0002 },
+  { name: "0003-runs-and-tracking", ...m0003 },
+];

@@ -1,0 +1,214 @@
+import {
+  DataTypes,
+  Model,
+  type CreationOptional,
+  type InferAttributes,
+  type InferCreationAttributes,
+} from "sequelize";
+import { sequelize } from "../connection";
+
+export class Frame extends Model<InferAttributes<Frame>, InferCreationAttributes<Frame>> {
+  declare id: CreationOptional<number>;
+  declare runId: number;
+  declare position: number;
+  declare originalName: string;
+  declare storedName: string;
+  declare thumbName: string | null;
+  declare sha256: string;
+  declare format: string;
+  declare widthPx: number;
+  declare heightPx: number;
+  declare sizeBytes: number;
+  declare timeS: number | null;
+  declare createdAt: CreationOptional<Date>;
+}
+Frame.init(
+  {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    runId: { type: DataTypes.INTEGER, allowNull: false },
+    position: { type: DataTypes.INTEGER, allowNull: false },
+    originalName: { type: DataTypes.STRING(255), allowNull: false },
+    storedName: { type: DataTypes.STRING(100), allowNull: false },
+    thumbName: { type: DataTypes.STRING(100), allowNull: true },
+    sha256: { type: DataTypes.STRING(64), allowNull: false },
+    format: { type: DataTypes.STRING(10), allowNull: false },
+    widthPx: { type: DataTypes.INTEGER, allowNull: false },
+    heightPx: { type: DataTypes.INTEGER, allowNull: false },
+    sizeBytes: { type: DataTypes.INTEGER, allowNull: false },
+    timeS: { type: DataTypes.DOUBLE, allowNull: true },
+    createdAt: DataTypes.DATE,
+  },
+  { sequelize, tableName: "frames", underscored: true, updatedAt: false },
+);
+
+export class ViewSetup extends Model<InferAttributes<ViewSetup>, InferCreationAttributes<ViewSetup>> {
+  declare id: CreationOptional<number>;
+  declare runId: number;
+  declare cameraId: number;
+  declare centreXPx: number;
+  declare centreYPx: number;
+  declare tankEdgeXPx: number | null;
+  declare tankEdgeYPx: number | null;
+  declare tankEdgeRPx: number | null;
+  declare scalePxPerM: number | null;
+  declare scalePoints: string | null;
+  declare mirrored: boolean;
+  declare createdById: number;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+ViewSetup.init(
+  {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    runId: { type: DataTypes.INTEGER, allowNull: false },
+    cameraId: { type: DataTypes.INTEGER, allowNull: false },
+    centreXPx: { type: DataTypes.DOUBLE, allowNull: false, field: "centre_x_px" },
+    centreYPx: { type: DataTypes.DOUBLE, allowNull: false, field: "centre_y_px" },
+    tankEdgeXPx: { type: DataTypes.DOUBLE, allowNull: true, field: "tank_edge_x_px" },
+    tankEdgeYPx: { type: DataTypes.DOUBLE, allowNull: true, field: "tank_edge_y_px" },
+    tankEdgeRPx: { type: DataTypes.DOUBLE, allowNull: true, field: "tank_edge_r_px" },
+    scalePxPerM: { type: DataTypes.DOUBLE, allowNull: true, field: "scale_px_per_m" },
+    scalePoints: { type: DataTypes.TEXT, allowNull: true },
+    mirrored: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+    createdById: { type: DataTypes.INTEGER, allowNull: false },
+    createdAt: DataTypes.DATE,
+    updatedAt: DataTypes.DATE,
+  },
+  { sequelize, tableName: "view_setups", underscored: true },
+);
+
+export type JobState = "queued" | "running" | "done" | "failed" | "cancelled";
+
+export class TrackingJob extends Model<InferAttributes<TrackingJob>, InferCreationAttributes<TrackingJob>> {
+  declare id: CreationOptional<number>;
+  declare runId: number;
+  declare state: CreationOptional<JobState>;
+  declare framesDone: CreationOptional<number>;
+  declare framesTotal: CreationOptional<number>;
+  declare error: string | null;
+  declare requestedById: number;
+  declare startedAt: Date | null;
+  declare finishedAt: Date | null;
+  declare attempts: CreationOptional<number>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+TrackingJob.init(
+  {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    runId: { type: DataTypes.INTEGER, allowNull: false },
+    state: { type: DataTypes.STRING(12), allowNull: false, defaultValue: "queued" },
+    framesDone: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+    framesTotal: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+    error: { type: DataTypes.TEXT, allowNull: true },
+    requestedById: { type: DataTypes.INTEGER, allowNull: false },
+    startedAt: { type: DataTypes.DATE, allowNull: true },
+    finishedAt: { type: DataTypes.DATE, allowNull: true },
+    attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+    createdAt: DataTypes.DATE,
+    updatedAt: DataTypes.DATE,
+  },
+  { sequelize, tableName: "tracking_jobs", underscored: true },
+);
+
+export class Track extends Model<InferAttributes<Track>, InferCreationAttributes<Track>> {
+  declare id: CreationOptional<number>;
+  declare runId: number;
+  declare jobId: number;
+  declare number: number;
+  /** JSON array of [t_s, x_px, y_px, frameIndex]. */
+  declare points: string;
+  declare pointCount: number;
+  declare detectedShare: number | null;
+  declare jitterPx: number | null;
+  declare createdAt: CreationOptional<Date>;
+}
+Track.init(
+  {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    runId: { type: DataTypes.INTEGER, allowNull: false },
+    jobId: { type: DataTypes.INTEGER, allowNull: false },
+    number: { type: DataTypes.INTEGER, allowNull: false },
+    points: { type: DataTypes.TEXT, allowNull: false },
+    pointCount: { type: DataTypes.INTEGER, allowNull: false },
+    detectedShare: { type: DataTypes.DOUBLE, allowNull: true },
+    jitterPx: { type: DataTypes.DOUBLE, allowNull: true },
+    createdAt: DataTypes.DATE,
+  },
+  { sequelize, tableName: "tracks", underscored: true, updatedAt: false },
+);
+
+export class Detection extends Model<InferAttributes<Detection>, InferCreationAttributes<Detection>> {
+  declare id: CreationOptional<number>;
+  declare jobId: number;
+  declare frameIndex: number;
+  declare timeS: number;
+  declare xPx: number;
+  declare yPx: number;
+  declare areaPx: number | null;
+  declare roundness: number | null;
+}
+Detection.init(
+  {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    jobId: { type: DataTypes.INTEGER, allowNull: false },
+    frameIndex: { type: DataTypes.INTEGER, allowNull: false },
+    timeS: { type: DataTypes.DOUBLE, allowNull: false },
+    xPx: { type: DataTypes.DOUBLE, allowNull: false, field: "x_px" },
+    yPx: { type: DataTypes.DOUBLE, allowNull: false, field: "y_px" },
+    areaPx: { type: DataTypes.DOUBLE, allowNull: true },
+    roundness: { type: DataTypes.DOUBLE, allowNull: true },
+  },
+  { sequelize, tableName: "detections", underscored: true, timestamps: false },
+);
+
+export class TheoryCheck extends Model<InferAttributes<TheoryCheck>, InferCreationAttributes<TheoryCheck>> {
+  declare id: CreationOptional<number>;
+  declare runId: number;
+  declare trackId: number | null;
+  declare verdict: "agrees" | "disagrees" | "inconclusive";
+  declare fMeasuredPerS: number | null;
+  declare fPredictedPerS: number | null;
+  /** JSON: the whole result, with the inputs and settings needed to reproduce it. */
+  declare result: string;
+  declare codeVersion: string;
+  declare createdById: number | null;
+  declare createdAt: CreationOptional<Date>;
+}
+TheoryCheck.init(
+  {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    runId: { type: DataTypes.INTEGER, allowNull: false },
+    trackId: { type: DataTypes.INTEGER, allowNull: true },
+    verdict: { type: DataTypes.STRING(15), allowNull: false },
+    fMeasuredPerS: { type: DataTypes.DOUBLE, allowNull: true, field: "f_measured_per_s" },
+    fPredictedPerS: { type: DataTypes.DOUBLE, allowNull: true, field: "f_predicted_per_s" },
+    result: { type: DataTypes.TEXT, allowNull: false },
+    codeVersion: { type: DataTypes.STRING(40), allowNull: false },
+    createdById: { type: DataTypes.INTEGER, allowNull: true },
+    createdAt: DataTypes.DATE,
+  },
+  { sequelize, tableName: "theory_checks", underscored: true, updatedAt: false },
+);
+
+export class RunHistory extends Model<InferAttributes<RunHistory>, InferCreationAttributes<RunHistory>> {
+  declare id: CreationOptional<number>;
+  declare runId: number;
+  declare userId: number | null;
+  declare field: string;
+  declare oldValue: string | null;
+  declare newValue: string | null;
+  declare createdAt: CreationOptional<Date>;
+}
+RunHistory.init(
+  {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    runId: { type: DataTypes.INTEGER, allowNull: false },
+    userId: { type: DataTypes.INTEGER, allowNull: true },
+    field: { type: DataTypes.STRING(60), allowNull: false },
+    oldValue: { type: DataTypes.TEXT, allowNull: true },
+    newValue: { type: DataTypes.TEXT, allowNull: true },
+    createdAt: DataTypes.DATE,
+  },
+  { sequelize, tableName: "run_history", underscored: true, updatedAt: false },
+);

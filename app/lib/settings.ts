@@ -1,0 +1,25 @@
+/** The lab's own rules, kept as settings a lab manager changes; the values here are the defaults. */
+export const settingDefaults = {
+  /** Verdict tolerance: |f measured − f predicted| within this share of |f predicted| agrees. */
+  checkTolerancePct: 3,
+  /** How many spin-up times to wait after the table reaches its rate before filming. */
+  spinUpTimesToWait: 5,
+  /** Calibration intervals in days, per kind. */
+  rateCalibrationIntervalDays: 180,
+  scaleCalibrationIntervalDays: 365,
+  timingCheckIntervalDays: 365,
+  /** Reminder e-mail this many days before a calibration falls due. */
+  calibrationReminderDays: 14,
+} as const;
+
+export type LabSettings = { -readonly [K in keyof typeof settingDefaults]: number };
+export type SettingKey = keyof LabSettings;
+
+export const settingLimits: Record<SettingKey, { min: number; max: number; label: string; unit: string }> = {
+  checkTolerancePct: { min: 0.1, max: 50, label: "Verdict tolerance", unit: "% of f predicted" },
+  spinUpTimesToWait: { min: 0, max: 20, label: "Spin-up times to wait before filming", unit: "τ" },
+  rateCalibrationIntervalDays: { min: 1, max: 3650, label: "Rate calibration interval", unit: "days" },
+  scaleCalibrationIntervalDays: { min: 1, max: 3650, label: "Scale calibration interval", unit: "days" },
+  timingCheckIntervalDays: { min: 1, max: 3650, label: "Timing check interval", unit: "days" },
+  calibrationReminderDays: { min: 0, max: 365, label: "Reminder before a calibration is due", unit: "days" },
+};

@@ -1,0 +1,11 @@
+import type { Route } from "./+types/equipment-item";
+import { requireUser } from "~/.server/auth/permissions";
+import { getEquipment, serializeEquipment } from "~/.server/equipment";
+import { apiError } from "~/.server/http";
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  await requireUser(request);
+  const item = await getEquipment(Number(params.id));
+  if (!item) return apiError(404, "not_found", "No equipment with that id.");
+  return Response.json(serializeEquipment(item));
+}

@@ -1,0 +1,53 @@
+import type { Route } from "./+types/detail";
+import { requireUser } from "~/.server/auth/permissions";
+import { getEquipment, serializeEquipment } from "~/.server/equipment";
+import { notFound } from "~/.server/http";
+import { kindLabels } from "~/lib/equipment";
+import { ButtonLink } from "~/components/ui/button";
+import { Card, PageHeader } from "~/components/ui/card";
+import { equipmentSummary, StatusTag } from "~/components/equipment-facts";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.item.name ?? "Equipment"} · Tankside` }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const user = await requireUser(request);
+  const item = await getEquipment(Number(params.id));
+  if (!item) throw notFound(request, "That piece of equipment");
+  return { canEdit: user.role === "lab_manager", item: serializeEquipment(item) };
+}
+
+export default function EquipmentDetail({ loaderData }: Route.ComponentProps) {
+  const { item } = loaderData;
+  const rows: [string, string | null][] = [
+    ["Kind", kindLabels[item.kind]],
+    ["Key figures", equipmentSummary(item)],
+    ["Maker and model", [item.maker, item.model].filter(Boolean).join(" ") || null],
+    ["Serial number", item.serialNumber],
+    ["Location", item.location],
+    ["Rate calibration tolerance", item.kind === "table" && item.rateTolerancePct !== null ? `${item.rateTolerancePct} % of the set rate` : null],
+  ];
+  return (
+    <div>
+      <PageHeader
+        title={item.name}
+        subtitle={<StatusTag status={item.status} />}
+        actions={loaderData.canEdit ? <ButtonLink to={`/equipment/${item.id}/edit`}>Edit</ButtonLink> : null}
+      />
+      <div className="grid gap-6 lg:grid-cols-2">
+        <Card title="About this item">
+          <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
+            {rows
+              .filter(([, v]) => v)
+              .map(([k, v]) => (
+                <div key={k} className="contents">
+                  <dt className="font-bold">{k}</dt>
+                  <dd>{v}</dd>
+                </div>
+              ))}
+          </dl>
+          {item.notes ? <p className="mt-4 whitespace-pre-wrap">{item.notes}</p> : null}
+        </Card>
+      </div>
+    </div>
+  );
+}

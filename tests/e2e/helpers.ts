@@ -1,0 +1,63 @@
+import { expect, request as playwrightRequest, type Page, type APIRequestContext } from "@playwright/test";
+
+export const DEMO_PASSWORD = "tankside-demo";
+export const people = {
+  manager: "manager@tankside.example",
+  tech: "tech@tankside.example",
+  instructor: "instructor@tankside.example",
+} as const;
+
+export async function signIn(page: Page, email: string, password = DEMO_PASSWORD) {
+  await page.goto("/sign-in");
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill(password);
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page.getByRole("button", { name: "Sign out" })).toBeVisible();
+}
+
+/** An API client signed in with a session cookie, as a script or fetcher would be. */
+export async function apiAs(baseURL: string, email: string, password = DEMO_PASSWORD): Promise<APIRequestContext> {
+  const ctx = await playwrightRequest.newContext({ baseURL });
+  const res = await ctx.post("/sign-in", { form: { email, password }, maxRedirects: 0 });
+  expect(res.status(), `sign-in as ${email}`).toBe(302);
+  return ctx;
+}
+
+export interface CapturedMessage {
+  id: number;
+  to: string[];
+  subject: string;
+  text: string;
+}
+
+/** Waits for a message to arrive at the fake SMTP server (read through the lab manager's mail API). */
+export async function waitForMail(baseURL: string, to: string, subjectIncludes: string, after = 0): Promise<CapturedMessage> {
+  const manager = await apiAs(baseURL, people.manager);
+  try {
+    let found: CapturedMessage | undefined;
+    await expect
+      .poll(async () => {
+        const res = await manager.get(`/api/v1/mail?to=${encodeURIComponent(to)}`);
+        const list = (await res.json()) as CapturedMessage[];
+        found = list.find((m) => m.id > after && m.subject.includes(subjectIncludes));
+        return Boolean(found);
+      }, { timeout: 15_000 })
+      .toBe(true);
+    return found!;
+  } finally {
+    await manager.dispose();
+  }
+}
+
+export async function latestMailId(baseURL: string): Promise<number> {
+  const manager = await apiAs(baseURL, people.manager);
+  const list = (await (await manager.get("/api/v1/mail")).json()) as CapturedMessage[];
+  await manager.dispose();
+  return list[0]?.id ?? 0;
+}
+
+export function linkIn(text: string, pathPrefix: string): string {
+  const match = new RegExp(`https?://[^\\s]+${pathPrefix.replace(/\//g, "\\/")}[^\\s]+`).exec(text);
+  if (!match) throw new Error(`no ${pathPrefix} link in: ${text}`);
+  return new URL(match[0]).pathname;
+}

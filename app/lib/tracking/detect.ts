@@ -1,0 +1,469 @@
+/**
+ * Finding the tracer in one frame.
+ *
+ * Float: difference from the median background (bright float on darker water). Dye: HSV colour
+ * range. Either way a detection image (blocks of `plan.shrink` px averaged) is thresholded,
+ * cleaned with an opening and a closing, and split into blobs; blobs are kept by area and
+ * roundness. The centroid of each blob is then weighted by the un-thresholded signal (difference
+ * or saturation) at full resolution, less a noise floor, which keeps it sub-pixel.
+ */
+import type { CvRect, OpenCv } from "./opencv-types";
+import type { DetectionPlan } from "./plan";
+import type { Detection } from "./types";
+
+export interface FrameImage {
+  data: Uint8Array;
+  width: number;
+  height: number;
+  /** Interleaved channels per pixel. */
+  channels: number;
+}
+
+export interface Detector {
+  /** `image` is the plan's crop with the plan's channels; `background` is needed for floats. */
+  detect(image: FrameImage, background: Uint8Array | null): Detection[];
+  /** Frees the OpenCV matrices: wasm memory is not garbage-collected. */
+  dispose(): void;
+}
+
+/** Thresholds in noise units: detection well clear of noise, centroid weights just above it. */
+const detectSigmas = 5;
+const weightSigmas = 3;
+/** Lowest contrast (grey levels) that counts, for nearly noiseless frames. */
+const minContrast = 5;
+const minSigma = 0.5;
+const noiseStride = 4;
+const maxBlobs = 254;
+const tileSize = 32;
+const maxDetections = 50;
+
+/** The decoder's crop and channel choice, for a frame already in memory (tests, demo seeding). */
+export function cropForPlan(frame: FrameImage, plan: DetectionPlan): FrameImage {
+  const { left, top, width, height } = plan.crop;
+  const out = new Uint8Array(width * height * plan.channels);
+  const ch = frame.channels;
+  for (let row = 0; row < height; row++) {
+    const src = ((top + row) * frame.width + left) * ch;
+    const dst = row * width * plan.channels;
+    if (plan.channels === 1) {
+      // Floats are searched on the green channel alone, as the decoder delivers it.
+      const green = ch >= 3 ? 1 : 0;
+      for (let col = 0; col < width; col++) out[dst + col] = frame.data[src + col * ch + green];
+    } else {
+      for (let col = 0; col < width; col++) {
+        const s = src + col * ch;
+        const d = dst + col * 3;
+        out[d] = frame.data[s];
+        out[d + 1] = frame.data[s + 1];
+        out[d + 2] = frame.data[s + 2];
+      }
+    }
+  }
+  return { data: out, width, height, channels: plan.channels };
+}
+
+/** Per row, the half-open column range inside the tank edge (pixel centres at `offset + i·step`). */
+function rowSpans(
+  rows: number,
+  cols: number,
+  step: number,
+  offset: number,
+  tank: DetectionPlan["tank"],
+): Int32Array {
+  const spans = new Int32Array(rows * 2);
+  for (let r = 0; r < rows; r++) {
+    if (!tank) {
+      spans[2 * r] = 0;
+      spans[2 * r + 1] = cols;
+      continue;
+    }
+    const dy = offset + r * step - tank.cy;
+    const half2 = tank.r * tank.r - dy * dy;
+    if (half2 < 0) {
+      spans[2 * r] = 0;
+      spans[2 * r + 1] = 0;
+      continue;
+    }
+    const half = Math.sqrt(half2);
+    const a = Math.max(0, Math.ceil((tank.cx - half - offset) / step));
+    const b = Math.min(cols, Math.floor((tank.cx + half - offset) / step) + 1);
+    spans[2 * r] = a;
+    spans[2 * r + 1] = Math.max(a, b);
+  }
+  return spans;
+}
+
+/** Median and MAD-based sigma of a histogram whose bin i holds the value i − shift. */
+function robustStats(hist: Uint32Array, shift: number): { median: number; sigma: number } {
+  let total = 0;
+  for (let i = 0; i < hist.length; i++) total += hist[i];
+  if (total === 0) return { median: 0, sigma: minSigma };
+  const half = total / 2;
+  let acc = 0;
+  let medianBin = 0;
+  for (let i = 0; i < hist.length; i++) {
+    acc += hist[i];
+    if (acc >= half) {
+      medianBin = i;
+      break;
+    }
+  }
+  // The MAD from the same histogram: widen a window about the median until it holds half the
+  // samples, taking each integer value as spread over ±0.5 so the estimate is not whole levels.
+  let inside = hist[medianBin];
+  let previous = 0;
+  let radius = 0;
+  while (inside < half && radius < hist.length) {
+    radius++;
+    previous = inside;
+    if (medianBin - radius >= 0) inside += hist[medianBin - radius];
+    if (medianBin + radius < hist.length) inside += hist[medianBin + radius];
+  }
+  const mad = radius === 0 ? (0.5 * half) / inside : radius - 0.5 + (half - previous) / Math.max(1, inside - previous);
+  return { median: medianBin - shift, sigma: Math.max(minSigma, 1.4826 * mad) };
+}
+
+/** OpenCV's 8-bit HSV: hue 0–180, saturation and value 0–255. */
+function hsv(r: number, g: number, b: number, out: Float64Array): void {
+  const v = Math.max(r, g, b);
+  const m = Math.min(r, g, b);
+  const d = v - m;
+  out[2] = v;
+  out[1] = v === 0 ? 0 : (255 * d) / v;
+  let h = 0;
+  if (d > 0) {
+    if (v === r) h = (60 * (g - b)) / d;
+    else if (v === g) h = 120 + (60 * (b - r)) / d;
+    else h = 240 + (60 * (r - g)) / d;
+    if (h < 0) h += 360;
+  }
+  out[0] = h / 2;
+}
+
+function hueInRange(h: number, hueMin: number, hueMax: number): boolean {
+  return hueMin <= hueMax ? h >= hueMin && h <= hueMax : h >= hueMin || h <= hueMax;
+}
+
+export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
+  const { smallWidth: sw, smallHeight: sh, shrink: k } = plan;
+  const width = plan.crop.width;
+  const height = plan.crop.height;
+  if (sw < 3 || sh < 3) throw new Error("The searched region is too small to find a tracer in.");
+
+  const mask = new cv.Mat(sh, sw, cv.CV_8UC1);
+  const opened = new cv.Mat(sh, sw, cv.CV_8UC1);
+  const labels = new cv.Mat(sh, sw, cv.CV_8UC1);
+  const kernel = cv.getStructuringElement(cv.MORPH_RECT, new cv.Size(3, 3));
+  const fullSpans = rowSpans(height, width, 1, 0, plan.tank);
+  const smallSpans = rowSpans(sh, sw, k, (k - 1) / 2, plan.tank);
+  const hist = new Uint32Array(511);
+  const colour = new Float64Array(3);
+  const block = k * k;
+  const blockSums = new Float64Array(sw * 3);
+  const tilesX = Math.ceil(sw / tileSize);
+  const tilesY = Math.ceil(sh / tileSize);
+  const tileHits = new Uint8Array(tilesX * tilesY);
+  const { hueMin, hueMax, satMin, valMin } = plan.dyeColour;
+  let disposed = false;
+
+  function check(image: FrameImage, background: Uint8Array | null): void {
+    if (disposed) throw new Error("This detector has been disposed.");
+    if (image.width !== width || image.height !== height || image.channels !== plan.channels) {
+      throw new Error(
+        `Frame region is ${image.width}×${image.height}×${image.channels}, the plan expects ${width}×${height}×${plan.channels}.`,
+      );
+    }
+    if (plan.tracer === "float" && (!background || background.length !== width * height)) {
+      throw new Error("Floats are found against a background of the same region.");
+    }
+  }
+
+  /** Offset and noise of the float difference, or of the water's saturation for dye. */
+  function noise(image: FrameImage, background: Uint8Array | null): { median: number; sigma: number } {
+    hist.fill(0);
+    const img = image.data;
+    for (let row = 0; row < height; row += noiseStride) {
+      const a = fullSpans[2 * row];
+      const b = fullSpans[2 * row + 1];
+      for (let col = a; col < b; col += noiseStride) {
+        const p = row * width + col;
+        if (background) {
+          hist[img[p] - background[p] + 255]++;
+        } else {
+          hsv(img[3 * p], img[3 * p + 1], img[3 * p + 2], colour);
+          hist[Math.round(colour[1])]++;
+        }
+      }
+    }
+    return robustStats(hist, background ? 255 : 0);
+  }
+
+  /**
+   * Fills the mask and returns the regions worth cleaning: groups of touching tiles holding at
+   * least two neighbouring pixels above the threshold. Stray noise pixels set no tile, so the
+   * OpenCV work stays near the tracer however large the tank is.
+   */
+  function threshold(image: FrameImage, background: Uint8Array | null, offset: number, sigma: number): CvRect[] {
+    const m = mask.data;
+    const img = image.data;
+    m.fill(0);
+    tileHits.fill(0);
+    let any = false;
+    let previous = -2;
+    const mark = (sx: number, sy: number) => {
+      const at = sy * sw + sx;
+      m[at] = 255;
+      if (previous === at - 1) {
+        tileHits[((sy / tileSize) | 0) * tilesX + ((sx / tileSize) | 0)] = 1;
+        any = true;
+      }
+      previous = at;
+    };
+    if (background) {
+      // Compared as block sums, so no division per pixel.
+      const level = (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block;
+      for (let sy = 0; sy < sh; sy++) {
+        const a = smallSpans[2 * sy];
+        const b = smallSpans[2 * sy + 1];
+        if (a >= b) continue;
+        if (k === 1) {
+          const base = sy * width;
+          for (let p = base + a, end = base + b; p < end; p++) {
+            if (img[p] - background[p] > level) mark(p - base, sy);
+          }
+          continue;
+        }
+        blockSums.fill(0, a, b);
+        for (let ky = 0; ky < k; ky++) {
+          const base = (sy * k + ky) * width;
+          for (let col = a * k, end = b * k; col < end; col++) {
+            blockSums[(col / k) | 0] += img[base + col] - background[base + col];
+          }
+        }
+        for (let sx = a; sx < b; sx++) if (blockSums[sx] > level) mark(sx, sy);
+      }
+    } else {
+      for (let sy = 0; sy < sh; sy++) {
+        const a = smallSpans[2 * sy];
+        const b = smallSpans[2 * sy + 1];
+        if (a >= b) continue;
+        blockSums.fill(0, 3 * a, 3 * b);
+        for (let ky = 0; ky < k; ky++) {
+          const base = (sy * k + ky) * width * 3;
+          for (let col = a * k, end = b * k; col < end; col++) {
+            const p = base + 3 * col;
+            const q = 3 * ((col / k) | 0);
+            blockSums[q] += img[p];
+            blockSums[q + 1] += img[p + 1];
+            blockSums[q + 2] += img[p + 2];
+          }
+        }
+        for (let sx = a; sx < b; sx++) {
+          const r = blockSums[3 * sx] / block;
+          const g = blockSums[3 * sx + 1] / block;
+          const bl = blockSums[3 * sx + 2] / block;
+          const v = Math.max(r, g, bl);
+          // Value and saturation reject the water before any hue is worked out.
+          if (v < valMin || (255 * (v - Math.min(r, g, bl))) / v < satMin) continue;
+          hsv(r, g, bl, colour);
+          if (hueInRange(colour[0], hueMin, hueMax)) mark(sx, sy);
+        }
+      }
+    }
+    if (!any) return [];
+    const regions: CvRect[] = [];
+    const seen = new Uint8Array(tileHits.length);
+    for (let start = 0; start < tileHits.length; start++) {
+      if (!tileHits[start] || seen[start]) continue;
+      let tx0 = tilesX;
+      let ty0 = tilesY;
+      let tx1 = -1;
+      let ty1 = -1;
+      const queue = [start];
+      seen[start] = 1;
+      while (queue.length > 0) {
+        const t = queue.pop() as number;
+        const tx = t % tilesX;
+        const ty = (t / tilesX) | 0;
+        tx0 = Math.min(tx0, tx);
+        tx1 = Math.max(tx1, tx);
+        ty0 = Math.min(ty0, ty);
+        ty1 = Math.max(ty1, ty);
+        for (let dy = -1; dy <= 1; dy++) {
+          for (let dx = -1; dx <= 1; dx++) {
+            const nx = tx + dx;
+            const ny = ty + dy;
+            if (nx < 0 || ny < 0 || nx >= tilesX || ny >= tilesY) continue;
+            const n = ny * tilesX + nx;
+            if (tileHits[n] && !seen[n]) {
+              seen[n] = 1;
+              queue.push(n);
+            }
+          }
+        }
+      }
+      // Two pixels past the tiles catch the tips of a blob whose body set them.
+      const x = Math.max(0, tx0 * tileSize - 2);
+      const y = Math.max(0, ty0 * tileSize - 2);
+      const right = Math.min(sw, (tx1 + 1) * tileSize + 2);
+      const bottom = Math.min(sh, (ty1 + 1) * tileSize + 2);
+      regions.push({ x, y, width: right - x, height: bottom - y });
+    }
+    return regions;
+  }
+
+  interface Blob {
+    label: number;
+    rect: CvRect;
+    roundness: number;
+    pixels: number;
+  }
+
+  /** Opening and closing, then outlines and their filled labels, within each region. */
+  function blobs(regions: CvRect[]): Blob[] {
+    opened.data.fill(0);
+    labels.data.fill(0);
+    const found: Blob[] = [];
+    let nextLabel = 1;
+    for (const region of regions) {
+      if (nextLabel > maxBlobs) break;
+      const rect = new cv.Rect(region.x, region.y, region.width, region.height);
+      const maskRoi = mask.roi(rect);
+      const openedRoi = opened.roi(rect);
+      const labelsRoi = labels.roi(rect);
+      const contours = new cv.MatVector();
+      const hierarchy = new cv.Mat(0, 0, cv.CV_8UC1);
+      try {
+        cv.morphologyEx(maskRoi, openedRoi, cv.MORPH_OPEN, kernel);
+        cv.morphologyEx(openedRoi, maskRoi, cv.MORPH_CLOSE, kernel);
+        cv.findContours(maskRoi, contours, hierarchy, cv.RETR_EXTERNAL, cv.CHAIN_APPROX_SIMPLE);
+        const candidates: { index: number; area: number; perimeter: number; rect: CvRect }[] = [];
+        const count = contours.size();
+        for (let i = 0; i < count; i++) {
+          const contour = contours.get(i);
+          try {
+            const r = cv.boundingRect(contour);
+            // The box bounds the pixel count from above, the outline's area from below.
+            if (r.width * r.height * block < plan.minAreaPx) continue;
+            const area = cv.contourArea(contour);
+            if (area * block > plan.maxAreaPx) continue;
+            candidates.push({
+              index: i,
+              area,
+              perimeter: cv.arcLength(contour, true),
+              rect: { x: r.x + region.x, y: r.y + region.y, width: r.width, height: r.height },
+            });
+          } finally {
+            contour.delete();
+          }
+        }
+        candidates.sort((a, b) => b.area - a.area);
+        candidates.length = Math.min(candidates.length, maxBlobs + 1 - nextLabel);
+        const first = nextLabel;
+        for (const c of candidates) cv.drawContours(labelsRoi, contours, c.index, new cv.Scalar(nextLabel++), -1);
+        const lab = labels.data;
+        candidates.forEach((c, n) => {
+          const label = first + n;
+          let pixels = 0;
+          for (let row = c.rect.y; row < c.rect.y + c.rect.height; row++) {
+            for (let col = c.rect.x; col < c.rect.x + c.rect.width; col++) {
+              if (lab[row * sw + col] === label) pixels++;
+            }
+          }
+          const areaPx = pixels * block;
+          if (areaPx < plan.minAreaPx || areaPx > plan.maxAreaPx) return;
+          const roundness = c.perimeter > 0 ? (4 * Math.PI * c.area) / (c.perimeter * c.perimeter) : 0;
+          if (roundness < plan.minRoundness) return;
+          found.push({ label, rect: c.rect, roundness: Math.min(1, roundness), pixels: areaPx });
+        });
+      } finally {
+        contours.delete();
+        hierarchy.delete();
+        maskRoi.delete();
+        openedRoi.delete();
+        labelsRoi.delete();
+      }
+    }
+    return found;
+  }
+
+  /** Intensity-weighted centroid at full resolution around one blob. */
+  function centroid(
+    blob: Blob,
+    image: FrameImage,
+    background: Uint8Array | null,
+    offset: number,
+    sigma: number,
+  ): Detection | null {
+    const lab = labels.data;
+    const img = image.data;
+    const margin = k + 2;
+    const row0 = Math.max(0, blob.rect.y * k - margin);
+    const row1 = Math.min(height, (blob.rect.y + blob.rect.height) * k + margin);
+    const col0 = Math.max(0, blob.rect.x * k - margin);
+    const col1 = Math.min(width, (blob.rect.x + blob.rect.width) * k + margin);
+    const floor = background ? offset + weightSigmas * sigma : Math.min(satMin, offset + weightSigmas * sigma);
+    let sum = 0;
+    let sumX = 0;
+    let sumY = 0;
+    let peak = 0;
+    for (let row = row0; row < row1; row++) {
+      const a = Math.max(col0, fullSpans[2 * row]);
+      const b = Math.min(col1, fullSpans[2 * row + 1]);
+      const labelRow = Math.min(sh - 1, Math.floor(row / k)) * sw;
+      for (let col = a; col < b; col++) {
+        const owner = lab[labelRow + Math.min(sw - 1, Math.floor(col / k))];
+        if (owner !== 0 && owner !== blob.label) continue;
+        const p = row * width + col;
+        let signal: number;
+        if (background) {
+          signal = img[p] - background[p];
+        } else {
+          hsv(img[3 * p], img[3 * p + 1], img[3 * p + 2], colour);
+          if (colour[2] < valMin || !hueInRange(colour[0], hueMin, hueMax)) continue;
+          signal = colour[1];
+        }
+        const w = signal - floor;
+        if (w <= 0) continue;
+        if (signal - (background ? offset : 0) > peak) peak = signal - (background ? offset : 0);
+        sum += w;
+        sumX += w * col;
+        sumY += w * row;
+      }
+    }
+    if (sum <= 0) return null;
+    return {
+      x: plan.crop.left + sumX / sum,
+      y: plan.crop.top + sumY / sum,
+      area: blob.pixels,
+      roundness: blob.roundness,
+      intensity: Math.min(255, Math.round(peak)),
+    };
+  }
+
+  return {
+    detect(image, background) {
+      check(image, background);
+      const bg = plan.tracer === "float" ? background : null;
+      const { median, sigma } = noise(image, bg);
+      const regions = threshold(image, bg, median, sigma);
+      if (regions.length === 0) return [];
+      const detections: Detection[] = [];
+      for (const blob of blobs(regions)) {
+        const d = centroid(blob, image, bg, median, sigma);
+        if (d) detections.push(d);
+      }
+      detections.sort((a, b) => b.intensity * b.area - a.intensity * a.area);
+      detections.length = Math.min(detections.length, maxDetections);
+      return detections;
+    },
+    dispose() {
+      if (disposed) return;
+      disposed = true;
+      mask.delete();
+      opened.delete();
+      labels.delete();
+      kernel.delete();
+    },
+  };
+}

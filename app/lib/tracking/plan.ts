@@ -1,0 +1,114 @@
+import type { DyeColour, TrackingSetup } from "./types";
+
+/** The rectangle of the frame that is decoded and searched, full-frame px. */
+export interface CropBox {
+  left: number;
+  top: number;
+  width: number;
+  height: number;
+}
+
+/**
+ * How one frame stack is searched: worked out once from the view setup and the frame size,
+ * then shared by the decoder (what to crop, which channels) and the detector.
+ */
+export interface DetectionPlan {
+  tracer: TrackingSetup["tracer"];
+  frameWidth: number;
+  frameHeight: number;
+  crop: CropBox;
+  /** Channels the decoder delivers: the green channel alone for floats, RGB for dye. */
+  channels: 1 | 3;
+  /** Side of the pixel blocks averaged into the detection image (1 = full resolution). */
+  shrink: number;
+  smallWidth: number;
+  smallHeight: number;
+  /** Tank edge relative to the crop, px; null when the whole frame is searched. */
+  tank: { cx: number; cy: number; r: number } | null;
+  minAreaPx: number;
+  maxAreaPx: number;
+  minRoundness: number;
+  dyeColour: DyeColour;
+}
+
+/** Any clearly saturated colour: water, the rim and glare are all close to grey. */
+export const defaultDyeColour: DyeColour = { hueMin: 0, hueMax: 180, satMin: 100, valMin: 40 };
+
+const defaultMinAreaPx = 12;
+/** The detection image keeps a tracer at least this many blocks across, so opening cannot erase it. */
+const minBlocksAcross = 4;
+const maxShrink = 4;
+
+export class ViewSetupError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = "ViewSetupError";
+  }
+}
+
+function finite(value: number): boolean {
+  return typeof value === "number" && Number.isFinite(value);
+}
+
+export function planDetection(
+  setup: TrackingSetup,
+  frameWidth: number,
+  frameHeight: number,
+): DetectionPlan {
+  if (setup.tracer !== "float" && setup.tracer !== "dye") {
+    throw new ViewSetupError(`The tracer kind must be "float" or "dye", not "${String(setup.tracer)}".`);
+  }
+  let crop: CropBox = { left: 0, top: 0, width: frameWidth, height: frameHeight };
+  let tank: DetectionPlan["tank"] = null;
+  if (setup.tankEdge) {
+    const { cx, cy, r } = setup.tankEdge;
+    if (![cx, cy, r].every(finite) || r <= 0) {
+      throw new ViewSetupError("The tank edge needs a centre and a radius greater than zero.");
+    }
+    const left = Math.max(0, Math.floor(cx - r));
+    const top = Math.max(0, Math.floor(cy - r));
+    const right = Math.min(frameWidth, Math.ceil(cx + r) + 1);
+    const bottom = Math.min(frameHeight, Math.ceil(cy + r) + 1);
+    if (right - left < 8 || bottom - top < 8) {
+      throw new ViewSetupError(
+        `The tank edge (centre ${cx.toFixed(0)}, ${cy.toFixed(0)}, radius ${r.toFixed(0)} px) lies outside the ${frameWidth}×${frameHeight} frame.`,
+      );
+    }
+    crop = { left, top, width: right - left, height: bottom - top };
+    tank = { cx: cx - left, cy: cy - top, r };
+  }
+
+  const searchedArea = tank ? Math.PI * tank.r * tank.r : frameWidth * frameHeight;
+  const minAreaPx = setup.minAreaPx ?? defaultMinAreaPx;
+  const maxAreaPx = setup.maxAreaPx ?? Math.max(minAreaPx * 4, searchedArea * 0.05);
+  if (!(minAreaPx > 0) || !(maxAreaPx > minAreaPx)) {
+    throw new ViewSetupError("The tracer's smallest area must be above zero and below its largest area.");
+  }
+  const minRoundness = setup.minRoundness ?? (setup.tracer === "float" ? 0.5 : 0.2);
+
+  // Averaging blocks smaller than the tracer keeps it detectable and also raises its contrast
+  // over sensor noise; the centroid is still taken at full resolution.
+  const smallestDiameter = 2 * Math.sqrt(minAreaPx / Math.PI);
+  const shrink = Math.max(1, Math.min(maxShrink, Math.floor(smallestDiameter / minBlocksAcross)));
+
+  return {
+    tracer: setup.tracer,
+    frameWidth,
+    frameHeight,
+    crop,
+    channels: setup.tracer === "float" ? 1 : 3,
+    shrink,
+    smallWidth: Math.floor(crop.width / shrink),
+    smallHeight: Math.floor(crop.height / shrink),
+    tank,
+    minAreaPx,
+    maxAreaPx,
+    minRoundness,
+    dyeColour: { ...defaultDyeColour, ...setup.dyeColour },
+  };
+}
+
+/** A key that changes whenever the plan would search differently. */
+export function planKey(plan: DetectionPlan): string {
+  return JSON.stringify(plan);
+}

@@ -1,0 +1,276 @@
+/**
+ * Rendered frame stacks with known tracer positions: for the accuracy tests, the benchmark and
+ * the demo runs. Pure: frames come back as RGB bytes, encoding and storage are the caller's.
+ *
+ * Geometry follows the theory check: paths are given in the rotating frame seen from above
+ * (x right, y up, origin on the axis, metres); a lab-fixed view turns them, and the tank marks,
+ * by +Ω t about the centre; a mirrored view flips x; image rows run downward.
+ */
+
+export type Rgb = [number, number, number];
+
+export type SyntheticPath =
+  | {
+      /** Free float: x = xc + R e^(−r t) cos(−f t + φ), y = yc + R e^(−r t) sin(−f t + φ), f = 2Ω. */
+      kind: "inertial-circle";
+      centre: { x: number; y: number };
+      radius: number;
+      phase: number;
+      /** Linear drag rate r, 1/s. */
+      drag?: number;
+    }
+  | { kind: "line"; from: { x: number; y: number }; velocity: { x: number; y: number } }
+  | { kind: "still"; at: { x: number; y: number } };
+
+export type SyntheticTracer =
+  | {
+      kind: "float";
+      path: SyntheticPath;
+      /** Gaussian spot width, px. */
+      sigmaPx: number;
+      /** Peak brightness added over the water, grey levels. */
+      brightness: number;
+    }
+  | {
+      kind: "dye";
+      path: SyntheticPath;
+      /** Anisotropic Gaussian patch, stretched along the direction of motion. */
+      sigmaAlongPx: number;
+      sigmaAcrossPx: number;
+      colour: Rgb;
+      /** Peak share of dye colour over the water, 0–1. */
+      opacity: number;
+    };
+
+export interface SyntheticRunSpec {
+  width: number;
+  height: number;
+  frames: number;
+  fps: number;
+  seed?: number;
+  camera: "rotating" | "lab";
+  /** Table rate, rad/s; positive is counterclockwise seen from above. */
+  omega: number;
+  /** Rotation centre, image px. */
+  centre: { x: number; y: number };
+  pxPerM: number;
+  mirrored?: boolean;
+  /** Inner radius of the tank, px, centred on the rotation centre. */
+  tankRadiusPx: number;
+  tracers: SyntheticTracer[];
+  /** Sensor noise, grey levels RMS per channel. */
+  noiseSigma?: number;
+  /** Brightness change from the left edge to the right edge of the frame, as a fraction. */
+  illuminationGradient?: number;
+  /** A static reflection of the room lights, image px; null for none. */
+  glare?: { x: number; y: number; radiusPx: number; strength: number } | null;
+  water?: Rgb;
+  /** Dark marks on the tank bottom that turn with the table. */
+  tankMarks?: boolean;
+}
+
+export interface SyntheticFrame {
+  index: number;
+  /** s */
+  t: number;
+  width: number;
+  height: number;
+  channels: 3;
+  data: Uint8Array;
+  /** True centre of each tracer, image px, in the order of `spec.tracers`. */
+  truth: { x: number; y: number }[];
+}
+
+const tableColour: Rgb = [118, 108, 96];
+const rimColour: Rgb = [40, 42, 46];
+const markColour: Rgb = [25, 25, 30];
+const defaultWater: Rgb = [62, 74, 84];
+
+/** mulberry32: small, fast and good enough for sensor noise. */
+export function seededRandom(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+function gaussianTable(seed: number, size: number): Float32Array {
+  const random = seededRandom(seed);
+  const table = new Float32Array(size);
+  for (let i = 0; i < size; i += 2) {
+    const u = Math.max(random(), 1e-12);
+    const v = random();
+    const r = Math.sqrt(-2 * Math.log(u));
+    table[i] = r * Math.cos(2 * Math.PI * v);
+    if (i + 1 < size) table[i + 1] = r * Math.sin(2 * Math.PI * v);
+  }
+  return table;
+}
+
+export function syntheticTimes(spec: SyntheticRunSpec): number[] {
+  return Array.from({ length: spec.frames }, (_, i) => i / spec.fps);
+}
+
+/** Rotating-frame position of a path at time t, metres. */
+export function pathPosition(path: SyntheticPath, omega: number, t: number): { x: number; y: number } {
+  switch (path.kind) {
+    case "inertial-circle": {
+      const f = 2 * omega;
+      const r = path.radius * Math.exp(-(path.drag ?? 0) * t);
+      const angle = -f * t + path.phase;
+      return { x: path.centre.x + r * Math.cos(angle), y: path.centre.y + r * Math.sin(angle) };
+    }
+    case "line":
+      return { x: path.from.x + path.velocity.x * t, y: path.from.y + path.velocity.y * t };
+    case "still":
+      return { ...path.at };
+  }
+}
+
+/** A point of the table (metres, rotating frame) at time t, in image px as this view sees it. */
+export function tableToView(spec: SyntheticRunSpec, p: { x: number; y: number }, t: number): { x: number; y: number } {
+  let { x, y } = p;
+  if (spec.camera === "lab") {
+    const a = spec.omega * t;
+    const c = Math.cos(a);
+    const s = Math.sin(a);
+    [x, y] = [c * x - s * y, s * x + c * y];
+  }
+  if (spec.mirrored) x = -x;
+  return { x: spec.centre.x + x * spec.pxPerM, y: spec.centre.y - y * spec.pxPerM };
+}
+
+export function tracerPosition(spec: SyntheticRunSpec, tracer: SyntheticTracer, t: number): { x: number; y: number } {
+  return tableToView(spec, pathPosition(tracer.path, spec.omega, t), t);
+}
+
+export interface SyntheticRenderer {
+  frame(index: number): SyntheticFrame;
+}
+
+export function createSyntheticRenderer(spec: SyntheticRunSpec): SyntheticRenderer {
+  const { width: w, height: h } = spec;
+  if (!(w > 0 && h > 0 && spec.frames > 0 && spec.fps > 0)) throw new Error("A synthetic run needs a size, frames and a frame rate.");
+  const water = spec.water ?? defaultWater;
+  const noiseSigma = spec.noiseSigma ?? 3;
+  const gradient = spec.illuminationGradient ?? 0.25;
+  const seed = spec.seed ?? 1;
+  const noise = gaussianTable(seed ^ 0x5eed, 1 << 16);
+  const marksTurn = spec.camera === "lab";
+  const markRadiusPx = Math.max(2, spec.tankRadiusPx * 0.02);
+  const markAt = [0, 1, 2, 3].map((i) => {
+    const a = Math.PI / 4 + (i * Math.PI) / 2;
+    const r = (0.85 * spec.tankRadiusPx) / spec.pxPerM;
+    return { x: r * Math.cos(a), y: r * Math.sin(a) };
+  });
+
+  // The scene without marks or tracers: table, rim and water.
+  const scene = new Float32Array(w * h * 3);
+  const rimWidth = Math.max(3, spec.tankRadiusPx * 0.03);
+  for (let row = 0; row < h; row++) {
+    for (let col = 0; col < w; col++) {
+      const d = Math.hypot(col - spec.centre.x, row - spec.centre.y);
+      const c = d < spec.tankRadiusPx ? water : d < spec.tankRadiusPx + rimWidth ? rimColour : tableColour;
+      const p = (row * w + col) * 3;
+      scene[p] = c[0];
+      scene[p + 1] = c[1];
+      scene[p + 2] = c[2];
+    }
+  }
+  const drawMarks = (target: Float32Array, t: number) => {
+    for (const m of markAt) {
+      const at = tableToView(spec, m, t);
+      stamp(at.x, at.y, markRadiusPx + 2, (p, dx, dy) => {
+        const cover = Math.min(1, Math.max(0, markRadiusPx + 0.5 - Math.hypot(dx, dy)));
+        for (let c = 0; c < 3; c++) target[p + c] += (markColour[c] - target[p + c]) * cover;
+      });
+    }
+  };
+  const stamp = (x: number, y: number, reach: number, paint: (p: number, dx: number, dy: number) => void) => {
+    const r0 = Math.max(0, Math.floor(y - reach));
+    const r1 = Math.min(h - 1, Math.ceil(y + reach));
+    const c0 = Math.max(0, Math.floor(x - reach));
+    const c1 = Math.min(w - 1, Math.ceil(x + reach));
+    for (let row = r0; row <= r1; row++) {
+      for (let col = c0; col <= c1; col++) paint((row * w + col) * 3, col - x, row - y);
+    }
+  };
+  if (spec.tankMarks !== false && !marksTurn) drawMarks(scene, 0);
+
+  const light = new Float32Array(w * h);
+  const glare = new Float32Array(w * h);
+  for (let row = 0; row < h; row++) {
+    for (let col = 0; col < w; col++) {
+      const p = row * w + col;
+      light[p] = 1 + gradient * (col / Math.max(1, w - 1) - 0.5) + 0.4 * gradient * (row / Math.max(1, h - 1) - 0.5);
+      if (spec.glare) {
+        const g = spec.glare;
+        const q = ((col - g.x) ** 2 + (row - g.y) ** 2) / (g.radiusPx * g.radiusPx);
+        glare[p] = q < 25 ? g.strength * Math.exp(-q / 2) : 0;
+      }
+    }
+  }
+  const work = new Float32Array(scene.length);
+
+  return {
+    frame(index) {
+      const t = index / spec.fps;
+      work.set(scene);
+      if (spec.tankMarks !== false && marksTurn) drawMarks(work, t);
+      const truth: { x: number; y: number }[] = [];
+      for (const tracer of spec.tracers) {
+        const at = tracerPosition(spec, tracer, t);
+        truth.push(at);
+        if (tracer.kind === "dye") {
+          const ahead = tracerPosition(spec, tracer, t + 1e-3);
+          const heading = Math.atan2(ahead.y - at.y, ahead.x - at.x);
+          const ca = Math.cos(heading);
+          const sa = Math.sin(heading);
+          const sAlong = tracer.sigmaAlongPx;
+          const sAcross = tracer.sigmaAcrossPx;
+          stamp(at.x, at.y, 4 * Math.max(sAlong, sAcross), (p, dx, dy) => {
+            const u = dx * ca + dy * sa;
+            const v = -dx * sa + dy * ca;
+            const alpha = tracer.opacity * Math.exp(-0.5 * ((u / sAlong) ** 2 + (v / sAcross) ** 2));
+            for (let c = 0; c < 3; c++) work[p + c] += (tracer.colour[c] - work[p + c]) * alpha;
+          });
+        } else {
+          const s2 = 2 * tracer.sigmaPx * tracer.sigmaPx;
+          stamp(at.x, at.y, 5 * tracer.sigmaPx, (p, dx, dy) => {
+            const add = tracer.brightness * Math.exp(-(dx * dx + dy * dy) / s2);
+            work[p] += add;
+            work[p + 1] += add;
+            work[p + 2] += add;
+          });
+        }
+      }
+      const data = new Uint8Array(w * h * 3);
+      let state = (Math.imul(seed, 0x9e3779b1) ^ Math.imul(index + 1, 0x85ebca6b)) >>> 0 || 1;
+      for (let p = 0, q = 0; p < w * h; p++) {
+        const lit = light[p];
+        const shine = glare[p];
+        for (let c = 0; c < 3; c++, q++) {
+          state ^= state << 13;
+          state ^= state >>> 17;
+          state ^= state << 5;
+          const v = work[q] * lit + shine + noiseSigma * noise[(state >>> 0) & 0xffff];
+          data[q] = v <= 0 ? 0 : v >= 255 ? 255 : Math.round(v);
+        }
+      }
+      return { index, t, width: w, height: h, channels: 3, data, truth };
+    },
+  };
+}
+
+/** Renders every frame in order, awaiting the caller (to encode or store it) before the next. */
+export async function renderRunFrames(
+  spec: SyntheticRunSpec,
+  onFrame: (frame: SyntheticFrame) => void | Promise<void>,
+): Promise<void> {
+  const renderer = createSyntheticRenderer(spec);
+  for (let i = 0; i < spec.frames; i++) await onFrame(renderer.frame(i));
+}

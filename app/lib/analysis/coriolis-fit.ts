@@ -12,6 +12,12 @@ export interface CoriolisFitOptions {
   centrifugal?: number;
   /** Divide out the smoothing filter's known gain at the track's own frequency (default true). */
   correctFilterGain?: boolean;
+  /**
+   * Tracking noise per axis (position unit) measured from the raw positions' scatter about the
+   * smoothed track (savgol.positionNoise). Used for the errors-in-velocity correction and as a
+   * floor under the noise read from the fit's residuals.
+   */
+  trackingNoise?: number;
 }
 
 export interface CoriolisFitRow {
@@ -42,6 +48,8 @@ export interface CoriolisFit {
   positionNoise: number;
   /** Relative change of f made by the filter-gain correction (0 when none was made). */
   filterGainCorrection: number;
+  /** Relative change of f made by the errors-in-velocity correction. */
+  velocityNoiseCorrection: number;
   r2: number;
   nSamples: number;
   rows: CoriolisFitRow[];
@@ -55,11 +63,13 @@ export interface CoriolisFit {
  * frequencies that a/v at the inertial frequency barely sees). Instead the raw tracking noise,
  * taken as independent from frame to frame with one variance σ² per axis, is propagated exactly
  * through the smoothing weights and the fit (first order, errors in u, v included):
- * Var(β) = σ² (XᵀX)⁻¹ M (XᵀX)⁻¹ with M = Σₖ WₖWₖᵀ over raw points k. σ² is estimated from the
- * fit's own residuals, eᵀe / E[eᵀe]/σ², so motion the model does not explain widens the interval
- * rather than hiding. A sandwich (Newey–West) estimator was tried first and rejected: with a
- * few windows per track its variance estimate was often negative. The Monte Carlo test checks
- * the resulting 95% intervals.
+ * Var(β) = σ² (XᵀX)⁻¹ M (XᵀX)⁻¹ with M = Σₖ WₖWₖᵀ over raw points k. σ² is the larger of the
+ * noise read from the fit's own residuals (eᵀe over its expectation per unit σ²), so motion the
+ * model does not explain widens the interval rather than hiding, and the tracking noise given
+ * by the caller, which is measured on many more degrees of freedom. A sandwich (Newey–West)
+ * estimator was tried first and rejected: with a few windows per track its variance estimate was
+ * often negative. Noisy velocities also bias |f| low (errors in variables); that bias is removed
+ * below. The Monte Carlo test checks the resulting 95% intervals.
  */
 export function fitCoriolis(samples: readonly SmoothedSample[], options: CoriolisFitOptions = {}): CoriolisFit | null {
   const c = options.centrifugal ?? 0;
@@ -128,7 +138,12 @@ export function fitCoriolis(samples: readonly SmoothedSample[], options: Corioli
   const b11 = B[1]![1]!;
   // tr(H C) = tr(B M): the part of the noise the fit itself absorbs.
   const traceHC = b00 * m00 + 2 * b01 * m01 + b11 * m11;
-  const sigma2 = fit.residualSumOfSquares / (traceC - traceHC);
+  const sigmaFit2 = fit.residualSumOfSquares / (traceC - traceHC);
+  const tracking = options.trackingNoise;
+  const sigmaTrack2 = tracking !== undefined && Number.isFinite(tracking) && tracking > 0 ? tracking * tracking : 0;
+  // The larger of the two: the scatter of raw positions is the precise measure of white tracking
+  // noise, the fit's residuals also see motion the model does not explain.
+  const sigma2 = Math.max(sigmaFit2, sigmaTrack2);
   // B M B for symmetric 2×2 B and M.
   const p00 = b00 * m00 + b01 * m01;
   const p01 = b00 * m01 + b01 * m11;
@@ -137,10 +152,25 @@ export function fitCoriolis(samples: readonly SmoothedSample[], options: Corioli
   let var0 = sigma2 * (p00 * b00 + p01 * b01);
   let var1 = sigma2 * (p10 * b01 + p11 * b11);
 
-  let fOut = f;
-  let dragOut = drag;
+  // Errors in the regressors: noisy velocities inflate XᵀX = S·I (S = Σ|w|², the two columns
+  // are orthogonal by construction) by E[Σ|δw|²] = 2σ²Σ‖velocity weights‖², which biases |f| and
+  // |r| low by that fraction. The corrected estimate divides by S − D instead of S.
+  let speedSquares = 0;
+  let velocityWeightSquares = 0;
+  for (const s of samples) {
+    speedSquares += s.u * s.u + s.v * s.v;
+    for (const w of s.weights.velocity) velocityWeightSquares += w * w;
+  }
+  const noiseForVelocity2 = sigmaTrack2 > 0 ? sigmaTrack2 : sigmaFit2;
+  const inflation = (2 * noiseForVelocity2 * velocityWeightSquares) / speedSquares;
+  const eivScale = inflation > 0 && inflation < 0.5 ? 1 / (1 - inflation) : 1;
+  let fOut = f * eivScale;
+  let dragOut = drag * eivScale;
+  var0 *= eivScale * eivScale;
+  var1 *= eivScale * eivScale;
+  const fAfterEiv = fOut;
   if (c === 0 && options.correctFilterGain !== false) {
-    const corrected = correctForFilterGain(samples, f, drag);
+    const corrected = correctForFilterGain(samples, fOut, dragOut);
     if (corrected) {
       fOut = corrected.f;
       dragOut = corrected.drag;
@@ -167,7 +197,8 @@ export function fitCoriolis(samples: readonly SmoothedSample[], options: Corioli
     dragStdErrorNaive: fit.standardErrors[1]!,
     residualSD: fit.residualSD,
     positionNoise: sigma2 > 0 ? Math.sqrt(sigma2) : Number.NaN,
-    filterGainCorrection: f !== 0 ? fOut / f - 1 : 0,
+    filterGainCorrection: fAfterEiv !== 0 ? fOut / fAfterEiv - 1 : 0,
+    velocityNoiseCorrection: eivScale - 1,
     r2: fit.r2,
     nSamples: n,
     rows,

@@ -1,0 +1,518 @@
+/**
+ * The theory check: does a tracer's measured Coriolis deflection match f = 2Ω at the rate in
+ * force? One function for the worker, the command line and the browser. It never throws: any
+ * input it cannot judge honestly gives the verdict "inconclusive" with the reason in words.
+ */
+import { fitCircle } from "./circle-fit";
+import { fitCoriolis, inertialPeriodFromAngle, predictedRadius, turningRate } from "./coriolis-fit";
+import type { CameraMode, TimedPoint, ViewGeometry } from "./frames";
+import { imageToTable, reRotate, rotatingFrameToImage, trackToRotatingFrame } from "./frames";
+import { linearFit } from "./regression";
+import {
+  chooseWindow,
+  DEFAULT_POLY_ORDER,
+  MIN_FRAMES_PER_PERIOD,
+  minimumWindow,
+  oddWindow,
+  positionNoise,
+  smoothTrack,
+  typicalFrameInterval,
+} from "./savgol";
+
+export type TheoryVerdict = "agrees" | "disagrees" | "inconclusive";
+export type OmegaSource = "set rate, uncalibrated" | "rate calibration";
+
+export interface TheoryCheckInput {
+  /** Track in image px, t in s. Points without a finite time or position are left out. */
+  points: readonly { t: number; x: number; y: number }[];
+  setup: ViewGeometry;
+  /** Set rate, signed rad/s (counterclockwise seen from above positive). */
+  omegaSet: number;
+  /** The table's rate calibration in force, when there is one: the true rate at this set rate. */
+  omegaCalibrated?: { value: number; stdError: number; calibrationId?: number | string };
+  cameraMode: CameraMode;
+  /** s; time at which the lab and rotating frames coincide (default: the track's first time). */
+  t0?: number;
+  /** A flat (not paraboloidal) table: add the centrifugal term Ω²r to the model. */
+  flatTable?: boolean;
+  settings?: {
+    /** Fraction of |f predicted| within which the measurement agrees (default 0.03). */
+    tolerance?: number;
+    /** Smoothing window in frames (odd); chosen from the frame rate and the rate when absent. */
+    window?: number;
+  };
+}
+
+export interface TheoryCheckCircle {
+  /** Circle centre in image px, as seen at t₀. */
+  cx: number;
+  cy: number;
+  radiusPx: number;
+  /** null without a scale */
+  radiusM: number | null;
+  /** s, one revolution about the fitted centre */
+  period: number | null;
+  rmsResidualPx: number;
+}
+
+export interface AccelerationFitPoint {
+  t: number;
+  /** rotating-frame velocity (m/s, or px/s without a scale) */
+  u: number;
+  v: number;
+  /** The Coriolis part of the acceleration, a + r·(u, v) (less Ω²r on a flat table): plotted
+   * against the rotated velocity (v, −u) its slope is f. */
+  coriolisX: number;
+  coriolisY: number;
+  /** measured acceleration less the centrifugal term */
+  ax: number;
+  ay: number;
+  axFitted: number;
+  ayFitted: number;
+  /** what f predicted (with the fitted drag) gives */
+  axPredicted: number;
+  ayPredicted: number;
+}
+
+export interface TheoryCheckResult {
+  /** rad/s, signed: the rate in force */
+  omega: number | null;
+  omegaSource: OmegaSource;
+  calibrationId: number | string | null;
+  /** s⁻¹, signed, 2Ω */
+  fPredicted: number | null;
+  fPredictedStdError: number | null;
+  /** s⁻¹, signed */
+  fMeasured: number | null;
+  fStdError: number | null;
+  /** s⁻¹ */
+  drag: number | null;
+  dragStdError: number | null;
+  /** fMeasured / fPredicted */
+  ratio: number | null;
+  deflection: "right" | "left" | null;
+  verdict: TheoryVerdict;
+  reason: string;
+  circle: TheoryCheckCircle | null;
+  /** s, 2π/|turning rate of the velocity| */
+  periodFromAngle: number | null;
+  /** m, mean speed / |f predicted|; null without a scale */
+  predictedRadiusM: number | null;
+  /** points used */
+  nPoints: number;
+  /** points left out for want of a finite time or position, or for a repeated time */
+  nLeftOut: number;
+  /** unit of the series' lengths */
+  lengthUnit: "m" | "px";
+  settings: { window: number | null; polyOrder: number; tolerance: number };
+  series: {
+    rotating: TimedPoint[];
+    lab: TimedPoint[];
+    accelFit: AccelerationFitPoint[];
+    angle: { t: number; angle: number; fitted: number }[];
+    residuals: { t: number; rx: number; ry: number }[];
+  };
+}
+
+export const DEFAULT_TOLERANCE = 0.03;
+/** Shortest track worth judging, as a fraction of the inertial period. */
+export const MIN_PERIOD_FRACTION = 0.25;
+/** More than this fraction of unusable points means the track itself is in doubt. */
+const MAX_LEFT_OUT_FRACTION = 0.2;
+
+function fmt(value: number, digits = 3): string {
+  if (!Number.isFinite(value)) return "—";
+  if (value === 0) return "0";
+  const abs = Math.abs(value);
+  if (abs >= 1e-3 && abs < 1e5) return Number(value.toPrecision(digits)).toString();
+  return value.toExponential(digits - 1);
+}
+
+/** A value with its standard error, both to the standard error's second significant digit. */
+function withError(value: number, se: number): string {
+  if (!(se > 0) || !Number.isFinite(se)) return fmt(value, 4);
+  const decimals = Math.min(12, Math.max(0, 1 - Math.floor(Math.log10(se))));
+  return `${value.toFixed(decimals)} ± ${se.toFixed(decimals)}`;
+}
+
+function pct(fraction: number, digits = 2): string {
+  return `${fmt(100 * fraction, digits)}%`;
+}
+
+const isFiniteNumber = (v: unknown): v is number => typeof v === "number" && Number.isFinite(v);
+
+/** Spread of points along and across their main direction (principal axes). */
+function principalSpread(points: readonly { x: number; y: number }[]): { major: number; minor: number } {
+  const n = points.length;
+  const mx = points.reduce((s, p) => s + p.x, 0) / n;
+  const my = points.reduce((s, p) => s + p.y, 0) / n;
+  let sxx = 0;
+  let syy = 0;
+  let sxy = 0;
+  for (const p of points) {
+    sxx += (p.x - mx) ** 2;
+    syy += (p.y - my) ** 2;
+    sxy += (p.x - mx) * (p.y - my);
+  }
+  sxx /= n;
+  syy /= n;
+  sxy /= n;
+  const mean = (sxx + syy) / 2;
+  const d = Math.sqrt(((sxx - syy) / 2) ** 2 + sxy * sxy);
+  return { major: Math.sqrt(Math.max(0, mean + d)), minor: Math.sqrt(Math.max(0, mean - d)) };
+}
+
+export function runTheoryCheck(input: TheoryCheckInput): TheoryCheckResult {
+  try {
+    return check(input);
+  } catch (error) {
+    // Every expected problem is caught by name below; this is the last guard of "never a crash".
+    const message = error instanceof Error ? error.message : String(error);
+    return emptyResult(input, `The check could not be computed (${message}).`);
+  }
+}
+
+function emptyResult(input: TheoryCheckInput, reason: string, partial: Partial<TheoryCheckResult> = {}): TheoryCheckResult {
+  const tolerance = input?.settings?.tolerance;
+  return {
+    omega: null,
+    omegaSource: input?.omegaCalibrated ? "rate calibration" : "set rate, uncalibrated",
+    calibrationId: input?.omegaCalibrated?.calibrationId ?? null,
+    fPredicted: null,
+    fPredictedStdError: null,
+    fMeasured: null,
+    fStdError: null,
+    drag: null,
+    dragStdError: null,
+    ratio: null,
+    deflection: null,
+    verdict: "inconclusive",
+    reason,
+    circle: null,
+    periodFromAngle: null,
+    predictedRadiusM: null,
+    nPoints: 0,
+    nLeftOut: 0,
+    lengthUnit: input?.setup?.pxPerM === null || input?.setup?.pxPerM === undefined ? "px" : "m",
+    settings: {
+      window: null,
+      polyOrder: DEFAULT_POLY_ORDER,
+      tolerance: isFiniteNumber(tolerance) ? tolerance : DEFAULT_TOLERANCE,
+    },
+    series: { rotating: [], lab: [], accelFit: [], angle: [], residuals: [] },
+    ...partial,
+  };
+}
+
+function check(input: TheoryCheckInput): TheoryCheckResult {
+  const inconclusive = (reason: string, partial: Partial<TheoryCheckResult> = {}) => emptyResult(input, reason, partial);
+
+  // Settings.
+  const tolerance = input.settings?.tolerance ?? DEFAULT_TOLERANCE;
+  if (!isFiniteNumber(tolerance) || tolerance <= 0 || tolerance >= 1) {
+    return inconclusive("The tolerance setting is not a fraction between 0 and 1, so there is nothing to judge against.");
+  }
+
+  // Rate in force.
+  const omegaSet = input.omegaSet;
+  if (!isFiniteNumber(omegaSet)) return inconclusive("The set rate of the table is missing or not a number.");
+  let omega = omegaSet;
+  let omegaSE = 0;
+  let omegaSource: OmegaSource = "set rate, uncalibrated";
+  const cal = input.omegaCalibrated;
+  if (cal) {
+    omegaSource = "rate calibration";
+    if (!isFiniteNumber(cal.value) || !isFiniteNumber(cal.stdError) || cal.stdError < 0) {
+      return inconclusive("The rate calibration in force gives no usable rate (a value or its standard error is missing).");
+    }
+    if (cal.value !== 0 && omegaSet !== 0 && Math.sign(cal.value) !== Math.sign(omegaSet)) {
+      return inconclusive(
+        "The rate calibration in force turns the other way from the set rate: check the direction logged for the run and for the calibration.",
+      );
+    }
+    omega = cal.value;
+    omegaSE = cal.stdError;
+  }
+  if (omega === 0) {
+    return inconclusive("The rate in force is zero: a table at rest gives no Coriolis deflection to check.");
+  }
+  const fPredicted = 2 * omega;
+  const fPredictedStdError = 2 * omegaSE;
+  const rate = { omega, omegaSource, fPredicted, fPredictedStdError, calibrationId: cal?.calibrationId ?? null };
+
+  // View setup.
+  const setup = input.setup;
+  if (!setup || !setup.centre || !isFiniteNumber(setup.centre.x) || !isFiniteNumber(setup.centre.y)) {
+    return inconclusive("The view setup has no usable rotation centre.", rate);
+  }
+  if (setup.pxPerM !== null && (!isFiniteNumber(setup.pxPerM) || setup.pxPerM <= 0)) {
+    return inconclusive("The view setup's scale is not a positive number of pixels per metre.", rate);
+  }
+  if (input.cameraMode !== "rotating" && input.cameraMode !== "lab") {
+    return inconclusive("The camera mode is neither co-rotating nor lab-fixed.", rate);
+  }
+  if (input.t0 !== undefined && !isFiniteNumber(input.t0)) {
+    return inconclusive("The reference time t₀ is not a number.", rate);
+  }
+  const view: ViewGeometry = { centre: setup.centre, pxPerM: setup.pxPerM, mirrored: setup.mirrored === true };
+  const lengthUnit = view.pxPerM === null ? "px" : "m";
+  const pxPerUnit = view.pxPerM ?? 1;
+
+  // Points: keep those with a finite time and position, in time order, one per time.
+  const raw = Array.isArray(input.points) ? input.points : [];
+  const usable = raw
+    .filter((p) => p && isFiniteNumber(p.t) && isFiniteNumber(p.x) && isFiniteNumber(p.y))
+    .map((p) => ({ t: p.t, x: p.x, y: p.y }))
+    .sort((a, b) => a.t - b.t);
+  const points: TimedPoint[] = [];
+  for (const p of usable) if (points.length === 0 || p.t > points[points.length - 1]!.t) points.push(p);
+  const nLeftOut = raw.length - points.length;
+  const counts = { nPoints: points.length, nLeftOut, lengthUnit } as const;
+  if (raw.length === 0) return inconclusive("The track has no points.", { ...rate, ...counts });
+  if (nLeftOut > MAX_LEFT_OUT_FRACTION * raw.length) {
+    return inconclusive(
+      `${nLeftOut} of the track's ${raw.length} points have no usable frame time or position (missing, not a number, or a repeated time): the track cannot be trusted as it is.`,
+      { ...rate, ...counts },
+    );
+  }
+
+  const inertialPeriod = Math.PI / Math.abs(omega);
+  const t0 = input.t0 ?? points[0]?.t ?? 0;
+  const rotating = trackToRotatingFrame(points, view, input.cameraMode, omega, t0);
+  const lab = input.cameraMode === "lab" ? points.map((p) => ({ t: p.t, ...imageToTable(p, view) })) : reRotate(rotating, omega, t0);
+  const series0 = { rotating, lab, accelFit: [], angle: [], residuals: [] };
+  const base = { ...rate, ...counts, series: series0 };
+
+  const minPoints = 2 * minimumWindow(DEFAULT_POLY_ORDER) + 1;
+  if (points.length < minPoints) {
+    return inconclusive(`Only ${points.length} usable points: at least ${minPoints} are needed to smooth and differentiate the track.`, base);
+  }
+  const frameInterval = typicalFrameInterval(points.map((p) => p.t));
+  const framesPerPeriod = inertialPeriod / frameInterval;
+  if (!(framesPerPeriod >= MIN_FRAMES_PER_PERIOD)) {
+    return inconclusive(
+      `The frames are ${fmt(frameInterval)} s apart, only ${fmt(framesPerPeriod, 2)} frames per inertial period of ${fmt(inertialPeriod)} s: at least ${MIN_FRAMES_PER_PERIOD} are needed to follow the turning (film faster or run the table slower).`,
+      base,
+    );
+  }
+  const duration = points[points.length - 1]!.t - points[0]!.t;
+  if (duration < MIN_PERIOD_FRACTION * inertialPeriod) {
+    return inconclusive(
+      `The track lasts ${fmt(duration)} s, ${pct(duration / inertialPeriod, 2)} of an inertial period (${fmt(inertialPeriod)} s): at least ${pct(MIN_PERIOD_FRACTION, 2)} is needed to see the turning.`,
+      base,
+    );
+  }
+
+  let window: number;
+  const asked = input.settings?.window;
+  if (asked !== undefined) {
+    if (!isFiniteNumber(asked) || asked < minimumWindow(DEFAULT_POLY_ORDER)) {
+      return inconclusive(
+        `The window setting must be a number of frames of at least ${minimumWindow(DEFAULT_POLY_ORDER)}.`,
+        base,
+      );
+    }
+    window = oddWindow(asked);
+  } else {
+    window = chooseWindow({ frameInterval, inertialPeriod, nPoints: points.length });
+  }
+  const settings = { window, polyOrder: DEFAULT_POLY_ORDER, tolerance };
+  const withSettings = { ...base, settings };
+  if (points.length < 2 * window + 1) {
+    return inconclusive(
+      `Only ${points.length} usable points for a smoothing window of ${window} frames: at least ${2 * window + 1} are needed.`,
+      withSettings,
+    );
+  }
+
+  const samples = smoothTrack(rotating, { window, polyOrder: DEFAULT_POLY_ORDER, frameInterval });
+  if (samples.length < window + 2) {
+    return inconclusive(
+      `Gaps in the track leave only ${samples.length} places where a full smoothing window fits: the track has too many missing frames.`,
+      withSettings,
+    );
+  }
+
+  // Degenerate geometry: a tracer that barely moves, or moves along a straight line, shows no
+  // turning that could be told from tracking noise.
+  const noise = positionNoise(rotating, samples);
+  const noisePx = noise * pxPerUnit;
+  const imageSpread = principalSpread(points);
+  const rotSpread = principalSpread(rotating);
+  const noiseFloor = 3 * Math.max(noise, 1e-9 * rotSpread.major);
+  if (imageSpread.major <= 3 * Math.max(noisePx, 1e-9) || rotSpread.major <= noiseFloor) {
+    return inconclusive(
+      `The tracer barely moves (spread ${fmt(imageSpread.major)} px against tracking noise of ${fmt(noisePx)} px): there is no motion to check.`,
+      withSettings,
+    );
+  }
+  if (rotSpread.minor <= noiseFloor) {
+    return inconclusive(
+      `All points lie on a straight line in the rotating frame (within the tracking noise of ${fmt(noisePx)} px): there is no turning to measure. A free tracer on a turning table follows a curved path; check that it was free to move and that the track is the tracer's.`,
+      withSettings,
+    );
+  }
+
+  const fit = fitCoriolis(samples, { centrifugal: input.flatTable ? omega * omega : 0, trackingNoise: noise });
+  if (!fit || !isFiniteNumber(fit.f) || !isFiniteNumber(fit.fStdError)) {
+    return inconclusive("The velocities and accelerations of the track fit no Coriolis model (the fit could not be solved).", withSettings);
+  }
+  const fMeasured = fit.f;
+  const fStdError = fit.fStdError;
+
+  // Plots and secondary estimates.
+  const accelFit: AccelerationFitPoint[] = fit.rows.map((r) => ({
+    t: r.t,
+    u: r.u,
+    v: r.v,
+    coriolisX: r.ax + fit.drag * r.u,
+    coriolisY: r.ay + fit.drag * r.v,
+    ax: r.ax,
+    ay: r.ay,
+    axFitted: r.axFitted,
+    ayFitted: r.ayFitted,
+    axPredicted: fPredicted * r.v - fit.drag * r.u,
+    ayPredicted: -fPredicted * r.u - fit.drag * r.v,
+  }));
+  const residuals = fit.rows.map((r) => ({ t: r.t, rx: r.ax - r.axFitted, ry: r.ay - r.ayFitted }));
+  const angleFit = inertialPeriodFromAngle(samples);
+  const turned = angleFit ? Math.abs(angleFit.angles[angleFit.angles.length - 1]!.angle - angleFit.angles[0]!.angle) : 0;
+  let deflection: "right" | "left" | null = null;
+  if (angleFit && turned >= 0.1) deflection = angleFit.rate < 0 ? "right" : "left";
+  const periodFromAngle = angleFit && turned >= 0.1 ? angleFit.period : null;
+
+  const circleFit = fitCircle(rotating);
+  let circle: TheoryCheckCircle | null = null;
+  if (circleFit) {
+    const centreImage = rotatingFrameToImage({ x: circleFit.cx, y: circleFit.cy }, view, input.cameraMode, omega, t0);
+    const about = turningRate(
+      rotating.map((p) => p.t),
+      rotating.map((p) => Math.atan2(p.y - circleFit.cy, p.x - circleFit.cx)),
+    );
+    circle = {
+      cx: centreImage.x,
+      cy: centreImage.y,
+      radiusPx: circleFit.radius * pxPerUnit,
+      radiusM: view.pxPerM === null ? null : circleFit.radius,
+      period: about && isFiniteNumber(about.period) ? about.period : null,
+      rmsResidualPx: circleFit.rmsResidual * pxPerUnit,
+    };
+  }
+  const meanSpeed = samples.reduce((s, p) => s + Math.hypot(p.u, p.v), 0) / samples.length;
+  const predictedRadiusM = view.pxPerM === null ? null : predictedRadius(meanSpeed, fPredicted);
+
+  const series = { rotating, lab, accelFit, angle: angleFit?.angles ?? [], residuals };
+  const measured = {
+    ...withSettings,
+    fMeasured,
+    fStdError,
+    drag: fit.drag,
+    dragStdError: isFiniteNumber(fit.dragStdError) ? fit.dragStdError : null,
+    ratio: fMeasured / fPredicted,
+    deflection,
+    circle,
+    periodFromAngle,
+    predictedRadiusM,
+    series,
+  };
+
+  // The verdict.
+  const combinedSE = Math.sqrt(fStdError ** 2 + fPredictedStdError ** 2);
+  const limit = tolerance * Math.abs(fPredicted);
+  const diff = fMeasured - fPredicted;
+  const rateWords = omegaSource === "rate calibration" ? "the rate calibration in force" : "the set rate (uncalibrated)";
+  const decimals = Math.min(12, Math.max(0, 1 - Math.floor(Math.log10(fStdError))));
+  const predictedText = fPredictedStdError > 0 ? withError(fPredicted, fPredictedStdError) : fPredicted.toFixed(decimals);
+  const numbers = `f measured ${withError(fMeasured, fStdError)} s⁻¹, f predicted ${predictedText} s⁻¹ from ${rateWords}`;
+  const notes: string[] = [];
+  if (nLeftOut > 0) notes.push(`${nLeftOut} point${nLeftOut === 1 ? " was" : "s were"} left out for a missing or repeated frame time or position.`);
+  if (isFiniteNumber(fit.dragStdError) && fit.drag < -2 * fit.dragStdError) {
+    notes.push("The tracer speeds up along its path (negative drag): something other than the Coriolis force may be driving it.");
+  }
+  const withNotes = (text: string) => [text, ...notes].join(" ");
+
+  let verdict: TheoryVerdict;
+  let reason: string;
+  const expectedSense = fPredicted > 0 ? "right" : "left";
+  const measuredSense = fMeasured > 0 ? "right" : "left";
+  if (combinedSE > limit) {
+    verdict = "inconclusive";
+    reason = `${numbers}: the uncertainty (${pct(combinedSE / Math.abs(fPredicted))} of f) is larger than the ${pct(tolerance)} tolerance, so the track cannot confirm or refute the theory. A longer or steadier track helps.`;
+  } else if (measuredSense !== expectedSense) {
+    verdict = "disagrees";
+    reason = `${numbers}: the tracer is deflected to the ${measuredSense} of its motion, but a ${omega > 0 ? "counterclockwise" : "clockwise"} table deflects it to the ${expectedSense}. Check the view setup's mirror setting (a camera under the table or a mirrored image flips the sense) and the direction logged for the run.`;
+  } else if (Math.abs(diff) <= limit || Math.abs(diff) <= 2 * combinedSE) {
+    verdict = "agrees";
+    const within = Math.abs(diff) <= limit ? `within the ${pct(tolerance)} tolerance` : "within twice the combined standard error";
+    reason = `${numbers}: they differ by ${pct(Math.abs(diff) / Math.abs(fPredicted))}, ${within}. The deflection is to the ${measuredSense} of the motion, as expected.`;
+  } else {
+    verdict = "disagrees";
+    reason = `${numbers}: they differ by ${pct(Math.abs(diff) / Math.abs(fPredicted))} (${fmt(Math.abs(diff) / combinedSE, 2)} combined standard errors), beyond the ${pct(tolerance)} tolerance. Check the rate in force${omegaSource === "set rate, uncalibrated" ? " (no rate calibration is in force)" : ""}, the frame times, ${input.cameraMode === "lab" ? "the rotation centre, " : ""}and that the tracer moved freely.`;
+  }
+  return { ...measured, verdict, reason: withNotes(reason) };
+}
+
+export interface OmegaFromMark {
+  /** rad/s, signed (counterclockwise seen from above positive) */
+  omega: number | null;
+  stdError: number | null;
+  /** revolutions the mark made over the track */
+  turns: number;
+  nPoints: number;
+  /** why there is no value, in words; null when there is one */
+  reason: string | null;
+}
+
+/**
+ * Ω measured from the video itself: with a lab-fixed camera, a mark fixed to the table turns
+ * about the rotation centre at Ω. Slope of its unwrapped angle against time. The standard error
+ * assumes independent tracking errors from frame to frame; a misplaced centre adds an error that
+ * averages out over whole turns only, so prefer tracks of one turn or more.
+ */
+export function measureOmegaFromMark(
+  points: readonly { t: number; x: number; y: number }[],
+  centre: { x: number; y: number },
+  options: { mirrored?: boolean } = {},
+): OmegaFromMark {
+  const none = (reason: string, nPoints = 0, turns = 0): OmegaFromMark => ({ omega: null, stdError: null, turns, nPoints, reason });
+  try {
+    if (!centre || !isFiniteNumber(centre.x) || !isFiniteNumber(centre.y)) return none("The rotation centre is missing or not a number.");
+    const view: ViewGeometry = { centre, pxPerM: null, mirrored: options.mirrored === true };
+    const usable = (Array.isArray(points) ? points : [])
+      .filter((p) => p && isFiniteNumber(p.t) && isFiniteNumber(p.x) && isFiniteNumber(p.y))
+      .sort((a, b) => a.t - b.t);
+    const pts: TimedPoint[] = [];
+    for (const p of usable) if (pts.length === 0 || p.t > pts[pts.length - 1]!.t) pts.push({ t: p.t, x: p.x, y: p.y });
+    if (pts.length < 5) return none(`Only ${pts.length} usable points on the mark: at least 5 are needed.`, pts.length);
+    const table = pts.map((p) => imageToTable(p, view));
+    const radii = table.map((p) => Math.hypot(p.x, p.y));
+    const minRadius = Math.min(...radii);
+    if (!(minRadius >= 2)) {
+      return none("The mark passes within 2 px of the rotation centre, where its angle cannot be read.", pts.length);
+    }
+    const angles: number[] = [];
+    let offset = 0;
+    let previous = Number.NaN;
+    for (const p of table) {
+      const a = Math.atan2(p.y, p.x);
+      if (Number.isFinite(previous)) {
+        const d = a - previous;
+        if (d > Math.PI) offset -= 2 * Math.PI;
+        else if (d < -Math.PI) offset += 2 * Math.PI;
+      }
+      previous = a;
+      angles.push(a + offset);
+    }
+    const turns = (angles[angles.length - 1]! - angles[0]!) / (2 * Math.PI);
+    if (Math.abs(turns) < 0.05) {
+      return none(`The mark turns only ${fmt(Math.abs(turns) * 360, 2)}° over the track: too little to measure the rate.`, pts.length, turns);
+    }
+    const fit = linearFit(
+      pts.map((p) => p.t),
+      angles,
+    );
+    return { omega: fit.slope, stdError: fit.slopeSE, turns, nPoints: pts.length, reason: null };
+  } catch (error) {
+    return none(`The rate could not be measured (${error instanceof Error ? error.message : String(error)}).`);
+  }
+}

@@ -1,0 +1,97 @@
+/**
+ * Reading frames from disk with sharp: the header to check the size, then only the plan's crop
+ * and channels, 8 bits each. Every failure names the frame (1-based, as a technician counts).
+ */
+import { readFile } from "node:fs/promises";
+import path from "node:path";
+import sharp, { type Metadata, type OutputInfo } from "sharp";
+import type { DetectionPlan } from "../../lib/tracking/plan";
+import { TrackingError } from "./errors";
+
+export interface FrameSize {
+  width: number;
+  height: number;
+}
+
+function frameName(file: string, index: number): string {
+  return `frame ${index + 1} (${path.basename(file)})`;
+}
+
+function unreadable(file: string, index: number, reason: string, cause?: unknown): TrackingError {
+  return new TrackingError("unreadable-frame", `Unreadable ${frameName(file, index)}: ${reason}.`, {
+    frameIndex: index,
+    cause,
+  });
+}
+
+function reasonOf(error: unknown): string {
+  const message = error instanceof Error ? error.message : String(error);
+  if (/premature end|truncated/i.test(message)) return "the file is cut short (truncated)";
+  if (/unsupported image format|bad seek|not a known file format/i.test(message)) {
+    return "it is not a JPEG, PNG, TIFF or WebP image";
+  }
+  return message.split("\n")[0].replace(/\.$/, "");
+}
+
+async function readBytes(file: string, index: number): Promise<Buffer> {
+  let bytes: Buffer;
+  try {
+    bytes = await readFile(file);
+  } catch (error) {
+    const code = (error as NodeJS.ErrnoException).code;
+    throw unreadable(file, index, code === "ENOENT" ? "the file is missing" : reasonOf(error), error);
+  }
+  if (bytes.length === 0) throw unreadable(file, index, "the file is empty");
+  return bytes;
+}
+
+/** Cut short files fail; the minor warnings some cameras' JPEGs carry do not. */
+const sharpOptions = { failOn: "truncated" } as const;
+
+export async function readFrameSize(file: string, index: number): Promise<FrameSize> {
+  const bytes = await readBytes(file, index);
+  try {
+    const meta = await sharp(bytes, sharpOptions).metadata();
+    if (!meta.width || !meta.height) throw new Error("it has no size");
+    return { width: meta.width, height: meta.height };
+  } catch (error) {
+    throw unreadable(file, index, reasonOf(error), error);
+  }
+}
+
+/** The plan's crop of one frame: green channel for floats, RGB for dye, row-major bytes. */
+export async function decodeFrame(file: string, index: number, plan: DetectionPlan): Promise<Uint8Array> {
+  const bytes = await readBytes(file, index);
+  let meta: Metadata;
+  try {
+    meta = await sharp(bytes, sharpOptions).metadata();
+  } catch (error) {
+    throw unreadable(file, index, reasonOf(error), error);
+  }
+  if (meta.width !== plan.frameWidth || meta.height !== plan.frameHeight) {
+    throw new TrackingError(
+      "frame-size",
+      `The ${frameName(file, index)} is ${meta.width}×${meta.height} px but the stack's first frame is ${plan.frameWidth}×${plan.frameHeight} px; all frames of a stack must be the same size.`,
+      { frameIndex: index },
+    );
+  }
+  const { left, top, width, height } = plan.crop;
+  let pipeline = sharp(bytes, sharpOptions).extract({ left, top, width, height });
+  if (plan.channels === 1) {
+    pipeline = pipeline.extractChannel((meta.channels ?? 3) >= 3 ? 1 : 0);
+  } else {
+    pipeline = pipeline.removeAlpha().toColourspace("srgb");
+  }
+  let data: Buffer;
+  let info: OutputInfo;
+  try {
+    ({ data, info } = await pipeline.raw({ depth: "uchar" }).toBuffer({ resolveWithObject: true }));
+  } catch (error) {
+    throw unreadable(file, index, reasonOf(error), error);
+  }
+  if (info.width !== width || info.height !== height || info.channels !== plan.channels) {
+    throw unreadable(file, index, `it decoded to ${info.width}×${info.height} px with ${info.channels} channels`);
+  }
+  // A copy of our own: it can be handed to a worker thread without touching sharp's memory.
+  return new Uint8Array(data);
+}

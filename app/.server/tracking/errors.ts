@@ -1,0 +1,31 @@
+/**
+ * Why a tracking job stopped, in words a technician can act on. `code` lets the job queue tell
+ * a failure (keep the reason, allow a retry) from a cancellation.
+ */
+export type TrackingErrorCode =
+  | "no-frames"
+  | "bad-input"
+  | "bad-setup"
+  | "unreadable-frame"
+  | "frame-size"
+  | "tracer-not-found"
+  | "no-tracks"
+  | "cancelled";
+
+export class TrackingError extends Error {
+  readonly code: TrackingErrorCode;
+  /** 0-based index of the frame concerned, when there is one. */
+  readonly frameIndex: number | null;
+
+  constructor(code: TrackingErrorCode, message: string, options?: { frameIndex?: number; cause?: unknown }) {
+    super(message, options?.cause === undefined ? undefined : { cause: options.cause });
+    // AbortError is the name fetch and timers use for a cancelled operation; callers test for it.
+    this.name = code === "cancelled" ? "AbortError" : "TrackingError";
+    this.code = code;
+    this.frameIndex = options?.frameIndex ?? null;
+  }
+}
+
+export function isTrackingCancelled(error: unknown): boolean {
+  return error instanceof TrackingError && error.code === "cancelled";
+}

@@ -1,0 +1,305 @@
+/**
+ * The tracking job's computation: decode each frame (sharp, on libuv threads), find the tracer
+ * in a pool of worker threads (one per core), link detections into tracks, measure quality.
+ * Frames stream through a bounded window, so memory does not grow with the stack.
+ */
+import { existsSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import Piscina from "piscina";
+import { backgroundSampleIndices } from "../../lib/tracking/background";
+import { defaultLinking, linkDetections, type LinkingOptions } from "../../lib/tracking/link";
+import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../../lib/tracking/plan";
+import { trackingQuality } from "../../lib/tracking/quality";
+import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup } from "../../lib/tracking/types";
+import { decodeFrame, readFrameSize } from "./decode-frame";
+import { TrackingError } from "./errors";
+import type { TrackTask, TrackTaskResult } from "./track-worker";
+
+export interface TrackFrameStackInput {
+  /** Frame files in stack order. */
+  files: string[];
+  /** Time of each frame, s. */
+  times: number[];
+  setup: TrackingSetup;
+  /** Called as frames finish, at most every 200 ms and once at the end. */
+  onProgress?: (framesDone: number, total: number) => void;
+  /** Called once per newly searched frame, in completion order, so a job can keep what is done. */
+  onFrameDetections?: (frame: FrameDetections) => void;
+  signal?: AbortSignal;
+  /** First frame to search when resuming; frames before it come from `priorDetections`. */
+  startAt?: number;
+  priorDetections?: FrameDetections[];
+  linking?: Partial<LinkingOptions>;
+}
+
+export interface TrackFrameStackResult {
+  frames: number;
+  width: number;
+  height: number;
+  detections: FrameDetections[];
+  tracks: Track[];
+  quality: TrackingQuality;
+  /** The region searched and the block size used, for the record. */
+  search: { crop: DetectionPlan["crop"]; shrink: number };
+}
+
+const threads = Math.max(1, os.availableParallelism());
+/** Frames decoded or being searched at once: enough to keep every worker busy while sharp decodes. */
+const inFlightLimit = threads * 3;
+const progressIntervalMs = 200;
+
+interface TrackingPool {
+  piscina: Piscina<TrackTask, TrackTaskResult>;
+  /** Rejects when a worker dies outside a task (it would not load, or ran out of memory). */
+  failed: Promise<never>;
+}
+
+let pool: TrackingPool | null = null;
+
+/**
+ * The worker runs from its TypeScript source through tsx, so it imports the same library code as
+ * the routes and the command line. A bundled server has no copy beside it: fall back to the
+ * source tree under the working directory.
+ */
+function workerFile(): string {
+  const beside = fileURLToPath(new URL("./track-worker.ts", import.meta.url));
+  if (existsSync(beside)) return beside;
+  const inSource = path.resolve(process.cwd(), "app/.server/tracking/track-worker.ts");
+  if (existsSync(inSource)) return inSource;
+  throw new Error(`The tracking worker was not found at ${beside} or ${inSource}.`);
+}
+
+function tsxLoader(): string {
+  try {
+    return import.meta.resolve("tsx");
+  } catch {
+    return "tsx";
+  }
+}
+
+function trackingPool(): TrackingPool {
+  if (pool) return pool;
+  const piscina = new Piscina<TrackTask, TrackTaskResult>({
+    filename: workerFile(),
+    execArgv: ["--import", tsxLoader()],
+    minThreads: 0,
+    maxThreads: threads,
+    // Idle workers give back their OpenCV heaps after a while; a new job pays ~0.5 s to reload.
+    idleTimeout: 60_000,
+  });
+  let reject: (error: Error) => void = () => {};
+  const failed = new Promise<never>((_, r) => {
+    reject = r;
+  });
+  failed.catch(() => {});
+  // Piscina reports a worker that fails to load only here, and its tasks would wait forever.
+  piscina.on("error", (error: unknown) => {
+    if (pool?.piscina === piscina) pool = null;
+    const reason = error instanceof Error ? error.message : String(error);
+    reject(new Error(`The tracking workers stopped: ${reason}`));
+    piscina.destroy().catch(() => {});
+  });
+  pool = { piscina, failed };
+  return pool;
+}
+
+function runTask(
+  workers: TrackingPool,
+  task: TrackTask,
+  transferList?: ArrayBuffer[],
+): Promise<TrackTaskResult> {
+  return Promise.race([workers.piscina.run(task, { transferList }), workers.failed]);
+}
+
+
+/** Stops the worker threads, so a server or a test can exit. The next job starts a new pool. */
+export async function closeTrackingPool(): Promise<void> {
+  const closing = pool;
+  pool = null;
+  if (closing) await closing.piscina.destroy();
+}
+
+function cancelled(): TrackingError {
+  return new TrackingError("cancelled", "The tracking job was cancelled.");
+}
+
+function validate(input: TrackFrameStackInput): void {
+  const { files, times } = input;
+  if (files.length === 0) throw new TrackingError("no-frames", "The run has no frames to track: upload the frame stack first.");
+  if (times.length !== files.length) {
+    throw new TrackingError("bad-input", `There are ${files.length} frames but ${times.length} frame times.`);
+  }
+  for (let i = 0; i < times.length; i++) {
+    if (!Number.isFinite(times[i]) || (i > 0 && times[i] <= times[i - 1])) {
+      throw new TrackingError("bad-input", `The time of frame ${i + 1} is not after the time of the frame before it.`, {
+        frameIndex: i,
+      });
+    }
+  }
+  const startAt = input.startAt ?? 0;
+  if (!Number.isInteger(startAt) || startAt < 0 || startAt > files.length) {
+    throw new TrackingError("bad-input", `A job cannot resume at frame ${startAt + 1} of ${files.length}.`);
+  }
+}
+
+function makePlan(setup: TrackingSetup, width: number, height: number): DetectionPlan {
+  try {
+    return planDetection(setup, width, height);
+  } catch (error) {
+    if (error instanceof ViewSetupError) throw new TrackingError("bad-setup", error.message, { cause: error });
+    throw error;
+  }
+}
+
+/**
+ * Median of frames sampled over the stack. Samples and result live in shared memory: the
+ * workers split the pixels between them, and every frame's task then reads the same background
+ * without a copy.
+ */
+async function floatBackground(
+  files: string[],
+  plan: DetectionPlan,
+  workers: TrackingPool,
+  signal: AbortSignal | undefined,
+): Promise<Uint8Array> {
+  if (files.length < 3) {
+    throw new TrackingError("bad-input", "Tracking a float needs at least 3 frames: the still background is their median.");
+  }
+  const indices = backgroundSampleIndices(files.length);
+  const length = plan.crop.width * plan.crop.height;
+  const samples = new Uint8Array(new SharedArrayBuffer(indices.length * length));
+  let next = 0;
+  await Promise.all(
+    Array.from({ length: threads * 2 }, async () => {
+      while (next < indices.length) {
+        if (signal?.aborted) throw cancelled();
+        const j = next++;
+        samples.set(await decodeFrame(files[indices[j]], indices[j], plan), j * length);
+      }
+    }),
+  );
+  const out = new Uint8Array(new SharedArrayBuffer(length));
+  const strip = Math.ceil(length / threads);
+  await Promise.all(
+    Array.from({ length: threads }, (_, w) =>
+      runTask(workers, {
+        kind: "background",
+        samples,
+        count: indices.length,
+        out,
+        from: Math.min(length, w * strip),
+        to: Math.min(length, (w + 1) * strip),
+      }),
+    ),
+  );
+  return out;
+}
+
+function defaultStep(plan: DetectionPlan): number {
+  const size = plan.tank ? plan.tank.r : Math.min(plan.frameWidth, plan.frameHeight) / 2;
+  return Math.max(10, 0.1 * size);
+}
+
+export async function trackFrameStack(input: TrackFrameStackInput): Promise<TrackFrameStackResult> {
+  validate(input);
+  const { files, times, setup, signal } = input;
+  const total = files.length;
+  const startAt = input.startAt ?? 0;
+  if (signal?.aborted) throw cancelled();
+
+  const { width, height } = await readFrameSize(files[0], 0);
+  const plan = makePlan(setup, width, height);
+  const key = planKey(plan);
+  const workers = trackingPool();
+  const warmUp = Promise.all(Array.from({ length: threads }, () => runTask(workers, { kind: "warm-up" })));
+  warmUp.catch(() => {});
+  let background: Uint8Array | null;
+  try {
+    background = plan.tracer === "float" ? await floatBackground(files, plan, workers, signal) : null;
+  } finally {
+    await warmUp;
+  }
+
+  const byFrame = new Map<number, FrameDetections>();
+  for (const prior of input.priorDetections ?? []) {
+    if (prior.frameIndex < startAt) byFrame.set(prior.frameIndex, prior);
+  }
+  let done = startAt;
+  let lastProgress = 0;
+  const progress = (force: boolean) => {
+    const now = Date.now();
+    if (input.onProgress && (force || now - lastProgress >= progressIntervalMs)) {
+      lastProgress = now;
+      input.onProgress(done, total);
+    }
+  };
+
+  let failure: unknown = null;
+  const searchFrame = async (index: number): Promise<void> => {
+    const image = await decodeFrame(files[index], index, plan);
+    if (failure || signal?.aborted) return;
+    let detections: Detection[];
+    try {
+      detections = (await runTask(workers, { kind: "detect", plan, planKey: key, image, background }, [
+        image.buffer as ArrayBuffer,
+      ])) as Detection[];
+    } catch (error) {
+      const reason = error instanceof Error ? error.message : String(error);
+      throw new TrackingError("unreadable-frame", `Frame ${index + 1} could not be searched: ${reason}`, {
+        frameIndex: index,
+        cause: error,
+      });
+    }
+    const frame: FrameDetections = { frameIndex: index, t: times[index], detections };
+    byFrame.set(index, frame);
+    done++;
+    input.onFrameDetections?.(frame);
+    progress(false);
+  };
+
+  const inFlight = new Set<Promise<void>>();
+  for (let index = startAt; index < total && !failure && !signal?.aborted; index++) {
+    const task: Promise<void> = searchFrame(index)
+      .catch((error: unknown) => {
+        failure ??= error;
+      })
+      .finally(() => inFlight.delete(task));
+    inFlight.add(task);
+    while (inFlight.size >= inFlightLimit) await Promise.race(inFlight);
+  }
+  await Promise.all(inFlight);
+  if (failure) throw failure;
+  if (signal?.aborted) throw cancelled();
+  progress(true);
+
+  const detections: FrameDetections[] = [];
+  for (let i = 0; i < total; i++) {
+    detections.push(byFrame.get(i) ?? { frameIndex: i, t: times[i], detections: [] });
+  }
+  if (!detections.some((f) => f.detections.length > 0)) {
+    throw new TrackingError(
+      "tracer-not-found",
+      `The tracer was not found in any frame — check the tracer kind (${setup.tracer}) and the tank edge.`,
+    );
+  }
+  const linking: LinkingOptions = { maxStepPx: defaultStep(plan), ...defaultLinking, ...input.linking };
+  const { tracks, shortTracksDropped } = linkDetections(detections, linking);
+  if (tracks.length === 0) {
+    const seen = detections.filter((f) => f.detections.length > 0).length;
+    throw new TrackingError(
+      "no-tracks",
+      `The tracer was found in ${seen} of ${total} frames, but never in ${linking.minTrackPoints} frames close enough together to make a track — check the frame times and that the tracer stays in view.`,
+    );
+  }
+  return {
+    frames: total,
+    width,
+    height,
+    detections,
+    tracks,
+    quality: trackingQuality(total, detections, tracks, shortTracksDropped),
+    search: { crop: plan.crop, shrink: plan.shrink },
+  };
+}

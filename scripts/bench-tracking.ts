@@ -1,0 +1,153 @@
+/**
+ * Tracking speed and memory on a 600-frame 1280×720 JPEG stack with a float on an inertial
+ * circle. The stack is rendered once into node_modules/.cache (a separate process, so its memory
+ * does not count) and reused. Prints details on stderr and, as the last line of stdout, one JSON
+ * object: frames, width, height, framesPerSecond, decodeOnlyFramesPerSecond, peakRssMB.
+ */
+import { spawnSync } from "node:child_process";
+import { existsSync } from "node:fs";
+import { mkdir, readdir, rm, writeFile } from "node:fs/promises";
+import os from "node:os";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import { decodeFrame } from "../app/.server/tracking/decode-frame";
+import { closeTrackingPool, trackFrameStack } from "../app/.server/tracking/track-frame-stack";
+import { planDetection } from "../app/lib/tracking/plan";
+import type { SyntheticRunSpec } from "../app/lib/tracking/synthetic";
+import type { Track, TrackingSetup } from "../app/lib/tracking/types";
+import { writeSyntheticStack } from "../tests/fixtures/tracking/write-stack";
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
+const omega = (2 * Math.PI * 10) / 60;
+const spec: SyntheticRunSpec = {
+  width: 1280,
+  height: 720,
+  frames: 600,
+  fps: 30,
+  seed: 2024,
+  camera: "rotating",
+  omega,
+  centre: { x: 640, y: 360 },
+  pxPerM: 1000,
+  tankRadiusPx: 340,
+  noiseSigma: 3,
+  illuminationGradient: 0.25,
+  glare: { x: 820, y: 230, radiusPx: 12, strength: 150 },
+  tracers: [
+    {
+      kind: "float",
+      path: { kind: "inertial-circle", centre: { x: -0.05, y: 0.03 }, radius: 0.12, phase: 0.5, drag: 0.02 },
+      sigmaPx: 3.5,
+      brightness: 120,
+    },
+  ],
+};
+const setup: TrackingSetup = {
+  tracer: "float",
+  centre: spec.centre,
+  tankEdge: { cx: 640, cy: 360, r: 335 },
+  mirrored: false,
+};
+const cacheDir = path.join(root, "node_modules/.cache/tankside-bench/float-600-1280x720-v1");
+const doneMarker = path.join(cacheDir, "complete.json");
+
+function log(message: string): void {
+  process.stderr.write(`${message}\n`);
+}
+
+async function render(): Promise<void> {
+  await rm(cacheDir, { recursive: true, force: true });
+  await mkdir(cacheDir, { recursive: true });
+  await writeSyntheticStack(cacheDir, spec, { format: "jpeg", quality: 90 });
+  await writeFile(doneMarker, JSON.stringify({ frames: spec.frames }));
+}
+
+async function frameFiles(): Promise<string[]> {
+  if (!existsSync(doneMarker)) {
+    log(`rendering ${spec.frames} frames into ${path.relative(root, cacheDir)} (once) …`);
+    const started = performance.now();
+    const child = spawnSync(process.execPath, [...process.execArgv, fileURLToPath(import.meta.url), "--render"], {
+      stdio: ["ignore", "inherit", "inherit"],
+    });
+    if (child.status !== 0) throw new Error("Rendering the benchmark stack failed.");
+    log(`rendered in ${((performance.now() - started) / 1000).toFixed(1)} s`);
+  }
+  const names = (await readdir(cacheDir)).filter((n) => n.endsWith(".jpg")).sort();
+  return names.map((n) => path.join(cacheDir, n));
+}
+
+/** Samples the process's resident memory, which includes every worker thread. */
+function rssSampler(): { stop(): number } {
+  let peak = process.memoryUsage.rss();
+  const timer = setInterval(() => {
+    peak = Math.max(peak, process.memoryUsage.rss());
+  }, 10);
+  return {
+    stop() {
+      clearInterval(timer);
+      return Math.max(peak, process.memoryUsage.rss());
+    },
+  };
+}
+
+async function decodeOnly(files: string[]): Promise<number> {
+  const plan = planDetection(setup, spec.width, spec.height);
+  const window = os.availableParallelism() * 3;
+  const started = performance.now();
+  let next = 0;
+  await Promise.all(
+    Array.from({ length: window }, async () => {
+      while (next < files.length) {
+        const i = next++;
+        await decodeFrame(files[i], i, plan);
+      }
+    }),
+  );
+  return files.length / ((performance.now() - started) / 1000);
+}
+
+async function main(): Promise<void> {
+  if (process.argv.includes("--render")) {
+    await render();
+    return;
+  }
+  const files = await frameFiles();
+  const times = files.map((_, i) => i / spec.fps);
+  const sampler = rssSampler();
+
+  const decodeFps = await decodeOnly(files);
+  log(`decode only: ${decodeFps.toFixed(1)} frames/s`);
+
+  const started = performance.now();
+  const result = await trackFrameStack({ files, times, setup });
+  const seconds = (performance.now() - started) / 1000;
+  const fps = files.length / seconds;
+  await closeTrackingPool();
+  const sampledPeak = sampler.stop();
+  // The kernel's high-water mark for the whole process, threads included; no render happened here.
+  const kernelPeak = process.resourceUsage().maxRSS * 1024;
+  const peakRssMB = Math.max(sampledPeak, kernelPeak) / (1024 * 1024);
+
+  const longest = result.tracks.reduce((a: Track, b: Track) => (b.points.length > a.points.length ? b : a));
+  log(
+    `tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${os.availableParallelism()} workers, block ${result.search.shrink} px), ` +
+      `${result.tracks.length} track(s), longest ${longest.points.length} points, ` +
+      `frames detected ${(result.quality.framesDetectedShare * 100).toFixed(1)} %, jitter ${result.quality.jitterPx?.toFixed(3)} px`,
+  );
+  process.stdout.write(
+    `${JSON.stringify({
+      frames: result.frames,
+      width: result.width,
+      height: result.height,
+      framesPerSecond: Number(fps.toFixed(1)),
+      decodeOnlyFramesPerSecond: Number(decodeFps.toFixed(1)),
+      peakRssMB: Number(peakRssMB.toFixed(1)),
+    })}\n`,
+  );
+}
+
+main().catch(async (error: unknown) => {
+  log(error instanceof Error ? (error.stack ?? error.message) : String(error));
+  await closeTrackingPool();
+  process.exit(1);
+});

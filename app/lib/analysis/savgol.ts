@@ -51,8 +51,9 @@ export function savitzkyGolayCoefficients(window: number, polyOrder: number, der
   });
 }
 
-/** Default polynomial order: with order 4 both the velocity (cubic-exact) and the acceleration
- * (quintic-exact) keep their gain on a circle, so f = a/v stays unbiased (see chooseWindow). */
+/** Default polynomial order: at order 4 the velocity filter is exact for quartics and the
+ * acceleration filter for quintics, so both keep their gain on a circle and f = a/v stays nearly
+ * unbiased; orders 2 and 3 mix filters of unequal accuracy and bias f by per cents. */
 export const DEFAULT_POLY_ORDER = 4;
 
 /** Window as a fraction of the expected inertial period: long enough to beat noise, short enough

@@ -1,0 +1,167 @@
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import ICAL from "ical.js";
+import { Booking, CapturedMail, Equipment, User, migrate, sequelize } from "./db";
+import {
+  BookingError,
+  approveBooking,
+  bookingIcs,
+  cancelBooking,
+  createBooking,
+  createCalendarFeed,
+  declineBooking,
+  feedOwner,
+  listBookings,
+  personalFeedIcs,
+  serializeBooking,
+} from "./bookings";
+import { stopFakeSmtp } from "./mail/fake-smtp";
+import { env } from "./env";
+import { ekmanSpinUpTimeS } from "~/lib/bookings";
+import { formatDateTime } from "~/lib/format";
+
+let table: Equipment;
+let broken: Equipment;
+let instructor: User;
+let manager: User;
+let manager2: User;
+const asManager = () => ({ id: manager.id, role: "lab_manager" as const, name: manager.name });
+const asInstructor = () => ({ id: instructor.id, role: "instructor" as const, name: instructor.name });
+const hoursFromNow = (h: number) => new Date(Math.round((Date.now() + h * 3_600_000) / 60_000) * 60_000);
+
+beforeAll(async () => {
+  await migrate();
+  const base = { maker: null, model: null, serialNumber: null, location: null, notes: null, diameterM: 0.6, maxRateRpm: 30, flatTable: false, rateTolerancePct: 1, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
+  table = await Equipment.create({ ...base, kind: "table", name: "Booking table" });
+  broken = await Equipment.create({ ...base, kind: "table", name: "Broken table", status: "out_of_service" });
+  instructor = await User.create({ email: "i@tankside.example", name: "Ida Instructor", role: "instructor", passwordHash: null, passwordChangedAt: null });
+  manager = await User.create({ email: "m@tankside.example", name: "Mo Manager", role: "lab_manager", passwordHash: null, passwordChangedAt: null });
+  manager2 = await User.create({ email: "m2@tankside.example", name: "Mia Manager", role: "lab_manager", passwordHash: null, passwordChangedAt: null });
+});
+
+afterAll(async () => {
+  await stopFakeSmtp();
+  await sequelize.close();
+});
+
+const request = (startH: number, endH: number, over: Partial<Parameters<typeof createBooking>[0]> = {}) =>
+  createBooking({ equipmentId: table.id, start: hoursFromNow(startH), end: hoursFromNow(endH), purpose: "Inertial oscillation demo", ...over }, asInstructor());
+
+describe("requesting", () => {
+  it("creates a requested booking and mails every active lab manager a link to it", async () => {
+    const { booking, mail } = await request(24, 26);
+    expect(booking.state).toBe("requested");
+    expect(mail.ok).toBe(true);
+    const got = await CapturedMail.findOne({ where: { subject: `Booking requested: Booking table, ${formatDateTime(booking.startAt)} – ${formatDateTime(booking.endAt)}` } });
+    expect(got!.envelopeTo.split(", ").sort()).toEqual([manager2.email, manager.email].sort());
+    expect(got!.textBody).toContain(`${env.appUrl}/bookings/${booking.id}`);
+  });
+
+  it("refuses end before start, a slot in the past, unknown and out-of-service equipment; nothing is saved", async () => {
+    const before = await Booking.count();
+    await expect(request(5, 4)).rejects.toMatchObject({ status: 422, code: "invalid_slot" });
+    await expect(request(-3, -1)).rejects.toMatchObject({ status: 422, code: "slot_in_past" });
+    await expect(request(5, 6, { equipmentId: 99999 })).rejects.toMatchObject({ status: 404 });
+    await expect(request(5, 6, { equipmentId: broken.id })).rejects.toMatchObject({ status: 422, code: "equipment_unavailable" });
+    expect(await Booking.count()).toBe(before);
+  });
+
+  it("moves the start earlier by the lab's spin-up times × τ = H/√(νΩ) when asked", async () => {
+    const start = hoursFromNow(30);
+    const { booking } = await createBooking({ equipmentId: table.id, start, end: hoursFromNow(32), purpose: "Spin-up first", plannedRateRpm: 10, plannedDepthM: 0.1, addSpinUpLead: true }, asInstructor());
+    // τ at 10 cm and 10 rpm with ν = 1e-6 m²/s: 0.1/√(1e-6·1.0472) ≈ 97.7 s; five of them ≈ 8.1 min.
+    const tau = 0.1 / Math.sqrt(1e-6 * ((10 * 2 * Math.PI) / 60));
+    expect(ekmanSpinUpTimeS(0.1, 10)).toBeCloseTo(tau, 9);
+    expect(booking.spinUpLeadS).toBeCloseTo(5 * tau, 6);
+    const movedBy = (start.getTime() - booking.startAt.getTime()) / 1000;
+    expect(movedBy).toBeGreaterThanOrEqual(5 * tau);
+    expect(movedBy).toBeLessThan(5 * tau + 60);
+  });
+});
+
+describe("deciding", () => {
+  it("two concurrent approvals of overlapping bookings: exactly one wins, the other gets booking_conflict", async () => {
+    const a = (await request(48, 50)).booking;
+    const b = (await request(49, 51)).booking;
+    const results = await Promise.allSettled([approveBooking(a.id, asManager()), approveBooking(b.id, { id: manager2.id, role: "lab_manager", name: manager2.name })]);
+    const won = results.filter((r) => r.status === "fulfilled");
+    const lost = results.filter((r): r is PromiseRejectedResult => r.status === "rejected");
+    expect(won).toHaveLength(1);
+    expect(lost).toHaveLength(1);
+    expect(lost[0]!.reason).toBeInstanceOf(BookingError);
+    expect(lost[0]!.reason).toMatchObject({ status: 409, code: "booking_conflict" });
+    const states = (await Booking.findAll({ where: { id: [a.id, b.id] } })).map((x) => x.state).sort();
+    expect(states).toEqual(["approved", "requested"]);
+  });
+
+  it("only a lab manager decides; a decline needs a reason; each decision mails the requester", async () => {
+    const { booking } = await request(72, 73);
+    await expect(approveBooking(booking.id, { id: instructor.id, role: "instructor", name: instructor.name })).rejects.toMatchObject({ status: 403 });
+    await expect(declineBooking(booking.id, asManager(), "")).rejects.toMatchObject({ status: 422 });
+    const { mail } = await declineBooking(booking.id, asManager(), "The table is being levelled that day.");
+    expect(mail.ok).toBe(true);
+    const last = await CapturedMail.findOne({ order: [["id", "DESC"]] });
+    expect(last!.subject).toMatch(/^Booking declined: Booking table/);
+    expect(last!.envelopeTo).toBe(instructor.email);
+    expect(last!.textBody).toContain("The table is being levelled that day.");
+    expect(last!.textBody).toContain(`/bookings/${booking.id}`);
+    await expect(approveBooking(booking.id, asManager())).rejects.toMatchObject({ status: 409, code: "invalid_state" });
+  });
+
+  it("cannot approve a booking of an item that went out of service", async () => {
+    const spare = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Spare table" } as never);
+    const { booking } = await createBooking({ equipmentId: spare.id, start: hoursFromNow(80), end: hoursFromNow(81), purpose: "Later failure" }, asInstructor());
+    await spare.update({ status: "out_of_service" });
+    await expect(approveBooking(booking.id, asManager())).rejects.toMatchObject({ status: 422, code: "equipment_unavailable" });
+    expect((await Booking.findByPk(booking.id))!.state).toBe("requested");
+  });
+
+  it("the requester or a lab manager cancels; someone else cannot", async () => {
+    const { booking } = await request(90, 91);
+    const other = await User.create({ email: "o@tankside.example", name: "Other Tech", role: "technician", passwordHash: null, passwordChangedAt: null });
+    await expect(cancelBooking(booking.id, { id: other.id, role: "technician", name: other.name })).rejects.toMatchObject({ status: 403 });
+    await approveBooking(booking.id, asManager());
+    const { booking: cancelled, mail } = await cancelBooking(booking.id, asInstructor());
+    expect(cancelled.state).toBe("cancelled");
+    expect(mail.ok).toBe(true);
+    const last = await CapturedMail.findOne({ order: [["id", "DESC"]] });
+    expect(last!.subject).toMatch(/^Booking cancelled/);
+    expect(last!.envelopeTo.split(", ").sort()).toEqual([instructor.email, manager.email, manager2.email].sort());
+    await expect(cancelBooking(booking.id, asManager())).rejects.toMatchObject({ status: 409 });
+    expect((await listBookings({ state: "cancelled", equipmentId: table.id })).map((b) => b.id)).toContain(booking.id);
+  });
+});
+
+describe("iCalendar (RFC 5545), parsed with ical.js", () => {
+  it("one booking: DTSTART/DTEND in UTC at the booked times, with its status", async () => {
+    const { booking } = await request(100, 102.5);
+    await approveBooking(booking.id, asManager());
+    const text = bookingIcs(await serializeBooking((await Booking.findByPk(booking.id))!));
+    const cal = new ICAL.Component(ICAL.parse(text));
+    expect(cal.name).toBe("vcalendar");
+    expect(cal.getFirstPropertyValue("version")).toBe("2.0");
+    const vevent = cal.getFirstSubcomponent("vevent")!;
+    const event = new ICAL.Event(vevent);
+    expect(event.startDate.zone?.tzid).toBe("UTC");
+    expect(event.endDate.zone?.tzid).toBe("UTC");
+    expect(event.startDate.toJSDate().getTime()).toBe(booking.startAt.getTime());
+    expect(event.endDate.toJSDate().getTime()).toBe(booking.endAt.getTime());
+    expect(vevent.getFirstPropertyValue("status")).toBe("CONFIRMED");
+    expect(event.uid).toBe(`booking-${booking.id}@${new URL(env.appUrl).hostname}`);
+    expect(text).toMatch(/DTSTART:\d{8}T\d{6}Z/);
+  });
+
+  it("a personal feed holds only the person's approved bookings and opens with a secret token", async () => {
+    const token = await createCalendarFeed(instructor.id);
+    expect((await feedOwner(token))!.id).toBe(instructor.id);
+    expect(await feedOwner(token.slice(0, -2) + "xx")).toBeNull();
+    const text = await personalFeedIcs(instructor.id);
+    const events = new ICAL.Component(ICAL.parse(text)).getAllSubcomponents("vevent").map((v) => new ICAL.Event(v));
+    const approved = await listBookings({ requesterId: instructor.id, state: "approved" });
+    expect(approved.length).toBeGreaterThan(0);
+    expect(events.map((e) => e.uid).sort()).toEqual(approved.map((b) => `booking-${b.id}@${new URL(env.appUrl).hostname}`).sort());
+    // A new address replaces the old one.
+    const again = await createCalendarFeed(instructor.id);
+    expect(await feedOwner(token)).toBeNull();
+    expect((await feedOwner(again))!.id).toBe(instructor.id);
+  });
+});

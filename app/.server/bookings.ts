@@ -1,0 +1,379 @@
+import { Op, Transaction, type WhereOptions } from "sequelize";
+import { createEvent, createEvents, type EventAttributes } from "ics";
+import { Booking, CalendarFeed, Equipment, User, sequelize } from "./db";
+import { env } from "./env";
+import { sendMail, type MailOutcome } from "./mail/send";
+import { getLabSettings } from "./settings";
+import { hashToken, newSecretToken } from "./auth/tokens";
+import type { CurrentUser } from "./auth/permissions";
+import { bookingStateLabels, MAX_BOOKING_DAYS, spinUpLeadS, tableBookingCaution, type BookingState } from "~/lib/bookings";
+import { formatDateTime } from "~/lib/format";
+
+/** A refusal with the HTTP status and API code that say why. */
+export class BookingError extends Error {
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+    readonly field?: string,
+  ) {
+    super(message);
+  }
+}
+
+export interface BookingRequest {
+  equipmentId: number;
+  start: Date;
+  end: Date;
+  purpose: string;
+  plannedRateRpm?: number;
+  plannedDepthM?: number;
+  /** Move the start earlier by the spin-up lead time (needs the planned rate and depth). */
+  addSpinUpLead?: boolean;
+}
+
+/** A request a minute old may still start "now"; anything earlier is a slot in the past. */
+const PAST_GRACE_MS = 60_000;
+
+async function labManagerEmails() {
+  const managers = await User.findAll({ where: { role: "lab_manager", active: true }, order: [["id", "ASC"]] });
+  return managers.map((m) => m.email);
+}
+
+function link(booking: Booking) {
+  return `${env.appUrl}/bookings/${booking.id}`;
+}
+
+function slotText(b: Booking) {
+  return `${formatDateTime(b.startAt)} – ${formatDateTime(b.endAt)}`;
+}
+
+/** Any approved booking of the same item that overlaps [start, end), read inside the caller's transaction. */
+function approvedOverlap(equipmentId: number, start: Date, end: Date, t: Transaction, exceptId?: number) {
+  return Booking.findOne({
+    where: {
+      equipmentId,
+      state: "approved",
+      startAt: { [Op.lt]: end },
+      endAt: { [Op.gt]: start },
+      ...(exceptId ? { id: { [Op.ne]: exceptId } } : {}),
+    },
+    transaction: t,
+  });
+}
+
+function conflictError(other: Booking) {
+  return new BookingError(409, "booking_conflict", `It overlaps booking #${other.id} (approved, ${slotText(other)}). Two approved bookings never share an item.`);
+}
+
+async function loadItemForBooking(equipmentId: number, t: Transaction) {
+  const item = await Equipment.findByPk(equipmentId, { transaction: t });
+  if (!item) throw new BookingError(404, "not_found", "That piece of equipment does not exist.", "equipmentId");
+  if (item.status !== "in_service") {
+    throw new BookingError(422, "equipment_unavailable", `${item.name} is ${item.status === "retired" ? "retired" : "out of service"} and cannot be booked.`, "equipmentId");
+  }
+  return item;
+}
+
+/** Requests a slot. Checks and the insert share one write-locked transaction. */
+export async function createBooking(input: BookingRequest, requester: Pick<CurrentUser, "id" | "name">) {
+  if (!(input.start instanceof Date) || Number.isNaN(input.start.getTime()) || Number.isNaN(input.end.getTime())) {
+    throw new BookingError(400, "invalid_time", "Start and end must be real times.", "start");
+  }
+  let start = input.start;
+  const end = input.end;
+  if (end.getTime() <= start.getTime()) throw new BookingError(422, "invalid_slot", "The end must be after the start.", "end");
+  let lead: number | null = null;
+  if (input.addSpinUpLead) {
+    if (!input.plannedRateRpm || !input.plannedDepthM) {
+      throw new BookingError(422, "invalid_slot", "Give the planned rate and depth to add the spin-up lead time.", "addSpinUpLead");
+    }
+    const settings = await getLabSettings();
+    lead = spinUpLeadS(input.plannedDepthM, input.plannedRateRpm, settings.spinUpTimesToWait);
+    // Whole minutes, earlier: a start time people can read off a clock.
+    start = new Date(Math.floor((start.getTime() - lead * 1000) / 60_000) * 60_000);
+  }
+  if (start.getTime() < Date.now() - PAST_GRACE_MS) {
+    throw new BookingError(422, "slot_in_past", lead ? "With the spin-up lead time the slot would start in the past." : "That slot is in the past.", "start");
+  }
+  if (end.getTime() - start.getTime() > MAX_BOOKING_DAYS * 86_400_000) {
+    throw new BookingError(422, "invalid_slot", `A booking can be at most ${MAX_BOOKING_DAYS} days long.`, "end");
+  }
+  const { booking, item } = await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+    const item = await loadItemForBooking(input.equipmentId, t);
+    const other = await approvedOverlap(item.id, start, end, t);
+    if (other) throw conflictError(other);
+    const booking = await Booking.create(
+      {
+        equipmentId: item.id,
+        requesterId: requester.id,
+        state: "requested",
+        startAt: start,
+        endAt: end,
+        purpose: input.purpose.trim(),
+        plannedRateRpm: input.plannedRateRpm ?? null,
+        plannedDepthM: input.plannedDepthM ?? null,
+        spinUpLeadS: lead,
+        decidedById: null,
+        decidedAt: null,
+        declineReason: null,
+        cancelledById: null,
+        cancelledAt: null,
+      },
+      { transaction: t },
+    );
+    return { booking, item };
+  });
+  const mail = await sendMail({
+    to: await labManagerEmails(),
+    subject: `Booking requested: ${item.name}, ${slotText(booking)}`,
+    text: [
+      `${requester.name} asks for ${item.name}, ${slotText(booking)}.`,
+      `Purpose: ${booking.purpose}`,
+      ...(lead ? [`The start includes ${Math.round(lead / 60)} min of spin-up lead time.`] : []),
+      "",
+      `Approve or decline it: ${link(booking)}`,
+    ].join("\n"),
+  });
+  return { booking, mail };
+}
+
+type Decision = "approve" | "decline";
+
+async function decide(id: number, manager: Pick<CurrentUser, "id" | "role" | "name">, decision: Decision, reason?: string) {
+  if (manager.role !== "lab_manager") throw new BookingError(403, "forbidden", "Only a lab manager approves or declines bookings.");
+  // IMMEDIATE takes SQLite's write lock at BEGIN: a second approval waits here and then sees the first one's result.
+  const { booking, item } = await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+    const booking = await Booking.findByPk(id, { transaction: t });
+    if (!booking) throw new BookingError(404, "not_found", "That booking does not exist.");
+    if (booking.state !== "requested") {
+      throw new BookingError(409, "invalid_state", `That booking is ${bookingStateLabels[booking.state].toLowerCase()} already; only a requested booking can be ${decision === "approve" ? "approved" : "declined"}.`);
+    }
+    const item = await Equipment.findByPk(booking.equipmentId, { transaction: t });
+    if (decision === "approve") {
+      if (!item || item.status !== "in_service") {
+        throw new BookingError(422, "equipment_unavailable", `${item?.name ?? "That item"} is not in service, so the booking cannot be approved.`);
+      }
+      if (booking.endAt.getTime() <= Date.now()) throw new BookingError(422, "slot_in_past", "That slot is over; there is nothing left to approve.");
+      const other = await approvedOverlap(booking.equipmentId, booking.startAt, booking.endAt, t, booking.id);
+      if (other) throw conflictError(other);
+    }
+    await booking.update(
+      { state: decision === "approve" ? "approved" : "declined", decidedById: manager.id, decidedAt: new Date(), declineReason: decision === "decline" ? reason!.trim() : null },
+      { transaction: t },
+    );
+    return { booking, item };
+  });
+  const requester = await User.findByPk(booking.requesterId);
+  const name = item?.name ?? `item #${booking.equipmentId}`;
+  const mail = await sendMail({
+    to: requester ? [requester.email] : [],
+    subject: decision === "approve" ? `Booking approved: ${name}, ${slotText(booking)}` : `Booking declined: ${name}, ${slotText(booking)}`,
+    text: [
+      decision === "approve"
+        ? `${manager.name} approved your booking of ${name}, ${slotText(booking)}.`
+        : `${manager.name} declined your booking of ${name}, ${slotText(booking)}.\nReason: ${booking.declineReason}`,
+      `Purpose: ${booking.purpose}`,
+      ...(decision === "approve" && item?.kind === "table" ? ["", tableBookingCaution] : []),
+      "",
+      `The booking: ${link(booking)}`,
+      ...(decision === "approve" ? [`Add it to your calendar: ${env.appUrl}/api/v1/bookings/${booking.id}/ics`] : []),
+    ].join("\n"),
+  });
+  return { booking, mail };
+}
+
+export async function approveBooking(id: number, manager: Pick<CurrentUser, "id" | "role" | "name">) {
+  return decide(id, manager, "approve");
+}
+
+export async function declineBooking(id: number, manager: Pick<CurrentUser, "id" | "role" | "name">, reason: string) {
+  if (!reason || reason.trim().length < 3) throw new BookingError(422, "reason_required", "Give a reason for declining (a few words).", "reason");
+  return decide(id, manager, "decline", reason);
+}
+
+/** The requester or a lab manager cancels a requested or approved booking whose slot is not over. */
+export async function cancelBooking(id: number, user: Pick<CurrentUser, "id" | "role" | "name">) {
+  const { booking, wasApproved } = await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+    const booking = await Booking.findByPk(id, { transaction: t });
+    if (!booking) throw new BookingError(404, "not_found", "That booking does not exist.");
+    if (booking.requesterId !== user.id && user.role !== "lab_manager") {
+      throw new BookingError(403, "forbidden", "Only the person who asked for it or a lab manager can cancel a booking.");
+    }
+    if (booking.state !== "requested" && booking.state !== "approved") {
+      throw new BookingError(409, "invalid_state", `That booking is ${bookingStateLabels[booking.state].toLowerCase()}; there is nothing to cancel.`);
+    }
+    if (booking.endAt.getTime() <= Date.now()) throw new BookingError(422, "slot_in_past", "That slot is over; there is nothing to cancel.");
+    const wasApproved = booking.state === "approved";
+    await booking.update({ state: "cancelled", cancelledById: user.id, cancelledAt: new Date() }, { transaction: t });
+    return { booking, wasApproved };
+  });
+  const [requester, item] = await Promise.all([User.findByPk(booking.requesterId), Equipment.findByPk(booking.equipmentId)]);
+  const name = item?.name ?? `item #${booking.equipmentId}`;
+  const byRequester = booking.requesterId === user.id;
+  // The requester always hears; the lab managers too when someone frees a slot they had approved or still had to decide.
+  const to = new Set<string>(requester ? [requester.email] : []);
+  if (byRequester) for (const e of await labManagerEmails()) to.add(e);
+  const mail = await sendMail({
+    to: [...to],
+    subject: `Booking cancelled: ${name}, ${slotText(booking)}`,
+    text: [
+      `${byRequester ? `${user.name} cancelled their` : `${user.name} (lab manager) cancelled your`} ${wasApproved ? "approved" : "requested"} booking of ${name}, ${slotText(booking)}.`,
+      `Purpose: ${booking.purpose}`,
+      "",
+      `The booking: ${link(booking)}`,
+    ].join("\n"),
+  });
+  return { booking, mail };
+}
+
+export function getBooking(id: number) {
+  return Number.isInteger(id) && id > 0 ? Booking.findByPk(id) : Promise.resolve(null);
+}
+
+export interface BookingFilter {
+  equipmentId?: number;
+  state?: BookingState;
+  from?: Date;
+  to?: Date;
+  requesterId?: number;
+  limit?: number;
+}
+
+/** Bookings that touch [from, to) (either bound optional), soonest first. */
+export function listBookings(filter: BookingFilter = {}) {
+  const where: WhereOptions<Booking> = {
+    ...(filter.equipmentId ? { equipmentId: filter.equipmentId } : {}),
+    ...(filter.state ? { state: filter.state } : {}),
+    ...(filter.requesterId ? { requesterId: filter.requesterId } : {}),
+    ...(filter.from ? { endAt: { [Op.gt]: filter.from } } : {}),
+    ...(filter.to ? { startAt: { [Op.lt]: filter.to } } : {}),
+  };
+  return Booking.findAll({ where, order: [["startAt", "ASC"], ["id", "ASC"]], limit: filter.limit ?? 500 });
+}
+
+export async function serializeBookings(rows: Booking[]) {
+  const userIds = [...new Set(rows.flatMap((b) => [b.requesterId, b.decidedById, b.cancelledById]).filter((v): v is number => v !== null))];
+  const itemIds = [...new Set(rows.map((b) => b.equipmentId))];
+  const [users, items] = await Promise.all([
+    userIds.length ? User.findAll({ where: { id: { [Op.in]: userIds } } }) : [],
+    itemIds.length ? Equipment.findAll({ where: { id: { [Op.in]: itemIds } } }) : [],
+  ]);
+  const userName = new Map(users.map((u) => [u.id, u.name]));
+  const itemById = new Map(items.map((i) => [i.id, i]));
+  return rows.map((b) => ({
+    id: b.id,
+    equipmentId: b.equipmentId,
+    equipmentName: itemById.get(b.equipmentId)?.name ?? `#${b.equipmentId}`,
+    equipmentKind: itemById.get(b.equipmentId)?.kind ?? null,
+    state: b.state,
+    start: b.startAt.toISOString(),
+    end: b.endAt.toISOString(),
+    purpose: b.purpose,
+    plannedRateRpm: b.plannedRateRpm,
+    plannedDepthCm: b.plannedDepthM === null ? null : Number((b.plannedDepthM * 100).toPrecision(6)),
+    spinUpLeadMinutes: b.spinUpLeadS === null ? null : Number((b.spinUpLeadS / 60).toFixed(1)),
+    requesterId: b.requesterId,
+    requesterName: userName.get(b.requesterId) ?? "—",
+    decidedById: b.decidedById,
+    decidedByName: b.decidedById ? (userName.get(b.decidedById) ?? "—") : null,
+    decidedAt: b.decidedAt?.toISOString() ?? null,
+    declineReason: b.declineReason,
+    cancelledById: b.cancelledById,
+    cancelledAt: b.cancelledAt?.toISOString() ?? null,
+    createdAt: b.createdAt.toISOString(),
+  }));
+}
+export type BookingView = Awaited<ReturnType<typeof serializeBookings>>[number];
+
+export async function serializeBooking(b: Booking) {
+  return (await serializeBookings([b]))[0]!;
+}
+
+// ---- iCalendar (RFC 5545) ----
+
+const icsStatus: Record<BookingState, EventAttributes["status"]> = {
+  requested: "TENTATIVE",
+  approved: "CONFIRMED",
+  declined: "CANCELLED",
+  cancelled: "CANCELLED",
+};
+
+function icsEvent(b: BookingView): EventAttributes {
+  const host = new URL(env.appUrl).hostname || "tankside.local";
+  return {
+    uid: `booking-${b.id}@${host}`,
+    // UTC in, UTC out: DTSTART/DTEND end in Z, so every calendar app places them the same.
+    start: new Date(b.start).getTime(),
+    startInputType: "utc",
+    startOutputType: "utc",
+    end: new Date(b.end).getTime(),
+    endInputType: "utc",
+    endOutputType: "utc",
+    title: `${b.equipmentName}: ${b.purpose}`,
+    description: [
+      `Booking #${b.id} (${bookingStateLabels[b.state].toLowerCase()}) by ${b.requesterName}.`,
+      `Purpose: ${b.purpose}`,
+      ...(b.spinUpLeadMinutes ? [`Includes ${b.spinUpLeadMinutes} min spin-up lead time.`] : []),
+      ...(b.equipmentKind === "table" ? [tableBookingCaution] : []),
+    ].join("\n"),
+    url: `${env.appUrl}/bookings/${b.id}`,
+    status: icsStatus[b.state],
+    // A decision or a cancellation is a new version of the same event.
+    sequence: b.state === "requested" ? 0 : b.cancelledAt ? 2 : 1,
+    productId: "tankside/bookings",
+    lastModified: new Date(b.cancelledAt ?? b.decidedAt ?? b.createdAt).getTime(),
+  };
+}
+
+export function bookingIcs(b: BookingView): string {
+  const { error, value } = createEvent({ ...icsEvent(b), method: "PUBLISH" });
+  if (error || !value) throw error ?? new Error("could not build the iCalendar file");
+  return value;
+}
+
+/** One person's approved bookings from a month back onwards, as a subscribable calendar. */
+export async function personalFeedIcs(userId: number): Promise<string> {
+  const rows = await listBookings({ requesterId: userId, state: "approved", from: new Date(Date.now() - 31 * 86_400_000) });
+  const views = await serializeBookings(rows);
+  const { error, value } = createEvents(views.map(icsEvent), { productId: "tankside/bookings", method: "PUBLISH", calName: "Tankside bookings" });
+  if (error || !value) throw error ?? new Error("could not build the iCalendar feed");
+  return value;
+}
+
+const FEED_PREFIX = "tkc_";
+
+/** Makes (or replaces) a person's secret feed address; the token is shown once, only its hash is kept. */
+export async function createCalendarFeed(userId: number): Promise<string> {
+  const token = FEED_PREFIX + newSecretToken(24);
+  await sequelize.transaction(async (t) => {
+    await CalendarFeed.destroy({ where: { userId }, transaction: t });
+    await CalendarFeed.create({ userId, tokenHash: hashToken(token), tokenPrefix: token.slice(0, 10), lastUsedAt: null }, { transaction: t });
+  });
+  return token;
+}
+
+export async function revokeCalendarFeed(userId: number) {
+  await CalendarFeed.destroy({ where: { userId } });
+}
+
+export function getCalendarFeed(userId: number) {
+  return CalendarFeed.findOne({ where: { userId } });
+}
+
+export function feedUrl(token: string) {
+  return `${env.appUrl}/api/v1/feeds/${token}/bookings.ics`;
+}
+
+/** The active owner of a feed token, or null. */
+export async function feedOwner(token: string) {
+  if (!token.startsWith(FEED_PREFIX) || token.length > 100) return null;
+  const feed = await CalendarFeed.findOne({ where: { tokenHash: hashToken(token) } });
+  if (!feed) return null;
+  const user = await User.findByPk(feed.userId);
+  if (!user || !user.active) return null;
+  if (!feed.lastUsedAt || Date.now() - feed.lastUsedAt.getTime() > 3_600_000) await feed.update({ lastUsedAt: new Date() });
+  return user;
+}
+
+export type { MailOutcome };

@@ -1,0 +1,374 @@
+import { Op, Transaction } from "sequelize";
+import { Calibration, CalibrationAttachment, CalibrationReminder, Equipment, User, sequelize } from "./db";
+import { getLabSettings } from "./settings";
+import type { CurrentUser } from "./auth/permissions";
+import {
+  CalibrationInputError,
+  calibrationKindFor,
+  calibrationKindLabels,
+  frameRateFromTiming,
+  intervalDaysFor,
+  fitRateCalibration,
+  scaleFromKnownLength,
+  trueRateFromCalibration as trueRateFromLine,
+  type CalibrationKind,
+  type CalibrationStanding,
+  type RateReading,
+} from "~/lib/calibrations";
+import type { CalibrationInput } from "~/lib/validation/calibrations";
+import { kindLabels } from "~/lib/equipment";
+
+/** A refusal with the HTTP status that says why (404 missing, 409 signed, 422 wrong equipment). */
+export class CalibrationError extends Error {
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+    readonly field?: string,
+  ) {
+    super(message);
+  }
+}
+
+const SIGNED_MESSAGE = "This calibration record is signed off and can no longer change. Record a new calibration to supersede it.";
+
+function dayStart(day: string): Date {
+  const [y, m, d] = day.split("-").map(Number) as [number, number, number];
+  return new Date(y, m - 1, d, 0, 0, 0, 0);
+}
+/** A due date holds through the whole of its day, in the lab's (the server's) time zone. */
+function dayEnd(day: string): Date {
+  const [y, m, d] = day.split("-").map(Number) as [number, number, number];
+  return new Date(y, m - 1, d, 23, 59, 59, 999);
+}
+export function toDayString(d: Date): string {
+  return `${d.getFullYear()}-${String(d.getMonth() + 1).padStart(2, "0")}-${String(d.getDate()).padStart(2, "0")}`;
+}
+
+/** Works out every stored column from the form's input; throws CalibrationError/CalibrationInputError on bad input. */
+async function columnsFor(input: CalibrationInput, t?: Transaction) {
+  const item = await Equipment.findByPk(input.equipmentId, { transaction: t });
+  if (!item) throw new CalibrationError(404, "not_found", "That piece of equipment does not exist.", "equipmentId");
+  const wanted = calibrationKindFor[input.kind];
+  if (item.kind !== wanted) {
+    throw new CalibrationError(422, "wrong_equipment", `A ${calibrationKindLabels[input.kind].toLowerCase()} is made on a ${kindLabels[wanted].toLowerCase()}, and ${item.name} is a ${kindLabels[item.kind].toLowerCase()}.`, "equipmentId");
+  }
+  const performedAt = dayStart(input.performedOn);
+  if (performedAt.getTime() > Date.now()) {
+    throw new CalibrationError(422, "invalid_date", "The calibration date cannot be in the future: record a calibration once it is done.", "performedOn");
+  }
+  const settings = await getLabSettings();
+  const performedDay = new Date(performedAt);
+  performedDay.setDate(performedDay.getDate() + intervalDaysFor(input.kind, settings));
+  const dueOn = input.dueOn ?? toDayString(performedDay);
+  if (dueOn < input.performedOn) {
+    throw new CalibrationError(422, "invalid_due_date", "The due date cannot be before the calibration date.", "dueOn");
+  }
+  const empty = {
+    meterId: null, readings: null, slope: null, interceptRpm: null, slopeStdError: null, interceptStdErrorRpm: null,
+    slopeInterceptCovarianceRpm: null, meanSetRateRpm: null, residualSdRpm: null, maxResidualRpm: null, maxDeviationRpm: null,
+    maxDeviationPct: null, tolerancePct: null, passed: null, knownLengthM: null, knownLengthUncertaintyM: null, lengthPx: null,
+    lengthUncertaintyPx: null, scalePxPerM: null, scaleUncertaintyPxPerM: null, nominalFrameRateFps: null, frameIntervals: null,
+    frameIntervalsUncertainty: null, referenceElapsedS: null, referenceElapsedUncertaintyS: null, trueFrameRateFps: null,
+    trueFrameRateUncertaintyFps: null, frameRateDeviationPct: null,
+  };
+  const common = { kind: input.kind, equipmentId: item.id, performedAt, dueAt: dayEnd(dueOn), notes: input.notes ?? null };
+  try {
+    if (input.kind === "rate") {
+      const meter = input.meterId ? await Equipment.findByPk(input.meterId, { transaction: t }) : null;
+      if (!meter || meter.kind !== "rate_meter") {
+        throw new CalibrationError(422, "invalid_meter", "Choose a rate meter from the register for the readings.", "meterId");
+      }
+      const readings: RateReading[] = (input.readings ?? []).map((r) => ({ setRpm: r.setRpm, measuredRpm: r.measuredRpm }));
+      const fit = fitRateCalibration(readings, item.rateTolerancePct ?? 1);
+      return {
+        ...empty, ...common, meterId: meter.id, readings: JSON.stringify(readings), slope: fit.slope, interceptRpm: fit.interceptRpm,
+        slopeStdError: fit.slopeStdError, interceptStdErrorRpm: fit.interceptStdErrorRpm, slopeInterceptCovarianceRpm: fit.slopeInterceptCovarianceRpm,
+        meanSetRateRpm: fit.meanSetRateRpm, residualSdRpm: fit.residualSdRpm, maxResidualRpm: fit.maxResidualRpm,
+        maxDeviationRpm: fit.maxDeviationRpm, maxDeviationPct: fit.maxDeviationPct, tolerancePct: fit.tolerancePct, passed: fit.passed,
+      };
+    }
+    if (input.kind === "scale") {
+      const known = { knownLengthM: input.knownLengthMm! / 1000, knownLengthUncertaintyM: input.knownLengthUncertaintyMm! / 1000, lengthPx: input.lengthPx!, lengthUncertaintyPx: input.lengthUncertaintyPx! };
+      return { ...empty, ...common, ...known, ...scaleFromKnownLength(known) };
+    }
+    const timing = {
+      nominalFrameRateFps: input.nominalFrameRateFps ?? item.nominalFrameRateFps ?? NaN,
+      frameIntervals: input.frameIntervals!,
+      frameIntervalsUncertainty: input.frameIntervalsUncertainty!,
+      referenceElapsedS: input.referenceElapsedS!,
+      referenceElapsedUncertaintyS: input.referenceElapsedUncertaintyS!,
+    };
+    return { ...empty, ...common, ...timing, ...frameRateFromTiming(timing) };
+  } catch (err) {
+    if (err instanceof CalibrationInputError) throw new CalibrationError(422, "invalid_calibration", err.message, err.field);
+    throw err;
+  }
+}
+
+export async function createCalibration(input: CalibrationInput, performer: Pick<CurrentUser, "id">) {
+  const columns = await columnsFor(input);
+  return Calibration.create({ ...columns, performedById: performer.id, signedOffById: null, signedOffAt: null });
+}
+
+/**
+ * Changes a record that is not yet signed off. The check and the write share one write-locked
+ * transaction, so a sign-off landing in between cannot be overwritten.
+ */
+export async function updateCalibration(id: number, input: CalibrationInput) {
+  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+    const cal = await Calibration.findByPk(id, { transaction: t });
+    if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
+    if (cal.signedOffAt) throw new CalibrationError(409, "calibration_signed", SIGNED_MESSAGE);
+    if (input.kind !== cal.kind || input.equipmentId !== cal.equipmentId) {
+      throw new CalibrationError(422, "fixed_fields", "The kind and the equipment of a record cannot change; record a new calibration instead.");
+    }
+    const columns = await columnsFor(input, t);
+    await cal.update(columns, { transaction: t });
+    return cal;
+  });
+}
+
+/** A lab manager's sign-off: once, and from then on the record never changes. */
+export async function signOffCalibration(id: number, manager: Pick<CurrentUser, "id" | "role">) {
+  if (manager.role !== "lab_manager") throw new CalibrationError(403, "forbidden", "Only a lab manager signs calibrations off.");
+  const now = new Date();
+  const [count] = await Calibration.update(
+    { signedOffById: manager.id, signedOffAt: now },
+    { where: { id, signedOffAt: { [Op.is]: null } } },
+  );
+  const cal = await Calibration.findByPk(id);
+  if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
+  if (count === 0) throw new CalibrationError(409, "calibration_signed", "This record was already signed off.");
+  return cal;
+}
+
+export async function assertCalibrationEditable(id: number) {
+  const cal = await Calibration.findByPk(id);
+  if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
+  if (cal.signedOffAt) throw new CalibrationError(409, "calibration_signed", SIGNED_MESSAGE);
+  return cal;
+}
+
+export function getCalibration(id: number) {
+  return Number.isInteger(id) && id > 0 ? Calibration.findByPk(id) : Promise.resolve(null);
+}
+
+/** The record that counts for (item, kind) at a moment: the latest signed one done and signed by then. */
+async function latestSigned(equipmentIds: number[], at: Date) {
+  if (equipmentIds.length === 0) return [];
+  const rows = await Calibration.findAll({
+    where: { equipmentId: { [Op.in]: equipmentIds }, signedOffAt: { [Op.lte]: at }, performedAt: { [Op.lte]: at } },
+    order: [["performedAt", "DESC"], ["id", "DESC"]],
+  });
+  const seen = new Map<string, Calibration>();
+  for (const r of rows) {
+    const key = `${r.equipmentId}:${r.kind}`;
+    if (!seen.has(key)) seen.set(key, r);
+  }
+  return [...seen.values()];
+}
+
+export interface CalibrationInForce {
+  id: number;
+  kind: CalibrationKind;
+  equipmentId: number;
+  performedAt: string;
+  signedOffAt: string;
+  dueAt: string;
+  passed: boolean | null;
+  /** rate */
+  slope: number | null;
+  intercept: number | null;
+  /** scale */
+  scalePxPerM: number | null;
+  scaleUncertaintyPxPerM: number | null;
+  /** timing */
+  trueFrameRateFps: number | null;
+  trueFrameRateUncertaintyFps: number | null;
+}
+
+/**
+ * The calibrations in force at `at` for these items: per item and kind, the latest record signed
+ * off by then, provided it is not past due at `at`. Times are ISO strings, ready to store on a run.
+ */
+export async function calibrationsInForce(equipmentIds: number[], at: Date): Promise<CalibrationInForce[]> {
+  const latest = await latestSigned(equipmentIds, at);
+  return latest
+    .filter((c) => c.dueAt.getTime() >= at.getTime())
+    .sort((a, b) => a.equipmentId - b.equipmentId || a.kind.localeCompare(b.kind))
+    .map((c) => ({
+      id: c.id,
+      kind: c.kind,
+      equipmentId: c.equipmentId,
+      performedAt: c.performedAt.toISOString(),
+      signedOffAt: c.signedOffAt!.toISOString(),
+      dueAt: c.dueAt.toISOString(),
+      passed: c.passed,
+      slope: c.slope,
+      intercept: c.interceptRpm,
+      scalePxPerM: c.scalePxPerM,
+      scaleUncertaintyPxPerM: c.scaleUncertaintyPxPerM,
+      trueFrameRateFps: c.trueFrameRateFps,
+      trueFrameRateUncertaintyFps: c.trueFrameRateUncertaintyFps,
+    }));
+}
+
+export interface RateCalibrationInForce {
+  id: number;
+  slope: number;
+  intercept: number;
+  slopeStdError: number;
+  interceptStdError: number;
+  slopeInterceptCovariance: number;
+  residualSd: number;
+  passed: boolean;
+  performedAt: string;
+  dueAt: string;
+}
+
+/** The table's rate calibration in force at `at`, or null (none signed, or the latest is past due). */
+export async function rateCalibrationInForce(tableId: number, at: Date): Promise<RateCalibrationInForce | null> {
+  const [latest] = (await latestSigned([tableId], at)).filter((c) => c.kind === "rate");
+  if (!latest || latest.dueAt.getTime() < at.getTime()) return null;
+  return {
+    id: latest.id,
+    slope: latest.slope!,
+    intercept: latest.interceptRpm!,
+    slopeStdError: latest.slopeStdError!,
+    interceptStdError: latest.interceptStdErrorRpm!,
+    slopeInterceptCovariance: latest.slopeInterceptCovarianceRpm!,
+    residualSd: latest.residualSdRpm!,
+    passed: Boolean(latest.passed),
+    performedAt: latest.performedAt.toISOString(),
+    dueAt: latest.dueAt.toISOString(),
+  };
+}
+
+/** True rate at a set rate from the calibration in force, with the line's standard error there (see lib/calibrations). */
+export function trueRateFromCalibration(cal: RateCalibrationInForce, setRpm: number) {
+  return trueRateFromLine(cal, setRpm);
+}
+
+export interface DueCalibration {
+  id: number;
+  kind: CalibrationKind;
+  equipmentId: number;
+  equipmentName: string;
+  dueAt: string;
+  pastDue: boolean;
+  daysLeft: number;
+}
+
+/**
+ * Records that count now (latest signed per item and kind, equipment not retired) and fall due
+ * within `days` or are already past due; past due first, then soonest due.
+ */
+export async function listCalibrationsDueOrExpired(days: number, at: Date = new Date()): Promise<DueCalibration[]> {
+  const items = await Equipment.findAll({ where: { status: { [Op.ne]: "retired" } } });
+  const names = new Map(items.map((i) => [i.id, i.name]));
+  const latest = await latestSigned([...names.keys()], at);
+  const horizon = at.getTime() + days * 86_400_000;
+  return latest
+    .filter((c) => c.dueAt.getTime() <= horizon)
+    .map((c) => ({
+      id: c.id,
+      kind: c.kind,
+      equipmentId: c.equipmentId,
+      equipmentName: names.get(c.equipmentId) ?? `#${c.equipmentId}`,
+      dueAt: c.dueAt.toISOString(),
+      pastDue: c.dueAt.getTime() < at.getTime(),
+      daysLeft: Math.floor((c.dueAt.getTime() - at.getTime()) / 86_400_000),
+    }))
+    .sort((a, b) => Number(b.pastDue) - Number(a.pastDue) || a.dueAt.localeCompare(b.dueAt));
+}
+
+/** Where each record stands now: a draft, in force, superseded by a later signed one, or past due. */
+export async function standingOf(records: Calibration[], at: Date = new Date()): Promise<Map<number, CalibrationStanding>> {
+  const ids = [...new Set(records.map((r) => r.equipmentId))];
+  const latest = new Map((await latestSigned(ids, at)).map((c) => [`${c.equipmentId}:${c.kind}`, c.id]));
+  const out = new Map<number, CalibrationStanding>();
+  for (const r of records) {
+    if (!r.signedOffAt) out.set(r.id, "draft");
+    else if (latest.get(`${r.equipmentId}:${r.kind}`) !== r.id) out.set(r.id, "superseded");
+    else out.set(r.id, r.dueAt.getTime() < at.getTime() ? "past_due" : "in_force");
+  }
+  return out;
+}
+
+export function listCalibrations(filter: { equipmentId?: number } = {}) {
+  return Calibration.findAll({
+    where: filter.equipmentId ? { equipmentId: filter.equipmentId } : {},
+    order: [["performedAt", "DESC"], ["id", "DESC"]],
+  });
+}
+
+/** The page and API shape of a record, with names filled in and its standing now. */
+export async function serializeCalibrations(records: Calibration[]) {
+  const userIds = [...new Set(records.flatMap((r) => [r.performedById, r.signedOffById]).filter((v): v is number => v !== null))];
+  const equipIds = [...new Set(records.flatMap((r) => [r.equipmentId, r.meterId]).filter((v): v is number => v !== null))];
+  const [users, items, attachments, reminders, standing] = await Promise.all([
+    userIds.length ? User.findAll({ where: { id: { [Op.in]: userIds } } }) : [],
+    equipIds.length ? Equipment.findAll({ where: { id: { [Op.in]: equipIds } } }) : [],
+    records.length ? CalibrationAttachment.findAll({ where: { calibrationId: { [Op.in]: records.map((r) => r.id) } }, order: [["id", "ASC"]] }) : [],
+    records.length ? CalibrationReminder.findAll({ where: { calibrationId: { [Op.in]: records.map((r) => r.id) } } }) : [],
+    standingOf(records),
+  ]);
+  const userName = new Map(users.map((u) => [u.id, u.name]));
+  const itemName = new Map(items.map((i) => [i.id, i.name]));
+  return records.map((r) => ({
+    id: r.id,
+    kind: r.kind,
+    equipmentId: r.equipmentId,
+    equipmentName: itemName.get(r.equipmentId) ?? `#${r.equipmentId}`,
+    meterId: r.meterId,
+    meterName: r.meterId ? (itemName.get(r.meterId) ?? `#${r.meterId}`) : null,
+    performedById: r.performedById,
+    performedByName: userName.get(r.performedById) ?? "—",
+    performedOn: toDayString(r.performedAt),
+    performedAt: r.performedAt.toISOString(),
+    dueOn: toDayString(r.dueAt),
+    dueAt: r.dueAt.toISOString(),
+    notes: r.notes,
+    readings: r.readings ? (JSON.parse(r.readings) as RateReading[]) : null,
+    slope: r.slope,
+    interceptRpm: r.interceptRpm,
+    slopeStdError: r.slopeStdError,
+    interceptStdErrorRpm: r.interceptStdErrorRpm,
+    slopeInterceptCovarianceRpm: r.slopeInterceptCovarianceRpm,
+    residualSdRpm: r.residualSdRpm,
+    maxResidualRpm: r.maxResidualRpm,
+    maxDeviationRpm: r.maxDeviationRpm,
+    maxDeviationPct: r.maxDeviationPct,
+    tolerancePct: r.tolerancePct,
+    passed: r.passed,
+    knownLengthM: r.knownLengthM,
+    knownLengthUncertaintyM: r.knownLengthUncertaintyM,
+    lengthPx: r.lengthPx,
+    lengthUncertaintyPx: r.lengthUncertaintyPx,
+    scalePxPerM: r.scalePxPerM,
+    scaleUncertaintyPxPerM: r.scaleUncertaintyPxPerM,
+    nominalFrameRateFps: r.nominalFrameRateFps,
+    frameIntervals: r.frameIntervals,
+    frameIntervalsUncertainty: r.frameIntervalsUncertainty,
+    referenceElapsedS: r.referenceElapsedS,
+    referenceElapsedUncertaintyS: r.referenceElapsedUncertaintyS,
+    trueFrameRateFps: r.trueFrameRateFps,
+    trueFrameRateUncertaintyFps: r.trueFrameRateUncertaintyFps,
+    frameRateDeviationPct: r.frameRateDeviationPct,
+    signedOffById: r.signedOffById,
+    signedOffByName: r.signedOffById ? (userName.get(r.signedOffById) ?? "—") : null,
+    signedOffAt: r.signedOffAt ? r.signedOffAt.toISOString() : null,
+    standing: standing.get(r.id)!,
+    reminder: reminders.find((m) => m.calibrationId === r.id)
+      ? (() => {
+          const m = reminders.find((x) => x.calibrationId === r.id)!;
+          return { state: m.state, sentAt: m.sentAt?.toISOString() ?? null, lastError: m.lastError };
+        })()
+      : null,
+    attachments: attachments
+      .filter((a) => a.calibrationId === r.id)
+      .map((a) => ({ id: a.id, originalName: a.originalName, contentType: a.contentType, sizeBytes: a.sizeBytes, url: `/api/v1/calibrations/${r.id}/attachments/${a.id}` })),
+  }));
+}
+export type CalibrationView = Awaited<ReturnType<typeof serializeCalibrations>>[number];

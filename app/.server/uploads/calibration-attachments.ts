@@ -1,0 +1,70 @@
+import crypto from "node:crypto";
+import fs from "node:fs/promises";
+import path from "node:path";
+import sharp from "sharp";
+import { CalibrationAttachment } from "../db";
+import { env } from "../env";
+import { assertCalibrationEditable, CalibrationError } from "../calibrations";
+
+export const MAX_ATTACHMENT_BYTES = 20 * 1024 * 1024;
+
+const imageTypes: Record<string, { type: string; ext: string }> = {
+  jpeg: { type: "image/jpeg", ext: "jpg" },
+  png: { type: "image/png", ext: "png" },
+  webp: { type: "image/webp", ext: "webp" },
+  tiff: { type: "image/tiff", ext: "tif" },
+  gif: { type: "image/gif", ext: "gif" },
+};
+
+/** What a file really is, from its bytes (never its name or the browser's claim): a photo or a PDF. */
+export async function sniffAttachment(bytes: Buffer): Promise<{ type: string; ext: string } | null> {
+  if (bytes.subarray(0, 5).toString("latin1") === "%PDF-") return { type: "application/pdf", ext: "pdf" };
+  try {
+    const meta = await sharp(bytes, { failOn: "error" }).metadata();
+    return (meta.format && imageTypes[meta.format]) || null;
+  } catch {
+    return null;
+  }
+}
+
+function attachmentDir() {
+  return path.join(env.uploadsDir, "calibrations");
+}
+
+export async function addCalibrationAttachment(calibrationId: number, file: { name: string; bytes: Buffer }, uploadedById: number) {
+  await assertCalibrationEditable(calibrationId);
+  if (file.bytes.length === 0) throw new CalibrationError(422, "empty_file", "That file is empty.");
+  if (file.bytes.length > MAX_ATTACHMENT_BYTES) throw new CalibrationError(413, "file_too_large", "Attachments can be at most 20 MB.");
+  const kind = await sniffAttachment(file.bytes);
+  if (!kind) {
+    throw new CalibrationError(422, "unsupported_attachment", `"${file.name}" is not a photo (JPEG, PNG, WebP, TIFF, GIF) or a PDF, judged by its content.`);
+  }
+  const storedName = `${crypto.randomUUID()}.${kind.ext}`;
+  await fs.mkdir(attachmentDir(), { recursive: true });
+  await fs.writeFile(path.join(attachmentDir(), storedName), file.bytes, { flag: "wx" });
+  try {
+    // Checked again: a sign-off may have landed while the file was being written.
+    await assertCalibrationEditable(calibrationId);
+    return await CalibrationAttachment.create({
+      calibrationId,
+      originalName: file.name.slice(0, 255) || "attachment",
+      storedName,
+      contentType: kind.type,
+      sizeBytes: file.bytes.length,
+      sha256: crypto.createHash("sha256").update(file.bytes).digest("hex"),
+      uploadedById,
+    });
+  } catch (err) {
+    await fs.rm(path.join(attachmentDir(), storedName), { force: true });
+    throw err;
+  }
+}
+
+export async function readCalibrationAttachment(calibrationId: number, attachmentId: number) {
+  const row = await CalibrationAttachment.findOne({ where: { id: attachmentId, calibrationId } });
+  if (!row) return null;
+  // Stored names are generated here; the check still keeps a tampered row from leaving the folder.
+  if (!/^[0-9a-f-]{36}\.[a-z]{3,4}$/.test(row.storedName)) return null;
+  const bytes = await fs.readFile(path.join(attachmentDir(), row.storedName));
+  return { row, bytes };
+}

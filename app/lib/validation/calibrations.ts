@@ -1,0 +1,105 @@
+import { z } from "zod";
+import { calibrationKinds, MIN_RATE_READINGS } from "../calibrations";
+
+const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
+
+const optionalText = (max: number) =>
+  z.preprocess((v) => (typeof v === "string" && v.trim() === "" ? undefined : v), z.string().trim().max(max, `At most ${max} characters.`).optional());
+
+const day = (what: string) =>
+  z
+    .string({ error: `Enter the ${what} (year-month-day).` })
+    .regex(/^\d{4}-\d{2}-\d{2}$/, `Enter the ${what} as year-month-day, e.g. 2026-03-14.`)
+    .refine((s) => !Number.isNaN(new Date(`${s}T00:00:00`).getTime()), `That ${what} is not a real day.`);
+
+const positive = (what: string, max: number, unit: string) =>
+  z.preprocess(
+    blankToUndefined,
+    z.coerce
+      .number({ error: `${what} must be a number.` })
+      .refine(Number.isFinite, `${what} must be a number.`)
+      .positive(`${what} must be more than zero.`)
+      .max(max, `${what} above ${max} ${unit} is not plausible here.`)
+      .optional(),
+  );
+
+const nonNegative = (what: string, max: number, unit: string) =>
+  z.preprocess(
+    blankToUndefined,
+    z.coerce
+      .number({ error: `${what} must be a number.` })
+      .min(0, `${what} cannot be negative.`)
+      .max(max, `${what} above ${max} ${unit} is not plausible here.`)
+      .optional(),
+  );
+
+const reading = z.object({
+  setRpm: z.coerce.number({ error: "Set rate must be a number." }).refine((v) => v > 0, "A set rate must be more than zero rpm."),
+  measuredRpm: z.coerce.number({ error: "Measured rate must be a number." }).refine((v) => v > 0, "A measured rate must be more than zero rpm."),
+});
+
+/** Rows the person left empty on the form are dropped; a half-filled row is an error. */
+const readings = z.preprocess(
+  (v) =>
+    Array.isArray(v)
+      ? v.filter((row) => {
+          if (!row || typeof row !== "object") return false;
+          const r = row as Record<string, unknown>;
+          return blankToUndefined(r.setRpm) !== undefined || blankToUndefined(r.measuredRpm) !== undefined;
+        })
+      : v,
+  z.array(reading).optional(),
+);
+
+/** One form for the three kinds; the refinement asks for what each kind needs. Lengths in mm on the form. */
+export const calibrationSchema = z
+  .object({
+    kind: z.enum(calibrationKinds, { error: "Choose rate calibration, scale calibration or timing check." }),
+    equipmentId: z.coerce.number({ error: "Choose the equipment." }).int().positive("Choose the equipment."),
+    performedOn: day("calibration date"),
+    dueOn: z.preprocess(blankToUndefined, day("due date").optional()),
+    notes: optionalText(4000),
+    meterId: z.preprocess(blankToUndefined, z.coerce.number().int().positive().optional()),
+    readings,
+    knownLengthMm: positive("Known length", 10_000, "mm"),
+    knownLengthUncertaintyMm: nonNegative("Uncertainty of the known length", 1_000, "mm"),
+    lengthPx: positive("Length in the image", 100_000, "px"),
+    lengthUncertaintyPx: nonNegative("Uncertainty in pixels", 10_000, "px"),
+    nominalFrameRateFps: positive("Nominal frame rate", 10_000, "frames/s"),
+    frameIntervals: positive("Frame intervals counted", 10_000_000, "intervals"),
+    frameIntervalsUncertainty: nonNegative("Uncertainty of the count", 1_000, "intervals"),
+    referenceElapsedS: positive("Elapsed time by the reference", 86_400, "s"),
+    referenceElapsedUncertaintyS: nonNegative("Uncertainty of the elapsed time", 3_600, "s"),
+  })
+  .superRefine((v, ctx) => {
+    const need = (field: keyof typeof v, message: string) => {
+      if (v[field] === undefined) ctx.addIssue({ code: "custom", path: [field], message });
+    };
+    if (v.dueOn && v.dueOn < v.performedOn) {
+      ctx.addIssue({ code: "custom", path: ["dueOn"], message: "The due date cannot be before the calibration date." });
+    }
+    if (v.kind === "rate") {
+      need("meterId", "Choose the rate meter the readings were taken with.");
+      const n = v.readings?.length ?? 0;
+      if (n < MIN_RATE_READINGS) {
+        ctx.addIssue({ code: "custom", path: ["readings"], message: `Enter readings at ${MIN_RATE_READINGS} or more set rates (${n} entered).` });
+      } else if (new Set(v.readings!.map((r) => r.setRpm)).size < 2) {
+        ctx.addIssue({ code: "custom", path: ["readings"], message: "Use at least two different set rates, or no line can be fitted." });
+      }
+    }
+    if (v.kind === "scale") {
+      need("knownLengthMm", "Enter the known length.");
+      need("knownLengthUncertaintyMm", "Enter the uncertainty of the known length (0 if exact).");
+      need("lengthPx", "Enter the length measured in the image.");
+      need("lengthUncertaintyPx", "Enter the uncertainty in pixels (e.g. 1 px).");
+    }
+    if (v.kind === "timing") {
+      need("nominalFrameRateFps", "Enter the camera's nominal frame rate.");
+      need("frameIntervals", "Enter how many frame intervals you counted.");
+      need("frameIntervalsUncertainty", "Enter the uncertainty of the count (e.g. 1).");
+      need("referenceElapsedS", "Enter the elapsed time by the reference clock or meter.");
+      need("referenceElapsedUncertaintyS", "Enter the uncertainty of the elapsed time.");
+    }
+  });
+
+export type CalibrationInput = z.infer<typeof calibrationSchema>;

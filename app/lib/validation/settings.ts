@@ -1,0 +1,31 @@
+import { z } from "zod";
+import { settingLimits, type SettingKey } from "../settings";
+
+const wholeDays: SettingKey[] = ["rateCalibrationIntervalDays", "scaleCalibrationIntervalDays", "timingCheckIntervalDays", "calibrationReminderDays"];
+
+function field(key: SettingKey) {
+  const { min, max, label, unit } = settingLimits[key];
+  const inRange = z.number().min(min, `${label} must be at least ${min} ${unit}.`).max(max, `${label} must be at most ${max} ${unit}.`);
+  const n = z.coerce
+    .number({ error: `${label} must be a number.` })
+    .refine(Number.isFinite, `${label} must be a number.`)
+    .pipe(wholeDays.includes(key) ? inRange.int(`${label} must be a whole number of days.`) : inRange);
+  return z.preprocess((v) => (v === "" ? undefined : v), n);
+}
+
+/** The lab manager's settings form; limits and labels come from the one list in lib/settings. */
+export const labSettingsSchema = z
+  .object({
+    checkTolerancePct: field("checkTolerancePct"),
+    spinUpTimesToWait: field("spinUpTimesToWait"),
+    rateCalibrationIntervalDays: field("rateCalibrationIntervalDays"),
+    scaleCalibrationIntervalDays: field("scaleCalibrationIntervalDays"),
+    timingCheckIntervalDays: field("timingCheckIntervalDays"),
+    calibrationReminderDays: field("calibrationReminderDays"),
+  })
+  .superRefine((v, ctx) => {
+    const shortest = Math.min(v.rateCalibrationIntervalDays, v.scaleCalibrationIntervalDays, v.timingCheckIntervalDays);
+    if (v.calibrationReminderDays >= shortest) {
+      ctx.addIssue({ code: "custom", path: ["calibrationReminderDays"], message: `The reminder must come sooner than the shortest interval (${shortest} days), or it would go out the day a record is made.` });
+    }
+  });

@@ -1,0 +1,54 @@
+import { Run, TheoryCheck, Track, ViewSetup } from "../db";
+import { RunError } from "./service";
+import { parseTrackPoints, signedOmega } from "./theory";
+import { trackToRotatingFrame, type ViewGeometry } from "~/lib/analysis/frames";
+import { runLabel } from "~/lib/runs";
+
+function csvNumber(v: number) {
+  // Enough digits for sub-pixel positions and millisecond times; no locale, no thousands separators.
+  return Number.isFinite(v) ? String(Number(v.toPrecision(10))) : "";
+}
+
+/**
+ * The run's tracks as CSV, one row a point: track_id, t_s, x_px, y_px, and x_m, y_m in the
+ * rotating frame when the view setup has a scale. A lab-fixed camera's positions are de-rotated by
+ * −Ω(t − t₀), Ω the rate the latest theory check used (else the set rate), t₀ each track's first time.
+ */
+export async function tracksCsv(runId: number): Promise<{ filename: string; csv: string; withMetres: boolean }> {
+  const run = await Run.findByPk(runId);
+  if (!run) throw new RunError("No such run.", 404, undefined, "not_found");
+  const tracks = await Track.findAll({ where: { runId }, order: [["number", "ASC"], ["id", "ASC"]] });
+  if (!tracks.length) {
+    throw new RunError(
+      `${runLabel(run.id)} has no tracks yet: upload its frames, set up the view and run tracking first.`,
+      409,
+      undefined,
+      "no_tracks",
+    );
+  }
+  const setup = await ViewSetup.findOne({ where: { runId } });
+  const check = await TheoryCheck.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] });
+  let omega = signedOmega(run);
+  if (check) {
+    try {
+      const used = (JSON.parse(check.result) as { omega?: unknown }).omega;
+      if (typeof used === "number" && Number.isFinite(used)) omega = used;
+    } catch {
+      // An unreadable stored result leaves the set rate in use.
+    }
+  }
+  const view: ViewGeometry | null =
+    setup && setup.scalePxPerM ? { centre: { x: setup.centreXPx, y: setup.centreYPx }, pxPerM: setup.scalePxPerM, mirrored: setup.mirrored } : null;
+
+  const lines = [view ? "track_id,t_s,x_px,y_px,x_m,y_m" : "track_id,t_s,x_px,y_px"];
+  for (const track of tracks) {
+    const points = parseTrackPoints(track);
+    const rotating = view && points.length ? trackToRotatingFrame(points, view, run.cameraMode, omega, points[0].t) : null;
+    points.forEach((p, i) => {
+      const cells = [String(track.id), csvNumber(p.t), csvNumber(p.x), csvNumber(p.y)];
+      if (rotating) cells.push(csvNumber(rotating[i].x), csvNumber(rotating[i].y));
+      lines.push(cells.join(","));
+    });
+  }
+  return { filename: `${runLabel(run.id)}-tracks.csv`, csv: `${lines.join("\r\n")}\r\n`, withMetres: Boolean(view) };
+}

@@ -1,0 +1,194 @@
+import { Op, type Order, type WhereOptions } from "sequelize";
+import { Equipment, Run, User, UserPreference, sequelize } from "../db";
+import { runLabel, type RunState, type Verdict } from "~/lib/runs";
+import {
+  defaultRunColumnChoice,
+  parseRunFilters,
+  runColumnChoiceSchema,
+  type RunColumnChoice,
+  type RunFilters,
+  type RunSortField,
+} from "~/lib/validation/run-filters";
+
+/** Bad filters or a page past the end: the page shows the message, the API answers 400. */
+export class RunFilterError extends Error {
+  readonly status = 400;
+  readonly code = "invalid_filter";
+  constructor(
+    message: string,
+    readonly field: string | null,
+  ) {
+    super(message);
+  }
+}
+
+/** Validates a URL's search parameters as runs-table filters or throws RunFilterError. */
+export function runFiltersFrom(params: URLSearchParams): RunFilters {
+  const parsed = parseRunFilters(params);
+  if (!parsed.ok) throw new RunFilterError(parsed.message, parsed.field);
+  return parsed.filters;
+}
+
+const sortColumns: Record<RunSortField, string> = {
+  createdAt: "createdAt",
+  id: "id",
+  setRateRpm: "setRateRpm",
+  waterDepthM: "waterDepthM",
+  waterTemperatureC: "waterTemperatureC",
+  frameCount: "frameCount",
+  state: "state",
+  verdict: "verdict",
+};
+
+/** Start of a YYYY-MM-DD day in the lab's (the server's) local time. */
+function localDayStart(day: string, plusDays = 0): Date {
+  const [y, m, d] = day.split("-").map(Number);
+  return new Date(y, m - 1, d + plusDays, 0, 0, 0, 0);
+}
+
+function likePattern(text: string) {
+  // Search text is literal: % and _ typed by a person are not wildcards.
+  return `%${text.toLowerCase().replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+}
+
+export function runsWhere(filters: RunFilters): WhereOptions<Run> {
+  const and: WhereOptions<Run>[] = [];
+  if (filters.table) and.push({ tableId: filters.table });
+  if (filters.technician) and.push({ technicianId: filters.technician });
+  if (filters.state) and.push({ state: filters.state });
+  if (filters.verdict === "none") and.push({ verdict: { [Op.is]: null } });
+  else if (filters.verdict) and.push({ verdict: filters.verdict });
+  if (filters.from) and.push({ createdAt: { [Op.gte]: localDayStart(filters.from) } });
+  if (filters.to) and.push({ createdAt: { [Op.lt]: localDayStart(filters.to, 1) } });
+  if (filters.q) {
+    const p = sequelize.escape(likePattern(filters.q));
+    and.push(sequelize.literal(`(lower("Run"."purpose") LIKE ${p} ESCAPE '\\' OR lower(coalesce("Run"."notes", '')) LIKE ${p} ESCAPE '\\')`) as unknown as WhereOptions<Run>);
+  }
+  return and.length ? { [Op.and]: and } : {};
+}
+
+export interface RunListItem {
+  id: number;
+  label: string;
+  createdAt: string;
+  state: RunState;
+  verdict: Verdict | null;
+  table: { id: number; name: string };
+  tank: { id: number; name: string };
+  camera: { id: number; name: string };
+  technician: { id: number; name: string };
+  setRateRpm: number;
+  direction: "ccw" | "cw";
+  waterDepthM: number;
+  waterTemperatureC: number;
+  cameraMode: "rotating" | "lab";
+  tracer: "float" | "dye";
+  frameCount: number;
+  purpose: string;
+  signedOffAt: string | null;
+  supersedesId: number | null;
+}
+
+export interface RunPage {
+  items: RunListItem[];
+  total: number;
+  page: number;
+  pageSize: number;
+  pageCount: number;
+}
+
+const listAttributes = [
+  "id", "createdAt", "state", "verdict", "tableId", "tankId", "cameraId", "technicianId", "setRateRpm", "direction",
+  "waterDepthM", "waterTemperatureC", "cameraMode", "tracer", "frameCount", "purpose", "signedOffAt", "supersedesId",
+] as const;
+
+/** One page of runs for the table and GET /api/v1/runs; sorting, filtering and paging all happen in the database. */
+export async function listRuns(filters: RunFilters): Promise<RunPage> {
+  const where = runsWhere(filters);
+  const dir = filters.dir === "asc" ? "ASC" : "DESC";
+  // id breaks ties so a page never repeats or skips a run; every index ends in the rowid, so this stays an index walk.
+  const order: Order = filters.sort === "id" ? [["id", dir]] : [[sortColumns[filters.sort], dir], ["id", dir]];
+  const offset = (filters.page - 1) * filters.pageSize;
+  const [total, rows] = await Promise.all([
+    Run.count({ where }),
+    Run.findAll({ where, order, limit: filters.pageSize, offset, attributes: [...listAttributes] }),
+  ]);
+  const pageCount = Math.max(1, Math.ceil(total / filters.pageSize));
+  if (filters.page > pageCount) {
+    throw new RunFilterError(
+      total === 0
+        ? `No runs match these filters, so there is only page 1 (page ${filters.page} was asked for).`
+        : `Page ${filters.page} is past the last page: ${total} runs make ${pageCount} page${pageCount === 1 ? "" : "s"} of ${filters.pageSize}.`,
+      "page",
+    );
+  }
+  const equipmentIds = [...new Set(rows.flatMap((r) => [r.tableId, r.tankId, r.cameraId]))];
+  const userIds = [...new Set(rows.map((r) => r.technicianId))];
+  const [equipment, users] = await Promise.all([
+    equipmentIds.length ? Equipment.findAll({ where: { id: equipmentIds }, attributes: ["id", "name"] }) : [],
+    userIds.length ? User.findAll({ where: { id: userIds }, attributes: ["id", "name"] }) : [],
+  ]);
+  const names = new Map(equipment.map((e) => [e.id, e.name]));
+  const people = new Map(users.map((u) => [u.id, u.name]));
+  const item = (id: number) => ({ id, name: names.get(id) ?? `#${id}` });
+  return {
+    items: rows.map((r) => ({
+      id: r.id,
+      label: runLabel(r.id),
+      createdAt: r.createdAt.toISOString(),
+      state: r.state,
+      verdict: r.verdict,
+      table: item(r.tableId),
+      tank: item(r.tankId),
+      camera: item(r.cameraId),
+      technician: { id: r.technicianId, name: people.get(r.technicianId) ?? `#${r.technicianId}` },
+      setRateRpm: r.setRateRpm,
+      direction: r.direction,
+      waterDepthM: r.waterDepthM,
+      waterTemperatureC: r.waterTemperatureC,
+      cameraMode: r.cameraMode,
+      tracer: r.tracer,
+      frameCount: r.frameCount,
+      purpose: r.purpose,
+      signedOffAt: r.signedOffAt?.toISOString() ?? null,
+      supersedesId: r.supersedesId,
+    })),
+    total,
+    page: filters.page,
+    pageSize: filters.pageSize,
+    pageCount,
+  };
+}
+
+/** The choices the filter bar offers: every table, and everyone who can log a run. */
+export async function runFilterOptions() {
+  const [tables, technicians] = await Promise.all([
+    Equipment.findAll({ where: { kind: "table" }, attributes: ["id", "name"], order: [["name", "ASC"]] }),
+    User.findAll({ where: { role: ["technician", "lab_manager"] }, attributes: ["id", "name"], order: [["name", "ASC"]] }),
+  ]);
+  return {
+    tables: tables.map((t) => ({ id: t.id, name: t.name })),
+    technicians: technicians.map((u) => ({ id: u.id, name: u.name })),
+  };
+}
+
+const COLUMNS_KEY = "runs.columns";
+
+export async function getRunColumnChoice(userId: number): Promise<RunColumnChoice> {
+  const row = await UserPreference.findOne({ where: { userId, key: COLUMNS_KEY } });
+  if (!row) return defaultRunColumnChoice;
+  try {
+    const parsed = runColumnChoiceSchema.safeParse(JSON.parse(row.value));
+    // A saved choice that names a column since removed falls back to the defaults rather than failing the page.
+    return parsed.success ? parsed.data : defaultRunColumnChoice;
+  } catch {
+    return defaultRunColumnChoice;
+  }
+}
+
+export async function saveRunColumnChoice(userId: number, choice: RunColumnChoice) {
+  const value = JSON.stringify(runColumnChoiceSchema.parse(choice));
+  const existing = await UserPreference.findOne({ where: { userId, key: COLUMNS_KEY } });
+  if (existing) await existing.update({ value });
+  else await UserPreference.create({ userId, key: COLUMNS_KEY, value });
+}

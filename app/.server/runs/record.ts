@@ -1,0 +1,284 @@
+import { Op } from "sequelize";
+import { Calibration, Equipment, Frame, Run, RunHistory, TheoryCheck, Track, TrackingJob, User, ViewSetup, sequelize } from "../db";
+import { codeVersion } from "../version";
+import { serializeEquipment } from "../equipment";
+import { RunError, setRunState } from "./service";
+import type { CurrentUser } from "../auth/permissions";
+import { runLabel, runStateLabels, type RunState } from "~/lib/runs";
+import { runFieldLabels } from "~/lib/validation/run";
+
+/** Sign-off needs a theory check to vouch for: a run is signed off from "checked" only. */
+export async function signOffRun(runId: number, user: CurrentUser) {
+  if (user.role !== "lab_manager") throw new RunError("Only a lab manager can sign a run off.", 403, undefined, "forbidden");
+  return sequelize.transaction(async (transaction) => {
+    const run = await Run.findByPk(runId, { transaction });
+    if (!run) throw new RunError("No such run.", 404, undefined, "not_found");
+    if (run.state === "signed_off") {
+      throw new RunError(`${runLabel(run.id)} is already signed off.`, 409, undefined, "run_signed_off");
+    }
+    if (run.state !== "checked") {
+      throw new RunError(
+        `${runLabel(run.id)} is ${runStateLabels[run.state as RunState].toLowerCase()}: only a run with a theory check can be signed off.`,
+        409,
+        undefined,
+        "not_checked",
+      );
+    }
+    const at = new Date();
+    await setRunState(run, "signed_off", user.id, transaction);
+    await run.update({ signedOffById: user.id, signedOffAt: at }, { transaction });
+    return run;
+  });
+}
+
+export interface RunHistoryEntry {
+  id: number;
+  at: string;
+  who: { id: number; name: string } | null;
+  field: string;
+  fieldLabel: string;
+  oldValue: string | null;
+  newValue: string | null;
+}
+
+const equipmentFields = new Set(["tableId", "tankId", "cameraId"]);
+const extraLabels: Record<string, string> = { created: "logged" };
+
+/** Every change to a run, oldest first, with ids turned into the names people know. */
+export async function getRunHistory(runId: number): Promise<RunHistoryEntry[]> {
+  const rows = await RunHistory.findAll({ where: { runId }, order: [["createdAt", "ASC"], ["id", "ASC"]] });
+  const userIds = [...new Set(rows.map((r) => r.userId).filter((id): id is number => id !== null))];
+  const equipmentIds = [
+    ...new Set(rows.filter((r) => equipmentFields.has(r.field)).flatMap((r) => [r.oldValue, r.newValue]).filter(Boolean).map(Number)),
+  ];
+  const [users, equipment] = await Promise.all([
+    userIds.length ? User.findAll({ where: { id: userIds }, attributes: ["id", "name"] }) : [],
+    equipmentIds.length ? Equipment.findAll({ where: { id: equipmentIds }, attributes: ["id", "name"] }) : [],
+  ]);
+  const names = new Map(users.map((u) => [u.id, u.name]));
+  const items = new Map(equipment.map((e) => [String(e.id), e.name]));
+  const shown = (field: string, value: string | null) => {
+    if (value === null) return null;
+    if (equipmentFields.has(field)) return items.get(value) ?? `#${value}`;
+    if (field === "state") return runStateLabels[value as RunState] ?? value;
+    return value;
+  };
+  return rows.map((r) => ({
+    id: r.id,
+    at: r.createdAt.toISOString(),
+    who: r.userId === null ? null : { id: r.userId, name: names.get(r.userId) ?? `#${r.userId}` },
+    field: r.field,
+    fieldLabel: runFieldLabels[r.field] ?? extraLabels[r.field] ?? r.field,
+    oldValue: shown(r.field, r.oldValue),
+    newValue: shown(r.field, r.newValue),
+  }));
+}
+
+export interface RunLink {
+  id: number;
+  label: string;
+  state: RunState;
+  createdAt: string;
+}
+
+const link = (r: Run): RunLink => ({ id: r.id, label: runLabel(r.id), state: r.state, createdAt: r.createdAt.toISOString() });
+
+/** The run this one corrects, and the runs that correct it (newest first). */
+export async function getSupersedesLinks(run: Pick<Run, "id" | "supersedesId">) {
+  const [supersedes, supersededBy] = await Promise.all([
+    run.supersedesId ? Run.findByPk(run.supersedesId, { attributes: ["id", "state", "createdAt"] }) : null,
+    Run.findAll({ where: { supersedesId: run.id }, attributes: ["id", "state", "createdAt"], order: [["createdAt", "DESC"]] }),
+  ]);
+  return { supersedes: supersedes ? link(supersedes) : null, supersededBy: supersededBy.map(link) };
+}
+
+export interface SignOffView {
+  state: RunState;
+  signedOffAt: string | null;
+  signedOffBy: { id: number; name: string } | null;
+  /** The person asking may sign this run off now. */
+  canSignOff: boolean;
+  /** Why not, when they are a lab manager but the run is not ready. */
+  blockedReason: string | null;
+  /** The person asking may log a correction (technician or lab manager, run signed off). */
+  canCorrect: boolean;
+}
+
+/** What <SignOffPanel> shows for this person. */
+export async function getSignOffView(run: Run, user: CurrentUser): Promise<SignOffView> {
+  const by = run.signedOffById ? await User.findByPk(run.signedOffById, { attributes: ["id", "name"] }) : null;
+  const isManager = user.role === "lab_manager";
+  return {
+    state: run.state,
+    signedOffAt: run.signedOffAt?.toISOString() ?? null,
+    signedOffBy: by ? { id: by.id, name: by.name } : null,
+    canSignOff: isManager && run.state === "checked",
+    blockedReason:
+      isManager && run.state !== "checked" && run.state !== "signed_off"
+        ? `Sign-off needs a theory check; this run is ${runStateLabels[run.state as RunState].toLowerCase()}.`
+        : null,
+    canCorrect: run.state === "signed_off" && (user.role === "lab_manager" || user.role === "technician"),
+  };
+}
+
+/** Everything the run record's own panels need, in one call for the run page's loader. */
+export async function getRunRecordParts(run: Run, user: CurrentUser) {
+  const [history, links, signOff] = await Promise.all([getRunHistory(run.id), getSupersedesLinks(run), getSignOffView(run, user)]);
+  return { history, links, signOff };
+}
+export type RunRecordParts = Awaited<ReturnType<typeof getRunRecordParts>>;
+
+function parseJson<T>(text: string | null): T | null {
+  if (!text) return null;
+  try {
+    return JSON.parse(text) as T;
+  } catch {
+    return null;
+  }
+}
+
+/** Ids of the calibration records kept with the run when it was logged. */
+export function calibrationIdsInForce(run: Pick<Run, "calibrationsInForce">): number[] {
+  const list = parseJson<unknown[]>(run.calibrationsInForce) ?? [];
+  return list
+    .map((c) => (typeof c === "number" ? c : c && typeof c === "object" && "id" in c ? Number((c as { id: unknown }).id) : NaN))
+    .filter((id) => Number.isInteger(id) && id > 0);
+}
+
+function serializeSetup(s: ViewSetup | null) {
+  if (!s) return null;
+  return {
+    id: s.id,
+    cameraId: s.cameraId,
+    centrePx: { x: s.centreXPx, y: s.centreYPx },
+    tankEdgePx: s.tankEdgeXPx !== null && s.tankEdgeYPx !== null && s.tankEdgeRPx !== null ? { x: s.tankEdgeXPx, y: s.tankEdgeYPx, r: s.tankEdgeRPx } : null,
+    scalePxPerM: s.scalePxPerM,
+    scalePoints: parseJson<unknown>(s.scalePoints),
+    mirrored: s.mirrored,
+    updatedAt: s.updatedAt.toISOString(),
+  };
+}
+
+function serializeCheck(c: TheoryCheck | null, withResult: boolean) {
+  if (!c) return null;
+  return {
+    id: c.id,
+    trackId: c.trackId,
+    verdict: c.verdict,
+    fMeasuredPerS: c.fMeasuredPerS,
+    fPredictedPerS: c.fPredictedPerS,
+    codeVersion: c.codeVersion,
+    createdAt: c.createdAt.toISOString(),
+    ...(withResult ? { result: parseJson<unknown>(c.result) } : {}),
+  };
+}
+
+/** The run as GET /api/v1/runs/:id returns it; export.json adds the full result and settings. */
+export async function getRunDetail(runId: number, opts: { full?: boolean } = {}) {
+  const run = await Run.findByPk(runId);
+  if (!run) return null;
+  const calibrationIds = calibrationIdsInForce(run);
+  const [equipment, technician, signedOffBy, frameCount, setup, job, tracks, check, calibrations, history, links] = await Promise.all([
+    Equipment.findAll({ where: { id: [run.tableId, run.tankId, run.cameraId] } }),
+    User.findByPk(run.technicianId, { attributes: ["id", "name", "email"] }),
+    run.signedOffById ? User.findByPk(run.signedOffById, { attributes: ["id", "name"] }) : null,
+    Frame.count({ where: { runId } }),
+    ViewSetup.findOne({ where: { runId } }),
+    TrackingJob.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] }),
+    Track.findAll({ where: { runId }, attributes: ["id", "number", "pointCount", "detectedShare", "jitterPx", "jobId"], order: [["number", "ASC"]] }),
+    TheoryCheck.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] }),
+    calibrationIds.length ? Calibration.findAll({ where: { id: { [Op.in]: calibrationIds } } }) : [],
+    getRunHistory(runId),
+    getSupersedesLinks(run),
+  ]);
+  const byId = new Map(equipment.map((e) => [e.id, serializeEquipment(e)]));
+  const now = Date.now();
+  return {
+    id: run.id,
+    label: runLabel(run.id),
+    state: run.state,
+    verdict: run.verdict,
+    conditions: {
+      setRateRpm: run.setRateRpm,
+      direction: run.direction,
+      waterDepthM: run.waterDepthM,
+      waterTemperatureC: run.waterTemperatureC,
+      rateReachedAt: run.rateReachedAt?.toISOString() ?? null,
+      cameraMode: run.cameraMode,
+      frameRateFps: run.frameRateFps,
+      tracer: run.tracer,
+    },
+    purpose: run.purpose,
+    notes: run.notes,
+    equipment: { table: byId.get(run.tableId) ?? null, tank: byId.get(run.tankId) ?? null, camera: byId.get(run.cameraId) ?? null },
+    technician: technician ? { id: technician.id, name: technician.name, email: technician.email } : null,
+    frames: { count: frameCount, widthPx: run.frameWidthPx, heightPx: run.frameHeightPx },
+    viewSetup: serializeSetup(setup),
+    latestTrackingJob: job
+      ? { id: job.id, state: job.state, framesDone: job.framesDone, framesTotal: job.framesTotal, error: job.error, startedAt: job.startedAt?.toISOString() ?? null, finishedAt: job.finishedAt?.toISOString() ?? null }
+      : null,
+    tracks: {
+      count: tracks.length,
+      items: tracks.map((t) => ({ id: t.id, number: t.number, jobId: t.jobId, pointCount: t.pointCount, detectedShare: t.detectedShare, jitterPx: t.jitterPx })),
+    },
+    latestTheoryCheck: serializeCheck(check, Boolean(opts.full)),
+    calibrationsInForce: {
+      ids: calibrationIds,
+      recorded: parseJson<unknown[]>(run.calibrationsInForce) ?? [],
+      records: calibrations.map((c) => ({
+        id: c.id,
+        kind: c.kind,
+        equipmentId: c.equipmentId,
+        performedAt: c.performedAt.toISOString(),
+        dueAt: c.dueAt.toISOString(),
+        expired: c.dueAt.getTime() < now,
+        passed: c.passed,
+        signedOffAt: c.signedOffAt?.toISOString() ?? null,
+      })),
+    },
+    signOff: { signedOffAt: run.signedOffAt?.toISOString() ?? null, signedOffBy: signedOffBy ? { id: signedOffBy.id, name: signedOffBy.name } : null },
+    supersedes: links.supersedes,
+    supersededBy: links.supersededBy,
+    history,
+    createdAt: run.createdAt.toISOString(),
+    updatedAt: run.updatedAt.toISOString(),
+  };
+}
+export type RunDetail = NonNullable<Awaited<ReturnType<typeof getRunDetail>>>;
+
+/** export.json: everything needed to reproduce the run's result, stamped with the code that made the file. */
+export async function getRunExport(runId: number) {
+  const detail = await getRunDetail(runId, { full: true });
+  if (!detail) return null;
+  const check = detail.latestTheoryCheck as (ReturnType<typeof serializeCheck> & { result?: { settings?: unknown } }) | null;
+  return {
+    format: "tankside-run-export",
+    formatVersion: 1,
+    exportedAt: new Date().toISOString(),
+    codeVersion,
+    run: {
+      id: detail.id,
+      label: detail.label,
+      state: detail.state,
+      verdict: detail.verdict,
+      purpose: detail.purpose,
+      notes: detail.notes,
+      createdAt: detail.createdAt,
+      technician: detail.technician,
+      supersedes: detail.supersedes,
+      supersededBy: detail.supersededBy,
+      signOff: detail.signOff,
+    },
+    conditions: detail.conditions,
+    equipment: detail.equipment,
+    frames: detail.frames,
+    viewSetup: detail.viewSetup,
+    calibrationIdsInForce: detail.calibrationsInForce.ids,
+    calibrationsInForce: detail.calibrationsInForce.records,
+    tracks: detail.tracks,
+    trackingJob: detail.latestTrackingJob,
+    settings: check?.result?.settings ?? null,
+    theoryCheck: check,
+    tracksCsv: `/api/v1/runs/${detail.id}/tracks.csv`,
+  };
+}

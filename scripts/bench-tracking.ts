@@ -5,7 +5,8 @@
  * object: frames, width, height, framesPerSecond, decodeOnlyFramesPerSecond, peakRssMB.
  */
 import { spawnSync } from "node:child_process";
-import { existsSync } from "node:fs";
+import { createHash } from "node:crypto";
+import { existsSync, readFileSync } from "node:fs";
 import { mkdir, readdir, rm, writeFile } from "node:fs/promises";
 import os from "node:os";
 import path from "node:path";
@@ -48,7 +49,13 @@ const setup: TrackingSetup = {
   tankEdge: { cx: 640, cy: 360, r: 335 },
   mirrored: false,
 };
-const cacheDir = path.join(root, "node_modules/.cache/tankside-bench/float-600-1280x720-v1");
+/** Keyed by the stack's description and the renderer's source, so a change to either renders anew. */
+const stackKey = createHash("sha256")
+  .update(JSON.stringify(spec))
+  .update(readFileSync(path.join(root, "app/lib/tracking/synthetic.ts")))
+  .digest("hex")
+  .slice(0, 12);
+const cacheDir = path.join(root, `node_modules/.cache/tankside-bench/float-600-1280x720-${stackKey}`);
 const doneMarker = path.join(cacheDir, "complete.json");
 
 function log(message: string): void {
@@ -56,7 +63,8 @@ function log(message: string): void {
 }
 
 async function render(): Promise<void> {
-  await rm(cacheDir, { recursive: true, force: true });
+  // Stacks of an older renderer or spec are of no further use.
+  await rm(path.dirname(cacheDir), { recursive: true, force: true });
   await mkdir(cacheDir, { recursive: true });
   await writeSyntheticStack(cacheDir, spec, { format: "jpeg", quality: 90 });
   await writeFile(doneMarker, JSON.stringify({ frames: spec.frames }));

@@ -61,12 +61,15 @@ let pool: TrackingPool | null = null;
 /**
  * The worker runs from its TypeScript source through tsx, so it imports the same library code as
  * the routes and the command line. A bundled server has no copy beside it: fall back to the
- * source tree under the working directory.
+ * source tree under the working directory. The name sits in a variable so that the bundler does
+ * not take `new URL(…, import.meta.url)` for an asset and copy the file away from its imports.
  */
+const workerName = "track-worker.ts";
+
 function workerFile(): string {
-  const beside = fileURLToPath(new URL("./track-worker.ts", import.meta.url));
+  const beside = path.join(path.dirname(fileURLToPath(import.meta.url)), workerName);
   if (existsSync(beside)) return beside;
-  const inSource = path.resolve(process.cwd(), "app/.server/tracking/track-worker.ts");
+  const inSource = path.resolve(process.cwd(), "app/.server/tracking", workerName);
   if (existsSync(inSource)) return inSource;
   throw new Error(`The tracking worker was not found at ${beside} or ${inSource}.`);
 }

@@ -250,16 +250,24 @@ export function createSyntheticRenderer(spec: SyntheticRunSpec): SyntheticRender
       }
       const data = new Uint8Array(w * h * 3);
       let state = (Math.imul(seed, 0x9e3779b1) ^ Math.imul(index + 1, 0x85ebca6b)) >>> 0 || 1;
-      for (let p = 0, q = 0; p < w * h; p++) {
+      for (let p = 0, q = 0; p < w * h; p++, q += 3) {
         const lit = light[p];
-        const shine = glare[p];
-        for (let c = 0; c < 3; c++, q++) {
-          state ^= state << 13;
-          state ^= state >>> 17;
-          state ^= state << 5;
-          const v = work[q] * lit + shine + noiseSigma * noise[(state >>> 0) & 0xffff];
-          data[q] = v <= 0 ? 0 : v >= 255 ? 255 : Math.round(v);
-        }
+        // + 0.5 so that truncating to a byte below rounds.
+        const shine = glare[p] + 0.5;
+        // Two xorshift steps give four 16-bit indices into the Gaussian table; three are used.
+        state ^= state << 13;
+        state ^= state >>> 17;
+        state ^= state << 5;
+        const first = state >>> 0;
+        state ^= state << 13;
+        state ^= state >>> 17;
+        state ^= state << 5;
+        const r = work[q] * lit + shine + noiseSigma * noise[first & 0xffff];
+        const g = work[q + 1] * lit + shine + noiseSigma * noise[first >>> 16];
+        const b = work[q + 2] * lit + shine + noiseSigma * noise[state & 0xffff];
+        data[q] = r <= 0 ? 0 : r >= 255 ? 255 : r | 0;
+        data[q + 1] = g <= 0 ? 0 : g >= 255 ? 255 : g | 0;
+        data[q + 2] = b <= 0 ? 0 : b >= 255 ? 255 : b | 0;
       }
       return { index, t, width: w, height: h, channels: 3, data, truth };
     },

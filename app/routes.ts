@@ -20,12 +20,24 @@ export default [
     route(":id/edit", "routes/equipment/edit.tsx", { id: "equipment-edit" }),
   ]),
 
+  ...prefix("runs", [
+    index("routes/runs/list.tsx"),
+    route("rows", "routes/runs/rows.ts"),
+    route(":id/sign-off", "routes/runs/sign-off.ts"),
+    route(":id/report", "routes/runs/report.tsx"),
+  ]),
+
   ...prefix("api/v1", [
     route("me", "routes/api/me.ts"),
     route("users", "routes/api/users.ts"),
     route("mail", "routes/api/mail.ts"),
     route("equipment", "routes/api/equipment.ts"),
     route("equipment/:id", "routes/api/equipment-item.ts"),
+    route("runs", "routes/api/runs.ts"),
+    route("runs/:id", "routes/api/run.ts"),
+    route("runs/:id/tracks.csv", "routes/api/run-tracks-csv.ts"),
+    route("runs/:id/export.json", "routes/api/run-export.ts"),
+    route("openapi.json", "routes/api/openapi.ts"),
     route("*", "routes/api/not-found.ts"),
   ]),
 

@@ -1,0 +1,35 @@
+import type { RunHistoryEntry } from "~/.server/runs/record";
+import { formatDateTime } from "~/lib/format";
+
+function value(v: string | null) {
+  return v === null || v === "" ? <span className="text-muted">(none)</span> : <span className="font-mono">{v}</span>;
+}
+
+/** Every change to the run, oldest first: who, when, which field, old → new. */
+export function RunHistoryList({ entries }: { entries: RunHistoryEntry[] }) {
+  if (!entries.length) return <p className="text-muted">No changes recorded.</p>;
+  return (
+    <table className="w-full text-left" data-testid="run-history">
+      <thead className="border-b-2 border-line-strong">
+        <tr>
+          <th scope="col" className="py-2 pr-3">When</th>
+          <th scope="col" className="py-2 pr-3">Who</th>
+          <th scope="col" className="py-2 pr-3">What</th>
+          <th scope="col" className="py-2">Change</th>
+        </tr>
+      </thead>
+      <tbody className="divide-y divide-line">
+        {entries.map((e) => (
+          <tr key={e.id}>
+            <td className="py-2 pr-3 whitespace-nowrap">{formatDateTime(e.at)}</td>
+            <td className="py-2 pr-3">{e.who?.name ?? "Tankside"}</td>
+            <td className="py-2 pr-3">{e.fieldLabel}</td>
+            <td className="py-2">
+              {e.field === "created" ? value(e.newValue) : <>{value(e.oldValue)} <span aria-label="changed to">→</span> {value(e.newValue)}</>}
+            </td>
+          </tr>
+        ))}
+      </tbody>
+    </table>
+  );
+}

@@ -1,0 +1,249 @@
+import { beforeAll, describe, expect, it } from "vitest";
+import { migrate, Run, RunHistory, TheoryCheck, Track, TrackingJob, ViewSetup } from "~/.server/db";
+import { createApiToken, revokeApiToken } from "~/.server/auth/api-tokens";
+import { createRun } from "~/.server/runs/service";
+import { signOffRun } from "~/.server/runs/record";
+import { runInput, seedRunLab, type RunLab } from "~/.server/runs/testing";
+import { loader as listLoader, action as createAction } from "./runs";
+import { loader as runLoader, action as runAction } from "./run";
+import { loader as csvLoader } from "./run-tracks-csv";
+import { loader as exportLoader } from "./run-export";
+
+let lab: RunLab;
+let techToken: string;
+let instructorToken: string;
+let managerToken: string;
+
+type Args = { request: Request; params: Record<string, string>; context: unknown };
+const call = async <T extends (args: never) => unknown>(fn: T, request: Request, params: Record<string, string> = {}): Promise<Response> => {
+  try {
+    return (await fn({ request, params, context: {} } satisfies Args as never)) as Response;
+  } catch (thrown) {
+    if (thrown instanceof Response) return thrown;
+    throw thrown;
+  }
+};
+const get = (path: string, token: string | null) =>
+  new Request(`http://localhost${path}`, { headers: token ? { Authorization: `Bearer ${token}` } : {} });
+const send = (method: string, path: string, token: string, body: unknown) =>
+  new Request(`http://localhost${path}`, { method, headers: { Authorization: `Bearer ${token}`, "Content-Type": "application/json" }, body: JSON.stringify(body) });
+
+async function checkedRun(overrides: Record<string, unknown> = {}) {
+  const run = await createRun(runInput(lab, overrides), lab.technician);
+  const job = await TrackingJob.create({ runId: run.id, state: "done", error: null, requestedById: lab.technician.id, startedAt: new Date(), finishedAt: new Date() });
+  await run.update({ state: "checked", verdict: "agrees" });
+  await TheoryCheck.create({ runId: run.id, trackId: null, verdict: "agrees", fMeasuredPerS: 2.1, fPredictedPerS: 2.09, result: JSON.stringify({ omega: 1.05, settings: { window: 9, polyOrder: 2, tolerance: 0.03 } }), codeVersion: "test", createdById: lab.technician.id });
+  return { run, job };
+}
+
+beforeAll(async () => {
+  await migrate();
+  lab = await seedRunLab();
+  techToken = (await createApiToken(lab.technician.id, "script")).token;
+  instructorToken = (await createApiToken(lab.instructor.id, "script")).token;
+  managerToken = (await createApiToken(lab.manager.id, "script")).token;
+  // 30 runs across two tables and two technicians, logged a day apart, to page and filter through.
+  for (let i = 0; i < 30; i++) {
+    const run = await createRun(
+      runInput(lab, {
+        tableId: i % 2 ? lab.tableB.id : lab.tableA.id,
+        setRateRpm: 5 + (i % 7),
+        purpose: i === 7 ? "Dye spiral with 50% glycerol" : `Float run ${i}`,
+        notes: i === 11 ? "Camera slipped; glycerol mix" : undefined,
+      }),
+      i % 3 ? lab.technician : lab.technician2,
+    );
+    await Run.update({ createdAt: new Date(Date.UTC(2025, 0, 1 + i, 10)), state: i % 5 === 0 ? "checked" : "draft", verdict: i % 5 === 0 ? (i % 10 ? "disagrees" : "agrees") : null }, { where: { id: run.id }, silent: true });
+  }
+});
+
+describe("GET /api/v1/runs", () => {
+  it("pages newest first with the total, and every item names its equipment and technician", async () => {
+    const res = await call(listLoader, get("/api/v1/runs?pageSize=10", techToken));
+    expect(res.status).toBe(200);
+    const body = await res.json();
+    expect(body.total).toBe(30);
+    expect(body.page).toBe(1);
+    expect(body.pageSize).toBe(10);
+    expect(body.items).toHaveLength(10);
+    const times = body.items.map((r: { createdAt: string }) => r.createdAt);
+    expect(times).toEqual([...times].sort().reverse());
+    expect(body.items[0]).toMatchObject({ table: { name: expect.stringMatching(/Bench table/) }, technician: { name: expect.any(String) } });
+  });
+
+  it("combines filters: table, technician, state, verdict, date range and text", async () => {
+    const q = async (s: string) => (await (await call(listLoader, get(`/api/v1/runs?${s}`, instructorToken))).json()) as { total: number; items: { id: number; purpose: string; verdict: string | null; table: { id: number } }[] };
+    expect((await q(`table=${lab.tableB.id}`)).total).toBe(15);
+    expect((await q(`technician=${lab.technician2.id}`)).total).toBe(10);
+    expect((await q("state=checked")).total).toBe(6);
+    expect((await q("verdict=disagrees")).items.every((r) => r.verdict === "disagrees")).toBe(true);
+    expect((await q("verdict=none")).total).toBe(24);
+    expect((await q("from=2025-01-05&to=2025-01-09")).total).toBe(5);
+    const text = await q("q=GLYCEROL");
+    expect(text.items.map((r) => r.purpose).sort()).toEqual(["Dye spiral with 50% glycerol", "Float run 11"]);
+    // % is a literal character, not a wildcard: "0%" matches only the purpose that has it.
+    expect((await q("q=0%25")).total).toBe(1);
+    expect((await q(`table=${lab.tableA.id}&state=checked`)).items.every((r) => r.table.id === lab.tableA.id)).toBe(true);
+  });
+
+  it("sorts by a column in either direction, ties broken by id", async () => {
+    const res = await call(listLoader, get("/api/v1/runs?sort=setRateRpm&dir=asc&pageSize=100", techToken));
+    const rates = (await res.json()).items.map((r: { setRateRpm: number }) => r.setRateRpm);
+    expect(rates).toEqual([...rates].sort((a: number, b: number) => a - b));
+  });
+
+  it("answers 400 with a clear message for an unknown filter or sort field, a malformed date and a page out of range", async () => {
+    for (const [query, text] of [
+      ["colour=red", /Unknown filter "colour"/],
+      ["sort=purpose", /sort must be one of/],
+      ["from=2025-13-01", /not a real calendar date/],
+      ["page=4&pageSize=10", /Page 4 is past the last page: 30 runs make 3 pages of 10/],
+      ["page=2&state=signed_off", /No runs match these filters, so there is only page 1/],
+    ] as const) {
+      const res = await call(listLoader, get(`/api/v1/runs?${query}`, techToken));
+      expect(res.status, query).toBe(400);
+      const body = await res.json();
+      expect(body.error.code).toBe("invalid_filter");
+      expect(body.error.message).toMatch(text);
+    }
+  });
+
+  it("answers 401 for no token, a wrong token and a revoked one", async () => {
+    expect((await call(listLoader, get("/api/v1/runs", null))).status).toBe(401);
+    const wrong = await call(listLoader, get("/api/v1/runs", "tks_not-a-real-token"));
+    expect(wrong.status).toBe(401);
+    expect((await wrong.json()).error.code).toBe("invalid_token");
+    const { token, row } = await createApiToken(lab.technician.id, "to revoke");
+    expect((await call(listLoader, get("/api/v1/runs", token))).status).toBe(200);
+    await revokeApiToken(lab.technician.id, row.id);
+    const revoked = await call(listLoader, get("/api/v1/runs", token));
+    expect(revoked.status).toBe(401);
+    expect((await revoked.json()).error.message).toMatch(/wrong, revoked or expired/);
+  });
+});
+
+describe("POST /api/v1/runs", () => {
+  it("logs a run for a technician: 201 with the run, stored in metres, with its history", async () => {
+    const res = await call(createAction, send("POST", "/api/v1/runs", techToken, runInput(lab, { waterDepthCm: 12.5, purpose: "Scripted run" })));
+    expect(res.status).toBe(201);
+    const run = await res.json();
+    expect(run).toMatchObject({ state: "draft", waterDepthM: 0.125, technicianId: lab.technician.id, purpose: "Scripted run" });
+    expect(res.headers.get("Location")).toBe(`/api/v1/runs/${run.id}`);
+    expect(await RunHistory.count({ where: { runId: run.id, field: "created" } })).toBe(1);
+  });
+
+  it("refuses an instructor (403), bad fields (422 per field) and unknown fields, saving nothing", async () => {
+    const before = await Run.count();
+    const instructor = await call(createAction, send("POST", "/api/v1/runs", instructorToken, runInput(lab)));
+    expect(instructor.status).toBe(403);
+    const bad = await call(createAction, send("POST", "/api/v1/runs", techToken, runInput(lab, { setRateRpm: -3, direction: "up" })));
+    expect(bad.status).toBe(422);
+    const body = await bad.json();
+    expect(body.error.fields.setRateRpm).toMatch(/above 0 rpm/);
+    expect(body.error.fields.direction).toMatch(/counterclockwise or clockwise/);
+    const extra = await call(createAction, send("POST", "/api/v1/runs", techToken, { ...runInput(lab), waterDepthM: 0.1 }));
+    expect(extra.status).toBe(422);
+    expect((await extra.json()).error.message).toMatch(/Unknown field: waterDepthM/);
+    const tooFast = await call(createAction, send("POST", "/api/v1/runs", techToken, runInput(lab, { setRateRpm: 45 })));
+    expect(tooFast.status).toBe(422);
+    expect((await tooFast.json()).error.fields.setRateRpm).toMatch(/rated to 30 rpm/);
+    expect(await Run.count()).toBe(before);
+  });
+});
+
+describe("GET and PATCH /api/v1/runs/:id", () => {
+  it("returns the run record with equipment, counts, latest job and check, and history", async () => {
+    const { run, job } = await checkedRun();
+    const res = await call(runLoader, get(`/api/v1/runs/${run.id}`, instructorToken), { id: String(run.id) });
+    expect(res.status).toBe(200);
+    const body = await res.json();
+    expect(body).toMatchObject({
+      id: run.id,
+      state: "checked",
+      equipment: { table: { name: "Bench table North" }, tank: { name: "Round tank 40" }, camera: { name: "Mast camera" } },
+      frames: { count: 0 },
+      latestTrackingJob: { id: job.id, state: "done" },
+      tracks: { count: 0 },
+      latestTheoryCheck: { verdict: "agrees", fMeasuredPerS: 2.1 },
+    });
+    expect(body.history[0]).toMatchObject({ field: "created", who: { name: "Ada Brightwater" } });
+    expect((await call(runLoader, get("/api/v1/runs/999999", techToken), { id: "999999" })).status).toBe(404);
+  });
+
+  it("changes a field and records old → new; a signed-off run answers 409 and keeps its values", async () => {
+    const { run } = await checkedRun();
+    const ok = await call(runAction, send("PATCH", `/api/v1/runs/${run.id}`, techToken, { waterTemperatureC: 22.5 }), { id: String(run.id) });
+    expect(ok.status).toBe(200);
+    expect((await ok.json()).waterTemperatureC).toBe(22.5);
+    const change = await RunHistory.findOne({ where: { runId: run.id, field: "waterTemperatureC" } });
+    expect([change?.oldValue, change?.newValue]).toEqual(["20", "22.5"]);
+
+    await signOffRun(run.id, lab.manager);
+    for (const token of [techToken, managerToken]) {
+      const refused = await call(runAction, send("PATCH", `/api/v1/runs/${run.id}`, token, { waterTemperatureC: 30 }), { id: String(run.id) });
+      expect(refused.status).toBe(409);
+      expect((await refused.json()).error).toMatchObject({ code: "run_signed_off", message: expect.stringMatching(/signed off and read-only/) });
+    }
+    await run.reload();
+    expect(run.waterTemperatureC).toBe(22.5);
+  });
+});
+
+describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
+  it("answers 409 with a clear message for a run with no tracks", async () => {
+    const run = await createRun(runInput(lab), lab.technician);
+    const res = await call(csvLoader, get(`/api/v1/runs/${run.id}/tracks.csv`, techToken), { id: String(run.id) });
+    expect(res.status).toBe(409);
+    const body = await res.json();
+    expect(body.error.code).toBe("no_tracks");
+    expect(body.error.message).toMatch(/has no tracks yet/);
+  });
+
+  it("writes pixel columns always, and rotating-frame metres once the view setup has a scale", async () => {
+    const { run, job } = await checkedRun();
+    const track = await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify([[0, 700, 300, 0], [0.5, 650, 250, 15]]), pointCount: 2, detectedShare: 1, jitterPx: 0.2 });
+    const csv = async () => {
+      const res = await call(csvLoader, get(`/api/v1/runs/${run.id}/tracks.csv`, techToken), { id: String(run.id) });
+      expect(res.status).toBe(200);
+      expect(res.headers.get("Content-Type")).toMatch(/^text\/csv/);
+      return (await res.text()).trim().split("\r\n");
+    };
+    expect(await csv()).toEqual(["track_id,t_s,x_px,y_px", `${track.id},0,700,300`, `${track.id},0.5,650,250`]);
+
+    // Co-rotating camera, centre (640, 360), 1000 px/m: x = (col − 640)/1000, y = −(row − 360)/1000.
+    await ViewSetup.create({ runId: run.id, cameraId: lab.camera.id, centreXPx: 640, centreYPx: 360, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: 1000, scalePoints: null, mirrored: false, createdById: lab.technician.id });
+    const lines = await csv();
+    expect(lines[0]).toBe("track_id,t_s,x_px,y_px,x_m,y_m");
+    const [, , , , xm, ym] = lines[2].split(",").map(Number);
+    expect(xm).toBeCloseTo(0.01, 9);
+    expect(ym).toBeCloseTo(0.11, 9);
+  });
+
+  it("de-rotates a lab-fixed camera's positions by −Ω(t − t₀) with the checked rate", async () => {
+    const { run, job } = await checkedRun({ cameraMode: "lab" });
+    // Ω = 1.05 rad/s from the stored check; after 0.5 s the frame has turned 0.525 rad.
+    await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify([[0, 740, 360, 0], [0.5, 740, 360, 15]]), pointCount: 2, detectedShare: 1, jitterPx: 0 });
+    await ViewSetup.create({ runId: run.id, cameraId: lab.camera.id, centreXPx: 640, centreYPx: 360, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: 1000, scalePoints: null, mirrored: false, createdById: lab.technician.id });
+    const text = await (await call(csvLoader, get(`/api/v1/runs/${run.id}/tracks.csv`, techToken), { id: String(run.id) })).text();
+    const [, , , , xm, ym] = text.trim().split("\r\n")[2].split(",").map(Number);
+    expect(xm).toBeCloseTo(0.1 * Math.cos(-0.525), 8);
+    expect(ym).toBeCloseTo(0.1 * Math.sin(-0.525), 8);
+  });
+
+  it("exports the run with conditions, equipment, calibration ids, settings, result and code version", async () => {
+    const { run } = await checkedRun();
+    await run.update({ calibrationsInForce: JSON.stringify([{ id: 41, kind: "rate" }, { id: 42, kind: "scale" }]) });
+    const res = await call(exportLoader, get(`/api/v1/runs/${run.id}/export.json`, instructorToken), { id: String(run.id) });
+    expect(res.status).toBe(200);
+    const body = await res.json();
+    expect(body).toMatchObject({
+      format: "tankside-run-export",
+      codeVersion: expect.stringMatching(/^0\.1\.0/),
+      conditions: { setRateRpm: 10, direction: "ccw", waterDepthM: 0.1, cameraMode: "rotating" },
+      equipment: { table: { id: lab.tableA.id } },
+      calibrationIdsInForce: [41, 42],
+      settings: { window: 9, polyOrder: 2, tolerance: 0.03 },
+      theoryCheck: { verdict: "agrees", result: { omega: 1.05 } },
+    });
+  });
+});

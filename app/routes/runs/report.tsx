@@ -1,0 +1,155 @@
+import type { ReactNode } from "react";
+import { data } from "react-router";
+import type { Route } from "./+types/report";
+import { requireUser } from "~/.server/auth/permissions";
+import { getRunDetail, getSignOffView, getRunHistory } from "~/.server/runs/record";
+import { Run } from "~/.server/db";
+import type { TheoryCheckResult } from "~/lib/analysis/check";
+import { Button } from "~/components/ui/button";
+import { RunExportLinks } from "~/components/run-record/run-export-links";
+import { RunHistoryList } from "~/components/run-record/run-history-list";
+import { SupersedesLinks } from "~/components/run-record/supersedes-links";
+import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
+import { formatDate, formatDateTime, formatNumber } from "~/lib/format";
+import { cameraModeLabels, directionLabels, tracerLabels } from "~/lib/runs";
+
+export const meta: Route.MetaFunction = ({ data: d }) => [{ title: d ? `${d.run.label} report · Tankside` : "Run report · Tankside" }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const user = await requireUser(request);
+  const runId = Number(params.id);
+  const model = Number.isInteger(runId) && runId > 0 ? await Run.findByPk(runId) : null;
+  if (!model) throw data("That run does not exist.", { status: 404 });
+  const [run, signOff, history] = await Promise.all([getRunDetail(runId, { full: true }), getSignOffView(model, user), getRunHistory(runId)]);
+  if (!run) throw data("That run does not exist.", { status: 404 });
+  const check = run.latestTheoryCheck as (NonNullable<typeof run.latestTheoryCheck> & { result?: TheoryCheckResult | null }) | null;
+  // The report needs the check's figures, not its plotted series: keep the page light.
+  const result = check?.result ? { ...check.result, series: undefined } : null;
+  return { run: { ...run, latestTheoryCheck: check ? { ...check, result } : null }, signOff, history, printedAt: new Date().toISOString() };
+}
+
+function Row({ label, children }: { label: string; children: ReactNode }) {
+  return (
+    <div className="grid grid-cols-[12rem_1fr] gap-3 border-b border-line py-1 print:grid-cols-[10rem_1fr]">
+      <dt className="font-bold">{label}</dt>
+      <dd>{children}</dd>
+    </div>
+  );
+}
+
+const pm = (v: number | null | undefined, se: number | null | undefined, unit: string) =>
+  v === null || v === undefined ? "—" : `${formatNumber(v)}${se !== null && se !== undefined ? ` ± ${formatNumber(se, 2)}` : ""} ${unit}`;
+
+export default function RunReport({ loaderData }: Route.ComponentProps) {
+  const { run, signOff, history, printedAt } = loaderData;
+  const c = run.conditions;
+  const check = run.latestTheoryCheck;
+  const r = check?.result ?? null;
+  return (
+    <article className="mx-auto max-w-4xl bg-sheet p-6 print:max-w-none print:p-0">
+      <div className="no-print mb-4 flex flex-wrap gap-3">
+        <Button type="button" onClick={() => window.print()}>Print this report</Button>
+        <RunExportLinks runId={run.id} hasTracks={run.tracks.count > 0} showReport={false} />
+      </div>
+
+      <header className="mb-4 border-b-2 border-ink pb-3">
+        <p className="text-sm text-muted">Tankside run report · printed {formatDateTime(printedAt)}</p>
+        <h1 className="flex flex-wrap items-center gap-3">
+          <span className="font-mono">{run.label}</span> <RunStateTag state={run.state} />
+        </h1>
+        <p className="mt-1">{run.purpose}</p>
+      </header>
+
+      <SupersedesLinks supersedes={run.supersedes} supersededBy={run.supersededBy} />
+
+      <section className="mt-4">
+        <h2 className="text-xl">Verdict</h2>
+        <div className="mt-2 flex flex-wrap items-center gap-3 text-lg">
+          <VerdictTag verdict={check?.verdict ?? null} />
+          {r?.reason ? <span>{r.reason}</span> : null}
+        </div>
+      </section>
+
+      <section className="mt-4">
+        <h2 className="text-xl">Conditions</h2>
+        <dl className="mt-2">
+          <Row label="Set rate">{formatNumber(c.setRateRpm)} rpm, {directionLabels[c.direction].toLowerCase()}</Row>
+          <Row label="Water">{formatNumber(c.waterDepthM * 100)} cm deep at {formatNumber(c.waterTemperatureC, 3)} °C</Row>
+          <Row label="Rate reached at">{formatDateTime(c.rateReachedAt)}</Row>
+          <Row label="Camera">{cameraModeLabels[c.cameraMode]}, {formatNumber(c.frameRateFps)} frames/s</Row>
+          <Row label="Tracer">{tracerLabels[c.tracer]}</Row>
+          <Row label="Logged">{formatDateTime(run.createdAt)} by {run.technician?.name ?? "—"}</Row>
+          {run.notes ? <Row label="Notes">{run.notes}</Row> : null}
+        </dl>
+      </section>
+
+      <section className="mt-4">
+        <h2 className="text-xl">Equipment and calibrations in force</h2>
+        <dl className="mt-2">
+          <Row label="Table">{run.equipment.table?.name ?? "—"}</Row>
+          <Row label="Tank">{run.equipment.tank?.name ?? "—"}</Row>
+          <Row label="Camera">{run.equipment.camera?.name ?? "—"}</Row>
+          <Row label="Calibrations">
+            {run.calibrationsInForce.records.length === 0 ? (
+              "None recorded when the run was logged."
+            ) : (
+              <ul>
+                {run.calibrationsInForce.records.map((cal) => (
+                  <li key={cal.id}>
+                    #{cal.id} {cal.kind} calibration, performed {formatDate(cal.performedAt)}, due {formatDate(cal.dueAt)}
+                    {cal.expired ? <strong> — expired</strong> : null}
+                  </li>
+                ))}
+              </ul>
+            )}
+          </Row>
+          <Row label="Frames">{run.frames.count} {run.frames.widthPx ? `(${run.frames.widthPx} × ${run.frames.heightPx} px)` : ""}</Row>
+          <Row label="Scale">{run.viewSetup?.scalePxPerM ? `${formatNumber(run.viewSetup.scalePxPerM)} px/m` : "No scale set"}</Row>
+          <Row label="Tracks">{run.tracks.count}</Row>
+        </dl>
+      </section>
+
+      <section className="mt-4 print-break">
+        <h2 className="text-xl">Theory check</h2>
+        {r ? (
+          <dl className="mt-2">
+            <Row label="f measured">{pm(r.fMeasured, r.fStdError, "s⁻¹")}</Row>
+            <Row label="f = 2Ω predicted">{pm(r.fPredicted, r.fPredictedStdError, "s⁻¹")} ({r.omegaSource})</Row>
+            <Row label="Ratio measured / predicted">{formatNumber(r.ratio)}</Row>
+            <Row label="Deflection">{r.deflection ? `to the ${r.deflection}` : "—"}</Row>
+            <Row label="Linear drag">{pm(r.drag, r.dragStdError, "s⁻¹")}</Row>
+            <Row label="Inertial circle">
+              {r.circle ? `${r.circle.radiusM !== null ? `${formatNumber(r.circle.radiusM * 100)} cm` : `${formatNumber(r.circle.radiusPx)} px`} radius, period ${formatNumber(r.circle.period)} s` : "—"}
+            </Row>
+            <Row label="Points used">{r.nPoints} ({r.nLeftOut} left out)</Row>
+            <Row label="Settings">tolerance {formatNumber(r.settings.tolerance * 100)} %, window {r.settings.window ?? "—"} frames, order {r.settings.polyOrder}</Row>
+            <Row label="Checked">{formatDateTime(check?.createdAt)} · code {check?.codeVersion}</Row>
+          </dl>
+        ) : (
+          <p className="mt-2 text-muted">No theory check yet.</p>
+        )}
+        {/* Plots slot: the theory-check plots from app/components/plots/ (track in the rotating frame,
+            Coriolis fit, residuals) render here once they exist, fed from the check's series. */}
+        <div data-slot="plots" />
+      </section>
+
+      <section className="mt-4">
+        <h2 className="text-xl">Sign-off</h2>
+        {signOff.state === "signed_off" ? (
+          <p className="mt-2">Signed off by <strong>{signOff.signedOffBy?.name}</strong> on {formatDateTime(signOff.signedOffAt)}.</p>
+        ) : (
+          <div className="mt-2">
+            <p>Not signed off.</p>
+            {/* Room for a hand signature when the paper copy is signed at the bench. */}
+            <p className="mt-8 hidden border-t border-ink pt-1 text-sm print:block">Lab manager's signature and date</p>
+          </div>
+        )}
+      </section>
+
+      <section className="mt-4">
+        <h2 className="text-xl">History</h2>
+        <RunHistoryList entries={history} />
+      </section>
+    </article>
+  );
+}

@@ -123,12 +123,21 @@ async function main(): Promise<void> {
   const times = files.map((_, i) => i / spec.fps);
   const sampler = rssSampler();
 
+  const decodeCpuBefore = process.cpuUsage();
   const decodeFps = await decodeOnly(files);
-  log(`decode only: ${decodeFps.toFixed(1)} frames/s`);
+  const decodeCpu = process.cpuUsage(decodeCpuBefore);
+  log(
+    `decode only: ${decodeFps.toFixed(1)} frames/s, ${((decodeCpu.user + decodeCpu.system) / 1000 / files.length).toFixed(1)} ms CPU a frame`,
+  );
 
   const started = performance.now();
+  const cpuBefore = process.cpuUsage();
   const result = await trackFrameStack({ files, times, setup });
   const seconds = (performance.now() - started) / 1000;
+  // CPU time of the whole process, workers included: a figure that other load on the machine
+  // does not change, unlike frames per second.
+  const cpu = process.cpuUsage(cpuBefore);
+  const cpuMsPerFrame = (cpu.user + cpu.system) / 1000 / files.length;
   const fps = files.length / seconds;
   await closeTrackingPool();
   const sampledPeak = sampler.stop();
@@ -139,6 +148,7 @@ async function main(): Promise<void> {
   const longest = result.tracks.reduce((a: Track, b: Track) => (b.points.length > a.points.length ? b : a));
   log(
     `tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${os.availableParallelism()} workers, block ${result.search.shrink} px), ` +
+      `${cpuMsPerFrame.toFixed(1)} ms CPU a frame, load average ${os.loadavg()[0].toFixed(1)}, ` +
       `${result.tracks.length} track(s), longest ${longest.points.length} points, ` +
       `frames detected ${(result.quality.framesDetectedShare * 100).toFixed(1)} %, jitter ${result.quality.jitterPx?.toFixed(3)} px`,
   );

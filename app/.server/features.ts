@@ -1,2 +1,3 @@
 // Each feature that runs work inside the server process registers it with onBoot() on import.
-export {};
+import "./jobs/tracking-queue";
+import "./calibration-reminders";

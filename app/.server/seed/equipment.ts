@@ -1,8 +1,8 @@
 import { Equipment } from "../db";
 import { addDemoStep } from "./demo";
 
-type Row = Parameters<typeof Equipment.create>[0];
-const base = { maker: null, model: null, serialNumber: null, notes: null, diameterM: null, maxRateRpm: null, flatTable: null, rateTolerancePct: null, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
+type Row = Partial<import("sequelize").InferCreationAttributes<Equipment>> & Pick<Equipment, "kind" | "name">;
+const base = { location: null, maker: null, model: null, serialNumber: null, notes: null, diameterM: null, maxRateRpm: null, flatTable: null, rateTolerancePct: null, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
 
 /** The invented lab's equipment. */
 export const demoEquipment: Row[] = [

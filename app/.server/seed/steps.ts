@@ -1,2 +1,3 @@
 // Importing this registers every feature's demo step with seedDemo(), in order.
 import "./equipment";
+import "./runs";

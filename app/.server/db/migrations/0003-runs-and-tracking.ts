@@ -94,6 +94,8 @@ export async function up({ context: qi }: { context: QueryInterface }) {
     started_at: { type: DataTypes.DATE, allowNull: true },
     finished_at: { type: DataTypes.DATE, allowNull: true },
     attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+    // Every frame before this one has its detections stored: a restarted job searches from here.
+    resume_from_frame: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
     ...timestamps,
   });
   await qi.addIndex("tracking_jobs", ["state"]);

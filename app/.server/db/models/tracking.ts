@@ -90,6 +90,7 @@ export class TrackingJob extends Model<InferAttributes<TrackingJob>, InferCreati
   declare startedAt: Date | null;
   declare finishedAt: Date | null;
   declare attempts: CreationOptional<number>;
+  declare resumeFromFrame: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -105,6 +106,7 @@ TrackingJob.init(
     startedAt: { type: DataTypes.DATE, allowNull: true },
     finishedAt: { type: DataTypes.DATE, allowNull: true },
     attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+    resumeFromFrame: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

@@ -1,0 +1,141 @@
+import type { Transaction } from "sequelize";
+import { Equipment, Run, RunHistory, sequelize } from "../db";
+import type { RunInput } from "~/lib/validation/run";
+import type { CurrentUser } from "../auth/permissions";
+import type { RunState } from "~/lib/runs";
+
+export class RunError extends Error {
+  constructor(
+    message: string,
+    readonly status = 400,
+    readonly field?: string,
+    readonly code = "invalid_run",
+  ) {
+    super(message);
+  }
+}
+
+/** Hook for the calibration records: returns what is in force for these items at this time. */
+type InForceLookup = (equipmentIds: number[], at: Date) => Promise<unknown[]>;
+let inForceLookup: InForceLookup = async () => [];
+export function setCalibrationsInForceLookup(fn: InForceLookup) {
+  inForceLookup = fn;
+}
+
+async function checkEquipment(input: RunInput, transaction?: Transaction) {
+  const [table, tank, camera] = await Promise.all(
+    [input.tableId, input.tankId, input.cameraId].map((id) => Equipment.findByPk(id, { transaction })),
+  );
+  const problems: { field: string; message: string }[] = [];
+  const expect = (item: Equipment | null, kind: string, field: string, word: string) => {
+    if (!item || item.kind !== kind) problems.push({ field, message: `Choose a ${word} from the register.` });
+    else if (item.status !== "in_service") problems.push({ field, message: `${item.name} is ${item.status.replace(/_/g, " ")}; choose one in service.` });
+  };
+  expect(table, "table", "tableId", "table");
+  expect(tank, "tank", "tankId", "tank");
+  expect(camera, "camera", "cameraId", "camera");
+  if (table?.maxRateRpm && input.setRateRpm > table.maxRateRpm) {
+    problems.push({ field: "setRateRpm", message: `${table.name} is rated to ${table.maxRateRpm} rpm; ${input.setRateRpm} rpm is above its maximum.` });
+  }
+  if (tank?.depthM && input.waterDepthCm / 100 > tank.depthM) {
+    problems.push({ field: "waterDepthCm", message: `${tank.name} is ${tank.depthM * 100} cm deep; ${input.waterDepthCm} cm of water would overflow it.` });
+  }
+  if (table?.diameterM && tank?.diameterM && tank.diameterM > table.diameterM * 1.05) {
+    problems.push({ field: "tankId", message: `${tank.name} (${tank.diameterM * 100} cm) is wider than ${table.name} (${table.diameterM * 100} cm).` });
+  }
+  return { table, tank, camera, problems };
+}
+
+export type FieldProblems = { field: string; message: string }[];
+
+export class RunValidationError extends Error {
+  constructor(readonly problems: FieldProblems) {
+    super(problems.map((p) => p.message).join(" "));
+  }
+}
+
+function columns(input: RunInput) {
+  return {
+    tableId: input.tableId,
+    tankId: input.tankId,
+    cameraId: input.cameraId,
+    setRateRpm: input.setRateRpm,
+    direction: input.direction,
+    waterDepthM: input.waterDepthCm / 100,
+    waterTemperatureC: input.waterTemperatureC,
+    rateReachedAt: input.rateReachedAt ?? null,
+    cameraMode: input.cameraMode,
+    frameRateFps: input.frameRateFps,
+    tracer: input.tracer,
+    purpose: input.purpose,
+    notes: input.notes ?? null,
+  };
+}
+
+export async function createRun(input: RunInput, user: CurrentUser) {
+  const { problems } = await checkEquipment(input);
+  if (problems.length) throw new RunValidationError(problems);
+  return sequelize.transaction(async (transaction) => {
+    if (input.supersedesId) {
+      const old = await Run.findByPk(input.supersedesId, { transaction });
+      if (!old) throw new RunError("The run this corrects does not exist.", 404, "supersedesId", "not_found");
+    }
+    const at = input.rateReachedAt ?? new Date();
+    const inForce = await inForceLookup([input.tableId, input.tankId, input.cameraId], at);
+    const run = await Run.create(
+      {
+        ...columns(input),
+        technicianId: user.id,
+        supersedesId: input.supersedesId ?? null,
+        signedOffById: null,
+        signedOffAt: null,
+        calibrationsInForce: JSON.stringify(inForce),
+        verdict: null,
+        frameWidthPx: null,
+        frameHeightPx: null,
+      },
+      { transaction },
+    );
+    await RunHistory.create({ runId: run.id, userId: user.id, field: "created", oldValue: null, newValue: input.supersedesId ? `correction of run ${input.supersedesId}` : "logged" }, { transaction });
+    return run;
+  });
+}
+
+export function canChangeRun(run: Run, user: CurrentUser) {
+  if (run.state === "signed_off") return false;
+  return user.role === "lab_manager" || (user.role === "technician" && run.technicianId === user.id);
+}
+
+export function assertCanChange(run: Run, user: CurrentUser) {
+  if (run.state === "signed_off") {
+    throw new RunError("This run is signed off and read-only. Log a correction as a new run linked to it.", 409, undefined, "run_signed_off");
+  }
+  if (!canChangeRun(run, user)) {
+    throw new RunError("Only the technician who logged this run, or a lab manager, can change it.", 403, undefined, "forbidden");
+  }
+}
+
+const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? v.toISOString() : String(v));
+
+export async function updateRun(runId: number, input: RunInput, user: CurrentUser) {
+  const run = await Run.findByPk(runId);
+  if (!run) throw new RunError("No such run.", 404, undefined, "not_found");
+  assertCanChange(run, user);
+  const { problems } = await checkEquipment(input);
+  if (problems.length) throw new RunValidationError(problems);
+  const next = columns(input);
+  await sequelize.transaction(async (transaction) => {
+    const changes = Object.entries(next).filter(([k, v]) => show(run.get(k as keyof Run)) !== show(v));
+    for (const [field, value] of changes) {
+      await RunHistory.create({ runId, userId: user.id, field, oldValue: show(run.get(field as keyof Run)), newValue: show(value) }, { transaction });
+    }
+    if (changes.length) await run.update(next, { transaction });
+  });
+  return run;
+}
+
+export async function setRunState(run: Run, state: RunState, userId: number | null, transaction?: Transaction) {
+  if (run.state === state) return;
+  await RunHistory.create({ runId: run.id, userId, field: "state", oldValue: run.state, newValue: state }, { transaction });
+  await run.update({ state }, { transaction });
+}

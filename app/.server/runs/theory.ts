@@ -1,0 +1,91 @@
+import { Equipment, Run, TheoryCheck, Track, ViewSetup, sequelize } from "../db";
+import { getLabSettings } from "../settings";
+import { codeVersion } from "../version";
+import { runTheoryCheck, type TheoryCheckInput, type TheoryCheckResult } from "~/lib/analysis/check";
+import { rpmToRadPerS } from "~/lib/analysis/units";
+import { setRunState } from "./service";
+
+export type RateInForce = { value: number; stdError: number; calibrationId: number } | null;
+/** Hook for the rate calibration in force: the true rate (rad/s, signed) at the run's set rate. */
+type RateLookup = (run: Run) => Promise<RateInForce>;
+let rateLookup: RateLookup = async () => null;
+export function setRateInForceLookup(fn: RateLookup) {
+  rateLookup = fn;
+}
+
+export function parseTrackPoints(track: Track) {
+  return (JSON.parse(track.points) as [number, number, number, number][]).map(([t, x, y, frameIndex]) => ({ t, x, y, frameIndex }));
+}
+
+export function signedOmega(run: Pick<Run, "setRateRpm" | "direction">) {
+  return rpmToRadPerS(run.setRateRpm) * (run.direction === "cw" ? -1 : 1);
+}
+
+/** Builds the theory-check input for a run's longest track: the same function the CLI and the browser call. */
+export async function theoryInputFor(run: Run): Promise<{ input: TheoryCheckInput; track: Track } | null> {
+  const tracks = await Track.findAll({ where: { runId: run.id }, order: [["pointCount", "DESC"]], limit: 1 });
+  const setup = await ViewSetup.findOne({ where: { runId: run.id } });
+  if (!tracks.length || !setup) return null;
+  const table = await Equipment.findByPk(run.tableId);
+  const settings = await getLabSettings();
+  const rate = await rateLookup(run);
+  const input: TheoryCheckInput = {
+    points: parseTrackPoints(tracks[0]),
+    setup: {
+      centre: { x: setup.centreXPx, y: setup.centreYPx },
+      pxPerM: setup.scalePxPerM,
+      mirrored: setup.mirrored,
+    },
+    omegaSet: signedOmega(run),
+    omegaCalibrated: rate ?? undefined,
+    cameraMode: run.cameraMode,
+    t0: 0,
+    flatTable: Boolean(table?.flatTable),
+    settings: { tolerance: settings.checkTolerancePct / 100 },
+  };
+  return { input, track: tracks[0] };
+}
+
+export interface StoredCheck {
+  id: number;
+  result: TheoryCheckResult;
+  input: Omit<TheoryCheckInput, "points"> & { trackId: number; pointCount: number };
+  codeVersion: string;
+  createdAt: string;
+}
+
+/** Runs the theory check on the run's longest track and stores it with what is needed to reproduce it. */
+export async function checkRun(runId: number, userId: number | null) {
+  const run = await Run.findByPk(runId);
+  if (!run) return null;
+  const prepared = await theoryInputFor(run);
+  if (!prepared) return null;
+  const result = runTheoryCheck(prepared.input);
+  const { points, ...rest } = prepared.input;
+  const stored = { result, input: { ...rest, trackId: prepared.track.id, pointCount: points.length } };
+  return sequelize.transaction(async (transaction) => {
+    const check = await TheoryCheck.create(
+      {
+        runId,
+        trackId: prepared.track.id,
+        verdict: result.verdict,
+        fMeasuredPerS: result.fMeasured,
+        fPredictedPerS: result.fPredicted,
+        result: JSON.stringify(stored),
+        codeVersion,
+        createdById: userId,
+      },
+      { transaction },
+    );
+    await run.update({ verdict: result.verdict }, { transaction });
+    if (run.state === "tracked") await setRunState(run, "checked", userId, transaction);
+    return check;
+  });
+}
+
+export async function latestCheck(runId: number): Promise<StoredCheck | null> {
+  const row = await TheoryCheck.findOne({ where: { runId }, order: [["id", "DESC"]] });
+  if (!row) return null;
+  const parsed = JSON.parse(row.result);
+  return { id: row.id, result: parsed.result, input: parsed.input, codeVersion: row.codeVersion, createdAt: row.createdAt.toISOString() };
+}

@@ -1,0 +1,237 @@
+import crypto from "node:crypto";
+import sharp from "sharp";
+import yauzl from "yauzl";
+import { orderBy } from "natural-orderby";
+import { Frame, Run, sequelize } from "../db";
+import { uploadLimits } from "~/lib/upload-limits";
+import { generatedName, removeQuietly, runFilePath, writeRunFile } from "./storage";
+import { setRunState } from "../runs/service";
+
+export interface AcceptedFrame {
+  name: string;
+  frameId: number;
+  position: number;
+  duplicate: boolean;
+}
+export interface RejectedFile {
+  name: string;
+  message: string;
+}
+export interface FrameUploadResult {
+  accepted: AcceptedFrame[];
+  rejected: RejectedFile[];
+  frameCount: number;
+}
+
+const extFor: Record<string, string> = { jpeg: "jpg", png: "png", tiff: "tif", webp: "webp" };
+
+export class UploadError extends Error {
+  constructor(
+    message: string,
+    readonly status = 400,
+    readonly code = "invalid_upload",
+  ) {
+    super(message);
+  }
+}
+
+/**
+ * Checks one image by its content: sharp must recognise an accepted format, the pixel count must
+ * stay under the decompression-bomb limit, and the whole image must decode (a truncated JPEG fails
+ * here). Returns the format, size and a small thumbnail made from the same decode.
+ */
+export async function inspectFrame(data: Buffer) {
+  if (data.length === 0) throw new UploadError("The file is empty.");
+  if (data.length > uploadLimits.maxFrameBytes) {
+    throw new UploadError(`The file is ${(data.length / 1e6).toFixed(1)} MB; one frame may be at most ${uploadLimits.maxFrameBytes / 1024 / 1024} MB.`, 413, "too_large");
+  }
+  let meta: Awaited<ReturnType<ReturnType<typeof sharp>["metadata"]>>;
+  try {
+    meta = await sharp(data, { limitInputPixels: uploadLimits.maxFramePixels }).metadata();
+  } catch (err) {
+    const msg = err instanceof Error ? err.message : String(err);
+    if (/pixel limit/i.test(msg)) throw new UploadError(`The image has more than ${uploadLimits.maxFramePixels / 1e6} million pixels; Tankside refuses it.`, 413, "too_many_pixels");
+    throw new UploadError("This is not an image Tankside can read (JPEG, PNG, TIFF or WebP).", 415, "not_an_image");
+  }
+  const format = meta.format ?? "";
+  if (!(uploadLimits.acceptedFormats as readonly string[]).includes(format)) {
+    throw new UploadError(`This is a ${format || "unknown"} file; frames must be JPEG, PNG, TIFF or WebP.`, 415, "unsupported_format");
+  }
+  const width = meta.width ?? 0;
+  const height = meta.height ?? 0;
+  if (width * height > uploadLimits.maxFramePixels) {
+    throw new UploadError(`The image is ${width} × ${height} px, over the ${uploadLimits.maxFramePixels / 1e6} million pixel limit.`, 413, "too_many_pixels");
+  }
+  let thumb: Buffer;
+  try {
+    thumb = await sharp(data, { limitInputPixels: uploadLimits.maxFramePixels, failOn: "truncated" })
+      .resize({ width: 240, withoutEnlargement: true })
+      .webp({ quality: 70 })
+      .toBuffer();
+  } catch {
+    throw new UploadError("The image is damaged or cut short and cannot be decoded.", 422, "damaged_image");
+  }
+  return { format, width, height, thumb };
+}
+
+function cleanName(name: string) {
+  const base = name.split(/[\\/]/).pop() ?? name;
+  return base.slice(0, 255) || "frame";
+}
+
+async function renumber(runId: number, transaction: import("sequelize").Transaction) {
+  const frames = await Frame.findAll({ where: { runId }, attributes: ["id", "originalName", "timeS", "position"], transaction });
+  // Frames cut from a video carry their time: order by it. Stacks from files go by natural name order (frame_2 before frame_10).
+  const ordered = orderBy(frames, [(f) => (f.timeS ?? Number.POSITIVE_INFINITY), (f) => f.originalName], ["asc", "asc"]);
+  for (let i = 0; i < ordered.length; i++) {
+    if (ordered[i].position !== i) await Frame.update({ position: i }, { where: { id: ordered[i].id }, transaction });
+  }
+  return ordered.length;
+}
+
+/** Stores one checked image as a frame of the run. Duplicate content is ignored, not stored twice. */
+async function addFrame(run: Run, originalName: string, data: Buffer, timeS: number | null): Promise<AcceptedFrame> {
+  const info = await inspectFrame(data);
+  const sha256 = crypto.createHash("sha256").update(data).digest("hex");
+  const existing = await Frame.findOne({ where: { runId: run.id, sha256 } });
+  if (existing) return { name: originalName, frameId: existing.id, position: existing.position, duplicate: true };
+
+  const storedName = generatedName(extFor[info.format]);
+  const thumbName = storedName.replace(/\.[a-z]+$/, ".thumb.webp");
+  const file = await writeRunFile(run.id, storedName, data);
+  const thumbFile = await writeRunFile(run.id, thumbName, info.thumb);
+  try {
+    return await sequelize.transaction(async (transaction) => {
+      await run.reload({ transaction });
+      if (run.frameCount >= uploadLimits.maxFramesPerRun) {
+        throw new UploadError(`This run already has ${uploadLimits.maxFramesPerRun} frames, the most one run may hold.`, 413, "too_many_frames");
+      }
+      if (run.frameWidthPx && (run.frameWidthPx !== info.width || run.frameHeightPx !== info.height)) {
+        throw new UploadError(`This frame is ${info.width} × ${info.height} px but the stack's frames are ${run.frameWidthPx} × ${run.frameHeightPx} px. One stack has one frame size.`, 422, "frame_size_mismatch");
+      }
+      const frame = await Frame.create(
+        { runId: run.id, position: run.frameCount, originalName, storedName, thumbName, sha256, format: info.format, widthPx: info.width, heightPx: info.height, sizeBytes: data.length, timeS },
+        { transaction },
+      );
+      const count = await renumber(run.id, transaction);
+      await run.update({ frameCount: count, frameWidthPx: info.width, frameHeightPx: info.height }, { transaction });
+      if (run.state === "draft") await setRunState(run, "frames_in", null, transaction);
+      await frame.reload({ transaction });
+      return { name: originalName, frameId: frame.id, position: frame.position, duplicate: false };
+    });
+  } catch (err) {
+    await removeQuietly(file);
+    await removeQuietly(thumbFile);
+    // Two uploads of the same content racing each other: the unique index decides, the loser is a duplicate.
+    if (err instanceof Error && err.name === "SequelizeUniqueConstraintError") {
+      const winner = await Frame.findOne({ where: { runId: run.id, sha256 } });
+      if (winner) return { name: originalName, frameId: winner.id, position: winner.position, duplicate: true };
+    }
+    throw err;
+  }
+}
+
+function isZip(data: Buffer) {
+  return data.length >= 4 && data[0] === 0x50 && data[1] === 0x4b && (data[2] === 0x03 || data[2] === 0x05) ;
+}
+
+function openZip(data: Buffer): Promise<yauzl.ZipFile> {
+  return new Promise((resolve, reject) =>
+    yauzl.fromBuffer(data, { lazyEntries: true, validateEntrySizes: true, strictFileNames: false }, (err, zip) => (err || !zip ? reject(err) : resolve(zip))),
+  );
+}
+
+function readEntry(zip: yauzl.ZipFile, entry: yauzl.Entry, budget: { left: number }): Promise<Buffer> {
+  return new Promise((resolve, reject) => {
+    zip.openReadStream(entry, (err, stream) => {
+      if (err || !stream) return reject(err ?? new Error("unreadable entry"));
+      const chunks: Buffer[] = [];
+      let size = 0;
+      stream.on("data", (chunk: Buffer) => {
+        size += chunk.length;
+        budget.left -= chunk.length;
+        // Counted while inflating, so a bomb is stopped by what it really unpacks to, not what it declares.
+        if (size > uploadLimits.maxFrameBytes || budget.left < 0) {
+          stream.destroy(new UploadError("The ZIP unpacks to more than Tankside accepts (a frame over 30 MB or over 2 GB in all).", 413, "zip_too_large"));
+          return;
+        }
+        chunks.push(chunk);
+      });
+      stream.on("error", reject);
+      stream.on("end", () => resolve(Buffer.concat(chunks)));
+    });
+  });
+}
+
+function safeEntryPath(name: string) {
+  return !(name.startsWith("/") || name.startsWith("\\") || /^[a-zA-Z]:/.test(name) || name.split(/[\\/]/).includes(".."));
+}
+
+async function addZip(run: Run, data: Buffer, result: FrameUploadResult, zipName: string) {
+  if (data.length > uploadLimits.maxZipBytes) throw new UploadError(`The ZIP is over ${uploadLimits.maxZipBytes / 1024 / 1024} MB.`, 413, "too_large");
+  let zip: yauzl.ZipFile;
+  try {
+    zip = await openZip(data);
+  } catch {
+    throw new UploadError("This ZIP is damaged and cannot be opened.", 422, "damaged_zip");
+  }
+  if (zip.entryCount > uploadLimits.maxZipEntries) {
+    zip.close();
+    throw new UploadError(`The ZIP has ${zip.entryCount} entries; at most ${uploadLimits.maxZipEntries} are accepted.`, 413, "zip_too_many_entries");
+  }
+  const entries: yauzl.Entry[] = [];
+  await new Promise<void>((resolve, reject) => {
+    zip.on("entry", (e: yauzl.Entry) => {
+      entries.push(e);
+      zip.readEntry();
+    });
+    zip.on("end", resolve);
+    zip.on("error", reject);
+    zip.readEntry();
+  }).catch(() => {
+    throw new UploadError("This ZIP is damaged and cannot be read to the end.", 422, "damaged_zip");
+  });
+  const declared = entries.reduce((s, e) => s + e.uncompressedSize, 0);
+  if (declared > uploadLimits.maxZipUnpackedBytes) {
+    throw new UploadError("The ZIP unpacks to more than 2 GB; Tankside refuses it.", 413, "zip_too_large");
+  }
+  const unsafe = entries.filter((e) => !safeEntryPath(e.fileName));
+  if (unsafe.length) {
+    throw new UploadError(`The ZIP has entries that point outside it (${unsafe[0].fileName}); nothing was taken from it.`, 422, "zip_unsafe_path");
+  }
+  const budget = { left: uploadLimits.maxZipUnpackedBytes };
+  const reopened = await openZip(data);
+  const files = entries.filter((e) => !e.fileName.endsWith("/") && !/(^|\/)(__MACOSX|\.)/.test(e.fileName));
+  const byName = new Map(files.map((e) => [e.fileName, e]));
+  const wanted = orderBy([...byName.keys()]);
+  for (const name of wanted) {
+    const entry = byName.get(name)!;
+    try {
+      const buf = await readEntry(reopened, entry, budget);
+      result.accepted.push(await addFrame(run, `${cleanName(name)}`, buf, null));
+    } catch (err) {
+      if (err instanceof UploadError) {
+        if (err.code === "zip_too_large" || err.code === "too_many_frames") {
+          result.rejected.push({ name: `${zipName}: ${name}`, message: err.message });
+          break;
+        }
+        result.rejected.push({ name: `${zipName}: ${name}`, message: err.message });
+      } else throw err;
+    }
+  }
+  reopened.close();
+}
+
+/** Takes one uploaded file (an image or a ZIP of images) for a run. */
+export async function receiveFrameFile(run: Run, file: File, timeS: number | null): Promise<FrameUploadResult> {
+  const data = Buffer.from(await file.arrayBuffer());
+  const name = cleanName(file.name);
+  const result: FrameUploadResult = { accepted: [], rejected: [], frameCount: 0 };
+  if (isZip(data)) await addZip(run, data, result, name);
+  else result.accepted.push(await addFrame(run, name, data, timeS));
+  await run.reload();
+  result.frameCount = run.frameCount;
+  return result;
+}
+
+export { runFilePath };

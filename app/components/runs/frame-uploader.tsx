@@ -1,0 +1,188 @@
+import { useEffect, useRef, useState } from "react";
+import Uppy from "@uppy/core";
+import XHRUpload from "@uppy/xhr-upload";
+import { useRevalidator } from "react-router";
+import { cutVideoIntoFrames } from "./video-frames";
+import { uploadLimits, acceptedFrameTypes } from "~/lib/upload-limits";
+import { Button } from "~/components/ui/button";
+
+type Meta = { timeS?: number; displayName?: string };
+type Outcome = { id: string; name: string; state: "waiting" | "sent" | "duplicate" | "rejected"; message?: string };
+
+interface ResponseBody {
+  accepted?: { name: string; duplicate: boolean }[];
+  rejected?: { name: string; message: string }[];
+  error?: { message: string };
+  frameCount?: number;
+  [key: string]: unknown;
+}
+
+/**
+ * Tankside's own drop zone on Uppy: one file per request to the frame route. Images and ZIPs go
+ * as they are; a video is first cut into frames here in the browser.
+ */
+export function FrameUploader({ runId, frameRate, disabled }: { runId: number; frameRate: number; disabled?: boolean }) {
+  const revalidator = useRevalidator();
+  const [uppy] = useState(() =>
+    new Uppy<Meta, ResponseBody>({ autoProceed: false, allowMultipleUploadBatches: true }).use(XHRUpload, {
+      endpoint: `/api/v1/runs/${runId}/frames`,
+      fieldName: "file",
+      formData: true,
+      limit: 2,
+      allowedMetaFields: ["timeS"],
+      timeout: 0,
+    }),
+  );
+  const [outcomes, setOutcomes] = useState<Outcome[]>([]);
+  const [busy, setBusy] = useState(false);
+  const [cutting, setCutting] = useState<{ name: string; done: number; total: number } | null>(null);
+  const [problem, setProblem] = useState<string | null>(null);
+  const [over, setOver] = useState(false);
+  const input = useRef<HTMLInputElement>(null);
+
+  useEffect(() => {
+    const update = (id: string, patch: Partial<Outcome>) => setOutcomes((list) => list.map((o) => (o.id === id ? { ...o, ...patch } : o)));
+    const onSuccess = (file: { id: string } | undefined, response: { body?: ResponseBody; status: number }) => {
+      if (!file) return;
+      const body = response.body ?? {};
+      const rejected = body.rejected ?? [];
+      const accepted = body.accepted ?? [];
+      const dup = accepted.length > 0 && accepted.every((a) => a.duplicate);
+      update(file.id, {
+        state: dup ? "duplicate" : "sent",
+        message: dup
+          ? "Already in the stack; ignored."
+          : rejected.length
+            ? `${accepted.length} frame(s) taken; ${rejected.length} refused: ${rejected.map((r) => `${r.name} — ${r.message}`).join("; ")}`
+            : accepted.length > 1
+              ? `${accepted.length} frames taken from the ZIP.`
+              : undefined,
+      });
+    };
+    const onError = (file: { id: string } | undefined, error: { message?: string }, response?: { body?: ResponseBody; status: number }) => {
+      if (!file) return;
+      update(file.id, { state: "rejected", message: response?.body?.error?.message ?? error?.message ?? "Refused." });
+    };
+    const onComplete = () => {
+      setBusy(false);
+      uppy.clear();
+      revalidator.revalidate();
+    };
+    uppy.on("upload-success", onSuccess);
+    uppy.on("upload-error", onError);
+    uppy.on("complete", onComplete);
+    return () => {
+      uppy.off("upload-success", onSuccess);
+      uppy.off("upload-error", onError);
+      uppy.off("complete", onComplete);
+    };
+  }, [uppy, revalidator]);
+
+  useEffect(() => () => uppy.destroy(), [uppy]);
+
+  async function take(files: File[]) {
+    setProblem(null);
+    if (!files.length) return;
+    setBusy(true);
+    const queued: Outcome[] = [];
+    try {
+      for (const file of files) {
+        if (file.type.startsWith("video/")) {
+          setCutting({ name: file.name, done: 0, total: 0 });
+          const frames = await cutVideoIntoFrames(file, frameRate, uploadLimits.maxFramesPerRun, (done, total) => setCutting({ name: file.name, done, total }));
+          setCutting(null);
+          for (const f of frames) {
+            const id = uppy.addFile({ name: f.file.name, type: "image/jpeg", data: f.file, meta: { timeS: f.timeS } });
+            queued.push({ id, name: f.file.name, state: "waiting" });
+          }
+        } else {
+          const id = uppy.addFile({ name: file.name, type: file.type || "application/octet-stream", data: file, meta: {} });
+          queued.push({ id, name: file.name, state: "waiting" });
+        }
+      }
+      setOutcomes((list) => [...queued, ...list].slice(0, 500));
+      await uppy.upload();
+    } catch (err) {
+      setCutting(null);
+      setBusy(false);
+      setProblem(err instanceof Error ? err.message : String(err));
+    }
+  }
+
+  const sent = outcomes.filter((o) => o.state === "sent").length;
+  const rejected = outcomes.filter((o) => o.state === "rejected");
+  const waiting = outcomes.filter((o) => o.state === "waiting").length;
+
+  return (
+    <div className="flex flex-col gap-3">
+      <div
+        onDragOver={(e) => {
+          e.preventDefault();
+          setOver(true);
+        }}
+        onDragLeave={() => setOver(false)}
+        onDrop={(e) => {
+          e.preventDefault();
+          setOver(false);
+          if (!disabled && !busy) void take([...e.dataTransfer.files]);
+        }}
+        className={`flex flex-col items-center gap-3 rounded-card border-4 border-dashed p-8 text-center ${over ? "border-tank-600 bg-tank-50" : "border-line-strong bg-paper"}`}
+        data-testid="frame-drop-zone"
+      >
+        <p className="text-lg font-bold">Drop the frame stack here</p>
+        <p className="text-muted">
+          JPEG, PNG, TIFF or WebP frames, a ZIP of them, or a video (cut into frames here at {frameRate} frames/s). Frames are ordered by
+          name: frame_2 comes before frame_10.
+        </p>
+        <input
+          ref={input}
+          type="file"
+          multiple
+          accept={[...acceptedFrameTypes, "video/*"].join(",")}
+          className="sr-only"
+          aria-label="Choose frames, a ZIP or a video"
+          onChange={(e) => {
+            void take([...(e.target.files ?? [])]);
+            e.target.value = "";
+          }}
+          disabled={disabled || busy}
+        />
+        <Button type="button" tone="plain" onClick={() => input.current?.click()} disabled={disabled || busy}>
+          Choose files
+        </Button>
+      </div>
+      {cutting ? (
+        <div>
+          <p>
+            Cutting {cutting.name} into frames… {cutting.done} of {cutting.total || "?"}
+          </p>
+          <progress className="h-4 w-full" max={cutting.total || 1} value={cutting.done} />
+        </div>
+      ) : null}
+      {outcomes.length ? (
+        <div aria-live="polite">
+          <p className="font-bold">
+            {waiting ? `Sending ${waiting} file(s)… ` : ""}
+            {sent} sent
+            {rejected.length ? `, ${rejected.length} refused` : ""}
+          </p>
+          {busy ? <progress className="h-4 w-full" max={outcomes.length} value={outcomes.length - waiting} /> : null}
+          <ul className="mt-2 flex max-h-64 flex-col gap-1 overflow-auto" data-testid="upload-outcomes">
+            {outcomes
+              .filter((o) => o.state !== "sent" || o.message)
+              .map((o) => (
+                <li key={o.id} className={o.state === "rejected" ? "font-bold text-disagrees-ink" : "text-muted"}>
+                  {o.name}: {o.state === "waiting" ? "waiting" : o.message}
+                </li>
+              ))}
+          </ul>
+        </div>
+      ) : null}
+      {problem ? (
+        <p role="alert" className="font-bold text-disagrees-ink">
+          {problem}
+        </p>
+      ) : null}
+    </div>
+  );
+}

@@ -1,0 +1,60 @@
+import type { Route } from "./+types/run-frames";
+import { requireRole, requireUser } from "~/.server/auth/permissions";
+import { apiError } from "~/.server/http";
+import { loadRun, requireChangeable } from "~/.server/runs/access";
+import { receiveFrameFile, UploadError } from "~/.server/uploads/frames";
+import { Frame } from "~/.server/db";
+import { uploadLimits } from "~/lib/upload-limits";
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  await requireUser(request);
+  const run = await loadRun(request, params.runId);
+  const frames = await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] });
+  return Response.json({
+    frameCount: frames.length,
+    width: run.frameWidthPx,
+    height: run.frameHeightPx,
+    frames: frames.map((f) => ({ id: f.id, position: f.position, name: f.originalName, timeS: f.timeS, format: f.format, sizeBytes: f.sizeBytes })),
+  });
+}
+
+/** One file per request (Uppy sends each file on its own): an image, or a ZIP of images. */
+export async function action({ request, params }: Route.ActionArgs) {
+  if (request.method !== "POST") return apiError(405, "method_not_allowed", "Send frames with POST.");
+  const user = await requireRole(request, "technician", "lab_manager");
+  const run = await loadRun(request, params.runId);
+  requireChangeable(request, run, user);
+
+  const length = Number(request.headers.get("Content-Length") ?? 0);
+  if (length > uploadLimits.maxZipBytes + 1024 * 1024) {
+    return apiError(413, "too_large", `The upload is over ${uploadLimits.maxZipBytes / 1024 / 1024} MB.`);
+  }
+  if (!(request.headers.get("Content-Type") ?? "").includes("multipart/form-data")) {
+    return apiError(415, "unsupported_media_type", "Send the frame as multipart/form-data with the field `file`.");
+  }
+  let form: FormData;
+  try {
+    form = await request.formData();
+  } catch {
+    return apiError(400, "invalid_multipart", "The upload could not be read as multipart form data.");
+  }
+  const file = form.get("file");
+  if (!(file instanceof File)) return apiError(400, "missing_file", "Put the frame in the multipart field `file`.");
+  const rawTime = form.get("timeS");
+  let timeS: number | null = null;
+  if (typeof rawTime === "string" && rawTime !== "") {
+    timeS = Number(rawTime);
+    if (!Number.isFinite(timeS) || timeS < 0) return apiError(400, "invalid_time", "timeS must be a time in seconds, 0 or more.");
+  }
+  try {
+    const result = await receiveFrameFile(run, file, timeS);
+    if (result.accepted.length === 0 && result.rejected.length > 0) {
+      return Response.json({ error: { code: "no_frames_accepted", message: result.rejected[0].message }, ...result }, { status: 422 });
+    }
+    const allDuplicates = result.accepted.length > 0 && result.accepted.every((a) => a.duplicate);
+    return Response.json(result, { status: allDuplicates ? 200 : 201 });
+  } catch (err) {
+    if (err instanceof UploadError) return apiError(err.status, err.code, `${file.name}: ${err.message}`);
+    throw err;
+  }
+}

@@ -1,0 +1,196 @@
+import { Form, data, redirect, useNavigation } from "react-router";
+import { getFormProps, useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
+import { useState } from "react";
+import type { Route } from "./+types/edit";
+import { requireRole } from "~/.server/auth/permissions";
+import { listEquipment, serializeEquipment } from "~/.server/equipment";
+import { createRun, RunError, RunValidationError, updateRun } from "~/.server/runs/service";
+import { loadRun, requireChangeable } from "~/.server/runs/access";
+import { getLabSettings } from "~/.server/settings";
+import { runSchema } from "~/lib/validation/run";
+import { cameraModeLabels, directionLabels, runLabel, tracerLabels } from "~/lib/runs";
+import { Button } from "~/components/ui/button";
+import { Card, PageHeader } from "~/components/ui/card";
+import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
+import { Notice } from "~/components/ui/notice";
+import { RunConditionsPanel } from "~/components/run-conditions-panel";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.run ? `Edit ${runLabel(data.run.id)}` : "Log a run"} · Tankside` }];
+
+/** One module for /runs/new (log a run, or a correction with ?supersedes=) and /runs/:id/edit. */
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const user = await requireRole(request, "technician", "lab_manager");
+  const equipment = (await listEquipment({ inServiceOnly: true })).map(serializeEquipment);
+  const settings = await getLabSettings();
+  const url = new URL(request.url);
+  let run = null;
+  let template = null;
+  if (params.id) {
+    const found = await loadRun(request, params.id);
+    requireChangeable(request, found, user);
+    run = found.get({ plain: true });
+  } else if (url.searchParams.get("supersedes")) {
+    const old = await loadRun(request, url.searchParams.get("supersedes") ?? undefined);
+    template = old.get({ plain: true });
+  }
+  return { equipment, run, template, spinUpTimesToWait: settings.spinUpTimesToWait };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const user = await requireRole(request, "technician", "lab_manager");
+  const submission = parseWithZod(await request.formData(), { schema: runSchema });
+  if (submission.status !== "success") return data(submission.reply(), { status: 400 });
+  try {
+    if (params.id) {
+      const run = await loadRun(request, params.id);
+      requireChangeable(request, run, user);
+      await updateRun(run.id, submission.value, user);
+      return redirect(`/runs/${run.id}`);
+    }
+    const run = await createRun(submission.value, user);
+    return redirect(`/runs/${run.id}`);
+  } catch (err) {
+    if (err instanceof RunValidationError) {
+      const fieldErrors: Record<string, string[]> = {};
+      for (const p of err.problems) (fieldErrors[p.field] ??= []).push(p.message);
+      return data(submission.reply({ fieldErrors }), { status: 400 });
+    }
+    if (err instanceof RunError) return data(submission.reply({ formErrors: [err.message] }), { status: err.status });
+    throw err;
+  }
+}
+
+function toLocalInput(value: Date | string | null | undefined) {
+  if (!value) return "";
+  const d = new Date(value);
+  const pad = (n: number) => String(n).padStart(2, "0");
+  return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}T${pad(d.getHours())}:${pad(d.getMinutes())}`;
+}
+
+type Choice = { value: string; label: string };
+function Choices({ name, legend, choices, defaultValue, error, onChange }: { name: string; legend: string; choices: Choice[]; defaultValue?: string; error?: string[]; onChange?: (v: string) => void }) {
+  return (
+    <fieldset className="flex flex-col gap-2">
+      <legend className="mb-1 font-bold">{legend}</legend>
+      {choices.map((c) => (
+        <label key={c.value} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border-2 border-line px-3 has-[:checked]:border-tank-600 has-[:checked]:bg-tank-50">
+          <input type="radio" name={name} value={c.value} defaultChecked={defaultValue === c.value} className="h-5 w-5" onChange={() => onChange?.(c.value)} />
+          {c.label}
+        </label>
+      ))}
+      {error?.length ? <p className="text-sm font-bold text-disagrees-ink" role="alert">{error[0]}</p> : null}
+    </fieldset>
+  );
+}
+
+export default function RunForm({ loaderData, actionData }: Route.ComponentProps) {
+  const { equipment, run, template } = loaderData;
+  const source = run ?? template;
+  const navigation = useNavigation();
+  const [form, fields] = useForm({
+    lastResult: actionData,
+    shouldValidate: "onBlur",
+    shouldRevalidate: "onInput",
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: runSchema }),
+  });
+  const tables = equipment.filter((e) => e.kind === "table");
+  const tanks = equipment.filter((e) => e.kind === "tank");
+  const cameras = equipment.filter((e) => e.kind === "camera");
+  const [live, setLive] = useState({
+    tableId: String(source?.tableId ?? tables[0]?.id ?? ""),
+    tankId: String(source?.tankId ?? tanks[0]?.id ?? ""),
+    rpm: String(source?.setRateRpm ?? ""),
+    direction: source?.direction ?? "ccw",
+    depthCm: source ? String(Number((source.waterDepthM * 100).toPrecision(6))) : "",
+    temperatureC: String(source?.waterTemperatureC ?? ""),
+    rateReachedAt: run ? toLocalInput(run.rateReachedAt) : "",
+  });
+  const [reachedIso, setReachedIso] = useState(run?.rateReachedAt ? new Date(run.rateReachedAt).toISOString() : "");
+  const table = tables.find((t) => String(t.id) === live.tableId) ?? null;
+  const tank = tanks.find((t) => String(t.id) === live.tankId) ?? null;
+  const title = run ? `Edit ${runLabel(run.id)}` : template ? `Log a correction of ${runLabel(template.id)}` : "Log a run";
+
+  return (
+    <div>
+      <PageHeader title={title} subtitle="The conditions that matter for the theory check. Lengths in cm, rates in rpm." />
+      {template ? (
+        <div className="mb-4">
+          <Notice kind="info" title={`This run corrects ${runLabel(template.id)}`}>
+            The conditions are copied from it; change what was wrong. Both runs will show the link.
+          </Notice>
+        </div>
+      ) : null}
+      <div className="grid gap-6 xl:grid-cols-[1.6fr_1fr]">
+        <Card>
+          <Form method="post" className="grid gap-5 md:grid-cols-2" {...getFormProps(form)}>
+            {form.errors?.length ? (
+              <div className="md:col-span-2">
+                <Notice kind="error">{form.errors[0]}</Notice>
+              </div>
+            ) : null}
+            {template ? <input type="hidden" name="supersedesId" value={template.id} /> : null}
+            <SelectField label="Table" name="tableId" defaultValue={live.tableId} error={fields.tableId.errors} onChange={(e) => setLive({ ...live, tableId: e.target.value })}>
+              {tables.map((t) => (
+                <option key={t.id} value={t.id}>{t.name} (up to {t.maxRateRpm} rpm)</option>
+              ))}
+            </SelectField>
+            <SelectField label="Tank" name="tankId" defaultValue={live.tankId} error={fields.tankId.errors} onChange={(e) => setLive({ ...live, tankId: e.target.value })}>
+              {tanks.map((t) => (
+                <option key={t.id} value={t.id}>{t.name} ({(t.diameterM ?? 0) * 100} cm × {(t.depthM ?? 0) * 100} cm)</option>
+              ))}
+            </SelectField>
+            <SelectField label="Camera" name="cameraId" defaultValue={String(source?.cameraId ?? cameras[0]?.id ?? "")} error={fields.cameraId.errors}>
+              {cameras.map((c) => (
+                <option key={c.id} value={c.id}>{c.name} ({c.resolutionWidthPx}×{c.resolutionHeightPx}, {c.nominalFrameRateFps} frames/s)</option>
+              ))}
+            </SelectField>
+            <TextField label="Set rate" name="setRateRpm" unit="rpm" inputMode="decimal" defaultValue={live.rpm} error={fields.setRateRpm.errors} onChange={(e) => setLive({ ...live, rpm: e.target.value })} />
+            <Choices name="direction" legend="Direction" defaultValue={live.direction} error={fields.direction.errors} onChange={(v) => setLive({ ...live, direction: v as "ccw" | "cw" })} choices={[{ value: "ccw", label: directionLabels.ccw }, { value: "cw", label: directionLabels.cw }]} />
+            <Choices name="cameraMode" legend="Camera position" defaultValue={source?.cameraMode ?? "rotating"} error={fields.cameraMode.errors} choices={[{ value: "rotating", label: cameraModeLabels.rotating }, { value: "lab", label: cameraModeLabels.lab }]} />
+            <TextField label="Water depth (at rest)" name="waterDepthCm" unit="cm" inputMode="decimal" defaultValue={live.depthCm} error={fields.waterDepthCm.errors} onChange={(e) => setLive({ ...live, depthCm: e.target.value })} />
+            <TextField label="Water temperature" name="waterTemperatureC" unit="°C" inputMode="decimal" defaultValue={live.temperatureC} error={fields.waterTemperatureC.errors} onChange={(e) => setLive({ ...live, temperatureC: e.target.value })} />
+            <div className="flex flex-col gap-1">
+              <TextField
+                label="Table reached its rate at"
+                name="rateReachedAtLocal"
+                type="datetime-local"
+                defaultValue={live.rateReachedAt}
+                error={fields.rateReachedAt.errors}
+                hint="Spin-up is counted from here."
+                onChange={(e) => {
+                  setLive({ ...live, rateReachedAt: e.target.value });
+                  const d = new Date(e.target.value);
+                  setReachedIso(Number.isNaN(d.getTime()) ? "" : d.toISOString());
+                }}
+              />
+              <input type="hidden" name="rateReachedAt" value={reachedIso} />
+            </div>
+            <TextField label="Frame rate" name="frameRateFps" unit="frames/s" inputMode="decimal" defaultValue={String(source?.frameRateFps ?? cameras[0]?.nominalFrameRateFps ?? "")} error={fields.frameRateFps.errors} />
+            <Choices name="tracer" legend="Tracer" defaultValue={source?.tracer ?? "float"} error={fields.tracer.errors} choices={[{ value: "float", label: `${tracerLabels.float} (bright spot on the surface)` }, { value: "dye", label: `${tracerLabels.dye} (coloured patch)` }]} />
+            <div className="md:col-span-2">
+              <TextField label="Purpose" name="purpose" maxLength={300} defaultValue={source?.purpose ?? ""} error={fields.purpose.errors} placeholder="e.g. Inertial circles demonstration for the second-year class" />
+            </div>
+            <div className="md:col-span-2">
+              <TextAreaField label="Notes" name="notes" defaultValue={source?.notes ?? ""} error={fields.notes.errors} />
+            </div>
+            <div className="md:col-span-2">
+              <Button type="submit" disabled={navigation.state === "submitting"}>{run ? "Save changes" : "Log the run"}</Button>
+            </div>
+          </Form>
+        </Card>
+        <RunConditionsPanel
+          rpm={Number(live.rpm)}
+          direction={live.direction}
+          depthCm={Number(live.depthCm)}
+          temperatureC={live.temperatureC === "" ? Number.NaN : Number(live.temperatureC)}
+          tankRadiusM={tank?.diameterM ? tank.diameterM / 2 : null}
+          tankDepthM={tank?.depthM ?? null}
+          tableMaxRpm={table?.maxRateRpm ?? null}
+          rateReachedAt={live.rateReachedAt ? new Date(live.rateReachedAt) : null}
+          spinUpTimesToWait={loaderData.spinUpTimesToWait}
+        />
+      </div>
+    </div>
+  );
+}

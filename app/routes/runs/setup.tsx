@@ -1,0 +1,104 @@
+import { Form, data, redirect } from "react-router";
+import { parseWithZod } from "@conform-to/zod/v4";
+import type { Route } from "./+types/setup";
+import { requireRole } from "~/.server/auth/permissions";
+import { Frame, ViewSetup } from "~/.server/db";
+import { loadRun, requireChangeable } from "~/.server/runs/access";
+import { viewSetupSchema } from "~/lib/validation/view-setup";
+import { runLabel } from "~/lib/runs";
+import { Button, ButtonLink } from "~/components/ui/button";
+import { Card, PageHeader } from "~/components/ui/card";
+import { Notice } from "~/components/ui/notice";
+import { ViewSetupEditor, type SetupValues } from "~/components/runs/view-setup-editor";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `View setup ${data ? runLabel(data.runId) : ""} · Tankside` }];
+
+function toValues(s: ViewSetup): SetupValues {
+  let scalePoints: SetupValues["scalePoints"] = null;
+  try {
+    scalePoints = s.scalePoints ? JSON.parse(s.scalePoints) : null;
+  } catch {
+    scalePoints = null;
+  }
+  const scalePx = scalePoints ? Math.hypot(scalePoints[0].x - scalePoints[1].x, scalePoints[0].y - scalePoints[1].y) : null;
+  return {
+    centre: { x: s.centreXPx, y: s.centreYPx },
+    edge: s.tankEdgeRPx && s.tankEdgeXPx !== null && s.tankEdgeYPx !== null ? { cx: s.tankEdgeXPx, cy: s.tankEdgeYPx, r: s.tankEdgeRPx } : null,
+    scalePoints,
+    scaleLengthCm: scalePx && s.scalePxPerM ? Math.round((scalePx / s.scalePxPerM) * 100 * 1000) / 1000 : null,
+    mirrored: s.mirrored,
+  };
+}
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const user = await requireRole(request, "technician", "lab_manager");
+  const run = await loadRun(request, params.id);
+  requireChangeable(request, run, user);
+  const count = await Frame.count({ where: { runId: run.id } });
+  if (!count) throw data("Bring the frames first; the view is set up on one of them.", { status: 409 });
+  const frame = await Frame.findOne({ where: { runId: run.id, position: 0 } });
+  const own = await ViewSetup.findOne({ where: { runId: run.id } });
+  // The same camera usually hangs in the same place: start from its last setup.
+  const previous = own ? null : await ViewSetup.findOne({ where: { cameraId: run.cameraId }, order: [["updatedAt", "DESC"]] });
+  const start = own ?? previous;
+  return {
+    runId: run.id,
+    frame: { id: frame!.id, width: frame!.widthPx, height: frame!.heightPx },
+    initial: start ? toValues(start) : { centre: null, edge: null, scalePoints: null, scaleLengthCm: null, mirrored: false },
+    reusedFrom: previous ? previous.runId : null,
+  };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const user = await requireRole(request, "technician", "lab_manager");
+  const run = await loadRun(request, params.id);
+  requireChangeable(request, run, user);
+  const submission = parseWithZod(await request.formData(), { schema: viewSetupSchema });
+  if (submission.status !== "success") return data({ errors: submission.reply().error ?? {} }, { status: 400 });
+  const v = submission.value;
+  const w = run.frameWidthPx ?? 0;
+  const h = run.frameHeightPx ?? 0;
+  const errors: Record<string, string[]> = {};
+  if (v.centreX < 0 || v.centreX > w || v.centreY < 0 || v.centreY > h) errors.centreX = [`The centre must lie inside the ${w} × ${h} px frame.`];
+  if (Object.keys(errors).length) return data({ errors }, { status: 400 });
+  const values = {
+    runId: run.id,
+    cameraId: run.cameraId,
+    centreXPx: v.centreX,
+    centreYPx: v.centreY,
+    tankEdgeXPx: v.edgeX ?? null,
+    tankEdgeYPx: v.edgeY ?? null,
+    tankEdgeRPx: v.edgeR ?? null,
+    scalePxPerM: v.scaleLengthPx && v.scaleLengthCm ? v.scaleLengthPx / (v.scaleLengthCm / 100) : null,
+    scalePoints: v.scalePoints || null,
+    mirrored: v.mirrored,
+    createdById: user.id,
+  };
+  const existing = await ViewSetup.findOne({ where: { runId: run.id } });
+  if (existing) await existing.update(values);
+  else await ViewSetup.create(values);
+  return redirect(`/runs/${run.id}#tracking`);
+}
+
+export default function Setup({ loaderData, actionData }: Route.ComponentProps) {
+  const { runId, frame, initial, reusedFrom } = loaderData;
+  const errors = (actionData?.errors ?? {}) as Record<string, string[] | undefined>;
+  return (
+    <div>
+      <PageHeader title={`View setup · ${runLabel(runId)}`} subtitle="Mark the rotation centre, the tank edge and the scale on the first frame." actions={<ButtonLink to={`/runs/${runId}`}>Back to the run</ButtonLink>} />
+      {reusedFrom ? (
+        <div className="mb-4">
+          <Notice kind="info" title={`Started from the last setup of this camera (${runLabel(reusedFrom)})`}>Check the marks still sit where they should before saving.</Notice>
+        </div>
+      ) : null}
+      <Card>
+        <Form method="post">
+          <ViewSetupEditor imageUrl={`/runs/${runId}/frames/${frame.id}/image`} width={frame.width} height={frame.height} initial={initial} errors={errors} />
+          <div className="mt-6">
+            <Button type="submit">Save the view setup</Button>
+          </div>
+        </Form>
+      </Card>
+    </div>
+  );
+}

@@ -1,19 +1,162 @@
+import { Link } from "react-router";
 import type { Route } from "./+types/dashboard";
 import { requireUser } from "~/.server/auth/permissions";
-import { PageHeader } from "~/components/ui/card";
+import { getDashboard } from "~/.server/dashboard";
+import type { RunListItem } from "~/.server/runs/queries";
+import { ButtonLink } from "~/components/ui/button";
+import { Card, PageHeader, Tag } from "~/components/ui/card";
+import { VerdictTag } from "~/components/run-record/tags";
+import { formatDate, formatDateTime, formatNumber } from "~/lib/format";
 import { roleLabels } from "~/lib/roles";
+import { runFiltersToSearch } from "~/lib/validation/run-filters";
 
 export const meta: Route.MetaFunction = () => [{ title: "Today · Tankside" }];
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
-  return { user };
+  return { user, dashboard: await getDashboard(user) };
+}
+
+function dayLabel(iso: string) {
+  const d = new Date(iso);
+  const today = new Date();
+  const diff = Math.round((new Date(d.getFullYear(), d.getMonth(), d.getDate()).getTime() - new Date(today.getFullYear(), today.getMonth(), today.getDate()).getTime()) / 86_400_000);
+  return diff === 0 ? "Today" : diff === 1 ? "Tomorrow" : d.toLocaleDateString("en-GB", { weekday: "long", day: "numeric", month: "short" });
+}
+
+function RunLines({ items, empty }: { items: RunListItem[]; empty: string }) {
+  if (!items.length) return <p className="text-muted">{empty}</p>;
+  return (
+    <ul className="divide-y divide-line">
+      {items.map((r) => (
+        <li key={r.id}>
+          <Link to={`/runs/${r.id}`} className="flex min-h-12 flex-wrap items-center gap-x-3 py-2 no-underline hover:bg-tank-50">
+            <span className="font-mono text-lg font-bold">{r.label}</span>
+            <span className="text-ink">{r.purpose}</span>
+            <span className="text-sm text-muted">
+              {r.table.name} · {formatNumber(r.setRateRpm)} rpm · {r.technician.name} · {formatDate(r.createdAt)}
+            </span>
+          </Link>
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+function QueueCard({ title, queue, empty, hint }: { title: string; queue: { state: string; total: number; items: RunListItem[]; technicianId: number | null } | null; empty: string; hint: string }) {
+  if (!queue) return null;
+  const link = `/runs${runFiltersToSearch({ state: queue.state as never, technician: queue.technicianId ?? undefined, sort: "createdAt", dir: "asc" })}`;
+  return (
+    <Card title={<>{title} <span className="ml-1 rounded-md bg-tank-50 px-2 font-mono text-tank-800">{queue.total}</span></>} actions={queue.total > queue.items.length ? <Link to={link} className="inline-flex min-h-12 items-center font-bold">All {queue.total} →</Link> : null}>
+      <p className="mb-2 text-sm text-muted">{hint}</p>
+      <RunLines items={queue.items} empty={empty} />
+    </Card>
+  );
 }
 
 export default function Dashboard({ loaderData }: Route.ComponentProps) {
+  const { user, dashboard: d } = loaderData;
+  const logsRuns = user.role !== "instructor";
   return (
     <div>
-      <PageHeader title={`Good to see you, ${loaderData.user.name.split(" ")[0]}`} subtitle={`Signed in as ${roleLabels[loaderData.user.role].toLowerCase()}.`} />
+      <PageHeader
+        title={`Good to see you, ${user.name.split(" ")[0]}`}
+        subtitle={`Signed in as ${roleLabels[user.role].toLowerCase()}.`}
+        actions={
+          <>
+            {logsRuns ? <ButtonLink to="/runs/new" tone="primary">Log a run</ButtonLink> : null}
+            <ButtonLink to="/bookings">Book table time</ButtonLink>
+            <ButtonLink to="/runs">All runs</ButtonLink>
+          </>
+        }
+      />
+
+      <div className="grid gap-6 lg:grid-cols-2">
+        <Card title={`Approved bookings, today and the next ${d.bookingDaysAhead} days`} actions={d.requestedCount ? <Link to="/bookings" className="inline-flex min-h-12 items-center font-bold">{d.requestedCount} waiting for a decision →</Link> : null}>
+          {d.bookings.length === 0 ? (
+            <p className="text-muted">No approved bookings in these days.</p>
+          ) : (
+            <ul className="divide-y divide-line" data-testid="dashboard-bookings">
+              {d.bookings.map((b) => (
+                <li key={b.id}>
+                  <Link to={`/bookings/${b.id}`} className="flex min-h-12 flex-wrap items-center gap-x-3 py-2 no-underline hover:bg-tank-50">
+                    <span className="font-bold text-ink">{dayLabel(b.start)}</span>
+                    <span className="font-mono">{new Date(b.start).toLocaleTimeString("en-GB", { hour: "2-digit", minute: "2-digit" })}–{new Date(b.end).toLocaleTimeString("en-GB", { hour: "2-digit", minute: "2-digit" })}</span>
+                    <span className="text-ink">{b.equipmentName}</span>
+                    <span className="text-sm text-muted">{b.purpose} · {b.requesterName}</span>
+                    {b.mine ? <Tag tone="tank">Yours</Tag> : null}
+                  </Link>
+                </li>
+              ))}
+            </ul>
+          )}
+        </Card>
+
+        {logsRuns ? (
+          <Card title={`Calibrations due or expired (next ${d.calibrationDaysAhead} days)`}>
+            {d.calibrations.length === 0 ? (
+              <p className="text-muted">Every calibration is in force for the next {d.calibrationDaysAhead} days.</p>
+            ) : (
+              <ul className="divide-y divide-line" data-testid="dashboard-calibrations">
+                {d.calibrations.map((c) => (
+                  <li key={c.id}>
+                    <Link to={`/calibrations/${c.id}`} className="flex min-h-12 flex-wrap items-center gap-x-3 py-2 no-underline hover:bg-tank-50">
+                      {c.pastDue ? <Tag tone="disagrees">Expired</Tag> : <Tag tone="caution">Due</Tag>}
+                      <span className="font-bold text-ink">{c.equipmentName}</span>
+                      <span className="text-ink">{c.kind} calibration</span>
+                      <span className="text-sm text-muted">
+                        {c.pastDue ? `was due ${formatDate(c.dueAt)}` : `due ${formatDate(c.dueAt)} (${c.daysLeft} day${c.daysLeft === 1 ? "" : "s"})`}
+                      </span>
+                    </Link>
+                  </li>
+                ))}
+              </ul>
+            )}
+          </Card>
+        ) : null}
+
+        <QueueCard
+          title="Waiting for sign-off"
+          queue={d.queues.signOff}
+          empty="No checked runs are waiting for you."
+          hint="Checked runs, oldest first. A signed-off run becomes read-only."
+        />
+        <QueueCard
+          title={user.role === "technician" ? "Your runs waiting for tracking" : "Runs waiting for tracking"}
+          queue={d.queues.tracking}
+          empty="No runs have frames waiting to be tracked."
+          hint="Frames are in; set up the view and start tracking."
+        />
+        <QueueCard
+          title={user.role === "technician" ? "Your runs waiting for checking" : "Runs waiting for checking"}
+          queue={d.queues.checking}
+          empty="No tracked runs are waiting for a theory check."
+          hint="Tracked; run the theory check to get a verdict."
+        />
+
+        <Card
+          title={<>Recent verdicts that disagree <span className="ml-1 rounded-md bg-disagrees-bg px-2 font-mono text-disagrees-ink">{d.disagreeing.total}</span></>}
+          actions={d.disagreeing.total ? <Link to={`/runs${runFiltersToSearch({ verdict: "disagrees" })}`} className="inline-flex min-h-12 items-center font-bold">All →</Link> : null}
+        >
+          <p className="mb-2 text-sm text-muted">Measured f does not match 2Ω: check the rate calibration, the scale and the view setup.</p>
+          {d.disagreeing.items.length === 0 ? (
+            <p className="text-muted">No disagreeing verdicts.</p>
+          ) : (
+            <ul className="divide-y divide-line">
+              {d.disagreeing.items.map((r) => (
+                <li key={r.id}>
+                  <Link to={`/runs/${r.id}`} className="flex min-h-12 flex-wrap items-center gap-x-3 py-2 no-underline hover:bg-tank-50">
+                    <VerdictTag verdict={r.verdict} />
+                    <span className="font-mono text-lg font-bold">{r.label}</span>
+                    <span className="text-ink">{r.purpose}</span>
+                    <span className="text-sm text-muted">{r.table.name} · {formatDateTime(r.createdAt)}</span>
+                  </Link>
+                </li>
+              ))}
+            </ul>
+          )}
+        </Card>
+      </div>
     </div>
   );
 }

@@ -66,7 +66,7 @@ async function main() {
         updatedAt: at,
       });
     }
-    await Run.bulkCreate(rows, { silent: true });
+    await Run.bulkCreate(rows);
   }
   await sequelize.query("ANALYZE");
   console.log(`seeded ${await Run.count()} runs in ${((performance.now() - t0) / 1000).toFixed(1)} s (${scratch})`);

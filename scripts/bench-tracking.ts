@@ -89,7 +89,7 @@ function rssSampler(): { stop(): number } {
   let peak = process.memoryUsage.rss();
   const timer = setInterval(() => {
     peak = Math.max(peak, process.memoryUsage.rss());
-  }, 10);
+  }, 50);
   return {
     stop() {
       clearInterval(timer);

@@ -188,7 +188,11 @@ async function addZip(run: Run, data: Buffer, result: FrameUploadResult, zipName
     zip.on("end", resolve);
     zip.on("error", reject);
     zip.readEntry();
-  }).catch(() => {
+  }).catch((err: Error) => {
+    // yauzl itself refuses entry names that are absolute or climb out with "..".
+    if (/relative path|absolute path|invalid characters/i.test(err.message)) {
+      throw new UploadError(`The ZIP has entries that point outside it (${err.message.replace(/^.*: /, "")}); nothing was taken from it.`, 422, "zip_unsafe_path");
+    }
     throw new UploadError("This ZIP is damaged and cannot be read to the end.", 422, "damaged_zip");
   });
   const declared = entries.reduce((s, e) => s + e.uncompressedSize, 0);
@@ -216,7 +220,10 @@ async function addZip(run: Run, data: Buffer, result: FrameUploadResult, zipName
           break;
         }
         result.rejected.push({ name: `${zipName}: ${name}`, message: err.message });
-      } else throw err;
+      } else {
+        // yauzl checks each entry against the sizes the ZIP declares; a mismatch means a damaged or forged archive.
+        result.rejected.push({ name: `${zipName}: ${name}`, message: "This entry is damaged or does not match the size the ZIP declares for it." });
+      }
     }
   }
   reopened.close();

@@ -10,7 +10,7 @@ import { formatDateTime } from "~/lib/format";
  * Sign-off for the run record: who signed and when, or (for a lab manager, on a checked run) the
  * form to sign; on a signed-off run, the way to log a correction.
  */
-export function SignOffPanel({ runId, signOff }: { runId: number; signOff: SignOffView }) {
+export function SignOffPanel({ runId, signOff, redirectTo = `/runs/${runId}` }: { runId: number; signOff: SignOffView; redirectTo?: string }) {
   const fetcher = useFetcher<typeof signOffAction>();
   const busy = fetcher.state !== "idle";
   const failed = fetcher.data && !fetcher.data.ok ? fetcher.data.message : null;
@@ -31,7 +31,7 @@ export function SignOffPanel({ runId, signOff }: { runId: number; signOff: SignO
         </div>
       ) : signOff.canSignOff ? (
         <fetcher.Form method="post" action={`/runs/${runId}/sign-off`} className="no-print flex flex-col gap-3">
-          <input type="hidden" name="redirectTo" value={`/runs/${runId}`} />
+          <input type="hidden" name="redirectTo" value={redirectTo} />
           <label className="flex min-h-12 items-center gap-3">
             <input type="checkbox" name="confirm" value="yes" required className="size-6" />
             I have checked the conditions, frames, tracks and theory check of this run.

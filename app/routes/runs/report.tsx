@@ -8,6 +8,7 @@ import type { TheoryCheckResult } from "~/lib/analysis/check";
 import { Button } from "~/components/ui/button";
 import { RunExportLinks } from "~/components/run-record/run-export-links";
 import { RunHistoryList } from "~/components/run-record/run-history-list";
+import { SignOffPanel } from "~/components/run-record/sign-off-panel";
 import { SupersedesLinks } from "~/components/run-record/supersedes-links";
 import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
 import { formatDate, formatDateTime, formatNumber } from "~/lib/format";
@@ -134,16 +135,21 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
       </section>
 
       <section className="mt-4">
-        <h2 className="text-xl">Sign-off</h2>
-        {signOff.state === "signed_off" ? (
-          <p className="mt-2">Signed off by <strong>{signOff.signedOffBy?.name}</strong> on {formatDateTime(signOff.signedOffAt)}.</p>
-        ) : (
-          <div className="mt-2">
-            <p>Not signed off.</p>
-            {/* Room for a hand signature when the paper copy is signed at the bench. */}
-            <p className="mt-8 hidden border-t border-ink pt-1 text-sm print:block">Lab manager's signature and date</p>
-          </div>
-        )}
+        {/* On screen the sign-off panel (a lab manager can sign from the report); on paper, the plain record. */}
+        <div className="no-print">
+          <SignOffPanel runId={run.id} signOff={signOff} redirectTo={`/runs/${run.id}/report`} />
+        </div>
+        <div className="hidden print:block">
+          <h2 className="text-xl">Sign-off</h2>
+          {signOff.state === "signed_off" ? (
+            <p className="mt-2">Signed off by <strong>{signOff.signedOffBy?.name}</strong> on {formatDateTime(signOff.signedOffAt)}.</p>
+          ) : (
+            <>
+              <p className="mt-2">Not signed off.</p>
+              <p className="mt-8 border-t border-ink pt-1 text-sm">Lab manager's signature and date</p>
+            </>
+          )}
+        </div>
       </section>
 
       <section className="mt-4">

@@ -5,6 +5,7 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { writeSyntheticStack, type WrittenStack } from "../../../tests/fixtures/tracking/write-stack";
+import { parseAnalyzeArguments } from "./analyze-arguments";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../../..");
 const rpm = 10;
@@ -99,8 +100,6 @@ describe("npm run analyze", () => {
 
   it.each([
     ["a missing frame rate", good.filter((_, i) => i !== 4 && i !== 5), /--fps is required/],
-    ["an unknown camera mode", good.map((a) => (a === "lab" ? "sideways" : a)), /--camera must be rotating or lab/],
-    ["a centre that is not two numbers", good.map((a) => (a === "160,120" ? "160" : a)), /--centre needs 2 numbers/],
     ["an unknown option", [...good, "--speed", "3"], /Unknown option '--speed'/],
   ])("exits with 2 and the usage on %s", async (_, args, reason) => {
     const run = await analyze([path.join(dir, "frames"), ...args]);
@@ -116,5 +115,33 @@ describe("npm run analyze", () => {
     expect(run.code).toBe(1);
     expect(run.stdout).toBe("");
     expect(run.stderr).toMatch(/no frames to track/);
+  });
+});
+
+describe("analyze arguments", () => {
+  it("reads every argument", () => {
+    const parsed = parseAnalyzeArguments(["frames", ...good, "--px-per-cm", "12.5", "--tank-edge", "160,120,100", "--mirrored"]);
+    expect(parsed).toEqual({
+      framesDir: "frames",
+      rpm: 10,
+      direction: "ccw",
+      fps: 30,
+      camera: "lab",
+      centre: { x: 160, y: 120 },
+      tracer: "float",
+      pxPerCm: 12.5,
+      tankEdge: { cx: 160, cy: 120, r: 100 },
+      mirrored: true,
+    });
+  });
+
+  it.each([
+    ["an unknown camera mode", good.map((a) => (a === "lab" ? "sideways" : a)), /--camera must be rotating or lab, not "sideways"/],
+    ["a centre that is not two numbers", good.map((a) => (a === "160,120" ? "160," : a)), /--centre needs 2 numbers/],
+    ["a frame rate of zero", good.map((a) => (a === "30" ? "0" : a)), /--fps must be a number above zero/],
+    ["a negative rate", ["--rpm=-3", ...good.slice(2)], /--rpm must be a number of zero or more, not "-3"/],
+    ["two folders", ["a", "b", ...good], /exactly one folder/],
+  ])("refuses %s", (_, args, reason) => {
+    expect(() => parseAnalyzeArguments(args[0] === "a" ? args : ["frames", ...args])).toThrow(reason);
   });
 });

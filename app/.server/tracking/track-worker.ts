@@ -32,8 +32,28 @@ export type TrackTaskResult = Detection[] | null;
 
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };
 
-/** The detector keeps its OpenCV matrices between frames of one plan, freed when the plan changes. */
-let current: { key: string; detector: Detector } | null = null;
+/**
+ * Detectors keep their OpenCV matrices between frames of one plan. Two jobs may share the pool,
+ * so a couple are kept; the oldest is freed when a third plan arrives.
+ */
+const detectors = new Map<string, Detector>();
+const keptDetectors = 2;
+
+function detectorFor(key: string, plan: DetectionPlan): Detector {
+  let detector = detectors.get(key);
+  if (detector) {
+    detectors.delete(key);
+  } else {
+    detector = createDetector(cv, plan);
+    if (detectors.size >= keptDetectors) {
+      const [oldestKey, oldest] = detectors.entries().next().value as [string, Detector];
+      oldest.dispose();
+      detectors.delete(oldestKey);
+    }
+  }
+  detectors.set(key, detector);
+  return detector;
+}
 
 export default function runTrackTask(task: TrackTask): TrackTaskResult {
   // Loading the worker (tsx, OpenCV) is the cost; a job starts the workers while it decodes.
@@ -44,12 +64,8 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
     medianInto(frames, task.out, task.from, task.to);
     return null;
   }
-  if (current?.key !== task.planKey) {
-    current?.detector.dispose();
-    current = { key: task.planKey, detector: createDetector(cv, task.plan) };
-  }
   const { plan } = task;
-  return current.detector.detect(
+  return detectorFor(task.planKey, plan).detect(
     { data: task.image, width: plan.crop.width, height: plan.crop.height, channels: plan.channels },
     task.background,
   );

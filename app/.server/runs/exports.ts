@@ -31,7 +31,8 @@ export async function tracksCsv(runId: number): Promise<{ filename: string; csv:
   let omega = signedOmega(run);
   if (check) {
     try {
-      const used = (JSON.parse(check.result) as { omega?: unknown }).omega;
+      // Stored as { result, input } by the theory check (see StoredCheck in ./theory).
+      const used = (JSON.parse(check.result) as { result?: { omega?: unknown } }).result?.omega;
       if (typeof used === "number" && Number.isFinite(used)) omega = used;
     } catch {
       // An unreadable stored result leaves the set rate in use.

@@ -250,7 +250,8 @@ export type RunDetail = NonNullable<Awaited<ReturnType<typeof getRunDetail>>>;
 export async function getRunExport(runId: number) {
   const detail = await getRunDetail(runId, { full: true });
   if (!detail) return null;
-  const check = detail.latestTheoryCheck as (ReturnType<typeof serializeCheck> & { result?: { settings?: unknown } }) | null;
+  // The stored check is { result, input }: the input (setup, rates, t₀, settings, track) reproduces the result.
+  const check = detail.latestTheoryCheck as (ReturnType<typeof serializeCheck> & { result?: { result?: { settings?: unknown }; input?: { settings?: unknown } } | null }) | null;
   return {
     format: "tankside-run-export",
     formatVersion: 1,
@@ -277,7 +278,8 @@ export async function getRunExport(runId: number) {
     calibrationsInForce: detail.calibrationsInForce.records,
     tracks: detail.tracks,
     trackingJob: detail.latestTrackingJob,
-    settings: check?.result?.settings ?? null,
+    settings: check?.result ? { used: check.result.result?.settings ?? null, requested: check.result.input?.settings ?? null } : null,
+    theoryCheckInput: check?.result?.input ?? null,
     theoryCheck: check,
     tracksCsv: `/api/v1/runs/${detail.id}/tracks.csv`,
   };

@@ -32,7 +32,7 @@ async function checkedRun(overrides: Record<string, unknown> = {}) {
   const run = await createRun(runInput(lab, overrides), lab.technician);
   const job = await TrackingJob.create({ runId: run.id, state: "done", error: null, requestedById: lab.technician.id, startedAt: new Date(), finishedAt: new Date() });
   await run.update({ state: "checked", verdict: "agrees" });
-  await TheoryCheck.create({ runId: run.id, trackId: null, verdict: "agrees", fMeasuredPerS: 2.1, fPredictedPerS: 2.09, result: JSON.stringify({ omega: 1.05, settings: { window: 9, polyOrder: 2, tolerance: 0.03 } }), codeVersion: "test", createdById: lab.technician.id });
+  await TheoryCheck.create({ runId: run.id, trackId: null, verdict: "agrees", fMeasuredPerS: 2.1, fPredictedPerS: 2.09, result: JSON.stringify({ result: { omega: 1.05, settings: { window: 9, polyOrder: 2, tolerance: 0.03 } }, input: { omegaSet: 1.047, cameraMode: overrides.cameraMode ?? "rotating", settings: { tolerance: 0.03 } } }), codeVersion: "test", createdById: lab.technician.id });
   return { run, job };
 }
 
@@ -242,8 +242,9 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
       conditions: { setRateRpm: 10, direction: "ccw", waterDepthM: 0.1, cameraMode: "rotating" },
       equipment: { table: { id: lab.tableA.id } },
       calibrationIdsInForce: [41, 42],
-      settings: { window: 9, polyOrder: 2, tolerance: 0.03 },
-      theoryCheck: { verdict: "agrees", result: { omega: 1.05 } },
+      settings: { used: { window: 9, polyOrder: 2, tolerance: 0.03 }, requested: { tolerance: 0.03 } },
+      theoryCheckInput: { omegaSet: 1.047 },
+      theoryCheck: { verdict: "agrees", result: { result: { omega: 1.05 } } },
     });
   });
 });

@@ -23,9 +23,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   if (!model) throw data("That run does not exist.", { status: 404 });
   const [run, signOff, history] = await Promise.all([getRunDetail(runId, { full: true }), getSignOffView(model, user), getRunHistory(runId)]);
   if (!run) throw data("That run does not exist.", { status: 404 });
-  const check = run.latestTheoryCheck as (NonNullable<typeof run.latestTheoryCheck> & { result?: TheoryCheckResult | null }) | null;
+  const check = run.latestTheoryCheck as (NonNullable<typeof run.latestTheoryCheck> & { result?: { result?: TheoryCheckResult } | null }) | null;
   // The report needs the check's figures, not its plotted series: keep the page light.
-  const result = check?.result ? { ...check.result, series: undefined } : null;
+  const stored = check?.result?.result;
+  const result = stored ? { ...stored, series: undefined } : null;
   return { run: { ...run, latestTheoryCheck: check ? { ...check, result } : null }, signOff, history, printedAt: new Date().toISOString() };
 }
 
@@ -123,7 +124,7 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
               {r.circle ? `${r.circle.radiusM !== null ? `${formatNumber(r.circle.radiusM * 100)} cm` : `${formatNumber(r.circle.radiusPx)} px`} radius, period ${formatNumber(r.circle.period)} s` : "—"}
             </Row>
             <Row label="Points used">{r.nPoints} ({r.nLeftOut} left out)</Row>
-            <Row label="Settings">tolerance {formatNumber(r.settings.tolerance * 100)} %, window {r.settings.window ?? "—"} frames, order {r.settings.polyOrder}</Row>
+            {r.settings ? <Row label="Settings">tolerance {formatNumber(r.settings.tolerance * 100)} %, window {r.settings.window ?? "—"} frames, order {r.settings.polyOrder}</Row> : null}
             <Row label="Checked">{formatDateTime(check?.createdAt)} · code {check?.codeVersion}</Row>
           </dl>
         ) : (

@@ -20,6 +20,18 @@ export default [
     route(":id/edit", "routes/equipment/edit.tsx", { id: "equipment-edit" }),
   ]),
 
+  ...prefix("bookings", [
+    index("routes/bookings/list.tsx"),
+    route(":id", "routes/bookings/detail.tsx"),
+  ]),
+  ...prefix("calibrations", [
+    index("routes/calibrations/list.tsx"),
+    route("new", "routes/calibrations/edit.tsx", { id: "calibration-new" }),
+    route(":id", "routes/calibrations/detail.tsx"),
+    route(":id/edit", "routes/calibrations/edit.tsx", { id: "calibration-edit" }),
+  ]),
+  route("settings", "routes/settings/settings.tsx"),
+
   ...prefix("runs", [
     index("routes/runs/list.tsx"),
     route("rows", "routes/runs/rows.ts"),
@@ -38,6 +50,18 @@ export default [
     route("runs/:id/tracks.csv", "routes/api/run-tracks-csv.ts"),
     route("runs/:id/export.json", "routes/api/run-export.ts"),
     route("openapi.json", "routes/api/openapi.ts"),
+    route("bookings", "routes/api/bookings.ts"),
+    route("bookings/:id", "routes/api/booking-item.ts"),
+    route("bookings/:id/approve", "routes/api/booking-decision.ts", { id: "api-booking-approve" }),
+    route("bookings/:id/decline", "routes/api/booking-decision.ts", { id: "api-booking-decline" }),
+    route("bookings/:id/cancel", "routes/api/booking-decision.ts", { id: "api-booking-cancel" }),
+    route("bookings/:id/ics", "routes/api/booking-ics.ts"),
+    route("feeds/:token/bookings.ics", "routes/api/booking-feed.ts"),
+    route("calibrations", "routes/api/calibrations.ts"),
+    route("calibrations/:id", "routes/api/calibration-item.ts"),
+    route("calibrations/:id/sign-off", "routes/api/calibration-sign-off.ts"),
+    route("calibrations/:id/attachments", "routes/api/calibration-attachments.ts"),
+    route("calibrations/:id/attachments/:attachmentId", "routes/api/calibration-attachment.ts"),
     route("*", "routes/api/not-found.ts"),
   ]),
 

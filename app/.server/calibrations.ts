@@ -9,6 +9,7 @@ import {
   frameRateFromTiming,
   intervalDaysFor,
   fitRateCalibration,
+  kindsForEquipment,
   scaleFromKnownLength,
   trueRateFromCalibration as trueRateFromLine,
   type CalibrationKind,
@@ -16,7 +17,7 @@ import {
   type RateReading,
 } from "~/lib/calibrations";
 import type { CalibrationInput } from "~/lib/validation/calibrations";
-import { kindLabels } from "~/lib/equipment";
+import { kindLabels, type EquipmentKind } from "~/lib/equipment";
 
 /** A refusal with the HTTP status that says why (404 missing, 409 signed, 422 wrong equipment). */
 export class CalibrationError extends Error {
@@ -372,3 +373,13 @@ export async function serializeCalibrations(records: Calibration[]) {
   }));
 }
 export type CalibrationView = Awaited<ReturnType<typeof serializeCalibrations>>[number];
+
+/** What the equipment page shows: each kind's standing now, the item's records, and its coming bookings. */
+export async function equipmentCalibrationSummary(equipmentId: number, equipmentKind: EquipmentKind) {
+  const records = await serializeCalibrations(await listCalibrations({ equipmentId }));
+  const kinds = kindsForEquipment(equipmentKind).map((kind) => {
+    const current = records.find((r) => r.kind === kind && (r.standing === "in_force" || r.standing === "past_due")) ?? null;
+    return { kind, current: current ? { id: current.id, standing: current.standing, dueAt: current.dueAt } : null };
+  });
+  return { kinds, records };
+}

@@ -17,6 +17,8 @@ export const sections = [
   { key: "runs", label: "Runs", to: "/runs", roles: ["technician", "instructor", "lab_manager"] },
   { key: "equipment", label: "Equipment", to: "/equipment", roles: ["technician", "instructor", "lab_manager"] },
   { key: "bookings", label: "Bookings", to: "/bookings", roles: ["technician", "instructor", "lab_manager"] },
+  { key: "calibrations", label: "Calibrations", to: "/calibrations", roles: ["technician", "lab_manager"] },
   { key: "people", label: "People", to: "/people", roles: ["lab_manager"] },
   { key: "mail", label: "Captured mail", to: "/mail", roles: ["lab_manager"] },
+  { key: "settings", label: "Settings", to: "/settings", roles: ["lab_manager"] },
 ] as const satisfies readonly { key: string; label: string; to: string; roles: readonly Role[] }[];

@@ -6,6 +6,9 @@ import { kindLabels } from "~/lib/equipment";
 import { ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { equipmentSummary, StatusTag } from "~/components/equipment-facts";
+import { equipmentCalibrationSummary } from "~/.server/calibrations";
+import { listBookings, serializeBookings } from "~/.server/bookings";
+import { EquipmentBookings, EquipmentCalibrations } from "~/components/equipment-records";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.item.name ?? "Equipment"} · Tankside` }];
 
@@ -13,7 +16,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const item = await getEquipment(Number(params.id));
   if (!item) throw notFound(request, "That piece of equipment");
-  return { canEdit: user.role === "lab_manager", item: serializeEquipment(item) };
+  const [calibrations, bookings] = await Promise.all([
+    equipmentCalibrationSummary(item.id, item.kind),
+    listBookings({ equipmentId: item.id, from: new Date(), limit: 20 }).then((rows) => serializeBookings(rows.filter((b) => b.state === "approved" || b.state === "requested"))),
+  ]);
+  return { canEdit: user.role === "lab_manager", canRecord: user.role !== "instructor", item: serializeEquipment(item), calibrations, bookings };
 }
 
 export default function EquipmentDetail({ loaderData }: Route.ComponentProps) {
@@ -47,6 +54,8 @@ export default function EquipmentDetail({ loaderData }: Route.ComponentProps) {
           </dl>
           {item.notes ? <p className="mt-4 whitespace-pre-wrap">{item.notes}</p> : null}
         </Card>
+        <EquipmentCalibrations itemId={item.id} kinds={loaderData.calibrations.kinds} records={loaderData.calibrations.records} canRecord={loaderData.canRecord} />
+        {item.status !== "retired" ? <EquipmentBookings itemId={item.id} isTable={item.kind === "table"} bookings={loaderData.bookings} /> : null}
       </div>
     </div>
   );

@@ -1,0 +1,25 @@
+import type { ZodError } from "zod";
+import { apiError } from "./http";
+import { BookingError } from "./bookings";
+import { CalibrationError } from "./calibrations";
+
+/** The API's answer to a refusal from the bookings or calibrations functions; anything else is rethrown. */
+export function refusalResponse(err: unknown): Response {
+  if (err instanceof BookingError || err instanceof CalibrationError) {
+    return apiError(err.status, err.code, err.message, err.field ? { field: err.field } : undefined);
+  }
+  throw err;
+}
+
+export function invalidInput(error: ZodError): Response {
+  const issues = error.issues.map((i) => ({ field: i.path.join("."), message: i.message }));
+  return apiError(400, "invalid_input", issues[0]?.message ?? "The input is not valid.", { issues });
+}
+
+export function methodNotAllowed(allowed: string): Response {
+  return Response.json({ error: { code: "method_not_allowed", message: `Use ${allowed} here.` } }, { status: 405, headers: { Allow: allowed } });
+}
+
+export function mailReport(mail: { ok: true } | { ok: false; error: string }) {
+  return mail.ok ? { sent: true } : { sent: false, error: mail.error };
+}

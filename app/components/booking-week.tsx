@@ -1,0 +1,63 @@
+import { useMemo } from "react";
+import { Calendar, dateFnsLocalizer, type Event as CalendarEvent } from "react-big-calendar";
+import { format, getDay, parse, startOfWeek } from "date-fns";
+import { enGB } from "date-fns/locale";
+import { useNavigate } from "react-router";
+import type { BookingState } from "~/lib/bookings";
+import { bookingStateLabels } from "~/lib/bookings";
+
+// Weeks start on Monday and the clock is 24-hour, as on the lab's printed sheets.
+const localizer = dateFnsLocalizer({ format, parse, startOfWeek: (d: Date) => startOfWeek(d, { weekStartsOn: 1 }), getDay, locales: { "en-GB": enGB } });
+
+export interface WeekBooking {
+  id: number;
+  start: string;
+  end: string;
+  purpose: string;
+  state: BookingState;
+  requesterName: string;
+}
+
+interface Ev extends CalendarEvent {
+  id: number;
+  state: BookingState;
+}
+
+/** One item's week of bookings on react-big-calendar, dressed in Tankside's own look (booking-week.css). */
+export function BookingWeek({ bookings, week, itemId }: { bookings: WeekBooking[]; week: string; itemId: number }) {
+  const navigate = useNavigate();
+  const events = useMemo<Ev[]>(
+    () =>
+      bookings.map((b) => ({
+        id: b.id,
+        state: b.state,
+        title: `${bookingStateLabels[b.state]} · ${b.purpose} (${b.requesterName})`,
+        start: new Date(b.start),
+        end: new Date(b.end),
+      })),
+    [bookings],
+  );
+  const date = useMemo(() => new Date(`${week}T12:00:00`), [week]);
+  return (
+    <div className="tankside-week" data-testid="booking-week">
+      <Calendar<Ev>
+        localizer={localizer}
+        culture="en-GB"
+        events={events}
+        date={date}
+        view="week"
+        views={["week"]}
+        onView={() => undefined}
+        onNavigate={(d) => navigate(`?item=${itemId}&week=${format(d, "yyyy-MM-dd")}#week`, { preventScrollReset: true })}
+        onSelectEvent={(e) => navigate(`/bookings/${e.id}`)}
+        eventPropGetter={(e) => ({ className: `tankside-event tankside-event-${e.state}` })}
+        scrollToTime={new Date(1970, 0, 1, 8)}
+        step={30}
+        timeslots={2}
+        formats={{ timeGutterFormat: "HH:mm", eventTimeRangeFormat: ({ start, end }) => `${format(start, "HH:mm")}–${format(end, "HH:mm")}`, dayFormat: "EEE d MMM" }}
+        messages={{ today: "This week", previous: "Previous week", next: "Next week", noEventsInRange: "No bookings this week." }}
+        style={{ height: 640 }}
+      />
+    </div>
+  );
+}

@@ -1,0 +1,28 @@
+import type { Route } from "./+types/calibrations";
+import { requireRole, requireUser } from "~/.server/auth/permissions";
+import { readJson } from "~/.server/http";
+import { createCalibration, listCalibrations, serializeCalibrations } from "~/.server/calibrations";
+import { invalidInput, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
+import { calibrationSchema } from "~/lib/validation/calibrations";
+
+/** GET /api/v1/calibrations?equipmentId= — anyone signed in reads the records. */
+export async function loader({ request }: Route.LoaderArgs) {
+  await requireUser(request);
+  const equipmentId = Number(new URL(request.url).searchParams.get("equipmentId") ?? "") || undefined;
+  return Response.json(await serializeCalibrations(await listCalibrations({ equipmentId })));
+}
+
+/** POST /api/v1/calibrations — technicians and lab managers record calibrations. */
+export async function action({ request }: Route.ActionArgs) {
+  const user = await requireRole(request, "technician", "lab_manager");
+  if (request.method !== "POST") return methodNotAllowed("GET, POST");
+  const parsed = calibrationSchema.safeParse(await readJson(request));
+  if (!parsed.success) return invalidInput(parsed.error);
+  try {
+    const cal = await createCalibration(parsed.data, user);
+    const [view] = await serializeCalibrations([cal]);
+    return Response.json(view, { status: 201, headers: { Location: `/api/v1/calibrations/${cal.id}` } });
+  } catch (err) {
+    return refusalResponse(err);
+  }
+}

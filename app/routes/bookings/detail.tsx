@@ -1,0 +1,125 @@
+import { Form, data } from "react-router";
+import type { Route } from "./+types/detail";
+import { requireUser } from "~/.server/auth/permissions";
+import { notFound } from "~/.server/http";
+import { BookingError, approveBooking, cancelBooking, declineBooking, getBooking, serializeBooking } from "~/.server/bookings";
+import { declineSchema } from "~/lib/validation/bookings";
+import { bookingStateLabels, tableBookingCaution } from "~/lib/bookings";
+import { formatDateTime } from "~/lib/format";
+import { Button, ButtonA, ButtonLink } from "~/components/ui/button";
+import { Card, PageHeader, Tag } from "~/components/ui/card";
+import { TextField } from "~/components/ui/field";
+import { Notice } from "~/components/ui/notice";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `Booking #${data?.booking.id ?? ""} · Tankside` }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const user = await requireUser(request);
+  const booking = await getBooking(Number(params.id));
+  if (!booking) throw notFound(request, "That booking");
+  return { user, booking: await serializeBooking(booking), now: Date.now() };
+}
+
+type Outcome = { notice?: string; problem?: string; reasonError?: string };
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const user = await requireUser(request);
+  const form = await request.formData();
+  const intent = String(form.get("intent") ?? "");
+  const id = Number(params.id);
+  const mailNote = (mail: { ok: boolean; error?: string }) => (mail.ok ? {} : { problem: `Saved, but the e-mail failed: ${mail.error}` });
+  try {
+    if (intent === "approve") {
+      const { mail } = await approveBooking(id, user);
+      return data<Outcome>({ notice: "Approved. The requester has been told.", ...mailNote(mail) });
+    }
+    if (intent === "decline") {
+      const parsed = declineSchema.safeParse({ reason: form.get("reason") });
+      if (!parsed.success) return data<Outcome>({ reasonError: parsed.error.issues[0]!.message }, { status: 400 });
+      const { mail } = await declineBooking(id, user, parsed.data.reason);
+      return data<Outcome>({ notice: "Declined. The requester has been told why.", ...mailNote(mail) });
+    }
+    if (intent === "cancel") {
+      const { mail } = await cancelBooking(id, user);
+      return data<Outcome>({ notice: "Cancelled.", ...mailNote(mail) });
+    }
+    return data<Outcome>({ problem: "Unknown action." }, { status: 400 });
+  } catch (err) {
+    if (err instanceof BookingError) return data<Outcome>({ problem: err.message }, { status: err.status });
+    throw err;
+  }
+}
+
+export default function BookingDetail({ loaderData, actionData }: Route.ComponentProps) {
+  const { booking: b, user } = loaderData;
+  const outcome = (actionData ?? {}) as Outcome;
+  const isManager = user.role === "lab_manager";
+  const open = b.state === "requested" || b.state === "approved";
+  const canCancel = open && (isManager || b.requesterId === user.id) && new Date(b.end).getTime() > loaderData.now;
+  const tone = b.state === "approved" ? "agrees" : b.state === "requested" ? "caution" : b.state === "declined" ? "disagrees" : "neutral";
+  const rows: [string, string | null][] = [
+    ["Item", b.equipmentName],
+    ["Slot", `${formatDateTime(b.start)} – ${formatDateTime(b.end)}`],
+    ["Purpose", b.purpose],
+    ["Requested by", `${b.requesterName}, ${formatDateTime(b.createdAt)}`],
+    ["Planned rate", b.plannedRateRpm === null ? null : `${b.plannedRateRpm} rpm`],
+    ["Planned depth", b.plannedDepthCm === null ? null : `${b.plannedDepthCm} cm`],
+    ["Spin-up lead time", b.spinUpLeadMinutes === null ? null : `${b.spinUpLeadMinutes} min, included before the slot the requester asked for`],
+    ["Decided", b.decidedAt ? `${b.decidedByName}, ${formatDateTime(b.decidedAt)}` : null],
+    ["Reason for declining", b.declineReason],
+    ["Cancelled", b.cancelledAt ? formatDateTime(b.cancelledAt) : null],
+  ];
+  return (
+    <div>
+      <PageHeader
+        title={`Booking #${b.id}`}
+        subtitle={<Tag tone={tone}>{bookingStateLabels[b.state]}</Tag>}
+        actions={
+          <>
+            <ButtonLink to={`/bookings?item=${b.equipmentId}&week=${b.start.slice(0, 10)}#week`}>Week view</ButtonLink>
+            <ButtonA href={`/api/v1/bookings/${b.id}/ics`}>Download .ics</ButtonA>
+          </>
+        }
+      />
+      <div className="mb-4 flex flex-col gap-3">
+        {outcome.notice ? <Notice kind="success">{outcome.notice}</Notice> : null}
+        {outcome.problem ? <Notice kind="error">{outcome.problem}</Notice> : null}
+        {b.equipmentKind === "table" && open ? <Notice kind="caution">{tableBookingCaution}</Notice> : null}
+      </div>
+      <div className="grid gap-6 lg:grid-cols-2">
+        <Card title="The booking">
+          <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
+            {rows.filter(([, v]) => v).map(([k, v]) => (
+              <div key={k} className="contents">
+                <dt className="font-bold">{k}</dt>
+                <dd>{v}</dd>
+              </div>
+            ))}
+          </dl>
+        </Card>
+        {(isManager && b.state === "requested") || canCancel ? (
+          <Card title="Decide">
+            <div className="flex flex-col gap-5">
+              {isManager && b.state === "requested" ? (
+                <>
+                  <Form method="post">
+                    <Button type="submit" name="intent" value="approve">Approve booking</Button>
+                  </Form>
+                  <Form method="post" className="flex flex-col gap-3">
+                    <TextField label="Reason for declining" name="reason" error={outcome.reasonError} maxLength={500} hint="The requester reads this in the e-mail." />
+                    <Button tone="danger" type="submit" name="intent" value="decline">Decline booking</Button>
+                  </Form>
+                </>
+              ) : null}
+              {canCancel ? (
+                <Form method="post">
+                  <Button tone="quiet" type="submit" name="intent" value="cancel">Cancel booking</Button>
+                </Form>
+              ) : null}
+            </div>
+          </Card>
+        ) : null}
+      </div>
+    </div>
+  );
+}

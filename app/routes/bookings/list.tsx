@@ -1,0 +1,350 @@
+import { Form, Link, data, useNavigation } from "react-router";
+import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
+import { useState } from "react";
+import { addDays, format, startOfWeek } from "date-fns";
+import type { Route } from "./+types/list";
+import rbcStyles from "react-big-calendar/lib/css/react-big-calendar.css?url";
+import weekStyles from "~/components/booking-week.css?url";
+import { requireUser } from "~/.server/auth/permissions";
+import {
+  BookingError,
+  approveBooking,
+  cancelBooking,
+  createBooking,
+  createCalendarFeed,
+  declineBooking,
+  feedUrl,
+  getCalendarFeed,
+  listBookings,
+  revokeCalendarFeed,
+  serializeBookings,
+} from "~/.server/bookings";
+import { listEquipment } from "~/.server/equipment";
+import { getLabSettings } from "~/.server/settings";
+import { bookingFilterSchema, bookingRequestSchema, declineSchema } from "~/lib/validation/bookings";
+import { bookingStateLabels, bookingStates, spinUpLeadS, tableBookingCaution, type BookingState } from "~/lib/bookings";
+import { kindLabels } from "~/lib/equipment";
+import { formatDateTime } from "~/lib/format";
+import { BookingWeek } from "~/components/booking-week";
+import { Button, ButtonA } from "~/components/ui/button";
+import { Card, PageHeader, Tag } from "~/components/ui/card";
+import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
+import { Notice } from "~/components/ui/notice";
+
+export const meta: Route.MetaFunction = () => [{ title: "Bookings · Tankside" }];
+export const links: Route.LinksFunction = () => [
+  { rel: "stylesheet", href: rbcStyles },
+  { rel: "stylesheet", href: weekStyles },
+];
+
+const localInput = (d: Date) => format(d, "yyyy-MM-dd'T'HH:mm");
+
+export async function loader({ request }: Route.LoaderArgs) {
+  const user = await requireUser(request);
+  const url = new URL(request.url);
+  const parsed = bookingFilterSchema.safeParse(Object.fromEntries(url.searchParams));
+  const filter = parsed.success ? parsed.data : { mine: false };
+  const [items, settings, feed] = await Promise.all([listEquipment(), getLabSettings(), getCalendarFeed(user.id)]);
+  const rows = await listBookings({
+    equipmentId: "equipmentId" in filter ? filter.equipmentId : undefined,
+    state: "state" in filter ? filter.state : undefined,
+    from: "from" in filter && filter.from ? new Date(filter.from) : new Date(Date.now() - 7 * 86_400_000),
+    to: "to" in filter && filter.to ? new Date(filter.to) : undefined,
+    requesterId: filter.mine ? user.id : undefined,
+  });
+  const bookable = items.filter((i) => i.status === "in_service");
+  const weekItemId = Number(url.searchParams.get("item")) || bookable.find((i) => i.kind === "table")?.id || bookable[0]?.id || 0;
+  const weekParam = url.searchParams.get("week");
+  const weekStart = startOfWeek(weekParam && !Number.isNaN(new Date(`${weekParam}T12:00`).getTime()) ? new Date(`${weekParam}T12:00`) : new Date(), { weekStartsOn: 1 });
+  const weekRows = weekItemId
+    ? (await listBookings({ equipmentId: weekItemId, from: weekStart, to: addDays(weekStart, 7) })).filter((b) => b.state === "approved" || b.state === "requested")
+    : [];
+  const tomorrow = new Date();
+  tomorrow.setDate(tomorrow.getDate() + 1);
+  tomorrow.setHours(10, 0, 0, 0);
+  return {
+    user,
+    filterProblem: parsed.success ? null : parsed.error.issues[0]!.message,
+    filter: Object.fromEntries(url.searchParams),
+    bookings: await serializeBookings(rows),
+    items: items.map((i) => ({ id: i.id, name: i.name, kind: i.kind, status: i.status })),
+    week: { itemId: weekItemId, start: format(weekStart, "yyyy-MM-dd"), bookings: await serializeBookings(weekRows) },
+    spinUpTimesToWait: settings.spinUpTimesToWait,
+    feed: feed ? { prefix: feed.tokenPrefix, lastUsedAt: feed.lastUsedAt?.toISOString() ?? null } : null,
+    defaults: { start: localInput(tomorrow), end: localInput(new Date(tomorrow.getTime() + 2 * 3_600_000)) },
+  };
+}
+
+type Outcome = { request?: SubmissionResult<string[]>; notice?: string; problem?: string; feedUrl?: string };
+
+export async function action({ request }: Route.ActionArgs) {
+  const user = await requireUser(request);
+  const form = await request.formData();
+  const intent = String(form.get("intent") ?? "");
+  const id = Number(form.get("bookingId"));
+  const mailNote = (mail: { ok: boolean; error?: string }, who: string) => (mail.ok ? {} : { problem: `Saved, but the e-mail to ${who} failed: ${mail.error}` });
+  try {
+    if (intent === "request") {
+      const submission = parseWithZod(form, { schema: bookingRequestSchema });
+      if (submission.status !== "success") return data<Outcome>({ request: submission.reply() }, { status: 400 });
+      const v = submission.value;
+      try {
+        const { booking, mail } = await createBooking(
+          { equipmentId: v.equipmentId, start: new Date(v.start), end: new Date(v.end), purpose: v.purpose, plannedRateRpm: v.plannedRateRpm, plannedDepthM: v.plannedDepthCm === undefined ? undefined : v.plannedDepthCm / 100, addSpinUpLead: v.addSpinUpLead },
+          user,
+        );
+        return data<Outcome>({ request: submission.reply({ resetForm: true }), notice: `Booking #${booking.id} requested for ${formatDateTime(booking.startAt)} – ${formatDateTime(booking.endAt)}. The lab managers have been told.`, ...mailNote(mail, "the lab managers") });
+      } catch (err) {
+        if (err instanceof BookingError) {
+          const field = err.field && ["equipmentId", "start", "end", "addSpinUpLead"].includes(err.field) ? err.field : null;
+          return data<Outcome>({ request: submission.reply(field ? { fieldErrors: { [field]: [err.message] } } : { formErrors: [err.message] }) }, { status: err.status });
+        }
+        throw err;
+      }
+    }
+    if (intent === "approve") {
+      const { booking, mail } = await approveBooking(id, user);
+      return data<Outcome>({ notice: `Booking #${booking.id} approved.`, ...mailNote(mail, "the requester") });
+    }
+    if (intent === "decline") {
+      const parsed = declineSchema.safeParse({ reason: form.get("reason") });
+      if (!parsed.success) return data<Outcome>({ problem: `Booking #${id}: ${parsed.error.issues[0]!.message}` }, { status: 400 });
+      const { booking, mail } = await declineBooking(id, user, parsed.data.reason);
+      return data<Outcome>({ notice: `Booking #${booking.id} declined.`, ...mailNote(mail, "the requester") });
+    }
+    if (intent === "cancel") {
+      const { booking, mail } = await cancelBooking(id, user);
+      return data<Outcome>({ notice: `Booking #${booking.id} cancelled.`, ...mailNote(mail, "the people concerned") });
+    }
+    if (intent === "feed") {
+      const token = await createCalendarFeed(user.id);
+      return data<Outcome>({ feedUrl: feedUrl(token), notice: "Your calendar feed address is ready. Copy it now: Tankside keeps only a fingerprint of it." });
+    }
+    if (intent === "feed-revoke") {
+      await revokeCalendarFeed(user.id);
+      return data<Outcome>({ notice: "Your calendar feed address no longer works." });
+    }
+    return data<Outcome>({ problem: "Unknown action." }, { status: 400 });
+  } catch (err) {
+    if (err instanceof BookingError) return data<Outcome>({ problem: `Booking #${id}: ${err.message}` }, { status: err.status });
+    throw err;
+  }
+}
+
+function StateTag({ state }: { state: BookingState }) {
+  const tone = state === "approved" ? "agrees" : state === "requested" ? "caution" : state === "declined" ? "disagrees" : "neutral";
+  return <Tag tone={tone}>{bookingStateLabels[state]}</Tag>;
+}
+
+export default function Bookings({ loaderData, actionData }: Route.ComponentProps) {
+  const outcome = (actionData ?? {}) as Outcome;
+  const { user, items, bookings, week } = loaderData;
+  const isManager = user.role === "lab_manager";
+  const bookable = items.filter((i) => i.status === "in_service");
+  const navigation = useNavigation();
+  const [form, fields] = useForm({
+    lastResult: outcome.request,
+    shouldValidate: "onBlur",
+    shouldRevalidate: "onInput",
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: bookingRequestSchema }),
+    defaultValue: { equipmentId: String(bookable.find((i) => i.kind === "table")?.id ?? ""), start: loaderData.defaults.start, end: loaderData.defaults.end },
+  });
+  const [chosen, setChosen] = useState(String(fields.equipmentId.initialValue ?? ""));
+  const [rate, setRate] = useState("");
+  const [depth, setDepth] = useState("");
+  const [start, setStart] = useState(String(fields.start.initialValue ?? ""));
+  const chosenItem = items.find((i) => String(i.id) === chosen);
+  const leadS = Number(rate) > 0 && Number(depth) > 0 ? spinUpLeadS(Number(depth) / 100, Number(rate), loaderData.spinUpTimesToWait) : null;
+  const proposedStart = leadS !== null && start && !Number.isNaN(new Date(start).getTime()) ? new Date(Math.floor((new Date(start).getTime() - leadS * 1000) / 60_000) * 60_000) : null;
+  const weekItem = items.find((i) => i.id === week.itemId);
+
+  return (
+    <div>
+      <PageHeader title="Bookings" subtitle="Ask for equipment time; a lab manager approves it. Approved time never overlaps on one item." />
+      <div className="mb-4 flex flex-col gap-3">
+        {outcome.notice ? <Notice kind="success">{outcome.notice}</Notice> : null}
+        {outcome.problem ? <Notice kind="error">{outcome.problem}</Notice> : null}
+        {outcome.feedUrl ? (
+          <Notice kind="info" title="Calendar feed address">
+            <code className="break-all" data-testid="feed-url">{outcome.feedUrl}</code>
+          </Notice>
+        ) : null}
+      </div>
+
+      <div className="grid gap-6 lg:grid-cols-[1fr_2fr]">
+        <Card title="Request equipment time">
+          <Form method="post" className="flex flex-col gap-4" {...getFormProps(form)}>
+            <input type="hidden" name="intent" value="request" />
+            {form.errors?.length ? <Notice kind="error">{form.errors[0]}</Notice> : null}
+            <SelectField label="Equipment" name={fields.equipmentId.name} key={fields.equipmentId.key} defaultValue={chosen} error={fields.equipmentId.errors} onChange={(e) => setChosen(e.target.value)}>
+              <option value="">Choose…</option>
+              {bookable.map((i) => (
+                <option key={i.id} value={i.id}>
+                  {i.name} ({kindLabels[i.kind].toLowerCase()})
+                </option>
+              ))}
+            </SelectField>
+            <TextField label="Start" type="datetime-local" name={fields.start.name} key={fields.start.key} defaultValue={fields.start.initialValue as string | undefined} error={fields.start.errors} onChange={(e) => setStart(e.target.value)} />
+            <TextField label="End" type="datetime-local" name={fields.end.name} key={fields.end.key} defaultValue={fields.end.initialValue as string | undefined} error={fields.end.errors} />
+            <TextAreaField label="Purpose" name={fields.purpose.name} key={fields.purpose.key} defaultValue={fields.purpose.initialValue as string | undefined} error={fields.purpose.errors} maxLength={300} placeholder="e.g. Second-year lab, inertial circles" />
+            {chosenItem?.kind === "table" ? (
+              <>
+                <p className="text-sm text-muted">For a run, give the planned rate and depth: Tankside works out how long the water needs to spin up.</p>
+                <TextField label="Planned rate" name={fields.plannedRateRpm.name} key={fields.plannedRateRpm.key} defaultValue={fields.plannedRateRpm.initialValue as string | undefined} error={fields.plannedRateRpm.errors} unit="rpm" inputMode="decimal" onChange={(e) => setRate(e.target.value)} />
+                <TextField label="Planned water depth" name={fields.plannedDepthCm.name} key={fields.plannedDepthCm.key} defaultValue={fields.plannedDepthCm.initialValue as string | undefined} error={fields.plannedDepthCm.errors} unit="cm" inputMode="decimal" onChange={(e) => setDepth(e.target.value)} />
+                {leadS !== null ? (
+                  <div data-testid="spin-up-proposal">
+                    <Notice kind="info" title="Spin-up lead time">
+                      {loaderData.spinUpTimesToWait} × τ = {Math.round(leadS / 60)} min (τ = H/√(νΩ), water at ν = 1.0 × 10⁻⁶ m²/s).
+                      {proposedStart ? ` Tankside proposes starting at ${formatDateTime(proposedStart)}.` : null}
+                    </Notice>
+                  </div>
+                ) : null}
+                <label className="flex min-h-12 items-center gap-3 font-bold">
+                  <input type="checkbox" name={fields.addSpinUpLead.name} className="h-6 w-6" defaultChecked={fields.addSpinUpLead.initialValue === "on"} />
+                  Start earlier by the spin-up lead time
+                </label>
+                {fields.addSpinUpLead.errors ? <p className="text-sm font-bold text-disagrees-ink" role="alert">{fields.addSpinUpLead.errors[0]}</p> : null}
+                <Notice kind="caution">{tableBookingCaution}</Notice>
+              </>
+            ) : null}
+            <Button type="submit" disabled={navigation.state === "submitting"}>Request booking</Button>
+          </Form>
+        </Card>
+
+        <Card title={<span id="week">Week view{weekItem ? `: ${weekItem.name}` : ""}</span>}>
+          <Form method="get" className="mb-4 flex flex-wrap items-end gap-3" preventScrollReset>
+            <div className="min-w-64 flex-1">
+              <SelectField label="Item" name="item" defaultValue={String(week.itemId || "")}>
+                {items.filter((i) => i.status !== "retired").map((i) => (
+                  <option key={i.id} value={i.id}>{i.name}</option>
+                ))}
+              </SelectField>
+            </div>
+            <input type="hidden" name="week" value={week.start} />
+            <Button tone="plain" type="submit">Show</Button>
+          </Form>
+          {week.itemId ? <BookingWeek bookings={week.bookings} week={week.start} itemId={week.itemId} /> : <p>No equipment to show.</p>}
+          <p className="mt-2 text-sm text-muted">Solid: approved. Hatched outline: requested, not yet decided. Select a booking to open it.</p>
+        </Card>
+      </div>
+
+      <Card title="All bookings" className="mt-6">
+        <Form method="get" className="mb-4 grid gap-3 md:grid-cols-5 md:items-end">
+          <SelectField label="Equipment" name="equipmentId" defaultValue={loaderData.filter.equipmentId ?? ""}>
+            <option value="">Any</option>
+            {items.map((i) => (
+              <option key={i.id} value={i.id}>{i.name}</option>
+            ))}
+          </SelectField>
+          <SelectField label="State" name="state" defaultValue={loaderData.filter.state ?? ""}>
+            <option value="">Any</option>
+            {bookingStates.map((s) => (
+              <option key={s} value={s}>{bookingStateLabels[s]}</option>
+            ))}
+          </SelectField>
+          <TextField label="From" type="date" name="from" defaultValue={loaderData.filter.from ?? ""} hint="Default: a week ago" />
+          <TextField label="To" type="date" name="to" defaultValue={loaderData.filter.to ?? ""} />
+          <div className="flex flex-col gap-2">
+            <label className="flex min-h-12 items-center gap-2 font-bold">
+              <input type="checkbox" name="mine" value="1" defaultChecked={loaderData.filter.mine === "1"} className="h-6 w-6" /> Only mine
+            </label>
+            <Button tone="plain" type="submit">Filter</Button>
+          </div>
+        </Form>
+        {loaderData.filterProblem ? <Notice kind="error">{loaderData.filterProblem}</Notice> : null}
+        {bookings.length === 0 ? (
+          <p>No bookings match.</p>
+        ) : (
+          <div className="overflow-x-auto">
+            <table className="w-full text-left">
+              <thead>
+                <tr className="border-b-2 border-line">
+                  <th className="py-2 pr-3">Booking</th>
+                  <th className="py-2 pr-3">Item</th>
+                  <th className="py-2 pr-3">Slot</th>
+                  <th className="py-2 pr-3">Purpose</th>
+                  <th className="py-2 pr-3">State</th>
+                  <th className="py-2">Actions</th>
+                </tr>
+              </thead>
+              <tbody>
+                {bookings.map((b) => {
+                  const open = b.state === "requested" || b.state === "approved";
+                  const canCancel = open && (isManager || b.requesterId === user.id) && new Date(b.end).getTime() > Date.now();
+                  return (
+                    <tr key={b.id} className="border-b border-line align-top" data-testid={`booking-${b.id}`}>
+                      <td className="py-3 pr-3">
+                        <Link to={`/bookings/${b.id}`} className="font-bold">#{b.id}</Link>
+                        <p className="text-sm text-muted">{b.requesterName}</p>
+                      </td>
+                      <td className="py-3 pr-3">{b.equipmentName}</td>
+                      <td className="py-3 pr-3">
+                        {formatDateTime(b.start)} –<br />
+                        {formatDateTime(b.end)}
+                        {b.spinUpLeadMinutes ? <p className="text-sm text-muted">incl. {b.spinUpLeadMinutes} min spin-up</p> : null}
+                      </td>
+                      <td className="py-3 pr-3">{b.purpose}</td>
+                      <td className="py-3 pr-3">
+                        <StateTag state={b.state} />
+                        {b.declineReason ? <p className="text-sm">{b.declineReason}</p> : null}
+                      </td>
+                      <td className="py-3">
+                        <div className="flex flex-wrap gap-2">
+                          {isManager && b.state === "requested" ? (
+                            <>
+                              <Form method="post">
+                                <input type="hidden" name="bookingId" value={b.id} />
+                                <Button type="submit" name="intent" value="approve">Approve</Button>
+                              </Form>
+                              <Form method="post" className="flex flex-wrap items-center gap-2">
+                                <input type="hidden" name="bookingId" value={b.id} />
+                                <label className="sr-only" htmlFor={`reason-${b.id}`}>Reason for declining booking #{b.id}</label>
+                                <input id={`reason-${b.id}`} name="reason" required minLength={3} maxLength={500} placeholder="Reason" className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-3" />
+                                <Button tone="danger" type="submit" name="intent" value="decline">Decline</Button>
+                              </Form>
+                            </>
+                          ) : null}
+                          {canCancel ? (
+                            <Form method="post">
+                              <input type="hidden" name="bookingId" value={b.id} />
+                              <Button tone="quiet" type="submit" name="intent" value="cancel">Cancel booking</Button>
+                            </Form>
+                          ) : null}
+                          {b.state === "approved" ? <ButtonA tone="quiet" href={`/api/v1/bookings/${b.id}/ics`}>.ics</ButtonA> : null}
+                        </div>
+                      </td>
+                    </tr>
+                  );
+                })}
+              </tbody>
+            </table>
+          </div>
+        )}
+      </Card>
+
+      <Card title="Your approved bookings in your calendar" className="mt-6">
+        <p className="mb-3">
+          Calendar apps cannot sign in, so your feed has its own secret address. Anyone with the address sees your approved bookings; make a new one to shut the old one out.
+        </p>
+        {loaderData.feed ? (
+          <p className="mb-3 text-sm text-muted">
+            Current address starts with <code>{loaderData.feed.prefix}…</code>
+            {loaderData.feed.lastUsedAt ? `, last read ${formatDateTime(loaderData.feed.lastUsedAt)}` : ", not read yet"}.
+          </p>
+        ) : null}
+        <div className="flex flex-wrap gap-3">
+          <Form method="post">
+            <Button tone="plain" type="submit" name="intent" value="feed">{loaderData.feed ? "Make a new feed address" : "Make my feed address"}</Button>
+          </Form>
+          {loaderData.feed ? (
+            <Form method="post">
+              <Button tone="danger" type="submit" name="intent" value="feed-revoke">Stop the feed</Button>
+            </Form>
+          ) : null}
+        </div>
+      </Card>
+    </div>
+  );
+}

@@ -1,0 +1,160 @@
+import { Form, data } from "react-router";
+import type { Route } from "./+types/detail";
+import uppyCore from "@uppy/core/css/style.min.css?url";
+import uppyDashboard from "@uppy/dashboard/css/style.min.css?url";
+import { requireRole, requireUser } from "~/.server/auth/permissions";
+import { notFound } from "~/.server/http";
+import { CalibrationError, getCalibration, serializeCalibrations, signOffCalibration } from "~/.server/calibrations";
+import { calibrationKindLabels, trueRateFromCalibration } from "~/lib/calibrations";
+import { formatDate, formatDateTime, formatNumber } from "~/lib/format";
+import { Button, ButtonLink } from "~/components/ui/button";
+import { Card, PageHeader } from "~/components/ui/card";
+import { Notice } from "~/components/ui/notice";
+import { StandingTag, calibrationResult } from "~/components/calibration-facts";
+import { CalibrationUploader } from "~/components/calibration-uploader";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? `${calibrationKindLabels[data.record.kind]} #${data.record.id}` : "Calibration"} · Tankside` }];
+export const links: Route.LinksFunction = () => [
+  { rel: "stylesheet", href: uppyCore },
+  { rel: "stylesheet", href: uppyDashboard },
+];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const user = await requireUser(request);
+  const cal = await getCalibration(Number(params.id));
+  if (!cal) throw notFound(request, "That calibration record");
+  const [record] = await serializeCalibrations([cal]);
+  return { record: record!, canRecord: user.role !== "instructor", canSign: user.role === "lab_manager" };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const manager = await requireRole(request, "lab_manager");
+  const intent = String((await request.formData()).get("intent") ?? "");
+  if (intent !== "sign-off") return data({ problem: "Unknown action." }, { status: 400 });
+  try {
+    await signOffCalibration(Number(params.id), manager);
+    return { notice: "Signed off. From now on this record is kept exactly as it is." };
+  } catch (err) {
+    if (err instanceof CalibrationError) return data({ problem: err.message }, { status: err.status });
+    throw err;
+  }
+}
+
+export default function CalibrationDetail({ loaderData, actionData }: Route.ComponentProps) {
+  const r = loaderData.record;
+  const outcome = (actionData ?? {}) as { notice?: string; problem?: string };
+  const signed = Boolean(r.signedOffAt);
+  const line =
+    r.kind === "rate" && r.slope !== null
+      ? { slope: r.slope, intercept: r.interceptRpm!, slopeStdError: r.slopeStdError!, interceptStdError: r.interceptStdErrorRpm!, slopeInterceptCovariance: r.slopeInterceptCovarianceRpm! }
+      : null;
+  const rows: [string, string | null][] = [
+    ["Item", r.equipmentName],
+    ["Rate meter", r.meterName],
+    ["Performed", `${formatDate(r.performedAt)} by ${r.performedByName}`],
+    ["Due", formatDate(r.dueAt)],
+    ["Signed off", r.signedOffAt ? `${formatDateTime(r.signedOffAt)} by ${r.signedOffByName}` : "Not yet"],
+    ["Result", calibrationResult(r)],
+    ["Reminder", r.reminder ? (r.reminder.state === "sent" ? `Sent ${formatDateTime(r.reminder.sentAt)}` : r.reminder.state === "failed" ? `Failed (${r.reminder.lastError}); retried within the hour` : "Being sent") : null],
+  ];
+  return (
+    <div>
+      <PageHeader
+        title={`${calibrationKindLabels[r.kind]} #${r.id}`}
+        subtitle={<StandingTag standing={r.standing} />}
+        actions={
+          <>
+            {!signed && loaderData.canRecord ? <ButtonLink to={`/calibrations/${r.id}/edit`}>Edit</ButtonLink> : null}
+            {signed && loaderData.canRecord ? <ButtonLink to={`/calibrations/new?equipmentId=${r.equipmentId}&kind=${r.kind}`}>Record a new one</ButtonLink> : null}
+            {!signed && loaderData.canSign ? (
+              <Form method="post">
+                <Button type="submit" name="intent" value="sign-off">Sign off</Button>
+              </Form>
+            ) : null}
+          </>
+        }
+      />
+      <div className="mb-4 flex flex-col gap-3">
+        {outcome.notice ? <Notice kind="success">{outcome.notice}</Notice> : null}
+        {outcome.problem ? <Notice kind="error">{outcome.problem}</Notice> : null}
+        {r.standing === "past_due" ? <Notice kind="error" title="Past due">This record is no longer in force. Runs made with {r.equipmentName} are flagged until a new record is signed off.</Notice> : null}
+        {r.standing === "superseded" ? <Notice kind="info" title="Superseded">A later signed record of this kind for {r.equipmentName} is the one that counts.</Notice> : null}
+        {!signed ? <Notice kind="caution" title="Awaiting sign-off">Not in force until a lab manager signs it off.</Notice> : null}
+        {r.kind === "rate" && r.passed === false ? <Notice kind="error" title="Fails the tolerance">At least one reading is more than {r.tolerancePct} % off its set rate. Check the drive before relying on the rate.</Notice> : null}
+      </div>
+      <div className="grid gap-6 lg:grid-cols-2">
+        <Card title="The record">
+          <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
+            {rows.filter(([, v]) => v).map(([k, v]) => (
+              <div key={k} className="contents">
+                <dt className="font-bold">{k}</dt>
+                <dd>{v}</dd>
+              </div>
+            ))}
+          </dl>
+          {r.notes ? <p className="mt-4 whitespace-pre-wrap">{r.notes}</p> : null}
+        </Card>
+        {r.kind === "rate" && r.readings && line ? (
+          <Card title="Readings and fit">
+            <table className="w-full text-left">
+              <thead>
+                <tr className="border-b-2 border-line">
+                  <th className="py-1 pr-3">Set (rpm)</th>
+                  <th className="py-1 pr-3">Measured (rpm)</th>
+                  <th className="py-1 pr-3">Off set rate</th>
+                  <th className="py-1">Residual (rpm)</th>
+                </tr>
+              </thead>
+              <tbody>
+                {r.readings.map((x, i) => {
+                  const pct = (100 * (x.measuredRpm - x.setRpm)) / x.setRpm;
+                  return (
+                    <tr key={i} className="border-b border-line">
+                      <td className="py-1 pr-3 font-mono">{x.setRpm}</td>
+                      <td className="py-1 pr-3 font-mono">{x.measuredRpm}</td>
+                      <td className={`py-1 pr-3 font-mono ${Math.abs(pct) > (r.tolerancePct ?? 1) ? "font-bold text-disagrees-ink" : ""}`}>{pct >= 0 ? "+" : ""}{formatNumber(pct, 3)} %</td>
+                      <td className="py-1 font-mono">{formatNumber(x.measuredRpm - (line.slope * x.setRpm + line.intercept), 3)}</td>
+                    </tr>
+                  );
+                })}
+              </tbody>
+            </table>
+            <dl className="mt-4 grid grid-cols-[auto_1fr] gap-x-6 gap-y-1 text-sm">
+              <dt className="font-bold">Slope a</dt>
+              <dd className="font-mono">{formatNumber(line.slope, 6)} ± {formatNumber(line.slopeStdError, 2)}</dd>
+              <dt className="font-bold">Intercept b</dt>
+              <dd className="font-mono">{formatNumber(line.intercept, 4)} ± {formatNumber(line.interceptStdError, 2)} rpm</dd>
+              <dt className="font-bold">Residual SD</dt>
+              <dd className="font-mono">{formatNumber(r.residualSdRpm, 3)} rpm</dd>
+              <dt className="font-bold">Largest residual</dt>
+              <dd className="font-mono">{formatNumber(r.maxResidualRpm, 3)} rpm</dd>
+              <dt className="font-bold">Largest deviation</dt>
+              <dd className="font-mono">{formatNumber(r.maxDeviationRpm, 3)} rpm ({formatNumber(r.maxDeviationPct, 3)} %)</dd>
+              <dt className="font-bold">True rate at 10 rpm set</dt>
+              <dd className="font-mono">
+                {(() => {
+                  const t = trueRateFromCalibration(line, 10);
+                  return `${formatNumber(t.rpm, 6)} ± ${formatNumber(t.stdErrorRpm, 2)} rpm`;
+                })()}
+              </dd>
+            </dl>
+          </Card>
+        ) : null}
+        <Card title="Photos and certificates">
+          {r.attachments.length ? (
+            <ul className="mb-4 flex flex-col gap-2">
+              {r.attachments.map((a) => (
+                <li key={a.id}>
+                  <a href={a.url} target="_blank" rel="noreferrer">{a.originalName}</a> <span className="text-sm text-muted">({a.contentType}, {Math.ceil(a.sizeBytes / 1024)} kB)</span>
+                </li>
+              ))}
+            </ul>
+          ) : (
+            <p className="mb-4 text-muted">None attached.</p>
+          )}
+          {!signed && loaderData.canRecord ? <CalibrationUploader calibrationId={r.id} /> : signed ? <p className="text-sm text-muted">Signed records take no new attachments.</p> : null}
+        </Card>
+      </div>
+    </div>
+  );
+}

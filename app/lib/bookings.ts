@@ -1,3 +1,5 @@
+import { spinUpTime } from "./conditions/run-conditions";
+
 export const bookingStates = ["requested", "approved", "declined", "cancelled"] as const;
 export type BookingState = (typeof bookingStates)[number];
 
@@ -12,13 +14,12 @@ export const bookingStateLabels: Record<BookingState, string> = {
 export const WATER_KINEMATIC_VISCOSITY_M2_S = 1.0e-6;
 
 /**
- * Ekman spin-up time τ = H/√(νΩ) for water of depth H on a table turning at Ω. Kept here, small
- * and on its own, because the run-condition calculators were not yet available to this module.
+ * Ekman spin-up time τ = H/√(νΩ) for water of depth H (free surface) on a table turning at Ω, through
+ * the run-condition calculator. A booking has no water temperature yet, hence ν at about 20 °C.
  */
 export function ekmanSpinUpTimeS(depthM: number, rateRpm: number, nuM2PerS = WATER_KINEMATIC_VISCOSITY_M2_S): number {
   if (!(depthM > 0) || !(rateRpm > 0) || !(nuM2PerS > 0)) throw new RangeError("depth, rate and viscosity must be more than zero");
-  const omega = (rateRpm * 2 * Math.PI) / 60;
-  return depthM / Math.sqrt(nuM2PerS * omega);
+  return spinUpTime(depthM, nuM2PerS, (rateRpm * 2 * Math.PI) / 60);
 }
 
 /** The lead time before filming: the lab's number of spin-up times to wait, each τ long. */

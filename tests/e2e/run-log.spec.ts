@@ -115,7 +115,7 @@ test("bad filters get a clear message on the page and a 400 from the API", async
   await api.dispose();
 });
 
-test("a wrong or revoked token gets 401, and a signed-off run refuses edits with 409", async ({ page, baseURL }) => {
+test("a wrong or revoked token gets 401, and a tracks export of a run without tracks gets 409", async ({ page, baseURL }) => {
   const anon = await playwrightRequest.newContext({ baseURL });
   const wrong = await anon.get("/api/v1/runs", { headers: { Authorization: "Bearer tks_wrong" } });
   expect(wrong.status()).toBe(401);

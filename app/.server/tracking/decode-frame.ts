@@ -62,9 +62,11 @@ export async function readFrameSize(file: string, index: number): Promise<FrameS
 /** The plan's crop of one frame: green channel for floats, RGB for dye, row-major bytes. */
 export async function decodeFrame(file: string, index: number, plan: DetectionPlan): Promise<Uint8Array> {
   const bytes = await readBytes(file, index);
+  // One instance for the header check and the decode, as sharp allows.
+  const image = sharp(bytes, sharpOptions);
   let meta: Metadata;
   try {
-    meta = await sharp(bytes, sharpOptions).metadata();
+    meta = await image.metadata();
   } catch (error) {
     throw unreadable(file, index, reasonOf(error), error);
   }
@@ -76,7 +78,7 @@ export async function decodeFrame(file: string, index: number, plan: DetectionPl
     );
   }
   const { left, top, width, height } = plan.crop;
-  let pipeline = sharp(bytes, sharpOptions).extract({ left, top, width, height });
+  let pipeline = image.extract({ left, top, width, height });
   if (plan.channels === 1) {
     pipeline = pipeline.extractChannel((meta.channels ?? 3) >= 3 ? 1 : 0);
   } else {

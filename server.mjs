@@ -7,6 +7,7 @@ import { createRequestHandler } from "@react-router/express";
 const dev = process.argv.includes("--dev");
 const port = Number(process.env.PORT ?? 3000);
 const host = process.env.HOST ?? "127.0.0.1";
+const buildDir = process.env.TANKSIDE_BUILD_DIR ?? "build";
 
 function securityHeaders(req, res, next) {
   const nonce = crypto.randomBytes(16).toString("base64");
@@ -58,9 +59,21 @@ function sameOriginOnly(req, res, next) {
   res.status(403).type("text/plain").send(message);
 }
 
+// A refusal (401/403/413…) can be sent before an upload's body is read. Such a socket cannot be
+// reused for the next request, so tell the client to close it instead of letting it reset.
+function closeUnreadUploads(req, res, next) {
+  const writeHead = res.writeHead;
+  res.writeHead = function (...args) {
+    if (!req.complete && !res.headersSent) res.setHeader("Connection", "close");
+    return writeHead.apply(this, args);
+  };
+  next();
+}
+
 const app = express();
 app.disable("x-powered-by");
 if (process.env.TRUST_PROXY) app.set("trust proxy", process.env.TRUST_PROXY);
+app.use(closeUnreadUploads);
 app.use(compression());
 app.use(securityHeaders);
 app.use(sameOriginOnly);
@@ -74,10 +87,10 @@ if (dev) {
   const mod = await build();
   await mod.entry.module.boot();
 } else {
-  build = await import("./build/server/index.js");
+  build = await import(new URL(`./${buildDir}/server/index.js`, import.meta.url).href);
   await build.entry.module.boot();
-  app.use("/assets", express.static("build/client/assets", { immutable: true, maxAge: "1y" }));
-  app.use(express.static("build/client", { maxAge: "1h", index: false }));
+  app.use("/assets", express.static(`${buildDir}/client/assets`, { immutable: true, maxAge: "1y" }));
+  app.use(express.static(`${buildDir}/client`, { maxAge: "1h", index: false }));
 }
 
 app.all(

@@ -37,6 +37,12 @@ export default [
     route("rows", "routes/runs/rows.ts"),
     route(":id/sign-off", "routes/runs/sign-off.ts"),
     route(":id/report", "routes/runs/report.tsx"),
+    route("new", "routes/runs/edit.tsx", { id: "run-new" }),
+    route(":id", "routes/runs/run.tsx"),
+    route(":id/edit", "routes/runs/edit.tsx", { id: "run-edit" }),
+    route(":id/setup", "routes/runs/setup.tsx"),
+    route(":id/frames/:frameId/image", "routes/runs/frame-image.ts"),
+    route(":id/overlay.png", "routes/runs/overlay.ts"),
   ]),
 
   ...prefix("api/v1", [
@@ -50,6 +56,8 @@ export default [
     route("runs/:id/tracks.csv", "routes/api/run-tracks-csv.ts"),
     route("runs/:id/export.json", "routes/api/run-export.ts"),
     route("openapi.json", "routes/api/openapi.ts"),
+    route("runs/:runId/frames", "routes/api/run-frames.ts"),
+    route("runs/:runId/tracking", "routes/api/run-tracking.ts"),
     route("bookings", "routes/api/bookings.ts"),
     route("bookings/:id", "routes/api/booking-item.ts"),
     route("bookings/:id/approve", "routes/api/booking-decision.ts", { id: "api-booking-approve" }),

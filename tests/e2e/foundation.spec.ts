@@ -2,8 +2,8 @@ import { expect, test, request as playwrightRequest } from "@playwright/test";
 import { apiAs, latestMailId, linkIn, people, signIn, waitForMail } from "./helpers";
 
 const navFor = {
-  [people.manager]: ["Today", "Runs", "Equipment", "Bookings", "People", "Captured mail"],
-  [people.tech]: ["Today", "Runs", "Equipment", "Bookings"],
+  [people.manager]: ["Today", "Runs", "Equipment", "Bookings", "Calibrations", "People", "Captured mail", "Settings"],
+  [people.tech]: ["Today", "Runs", "Equipment", "Bookings", "Calibrations"],
   [people.instructor]: ["Today", "Runs", "Equipment", "Bookings"],
 };
 

@@ -5,7 +5,8 @@ import fs from "node:fs";
 import path from "node:path";
 
 const root = path.resolve(import.meta.dirname, "../..");
-const tmp = path.join(root, "tests/.tmp");
+// One folder per port, so two test runs on one machine do not share a database.
+const tmp = path.join(root, "tests/.tmp", `e2e-${process.env.E2E_PORT ?? "3210"}`);
 fs.rmSync(tmp, { recursive: true, force: true });
 fs.mkdirSync(path.join(tmp, "uploads"), { recursive: true });
 

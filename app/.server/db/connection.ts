@@ -1,4 +1,4 @@
-import { Sequelize, type Options } from "sequelize";
+import { Sequelize, Transaction, type Options } from "sequelize";
 import sqlite3 from "sqlite3";
 import { env } from "../env";
 
@@ -15,6 +15,9 @@ function createSequelize(url: string): Sequelize {
       dialect: "sqlite",
       dialectModule: sqlite3,
       storage,
+      // Writers take SQLite's write lock when their transaction begins, so two of them wait their
+      // turn (busy timeout) instead of failing when a read lock cannot be upgraded.
+      transactionType: Transaction.TYPES.IMMEDIATE,
       // Each connection (transactions get their own) waits on a lock instead of failing at once.
       hooks: {
         afterConnect: async (connection: unknown) => {

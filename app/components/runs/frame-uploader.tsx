@@ -6,7 +6,7 @@ import { cutVideoIntoFrames } from "./video-frames";
 import { uploadLimits, acceptedFrameTypes } from "~/lib/upload-limits";
 import { Button } from "~/components/ui/button";
 
-type Meta = { timeS?: number; displayName?: string };
+type Meta = { timeS: number | ""; displayName?: string };
 type Outcome = { id: string; name: string; state: "waiting" | "sent" | "duplicate" | "rejected"; message?: string };
 
 interface ResponseBody {
@@ -31,6 +31,19 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
       limit: 2,
       allowedMetaFields: ["timeS"],
       timeout: 0,
+      // A refusal (4xx) is final and carries the reason; only a lost connection or a server fault is worth retrying.
+      shouldRetry: (xhr: XMLHttpRequest) => xhr.status === 0 || xhr.status >= 500,
+      onAfterResponse: (xhr: XMLHttpRequest) => {
+        if (xhr.status < 400) return;
+        let message = `The server answered ${xhr.status}.`;
+        try {
+          const body = JSON.parse(xhr.responseText) as ResponseBody;
+          if (body.error?.message) message = body.error.message;
+        } catch {
+          // not JSON: keep the status
+        }
+        throw new Error(message);
+      },
     }),
   );
   const [outcomes, setOutcomes] = useState<Outcome[]>([]);
@@ -61,7 +74,7 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
     };
     const onError = (file: { id: string } | undefined, error: { message?: string }, response?: { body?: ResponseBody; status: number }) => {
       if (!file) return;
-      update(file.id, { state: "rejected", message: response?.body?.error?.message ?? error?.message ?? "Refused." });
+      update(file.id, { state: "rejected", message: error?.message ?? response?.body?.error?.message ?? "Refused." });
     };
     const onComplete = () => {
       setBusy(false);
@@ -96,7 +109,7 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
             queued.push({ id, name: f.file.name, state: "waiting" });
           }
         } else {
-          const id = uppy.addFile({ name: file.name, type: file.type || "application/octet-stream", data: file, meta: {} });
+          const id = uppy.addFile({ name: file.name, type: file.type || "application/octet-stream", data: file, meta: { timeS: "" } });
           queued.push({ id, name: file.name, state: "waiting" });
         }
       }

@@ -2,7 +2,7 @@ import { Form, data, redirect } from "react-router";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/setup";
 import { requireRole } from "~/.server/auth/permissions";
-import { Frame, ViewSetup } from "~/.server/db";
+import { Frame, Run, ViewSetup } from "~/.server/db";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { viewSetupSchema } from "~/lib/validation/view-setup";
 import { runLabel } from "~/lib/runs";
@@ -30,6 +30,16 @@ function toValues(s: ViewSetup): SetupValues {
   };
 }
 
+/** The camera's last setup, if it was made on frames of this size (a different size means a different mode or crop). */
+async function lastSetupOfCamera(cameraId: number, width: number, height: number) {
+  const recent = await ViewSetup.findAll({ where: { cameraId }, order: [["updatedAt", "DESC"]], limit: 10 });
+  for (const s of recent) {
+    const run = await Run.findByPk(s.runId, { attributes: ["frameWidthPx", "frameHeightPx"] });
+    if (run?.frameWidthPx === width && run.frameHeightPx === height) return s;
+  }
+  return null;
+}
+
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireRole(request, "technician", "lab_manager");
   const run = await loadRun(request, params.id);
@@ -39,7 +49,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const frame = await Frame.findOne({ where: { runId: run.id, position: 0 } });
   const own = await ViewSetup.findOne({ where: { runId: run.id } });
   // The same camera usually hangs in the same place: start from its last setup.
-  const previous = own ? null : await ViewSetup.findOne({ where: { cameraId: run.cameraId }, order: [["updatedAt", "DESC"]] });
+  const previous = own ? null : await lastSetupOfCamera(run.cameraId, frame!.widthPx, frame!.heightPx);
   const start = own ?? previous;
   return {
     runId: run.id,
@@ -60,6 +70,9 @@ export async function action({ request, params }: Route.ActionArgs) {
   const h = run.frameHeightPx ?? 0;
   const errors: Record<string, string[]> = {};
   if (v.centreX < 0 || v.centreX > w || v.centreY < 0 || v.centreY > h) errors.centreX = [`The centre must lie inside the ${w} × ${h} px frame.`];
+  if (v.edgeX !== undefined && v.edgeY !== undefined && (v.edgeX < 0 || v.edgeX > w || v.edgeY < 0 || v.edgeY > h)) {
+    errors.edgeX = [`The tank edge's centre must lie inside the ${w} × ${h} px frame.`];
+  }
   if (Object.keys(errors).length) return data({ errors }, { status: 400 });
   const values = {
     runId: run.id,

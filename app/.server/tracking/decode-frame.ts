@@ -24,10 +24,34 @@ function unreadable(file: string, index: number, reason: string, cause?: unknown
   });
 }
 
-function reasonOf(error: unknown): string {
+/**
+ * Whether the bytes stop before the format's end marker. Checked on the content, because libvips
+ * keeps one error message for all threads: when frames decode side by side, a failure can reach
+ * us as "Unknown error".
+ */
+function cutShort(bytes: Buffer): boolean {
+  const tail = bytes.subarray(Math.max(0, bytes.length - 64));
+  if (bytes[0] === 0xff && bytes[1] === 0xd8) return tail.indexOf(Buffer.from([0xff, 0xd9])) < 0;
+  if (bytes.subarray(1, 4).toString("latin1") === "PNG") return tail.indexOf("IEND", 0, "latin1") < 0;
+  return false;
+}
+
+/** JPEG, PNG, TIFF or WebP by their first bytes. */
+function frameFormat(bytes: Buffer): boolean {
+  const head = bytes.subarray(0, 12).toString("latin1");
+  return (
+    (bytes[0] === 0xff && bytes[1] === 0xd8) ||
+    head.startsWith("\x89PNG") ||
+    head.startsWith("II*\0") ||
+    head.startsWith("MM\0*") ||
+    (head.startsWith("RIFF") && head.slice(8, 12) === "WEBP")
+  );
+}
+
+function reasonOf(error: unknown, bytes?: Buffer): string {
   const message = error instanceof Error ? error.message : String(error);
-  if (/premature end|truncated/i.test(message)) return "the file is cut short (truncated)";
-  if (/unsupported image format|bad seek|not a known file format/i.test(message)) {
+  if ((bytes && cutShort(bytes)) || /premature end|truncated/i.test(message)) return "the file is cut short (truncated)";
+  if ((bytes && !frameFormat(bytes)) || /unsupported image format|bad seek|not a known file format/i.test(message)) {
     return "it is not a JPEG, PNG, TIFF or WebP image";
   }
   return message.split("\n")[0].replace(/\.$/, "");
@@ -55,7 +79,7 @@ export async function readFrameSize(file: string, index: number): Promise<FrameS
     if (!meta.width || !meta.height) throw new Error("it has no size");
     return { width: meta.width, height: meta.height };
   } catch (error) {
-    throw unreadable(file, index, reasonOf(error), error);
+    throw unreadable(file, index, reasonOf(error, bytes), error);
   }
 }
 
@@ -68,7 +92,7 @@ export async function decodeFrame(file: string, index: number, plan: DetectionPl
   try {
     meta = await image.metadata();
   } catch (error) {
-    throw unreadable(file, index, reasonOf(error), error);
+    throw unreadable(file, index, reasonOf(error, bytes), error);
   }
   if (meta.width !== plan.frameWidth || meta.height !== plan.frameHeight) {
     throw new TrackingError(
@@ -89,7 +113,7 @@ export async function decodeFrame(file: string, index: number, plan: DetectionPl
   try {
     ({ data, info } = await pipeline.raw({ depth: "uchar" }).toBuffer({ resolveWithObject: true }));
   } catch (error) {
-    throw unreadable(file, index, reasonOf(error), error);
+    throw unreadable(file, index, reasonOf(error, bytes), error);
   }
   if (info.width !== width || info.height !== height || info.channels !== plan.channels) {
     throw unreadable(file, index, `it decoded to ${info.width}×${info.height} px with ${info.channels} channels`);

@@ -216,7 +216,10 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   const plan = makePlan(setup, width, height);
   const key = planKey(plan);
   const workers = trackingPool();
-  const warmUp = Promise.all(Array.from({ length: threads }, () => runTask(workers, { kind: "warm-up" })));
+  const arrived = new Int32Array(new SharedArrayBuffer(4));
+  const warmUp = Promise.all(
+    Array.from({ length: threads }, () => runTask(workers, { kind: "warm-up", arrived, expected: threads })),
+  );
   warmUp.catch(() => {});
   let background: Uint8Array | null;
   try {

@@ -26,11 +26,17 @@ export type TrackTask =
       from: number;
       to: number;
     }
-  | { kind: "warm-up" };
+  | {
+      /** Each worker counts itself in and waits for the others, so that every worker is started. */
+      kind: "warm-up";
+      arrived: Int32Array;
+      expected: number;
+    };
 
 export type TrackTaskResult = Detection[] | null;
 
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };
+const warmUpWaitMs = 5_000;
 
 /**
  * Detectors keep their OpenCV matrices between frames of one plan. Two jobs may share the pool,
@@ -56,8 +62,17 @@ function detectorFor(key: string, plan: DetectionPlan): Detector {
 }
 
 export default function runTrackTask(task: TrackTask): TrackTaskResult {
-  // Loading the worker (tsx, OpenCV) is the cost; a job starts the workers while it decodes.
-  if (task.kind === "warm-up") return null;
+  // Loading a worker (tsx, OpenCV) takes about a second; a job starts them all while it decodes.
+  if (task.kind === "warm-up") {
+    Atomics.add(task.arrived, 0, 1);
+    Atomics.notify(task.arrived, 0);
+    const deadline = Date.now() + warmUpWaitMs;
+    for (let seen = Atomics.load(task.arrived, 0); seen < task.expected && Date.now() < deadline; ) {
+      Atomics.wait(task.arrived, 0, seen, Math.max(1, deadline - Date.now()));
+      seen = Atomics.load(task.arrived, 0);
+    }
+    return null;
+  }
   if (task.kind === "background") {
     const length = task.out.length;
     const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));

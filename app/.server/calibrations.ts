@@ -215,6 +215,21 @@ export async function calibrationsInForce(equipmentIds: number[], at: Date): Pro
     }));
 }
 
+export interface PastDueAtRun {
+  id: number;
+  kind: CalibrationKind;
+  equipmentId: number;
+  dueAt: string;
+}
+
+/** Latest signed records of these items that were already past due at `at`: what a run made then must be flagged for. */
+export async function calibrationsPastDueAt(equipmentIds: number[], at: Date): Promise<PastDueAtRun[]> {
+  const latest = await latestSigned(equipmentIds, at);
+  return latest
+    .filter((c) => c.dueAt.getTime() < at.getTime())
+    .map((c) => ({ id: c.id, kind: c.kind, equipmentId: c.equipmentId, dueAt: c.dueAt.toISOString() }));
+}
+
 export interface RateCalibrationInForce {
   id: number;
   slope: number;

@@ -4,7 +4,7 @@ import { latestCheck } from "./theory";
 import { serializeEquipment } from "../equipment";
 import { parseTrackPoints } from "./theory";
 import type { CurrentUser } from "../auth/permissions";
-import { canChangeRun } from "./service";
+import { calibrationSnapshot, canChangeRun } from "./service";
 
 /** Everything the run page shows, as plain data. */
 export async function runPageData(run: Run, user: CurrentUser) {
@@ -19,12 +19,7 @@ export async function runPageData(run: Run, user: CurrentUser) {
     Track.findAll({ where: { runId: run.id }, order: [["number", "ASC"]] }),
     latestCheck(run.id),
   ]);
-  let inForce: unknown[] = [];
-  try {
-    inForce = run.calibrationsInForce ? JSON.parse(run.calibrationsInForce) : [];
-  } catch {
-    inForce = [];
-  }
+  const snapshot = calibrationSnapshot(run);
   return {
     run: {
       ...run.get({ plain: true }),
@@ -38,7 +33,7 @@ export async function runPageData(run: Run, user: CurrentUser) {
     tank: tank ? serializeEquipment(tank) : null,
     camera: camera ? serializeEquipment(camera) : null,
     technician: technician ? { id: technician.id, name: technician.name } : null,
-    calibrationsInForce: inForce,
+    calibrations: snapshot,
     frames: frames.map((f) => ({ id: f.id, position: f.position, name: f.originalName, timeS: f.timeS })),
     setup: setup
       ? {

@@ -1,3 +1,4 @@
+import { calibrationSnapshot } from "./service";
 import { Op } from "sequelize";
 import { Calibration, Equipment, Frame, Run, RunHistory, TheoryCheck, Track, TrackingJob, User, ViewSetup, sequelize } from "../db";
 import { codeVersion } from "../version";
@@ -139,9 +140,8 @@ function parseJson<T>(text: string | null): T | null {
 
 /** Ids of the calibration records kept with the run when it was logged. */
 export function calibrationIdsInForce(run: Pick<Run, "calibrationsInForce">): number[] {
-  const list = parseJson<unknown[]>(run.calibrationsInForce) ?? [];
-  return list
-    .map((c) => (typeof c === "number" ? c : c && typeof c === "object" && "id" in c ? Number((c as { id: unknown }).id) : NaN))
+  return calibrationSnapshot(run)
+    .inForce.map((c) => Number(c.id))
     .filter((id) => Number.isInteger(id) && id > 0);
 }
 
@@ -224,7 +224,7 @@ export async function getRunDetail(runId: number, opts: { full?: boolean } = {})
     latestTheoryCheck: serializeCheck(check, Boolean(opts.full)),
     calibrationsInForce: {
       ids: calibrationIds,
-      recorded: parseJson<unknown[]>(run.calibrationsInForce) ?? [],
+      recorded: calibrationSnapshot(run),
       records: calibrations.map((c) => ({
         id: c.id,
         kind: c.kind,

@@ -3,6 +3,25 @@ import { Equipment, Run, RunHistory, sequelize } from "../db";
 import type { RunInput } from "~/lib/validation/run";
 import type { CurrentUser } from "../auth/permissions";
 import type { RunState } from "~/lib/runs";
+import { calibrationsInForce, calibrationsPastDueAt, type CalibrationInForce, type PastDueAtRun } from "../calibrations";
+
+export interface CalibrationSnapshot {
+  at: string | null;
+  inForce: CalibrationInForce[];
+  pastDue: PastDueAtRun[];
+}
+
+/** The calibrations stored with a run when it was logged. */
+export function calibrationSnapshot(run: Pick<Run, "calibrationsInForce">): CalibrationSnapshot {
+  try {
+    const parsed = run.calibrationsInForce ? JSON.parse(run.calibrationsInForce) : null;
+    if (Array.isArray(parsed)) return { at: null, inForce: parsed, pastDue: [] };
+    if (parsed && typeof parsed === "object") return { at: parsed.at ?? null, inForce: parsed.inForce ?? [], pastDue: parsed.pastDue ?? [] };
+  } catch {
+    // an unreadable snapshot counts as none
+  }
+  return { at: null, inForce: [], pastDue: [] };
+}
 
 export class RunError extends Error {
   constructor(
@@ -13,13 +32,6 @@ export class RunError extends Error {
   ) {
     super(message);
   }
-}
-
-/** Hook for the calibration records: returns what is in force for these items at this time. */
-type InForceLookup = (equipmentIds: number[], at: Date) => Promise<unknown[]>;
-let inForceLookup: InForceLookup = async () => [];
-export function setCalibrationsInForceLookup(fn: InForceLookup) {
-  inForceLookup = fn;
 }
 
 async function checkEquipment(input: RunInput, transaction?: Transaction) {
@@ -81,7 +93,10 @@ export async function createRun(input: RunInput, user: CurrentUser) {
       if (!old) throw new RunError("The run this corrects does not exist.", 404, "supersedesId", "not_found");
     }
     const at = input.rateReachedAt ?? new Date();
-    const inForce = await inForceLookup([input.tableId, input.tankId, input.cameraId], at);
+    // Frozen with the run: later sign-offs or expiries do not change what this run was made under.
+    const equipmentIds = [input.tableId, input.tankId, input.cameraId];
+    const inForce = await calibrationsInForce(equipmentIds, at);
+    const pastDue = await calibrationsPastDueAt(equipmentIds, at);
     const run = await Run.create(
       {
         ...columns(input),
@@ -89,7 +104,7 @@ export async function createRun(input: RunInput, user: CurrentUser) {
         supersedesId: input.supersedesId ?? null,
         signedOffById: null,
         signedOffAt: null,
-        calibrationsInForce: JSON.stringify(inForce),
+        calibrationsInForce: JSON.stringify({ at: at.toISOString(), inForce, pastDue }),
         verdict: null,
         frameWidthPx: null,
         frameHeightPx: null,

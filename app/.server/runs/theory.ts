@@ -1,4 +1,6 @@
-import { Equipment, Run, TheoryCheck, Track, ViewSetup, sequelize } from "../db";
+import { Calibration, Equipment, Run, TheoryCheck, Track, ViewSetup, sequelize } from "../db";
+import { calibrationSnapshot } from "./service";
+import { trueRateFromCalibration } from "~/lib/calibrations";
 import { getLabSettings } from "../settings";
 import { codeVersion } from "../version";
 import { runTheoryCheck, type TheoryCheckInput, type TheoryCheckResult } from "~/lib/analysis/check";
@@ -6,11 +8,27 @@ import { rpmToRadPerS } from "~/lib/analysis/units";
 import { setRunState } from "./service";
 
 export type RateInForce = { value: number; stdError: number; calibrationId: number } | null;
-/** Hook for the rate calibration in force: the true rate (rad/s, signed) at the run's set rate. */
-type RateLookup = (run: Run) => Promise<RateInForce>;
-let rateLookup: RateLookup = async () => null;
-export function setRateInForceLookup(fn: RateLookup) {
-  rateLookup = fn;
+
+/**
+ * The true rate (rad/s, signed) at the run's set rate, from the table's rate calibration that was
+ * in force when the run was logged (the run's frozen snapshot names it; signed records never change).
+ */
+export async function rateInForce(run: Run): Promise<RateInForce> {
+  const snapshot = calibrationSnapshot(run);
+  const rate = snapshot.inForce.find((c) => c.kind === "rate" && c.equipmentId === run.tableId);
+  if (!rate) return null;
+  const cal = await Calibration.findByPk(rate.id);
+  if (!cal || cal.slope === null || cal.interceptRpm === null || cal.slopeStdError === null || cal.interceptStdErrorRpm === null) return null;
+  const line = {
+    slope: cal.slope,
+    intercept: cal.interceptRpm,
+    slopeStdError: cal.slopeStdError,
+    interceptStdError: cal.interceptStdErrorRpm,
+    slopeInterceptCovariance: cal.slopeInterceptCovarianceRpm ?? 0,
+  };
+  const { rpm, stdErrorRpm } = trueRateFromCalibration(line, run.setRateRpm);
+  const sign = run.direction === "cw" ? -1 : 1;
+  return { value: sign * rpmToRadPerS(rpm), stdError: rpmToRadPerS(stdErrorRpm), calibrationId: cal.id };
 }
 
 export function parseTrackPoints(track: Track) {
@@ -28,7 +46,7 @@ export async function theoryInputFor(run: Run): Promise<{ input: TheoryCheckInpu
   if (!tracks.length || !setup) return null;
   const table = await Equipment.findByPk(run.tableId);
   const settings = await getLabSettings();
-  const rate = await rateLookup(run);
+  const rate = await rateInForce(run);
   const input: TheoryCheckInput = {
     points: parseTrackPoints(tracks[0]),
     setup: {

@@ -1,14 +1,8 @@
 import type { StoredCheckView } from "./types";
 import { TheoryPlots } from "~/components/plots/theory-plots";
-import { Tag } from "~/components/ui/card";
 import { formatNumber } from "~/lib/format";
 
 const verdictWords = { agrees: "Agrees with theory", disagrees: "Disagrees with theory", inconclusive: "Inconclusive" } as const;
-
-export function VerdictTag({ verdict }: { verdict: "agrees" | "disagrees" | "inconclusive" | null }) {
-  if (!verdict) return <Tag>not checked</Tag>;
-  return <Tag tone={verdict}>{verdict}</Tag>;
-}
 
 function Figure({ label, value, unit, sub }: { label: string; value: string; unit?: string; sub?: string }) {
   return (

@@ -5,6 +5,7 @@ import { requireUser } from "~/.server/auth/permissions";
 import { getRunDetail, getSignOffView, getRunHistory } from "~/.server/runs/record";
 import { Run } from "~/.server/db";
 import type { TheoryCheckResult } from "~/lib/analysis/check";
+import { TheoryPlots } from "~/components/plots/theory-plots";
 import { Button } from "~/components/ui/button";
 import { RunExportLinks } from "~/components/run-record/run-export-links";
 import { RunHistoryList } from "~/components/run-record/run-history-list";
@@ -27,7 +28,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   // The report needs the check's figures, not its plotted series: keep the page light.
   const stored = check?.result?.result;
   const result = stored ? { ...stored, series: undefined } : null;
-  return { run: { ...run, latestTheoryCheck: check ? { ...check, result } : null }, signOff, history, printedAt: new Date().toISOString() };
+  const setup = run.viewSetup;
+  const plots = stored && setup ? { result: stored, setup: { centre: setup.centrePx, pxPerM: setup.scalePxPerM, mirrored: setup.mirrored } } : null;
+  return { run: { ...run, latestTheoryCheck: check ? { ...check, result } : null }, plots, signOff, history, printedAt: new Date().toISOString() };
 }
 
 function Row({ label, children }: { label: string; children: ReactNode }) {
@@ -130,9 +133,11 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
         ) : (
           <p className="mt-2 text-muted">No theory check yet.</p>
         )}
-        {/* Plots slot: the theory-check plots from app/components/plots/ (track in the rotating frame,
-            Coriolis fit, residuals) render here once they exist, fed from the check's series. */}
-        <div data-slot="plots" />
+        {loaderData.plots ? (
+          <div className="mt-4 print-break">
+            <TheoryPlots result={loaderData.plots.result} setup={loaderData.plots.setup} />
+          </div>
+        ) : null}
       </section>
 
       <section className="mt-4">

@@ -4,23 +4,30 @@ import { requireUser } from "~/.server/auth/permissions";
 import { loadRun } from "~/.server/runs/access";
 import { runPageData } from "~/.server/runs/detail";
 import { getLabSettings } from "~/.server/settings";
-import { cameraModeLabels, directionLabels, runLabel, runStateLabels, tracerLabels, type RunState } from "~/lib/runs";
+import { cameraModeLabels, directionLabels, runLabel, tracerLabels, type RunState } from "~/lib/runs";
 import { formatDateTime, formatNumber } from "~/lib/format";
 import { ButtonLink } from "~/components/ui/button";
-import { Card, PageHeader, Tag } from "~/components/ui/card";
+import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { RunConditionsPanel } from "~/components/run-conditions-panel";
 import { FrameUploader } from "~/components/runs/frame-uploader";
 import { TrackingPanel } from "~/components/runs/tracking-panel";
-import { TheoryCheckPanel, VerdictTag } from "~/components/runs/theory-check-panel";
+import { TheoryCheckPanel } from "~/components/runs/theory-check-panel";
+import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
+import { SupersedesLinks } from "~/components/run-record/supersedes-links";
+import { SignOffPanel } from "~/components/run-record/sign-off-panel";
+import { RunHistoryList } from "~/components/run-record/run-history-list";
+import { RunExportLinks } from "~/components/run-record/run-export-links";
+import { getRunRecordParts } from "~/.server/runs/record";
+import { calibrationKindLabels } from "~/lib/calibrations";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? runLabel(data.run.id) : "Run"} · Tankside` }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const run = await loadRun(request, params.id);
-  const [page, settings] = await Promise.all([runPageData(run, user), getLabSettings()]);
-  return { ...page, user, spinUpTimesToWait: settings.spinUpTimesToWait };
+  const [page, settings, record] = await Promise.all([runPageData(run, user), getLabSettings(), getRunRecordParts(run, user)]);
+  return { ...page, record, user, spinUpTimesToWait: settings.spinUpTimesToWait };
 }
 
 function Fact({ label, children }: { label: string; children: React.ReactNode }) {
@@ -50,7 +57,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
       <PageHeader
         title={
           <span className="flex flex-wrap items-center gap-3">
-            {runLabel(run.id)} <Tag tone="tank">{runStateLabels[run.state as RunState]}</Tag> <VerdictTag verdict={run.verdict} />
+            {runLabel(run.id)} <RunStateTag state={run.state as RunState} /> <VerdictTag verdict={run.verdict} />
           </span>
         }
         subtitle={`${run.purpose} · logged by ${d.technician?.name ?? "?"} on ${formatDateTime(run.createdAt)}`}
@@ -61,7 +68,16 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
           </>
         }
       />
+      <SupersedesLinks supersedes={d.record.links.supersedes} supersededBy={d.record.links.supersededBy} />
       {run.state === "signed_off" ? <Notice kind="info" title="Signed off: this run is read-only">A correction is logged as a new run linked to this one.</Notice> : null}
+      {d.calibrations.pastDue.map((c) => {
+        const item = [d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId);
+        return (
+          <Notice key={c.id} kind="caution" title={`The ${calibrationKindLabels[c.kind].toLowerCase()} of ${item?.name ?? "an item"} was past due when this run was logged`}>
+            It fell due {formatDateTime(c.dueAt)}; the theory check used {c.kind === "rate" ? "the set rate, uncalibrated" : "no calibration of this kind"}. <Link to={`/calibrations/${c.id}`}>See the record</Link>.
+          </Notice>
+        );
+      })}
 
       <div className="grid gap-6 xl:grid-cols-[1.6fr_1fr]">
         <Card title="Conditions">
@@ -75,6 +91,19 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
             <Fact label="Frames">{d.frames.length ? `${d.frames.length} at ${formatNumber(run.frameRateFps, 4)} frames/s, ${run.frameWidthPx} × ${run.frameHeightPx} px` : `none yet (${formatNumber(run.frameRateFps, 4)} frames/s planned)`}</Fact>
             <Fact label="Tracer">{tracerLabels[run.tracer]}</Fact>
             {run.notes ? <Fact label="Notes"><span className="whitespace-pre-wrap">{run.notes}</span></Fact> : null}
+            <Fact label="Calibrations in force">
+              {d.calibrations.inForce.length ? (
+                <ul>
+                  {d.calibrations.inForce.map((c) => (
+                    <li key={c.id}>
+                      <Link to={`/calibrations/${c.id}`}>{calibrationKindLabels[c.kind]} #{c.id}</Link> of {[d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId)?.name ?? "?"}, due {formatDateTime(c.dueAt)}
+                    </li>
+                  ))}
+                </ul>
+              ) : (
+                "none signed and in date when the run was logged"
+              )}
+            </Fact>
           </dl>
         </Card>
         <RunConditionsPanel
@@ -161,10 +190,19 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
       ) : null}
 
       {d.check && d.setup ? (
-        <Card title="Theory check">
+        <Card title="Theory check" actions={<RunExportLinks runId={run.id} hasTracks={d.tracks.length > 0} />}>
           <TheoryCheckPanel check={d.check} setup={d.setup} />
         </Card>
       ) : null}
+
+      <div className="grid gap-6 xl:grid-cols-2">
+        <Card title="Sign-off">
+          <SignOffPanel runId={run.id} signOff={d.record.signOff} />
+        </Card>
+        <Card title="History">
+          <RunHistoryList entries={d.record.history} />
+        </Card>
+      </div>
     </div>
   );
 }

@@ -36,5 +36,4 @@ export const env = {
   mailFrom: process.env.MAIL_FROM ?? "Tankside <tankside@tankside.example>",
   appUrl: (process.env.APP_URL ?? `http://localhost:${port}`).replace(/\/$/, ""),
   uploadsDir: path.resolve(process.env.UPLOADS_DIR ?? path.join(projectRoot, "uploads")),
-  trackingWorkers: process.env.TRACKING_WORKERS ? Number(process.env.TRACKING_WORKERS) : undefined,
 };

@@ -178,3 +178,18 @@ export async function setActive(userId: number, active: boolean) {
   });
   if (!active) await endAllSessionsOf(userId);
 }
+
+/**
+ * For a new installation: adds a lab manager (or finds the invited one) and returns a single-use
+ * link to choose a password, to be handed over in person. Refuses once anyone has signed in.
+ */
+export async function firstManagerLink(emailInput: string, name: string): Promise<string> {
+  const email = emailInput.trim().toLowerCase();
+  if (await User.count({ where: { passwordHash: { [Op.ne]: null } } })) {
+    throw new PeopleError("People already use this Tankside: a lab manager invites new people from the People page.");
+  }
+  const [user] = await User.findOrCreate({ where: { email }, defaults: { email, name, role: "lab_manager", passwordHash: null, passwordChangedAt: null } });
+  if (user.role !== "lab_manager") await user.update({ role: "lab_manager" });
+  const token = await issueToken(user.id, "invitation", INVITATION_HOURS * 60, null);
+  return `${env.appUrl}/welcome/${token}`;
+}

@@ -25,6 +25,18 @@ function squareDomain(xs: number[], ys: number[]) {
   return { x: [mx - half, mx + half] as [number, number], y: [my - half, my + half] as [number, number] };
 }
 
+/** Round tick values (1, 2 or 5 × 10ⁿ apart) across a domain, so equal axes still read easily. */
+function niceTicks([lo, hi]: [number, number], count = 6): number[] {
+  const span = hi - lo;
+  if (!(span > 0)) return [lo];
+  const raw = span / count;
+  const mag = 10 ** Math.floor(Math.log10(raw));
+  const step = [1, 2, 5, 10].map((m) => m * mag).find((s) => s >= raw) ?? 10 * mag;
+  const out: number[] = [];
+  for (let v = Math.ceil(lo / step) * step; v <= hi + 1e-9 * span; v += step) out.push(Number(v.toPrecision(12)));
+  return out;
+}
+
 const tick = (v: number) => Number(v.toPrecision(3)).toString();
 
 function PlotFrame({ title, caption, children, square }: { title: string; caption: string; children: React.ReactElement; square?: boolean }) {
@@ -80,8 +92,8 @@ export function TheoryPlots({ result, setup }: PlotContext) {
       <PlotFrame square title="Track in the rotating frame" caption={`Seen from above, x right and y up, ${unit}. The amber circle is the fitted inertial circle.`}>
         <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
-          <XAxis type="number" dataKey="x" domain={rotDomain.x} tickFormatter={tick} allowDataOverflow label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }} />
-          <YAxis type="number" dataKey="y" domain={rotDomain.y} tickFormatter={tick} allowDataOverflow label={{ value: `y (${unit})`, angle: -90, position: "insideLeft" }} />
+          <XAxis type="number" dataKey="x" domain={rotDomain.x} ticks={niceTicks(rotDomain.x)} tickFormatter={tick} allowDataOverflow label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }} />
+          <YAxis type="number" dataKey="y" domain={rotDomain.y} ticks={niceTicks(rotDomain.y)} tickFormatter={tick} allowDataOverflow label={{ value: `y (${unit})`, angle: -90, position: "insideLeft" }} />
           <ZAxis range={[12, 12]} />
           <Tooltip formatter={(v: unknown) => tick(Number(v))} />
           <Legend verticalAlign="top" />
@@ -92,8 +104,8 @@ export function TheoryPlots({ result, setup }: PlotContext) {
       <PlotFrame square title="Track in the lab frame" caption={`As a camera standing in the room would see it, ${unit}.`}>
         <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
-          <XAxis type="number" dataKey="x" domain={labDomain.x} tickFormatter={tick} allowDataOverflow label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }} />
-          <YAxis type="number" dataKey="y" domain={labDomain.y} tickFormatter={tick} allowDataOverflow label={{ value: `y (${unit})`, angle: -90, position: "insideLeft" }} />
+          <XAxis type="number" dataKey="x" domain={labDomain.x} ticks={niceTicks(labDomain.x)} tickFormatter={tick} allowDataOverflow label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }} />
+          <YAxis type="number" dataKey="y" domain={labDomain.y} ticks={niceTicks(labDomain.y)} tickFormatter={tick} allowDataOverflow label={{ value: `y (${unit})`, angle: -90, position: "insideLeft" }} />
           <ZAxis range={[12, 12]} />
           <Legend verticalAlign="top" />
           <Scatter name="tracer (lab frame)" data={lab} fill={colours.second} isAnimationActive={false} />

@@ -196,7 +196,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
       ) : null}
 
       <div className="grid gap-6 xl:grid-cols-2">
-        <Card title="Sign-off">
+        <Card>
           <SignOffPanel runId={run.id} signOff={d.record.signOff} />
         </Card>
         <Card title="History">

@@ -74,7 +74,8 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         const item = [d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId);
         return (
           <Notice key={c.id} kind="caution" title={`The ${calibrationKindLabels[c.kind].toLowerCase()} of ${item?.name ?? "an item"} was past due when this run was logged`}>
-            It fell due {formatDateTime(c.dueAt)}; the theory check used {c.kind === "rate" ? "the set rate, uncalibrated" : "no calibration of this kind"}. <Link to={`/calibrations/${c.id}`}>See the record</Link>.
+            It fell due {formatDateTime(c.dueAt)}; the theory check used {c.kind === "rate" ? "the set rate, uncalibrated" : "no calibration of this kind"}.
+            {d.user.role !== "instructor" ? <> <Link to={`/calibrations/${c.id}`}>See the record</Link>.</> : null}
           </Notice>
         );
       })}
@@ -96,7 +97,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
                 <ul>
                   {d.calibrations.inForce.map((c) => (
                     <li key={c.id}>
-                      <Link to={`/calibrations/${c.id}`}>{calibrationKindLabels[c.kind]} #{c.id}</Link> of {[d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId)?.name ?? "?"}, due {formatDateTime(c.dueAt)}
+                      {d.user.role !== "instructor" ? <Link to={`/calibrations/${c.id}`}>{calibrationKindLabels[c.kind]} #{c.id}</Link> : `${calibrationKindLabels[c.kind]} #${c.id}`} of {[d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId)?.name ?? "?"}, due {formatDateTime(c.dueAt)}
                     </li>
                   ))}
                 </ul>

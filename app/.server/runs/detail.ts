@@ -1,8 +1,7 @@
 import { Equipment, Frame, Run, Track, User, ViewSetup } from "../db";
 import { latestJob, serializeJob } from "../jobs/tracking-queue";
-import { latestCheck } from "./theory";
 import { serializeEquipment } from "../equipment";
-import { parseTrackPoints } from "./theory";
+import { latestCheck, parseTrackPoints } from "./theory";
 import type { CurrentUser } from "../auth/permissions";
 import { calibrationSnapshot, canChangeRun } from "./service";
 

@@ -19,3 +19,13 @@ export function Notice({ kind = "info", title, children }: { kind?: Kind; title?
     </div>
   );
 }
+
+/** A form's own error (not tied to one field), shown above the fields; nothing when there is none. */
+export function FormProblem({ errors, className }: { errors: string[] | undefined; className?: string }) {
+  if (!errors?.length) return null;
+  return (
+    <div className={className}>
+      <Notice kind="error" title={errors[0]} />
+    </div>
+  );
+}

@@ -7,7 +7,7 @@ import { startSession } from "~/.server/auth/session";
 import { setPasswordSchema } from "~/lib/validation/people";
 import { Button } from "~/components/ui/button";
 import { TextField } from "~/components/ui/field";
-import { Notice } from "~/components/ui/notice";
+import { FormProblem } from "~/components/ui/notice";
 
 /** One page for both single-use links: an invitation (/welcome/…) and a password reset (/reset-password/…). */
 function purposeOf(request: Request) {
@@ -65,7 +65,7 @@ export default function ChoosePassword({ loaderData, actionData }: Route.Compone
       <h1>{welcome ? `Welcome, ${loaderData.name}` : "Choose a new password"}</h1>
       <p className="mt-2 text-muted">For the account {loaderData.email}. At least 10 characters; a short sentence works well.</p>
       <Form method="post" className="mt-4 flex flex-col gap-4" {...getFormProps(form)}>
-        {form.errors?.length ? <Notice kind="error" title={form.errors[0]} /> : null}
+        <FormProblem errors={form.errors} />
         <TextField label="New password" type="password" name={fields.password.name} error={fields.password.errors} autoComplete="new-password" />
         <TextField label="The same again" type="password" name={fields.confirm.name} error={fields.confirm.errors} autoComplete="new-password" />
         <Button type="submit">{welcome ? "Set my password and sign in" : "Save the new password"}</Button>

@@ -10,7 +10,7 @@ import { env } from "~/.server/env";
 import { signInSchema } from "~/lib/validation/people";
 import { Button } from "~/components/ui/button";
 import { TextField } from "~/components/ui/field";
-import { Notice } from "~/components/ui/notice";
+import { Notice, FormProblem } from "~/components/ui/notice";
 import { TanksideMark } from "~/components/app-shell";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Tankside" }];
@@ -80,7 +80,7 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
       <section className="rounded-card border border-line bg-sheet p-8">
         <h2>Sign in</h2>
         <Form method="post" className="mt-4 flex flex-col gap-4" {...getFormProps(form)}>
-          {form.errors?.length ? <Notice kind="error" title={form.errors[0]} /> : null}
+          <FormProblem errors={form.errors} />
           <input type="hidden" name="redirectTo" value={loaderData.redirectTo} />
           <TextField
             label="E-mail"

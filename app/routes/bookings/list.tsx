@@ -30,7 +30,7 @@ import { BookingWeek } from "~/components/booking-week";
 import { Button, ButtonA } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
-import { Notice } from "~/components/ui/notice";
+import { Notice, FormProblem } from "~/components/ui/notice";
 
 export const meta: Route.MetaFunction = () => [{ title: "Bookings · Tankside" }];
 export const links: Route.LinksFunction = () => [
@@ -176,7 +176,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
         <Card title="Request equipment time">
           <Form method="post" className="flex flex-col gap-4" {...getFormProps(form)}>
             <input type="hidden" name="intent" value="request" />
-            {form.errors?.length ? <Notice kind="error">{form.errors[0]}</Notice> : null}
+            <FormProblem errors={form.errors} />
             <SelectField label="Equipment" name={fields.equipmentId.name} key={fields.equipmentId.key} defaultValue={chosen} error={fields.equipmentId.errors} onChange={(e) => setChosen(e.target.value)}>
               <option value="">Choose…</option>
               {bookable.map((i) => (

@@ -13,7 +13,7 @@ import { calibrationKindFor, calibrationKindLabels, calibrationKinds, intervalDa
 import { Button, ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
-import { Notice } from "~/components/ui/notice";
+import { Notice, FormProblem } from "~/components/ui/notice";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.record ? `Edit calibration #${data.record.id}` : "Record a calibration"} · Tankside` }];
 
@@ -127,11 +127,7 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
       <PageHeader title={record ? `Edit calibration #${record.id}` : "Record a calibration"} subtitle="A lab manager signs the record off; after that it never changes." />
       <Card>
         <Form method="post" className="grid gap-5 md:grid-cols-2" {...getFormProps(form)}>
-          {form.errors?.length ? (
-            <div className="md:col-span-2">
-              <Notice kind="error">{form.errors[0]}</Notice>
-            </div>
-          ) : null}
+          <FormProblem errors={form.errors} className="md:col-span-2" />
           <SelectField label="Kind" name={fields.kind.name} defaultValue={kind} error={fields.kind.errors} disabled={Boolean(record)} onChange={(e) => setKind(e.target.value as CalibrationKind)}>
             {calibrationKinds.map((k) => (
               <option key={k} value={k}>{calibrationKindLabels[k]}</option>

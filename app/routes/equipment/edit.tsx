@@ -11,7 +11,7 @@ import { equipmentKinds, equipmentStatuses, kindLabels, meterTypes, statusLabels
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
-import { Notice } from "~/components/ui/notice";
+import { FormProblem } from "~/components/ui/notice";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.item ? `Edit ${data.item.name}` : "Add equipment"} · Tankside` }];
 
@@ -84,11 +84,7 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
       <PageHeader title={item ? `Edit ${item.name}` : "Add equipment"} />
       <Card>
         <Form method="post" className="grid gap-5 md:grid-cols-2" {...getFormProps(form)}>
-          {form.errors?.length ? (
-            <div className="md:col-span-2">
-              <Notice kind="error">{form.errors[0]}</Notice>
-            </div>
-          ) : null}
+          <FormProblem errors={form.errors} className="md:col-span-2" />
           <SelectField label="Kind" name={fields.kind.name} defaultValue={kind} error={fields.kind.errors} disabled={Boolean(item)} onChange={(e) => setKind(e.target.value as EquipmentKind)}>
             {equipmentKinds.map((k) => (
               <option key={k} value={k}>{kindLabels[k]}</option>

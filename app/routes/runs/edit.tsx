@@ -13,7 +13,7 @@ import { cameraModeLabels, directionLabels, runLabel, tracerLabels } from "~/lib
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
-import { Notice } from "~/components/ui/notice";
+import { Notice, FormProblem } from "~/components/ui/notice";
 import { RunConditionsPanel } from "~/components/run-conditions-panel";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.run ? `Edit ${runLabel(data.run.id)}` : "Log a run"} · Tankside` }];
@@ -124,11 +124,7 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
       <div className="grid gap-6 xl:grid-cols-[1.6fr_1fr]">
         <Card>
           <Form method="post" className="grid gap-5 md:grid-cols-2" {...getFormProps(form)}>
-            {form.errors?.length ? (
-              <div className="md:col-span-2">
-                <Notice kind="error">{form.errors[0]}</Notice>
-              </div>
-            ) : null}
+            <FormProblem errors={form.errors} className="md:col-span-2" />
             {template ? <input type="hidden" name="supersedesId" value={template.id} /> : null}
             <SelectField label="Table" name="tableId" defaultValue={live.tableId} error={fields.tableId.errors} onChange={(e) => setLive({ ...live, tableId: e.target.value })}>
               {tables.map((t) => (

@@ -33,11 +33,9 @@ function toValues(s: ViewSetup): SetupValues {
 /** The camera's last setup, if it was made on frames of this size (a different size means a different mode or crop). */
 async function lastSetupOfCamera(cameraId: number, width: number, height: number) {
   const recent = await ViewSetup.findAll({ where: { cameraId }, order: [["updatedAt", "DESC"]], limit: 10 });
-  for (const s of recent) {
-    const run = await Run.findByPk(s.runId, { attributes: ["frameWidthPx", "frameHeightPx"] });
-    if (run?.frameWidthPx === width && run.frameHeightPx === height) return s;
-  }
-  return null;
+  const runs = await Run.findAll({ where: { id: recent.map((s) => s.runId) }, attributes: ["id", "frameWidthPx", "frameHeightPx"] });
+  const sameSize = new Set(runs.filter((r) => r.frameWidthPx === width && r.frameHeightPx === height).map((r) => r.id));
+  return recent.find((s) => sameSize.has(s.runId)) ?? null;
 }
 
 export async function loader({ request, params }: Route.LoaderArgs) {

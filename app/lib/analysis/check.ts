@@ -7,6 +7,7 @@ import { fitCircle } from "./circle-fit";
 import { fitCoriolis, inertialPeriodFromAngle, predictedRadius, turningRate } from "./coriolis-fit";
 import type { CameraMode, TimedPoint, ViewGeometry } from "./frames";
 import { imageToTable, reRotate, rotatingFrameToImage, trackToRotatingFrame } from "./frames";
+import { DECISION_RULE, decide, Z95 } from "./decision";
 import { linearFit } from "./regression";
 import {
   chooseWindow,
@@ -105,6 +106,10 @@ export interface TheoryCheckResult {
   /** unit of the series' lengths */
   lengthUnit: "m" | "px";
   settings: { window: number | null; polyOrder: number; tolerance: number };
+  /** 95 % interval of (f measured − f predicted)/f predicted; null when nothing was measured */
+  interval95: { low: number; high: number } | null;
+  /** the decision rule in words */
+  decisionRule: string;
   series: {
     rotating: TimedPoint[];
     lab: TimedPoint[];
@@ -199,6 +204,8 @@ function emptyResult(input: TheoryCheckInput, reason: string, partial: Partial<T
       polyOrder: DEFAULT_POLY_ORDER,
       tolerance: isFiniteNumber(tolerance) ? tolerance : DEFAULT_TOLERANCE,
     },
+    interval95: null,
+    decisionRule: DECISION_RULE,
     series: { rotating: [], lab: [], accelFit: [], angle: [], residuals: [] },
     ...partial,
   };
@@ -418,7 +425,6 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
 
   // The verdict.
   const combinedSE = Math.sqrt(fStdError ** 2 + fPredictedStdError ** 2);
-  const limit = tolerance * Math.abs(fPredicted);
   const diff = fMeasured - fPredicted;
   const rateWords = omegaSource === "rate calibration" ? "the rate calibration in force" : "the set rate (uncalibrated)";
   const decimals = Math.min(12, Math.max(0, 1 - Math.floor(Math.log10(fStdError))));
@@ -431,25 +437,29 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   }
   const withNotes = (text: string) => [text, ...notes].join(" ");
 
-  let verdict: TheoryVerdict;
-  let reason: string;
   const expectedSense = fPredicted > 0 ? "right" : "left";
   const measuredSense = fMeasured > 0 ? "right" : "left";
-  if (combinedSE > limit) {
-    verdict = "inconclusive";
-    reason = `${numbers}: the uncertainty (${pct(combinedSE / Math.abs(fPredicted))} of f) is larger than the ${pct(tolerance)} tolerance, so the track cannot confirm or refute the theory. A longer or steadier track helps.`;
-  } else if (measuredSense !== expectedSense) {
-    verdict = "disagrees";
+  const decision = decide({
+    d: diff / fPredicted,
+    s: combinedSE / Math.abs(fPredicted),
+    tolerance,
+    wrongSense: measuredSense !== expectedSense && Math.abs(fMeasured) > Z95 * fStdError,
+    nPoints: points.length,
+    periods: duration / inertialPeriod,
+  });
+  const interval95 = { low: decision.low, high: decision.high };
+  let reason: string;
+  const span = `the 95% interval of the difference (f measured − f predicted)/f predicted is ${pct(decision.low)} to ${pct(decision.high)}`;
+  if (decision.verdict === "disagrees" && measuredSense !== expectedSense) {
     reason = `${numbers}: the tracer is deflected to the ${measuredSense} of its motion, but a ${omega > 0 ? "counterclockwise" : "clockwise"} table deflects it to the ${expectedSense}. Check the view setup's mirror setting (a camera under the table or a mirrored image flips the sense) and the direction logged for the run.`;
-  } else if (Math.abs(diff) <= limit || Math.abs(diff) <= 2 * combinedSE) {
-    verdict = "agrees";
-    const within = Math.abs(diff) <= limit ? `within the ${pct(tolerance)} tolerance` : "within twice the combined standard error";
-    reason = `${numbers}: they differ by ${pct(Math.abs(diff) / Math.abs(fPredicted))}, ${within}. The deflection is to the ${measuredSense} of the motion, as expected.`;
+  } else if (decision.verdict === "agrees") {
+    reason = `${numbers}: they differ by ${pct(Math.abs(diff) / Math.abs(fPredicted))}, and ${span}, wholly within the ${pct(tolerance)} tolerance. The deflection is to the ${measuredSense} of the motion, as expected.`;
+  } else if (decision.verdict === "disagrees") {
+    reason = `${numbers}: they differ by ${pct(Math.abs(diff) / Math.abs(fPredicted))}, and ${span}, wholly outside the ${pct(tolerance)} tolerance. Check the rate in force${omegaSource === "set rate, uncalibrated" ? " (no rate calibration is in force)" : ""}, the frame times, ${input.cameraMode === "lab" ? "the rotation centre, " : ""}and that the tracer moved freely.`;
   } else {
-    verdict = "disagrees";
-    reason = `${numbers}: they differ by ${pct(Math.abs(diff) / Math.abs(fPredicted))} (${fmt(Math.abs(diff) / combinedSE, 2)} combined standard errors), beyond the ${pct(tolerance)} tolerance. Check the rate in force${omegaSource === "set rate, uncalibrated" ? " (no rate calibration is in force)" : ""}, the frame times, ${input.cameraMode === "lab" ? "the rotation centre, " : ""}and that the tracer moved freely.`;
+    reason = `${numbers}: ${span}, which straddles the ${pct(tolerance)} tolerance, so the track cannot confirm or refute the theory (the uncertainty is ${pct(combinedSE / Math.abs(fPredicted))} of f). ${decision.advice}`;
   }
-  return { ...measured, verdict, reason: withNotes(reason) };
+  return { ...measured, verdict: decision.verdict, reason: withNotes(reason), interval95, decisionRule: DECISION_RULE };
 }
 
 export interface OmegaFromMark {

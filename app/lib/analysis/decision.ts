@@ -61,7 +61,7 @@ export function decide(input: { d: number; s: number; tolerance: number; wrongSe
     verdict: "inconclusive",
     low,
     high,
-    advice: `The standard error would have to be ${fmt(factor, 2)}× smaller to decide: a track about ${fmt(lengthFactor, 2)}× longer at the same frame rate${framesText}, or tracking noise ${fmt(factor, 2)}× smaller, should do it.`,
+    advice: `The standard error would have to be ${fmt(factor, 3)}× smaller to decide: a track about ${fmt(lengthFactor, 3)}× longer at the same frame rate${framesText}, or tracking noise ${fmt(factor, 3)}× smaller, should do it.`,
   };
 }
 

@@ -35,7 +35,7 @@ const groups: { title: string; hint: string; keys: SettingKey[] }[] = [
   },
   {
     title: "Runs and bookings",
-    hint: "The spin-up wait sets the lead time Tankside proposes before a booked run; the tolerance decides a theory check's verdict.",
+    hint: "The spin-up wait sets the lead time Tankside proposes before a booked run; a theory check agrees only when the whole 95 % interval of (f measured − f predicted)/f predicted lies within ± the tolerance, disagrees only when it lies wholly outside, and is inconclusive otherwise.",
     keys: ["spinUpTimesToWait", "checkTolerancePct"],
   },
 ];

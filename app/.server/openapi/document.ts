@@ -136,7 +136,7 @@ export const trackingPaths: Paths = {
               required: ["file"],
               properties: {
                 file: { type: "string", contentMediaType: "application/octet-stream", description: "JPEG, PNG, TIFF or WebP image, or a ZIP of them; checked by content." },
-                timeS: { type: "number", minimum: 0, description: "The frame's time in s (from a video cut in the browser)." },
+                timeS: { type: "number", minimum: 0, exclusiveMaximum: 100000, description: "The frame's own time in s, for a frame cut from a video; without it, frames are spaced by the run's frame rate." },
               },
             },
           },

@@ -6,7 +6,8 @@ import { cutVideoIntoFrames } from "./video-frames";
 import { uploadLimits, acceptedFrameTypes } from "~/lib/upload-limits";
 import { Button } from "~/components/ui/button";
 
-type Meta = { timeS: number | ""; displayName?: string };
+/** A frame cut from a video carries its own time in s; a still carries none. */
+type Meta = { timeS: string; displayName?: string };
 type Outcome = { id: string; name: string; state: "waiting" | "sent" | "duplicate" | "rejected"; message?: string };
 
 interface ResponseBody {
@@ -102,10 +103,10 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
       for (const file of files) {
         if (file.type.startsWith("video/")) {
           setCutting({ name: file.name, done: 0, total: 0 });
-          const frames = await cutVideoIntoFrames(file, frameRate, uploadLimits.maxFramesPerRun, (done, total) => setCutting({ name: file.name, done, total }));
+          const frames = await cutVideoIntoFrames(file, uploadLimits.maxFramesPerRun, (done, total) => setCutting({ name: file.name, done, total }));
           setCutting(null);
           for (const f of frames) {
-            const id = uppy.addFile({ name: f.file.name, type: "image/jpeg", data: f.file, meta: { timeS: f.timeS } });
+            const id = uppy.addFile({ name: f.file.name, type: "image/jpeg", data: f.file, meta: { timeS: String(f.timeS) } });
             queued.push({ id, name: f.file.name, state: "waiting" });
           }
         } else {
@@ -144,8 +145,8 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
       >
         <p className="text-lg font-bold">Drop the frame stack here</p>
         <p className="text-muted">
-          JPEG, PNG, TIFF or WebP frames, a ZIP of them, or a video (cut into frames here at {frameRate} frames/s). Frames are ordered by
-          name: frame_2 comes before frame_10.
+          JPEG, PNG, TIFF or WebP frames, a ZIP of them, or a video (cut here into its own frames, each keeping its time in the video). Stills are
+          ordered by name (frame_2 comes before frame_10) and spaced at {frameRate} frames/s.
         </p>
         <input
           ref={input}

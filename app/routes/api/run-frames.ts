@@ -5,6 +5,7 @@ import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { receiveFrameFile, UploadError } from "~/.server/uploads/frames";
 import { Frame } from "~/.server/db";
 import { uploadLimits } from "~/lib/upload-limits";
+import { parseFrameTime } from "~/lib/video-frames";
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request);
@@ -40,12 +41,10 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
   const file = form.get("file");
   if (!(file instanceof File)) return apiError(400, "missing_file", "Put the frame in the multipart field `file`.");
-  const rawTime = form.get("timeS");
-  let timeS: number | null = null;
-  if (typeof rawTime === "string" && rawTime !== "") {
-    timeS = Number(rawTime);
-    if (!Number.isFinite(timeS) || timeS < 0) return apiError(400, "invalid_time", "timeS must be a time in seconds, 0 or more.");
-  }
+  // A frame cut from a video carries its own time; stills without one are spaced by the frame rate.
+  const time = parseFrameTime(form.get("timeS"));
+  if (!time.ok) return apiError(400, "invalid_time", time.message);
+  const timeS = time.timeS;
   try {
     const result = await receiveFrameFile(run, file, timeS);
     if (result.accepted.length === 0 && result.rejected.length > 0) {

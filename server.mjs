@@ -3,6 +3,7 @@ import crypto from "node:crypto";
 import express from "express";
 import compression from "compression";
 import { createRequestHandler } from "@react-router/express";
+import { loadContext, noStore, sameOriginOnly, strictTransport } from "./server-guards.mjs";
 
 const dev = process.argv.includes("--dev");
 const port = Number(process.env.PORT ?? 3000);
@@ -40,25 +41,6 @@ function securityHeaders(req, res, next) {
   next();
 }
 
-const safeMethods = new Set(["GET", "HEAD", "OPTIONS"]);
-
-// Every state-changing request from a browser must come from Tankside's own pages.
-function sameOriginOnly(req, res, next) {
-  if (safeMethods.has(req.method)) return next();
-  const origin = req.get("origin");
-  const fetchSite = req.get("sec-fetch-site");
-  const own = `${req.protocol}://${req.get("host")}`;
-  const configured = process.env.APP_URL ? new URL(process.env.APP_URL).origin : null;
-  const originOk = !origin || origin === own || origin === configured;
-  const siteOk = !fetchSite || fetchSite === "same-origin" || fetchSite === "none";
-  if (originOk && siteOk) return next();
-  const message = "This request came from another site and was refused.";
-  if (req.path.startsWith("/api/") || (req.get("accept") ?? "").includes("json")) {
-    return res.status(403).json({ error: { code: "cross_origin", message } });
-  }
-  res.status(403).type("text/plain").send(message);
-}
-
 // A refusal (401/403/413…) can be sent before an upload's body is read. Such a socket cannot be
 // reused for the next request, so tell the client to close it instead of letting it reset.
 function closeUnreadUploads(req, res, next) {
@@ -76,6 +58,7 @@ if (process.env.TRUST_PROXY) app.set("trust proxy", process.env.TRUST_PROXY);
 app.use(closeUnreadUploads);
 app.use(compression());
 app.use(securityHeaders);
+app.use(strictTransport);
 app.use(sameOriginOnly);
 
 let build;
@@ -93,12 +76,13 @@ if (dev) {
   app.use(express.static(`${buildDir}/client`, { maxAge: "1h", index: false }));
 }
 
+app.use(noStore);
 app.all(
   "/{*splat}",
   createRequestHandler({
     build,
     mode: dev ? "development" : "production",
-    getLoadContext: (req, res) => ({ cspNonce: res.locals.cspNonce }),
+    getLoadContext: loadContext,
   }),
 );
 

@@ -11,7 +11,7 @@ export const argon2Options = {
   parallelism: 1,
 } as const;
 
-export const passwordRules = { min: 10, max: 200 } as const;
+export const passwordRules = { min: 12, max: 200 } as const;
 
 export function hashPassword(password: string): Promise<string> {
   return argon2.hash(password, argon2Options);

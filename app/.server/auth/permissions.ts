@@ -35,15 +35,26 @@ export async function getCurrentUser(request: Request): Promise<CurrentUser | nu
   return user && user.active ? toCurrent(user) : null;
 }
 
+const REDIRECT_BASE = "http://tankside.invalid";
+
+/**
+ * A path inside this app to go to after sign-in, else the fallback. The URL parser decides (as the
+ * browser will): the value must resolve against a dummy origin to that same origin, and the path it
+ * gives back must itself resolve there too — `/.//evil.example` resolves to the path
+ * `//evil.example`, which a browser reads as another host.
+ */
 export function safeRedirectTo(value: FormDataEntryValue | string | null | undefined, fallback = "/"): string {
-  if (typeof value !== "string" || !value) return fallback;
-  // Only a path inside this app: no scheme, no host, no protocol-relative or backslash tricks.
-  if (!value.startsWith("/") || value.startsWith("//") || value.includes("\\")) return fallback;
+  if (typeof value !== "string" || !value || value.length > 2000) return fallback;
+  // Browsers drop tabs and newlines inside URLs and read "\\" as "/": refuse them outright.
+  if (!value.startsWith("/") || /[\u0000-\u0020\u007f\\]/.test(value)) return fallback;
   try {
-    const url = new URL(value, "http://tankside.invalid");
-    if (url.host !== "tankside.invalid") return fallback;
+    const url = new URL(value, REDIRECT_BASE);
+    if (url.origin !== REDIRECT_BASE) return fallback;
+    const path = url.pathname + url.search + url.hash;
+    if (!path.startsWith("/") || path.startsWith("//") || path.startsWith("/\\")) return fallback;
+    if (new URL(path, REDIRECT_BASE).origin !== REDIRECT_BASE) return fallback;
     if (url.pathname.startsWith("/sign-in") || url.pathname.startsWith("/sign-out")) return fallback;
-    return url.pathname + url.search + url.hash;
+    return path;
   } catch {
     return fallback;
   }

@@ -3,11 +3,11 @@ import { RateLimiterMemory } from "rate-limiter-flexible";
 /**
  * Failed sign-ins are counted per account (e-mail) and per client address. Five failures for one
  * account in 15 minutes (twenty for one address) are free; the next failure blocks further tries
- * for a while. Kept in memory: one server process serves a lab, and a restart forgiving the count
+ * for 15 minutes (5 for the address). Kept in memory: one server process serves a lab, and a restart forgiving the count
  * is acceptable (see Decisions).
  */
 const limits = {
-  email: { points: 5, limiter: new RateLimiterMemory({ keyPrefix: "signin_email", points: 5, duration: 15 * 60, blockDuration: 60 }) },
+  email: { points: 5, limiter: new RateLimiterMemory({ keyPrefix: "signin_email", points: 5, duration: 15 * 60, blockDuration: 15 * 60 }) },
   address: { points: 20, limiter: new RateLimiterMemory({ keyPrefix: "signin_ip", points: 20, duration: 15 * 60, blockDuration: 5 * 60 }) },
 };
 
@@ -35,4 +35,14 @@ export async function recordSignInFailure(email: string, address: string) {
 
 export async function clearSignInFailures(email: string) {
   await limits.email.limiter.delete(email);
+}
+
+/**
+ * The client's address as the HTTP server saw it (server.mjs puts req.ip in the load context, which
+ * follows X-Forwarded-For only when TRUST_PROXY is set). Request headers are never read here: anyone
+ * can send X-Forwarded-For.
+ */
+export function clientAddressOf(context: unknown): string {
+  const value = (context as { clientAddress?: unknown } | null | undefined)?.clientAddress;
+  return typeof value === "string" && value ? value : "unknown";
 }

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { roles } from "../roles";
+import { weakPasswordReason } from "./password-strength";
 
 const email = z
   .string({ error: "Enter an e-mail address." })
@@ -10,8 +11,12 @@ const email = z
 
 export const newPassword = z
   .string({ error: "Choose a password." })
-  .min(10, "Use at least 10 characters.")
-  .max(200, "Use at most 200 characters.");
+  .min(12, "Use at least 12 characters.")
+  .max(200, "Use at most 200 characters.")
+  .superRefine((value, ctx) => {
+    const reason = weakPasswordReason(value);
+    if (reason) ctx.addIssue({ code: "custom", message: reason });
+  });
 
 export const signInSchema = z.object({
   email,

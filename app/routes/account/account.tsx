@@ -91,7 +91,7 @@ export default function Account({ loaderData }: Route.ComponentProps) {
           <Form method="post" className="flex flex-col gap-4" {...getFormProps(form)}>
             <input type="hidden" name="intent" value="password" />
             <TextField label="Current password" type="password" name={fields.current.name} error={fields.current.errors} autoComplete="current-password" />
-            <TextField label="New password" type="password" name={fields.password.name} error={fields.password.errors} autoComplete="new-password" hint="At least 10 characters." />
+            <TextField label="New password" type="password" name={fields.password.name} error={fields.password.errors} autoComplete="new-password" hint="At least 12 characters." />
             <TextField label="New password again" type="password" name={fields.confirm.name} error={fields.confirm.errors} autoComplete="new-password" />
             <Button type="submit" className="self-start">Change password</Button>
           </Form>

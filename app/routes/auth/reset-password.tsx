@@ -63,7 +63,7 @@ export default function ChoosePassword({ loaderData, actionData }: Route.Compone
   return (
     <div className="mx-auto max-w-xl rounded-card border border-line bg-sheet p-8">
       <h1>{welcome ? `Welcome, ${loaderData.name}` : "Choose a new password"}</h1>
-      <p className="mt-2 text-muted">For the account {loaderData.email}. At least 10 characters; a short sentence works well.</p>
+      <p className="mt-2 text-muted">For the account {loaderData.email}. At least 12 characters; a short sentence works well.</p>
       <Form method="post" className="mt-4 flex flex-col gap-4" {...getFormProps(form)}>
         <FormProblem errors={form.errors} />
         <TextField label="New password" type="password" name={fields.password.name} error={fields.password.errors} autoComplete="new-password" />

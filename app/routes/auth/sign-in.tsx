@@ -5,7 +5,7 @@ import type { Route } from "./+types/sign-in";
 import { authenticator, SignInError, SIGN_IN_FAILED } from "~/.server/auth/authenticator";
 import { getCurrentUser, safeRedirectTo } from "~/.server/auth/permissions";
 import { startSession } from "~/.server/auth/session";
-import { checkSignInThrottle, clearSignInFailures, recordSignInFailure } from "~/.server/auth/rate-limit";
+import { checkSignInThrottle, clearSignInFailures, clientAddressOf, recordSignInFailure } from "~/.server/auth/rate-limit";
 import { env } from "~/.server/env";
 import { signInSchema } from "~/lib/validation/people";
 import { Button } from "~/components/ui/button";
@@ -27,18 +27,14 @@ export async function loader({ request }: Route.LoaderArgs) {
   };
 }
 
-function clientAddress(request: Request) {
-  return request.headers.get("x-forwarded-for")?.split(",")[0]?.trim() || "local";
-}
-
-export async function action({ request }: Route.ActionArgs) {
+export async function action({ request, context }: Route.ActionArgs) {
   const form = await request.clone().formData();
   const submission = parseWithZod(form, { schema: signInSchema });
   if (submission.status !== "success") {
     return data(submission.reply({ hideFields: ["password"] }), { status: 400 });
   }
   const { email, redirectTo } = submission.value;
-  const address = clientAddress(request);
+  const address = clientAddressOf(context);
   const throttle = await checkSignInThrottle(email.toLowerCase(), address);
   if (throttle.blocked) {
     return data(

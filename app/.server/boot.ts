@@ -1,5 +1,5 @@
 import { migrate, sequelize } from "./db";
-import { env } from "./env";
+import { env, mailSetupProblem } from "./env";
 import { startFakeSmtp } from "./mail/fake-smtp";
 import { purgeExpiredSessions } from "./auth/session";
 
@@ -19,6 +19,11 @@ export function boot(): Promise<void> {
   g[key] ??= (async () => {
     // Touch the session secret early so a production start without one fails loudly.
     void env.sessionSecret;
+    const mailProblem = mailSetupProblem(process.env);
+    if (mailProblem) {
+      console.error(mailProblem);
+      process.exit(1);
+    }
     const applied = await migrate();
     if (applied.length) console.log(`[tankside] migrations applied: ${applied.join(", ")}`);
     if (!env.smtpUrl) {

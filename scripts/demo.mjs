@@ -5,6 +5,8 @@ import crypto from "node:crypto";
 const env = {
   ...process.env,
   TANKSIDE_DEMO: "1",
+  // The demo has no relay: its mail goes to the built-in fake server, shown on the mail page.
+  TANKSIDE_FAKE_MAIL: "1",
   NODE_ENV: "production",
   SESSION_SECRET: process.env.SESSION_SECRET ?? crypto.randomBytes(32).toString("hex"),
 };

@@ -1,7 +1,8 @@
 import { migrate, sequelize } from "./db";
-import { env } from "./env";
+import { env, mailSetupProblem } from "./env";
 import { startFakeSmtp } from "./mail/fake-smtp";
 import { purgeExpiredSessions } from "./auth/session";
+import { removeOrphanUploads } from "./uploads/orphans";
 
 type Hook = { name: string; start: () => Promise<void> | void; stop?: () => Promise<void> | void };
 const hooks: Hook[] = [];
@@ -19,6 +20,11 @@ export function boot(): Promise<void> {
   g[key] ??= (async () => {
     // Touch the session secret early so a production start without one fails loudly.
     void env.sessionSecret;
+    const mailProblem = mailSetupProblem(process.env);
+    if (mailProblem) {
+      console.error(mailProblem);
+      process.exit(1);
+    }
     const applied = await migrate();
     if (applied.length) console.log(`[tankside] migrations applied: ${applied.join(", ")}`);
     if (!env.smtpUrl) {
@@ -26,6 +32,8 @@ export function boot(): Promise<void> {
       console.log(`[tankside] no SMTP_URL: mail goes to the built-in fake server on 127.0.0.1:${port}`);
     }
     await purgeExpiredSessions();
+    const orphans = await removeOrphanUploads();
+    console.log(`[tankside] unreferenced upload files removed: ${orphans}`);
     for (const hook of hooks) await hook.start();
   })();
   return g[key];

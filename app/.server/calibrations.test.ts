@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { Op } from "sequelize";
-import { Calibration, CalibrationReminder, CapturedMail, Equipment, User, migrate, sequelize } from "./db";
+import { Calibration, CalibrationAttachment, CalibrationReminder, CapturedMail, Equipment, User, migrate, sequelize } from "./db";
 import {
   CalibrationError,
   calibrationsInForce,
@@ -52,6 +52,18 @@ afterAll(async () => {
 });
 
 describe("calibration records", () => {
+  it("only the technician who performed it or a lab manager may edit it or attach files", async () => {
+    const cal = await createCalibration(rateInput({ notes: "mine" }), tech);
+    const other = await User.create({ email: "t2@tankside.example", name: "Other Tech", role: "technician", passwordHash: null, passwordChangedAt: null });
+    const png = Buffer.from("89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082", "hex");
+    await expect(updateCalibration(cal.id, rateInput({ notes: "not yours" }), other)).rejects.toMatchObject({ status: 403, code: "forbidden" });
+    await expect(addCalibrationAttachment(cal.id, { name: "p.png", bytes: png }, other)).rejects.toMatchObject({ status: 403, code: "forbidden" });
+    expect((await Calibration.findByPk(cal.id))!.notes).toBe("mine");
+    expect(await CalibrationAttachment.count({ where: { calibrationId: cal.id } })).toBe(0);
+    expect((await updateCalibration(cal.id, rateInput({ notes: "by the manager" }), managerUser())).notes).toBe("by the manager");
+    expect((await addCalibrationAttachment(cal.id, { name: "p.png", bytes: png }, tech)).calibrationId).toBe(cal.id);
+  });
+
   it("fits the readings on creation and uses the table's tolerance", async () => {
     const cal = await createCalibration(rateInput(), tech);
     expect(cal.slope).toBeCloseTo(1.004, 10);
@@ -77,16 +89,16 @@ describe("calibration records", () => {
 
   it("cannot be edited once signed off: 409, and nothing in the row changes", async () => {
     const cal = await createCalibration(rateInput({ notes: "first" }), tech);
-    const edited = await updateCalibration(cal.id, rateInput({ notes: "second" }));
+    const edited = await updateCalibration(cal.id, rateInput({ notes: "second" }), tech);
     expect(edited.notes).toBe("second");
     await signOffCalibration(cal.id, managerUser());
     const snapshot = (await Calibration.findByPk(cal.id, { raw: true }))!;
-    const attempt = updateCalibration(cal.id, rateInput({ notes: "third", readings: readings.map((r) => ({ ...r, measuredRpm: r.measuredRpm + 1 })) }));
+    const attempt = updateCalibration(cal.id, rateInput({ notes: "third", readings: readings.map((r) => ({ ...r, measuredRpm: r.measuredRpm + 1 })) }), tech);
     await expect(attempt).rejects.toBeInstanceOf(CalibrationError);
     await expect(attempt).rejects.toMatchObject({ status: 409, code: "calibration_signed" });
     await expect(signOffCalibration(cal.id, managerUser())).rejects.toMatchObject({ status: 409 });
     const png = Buffer.from("89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082", "hex");
-    await expect(addCalibrationAttachment(cal.id, { name: "photo.png", bytes: png }, tech.id)).rejects.toMatchObject({ status: 409 });
+    await expect(addCalibrationAttachment(cal.id, { name: "photo.png", bytes: png }, tech)).rejects.toMatchObject({ status: 409 });
     expect(await Calibration.findByPk(cal.id, { raw: true })).toEqual(snapshot);
   });
 
@@ -99,12 +111,12 @@ describe("calibration records", () => {
   it("accepts a PNG by content and refuses a text file named .pdf", async () => {
     const cal = await createCalibration(rateInput(), tech);
     const png = Buffer.from("89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082", "hex");
-    const row = await addCalibrationAttachment(cal.id, { name: "meter.png", bytes: png }, tech.id);
+    const row = await addCalibrationAttachment(cal.id, { name: "meter.png", bytes: png }, tech);
     expect(row.contentType).toBe("image/png");
     expect(row.storedName).not.toContain("meter");
-    const pdf = await addCalibrationAttachment(cal.id, { name: "cert.bin", bytes: Buffer.from("%PDF-1.4\n%âãÏÓ\n1 0 obj\n<<>>\nendobj\ntrailer\n<<>>\n%%EOF\n", "latin1") }, tech.id);
+    const pdf = await addCalibrationAttachment(cal.id, { name: "cert.bin", bytes: Buffer.from("%PDF-1.4\n%âãÏÓ\n1 0 obj\n<<>>\nendobj\ntrailer\n<<>>\n%%EOF\n", "latin1") }, tech);
     expect(pdf.contentType).toBe("application/pdf");
-    await expect(addCalibrationAttachment(cal.id, { name: "cert.pdf", bytes: Buffer.from("just some text") }, tech.id)).rejects.toMatchObject({ status: 422, code: "unsupported_attachment" });
+    await expect(addCalibrationAttachment(cal.id, { name: "cert.pdf", bytes: Buffer.from("just some text") }, tech)).rejects.toMatchObject({ status: 422, code: "unsupported_attachment" });
   });
 });
 

@@ -1,7 +1,7 @@
 import { Op, Transaction } from "sequelize";
 import { Calibration, CalibrationAttachment, CalibrationReminder, Equipment, User, sequelize } from "./db";
 import { getLabSettings } from "./settings";
-import type { CurrentUser } from "./auth/permissions";
+import { canEditCalibration, type CurrentUser } from "./auth/permissions";
 import {
   CalibrationInputError,
   calibrationKindFor,
@@ -31,6 +31,7 @@ export class CalibrationError extends Error {
   }
 }
 
+const NOT_YOURS_MESSAGE = "Only the person who performed this calibration or a lab manager can change it or add files to it.";
 const SIGNED_MESSAGE = "This calibration record is signed off and can no longer change. Record a new calibration to supersede it.";
 
 function dayStart(day: string): Date {
@@ -116,10 +117,11 @@ export async function createCalibration(input: CalibrationInput, performer: Pick
  * Changes a record that is not yet signed off. The check and the write share one write-locked
  * transaction, so a sign-off landing in between cannot be overwritten.
  */
-export async function updateCalibration(id: number, input: CalibrationInput) {
+export async function updateCalibration(id: number, input: CalibrationInput, editor: Pick<CurrentUser, "id" | "role">) {
   return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
     const cal = await Calibration.findByPk(id, { transaction: t });
     if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
+    if (!canEditCalibration(editor, cal)) throw new CalibrationError(403, "forbidden", NOT_YOURS_MESSAGE);
     if (cal.signedOffAt) throw new CalibrationError(409, "calibration_signed", SIGNED_MESSAGE);
     if (input.kind !== cal.kind || input.equipmentId !== cal.equipmentId) {
       throw new CalibrationError(422, "fixed_fields", "The kind and the equipment of a record cannot change; record a new calibration instead.");
@@ -144,9 +146,10 @@ export async function signOffCalibration(id: number, manager: Pick<CurrentUser, 
   return cal;
 }
 
-export async function assertCalibrationEditable(id: number) {
+export async function assertCalibrationEditable(id: number, editor: Pick<CurrentUser, "id" | "role">) {
   const cal = await Calibration.findByPk(id);
   if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
+  if (!canEditCalibration(editor, cal)) throw new CalibrationError(403, "forbidden", NOT_YOURS_MESSAGE);
   if (cal.signedOffAt) throw new CalibrationError(409, "calibration_signed", SIGNED_MESSAGE);
   return cal;
 }

@@ -19,6 +19,17 @@ function sessionSecret(): string {
   return crypto.randomBytes(32).toString("hex");
 }
 
+/**
+ * Why mail cannot be set up from these settings, or null. In production every message must go to
+ * a real relay unless the built-in fake server (which shows every reset link on the mail page) is
+ * asked for explicitly with TANKSIDE_FAKE_MAIL=1, as the demo and the browser tests do.
+ */
+export function mailSetupProblem(vars: { NODE_ENV?: string; SMTP_URL?: string; TANKSIDE_FAKE_MAIL?: string }): string | null {
+  if (vars.SMTP_URL) return null;
+  if (vars.NODE_ENV !== "production" || vars.TANKSIDE_FAKE_MAIL === "1") return null;
+  return "Tankside will not start: SMTP_URL is not set in production. Set SMTP_URL to your mail relay, or set TANKSIDE_FAKE_MAIL=1 to use the built-in fake mail server on purpose (demo and tests only).";
+}
+
 export const env = {
   nodeEnv,
   isProduction,
@@ -33,6 +44,8 @@ export const env = {
   /** Cookies are marked Secure when COOKIE_SECURE=1 (behind HTTPS); plain HTTP on a bench PC otherwise. */
   cookieSecure: process.env.COOKIE_SECURE === "1",
   smtpUrl: process.env.SMTP_URL || null,
+  /** TANKSIDE_FAKE_MAIL=1: the built-in fake SMTP server was asked for on purpose (required in production). */
+  fakeMailRequested: process.env.TANKSIDE_FAKE_MAIL === "1",
   mailFrom: process.env.MAIL_FROM ?? "Tankside <tankside@tankside.example>",
   appUrl: (process.env.APP_URL ?? `http://localhost:${port}`).replace(/\/$/, ""),
   uploadsDir: path.resolve(process.env.UPLOADS_DIR ?? path.join(projectRoot, "uploads")),

@@ -152,15 +152,22 @@ export async function changeOwnPassword(userId: number, current: string, next: s
   await endAllSessionsOf(user.id, keepSessionId);
 }
 
-async function activeManagerCount(transaction: import("sequelize").Transaction) {
-  return User.count({ where: { role: "lab_manager", active: true }, transaction });
+/** Managers who can actually sign in: active and with a password chosen (an unanswered invitation does not count). */
+async function usableManagerCount(transaction: import("sequelize").Transaction) {
+  return User.count({ where: { role: "lab_manager", active: true, passwordHash: { [Op.ne]: null } }, transaction });
+}
+
+/** Whether taking this person out of the lab-manager role (or deactivating them) would leave no manager able to sign in. */
+async function isLastUsableManager(user: User, transaction: import("sequelize").Transaction) {
+  if (user.role !== "lab_manager" || !user.active || !user.passwordHash) return false;
+  return (await usableManagerCount(transaction)) <= 1;
 }
 
 export async function changeRole(userId: number, role: Role) {
   await sequelize.transaction(async (transaction) => {
     const user = await User.findByPk(userId, { transaction });
     if (!user) throw new PeopleError("No such person.", undefined, 404);
-    if (user.role === "lab_manager" && role !== "lab_manager" && user.active && (await activeManagerCount(transaction)) <= 1) {
+    if (role !== "lab_manager" && (await isLastUsableManager(user, transaction))) {
       throw new PeopleError("The lab needs at least one active lab manager: make someone else lab manager first.", "role", 409);
     }
     await user.update({ role }, { transaction });
@@ -171,7 +178,7 @@ export async function setActive(userId: number, active: boolean) {
   await sequelize.transaction(async (transaction) => {
     const user = await User.findByPk(userId, { transaction });
     if (!user) throw new PeopleError("No such person.", undefined, 404);
-    if (!active && user.role === "lab_manager" && user.active && (await activeManagerCount(transaction)) <= 1) {
+    if (!active && (await isLastUsableManager(user, transaction))) {
       throw new PeopleError("You cannot deactivate the last active lab manager.", undefined, 409);
     }
     await user.update({ active }, { transaction });

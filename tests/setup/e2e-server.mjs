@@ -15,6 +15,7 @@ delete env.SMTP_URL;
 Object.assign(env, {
   NODE_ENV: "production",
   TANKSIDE_DEMO: "1",
+  TANKSIDE_FAKE_MAIL: "1",
   PORT: process.env.E2E_PORT ?? "3210",
   HOST: "127.0.0.1",
   DATABASE_URL: `sqlite:${path.join(tmp, "e2e.sqlite")}`,

@@ -69,6 +69,14 @@ export async function requireUser(request: Request): Promise<CurrentUser> {
   throw redirect(back === "/" ? "/sign-in" : `/sign-in?redirectTo=${encodeURIComponent(back)}`);
 }
 
+/**
+ * Calibration records: who may change one and add files to it. Only the person who performed it
+ * or a lab manager; another technician's unsigned record is theirs to finish, not to rewrite.
+ */
+export function canEditCalibration(user: Pick<CurrentUser, "id" | "role">, record: { performedById: number }): boolean {
+  return user.role === "lab_manager" || (user.role === "technician" && record.performedById === user.id);
+}
+
 export function forbidden(request: Request, message: string): never {
   if (isApiRequest(request)) throw apiError(403, "forbidden", message);
   throw data(message, { status: 403 });

@@ -3,14 +3,18 @@ import { MailLog } from "../db";
 import { env } from "../env";
 import { startFakeSmtp } from "./fake-smtp";
 
-/** True when no real relay is configured and mail goes to the built-in fake server. */
-export const usingFakeMail = !env.smtpUrl;
+/**
+ * True when no real relay is configured and mail goes to the built-in fake server, whose inbox the
+ * lab manager can read. In production that needs TANKSIDE_FAKE_MAIL=1 (boot refuses otherwise).
+ */
+export const usingFakeMail = !env.smtpUrl && (!env.isProduction || env.fakeMailRequested);
 
 let transporter: Promise<Transporter> | null = null;
 
 function getTransporter(): Promise<Transporter> {
   transporter ??= (async () => {
     if (env.smtpUrl) return nodemailer.createTransport(env.smtpUrl);
+    if (!usingFakeMail) throw new Error("SMTP_URL is not set (and TANKSIDE_FAKE_MAIL=1 was not given)");
     const { port } = await startFakeSmtp();
     return nodemailer.createTransport({ host: "127.0.0.1", port, secure: false, ignoreTLS: true });
   })();

@@ -4,6 +4,7 @@ import path from "node:path";
 import sharp from "sharp";
 import { CalibrationAttachment } from "../db";
 import { env } from "../env";
+import type { CurrentUser } from "../auth/permissions";
 import { assertCalibrationEditable, CalibrationError } from "../calibrations";
 
 export const MAX_ATTACHMENT_BYTES = 20 * 1024 * 1024;
@@ -31,8 +32,9 @@ function attachmentDir() {
   return path.join(env.uploadsDir, "calibrations");
 }
 
-export async function addCalibrationAttachment(calibrationId: number, file: { name: string; bytes: Buffer }, uploadedById: number) {
-  await assertCalibrationEditable(calibrationId);
+export async function addCalibrationAttachment(calibrationId: number, file: { name: string; bytes: Buffer }, uploader: Pick<CurrentUser, "id" | "role">) {
+  const uploadedById = uploader.id;
+  await assertCalibrationEditable(calibrationId, uploader);
   if (file.bytes.length === 0) throw new CalibrationError(422, "empty_file", "That file is empty.");
   if (file.bytes.length > MAX_ATTACHMENT_BYTES) throw new CalibrationError(413, "file_too_large", "Attachments can be at most 20 MB.");
   const kind = await sniffAttachment(file.bytes);
@@ -44,7 +46,7 @@ export async function addCalibrationAttachment(calibrationId: number, file: { na
   await fs.writeFile(path.join(attachmentDir(), storedName), file.bytes, { flag: "wx" });
   try {
     // Checked again: a sign-off may have landed while the file was being written.
-    await assertCalibrationEditable(calibrationId);
+    await assertCalibrationEditable(calibrationId, uploader);
     return await CalibrationAttachment.create({
       calibrationId,
       originalName: file.name.slice(0, 255) || "attachment",

@@ -19,7 +19,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const file = form.get("file");
   if (!(file instanceof File)) return apiError(400, "invalid_upload", "Send the file in a field named file.");
   try {
-    const row = await addCalibrationAttachment(Number(params.id), { name: file.name, bytes: Buffer.from(await file.arrayBuffer()) }, user.id);
+    const row = await addCalibrationAttachment(Number(params.id), { name: file.name, bytes: Buffer.from(await file.arrayBuffer()) }, user);
     return Response.json(
       { id: row.id, originalName: row.originalName, contentType: row.contentType, sizeBytes: row.sizeBytes, url: `/api/v1/calibrations/${params.id}/attachments/${row.id}` },
       { status: 201 },

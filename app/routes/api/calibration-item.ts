@@ -15,12 +15,12 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 /** PUT /api/v1/calibrations/:id — replaces a record not yet signed off; a signed one answers 409. */
 export async function action({ request, params }: Route.ActionArgs) {
-  await requireRole(request, "technician", "lab_manager");
+  const user = await requireRole(request, "technician", "lab_manager");
   if (request.method !== "PUT" && request.method !== "PATCH") return methodNotAllowed("GET, PUT");
   const parsed = calibrationSchema.safeParse(await readJson(request));
   if (!parsed.success) return invalidInput(parsed.error);
   try {
-    const cal = await updateCalibration(Number(params.id), parsed.data);
+    const cal = await updateCalibration(Number(params.id), parsed.data, user);
     const [view] = await serializeCalibrations([cal]);
     return Response.json(view);
   } catch (err) {

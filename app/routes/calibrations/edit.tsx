@@ -44,7 +44,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const submission = parseWithZod(await request.formData(), { schema: calibrationSchema });
   if (submission.status !== "success") return data(submission.reply(), { status: 400 });
   try {
-    const cal = params.id ? await updateCalibration(Number(params.id), submission.value) : await createCalibration(submission.value, user);
+    const cal = params.id ? await updateCalibration(Number(params.id), submission.value, user) : await createCalibration(submission.value, user);
     return redirect(`/calibrations/${cal.id}`);
   } catch (err) {
     if (err instanceof CalibrationError) {

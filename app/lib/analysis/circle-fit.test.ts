@@ -3,7 +3,7 @@ import { fitCircle, fitCircleAlgebraic } from "./circle-fit";
 
 // Gander, Golub & Strebel 1994, BIT 34, 558: the six-point example. The data are quoted from
 // memory; the expected geometric-fit values were recomputed and agree with the paper's printed
-// ones as remembered (PHYSICS.md).
+// ones as remembered (from memory).
 const ggsPoints = [
   { x: 1, y: 7 },
   { x: 2, y: 6 },

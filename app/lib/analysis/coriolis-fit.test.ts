@@ -29,7 +29,7 @@ function fitPath(spec: InertialTrackSpec, options: { correctFilterGain?: boolean
   return { fit, samples, window };
 }
 
-describe("Coriolis fit on analytic inertial motions (PHYSICS.md model)", () => {
+describe("Coriolis fit on analytic inertial motions (f-plane inertial motion with linear drag, Cushman-Roisin & Beckers 2011 ch. 2, from memory)", () => {
   for (const omega of [1.2, -1.2]) {
     for (const drag of [0, 0.08]) {
       it(`recovers f = 2Ω and the drag rate: Ω = ${omega} rad/s, r = ${drag} s⁻¹, free surface`, () => {
@@ -89,7 +89,7 @@ describe("inertial kinematics", () => {
     expect(unwrapAngles([3, -3, -2.5, 3.1])).toEqual([3, -3 + 2 * Math.PI, -2.5 + 2 * Math.PI, 3.1]);
   });
 
-  it("predicts the radius |V|/|f| and the straight-launch deflection R − √(R² − L²) ≈ f L²/(2V) (PHYSICS.md)", () => {
+  it("predicts the radius |V|/|f| and the straight-launch deflection R − √(R² − L²) ≈ f L²/(2V) (circle geometry, common practice)", () => {
     expect(predictedRadius(0.1, -2)).toBeCloseTo(0.05, 15);
     // f = 0.2 s⁻¹, V = 0.05 m/s: R = 0.25 m; after L = 0.05 m the exact deflection is
     // 0.25 − √(0.0625 − 0.0025) = 5.0510e-3 m and the short-distance form gives 5.0000e-3 m.

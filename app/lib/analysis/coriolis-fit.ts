@@ -1,7 +1,8 @@
 /**
  * The Coriolis fit and the simple kinematics of an inertial circle.
  *
- * Model (PHYSICS.md): aₓ = f v − r u + c x, a_y = −f u − r v + c y, with c = Ω² on a flat table
+ * Model (inertial motion with linear drag on an f-plane; Cushman-Roisin & Beckers 2011,
+ * Introduction to Geophysical Fluid Dynamics, 2nd ed., ch. 2, from memory): aₓ = f v − r u + c x, a_y = −f u − r v + c y, with c = Ω² on a flat table
  * (centrifugal term, known from the rate in force) and c = 0 on a free surface or paraboloid.
  */
 import { leastSquares, linearFit } from "./regression";

@@ -45,7 +45,7 @@ describe("constants", () => {
 });
 
 describe("Coriolis parameter and components at a latitude", () => {
-  it("gives f = 1.0313e-4 s⁻¹ at 45° (recomputed from IERS 2010 Ω, PHYSICS.md)", () => {
+  it("gives f = 1.0313e-4 s⁻¹ at 45° (recomputed from Ω in the IERS Conventions 2010, Petit & Luzum, IERS Technical Note 36)", () => {
     expect(coriolisParameter(45)).toBeCloseTo(1.0313e-4, 8);
   });
 

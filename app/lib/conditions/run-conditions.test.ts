@@ -17,7 +17,7 @@ import {
 } from "./run-conditions";
 
 // Fresh water at 0.101325 MPa: IAPWS-95 density with the IAPWS 2008 viscosity release (R12-08),
-// as tabulated in ITTC Recommended Procedure 7.5-02-01-03 (2011) (PHYSICS.md).
+// as tabulated in ITTC Recommended Procedure 7.5-02-01-03 (2011).
 const iapws = [
   { t: 10, rho: 999.7025, mu: 1.3059e-3, nu: 1.3063e-6 },
   { t: 15, rho: 999.1026, mu: 1.13757e-3, nu: 1.1386e-6 },
@@ -46,7 +46,7 @@ describe("water properties", () => {
   });
 });
 
-describe("Ekman layer and spin-up (PHYSICS.md worked example, recomputed)", () => {
+describe("Ekman layer and spin-up (Greenspan & Howard 1963, J. Fluid Mech. 17, 385: τ = H/√(νΩ); worked example recomputed)", () => {
   const nu = 1.0034e-6;
 
   it("Ω = 1 rad/s, H = 0.10 m, ν = 1.0034e-6 m²/s: δ = 1.00 mm, τ = 99.8 s, E = 1.0e-4", () => {
@@ -75,7 +75,7 @@ describe("Ekman layer and spin-up (PHYSICS.md worked example, recomputed)", () =
 });
 
 describe("free surface in solid-body rotation", () => {
-  it("Ω = 1 rad/s, R = 0.30 m: centre-to-rim rise Ω²R²/(2g) = 4.589 mm (PHYSICS.md, recomputed; gₙ from CGPM 1901)", () => {
+  it("Ω = 1 rad/s, R = 0.30 m: centre-to-rim rise Ω²R²/(2g) = 4.589 mm (paraboloid of solid-body rotation, common practice, recomputed; gₙ from CGPM 1901)", () => {
     const s = freeSurface(1, 0.3, 0.1);
     expect(s.centreToRimRise * 1000).toBeCloseTo(4.589, 3);
     expect(s.centreDrop).toBeCloseTo(s.centreToRimRise / 2, 15);

@@ -32,7 +32,7 @@ function unwrap(a: number): number {
   return Math.atan2(Math.sin(a), Math.cos(a));
 }
 
-describe("synthetic frame stacks (PHYSICS.md: frames and signs)", () => {
+describe("synthetic frame stacks (right-handed frame seen from above, image y down: common practice)", () => {
   it("draws an inertial circle clockwise seen from above for Ω > 0, one turn per π/Ω", () => {
     const path = base.tracers[0].path;
     const circleCentre = { x: 80 + 0.01 * 400, y: 60 + 0.02 * 400 };

@@ -8,6 +8,7 @@ import { fitCoriolis, inertialPeriodFromAngle, predictedRadius, turningRate } fr
 import type { CameraMode, TimedPoint, ViewGeometry } from "./frames";
 import { imageToTable, reRotate, rotatingFrameToImage, trackToRotatingFrame } from "./frames";
 import { DECISION_RULE, decide, Z95 } from "./decision";
+import { fmt } from "./format";
 import { linearFit } from "./regression";
 import {
   chooseWindow,
@@ -125,13 +126,6 @@ export const MIN_PERIOD_FRACTION = 0.25;
 /** More than this fraction of unusable points means the track itself is in doubt. */
 const MAX_LEFT_OUT_FRACTION = 0.2;
 
-function fmt(value: number, digits = 3): string {
-  if (!Number.isFinite(value)) return "—";
-  if (value === 0) return "0";
-  const abs = Math.abs(value);
-  if (abs >= 1e-3 && abs < 1e5) return Number(value.toPrecision(digits)).toString();
-  return value.toExponential(digits - 1);
-}
 
 /** A value with its standard error, both to the standard error's second significant digit. */
 function withError(value: number, se: number): string {

@@ -7,11 +7,8 @@
  * "inconclusive", with how much smaller s would have to be to decide.
  */
 import type { TheoryVerdict } from "./check";
+import { fmt } from "./format";
 
-function fmt(value: number, digits = 3): string {
-  if (!Number.isFinite(value)) return "—";
-  return Number(value.toPrecision(digits)).toString();
-}
 
 /** Two-sided 95 % normal quantile. */
 export const Z95 = 1.959963984540054;

@@ -2,6 +2,7 @@ import { Calibration, type Run } from "../db";
 import { calibrationSnapshot } from "./service";
 import { trueRateFromCalibration, type CalibrationKind } from "~/lib/calibrations";
 import {
+  DEFAULT_SCALE_TOLERANCE_PCT,
   describeRate,
   frameTimeCorrection,
   noneInForce,
@@ -38,6 +39,13 @@ function rateLine(cal: Calibration) {
  */
 export async function rateInForce(run: Run): Promise<RateInForce> {
   return (await calibrationsForCheck(run, null)).omegaCalibrated ?? null;
+}
+
+/** The scale calibration frozen on the run for its camera, for the setup page to offer. */
+export async function scaleCalibrationOfRun(run: Run) {
+  const { id, record } = await frozenRecord(run, "scale", run.cameraId);
+  if (id === null || !record || record.scalePxPerM === null) return null;
+  return { id, scalePxPerM: record.scalePxPerM, scaleUncertaintyPxPerM: record.scaleUncertaintyPxPerM, tolerancePct: record.tolerancePct ?? DEFAULT_SCALE_TOLERANCE_PCT };
 }
 
 export interface CalibrationsForCheck {

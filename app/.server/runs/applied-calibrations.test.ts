@@ -4,6 +4,7 @@ import { smallLab } from "../test-support";
 import { createRun } from "./service";
 import { checkRun, latestCheck } from "./theory";
 import { getRunExport } from "./record";
+import { tracksCsv } from "./exports";
 import { createCalibration, signOffCalibration, toDayString } from "../calibrations";
 import { rpmToRadPerS } from "~/lib/analysis/units";
 
@@ -99,8 +100,9 @@ describe("the timing check and scale calibration frozen on a run are applied, or
   });
 
   it("a view setup without a scale takes the scale calibration's, so lengths come out in metres", async () => {
-    const { check } = await runWithTrack(null);
+    const { run, check } = await runWithTrack(null);
     const r = check.result;
+    expect((await tracksCsv(run.id)).withMetres).toBe(true);
     expect(r.lengthUnit).toBe("m");
     expect(check.input.setup.pxPerM).toBeCloseTo(TRUE_PX_PER_M, 9);
     expect(r.circle!.radiusM!).toBeCloseTo(0.07, 3);

@@ -17,6 +17,7 @@ import {
   type RateReading,
 } from "~/lib/calibrations";
 import type { CalibrationInput } from "~/lib/validation/calibrations";
+import { DEFAULT_SCALE_TOLERANCE_PCT } from "~/lib/calibrations-applied";
 import { kindLabels, type EquipmentKind } from "~/lib/equipment";
 
 /** A refusal with the HTTP status that says why (404 missing, 409 signed, 422 wrong equipment). */
@@ -92,7 +93,8 @@ async function columnsFor(input: CalibrationInput, t?: Transaction) {
     }
     if (input.kind === "scale") {
       const known = { knownLengthM: input.knownLengthMm! / 1000, knownLengthUncertaintyM: input.knownLengthUncertaintyMm! / 1000, lengthPx: input.lengthPx!, lengthUncertaintyPx: input.lengthUncertaintyPx! };
-      return { ...empty, ...common, ...known, ...scaleFromKnownLength(known) };
+      // The camera's scale tolerance is frozen into the record, as the table's rate tolerance is into a rate calibration.
+      return { ...empty, ...common, ...known, ...scaleFromKnownLength(known), tolerancePct: item.scaleTolerancePct ?? DEFAULT_SCALE_TOLERANCE_PCT };
     }
     const timing = {
       nominalFrameRateFps: input.nominalFrameRateFps ?? item.nominalFrameRateFps ?? NaN,

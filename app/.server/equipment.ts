@@ -1,6 +1,7 @@
 import { Equipment } from "./db";
 import type { EquipmentInput } from "~/lib/validation/equipment";
 import type { EquipmentKind } from "~/lib/equipment";
+import { DEFAULT_SCALE_TOLERANCE_PCT } from "~/lib/calibrations-applied";
 
 /** The API and page shape of an item; lengths in metres as stored, plus cm for forms. */
 export function serializeEquipment(e: Equipment) {
@@ -22,6 +23,7 @@ export function serializeEquipment(e: Equipment) {
     resolutionWidthPx: e.resolutionWidthPx,
     resolutionHeightPx: e.resolutionHeightPx,
     nominalFrameRateFps: e.nominalFrameRateFps,
+    scaleTolerancePct: e.scaleTolerancePct,
     meterType: e.meterType,
     createdAt: e.createdAt.toISOString(),
     updatedAt: e.updatedAt.toISOString(),
@@ -49,6 +51,7 @@ function toColumns(input: EquipmentInput) {
     resolutionWidthPx: k === "camera" ? (input.resolutionWidthPx ?? null) : null,
     resolutionHeightPx: k === "camera" ? (input.resolutionHeightPx ?? null) : null,
     nominalFrameRateFps: k === "camera" ? (input.nominalFrameRateFps ?? null) : null,
+    scaleTolerancePct: k === "camera" ? (input.scaleTolerancePct ?? DEFAULT_SCALE_TOLERANCE_PCT) : null,
     meterType: k === "rate_meter" ? (input.meterType ?? "tachometer") : null,
   };
 }

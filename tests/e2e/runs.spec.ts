@@ -57,6 +57,10 @@ test("a technician logs a run, brings a frame stack, sets the view, tracks it an
   await expect(page.getByTestId("verdict")).toHaveText("Agrees with theory");
   await expect(page.getByTestId("theory-check")).toContainText("to the right");
   await expect(page.getByTestId("theory-plots").locator("figure")).toHaveCount(5);
+  // The demo camera's timing check and scale calibration are in force: the check says what it did with each.
+  const applied = page.getByTestId("calibrations-applied");
+  await expect(applied).toContainText(/timing check #\d+: frame times × 1\.00111/);
+  await expect(applied).toContainText(/scale calibration #\d+: applied — the view setup has no scale/);
 
   // An instructor may read the run but not change it: 403 from the upload and tracking routes.
   const instructor = await apiAs(new URL(page.url()).origin, people.instructor);

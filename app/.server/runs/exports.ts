@@ -3,6 +3,7 @@ import { RunError } from "./service";
 import { parseTrackPoints, signedOmega } from "./theory";
 import { trackToRotatingFrame, type ViewGeometry } from "~/lib/analysis/frames";
 import { runLabel } from "~/lib/runs";
+import { correctFrameTimes } from "~/lib/calibrations-applied";
 
 function csvNumber(v: number) {
   // Enough digits for sub-pixel positions and millisecond times; no locale, no thousands separators.
@@ -10,9 +11,11 @@ function csvNumber(v: number) {
 }
 
 /**
- * The run's tracks as CSV, one row a point: track_id, t_s, x_px, y_px, and x_m, y_m in the
- * rotating frame when the view setup has a scale. A lab-fixed camera's positions are de-rotated by
- * −Ω(t − t₀), Ω the rate the latest theory check used (else the set rate), t₀ each track's first time.
+ * The run's tracks as CSV, one row a point: track_id, t_s (the camera's time, as tracked), x_px,
+ * y_px, and x_m, y_m in the rotating frame when the view setup has a scale (else the scale
+ * calibration's, when the latest check used it). A lab-fixed camera's positions are de-rotated by
+ * −Ω(t − t₀), Ω the rate the latest theory check used (else the set rate), t₀ each track's first
+ * time, t the camera's time corrected by the timing check that check applied.
  */
 export async function tracksCsv(runId: number): Promise<{ filename: string; csv: string; withMetres: boolean }> {
   const run = await Run.findByPk(runId);
@@ -29,22 +32,30 @@ export async function tracksCsv(runId: number): Promise<{ filename: string; csv:
   const setup = await ViewSetup.findOne({ where: { runId } });
   const check = await TheoryCheck.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] });
   let omega = signedOmega(run);
+  let timeFactor = 1;
+  let checkPxPerM: number | null = null;
   if (check) {
     try {
       // Stored as { result, input } by the theory check (see StoredCheck in ./theory).
-      const used = (JSON.parse(check.result) as { result?: { omega?: unknown } }).result?.omega;
+      const stored = JSON.parse(check.result) as { result?: { omega?: unknown; frameTimeFactor?: unknown }; input?: { setup?: { pxPerM?: unknown } } };
+      const used = stored.result?.omega;
       if (typeof used === "number" && Number.isFinite(used)) omega = used;
+      const factor = stored.result?.frameTimeFactor;
+      if (typeof factor === "number" && factor > 0) timeFactor = factor;
+      const scale = stored.input?.setup?.pxPerM;
+      if (typeof scale === "number" && scale > 0) checkPxPerM = scale;
     } catch {
       // An unreadable stored result leaves the set rate in use.
     }
   }
-  const view: ViewGeometry | null =
-    setup && setup.scalePxPerM ? { centre: { x: setup.centreXPx, y: setup.centreYPx }, pxPerM: setup.scalePxPerM, mirrored: setup.mirrored } : null;
+  const pxPerM = setup?.scalePxPerM || checkPxPerM;
+  const view: ViewGeometry | null = setup && pxPerM ? { centre: { x: setup.centreXPx, y: setup.centreYPx }, pxPerM, mirrored: setup.mirrored } : null;
 
   const lines = [view ? "track_id,t_s,x_px,y_px,x_m,y_m" : "track_id,t_s,x_px,y_px"];
   for (const track of tracks) {
     const points = parseTrackPoints(track);
-    const rotating = view && points.length ? trackToRotatingFrame(points, view, run.cameraMode, omega, points[0].t) : null;
+    const timed = timeFactor === 1 ? points : correctFrameTimes(points, timeFactor);
+    const rotating = view && timed.length ? trackToRotatingFrame(timed, view, run.cameraMode, omega, timed[0].t) : null;
     points.forEach((p, i) => {
       const cells = [String(track.id), csvNumber(p.t), csvNumber(p.x), csvNumber(p.y)];
       if (rotating) cells.push(csvNumber(rotating[i].x), csvNumber(rotating[i].y));

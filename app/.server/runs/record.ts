@@ -251,7 +251,7 @@ export async function getRunExport(runId: number) {
   const detail = await getRunDetail(runId, { full: true });
   if (!detail) return null;
   // The stored check is { result, input }: the input (setup, rates, t₀, settings, track) reproduces the result.
-  const check = detail.latestTheoryCheck as (ReturnType<typeof serializeCheck> & { result?: { result?: { settings?: unknown }; input?: { settings?: unknown } } | null }) | null;
+  const check = detail.latestTheoryCheck as (ReturnType<typeof serializeCheck> & { result?: { result?: { settings?: unknown; calibrationsApplied?: unknown }; input?: { settings?: unknown } } | null }) | null;
   return {
     format: "tankside-run-export",
     formatVersion: 1,
@@ -276,6 +276,8 @@ export async function getRunExport(runId: number) {
     viewSetup: detail.viewSetup,
     calibrationIdsInForce: detail.calibrationsInForce.ids,
     calibrationsInForce: detail.calibrationsInForce.records,
+    // What the latest check did with each of them, in words (null for a check made before this was recorded).
+    calibrationsApplied: check?.result?.result?.calibrationsApplied ?? null,
     tracks: detail.tracks,
     trackingJob: detail.latestTrackingJob,
     settings: check?.result ? { used: check.result.result?.settings ?? null, requested: check.result.input?.settings ?? null } : null,

@@ -1,35 +1,13 @@
-import { Calibration, Equipment, Run, TheoryCheck, Track, ViewSetup, sequelize } from "../db";
-import { calibrationSnapshot } from "./service";
-import { trueRateFromCalibration } from "~/lib/calibrations";
+import { Equipment, Run, TheoryCheck, Track, ViewSetup, sequelize } from "../db";
+import { calibrationsForCheck } from "./applied-calibrations";
 import { getLabSettings } from "../settings";
 import { codeVersion } from "../version";
 import { runTheoryCheck, type TheoryCheckInput, type TheoryCheckResult } from "~/lib/analysis/check";
 import { rpmToRadPerS } from "~/lib/analysis/units";
 import { setRunState } from "./service";
 
-export type RateInForce = { value: number; stdError: number; calibrationId: number } | null;
-
-/**
- * The true rate (rad/s, signed) at the run's set rate, from the table's rate calibration that was
- * in force when the run was logged (the run's frozen snapshot names it; signed records never change).
- */
-export async function rateInForce(run: Run): Promise<RateInForce> {
-  const snapshot = calibrationSnapshot(run);
-  const rate = snapshot.inForce.find((c) => c.kind === "rate" && c.equipmentId === run.tableId);
-  if (!rate) return null;
-  const cal = await Calibration.findByPk(rate.id);
-  if (!cal || cal.slope === null || cal.interceptRpm === null || cal.slopeStdError === null || cal.interceptStdErrorRpm === null) return null;
-  const line = {
-    slope: cal.slope,
-    intercept: cal.interceptRpm,
-    slopeStdError: cal.slopeStdError,
-    interceptStdError: cal.interceptStdErrorRpm,
-    slopeInterceptCovariance: cal.slopeInterceptCovarianceRpm ?? 0,
-  };
-  const { rpm, stdErrorRpm } = trueRateFromCalibration(line, run.setRateRpm);
-  const sign = run.direction === "cw" ? -1 : 1;
-  return { value: sign * rpmToRadPerS(rpm), stdError: rpmToRadPerS(stdErrorRpm), calibrationId: cal.id };
-}
+// The rate lookup lives with the other calibrations the check applies.
+export { rateInForce, type RateInForce } from "./applied-calibrations";
 
 export function parseTrackPoints(track: Track) {
   return (JSON.parse(track.points) as [number, number, number, number][]).map(([t, x, y, frameIndex]) => ({ t, x, y, frameIndex }));
@@ -46,16 +24,19 @@ export async function theoryInputFor(run: Run): Promise<{ input: TheoryCheckInpu
   if (!tracks.length || !setup) return null;
   const table = await Equipment.findByPk(run.tableId);
   const settings = await getLabSettings();
-  const rate = await rateInForce(run);
+  // Rate, timing and scale calibrations frozen on the run: what each changes, and the words saying so.
+  const applied = await calibrationsForCheck(run, setup.scalePxPerM);
   const input: TheoryCheckInput = {
     points: parseTrackPoints(tracks[0]),
     setup: {
       centre: { x: setup.centreXPx, y: setup.centreYPx },
-      pxPerM: setup.scalePxPerM,
+      pxPerM: applied.pxPerM,
       mirrored: setup.mirrored,
     },
     omegaSet: signedOmega(run),
-    omegaCalibrated: rate ?? undefined,
+    omegaCalibrated: applied.omegaCalibrated,
+    frameTimes: applied.frameTimes,
+    calibrationsApplied: applied.calibrationsApplied,
     cameraMode: run.cameraMode,
     t0: 0,
     flatTable: Boolean(table?.flatTable),

@@ -47,9 +47,9 @@ addDemoStep({
     // Table B: past due (due three weeks ago): flagged on its page and in the reminder mail.
     await record({ kind: "rate", equipmentId: tableB.id, meterId: tach.id, performedOn: day(-200), dueOn: day(-20), readings: [4, 8, 12, 16].map((s, i) => ({ setRpm: s, measuredRpm: Number((0.997 * s + 0.01 + scatter[i]!).toFixed(3)) })) }, tech.id, manager.id);
     // Camera 1: scale and timing in force; camera 2: a scale record waiting for sign-off.
-    await record({ kind: "scale", equipmentId: cam1.id, performedOn: day(-60), knownLengthMm: 500, knownLengthUncertaintyMm: 0.5, lengthPx: 1083.4, lengthUncertaintyPx: 1.5, notes: "Steel rule on the tank floor, water at 10 cm." }, tech.id, manager.id);
+    await record({ kind: "scale", equipmentId: cam1.id, performedOn: day(-60), knownLengthMm: 500, knownLengthUncertaintyMm: 0.5, lengthPx: 350.1, lengthUncertaintyPx: 1.5, notes: "Steel rule on the tank floor, water at 10 cm." }, tech.id, manager.id);
     await record({ kind: "timing", equipmentId: cam1.id, performedOn: day(-60), nominalFrameRateFps: 30, frameIntervals: 1798, frameIntervalsUncertainty: 1, referenceElapsedS: 60.0, referenceElapsedUncertaintyS: 0.02, notes: "Filmed the lab clock's second hand for one minute." }, tech.id, manager.id);
-    await record({ kind: "scale", equipmentId: cam2.id, performedOn: day(-2), knownLengthMm: 800, knownLengthUncertaintyMm: 0.5, lengthPx: 1391.2, lengthUncertaintyPx: 2 }, tech2.id, null);
+    await record({ kind: "scale", equipmentId: cam2.id, performedOn: day(-2), knownLengthMm: 800, knownLengthUncertaintyMm: 0.5, lengthPx: 560.3, lengthUncertaintyPx: 2 }, tech2.id, null);
 
     // Bookings in every state.
     const lead = spinUpLeadS(0.12, 10, settingDefaults.spinUpTimesToWait);

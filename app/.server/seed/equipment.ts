@@ -2,7 +2,7 @@ import { Equipment } from "../db";
 import { addDemoStep } from "./demo";
 
 type Row = Partial<import("sequelize").InferCreationAttributes<Equipment>> & Pick<Equipment, "kind" | "name">;
-const base = { location: null, maker: null, model: null, serialNumber: null, notes: null, diameterM: null, maxRateRpm: null, flatTable: null, rateTolerancePct: null, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
+const base = { location: null, maker: null, model: null, serialNumber: null, notes: null, diameterM: null, maxRateRpm: null, flatTable: null, rateTolerancePct: null, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, scaleTolerancePct: null, meterType: null };
 
 /** The invented lab's equipment. */
 export const demoEquipment: Row[] = [
@@ -12,8 +12,8 @@ export const demoEquipment: Row[] = [
   { ...base, kind: "tank", name: "Acrylic tank 40", location: "Room 114", diameterM: 0.4, depthM: 0.2 },
   { ...base, kind: "tank", name: "Acrylic tank 57", location: "Room 114", diameterM: 0.57, depthM: 0.25 },
   { ...base, kind: "tank", name: "Wide tank 90", location: "Room 114", diameterM: 0.9, depthM: 0.3 },
-  { ...base, kind: "camera", name: "Overhead camera 1", location: "Table A mast", maker: "Lumera", model: "LX-720", resolutionWidthPx: 1280, resolutionHeightPx: 720, nominalFrameRateFps: 30 },
-  { ...base, kind: "camera", name: "Overhead camera 2", location: "Table B mast", maker: "Lumera", model: "LX-1080", resolutionWidthPx: 1920, resolutionHeightPx: 1080, nominalFrameRateFps: 60 },
+  { ...base, kind: "camera", name: "Overhead camera 1", location: "Table A mast", maker: "Lumera", model: "LX-720", resolutionWidthPx: 1280, resolutionHeightPx: 720, nominalFrameRateFps: 30, scaleTolerancePct: 1 },
+  { ...base, kind: "camera", name: "Overhead camera 2", location: "Table B mast", maker: "Lumera", model: "LX-1080", resolutionWidthPx: 1920, resolutionHeightPx: 1080, nominalFrameRateFps: 60, scaleTolerancePct: 1 },
   { ...base, kind: "camera", name: "Old bench camera", status: "retired", resolutionWidthPx: 640, resolutionHeightPx: 480, nominalFrameRateFps: 25 },
   { ...base, kind: "rate_meter", name: "Optical tachometer T1", meterType: "tachometer", maker: "Quillon", model: "OT-5" },
   { ...base, kind: "rate_meter", name: "Photogate PG-2", meterType: "photogate" },

@@ -10,6 +10,7 @@ import { imageToTable, reRotate, rotatingFrameToImage, trackToRotatingFrame } fr
 import { DECISION_RULE, decide, Z95 } from "./decision";
 import { fmt } from "./format";
 import { linearFit } from "./regression";
+import { correctFrameTimes, type AppliedCalibration, type FrameTimeCorrection } from "../calibrations-applied";
 import {
   chooseWindow,
   DEFAULT_POLY_ORDER,
@@ -37,6 +38,13 @@ export interface TheoryCheckInput {
   t0?: number;
   /** A flat (not paraboloidal) table: add the centrifugal term Ω²r to the model. */
   flatTable?: boolean;
+  /**
+   * The timing check in force: every point's time (and t₀) is multiplied by factor before
+   * anything else, and relStdError·|f| joins f measured's standard error in quadrature.
+   */
+  frameTimes?: FrameTimeCorrection;
+  /** What was done with each calibration in force, in words; carried into the result unchanged. */
+  calibrationsApplied?: AppliedCalibration[];
   settings?: {
     /** Fraction of |f predicted| within which the measurement agrees (default 0.03). */
     tolerance?: number;
@@ -86,7 +94,14 @@ export interface TheoryCheckResult {
   fPredictedStdError: number | null;
   /** s⁻¹, signed */
   fMeasured: number | null;
+  /** the fit's standard error and the timing check's, in quadrature */
   fStdError: number | null;
+  /** s⁻¹, the timing check's part of fStdError; null without a timing correction */
+  fStdErrorTiming: number | null;
+  /** the factor frame times were multiplied by; null when none was applied */
+  frameTimeFactor: number | null;
+  /** the calibrations frozen on the run and what the check did with each */
+  calibrationsApplied: AppliedCalibration[];
   /** s⁻¹ */
   drag: number | null;
   dragStdError: number | null;
@@ -181,6 +196,9 @@ function emptyResult(input: TheoryCheckInput, reason: string, partial: Partial<T
     fPredictedStdError: null,
     fMeasured: null,
     fStdError: null,
+    fStdErrorTiming: null,
+    frameTimeFactor: null,
+    calibrationsApplied: Array.isArray(input?.calibrationsApplied) ? input.calibrationsApplied : [],
     drag: null,
     dragStdError: null,
     ratio: null,
@@ -239,7 +257,14 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   }
   const fPredicted = 2 * omega;
   const fPredictedStdError = 2 * omegaSE;
-  const rate = { omega, omegaSource, fPredicted, fPredictedStdError, calibrationId: cal?.calibrationId ?? null };
+  const rate = {
+    omega,
+    omegaSource,
+    fPredicted,
+    fPredictedStdError,
+    calibrationId: cal?.calibrationId ?? null,
+    calibrationsApplied: Array.isArray(input.calibrationsApplied) ? input.calibrationsApplied : [],
+  };
 
   // View setup.
   const setup = input.setup;
@@ -255,12 +280,18 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   if (input.t0 !== undefined && !isFiniteNumber(input.t0)) {
     return inconclusive("The reference time t₀ is not a number.", rate);
   }
+  const timing = input.frameTimes;
+  if (timing && (!isFiniteNumber(timing.factor) || timing.factor <= 0 || !isFiniteNumber(timing.relStdError) || timing.relStdError < 0)) {
+    return inconclusive("The timing check in force gives no usable correction of the frame times (a factor or its uncertainty is missing).", rate);
+  }
+  const timeFactor = timing ? timing.factor : 1;
   const view: ViewGeometry = { centre: setup.centre, pxPerM: setup.pxPerM, mirrored: setup.mirrored === true };
   const lengthUnit = view.pxPerM === null ? "px" : "m";
   const pxPerUnit = view.pxPerM ?? 1;
 
   // Points: keep those with a finite time and position, in time order, one per time.
-  const raw = Array.isArray(input.points) ? input.points : [];
+  // The one place frame times are corrected: the camera's times, rescaled to the reference's.
+  const raw = Array.isArray(input.points) ? (timing ? correctFrameTimes(input.points, timeFactor) : input.points) : [];
   const usable = raw
     .filter((p) => p && isFiniteNumber(p.t) && isFiniteNumber(p.x) && isFiniteNumber(p.y))
     .map((p) => ({ t: p.t, x: p.x, y: p.y }))
@@ -278,7 +309,7 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   }
 
   const inertialPeriod = Math.PI / Math.abs(omega);
-  const t0 = input.t0 ?? points[0]?.t ?? 0;
+  const t0 = input.t0 !== undefined ? input.t0 * timeFactor : (points[0]?.t ?? 0);
   const rotating = trackToRotatingFrame(points, view, input.cameraMode, omega, t0);
   const lab = input.cameraMode === "lab" ? points.map((p) => ({ t: p.t, ...imageToTable(p, view) })) : reRotate(rotating, omega, t0);
   const series0 = { rotating, lab, accelFit: [], angle: [], residuals: [] };
@@ -359,7 +390,9 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
     return inconclusive("The velocities and accelerations of the track fit no Coriolis model (the fit could not be solved).", withSettings);
   }
   const fMeasured = fit.f;
-  const fStdError = fit.fStdError;
+  // f ∝ 1/time: the timing check's relative uncertainty is f's, added in quadrature (JCGM 100:2008, GUM §5.1.6).
+  const fStdErrorTiming = timing ? Math.abs(fMeasured) * timing.relStdError : null;
+  const fStdError = Math.hypot(fit.fStdError, fStdErrorTiming ?? 0);
 
   // Plots and secondary estimates.
   const accelFit: AccelerationFitPoint[] = fit.rows.map((r) => ({
@@ -407,6 +440,8 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
     ...withSettings,
     fMeasured,
     fStdError,
+    fStdErrorTiming,
+    frameTimeFactor: timing ? timeFactor : null,
     drag: fit.drag,
     dragStdError: isFiniteNumber(fit.dragStdError) ? fit.dragStdError : null,
     ratio: fMeasured / fPredicted,
@@ -428,6 +463,11 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   if (nLeftOut > 0) notes.push(`${nLeftOut} point${nLeftOut === 1 ? " was" : "s were"} left out for a missing or repeated frame time or position.`);
   if (isFiniteNumber(fit.dragStdError) && fit.drag < -2 * fit.dragStdError) {
     notes.push("The tracer speeds up along its path (negative drag): something other than the Coriolis force may be driving it.");
+  }
+  if (timing) {
+    notes.push(
+      `Frame times were multiplied by ${timeFactor.toFixed(5)} from the timing check in force${timing.calibrationId !== null && timing.calibrationId !== undefined ? ` (#${timing.calibrationId})` : ""}; its uncertainty is part of f measured's standard error.`,
+    );
   }
   const withNotes = (text: string) => [text, ...notes].join(" ");
 

@@ -14,7 +14,7 @@ import { fmt } from "./format";
 export const Z95 = 1.959963984540054;
 
 export const DECISION_RULE =
-  "d = (f measured − f predicted)/f predicted with combined standard error s (measurement and rate calibration): agrees only when d ± 1.96 s lies wholly within ± the tolerance, disagrees only when it lies wholly outside (or the tracer is deflected the wrong way), otherwise inconclusive.";
+  "d = (f measured − f predicted)/f predicted with combined standard error s (the fit, the timing check when one is applied, and the rate calibration): agrees only when d ± 1.96 s lies wholly within ± the tolerance, disagrees only when it lies wholly outside (or the tracer is deflected the wrong way), otherwise inconclusive.";
 
 /**
  * How s falls with the number of frames N at a fixed frame rate and noise, measured on

@@ -33,6 +33,7 @@ export const equipmentSchema = z
     resolutionWidthPx: optionalPositive("Image width", 20000, "px"),
     resolutionHeightPx: optionalPositive("Image height", 20000, "px"),
     nominalFrameRateFps: optionalPositive("Frame rate", 1000, "frames/s"),
+    scaleTolerancePct: optionalPositive("Scale tolerance", 50, "%"),
     meterType: z.preprocess((v) => (v === "" ? undefined : v), z.enum(meterTypes).optional()),
   })
   .superRefine((v, ctx) => {

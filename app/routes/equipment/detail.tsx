@@ -32,6 +32,7 @@ export default function EquipmentDetail({ loaderData }: Route.ComponentProps) {
     ["Serial number", item.serialNumber],
     ["Location", item.location],
     ["Rate calibration tolerance", item.kind === "table" && item.rateTolerancePct !== null ? `${item.rateTolerancePct} % of the set rate` : null],
+    ["Scale tolerance", item.kind === "camera" && item.scaleTolerancePct !== null ? `${item.scaleTolerancePct} % of the scale calibration` : null],
   ];
   return (
     <div>

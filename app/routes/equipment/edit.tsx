@@ -70,6 +70,7 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
           resolutionWidthPx: str(item.resolutionWidthPx),
           resolutionHeightPx: str(item.resolutionHeightPx),
           nominalFrameRateFps: str(item.nominalFrameRateFps),
+          scaleTolerancePct: str(item.scaleTolerancePct),
           flatTable: item.flatTable ? "on" : undefined,
         }
       : { kind: "table", status: "in_service" },
@@ -114,6 +115,7 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
           {kind === "camera" ? text("resolutionWidthPx", "Image width", { unit: "px", inputMode: "numeric" }) : null}
           {kind === "camera" ? text("resolutionHeightPx", "Image height", { unit: "px", inputMode: "numeric" }) : null}
           {kind === "camera" ? text("nominalFrameRateFps", "Nominal frame rate", { unit: "frames/s", inputMode: "decimal" }) : null}
+          {kind === "camera" ? text("scaleTolerancePct", "Scale tolerance", { unit: "%", inputMode: "decimal", hint: "A run whose view setup scale differs from the scale calibration in force by more than this share is flagged (default 1 %)." }) : null}
           {kind === "rate_meter" ? (
             <SelectField label="Type" name={fields.meterType.name} defaultValue={String(fields.meterType.initialValue ?? "tachometer")}>
               {meterTypes.map((m) => (

@@ -6,6 +6,7 @@ import { getRunDetail, getSignOffView, getRunHistory } from "~/.server/runs/reco
 import { Run } from "~/.server/db";
 import type { TheoryCheckResult } from "~/lib/analysis/check";
 import { TheoryPlots } from "~/components/plots/theory-plots";
+import { CalibrationsAppliedList } from "~/components/runs/calibrations-applied-list";
 import { Button } from "~/components/ui/button";
 import { RunExportLinks } from "~/components/run-record/run-export-links";
 import { RunHistoryList } from "~/components/run-record/run-history-list";
@@ -29,8 +30,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const stored = check?.result?.result;
   const result = stored ? { ...stored, series: undefined } : null;
   const setup = run.viewSetup;
-  const plots = stored && setup ? { result: stored, setup: { centre: setup.centrePx, pxPerM: setup.scalePxPerM, mirrored: setup.mirrored } } : null;
-  return { run: { ...run, latestTheoryCheck: check ? { ...check, result } : null }, plots, signOff, history, printedAt: new Date().toISOString() };
+  // Plots draw with the scale the check used (the scale calibration's when the view setup has none).
+  const usedPxPerM = (check?.result as { input?: { setup?: { pxPerM?: number | null } } } | null)?.input?.setup?.pxPerM;
+  const plots = stored && setup ? { result: stored, setup: { centre: setup.centrePx, pxPerM: usedPxPerM ?? setup.scalePxPerM, mirrored: setup.mirrored } } : null;
+  return { run: { ...run, latestTheoryCheck: check ? { ...check, result } : null }, plots, usedPxPerM: usedPxPerM ?? null, signOff, history, printedAt: new Date().toISOString() };
 }
 
 function Row({ label, children }: { label: string; children: ReactNode }) {
@@ -109,7 +112,13 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
             )}
           </Row>
           <Row label="Frames">{run.frames.count} {run.frames.widthPx ? `(${run.frames.widthPx} × ${run.frames.heightPx} px)` : ""}</Row>
-          <Row label="Scale">{run.viewSetup?.scalePxPerM ? `${formatNumber(run.viewSetup.scalePxPerM)} px/m` : "No scale set"}</Row>
+          <Row label="Scale">
+            {run.viewSetup?.scalePxPerM
+              ? `${formatNumber(run.viewSetup.scalePxPerM)} px/m`
+              : loaderData.usedPxPerM
+                ? `None marked; the theory check used the scale calibration's ${formatNumber(loaderData.usedPxPerM)} px/m`
+                : "No scale set"}
+          </Row>
           <Row label="Tracks">{run.tracks.count}</Row>
         </dl>
       </section>
@@ -125,6 +134,9 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
             <Row label="Linear drag">{pm(r.drag, r.dragStdError, "s⁻¹")}</Row>
             <Row label="Inertial circle">
               {r.circle ? `${r.circle.radiusM !== null ? `${formatNumber(r.circle.radiusM * 100)} cm` : `${formatNumber(r.circle.radiusPx)} px`} radius, period ${formatNumber(r.circle.period)} s` : "—"}
+            </Row>
+            <Row label="Calibrations in this check">
+              <CalibrationsAppliedList entries={r.calibrationsApplied} />
             </Row>
             <Row label="Points used">{r.nPoints} ({r.nLeftOut} left out)</Row>
             {r.settings ? <Row label="Settings">tolerance {formatNumber(r.settings.tolerance * 100)} %, window {r.settings.window ?? "—"} frames, order {r.settings.polyOrder}</Row> : null}

@@ -20,6 +20,7 @@ import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { RunExportLinks } from "~/components/run-record/run-export-links";
 import { getRunRecordParts } from "~/.server/runs/record";
 import { calibrationKindLabels } from "~/lib/calibrations";
+import { flaggedCalibrations } from "~/lib/calibrations-applied";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? runLabel(data.run.id) : "Run"} · Tankside` }];
 
@@ -70,6 +71,11 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
       />
       <SupersedesLinks supersedes={d.record.links.supersedes} supersededBy={d.record.links.supersededBy} />
       {run.state === "signed_off" ? <Notice kind="info" title="Signed off: this run is read-only">A correction is logged as a new run linked to this one.</Notice> : null}
+      {flaggedCalibrations(d.check?.result.calibrationsApplied).map((c) => (
+        <Notice key={`flag-${c.kind}-${c.calibrationId}`} kind="caution" title={`The ${calibrationKindLabels[c.kind].toLowerCase()} in force disagrees with this run's view setup`}>
+          {c.text}
+        </Notice>
+      ))}
       {d.calibrations.pastDue.map((c) => {
         const item = [d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId);
         return (
@@ -148,7 +154,13 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
             <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
               <Fact label="Rotation centre">{formatNumber(d.setup.centre.x, 5)}, {formatNumber(d.setup.centre.y, 5)} px</Fact>
               <Fact label="Tank edge">{d.setup.edge ? `circle of radius ${formatNumber(d.setup.edge.r, 4)} px` : "whole frame searched"}</Fact>
-              <Fact label="Scale">{d.setup.pxPerM ? `${formatNumber(d.setup.pxPerM / 100, 4)} px per cm` : "none (lengths in px)"}</Fact>
+              <Fact label="Scale">
+                {d.setup.pxPerM
+                  ? `${formatNumber(d.setup.pxPerM / 100, 4)} px per cm`
+                  : d.check?.input.setup?.pxPerM
+                    ? `none marked; the theory check used the scale calibration's ${formatNumber(d.check.input.setup.pxPerM / 100, 4)} px per cm`
+                    : "none (lengths in px)"}
+              </Fact>
               <Fact label="Mirrored">{d.setup.mirrored ? "yes" : "no"}</Fact>
             </dl>
           ) : (
@@ -192,7 +204,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
 
       {d.check && d.setup ? (
         <Card title="Theory check" actions={<RunExportLinks runId={run.id} hasTracks={d.tracks.length > 0} />}>
-          <TheoryCheckPanel check={d.check} setup={d.setup} />
+          <TheoryCheckPanel check={d.check} setup={{ ...d.setup, pxPerM: d.check.input.setup?.pxPerM ?? d.setup.pxPerM }} />
         </Card>
       ) : null}
 

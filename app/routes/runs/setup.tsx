@@ -4,6 +4,8 @@ import type { Route } from "./+types/setup";
 import { requireRole } from "~/.server/auth/permissions";
 import { Frame, Run, ViewSetup } from "~/.server/db";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
+import { scaleCalibrationOfRun } from "~/.server/runs/applied-calibrations";
+import { formatNumber } from "~/lib/format";
 import { viewSetupSchema } from "~/lib/validation/view-setup";
 import { runLabel } from "~/lib/runs";
 import { Button, ButtonLink } from "~/components/ui/button";
@@ -49,7 +51,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   // The same camera usually hangs in the same place: start from its last setup.
   const previous = own ? null : await lastSetupOfCamera(run.cameraId, frame!.widthPx, frame!.heightPx);
   const start = own ?? previous;
+  const scaleCalibration = await scaleCalibrationOfRun(run);
   return {
+    scaleCalibration,
     runId: run.id,
     frame: { id: frame!.id, width: frame!.widthPx, height: frame!.heightPx },
     initial: start ? toValues(start) : { centre: null, edge: null, scalePoints: null, scaleLengthCm: null, mirrored: false },
@@ -92,7 +96,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function Setup({ loaderData, actionData }: Route.ComponentProps) {
-  const { runId, frame, initial, reusedFrom } = loaderData;
+  const { runId, frame, initial, reusedFrom, scaleCalibration } = loaderData;
   const errors = (actionData?.errors ?? {}) as Record<string, string[] | undefined>;
   return (
     <div>
@@ -100,6 +104,13 @@ export default function Setup({ loaderData, actionData }: Route.ComponentProps) 
       {reusedFrom ? (
         <div className="mb-4">
           <Notice kind="info" title={`Started from the last setup of this camera (${runLabel(reusedFrom)})`}>Check the marks still sit where they should before saving.</Notice>
+        </div>
+      ) : null}
+      {scaleCalibration ? (
+        <div className="mb-4">
+          <Notice kind="info" title={`Scale calibration #${scaleCalibration.id} is in force for this camera: ${formatNumber(scaleCalibration.scalePxPerM / 100, 5)} px per cm`}>
+            Leave the scale unmarked and the theory check uses it. A scale you mark here is kept, and flagged on the run when it differs from the calibration by more than {formatNumber(scaleCalibration.tolerancePct, 3)} %.
+          </Notice>
         </div>
       ) : null}
       <Card>

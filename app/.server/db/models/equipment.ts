@@ -26,6 +26,8 @@ export class Equipment extends Model<InferAttributes<Equipment>, InferCreationAt
   declare resolutionWidthPx: number | null;
   declare resolutionHeightPx: number | null;
   declare nominalFrameRateFps: number | null;
+  /** camera: % a view setup's scale may differ from the scale calibration before a run is flagged */
+  declare scaleTolerancePct: number | null;
   declare meterType: string | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -50,6 +52,7 @@ Equipment.init(
     resolutionWidthPx: { type: DataTypes.INTEGER, allowNull: true },
     resolutionHeightPx: { type: DataTypes.INTEGER, allowNull: true },
     nominalFrameRateFps: { type: DataTypes.DOUBLE, allowNull: true },
+    scaleTolerancePct: { type: DataTypes.DOUBLE, allowNull: true },
     meterType: { type: DataTypes.STRING(40), allowNull: true },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,

@@ -183,7 +183,8 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
     const approvedNow = await Promise.all(acknowledged.approvals.map(async (id) => (await (await request.get(`${base}/api/v1/bookings/${id}`, { headers: manager })).json()).state as string));
     expect(approvedNow.filter((s) => s !== "approved")).toEqual([]);
 
-    // The same job picks up where its stored detections end and finishes.
+    // The same job goes back in the queue at start, picks up where its stored detections end and finishes.
+    expect(second.output).toContain("[tracking] resuming 1 interrupted job(s)");
     await expect
       .poll(async () => (await (await request.get(`${base}/api/v1/runs/${lab.trackRunId}/tracking`, { headers: tech })).json()).job, { timeout: 300_000, intervals: [500] })
       .toMatchObject({ id: jobId, state: "done", framesDone: TRACK_FRAMES });

@@ -6,8 +6,9 @@ export const SQLITE_BUSY_TIMEOUT_MS = 10_000;
 /**
  * Set on every connection before Sequelize uses it:
  * - WAL: readers never wait for the writer and the writer never waits for readers;
- * - synchronous=NORMAL: with WAL, a commit survives a crash of the process (an OS crash or power
- *   loss may undo the last commits, never corrupt the file) — SQLite's own advice for WAL;
+ * - synchronous=NORMAL: with WAL, a commit survives a crash of the process; an OS crash or power
+ *   loss may undo the last commits but leaves the file consistent (SQLite's PRAGMA synchronous
+ *   documentation, sqlite.org/pragma.html#pragma_synchronous);
  * - foreign_keys=ON: SQLite leaves them off per connection unless asked.
  * journal_mode is kept in the file; the others last as long as the connection.
  */

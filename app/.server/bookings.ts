@@ -142,7 +142,9 @@ type Decision = "approve" | "decline";
 
 async function decide(id: number, manager: Pick<CurrentUser, "id" | "role" | "name">, decision: Decision, reason?: string) {
   if (manager.role !== "lab_manager") throw new BookingError(403, "forbidden", "Only a lab manager approves or declines bookings.");
-  // IMMEDIATE takes SQLite's write lock at BEGIN: a second approval waits here and then sees the first one's result.
+  // Exactly one of two racing approvals wins: write transactions run one at a time (db/write-queue.ts in this
+  // process, BEGIN IMMEDIATE against other processes), so the second starts after the first has committed,
+  // reads the booking and its overlaps afresh inside its own transaction, and is refused.
   const { booking, item } = await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
     const booking = await Booking.findByPk(id, { transaction: t });
     if (!booking) throw new BookingError(404, "not_found", "That booking does not exist.");

@@ -1,5 +1,6 @@
 import { Sequelize, Transaction, type Options } from "sequelize";
-import sqlite3 from "sqlite3";
+import { sqliteDialectModule } from "./sqlite-connection";
+import { queueWrites } from "./write-queue";
 import { env } from "../env";
 
 /**
@@ -10,27 +11,18 @@ function createSequelize(url: string): Sequelize {
   const common: Options = { logging: false, define: { underscored: true } };
   if (url.startsWith("sqlite:")) {
     const storage = url.replace(/^sqlite:(\/\/)?/, "");
-    return new Sequelize({
+    const sequelize = new Sequelize({
       ...common,
       dialect: "sqlite",
-      dialectModule: sqlite3,
+      // Every connection gets WAL, the busy timeout, synchronous=NORMAL and foreign keys (see there).
+      dialectModule: sqliteDialectModule,
       storage,
-      // Writers take SQLite's write lock when their transaction begins, so two of them wait their
-      // turn (busy timeout) instead of failing when a read lock cannot be upgraded.
+      // Writers queue in this process (write-queue.ts); IMMEDIATE still takes SQLite's write lock at
+      // BEGIN, so a writer in another process (a script, the migrate command) waits its turn too.
       transactionType: Transaction.TYPES.IMMEDIATE,
-      // Each connection (transactions get their own) waits on a lock instead of failing at once.
-      hooks: {
-        afterConnect: async (connection: unknown) => {
-          const db = connection as sqlite3.Database;
-          db.configure("busyTimeout", 10_000);
-          await new Promise<void>((resolve, reject) =>
-            db.exec("PRAGMA journal_mode=WAL; PRAGMA foreign_keys=ON; PRAGMA synchronous=NORMAL;", (err) =>
-              err ? reject(err) : resolve(),
-            ),
-          );
-        },
-      },
     });
+    queueWrites(sequelize);
+    return sequelize;
   }
   return new Sequelize(url, common);
 }

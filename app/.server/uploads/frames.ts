@@ -210,8 +210,10 @@ async function addZip(run: Run, data: Buffer, result: FrameUploadResult, zipName
   const wanted = orderBy([...byName.keys()]);
   for (const name of wanted) {
     const entry = byName.get(name)!;
+    let unpacked = false;
     try {
       const buf = await readEntry(reopened, entry, budget);
+      unpacked = true;
       result.accepted.push(await addFrame(run, `${cleanName(name)}`, buf, null));
     } catch (err) {
       if (err instanceof UploadError) {
@@ -220,6 +222,10 @@ async function addZip(run: Run, data: Buffer, result: FrameUploadResult, zipName
           break;
         }
         result.rejected.push({ name: `${zipName}: ${name}`, message: err.message });
+      } else if (unpacked) {
+        // Storing the frame failed (database, disk): the server's fault, not the archive's.
+        reopened.close();
+        throw err;
       } else {
         // yauzl checks each entry against the sizes the ZIP declares; a mismatch means a damaged or forged archive.
         result.rejected.push({ name: `${zipName}: ${name}`, message: "This entry is damaged or does not match the size the ZIP declares for it." });

@@ -124,6 +124,10 @@ export async function stageMultipart(request: Request, opts: MultipartOptions): 
     const fail = (err: UploadError) => {
       if (failed) return;
       failed = true;
+      // busboy still touches its state after emitting an event; tear it down once that returns.
+      queueMicrotask(() => tearDown(err));
+    };
+    const tearDown = (err: UploadError) => {
       source.unpipe(parser);
       source.destroy();
       fileStream?.destroy();

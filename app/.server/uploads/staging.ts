@@ -105,7 +105,8 @@ export async function stageMultipart(request: Request, opts: MultipartOptions): 
   try {
     parser = busboy({
       headers: { "content-type": request.headers.get("content-type") ?? "" },
-      limits: { files: 1, fileSize: opts.maxFileBytes, fields: 8, fieldSize: 1024, parts: 9, headerPairs: 16 },
+      // Uppy sends a few metadata fields with the file (name, type); 16 of at most 4 KiB fill the 64 KiB the server allows beside it.
+      limits: { files: 1, fileSize: opts.maxFileBytes, fields: 16, fieldSize: 4 * 1024, parts: 17, headerPairs: 16 },
     });
   } catch {
     throw opts.unreadable;

@@ -2,8 +2,8 @@
 import crypto from "node:crypto";
 import express from "express";
 import compression from "compression";
-import { createRequestHandler } from "@react-router/express";
 import { loadContext, noStore, sameOriginOnly, strictTransport } from "./server-guards.mjs";
+import { closeUnreadUploads, createRequestHandler, refuseOversizedBodies } from "./server-bodies.mjs";
 
 const dev = process.argv.includes("--dev");
 const port = Number(process.env.PORT ?? 3000);
@@ -41,17 +41,6 @@ function securityHeaders(req, res, next) {
   next();
 }
 
-// A refusal (401/403/413…) can be sent before an upload's body is read. Such a socket cannot be
-// reused for the next request, so tell the client to close it instead of letting it reset.
-function closeUnreadUploads(req, res, next) {
-  const writeHead = res.writeHead;
-  res.writeHead = function (...args) {
-    if (!req.complete && !res.headersSent) res.setHeader("Connection", "close");
-    return writeHead.apply(this, args);
-  };
-  next();
-}
-
 const app = express();
 app.disable("x-powered-by");
 if (process.env.TRUST_PROXY) app.set("trust proxy", process.env.TRUST_PROXY);
@@ -59,6 +48,7 @@ app.use(closeUnreadUploads);
 app.use(compression());
 app.use(securityHeaders);
 app.use(strictTransport);
+app.use(refuseOversizedBodies);
 app.use(sameOriginOnly);
 
 let build;
@@ -77,6 +67,7 @@ if (dev) {
 }
 
 app.use(noStore);
+// Our own adapter instead of @react-router/express's: the app gets a body stream limited per path.
 app.all(
   "/{*splat}",
   createRequestHandler({

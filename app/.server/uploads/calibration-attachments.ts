@@ -6,6 +6,7 @@ import { CalibrationAttachment } from "../db";
 import { env } from "../env";
 import type { CurrentUser } from "../auth/permissions";
 import { assertCalibrationEditable, CalibrationError } from "../calibrations";
+import { discardStaged, moveStaged, sha256OfFile, stageBytes, type StagedFile } from "./staging";
 
 export const MAX_ATTACHMENT_BYTES = 20 * 1024 * 1024;
 
@@ -32,18 +33,33 @@ function attachmentDir() {
   return path.join(env.uploadsDir, "calibrations");
 }
 
-export async function addCalibrationAttachment(calibrationId: number, file: { name: string; bytes: Buffer }, uploader: Pick<CurrentUser, "id" | "role">) {
+/**
+ * Adds a photo or PDF to a calibration record: a staged upload, checked from disk and moved into
+ * place, or bytes in memory (tests), staged first so both take the same path. Whatever this
+ * function staged itself is removed again.
+ */
+export async function addCalibrationAttachment(calibrationId: number, upload: StagedFile | { name: string; bytes: Buffer }, uploader: Pick<CurrentUser, "id" | "role">) {
+  const file = "bytes" in upload ? await stageBytes(upload.name, upload.bytes) : upload;
+  try {
+    return await storeAttachment(calibrationId, file, uploader);
+  } finally {
+    if ("bytes" in upload) await discardStaged(file);
+  }
+}
+
+async function storeAttachment(calibrationId: number, file: StagedFile, uploader: Pick<CurrentUser, "id" | "role">) {
   const uploadedById = uploader.id;
   await assertCalibrationEditable(calibrationId, uploader);
-  if (file.bytes.length === 0) throw new CalibrationError(422, "empty_file", "That file is empty.");
-  if (file.bytes.length > MAX_ATTACHMENT_BYTES) throw new CalibrationError(413, "file_too_large", "Attachments can be at most 20 MB.");
-  const kind = await sniffAttachment(file.bytes);
+  if (file.sizeBytes === 0) throw new CalibrationError(422, "empty_file", "That file is empty.");
+  if (file.sizeBytes > MAX_ATTACHMENT_BYTES) throw new CalibrationError(413, "file_too_large", "Attachments can be at most 20 MB.");
+  // At most 20 MB, so reading it for the content check is bounded.
+  const kind = await sniffAttachment(await fs.readFile(file.path));
   if (!kind) {
     throw new CalibrationError(422, "unsupported_attachment", `"${file.name}" is not a photo (JPEG, PNG, WebP, TIFF, GIF) or a PDF, judged by its content.`);
   }
+  const sha256 = await sha256OfFile(file.path);
   const storedName = `${crypto.randomUUID()}.${kind.ext}`;
-  await fs.mkdir(attachmentDir(), { recursive: true });
-  await fs.writeFile(path.join(attachmentDir(), storedName), file.bytes, { flag: "wx" });
+  await moveStaged(file, path.join(attachmentDir(), storedName));
   try {
     // Checked again: a sign-off may have landed while the file was being written.
     await assertCalibrationEditable(calibrationId, uploader);
@@ -52,8 +68,8 @@ export async function addCalibrationAttachment(calibrationId: number, file: { na
       originalName: file.name.slice(0, 255) || "attachment",
       storedName,
       contentType: kind.type,
-      sizeBytes: file.bytes.length,
-      sha256: crypto.createHash("sha256").update(file.bytes).digest("hex"),
+      sizeBytes: file.sizeBytes,
+      sha256,
       uploadedById,
     });
   } catch (err) {

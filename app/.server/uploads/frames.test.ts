@@ -1,10 +1,12 @@
-import { beforeAll, describe, expect, it } from "vitest";
+import { afterEach, beforeAll, describe, expect, it } from "vitest";
 import sharp from "sharp";
+import fs from "node:fs/promises";
 import zlib from "node:zlib";
 import { Frame, Run } from "../db";
 import { smallLab } from "../test-support";
 import { createRun } from "../runs/service";
-import { receiveFrameFile, UploadError } from "./frames";
+import { receiveFrameFile, runFilePath, UploadError } from "./frames";
+import { discardStaged, stageBytes, stagingDir } from "./staging";
 
 async function png(w: number, h: number, shade: number) {
   return sharp({ create: { width: w, height: h, channels: 3, background: { r: shade, g: shade, b: shade } } }).png().toBuffer();
@@ -72,6 +74,12 @@ beforeAll(async () => {
 async function newRun() {
   return createRun(lab.runInput(), lab.tech);
 }
+
+// Every upload, taken or refused, leaves nothing behind in the staging folder.
+afterEach(async () => {
+  const left = await fs.readdir(stagingDir()).catch((err: NodeJS.ErrnoException) => (err.code === "ENOENT" ? [] : Promise.reject(err)));
+  expect(left).toEqual([]);
+});
 
 describe("frame uploads are checked by content", () => {
   it("orders frames by natural sort of their names and ignores an identical file sent twice", async () => {
@@ -175,6 +183,18 @@ describe("frame uploads are checked by content", () => {
     await receiveFrameFile(run, file("clip_00000.jpg", await png(32, 32, 20)), 0);
     const frames = await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] });
     expect(frames.map((f) => f.timeS)).toEqual([0, 0.04]);
+  });
+
+  it("moves an accepted staged upload into the run's folder and checks a refused one from disk", async () => {
+    const run = await newRun();
+    const staged = await stageBytes("frame_1.png", await png(48, 32, 70));
+    const result = await receiveFrameFile(run, staged, null);
+    await expect(fs.stat(staged.path)).rejects.toMatchObject({ code: "ENOENT" });
+    const frame = await Frame.findByPk(result.accepted[0].frameId);
+    expect((await fs.stat(runFilePath(run.id, frame!.storedName))).size).toBe(staged.sizeBytes);
+    const bad = await stageBytes("frame_2.png", Buffer.from("not an image at all"));
+    await expect(receiveFrameFile(run, bad, null)).rejects.toMatchObject({ code: "not_an_image" });
+    await discardStaged(bad);
   });
 
   it("is an UploadError a page can show", () => {

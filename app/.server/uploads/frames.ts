@@ -1,10 +1,12 @@
 import crypto from "node:crypto";
+import fsp from "node:fs/promises";
 import sharp from "sharp";
 import yauzl from "yauzl";
 import { orderBy } from "natural-orderby";
 import { Frame, Run, sequelize } from "../db";
 import { uploadLimits } from "~/lib/upload-limits";
 import { generatedName, removeQuietly, runFilePath, writeRunFile } from "./storage";
+import { discardStaged, moveStaged, readHead, stageBytes, UploadError, type StagedFile } from "./staging";
 import { setRunState } from "../runs/service";
 
 export interface AcceptedFrame {
@@ -25,14 +27,10 @@ export interface FrameUploadResult {
 
 const extFor: Record<string, string> = { jpeg: "jpg", png: "png", tiff: "tif", webp: "webp" };
 
-export class UploadError extends Error {
-  constructor(
-    message: string,
-    readonly status = 400,
-    readonly code = "invalid_upload",
-  ) {
-    super(message);
-  }
+export { UploadError };
+
+function frameTooLarge(bytes: number) {
+  return new UploadError(`The file is ${(bytes / 1e6).toFixed(1)} MB; one frame may be at most ${uploadLimits.maxFrameBytes / 1024 / 1024} MB.`, 413, "too_large");
 }
 
 /**
@@ -42,9 +40,7 @@ export class UploadError extends Error {
  */
 export async function inspectFrame(data: Buffer) {
   if (data.length === 0) throw new UploadError("The file is empty.");
-  if (data.length > uploadLimits.maxFrameBytes) {
-    throw new UploadError(`The file is ${(data.length / 1e6).toFixed(1)} MB; one frame may be at most ${uploadLimits.maxFrameBytes / 1024 / 1024} MB.`, 413, "too_large");
-  }
+  if (data.length > uploadLimits.maxFrameBytes) throw frameTooLarge(data.length);
   let meta: Awaited<ReturnType<ReturnType<typeof sharp>["metadata"]>>;
   try {
     meta = await sharp(data, { limitInputPixels: uploadLimits.maxFramePixels }).metadata();
@@ -89,8 +85,15 @@ async function renumber(runId: number, transaction: import("sequelize").Transact
   return ordered.length;
 }
 
-/** Stores one checked image as a frame of the run. Duplicate content is ignored, not stored twice. */
-async function addFrame(run: Run, originalName: string, data: Buffer, timeS: number | null): Promise<AcceptedFrame> {
+/**
+ * Stores one checked image as a frame of the run: a ZIP entry's bytes, or a staged upload that is
+ * moved into place. Duplicate content is ignored, not stored twice.
+ */
+async function addFrame(run: Run, originalName: string, source: Buffer | StagedFile, timeS: number | null): Promise<AcceptedFrame> {
+  const staged = Buffer.isBuffer(source) ? null : source;
+  if (staged && staged.sizeBytes > uploadLimits.maxFrameBytes) throw frameTooLarge(staged.sizeBytes);
+  // At most maxFrameBytes, so holding one frame is bounded.
+  const data = staged ? await fsp.readFile(staged.path) : (source as Buffer);
   const info = await inspectFrame(data);
   const sha256 = crypto.createHash("sha256").update(data).digest("hex");
   const existing = await Frame.findOne({ where: { runId: run.id, sha256 } });
@@ -98,7 +101,13 @@ async function addFrame(run: Run, originalName: string, data: Buffer, timeS: num
 
   const storedName = generatedName(extFor[info.format]);
   const thumbName = storedName.replace(/\.[a-z]+$/, ".thumb.webp");
-  const file = await writeRunFile(run.id, storedName, data);
+  let file: string;
+  if (staged) {
+    file = runFilePath(run.id, storedName);
+    await moveStaged(staged, file);
+  } else {
+    file = await writeRunFile(run.id, storedName, data);
+  }
   const thumbFile = await writeRunFile(run.id, thumbName, info.thumb);
   try {
     return await sequelize.transaction(async (transaction) => {
@@ -131,13 +140,14 @@ async function addFrame(run: Run, originalName: string, data: Buffer, timeS: num
   }
 }
 
-function isZip(data: Buffer) {
-  return data.length >= 4 && data[0] === 0x50 && data[1] === 0x4b && (data[2] === 0x03 || data[2] === 0x05) ;
+function isZip(head: Buffer) {
+  return head.length >= 4 && head[0] === 0x50 && head[1] === 0x4b && (head[2] === 0x03 || head[2] === 0x05);
 }
 
-function openZip(data: Buffer): Promise<yauzl.ZipFile> {
+/** Opened from the staged file: yauzl reads the central directory and each entry from disk. */
+function openZip(file: string): Promise<yauzl.ZipFile> {
   return new Promise((resolve, reject) =>
-    yauzl.fromBuffer(data, { lazyEntries: true, validateEntrySizes: true, strictFileNames: false }, (err, zip) => (err || !zip ? reject(err) : resolve(zip))),
+    yauzl.open(file, { lazyEntries: true, autoClose: false, validateEntrySizes: true, strictFileNames: false }, (err, zip) => (err || !zip ? reject(err) : resolve(zip))),
   );
 }
 
@@ -167,16 +177,23 @@ function safeEntryPath(name: string) {
   return !(name.startsWith("/") || name.startsWith("\\") || /^[a-zA-Z]:/.test(name) || name.split(/[\\/]/).includes(".."));
 }
 
-async function addZip(run: Run, data: Buffer, result: FrameUploadResult, zipName: string) {
-  if (data.length > uploadLimits.maxZipBytes) throw new UploadError(`The ZIP is over ${uploadLimits.maxZipBytes / 1024 / 1024} MB.`, 413, "too_large");
+async function addZip(run: Run, staged: StagedFile, result: FrameUploadResult, zipName: string) {
+  if (staged.sizeBytes > uploadLimits.maxZipBytes) throw new UploadError(`The ZIP is over ${uploadLimits.maxZipBytes / 1024 / 1024} MB.`, 413, "too_large");
   let zip: yauzl.ZipFile;
   try {
-    zip = await openZip(data);
+    zip = await openZip(staged.path);
   } catch {
     throw new UploadError("This ZIP is damaged and cannot be opened.", 422, "damaged_zip");
   }
-  if (zip.entryCount > uploadLimits.maxZipEntries) {
+  try {
+    await addZipEntries(run, staged, zip, result, zipName);
+  } finally {
     zip.close();
+  }
+}
+
+async function addZipEntries(run: Run, staged: StagedFile, zip: yauzl.ZipFile, result: FrameUploadResult, zipName: string) {
+  if (zip.entryCount > uploadLimits.maxZipEntries) {
     throw new UploadError(`The ZIP has ${zip.entryCount} entries; at most ${uploadLimits.maxZipEntries} are accepted.`, 413, "zip_too_many_entries");
   }
   const entries: yauzl.Entry[] = [];
@@ -204,7 +221,15 @@ async function addZip(run: Run, data: Buffer, result: FrameUploadResult, zipName
     throw new UploadError(`The ZIP has entries that point outside it (${unsafe[0].fileName}); nothing was taken from it.`, 422, "zip_unsafe_path");
   }
   const budget = { left: uploadLimits.maxZipUnpackedBytes };
-  const reopened = await openZip(data);
+  const reopened = await openZip(staged.path);
+  try {
+    await addEntries(run, reopened, entries, budget, result, zipName);
+  } finally {
+    reopened.close();
+  }
+}
+
+async function addEntries(run: Run, reopened: yauzl.ZipFile, entries: yauzl.Entry[], budget: { left: number }, result: FrameUploadResult, zipName: string) {
   const files = entries.filter((e) => !e.fileName.endsWith("/") && !/(^|\/)(__MACOSX|\.)/.test(e.fileName));
   const byName = new Map(files.map((e) => [e.fileName, e]));
   const wanted = orderBy([...byName.keys()]);
@@ -232,19 +257,27 @@ async function addZip(run: Run, data: Buffer, result: FrameUploadResult, zipName
       }
     }
   }
-  reopened.close();
 }
 
-/** Takes one uploaded file (an image or a ZIP of images) for a run. */
-export async function receiveFrameFile(run: Run, file: File, timeS: number | null): Promise<FrameUploadResult> {
-  const data = Buffer.from(await file.arrayBuffer());
-  const name = cleanName(file.name);
-  const result: FrameUploadResult = { accepted: [], rejected: [], frameCount: 0 };
-  if (isZip(data)) await addZip(run, data, result, name);
-  else result.accepted.push(await addFrame(run, name, data, timeS));
-  await run.reload();
-  result.frameCount = run.frameCount;
-  return result;
+/**
+ * Takes one uploaded file (an image or a ZIP of images) for a run: a staged upload, checked from
+ * disk, or a File in memory (seed data, tests), staged first so both take the same path. A staged
+ * image that is accepted moves into the run's folder; whatever this function staged itself is
+ * removed again.
+ */
+export async function receiveFrameFile(run: Run, upload: StagedFile | File, timeS: number | null): Promise<FrameUploadResult> {
+  const staged = upload instanceof File ? await stageBytes(upload.name, new Uint8Array(await upload.arrayBuffer())) : upload;
+  try {
+    const name = cleanName(staged.name);
+    const result: FrameUploadResult = { accepted: [], rejected: [], frameCount: 0 };
+    if (isZip(await readHead(staged, 4))) await addZip(run, staged, result, name);
+    else result.accepted.push(await addFrame(run, name, staged, timeS));
+    await run.reload();
+    result.frameCount = run.frameCount;
+    return result;
+  } finally {
+    if (upload instanceof File) await discardStaged(staged);
+  }
 }
 
 export { runFilePath };

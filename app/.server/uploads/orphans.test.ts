@@ -36,8 +36,15 @@ describe("orphan upload files at start", () => {
     await writeAged(orphan, old);
     await writeAged(inFlight, 1000);
     await writeAged(orphanAttachment, old);
+    const leftStaged = path.join(env.uploadsDir, "tmp", "55555555-5555-4555-8555-555555555555.part");
+    const staging = path.join(env.uploadsDir, "tmp", "66666666-6666-4666-8666-666666666666.part");
+    await writeAged(leftStaged, old);
+    await writeAged(staging, 1000);
 
-    expect(await removeOrphanUploads()).toBe(2);
+    expect(await removeOrphanUploads()).toBe(3);
+    expect(await exists(leftStaged)).toBe(false);
+    expect(await exists(staging)).toBe(true);
+    await fs.rm(staging);
     expect(await exists(kept)).toBe(true);
     expect(await exists(keptThumb)).toBe(true);
     expect(await exists(inFlight)).toBe(true);

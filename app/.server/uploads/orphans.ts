@@ -17,8 +17,9 @@ async function entries(dir: string) {
 
 /**
  * Removes frame and attachment files that no database row names (left by a crash between writing
- * the file and committing its row), if older than ORPHAN_MIN_AGE_MS. Only the folders Tankside
- * writes are looked at: uploads/runs/<run id>/ and uploads/calibrations/. Returns how many went.
+ * the file and committing its row), and staged uploads a crash left in uploads/tmp/, if older than
+ * ORPHAN_MIN_AGE_MS. Only the folders Tankside writes are looked at: uploads/runs/<run id>/,
+ * uploads/calibrations/ and uploads/tmp/. Returns how many went.
  */
 export async function removeOrphanUploads(now: Date = new Date(), root: string = env.uploadsDir): Promise<number> {
   const cutoff = now.getTime() - ORPHAN_MIN_AGE_MS;
@@ -49,6 +50,12 @@ export async function removeOrphanUploads(now: Date = new Date(), root: string =
     for (const file of files) {
       if (file.isFile() && !known.has(file.name)) await removeIfOld(path.join(calDir, file.name));
     }
+  }
+
+  // Staged uploads are never named by a row; one still being written keeps a fresh mtime.
+  const tmpDir = path.join(root, "tmp");
+  for (const file of await entries(tmpDir)) {
+    if (file.isFile() && file.name.endsWith(".part")) await removeIfOld(path.join(tmpDir, file.name));
   }
   return removed;
 }

@@ -3,6 +3,7 @@ import { requireRole, requireUser } from "~/.server/auth/permissions";
 import { apiError } from "~/.server/http";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { receiveFrameFile, UploadError } from "~/.server/uploads/frames";
+import { withMultipartUpload } from "~/.server/uploads/staging";
 import { Frame } from "~/.server/db";
 import { uploadLimits } from "~/lib/upload-limits";
 import { parseFrameTime } from "~/lib/video-frames";
@@ -26,34 +27,35 @@ export async function action({ request, params }: Route.ActionArgs) {
   const run = await loadRun(request, params.runId);
   requireChangeable(request, run, user);
 
-  const length = Number(request.headers.get("Content-Length") ?? 0);
-  if (length > uploadLimits.maxZipBytes + 1024 * 1024) {
-    return apiError(413, "too_large", `The upload is over ${uploadLimits.maxZipBytes / 1024 / 1024} MB.`);
-  }
   if (!(request.headers.get("Content-Type") ?? "").includes("multipart/form-data")) {
     return apiError(415, "unsupported_media_type", "Send the frame as multipart/form-data with the field `file`.");
   }
-  let form: FormData;
+  const limits = {
+    maxFileBytes: uploadLimits.maxZipBytes,
+    tooLarge: new UploadError(`The upload is over ${uploadLimits.maxZipBytes / 1024 / 1024} MB.`, 413, "too_large"),
+    unreadable: new UploadError("The upload could not be read as multipart form data.", 400, "invalid_multipart"),
+  };
   try {
-    form = await request.formData();
-  } catch {
-    return apiError(400, "invalid_multipart", "The upload could not be read as multipart form data.");
-  }
-  const file = form.get("file");
-  if (!(file instanceof File)) return apiError(400, "missing_file", "Put the frame in the multipart field `file`.");
-  // A frame cut from a video carries its own time; stills without one are spaced by the frame rate.
-  const time = parseFrameTime(form.get("timeS"));
-  if (!time.ok) return apiError(400, "invalid_time", time.message);
-  const timeS = time.timeS;
-  try {
-    const result = await receiveFrameFile(run, file, timeS);
-    if (result.accepted.length === 0 && result.rejected.length > 0) {
-      return Response.json({ error: { code: "no_frames_accepted", message: result.rejected[0].message }, ...result }, { status: 422 });
-    }
-    const allDuplicates = result.accepted.length > 0 && result.accepted.every((a) => a.duplicate);
-    return Response.json(result, { status: allDuplicates ? 200 : 201 });
+    // Streamed to a temporary file and checked from there; it is gone again when this returns.
+    return await withMultipartUpload(request, limits, async ({ file, fields }) => {
+      if (!file) return apiError(400, "missing_file", "Put the frame in the multipart field `file`.");
+      // A frame cut from a video carries its own time; stills without one are spaced by the frame rate.
+      const time = parseFrameTime(fields.timeS ?? null);
+      if (!time.ok) return apiError(400, "invalid_time", time.message);
+      try {
+        const result = await receiveFrameFile(run, file, time.timeS);
+        if (result.accepted.length === 0 && result.rejected.length > 0) {
+          return Response.json({ error: { code: "no_frames_accepted", message: result.rejected[0].message }, ...result }, { status: 422 });
+        }
+        const allDuplicates = result.accepted.length > 0 && result.accepted.every((a) => a.duplicate);
+        return Response.json(result, { status: allDuplicates ? 200 : 201 });
+      } catch (err) {
+        if (err instanceof UploadError) return apiError(err.status, err.code, `${file.name}: ${err.message}`);
+        throw err;
+      }
+    });
   } catch (err) {
-    if (err instanceof UploadError) return apiError(err.status, err.code, `${file.name}: ${err.message}`);
+    if (err instanceof UploadError) return apiError(err.status, err.code, err.message);
     throw err;
   }
 }

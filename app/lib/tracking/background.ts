@@ -12,7 +12,7 @@
  * the sampled frames against the plain median, a disc around each find is left out of that
  * sample, and the median is taken again over what remains. Rim, glare, illumination and tank
  * marks that do not move stay in it; a float that sits on one pixel for more than half the
- * sampled frames is still taken for background (it is then not found at all, which is said).
+ * sampled frames is still taken for background there (and missed in those frames).
  */
 import type { Detection } from "./types";
 

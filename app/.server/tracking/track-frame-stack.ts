@@ -8,7 +8,13 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import Piscina from "piscina";
-import { backgroundSampleIndices } from "../../lib/tracking/background";
+import {
+  backgroundSampleIndices,
+  fillFromSurroundings,
+  minimumFreeSamples,
+  tracerExclusions,
+  type ExclusionSet,
+} from "../../lib/tracking/background";
 import { defaultLinking, linkDetections, type LinkingOptions } from "../../lib/tracking/link";
 import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../../lib/tracking/plan";
 import { trackingQuality } from "../../lib/tracking/quality";
@@ -128,6 +134,14 @@ function cancelled(): TrackingError {
   return new TrackingError("cancelled", "The tracking job was cancelled.");
 }
 
+function searchFailed(index: number, error: unknown): TrackingError {
+  const reason = error instanceof Error ? error.message : String(error);
+  return new TrackingError("unreadable-frame", `Frame ${index + 1} could not be searched: ${reason}`, {
+    frameIndex: index,
+    cause: error,
+  });
+}
+
 function validate(input: TrackFrameStackInput): void {
   const { files, times } = input;
   if (files.length === 0) throw new TrackingError("no-frames", "The run has no frames to track: upload the frame stack first.");
@@ -157,13 +171,16 @@ function makePlan(setup: TrackingSetup, width: number, height: number): Detectio
 }
 
 /**
- * Median of frames sampled over the stack. Samples and result live in shared memory: the
- * workers split the pixels between them, and every frame's task then reads the same background
- * without a copy.
+ * The still background of a float stack (lib/tracking/background.ts): the median of frames
+ * sampled over the stack, the float found in each sample against it, then the median again
+ * with discs around the finds left out. Samples and results live in shared memory: the workers
+ * split the pixels between them, and every frame's task then reads the same background without
+ * a copy.
  */
 async function floatBackground(
   files: string[],
   plan: DetectionPlan,
+  key: string,
   workers: TrackingPool,
   signal: AbortSignal | undefined,
 ): Promise<Uint8Array> {
@@ -183,21 +200,47 @@ async function floatBackground(
       }
     }),
   );
-  const out = new Uint8Array(new SharedArrayBuffer(length));
-  const strip = Math.ceil(length / threads);
-  await Promise.all(
-    Array.from({ length: threads }, (_, w) =>
-      runTask(workers, {
-        kind: "background",
-        samples,
-        count: indices.length,
-        out,
-        from: Math.min(length, w * strip),
-        to: Math.min(length, (w + 1) * strip),
-      }),
-    ),
+  const median = async (exclusions?: ExclusionSet, used?: Uint8Array): Promise<Uint8Array> => {
+    const out = new Uint8Array(new SharedArrayBuffer(length));
+    const strip = Math.ceil(length / threads);
+    await Promise.all(
+      Array.from({ length: threads }, (_, w) =>
+        runTask(workers, {
+          kind: "background",
+          samples,
+          count: indices.length,
+          out,
+          from: Math.min(length, w * strip),
+          to: Math.min(length, (w + 1) * strip),
+          exclusions,
+          used,
+        }),
+      ),
+    );
+    return out;
+  };
+  const plain = await median();
+  if (signal?.aborted) throw cancelled();
+  const found = await Promise.all(
+    indices.map(async (index, j) => {
+      // A copy of its own (slice of shared memory is not shared), handed over to the worker.
+      const image = samples.slice(j * length, (j + 1) * length);
+      try {
+        return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background: plain }, [
+          image.buffer as ArrayBuffer,
+        ])) as Detection[];
+      } catch (error) {
+        throw searchFailed(index, error);
+      }
+    }),
   );
-  return out;
+  const discs = tracerExclusions(found, plan.crop, plan.shrink);
+  if (discs.length === 0) return plain;
+  if (signal?.aborted) throw cancelled();
+  const used = new Uint8Array(new SharedArrayBuffer(length));
+  const background = await median({ width: plan.crop.width, discs }, used);
+  fillFromSurroundings(background, used, plan.crop.width, minimumFreeSamples(indices.length));
+  return background;
 }
 
 function defaultStep(plan: DetectionPlan): number {
@@ -223,7 +266,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   warmUp.catch(() => {});
   let background: Uint8Array | null;
   try {
-    background = plan.tracer === "float" ? await floatBackground(files, plan, workers, signal) : null;
+    background = plan.tracer === "float" ? await floatBackground(files, plan, key, workers, signal) : null;
   } finally {
     await warmUp;
   }
@@ -252,11 +295,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
         image.buffer as ArrayBuffer,
       ])) as Detection[];
     } catch (error) {
-      const reason = error instanceof Error ? error.message : String(error);
-      throw new TrackingError("unreadable-frame", `Frame ${index + 1} could not be searched: ${reason}`, {
-        frameIndex: index,
-        cause: error,
-      });
+      throw searchFailed(index, error);
     }
     const frame: FrameDetections = { frameIndex: index, t: times[index], detections };
     byFrame.set(index, frame);

@@ -3,7 +3,7 @@
  * calls the tracking library, hands the result back. No files, no database.
  */
 import { createRequire } from "node:module";
-import { medianInto } from "../../lib/tracking/background";
+import { medianInto, type ExclusionSet } from "../../lib/tracking/background";
 import { createDetector, type Detector } from "../../lib/tracking/detect";
 import type { OpenCv } from "../../lib/tracking/opencv-types";
 import type { DetectionPlan } from "../../lib/tracking/plan";
@@ -25,6 +25,10 @@ export type TrackTask =
       out: Uint8Array;
       from: number;
       to: number;
+      /** Discs of sampled frames left out: where the float was found in them. */
+      exclusions?: ExclusionSet;
+      /** Shared, receives how many samples each pixel's median took. */
+      used?: Uint8Array;
     }
   | {
       /** Each worker counts itself in and waits for the others, so that every worker is started. */
@@ -76,7 +80,7 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   if (task.kind === "background") {
     const length = task.out.length;
     const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));
-    medianInto(frames, task.out, task.from, task.to);
+    medianInto(frames, task.out, task.from, task.to, task.exclusions, task.used);
     return null;
   }
   const { plan } = task;

@@ -51,6 +51,9 @@ export interface CoriolisFit {
   filterGainCorrection: number;
   /** Relative change of f made by the errors-in-velocity correction. */
   velocityNoiseCorrection: number;
+  /** Share of the measured velocities' mean square that is tracking noise (the errors-in-velocity
+   * inflation); where it is large the first-order uncertainty is no longer to be trusted. */
+  velocityNoiseShare: number;
   r2: number;
   nSamples: number;
   rows: CoriolisFitRow[];
@@ -200,6 +203,7 @@ export function fitCoriolis(samples: readonly SmoothedSample[], options: Corioli
     positionNoise: sigma2 > 0 ? Math.sqrt(sigma2) : Number.NaN,
     filterGainCorrection: fAfterEiv !== 0 ? fOut / fAfterEiv - 1 : 0,
     velocityNoiseCorrection: eivScale - 1,
+    velocityNoiseShare: inflation,
     r2: fit.r2,
     nSamples: n,
     rows,

@@ -6,6 +6,7 @@ import { trackFrameStack, closeTrackingPool } from "../tracking/track-frame-stac
 import { isTrackingCancelled } from "../tracking/errors";
 import { setRunState } from "../runs/service";
 import { checkRun } from "../runs/theory";
+import { trackingFingerprint } from "../runs/provenance";
 import type { FrameDetections, TrackingSetup } from "~/lib/tracking/types";
 
 /**
@@ -135,7 +136,9 @@ async function runJob(job: TrackingJob) {
     const setup = await trackingSetupOf(run);
     const prior = await priorDetections(job);
     for (const f of prior) if (!Number.isFinite(f.t)) f.t = stack.times[f.frameIndex];
-    await job.update({ state: "running", startedAt: job.startedAt ?? new Date(), attempts: job.attempts + 1, framesTotal: stack.files.length, error: null });
+    // What is tracked is recorded before tracking: a change meanwhile leaves these tracks out of date.
+    const inputFingerprint = await trackingFingerprint(run);
+    await job.update({ state: "running", startedAt: job.startedAt ?? new Date(), attempts: job.attempts + 1, framesTotal: stack.files.length, error: null, inputFingerprint });
 
     const done = new Set<number>(prior.map((p) => p.frameIndex));
     let watermark = prior.length;

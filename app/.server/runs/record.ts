@@ -4,6 +4,7 @@ import { Calibration, Equipment, Frame, Run, RunHistory, TheoryCheck, Track, Tra
 import { codeVersion } from "../version";
 import { serializeEquipment } from "../equipment";
 import { RunError, setRunState } from "./service";
+import { currentCheck } from "./provenance";
 import type { CurrentUser } from "../auth/permissions";
 import { runLabel, runStateLabels, type RunState } from "~/lib/runs";
 import { runFieldLabels } from "~/lib/validation/run";
@@ -25,6 +26,17 @@ export async function signOffRun(runId: number, user: CurrentUser) {
         "not_checked",
       );
     }
+    const { state } = await currentCheck(run.id);
+    if (state !== "current") {
+      throw new RunError(
+        state === "missing"
+          ? `${runLabel(run.id)} has no theory check to sign off.`
+          : `${runLabel(run.id)}'s theory check is out of date: its inputs changed since it was made. Wait for the re-check, then sign off.`,
+        409,
+        undefined,
+        "check_out_of_date",
+      );
+    }
     const at = new Date();
     await setRunState(run, "signed_off", user.id, transaction);
     await run.update({ signedOffById: user.id, signedOffAt: at }, { transaction });
@@ -43,7 +55,7 @@ export interface RunHistoryEntry {
 }
 
 const equipmentFields = new Set(["tableId", "tankId", "cameraId"]);
-const extraLabels: Record<string, string> = { created: "logged" };
+const extraLabels: Record<string, string> = { created: "logged", theoryCheck: "theory check", calibrationsInForce: "calibrations in force" };
 
 /** Every change to a run, oldest first, with ids turned into the names people know. */
 export async function getRunHistory(runId: number): Promise<RunHistoryEntry[]> {
@@ -109,13 +121,16 @@ export interface SignOffView {
 export async function getSignOffView(run: Run, user: CurrentUser): Promise<SignOffView> {
   const by = run.signedOffById ? await User.findByPk(run.signedOffById, { attributes: ["id", "name"] }) : null;
   const isManager = user.role === "lab_manager";
+  const checkState = run.state === "checked" ? (await currentCheck(run.id)).state : null;
+  const stale = checkState !== null && checkState !== "current";
   return {
     state: run.state,
     signedOffAt: run.signedOffAt?.toISOString() ?? null,
     signedOffBy: by ? { id: by.id, name: by.name } : null,
-    canSignOff: isManager && run.state === "checked",
-    blockedReason:
-      isManager && run.state !== "checked" && run.state !== "signed_off"
+    canSignOff: isManager && run.state === "checked" && !stale,
+    blockedReason: stale
+      ? "The theory check is out of date — re-checking…; sign-off waits for the new check."
+      : isManager && run.state !== "checked" && run.state !== "signed_off"
         ? `Sign-off needs a theory check; this run is ${runStateLabels[run.state as RunState].toLowerCase()}.`
         : null,
     canCorrect: run.state === "signed_off" && (user.role === "lab_manager" || user.role === "technician"),
@@ -186,7 +201,7 @@ export async function getRunDetail(runId: number, opts: { full?: boolean } = {})
     ViewSetup.findOne({ where: { runId } }),
     TrackingJob.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] }),
     Track.findAll({ where: { runId }, attributes: ["id", "number", "pointCount", "detectedShare", "jitterPx", "jobId"], order: [["number", "ASC"]] }),
-    TheoryCheck.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] }),
+    currentCheck(runId),
     calibrationIds.length ? Calibration.findAll({ where: { id: { [Op.in]: calibrationIds } } }) : [],
     getRunHistory(runId),
     getSupersedesLinks(run),
@@ -197,7 +212,7 @@ export async function getRunDetail(runId: number, opts: { full?: boolean } = {})
     id: run.id,
     label: runLabel(run.id),
     state: run.state,
-    verdict: run.verdict,
+    verdict: check.state === "current" ? run.verdict : null,
     conditions: {
       setRateRpm: run.setRateRpm,
       direction: run.direction,
@@ -221,7 +236,9 @@ export async function getRunDetail(runId: number, opts: { full?: boolean } = {})
       count: tracks.length,
       items: tracks.map((t) => ({ id: t.id, number: t.number, jobId: t.jobId, pointCount: t.pointCount, detectedShare: t.detectedShare, jitterPx: t.jitterPx })),
     },
-    latestTheoryCheck: serializeCheck(check, Boolean(opts.full)),
+    // Only a check made from the run's present inputs is shown; a stale one is named, not shown.
+    latestTheoryCheck: serializeCheck(check.check, Boolean(opts.full)),
+    checkState: check.state,
     calibrationsInForce: {
       ids: calibrationIds,
       recorded: calibrationSnapshot(run),

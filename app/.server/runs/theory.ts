@@ -6,6 +6,8 @@ import { codeVersion } from "../version";
 import { runTheoryCheck, type TheoryCheckInput, type TheoryCheckResult } from "~/lib/analysis/check";
 import { rpmToRadPerS } from "~/lib/analysis/units";
 import { setRunState } from "./service";
+import { presentFingerprint } from "./provenance";
+import { RunHistory } from "../db";
 
 export type RateInForce = { value: number; stdError: number; calibrationId: number } | null;
 
@@ -80,7 +82,9 @@ export async function checkRun(runId: number, userId: number | null) {
   if (!prepared) return null;
   const result = runTheoryCheck(prepared.input);
   const { points, ...rest } = prepared.input;
-  const stored = { result, input: { ...rest, trackId: prepared.track.id, pointCount: points.length } };
+  const { fingerprint, inputs } = await presentFingerprint(run);
+  const stored = { result, input: { ...rest, trackId: prepared.track.id, pointCount: points.length }, provenance: { fingerprint, inputs } };
+  const previous = await TheoryCheck.findOne({ where: { runId }, order: [["id", "DESC"]], attributes: ["id", "verdict"] });
   return sequelize.transaction(async (transaction) => {
     const check = await TheoryCheck.create(
       {
@@ -92,10 +96,16 @@ export async function checkRun(runId: number, userId: number | null) {
         result: JSON.stringify(stored),
         codeVersion,
         createdById: userId,
+        inputFingerprint: fingerprint,
       },
       { transaction },
     );
-    await run.update({ verdict: result.verdict }, { transaction });
+    // A verdict shown in the runs table only when it is current; tracks from other inputs vouch for nothing.
+    await run.update({ verdict: fingerprint ? result.verdict : null }, { transaction });
+    await RunHistory.create(
+      { runId, userId, field: "theoryCheck", oldValue: previous ? `#${previous.id} ${previous.verdict}` : null, newValue: `#${check.id} ${result.verdict}${fingerprint ? "" : " (tracks out of date)"}` },
+      { transaction },
+    );
     if (run.state === "tracked") await setRunState(run, "checked", userId, transaction);
     return check;
   });

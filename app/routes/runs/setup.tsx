@@ -4,6 +4,7 @@ import type { Route } from "./+types/setup";
 import { requireRole } from "~/.server/auth/permissions";
 import { Frame, Run, ViewSetup } from "~/.server/db";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
+import { saveViewSetup } from "~/.server/runs/view-setup";
 import { viewSetupSchema } from "~/lib/validation/view-setup";
 import { runLabel } from "~/lib/runs";
 import { Button, ButtonLink } from "~/components/ui/button";
@@ -85,9 +86,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     mirrored: v.mirrored,
     createdById: user.id,
   };
-  const existing = await ViewSetup.findOne({ where: { runId: run.id } });
-  if (existing) await existing.update(values);
-  else await ViewSetup.create(values);
+  await saveViewSetup(run, values, user.id);
   return redirect(`/runs/${run.id}#tracking`);
 }
 

@@ -205,6 +205,12 @@ async function runJob(job: TrackingJob) {
       if (run.state !== "signed_off") await setRunState(run, "tracked", job.requestedById, transaction);
       await run.update({ verdict: null }, { transaction });
     });
+    // Frames or the view setup changed while tracking: these tracks are already out of date, so track again.
+    if ((await trackingFingerprint(await run.reload())) !== inputFingerprint) {
+      const { scheduleRecheck } = await import("../runs/rechecks");
+      scheduleRecheck(run.id, job.requestedById, "track");
+      return;
+    }
     await checkRun(run.id, job.requestedById).catch((err) => console.error(`[tracking] theory check of run ${run.id} failed:`, err));
   } catch (err) {
     await job.reload();

@@ -47,17 +47,18 @@ describe("a theory check is current only while its inputs are", () => {
   it("set rate 8 → 9 rpm: out of date at once, no stale verdict, sign-off 409; re-checked automatically and current again", async () => {
     const run = await checkedRun(9);
     const before = await currentCheck(run.id);
-    expect(before.state).toBe("current");
+    expect(before.status).toBe("current");
     // The float circles at the 9 rpm inertial frequency, so against 8 rpm set the check disagrees.
     expect(before.check!.verdict).toBe("disagrees");
 
     const release = holdRechecks();
     await updateRun(run.id, form(run, { setRateRpm: 9 }), lab.tech);
     const stale = await currentCheck(run.id);
-    expect(stale.state).toBe("out_of_date");
+    expect(stale.status).toBe("out_of_date");
     expect(stale.latest!.id).toBe(before.check!.id);
     const detail = (await getRunDetail(run.id))!;
-    expect(detail.checkState).toBe("out_of_date");
+    expect(detail.checkStatus).toBe("out_of_date");
+    expect(detail.checkOutOfDate).toMatchObject({ because: ["set rate"] });
     expect(detail.latestTheoryCheck).toBeNull();
     expect(detail.verdict).toBeNull();
     expect((await Run.findByPk(run.id))!.verdict).toBeNull();
@@ -66,12 +67,15 @@ describe("a theory check is current only while its inputs are", () => {
     release();
     await whenRechecksIdle();
     const after = await currentCheck(run.id);
-    expect(after.state).toBe("current");
+    expect(after.status).toBe("current");
     expect(after.check!.id).toBeGreaterThan(before.check!.id);
     expect(after.check!.verdict).toBe("agrees");
     expect((await Run.findByPk(run.id))!.verdict).toBe("agrees");
     const rows = await RunHistory.findAll({ where: { runId: run.id, field: "theoryCheck" }, order: [["id", "ASC"]] });
-    expect(rows.map((r) => r.newValue)).toEqual([`#${before.check!.id} disagrees`, `#${after.check!.id} agrees`]);
+    expect(rows.map((r) => [r.oldValue, r.newValue])).toEqual([
+      [null, `#${before.check!.id} disagrees`],
+      [`#${before.check!.id} disagrees`, `#${after.check!.id} agrees (re-checked after a change of set rate)`],
+    ]);
     await signOffRun(run.id, lab.manager);
     expect((await Run.findByPk(run.id))!.state).toBe("signed_off");
     // Signed off: changes stay refused.
@@ -80,13 +84,13 @@ describe("a theory check is current only while its inputs are", () => {
 
   it("a moved rotation centre makes the check out of date and sign-off waits for the re-track", async () => {
     const run = await checkedRun(8);
-    expect((await currentCheck(run.id)).state).toBe("current");
+    expect((await currentCheck(run.id)).status).toBe("current");
     const release = holdRechecks();
     await saveViewSetup(run, setupValues(run.id, run.cameraId, { centreXPx: centre.x + 4 }), lab.tech.id);
-    expect((await currentCheck(run.id)).state).toBe("out_of_date");
+    expect((await currentCheck(run.id)).status).toBe("out_of_date");
     // A fit of the old tracks against the new setup does not make it current: the tracks were made with the old marks.
     await checkRun(run.id, lab.tech.id);
-    expect((await currentCheck(run.id)).state).toBe("out_of_date");
+    expect((await currentCheck(run.id)).status).toBe("out_of_date");
     expect((await getRunDetail(run.id))!.latestTheoryCheck).toBeNull();
     await expect(signOffRun(run.id, lab.manager)).rejects.toMatchObject({ status: 409, code: "check_out_of_date" });
     release();

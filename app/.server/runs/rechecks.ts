@@ -1,23 +1,26 @@
-import { Run } from "../db";
+import { Op } from "sequelize";
+import { Run, TheoryCheck } from "../db";
 import { enqueueTracking } from "../jobs/tracking-queue";
 import { checkRun } from "./theory";
 
 /**
  * Re-runs what a change to a run's inputs needs, in the background: the fit alone for conditions,
  * calibrations or lab settings; tracking (which ends in a check) for frames or the view setup.
- * The old check stops counting at once, because currentCheck compares fingerprints.
+ * The old check stops counting at once, because currentCheck compares fingerprints; the verdict
+ * column of the runs table is cleared here at once too, since lists read it without re-hashing.
  */
 export type Redo = "fit" | "track";
 
 let chain: Promise<void> = Promise.resolve();
 let held: Promise<void> | null = null;
 let release: (() => void) | null = null;
+const pending = new Map<number, number>();
 
 async function redo(runId: number, userId: number | null, what: Redo) {
   const run = await Run.findByPk(runId);
   if (!run || run.state === "signed_off") return;
   if (what === "track") {
-    // Nothing to track yet (no frames or setup) or a job already running: that job's check follows.
+    // No frames or setup yet: nothing to track. A job already running re-tracks when it ends (see the queue).
     if (userId === null) return;
     await enqueueTracking(run, userId).catch(() => undefined);
     return;
@@ -26,15 +29,58 @@ async function redo(runId: number, userId: number | null, what: Redo) {
 }
 
 export function scheduleRecheck(runId: number, userId: number | null, what: Redo) {
+  pending.set(runId, (pending.get(runId) ?? 0) + 1);
   chain = chain
     .then(() => held ?? undefined)
     .then(() => redo(runId, userId, what))
-    .catch((err) => console.error(`[runs] re-check of run ${runId} failed:`, err));
+    .catch((err) => console.error(`[runs] re-check of run ${runId} failed:`, err))
+    .finally(() => {
+      const left = (pending.get(runId) ?? 1) - 1;
+      if (left > 0) pending.set(runId, left);
+      else pending.delete(runId);
+    });
+}
+
+/** A re-check of this run is scheduled and has not finished yet. */
+export function recheckPending(runId: number) {
+  return pending.has(runId);
+}
+
+/**
+ * An input of an unsigned run changed outside the run form (view setup, frames, equipment): the
+ * verdict in the runs table goes at once and the needed part is redone. Runs without a check have
+ * nothing to re-check: their technician tracks them when ready.
+ */
+export async function inputsChanged(runId: number, userId: number | null, what: Redo) {
+  const run = await Run.findByPk(runId, { attributes: ["id", "state"] });
+  if (!run || run.state === "signed_off") return;
+  if (!(await TheoryCheck.count({ where: { runId } }))) return;
+  await Run.update({ verdict: null }, { where: { id: runId } });
+  scheduleRecheck(runId, userId, what);
+}
+
+/**
+ * A lab-wide input of the fit changed (the verdict tolerance, a table's flatness): every unsigned
+ * run with a check loses its verdict at once and is fitted again. Signed-off runs keep theirs.
+ */
+export async function refitUnsignedRuns(userId: number | null, where: { tableId?: number } = {}) {
+  const checked = await TheoryCheck.findAll({ attributes: ["runId"], group: ["runId"] });
+  const ids = checked.map((c) => c.runId);
+  if (!ids.length) return 0;
+  const runs = await Run.findAll({ where: { id: { [Op.in]: ids }, state: { [Op.ne]: "signed_off" }, ...where }, attributes: ["id"] });
+  if (!runs.length) return 0;
+  await Run.update({ verdict: null }, { where: { id: { [Op.in]: runs.map((r) => r.id) } } });
+  for (const r of runs) scheduleRecheck(r.id, userId, "fit");
+  return runs.length;
 }
 
 /** Resolves when every scheduled re-check has run (tests and the seeding wait on it). */
-export function whenRechecksIdle() {
-  return chain;
+export async function whenRechecksIdle() {
+  let seen: Promise<void>;
+  do {
+    seen = chain;
+    await seen;
+  } while (seen !== chain);
 }
 
 /** Holds scheduled re-checks until released, so a test can look at a run while its check is out of date. */

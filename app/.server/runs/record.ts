@@ -4,12 +4,16 @@ import { Calibration, Equipment, Frame, Run, RunHistory, TheoryCheck, Track, Tra
 import { codeVersion } from "../version";
 import { serializeEquipment } from "../equipment";
 import { RunError, setRunState } from "./service";
-import { currentCheck } from "./provenance";
+import { currentCheck, type CurrentCheck } from "./provenance";
+import { recheckPending } from "./rechecks";
 import type { CurrentUser } from "../auth/permissions";
 import { runLabel, runStateLabels, type RunState } from "~/lib/runs";
 import { runFieldLabels } from "~/lib/validation/run";
 
-/** Sign-off needs a theory check to vouch for: a run is signed off from "checked" only. */
+/**
+ * Sign-off vouches for a verdict, so it needs a current theory check: one made from the run's
+ * present inputs (see currentCheck). The page's form and POST /api/v1/runs/:id/sign-off both come here.
+ */
 export async function signOffRun(runId: number, user: CurrentUser) {
   if (user.role !== "lab_manager") throw new RunError("Only a lab manager can sign a run off.", 403, undefined, "forbidden");
   return sequelize.transaction(async (transaction) => {
@@ -17,6 +21,15 @@ export async function signOffRun(runId: number, user: CurrentUser) {
     if (!run) throw new RunError("No such run.", 404, undefined, "not_found");
     if (run.state === "signed_off") {
       throw new RunError(`${runLabel(run.id)} is already signed off.`, 409, undefined, "run_signed_off");
+    }
+    const current = await currentCheck(run);
+    if (current.status === "out_of_date") {
+      throw new RunError(
+        `${runLabel(run.id)}'s theory check is out of date (changed since: ${current.changed.join(", ")}). Wait for the new check, then sign off.`,
+        409,
+        undefined,
+        "check_out_of_date",
+      );
     }
     if (run.state !== "checked") {
       throw new RunError(
@@ -26,16 +39,8 @@ export async function signOffRun(runId: number, user: CurrentUser) {
         "not_checked",
       );
     }
-    const { state } = await currentCheck(run.id);
-    if (state !== "current") {
-      throw new RunError(
-        state === "missing"
-          ? `${runLabel(run.id)} has no theory check to sign off.`
-          : `${runLabel(run.id)}'s theory check is out of date: its inputs changed since it was made. Wait for the re-check, then sign off.`,
-        409,
-        undefined,
-        "check_out_of_date",
-      );
+    if (current.status === "missing") {
+      throw new RunError(`${runLabel(run.id)} has no theory check to sign off.`, 409, undefined, "check_out_of_date");
     }
     const at = new Date();
     await setRunState(run, "signed_off", user.id, transaction);
@@ -117,29 +122,32 @@ export interface SignOffView {
   canCorrect: boolean;
 }
 
-/** What <SignOffPanel> shows for this person. */
-export async function getSignOffView(run: Run, user: CurrentUser): Promise<SignOffView> {
+/** What <SignOffPanel> shows for this person; `current` saves asking currentCheck twice for one page. */
+export async function getSignOffView(run: Run, user: CurrentUser, current?: CurrentCheck): Promise<SignOffView> {
   const by = run.signedOffById ? await User.findByPk(run.signedOffById, { attributes: ["id", "name"] }) : null;
   const isManager = user.role === "lab_manager";
-  const checkState = run.state === "checked" ? (await currentCheck(run.id)).state : null;
-  const stale = checkState !== null && checkState !== "current";
+  const status = run.state === "signed_off" ? "current" : (current ?? (await currentCheck(run))).status;
+  const stale = run.state === "checked" && status !== "current";
   return {
     state: run.state,
     signedOffAt: run.signedOffAt?.toISOString() ?? null,
     signedOffBy: by ? { id: by.id, name: by.name } : null,
     canSignOff: isManager && run.state === "checked" && !stale,
-    blockedReason: stale
-      ? "The theory check is out of date — re-checking…; sign-off waits for the new check."
-      : isManager && run.state !== "checked" && run.state !== "signed_off"
-        ? `Sign-off needs a theory check; this run is ${runStateLabels[run.state as RunState].toLowerCase()}.`
-        : null,
+    blockedReason:
+      isManager && status === "out_of_date"
+        ? "The theory check is out of date; sign-off waits for a check made from the run as it is now."
+        : isManager && run.state !== "checked" && run.state !== "signed_off"
+          ? `Sign-off needs a theory check; this run is ${runStateLabels[run.state as RunState].toLowerCase()}.`
+          : isManager && stale
+            ? "Sign-off needs a theory check; this run has none."
+            : null,
     canCorrect: run.state === "signed_off" && (user.role === "lab_manager" || user.role === "technician"),
   };
 }
 
 /** Everything the run record's own panels need, in one call for the run page's loader. */
-export async function getRunRecordParts(run: Run, user: CurrentUser) {
-  const [history, links, signOff] = await Promise.all([getRunHistory(run.id), getSupersedesLinks(run), getSignOffView(run, user)]);
+export async function getRunRecordParts(run: Run, user: CurrentUser, current?: CurrentCheck) {
+  const [history, links, signOff] = await Promise.all([getRunHistory(run.id), getSupersedesLinks(run), getSignOffView(run, user, current)]);
   return { history, links, signOff };
 }
 export type RunRecordParts = Awaited<ReturnType<typeof getRunRecordParts>>;
@@ -189,7 +197,7 @@ function serializeCheck(c: TheoryCheck | null, withResult: boolean) {
 }
 
 /** The run as GET /api/v1/runs/:id returns it; export.json adds the full result and settings. */
-export async function getRunDetail(runId: number, opts: { full?: boolean } = {}) {
+export async function getRunDetail(runId: number, opts: { full?: boolean; current?: CurrentCheck } = {}) {
   const run = await Run.findByPk(runId);
   if (!run) return null;
   const calibrationIds = calibrationIdsInForce(run);
@@ -201,7 +209,7 @@ export async function getRunDetail(runId: number, opts: { full?: boolean } = {})
     ViewSetup.findOne({ where: { runId } }),
     TrackingJob.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] }),
     Track.findAll({ where: { runId }, attributes: ["id", "number", "pointCount", "detectedShare", "jitterPx", "jobId"], order: [["number", "ASC"]] }),
-    currentCheck(runId),
+    opts.current ?? currentCheck(run),
     calibrationIds.length ? Calibration.findAll({ where: { id: { [Op.in]: calibrationIds } } }) : [],
     getRunHistory(runId),
     getSupersedesLinks(run),
@@ -212,7 +220,7 @@ export async function getRunDetail(runId: number, opts: { full?: boolean } = {})
     id: run.id,
     label: runLabel(run.id),
     state: run.state,
-    verdict: check.state === "current" ? run.verdict : null,
+    verdict: check.status === "current" ? run.verdict : null,
     conditions: {
       setRateRpm: run.setRateRpm,
       direction: run.direction,
@@ -238,7 +246,8 @@ export async function getRunDetail(runId: number, opts: { full?: boolean } = {})
     },
     // Only a check made from the run's present inputs is shown; a stale one is named, not shown.
     latestTheoryCheck: serializeCheck(check.check, Boolean(opts.full)),
-    checkState: check.state,
+    checkStatus: check.status,
+    checkOutOfDate: check.status === "out_of_date" ? { because: check.changed, recheckPending: recheckPending(run.id) || job?.state === "queued" || job?.state === "running", checkId: check.latest?.id ?? null } : null,
     calibrationsInForce: {
       ids: calibrationIds,
       recorded: calibrationSnapshot(run),
@@ -279,6 +288,8 @@ export async function getRunExport(runId: number) {
       label: detail.label,
       state: detail.state,
       verdict: detail.verdict,
+      checkStatus: detail.checkStatus,
+      checkOutOfDate: detail.checkOutOfDate,
       purpose: detail.purpose,
       notes: detail.notes,
       createdAt: detail.createdAt,

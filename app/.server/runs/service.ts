@@ -173,6 +173,8 @@ export async function updateRun(runId: number, input: RunInput, user: CurrentUse
   await assertRateReachedAtPossible(input.rateReachedAt, runId);
   const next = columns(input);
   let changed: string[] = [];
+  let snapshotChanged = false;
+  let redo: "fit" | "track" | null = null;
   await sequelize.transaction(async (transaction) => {
     const changes = Object.entries(next).filter(([k, v]) => show(run.get(k as keyof Run)) !== show(v));
     changed = changes.map(([k]) => k);
@@ -181,15 +183,16 @@ export async function updateRun(runId: number, input: RunInput, user: CurrentUse
     }
     const refreeze = changed.some((k) => k === "rateReachedAt" || equipmentFields.has(k));
     const snapshot = refreeze ? await freezeCalibrations([next.tableId, next.tankId, next.cameraId], next.rateReachedAt ?? run.createdAt) : null;
-    if (snapshot && snapshot !== run.calibrationsInForce) {
+    snapshotChanged = snapshot !== null && snapshot !== run.calibrationsInForce;
+    // The snapshot's time moves with the rate reached time; the history names only a change of which records apply.
+    if (snapshot && snapshotSummary(snapshot) !== snapshotSummary(run.calibrationsInForce)) {
       await RunHistory.create({ runId, userId: user.id, field: "calibrationsInForce", oldValue: snapshotSummary(run.calibrationsInForce), newValue: snapshotSummary(snapshot) }, { transaction });
     }
+    redo = changed.some((k) => trackFields.has(k)) ? "track" : snapshotChanged || changed.some((k) => fitFields.has(k)) ? "fit" : null;
     // The verdict in the runs table belongs to the old inputs: it goes until the re-check sets it again.
-    const touchesCheck = changed.some((k) => fitFields.has(k) || trackFields.has(k));
-    if (changes.length) await run.update({ ...next, ...(snapshot ? { calibrationsInForce: snapshot } : {}), ...(touchesCheck ? { verdict: null } : {}) }, { transaction });
+    if (changes.length) await run.update({ ...next, ...(snapshot ? { calibrationsInForce: snapshot } : {}), ...(redo ? { verdict: null } : {}) }, { transaction });
   });
-  const redo = changed.some((k) => trackFields.has(k)) ? "track" : changed.some((k) => fitFields.has(k)) ? "fit" : null;
-  if (redo) (await import("./rechecks")).scheduleRecheck(runId, user.id, redo);
+  if (redo) await (await import("./rechecks")).inputsChanged(runId, user.id, redo);
   return run;
 }
 

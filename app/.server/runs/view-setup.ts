@@ -1,5 +1,5 @@
 import { ViewSetup, type Run } from "../db";
-import { scheduleRecheck } from "./rechecks";
+import { inputsChanged } from "./rechecks";
 
 export type ViewSetupValues = Omit<ViewSetup["_creationAttributes"], "id" | "createdAt" | "updatedAt">;
 
@@ -14,5 +14,5 @@ export async function saveViewSetup(run: Run, values: ViewSetupValues, userId: n
   const changed = (existing.changed() || []).filter((k) => k !== "createdById" && k !== "updatedAt");
   await existing.save();
   // The tracks were made with the old marks: track again, and the check follows the new tracks.
-  if (changed.length) scheduleRecheck(run.id, userId, "track");
+  if (changed.length) await inputsChanged(run.id, userId, "track");
 }

@@ -19,6 +19,7 @@ import { SignOffPanel } from "~/components/run-record/sign-off-panel";
 import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { RunExportLinks } from "~/components/run-record/run-export-links";
 import { getRunRecordParts } from "~/.server/runs/record";
+import { currentCheck } from "~/.server/runs/provenance";
 import { calibrationKindLabels } from "~/lib/calibrations";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? runLabel(data.run.id) : "Run"} · Tankside` }];
@@ -26,7 +27,8 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? runLab
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const run = await loadRun(request, params.id);
-  const [page, settings, record] = await Promise.all([runPageData(run, user), getLabSettings(), getRunRecordParts(run, user)]);
+  const current = await currentCheck(run);
+  const [page, settings, record] = await Promise.all([runPageData(run, user, current), getLabSettings(), getRunRecordParts(run, user, current)]);
   return { ...page, record, user, spinUpTimesToWait: settings.spinUpTimesToWait };
 }
 
@@ -69,6 +71,12 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         }
       />
       <SupersedesLinks supersedes={d.record.links.supersedes} supersededBy={d.record.links.supersededBy} />
+      {d.checkOutOfDate ? (
+        <Notice kind="caution" title="The theory check is out of date">
+          Changed since the last check: {d.checkOutOfDate.because.join(", ")}. Its verdict is withdrawn and the run cannot be signed off until a new check is made.{" "}
+          {d.checkOutOfDate.recheckPending ? "Tankside is checking the run again now; reload to see the new verdict." : "Track the run again to get a check made from it as it is now."}
+        </Notice>
+      ) : null}
       {run.state === "signed_off" ? <Notice kind="info" title="Signed off: this run is read-only">A correction is logged as a new run linked to this one.</Notice> : null}
       {d.calibrations.pastDue.map((c) => {
         const item = [d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId);

@@ -101,16 +101,19 @@ function snapshotSummary(text: string | null) {
   return `in force: ${list(s.inForce)}; past due: ${list(s.pastDue as never)}`;
 }
 
-/** The table cannot have reached its rate in the future, nor after the frames were filmed. */
+/** A minute of clock skew between the person's clock and the server's is forgiven. */
+const clockSkewMs = 60_000;
+
+/** The table cannot have reached its rate in the future, nor after the frames were filmed (the first frame's arrival). */
 async function assertRateReachedAtPossible(at: Date | undefined, runId?: number) {
   if (!at) return;
-  if (at.getTime() > Date.now() + 60_000) {
+  if (at.getTime() > Date.now() + clockSkewMs) {
     throw new RunValidationError([{ field: "rateReachedAt", message: "The rate reached time is in the future: give the time the table actually reached its rate." }]);
   }
   if (runId) {
     const first = await Frame.findOne({ where: { runId }, order: [["createdAt", "ASC"]], attributes: ["createdAt"] });
     if (first && at.getTime() > first.createdAt.getTime()) {
-      throw new RunValidationError([{ field: "rateReachedAt", message: `The rate reached time is after the frames were brought in (${first.createdAt.toISOString()}): the table reached its rate before filming.` }]);
+      throw new RunValidationError([{ field: "rateReachedAt", message: `The rate reached time is after the first frame arrived (${first.createdAt.toISOString()}): the table reached its rate before it was filmed, so give that earlier time.` }]);
     }
   }
 }

@@ -3,7 +3,7 @@ import { Run, RunHistory, Track, TrackingJob, ViewSetup } from "../db";
 import { smallLab } from "../test-support";
 import { createRun, updateRun } from "./service";
 import { checkRun } from "./theory";
-import { currentCheck, trackingFingerprint } from "./provenance";
+import { checkInputs, currentCheck, trackingFingerprint } from "./provenance";
 import { getRunDetail, signOffRun } from "./record";
 import { holdRechecks, whenRechecksIdle } from "./rechecks";
 import { saveViewSetup } from "./view-setup";
@@ -93,8 +93,26 @@ describe("a theory check is current only while its inputs are", () => {
     expect((await currentCheck(run.id)).status).toBe("out_of_date");
     expect((await getRunDetail(run.id))!.latestTheoryCheck).toBeNull();
     await expect(signOffRun(run.id, lab.manager)).rejects.toMatchObject({ status: 409, code: "check_out_of_date" });
+    expect((await Run.findByPk(run.id))!.verdict).toBeNull();
+    expect((await currentCheck(run.id)).changed).toEqual(["view setup"]);
     release();
     await whenRechecksIdle();
+  });
+
+  it("stores exactly what the check was computed from: conditions, frozen calibrations, tolerance, frames, view setup and the track", async () => {
+    const run = await checkedRun(8);
+    const { check } = await currentCheck(run.id);
+    const stored = JSON.parse(check!.result).provenance;
+    const track = await Track.findOne({ where: { runId: run.id } });
+    expect(stored.inputs).toEqual(JSON.parse(JSON.stringify(await checkInputs(run, track))));
+    expect(stored.inputs).toMatchObject({
+      conditions: { setRateRpm: 8, direction: "ccw", cameraMode: "rotating", tableId: run.tableId, flatTable: false },
+      calibrations: JSON.parse(run.calibrationsInForce!),
+      settings: { checkTolerancePct: 3 },
+      tracking: { viewSetup: { centre: [centre.x, centre.y], scalePxPerM: pxPerM, mirrored: false }, tracer: "float", frameRateFps: 30, frames: { count: 0 } },
+      track: { id: track!.id, pointCount: 180 },
+    });
+    expect(check!.inputFingerprint).toBe(stored.fingerprint);
   });
 
   it("a rate reached time in the future is refused with a message", async () => {

@@ -1,10 +1,10 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { Frame, migrate, Run, RunHistory, TheoryCheck, TrackingJob } from "../db";
+import { Frame, migrate, Run, RunHistory, TheoryCheck, Track, TrackingJob, ViewSetup } from "../db";
 import { sessionStorage } from "../auth/session";
 import { setLabSetting } from "../settings";
 import { stopTrackingQueue, whenTrackingIdle } from "../jobs/tracking-queue";
 import { currentCheck } from "./provenance";
-import { holdRechecks, inputsChanged, whenRechecksIdle } from "./rechecks";
+import { holdRechecks, inputsChanged, recheckUnfingerprinted, whenRechecksIdle } from "./rechecks";
 import { getRunDetail, getRunExport, signOffRun } from "./record";
 import { listRuns } from "./queries";
 import { checkedRunFor, seedRunLab, type RunLab } from "./testing";
@@ -101,5 +101,38 @@ describe("new frames", () => {
     const job = await TrackingJob.findOne({ where: { runId: run.id }, order: [["id", "DESC"]] });
     expect(job!.id).toBeGreaterThan(before);
     expect(job!.requestedById).toBe(lab.technician.id);
+  });
+});
+
+describe("checks made before fingerprints were kept", () => {
+  /** A run as an earlier version left it: job and check without fingerprints. */
+  async function legacyRun() {
+    const { run, check } = await checkedRunFor(lab, lab.technician);
+    await TrackingJob.update({ inputFingerprint: null }, { where: { runId: run.id } });
+    await TheoryCheck.update({ inputFingerprint: null }, { where: { id: check.id } });
+    return { run, check };
+  }
+
+  it("count as out of date, and at start are fitted again when the tracks postdate the frames and view setup; a signed-off one keeps its check", async () => {
+    const open = await legacyRun();
+    const signed = await checkedRunFor(lab, lab.technician);
+    await signOffRun(signed.run.id, lab.manager);
+    await TheoryCheck.update({ inputFingerprint: null }, { where: { runId: signed.run.id } });
+    expect((await currentCheck(open.run.id)).status).toBe("out_of_date");
+
+    // A third run whose view setup moved after its tracking: its tracks cannot be vouched for.
+    const moved = await legacyRun();
+    await ViewSetup.update({ centreXPx: 650, updatedAt: new Date(Date.now() + 5_000) }, { where: { runId: moved.run.id }, silent: true });
+
+    expect(await recheckUnfingerprinted()).toBe(2);
+    await whenRechecksIdle();
+    const refit = await currentCheck(open.run.id);
+    expect(refit.status).toBe("current");
+    expect(refit.check!.id).toBeGreaterThan(open.check.id);
+    expect(await currentCheck(signed.run.id)).toMatchObject({ status: "current", check: { id: signed.check.id } });
+    expect(await TheoryCheck.count({ where: { runId: signed.run.id } })).toBe(1);
+    expect((await currentCheck(moved.run.id)).status).toBe("out_of_date");
+    expect((await Run.findByPk(moved.run.id))!.verdict).toBeNull();
+    expect(await Track.count({ where: { runId: moved.run.id } })).toBe(1);
   });
 });

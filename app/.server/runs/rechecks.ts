@@ -1,7 +1,9 @@
 import { Op } from "sequelize";
-import { Run, TheoryCheck } from "../db";
+import { Frame, Run, TheoryCheck, Track, TrackingJob, ViewSetup } from "../db";
+import { onBoot } from "../boot";
 import { enqueueTracking } from "../jobs/tracking-queue";
 import { checkRun } from "./theory";
+import { trackingFingerprint } from "./provenance";
 
 /**
  * Re-runs what a change to a run's inputs needs, in the background: the fit alone for conditions,
@@ -73,6 +75,50 @@ export async function refitUnsignedRuns(userId: number | null, where: { tableId?
   for (const r of runs) scheduleRecheck(r.id, userId, "fit");
   return runs.length;
 }
+
+/**
+ * Checks and tracking jobs made before fingerprints were kept vouch for nothing. At start, a
+ * finished job that made the run's tracks and started after the run's view setup and frames last
+ * changed is taken as made from them (its fingerprint is recorded now); then every unsigned run
+ * whose latest check has no fingerprint is fitted again. Signed-off runs keep their signed check.
+ */
+export async function recheckUnfingerprinted() {
+  const jobIds = (await Track.findAll({ attributes: ["jobId"], group: ["jobId"] })).map((t) => t.jobId);
+  const jobs = jobIds.length ? await TrackingJob.findAll({ where: { id: { [Op.in]: jobIds }, state: "done", inputFingerprint: { [Op.is]: null } } }) : [];
+  for (const job of jobs) {
+    const run = await Run.findByPk(job.runId);
+    const started = job.startedAt?.getTime();
+    if (!run || started === undefined) continue;
+    const [setup, lastFrame] = await Promise.all([
+      ViewSetup.findOne({ where: { runId: run.id }, attributes: ["updatedAt"] }),
+      Frame.findOne({ where: { runId: run.id }, attributes: ["createdAt"], order: [["createdAt", "DESC"]] }),
+    ]);
+    if (setup && setup.updatedAt.getTime() <= started && (!lastFrame || lastFrame.createdAt.getTime() <= started)) {
+      await job.update({ inputFingerprint: await trackingFingerprint(run) });
+    }
+  }
+  const legacy = await TheoryCheck.findAll({ where: { inputFingerprint: { [Op.is]: null } }, attributes: ["runId"], group: ["runId"] });
+  let count = 0;
+  for (const { runId } of legacy) {
+    const [run, latest] = await Promise.all([
+      Run.findByPk(runId, { attributes: ["id", "state"] }),
+      TheoryCheck.findOne({ where: { runId }, order: [["id", "DESC"]], attributes: ["id", "inputFingerprint"] }),
+    ]);
+    if (!run || run.state === "signed_off" || !latest || latest.inputFingerprint !== null) continue;
+    await Run.update({ verdict: null }, { where: { id: runId } });
+    scheduleRecheck(runId, null, "fit");
+    count++;
+  }
+  return count;
+}
+
+onBoot({
+  name: "legacy-rechecks",
+  start: async () => {
+    const count = await recheckUnfingerprinted();
+    if (count) console.log(`[runs] re-checking ${count} run(s) whose check predates input fingerprints`);
+  },
+});
 
 /** Resolves when every scheduled re-check has run (tests and the seeding wait on it). */
 export async function whenRechecksIdle() {

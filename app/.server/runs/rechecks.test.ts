@@ -7,7 +7,8 @@ import { currentCheck } from "./provenance";
 import { holdRechecks, inputsChanged, recheckUnfingerprinted, whenRechecksIdle } from "./rechecks";
 import { getRunDetail, getRunExport, signOffRun } from "./record";
 import { listRuns } from "./queries";
-import { checkedRunFor, seedRunLab, type RunLab } from "./testing";
+import { checkedRunFor, runInput, seedRunLab, type RunLab } from "./testing";
+import { updateRun } from "./service";
 import { action as settingsAction } from "~/routes/settings/settings";
 import { settingDefaults } from "~/lib/settings";
 
@@ -77,6 +78,15 @@ describe("a change of the verdict tolerance", () => {
     expect((await Run.findByPk(signed.run.id))!.verdict).toBe("agrees");
     await setLabSetting("checkTolerancePct", settingDefaults.checkTolerancePct);
     await whenRechecksIdle();
+  });
+});
+
+describe("a change the check does not read", () => {
+  it("(water temperature, a tank with no calibrations) leaves the check current and its verdict shown", async () => {
+    const { run, check } = await checkedRunFor(lab, lab.technician);
+    await updateRun(run.id, runInput(lab, { tankId: lab.tank2.id, waterTemperatureC: 18 }), lab.technician);
+    expect(await currentCheck(run.id)).toMatchObject({ status: "current", check: { id: check.id } });
+    expect((await Run.findByPk(run.id))!.verdict).toBe(check.verdict);
   });
 });
 

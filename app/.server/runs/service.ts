@@ -185,7 +185,9 @@ export async function updateRun(runId: number, input: RunInput, user: CurrentUse
       await RunHistory.create({ runId, userId: user.id, field, oldValue: show(run.get(field as keyof Run)), newValue: show(value) }, { transaction });
     }
     const refreeze = changed.some((k) => k === "rateReachedAt" || equipmentFields.has(k));
-    const snapshot = refreeze ? await freezeCalibrations([next.tableId, next.tankId, next.cameraId], next.rateReachedAt ?? run.createdAt) : null;
+    // Without a rate reached time the run's time is when it was logged, as frozen then.
+    const loggedAt = (!run.rateReachedAt && calibrationSnapshot(run).at) || run.createdAt.toISOString();
+    const snapshot = refreeze ? await freezeCalibrations([next.tableId, next.tankId, next.cameraId], next.rateReachedAt ?? new Date(loggedAt)) : null;
     snapshotChanged = snapshot !== null && snapshot !== run.calibrationsInForce;
     // The snapshot's time moves with the rate reached time; the history names only a change of which records apply.
     if (snapshot && snapshotSummary(snapshot) !== snapshotSummary(run.calibrationsInForce)) {

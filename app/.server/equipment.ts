@@ -64,7 +64,12 @@ export async function updateEquipment(id: number, input: EquipmentInput) {
   const item = await Equipment.findByPk(id);
   if (!item) return null;
   if (item.kind !== input.kind) throw new RangeError("The kind of an item cannot change; retire it and add a new one.");
+  const wasFlat = item.flatTable;
   await item.update(toColumns(input));
+  // The theory check reads a table's flatness: its runs' checks are fitted again.
+  if (item.kind === "table" && Boolean(wasFlat) !== Boolean(item.flatTable)) {
+    await (await import("./runs/rechecks")).refitUnsignedRuns(null, { tableId: item.id });
+  }
   return item;
 }
 

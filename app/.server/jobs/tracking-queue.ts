@@ -6,6 +6,7 @@ import { trackFrameStack, closeTrackingPool } from "../tracking/track-frame-stac
 import { isTrackingCancelled } from "../tracking/errors";
 import { setRunState } from "../runs/service";
 import { checkRun } from "../runs/theory";
+import { trackingFingerprint } from "../runs/provenance";
 import type { FrameDetections, TrackingSetup } from "~/lib/tracking/types";
 
 /**
@@ -135,7 +136,9 @@ async function runJob(job: TrackingJob) {
     const setup = await trackingSetupOf(run);
     const prior = await priorDetections(job);
     for (const f of prior) if (!Number.isFinite(f.t)) f.t = stack.times[f.frameIndex];
-    await job.update({ state: "running", startedAt: job.startedAt ?? new Date(), attempts: job.attempts + 1, framesTotal: stack.files.length, error: null });
+    // What is tracked is recorded before tracking: a change meanwhile leaves these tracks out of date.
+    const inputFingerprint = await trackingFingerprint(run);
+    await job.update({ state: "running", startedAt: job.startedAt ?? new Date(), attempts: job.attempts + 1, framesTotal: stack.files.length, error: null, inputFingerprint });
 
     const done = new Set<number>(prior.map((p) => p.frameIndex));
     let watermark = prior.length;
@@ -202,6 +205,12 @@ async function runJob(job: TrackingJob) {
       if (run.state !== "signed_off") await setRunState(run, "tracked", job.requestedById, transaction);
       await run.update({ verdict: null }, { transaction });
     });
+    // Frames or the view setup changed while tracking: these tracks are already out of date, so track again.
+    if ((await trackingFingerprint(await run.reload())) !== inputFingerprint) {
+      const { scheduleRecheck } = await import("../runs/rechecks");
+      scheduleRecheck(run.id, job.requestedById, "track");
+      return;
+    }
     await checkRun(run.id, job.requestedById).catch((err) => console.error(`[tracking] theory check of run ${run.id} failed:`, err));
   } catch (err) {
     await job.reload();

@@ -81,7 +81,12 @@ export const runPaths: Paths = {
   },
   "/api/v1/runs/{id}": {
     parameters: [idParam()],
-    get: { summary: "The run record", operationId: "getRun", responses: { "200": json("RunDetail", "The run"), ...authErrors, ...notFound } },
+    get: {
+      summary: "The run record",
+      description:
+        "latestTheoryCheck is the current check only; checkStatus says current, out_of_date (an input changed since the latest check: checkOutOfDate.because names which, and a new check is being made when checkOutOfDate.recheckPending) or missing. While the check is not current, verdict and latestTheoryCheck are null.",
+      operationId: "getRun",
+      responses: { "200": json("RunDetail", "The run"), ...authErrors, ...notFound } },
     patch: {
       summary: "Change some of a run's conditions (its technician or a lab manager)",
       description: "The fields are merged over the stored run and checked as a whole; every change is kept in the run's history. A signed-off run is read-only: log a correction instead.",
@@ -104,13 +109,29 @@ export const runPaths: Paths = {
     get: {
       summary: "The run's tracks as CSV",
       description:
-        "One row a point: track_id, t_s, x_px, y_px, and x_m, y_m in the rotating frame (origin on the axis, y up, seen from above) when the view setup has a scale. Lab-fixed views are de-rotated by −Ω(t − t₀), t₀ the track's first time, Ω the rate the latest theory check used (else the set rate).",
+        "One row a point: track_id, t_s, x_px, y_px, and x_m, y_m in the rotating frame (origin on the axis, y up, seen from above) when the view setup has a scale. Lab-fixed views are de-rotated by −Ω(t − t₀), t₀ the track's first time, Ω the rate the current theory check used (else the set rate).",
       operationId: "getRunTracksCsv",
       responses: {
         "200": { description: "CSV", content: { "text/csv": { schema: { type: "string" }, example: "track_id,t_s,x_px,y_px,x_m,y_m\r\n12,0,640.5,360.25,0.0412,-0.0107\r\n" } } },
         ...authErrors,
         ...notFound,
         "409": err("The run has no tracks yet (code no_tracks)."),
+      },
+    },
+  },
+  "/api/v1/runs/{id}/sign-off": {
+    parameters: [idParam()],
+    post: {
+      summary: "Sign a run off (lab manager)",
+      description:
+        "Vouches for the run's current theory check: one made from the run's present conditions, frames, view setup, track, frozen calibrations and verdict tolerance. Afterwards the run is read-only; a correction is logged as a new run.",
+      operationId: "signOffRun",
+      responses: {
+        "200": json("Run", "The run, signed off"),
+        ...authErrors,
+        ...forbidden,
+        ...notFound,
+        "409": err("The check is out of date or missing (code check_out_of_date), the run has not been checked (not_checked), or it is already signed off (run_signed_off)."),
       },
     },
   },

@@ -152,7 +152,12 @@ export function schemas(): Record<string, JsonSchema> {
         viewSetup: nullable("object"),
         latestTrackingJob: nullable("object"),
         tracks: { type: "object", properties: { count: { type: "integer" }, items: { type: "array", items: { type: "object" } } } },
-        latestTheoryCheck: nullable("object"),
+        latestTheoryCheck: nullable("object", { description: "The current theory check only: null while it is out of date or missing." }),
+        checkStatus: { enum: ["current", "out_of_date", "missing"], description: "Whether the latest check was made from the run's present inputs; a signed-off run keeps the check it was signed with." },
+        checkOutOfDate: nullable("object", {
+          description: "Set when checkStatus is out_of_date.",
+          properties: { because: { type: "array", items: { type: "string" }, description: "The inputs changed since the latest check, in words." }, recheckPending: { type: "boolean" }, checkId: nullable("integer") },
+        }),
         calibrationsInForce: { type: "object", properties: { ids: { type: "array", items: { type: "integer" } }, records: { type: "array", items: { type: "object" } } } },
         signOff: { type: "object" },
         supersedes: nullable("object"),
@@ -177,7 +182,7 @@ export function schemas(): Record<string, JsonSchema> {
         tracks: { type: "object" },
         settings: nullable("object", { description: "used: the smoothing window, order and tolerance the check applied; requested: what was asked for." }),
         theoryCheckInput: nullable("object", { description: "The check's inputs less the points: view setup, set and calibrated rate, camera mode, t₀, settings, track id." }),
-        theoryCheck: nullable("object"),
+        theoryCheck: nullable("object", { description: "The current theory check only; null while it is out of date (run.checkStatus says which)." }),
       },
     },
     TrackingJob: {

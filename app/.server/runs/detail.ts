@@ -1,13 +1,15 @@
 import { Equipment, Frame, Run, Track, User, ViewSetup } from "../db";
 import { latestJob, serializeJob } from "../jobs/tracking-queue";
 import { serializeEquipment } from "../equipment";
-import { latestCheck, parseTrackPoints } from "./theory";
+import { parseTrackPoints, storedCheck } from "./theory";
+import { currentCheck, type CurrentCheck } from "./provenance";
+import { recheckPending } from "./rechecks";
 import type { CurrentUser } from "../auth/permissions";
 import { calibrationSnapshot, canChangeRun } from "./service";
 
-/** Everything the run page shows, as plain data. */
-export async function runPageData(run: Run, user: CurrentUser) {
-  const [table, tank, camera, technician, frames, setup, job, tracks, check] = await Promise.all([
+/** Everything the run page shows, as plain data; the check is the current one only (see currentCheck). */
+export async function runPageData(run: Run, user: CurrentUser, current?: CurrentCheck) {
+  const [table, tank, camera, technician, frames, setup, job, tracks, judged] = await Promise.all([
     Equipment.findByPk(run.tableId),
     Equipment.findByPk(run.tankId),
     Equipment.findByPk(run.cameraId),
@@ -16,12 +18,15 @@ export async function runPageData(run: Run, user: CurrentUser) {
     ViewSetup.findOne({ where: { runId: run.id } }),
     latestJob(run.id),
     Track.findAll({ where: { runId: run.id }, order: [["number", "ASC"]] }),
-    latestCheck(run.id),
+    current ?? currentCheck(run),
   ]);
+  const active = job?.state === "queued" || job?.state === "running";
   const snapshot = calibrationSnapshot(run);
   return {
     run: {
       ...run.get({ plain: true }),
+      // The verdict column belongs to the check: while that is out of date no verdict is shown.
+      verdict: judged.status === "current" ? run.verdict : null,
       rateReachedAt: run.rateReachedAt?.toISOString() ?? null,
       signedOffAt: run.signedOffAt?.toISOString() ?? null,
       createdAt: run.createdAt.toISOString(),
@@ -54,7 +59,9 @@ export async function runPageData(run: Run, user: CurrentUser) {
         return p.length ? p[p.length - 1].t - p[0].t : 0;
       })(),
     })),
-    check,
+    check: judged.check ? storedCheck(judged.check) : null,
+    checkStatus: judged.status,
+    checkOutOfDate: judged.status === "out_of_date" ? { because: judged.changed, recheckPending: recheckPending(run.id) || active } : null,
   };
 }
 export type RunPageData = Awaited<ReturnType<typeof runPageData>>;

@@ -1,4 +1,5 @@
-import { Run, TheoryCheck, Track, ViewSetup } from "../db";
+import { Run, Track, ViewSetup } from "../db";
+import { currentCheck } from "./provenance";
 import { RunError } from "./service";
 import { parseTrackPoints, signedOmega } from "./theory";
 import { trackToRotatingFrame, type ViewGeometry } from "~/lib/analysis/frames";
@@ -13,9 +14,10 @@ function csvNumber(v: number) {
 /**
  * The run's tracks as CSV, one row a point: track_id, t_s (the camera's time, as tracked), x_px,
  * y_px, and x_m, y_m in the rotating frame when the view setup has a scale (else the scale
- * calibration's, when the latest check used it). A lab-fixed camera's positions are de-rotated by
- * −Ω(t − t₀), Ω the rate the latest theory check used (else the set rate), t₀ each track's first
- * time, t the camera's time corrected by the timing check that check applied.
+ * calibration's, when the current check used it). A lab-fixed camera's positions are de-rotated by
+ * −Ω(t − t₀), Ω the rate the current theory check used (else the set rate: an out-of-date check's
+ * rate belongs to other conditions), t₀ each track's first time, t the camera's time corrected by
+ * the timing check that check applied.
  */
 export async function tracksCsv(runId: number): Promise<{ filename: string; csv: string; withMetres: boolean }> {
   const run = await Run.findByPk(runId);
@@ -30,7 +32,7 @@ export async function tracksCsv(runId: number): Promise<{ filename: string; csv:
     );
   }
   const setup = await ViewSetup.findOne({ where: { runId } });
-  const check = await TheoryCheck.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] });
+  const { check } = await currentCheck(run);
   let omega = signedOmega(run);
   let timeFactor = 1;
   let checkPxPerM: number | null = null;

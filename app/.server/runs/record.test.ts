@@ -3,7 +3,7 @@ import { migrate, Run } from "../db";
 import { createRun, updateRun, RunError } from "./service";
 import { getRunHistory, getSignOffView, getSupersedesLinks, signOffRun } from "./record";
 import { getRunColumnChoice, saveRunColumnChoice } from "./queries";
-import { runInput, seedRunLab, type RunLab } from "./testing";
+import { checkedRunFor, runInput, seedRunLab, type RunLab } from "./testing";
 import { defaultRunColumnChoice } from "~/lib/validation/run-filters";
 
 let lab: RunLab;
@@ -25,8 +25,7 @@ describe("sign-off", () => {
   });
 
   it("signs a checked run off, records who and when, and makes it read-only", async () => {
-    const run = await createRun(runInput(lab), lab.technician);
-    await run.update({ state: "checked" });
+    const { run } = await checkedRunFor(lab, lab.technician);
     expect((await getSignOffView(run, lab.manager)).canSignOff).toBe(true);
     await signOffRun(run.id, lab.manager);
     await run.reload();

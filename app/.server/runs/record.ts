@@ -4,11 +4,16 @@ import { Calibration, Equipment, Frame, Run, RunHistory, TheoryCheck, Track, Tra
 import { codeVersion } from "../version";
 import { serializeEquipment } from "../equipment";
 import { RunError, setRunState } from "./service";
+import { currentCheck, type CurrentCheck } from "./provenance";
+import { recheckPending } from "./rechecks";
 import type { CurrentUser } from "../auth/permissions";
 import { runLabel, runStateLabels, type RunState } from "~/lib/runs";
 import { runFieldLabels } from "~/lib/validation/run";
 
-/** Sign-off needs a theory check to vouch for: a run is signed off from "checked" only. */
+/**
+ * Sign-off vouches for a verdict, so it needs a current theory check: one made from the run's
+ * present inputs (see currentCheck). The page's form and POST /api/v1/runs/:id/sign-off both come here.
+ */
 export async function signOffRun(runId: number, user: CurrentUser) {
   if (user.role !== "lab_manager") throw new RunError("Only a lab manager can sign a run off.", 403, undefined, "forbidden");
   return sequelize.transaction(async (transaction) => {
@@ -17,6 +22,15 @@ export async function signOffRun(runId: number, user: CurrentUser) {
     if (run.state === "signed_off") {
       throw new RunError(`${runLabel(run.id)} is already signed off.`, 409, undefined, "run_signed_off");
     }
+    const current = await currentCheck(run);
+    if (current.status === "out_of_date") {
+      throw new RunError(
+        `${runLabel(run.id)}'s theory check is out of date (changed since: ${current.changed.join(", ")}). Wait for the new check, then sign off.`,
+        409,
+        undefined,
+        "check_out_of_date",
+      );
+    }
     if (run.state !== "checked") {
       throw new RunError(
         `${runLabel(run.id)} is ${runStateLabels[run.state as RunState].toLowerCase()}: only a run with a theory check can be signed off.`,
@@ -24,6 +38,9 @@ export async function signOffRun(runId: number, user: CurrentUser) {
         undefined,
         "not_checked",
       );
+    }
+    if (current.status === "missing") {
+      throw new RunError(`${runLabel(run.id)} has no theory check to sign off.`, 409, undefined, "check_out_of_date");
     }
     const at = new Date();
     await setRunState(run, "signed_off", user.id, transaction);
@@ -43,7 +60,7 @@ export interface RunHistoryEntry {
 }
 
 const equipmentFields = new Set(["tableId", "tankId", "cameraId"]);
-const extraLabels: Record<string, string> = { created: "logged" };
+const extraLabels: Record<string, string> = { created: "logged", theoryCheck: "theory check", calibrationsInForce: "calibrations in force" };
 
 /** Every change to a run, oldest first, with ids turned into the names people know. */
 export async function getRunHistory(runId: number): Promise<RunHistoryEntry[]> {
@@ -105,26 +122,32 @@ export interface SignOffView {
   canCorrect: boolean;
 }
 
-/** What <SignOffPanel> shows for this person. */
-export async function getSignOffView(run: Run, user: CurrentUser): Promise<SignOffView> {
+/** What <SignOffPanel> shows for this person; `current` saves asking currentCheck twice for one page. */
+export async function getSignOffView(run: Run, user: CurrentUser, current?: CurrentCheck): Promise<SignOffView> {
   const by = run.signedOffById ? await User.findByPk(run.signedOffById, { attributes: ["id", "name"] }) : null;
   const isManager = user.role === "lab_manager";
+  const status = run.state === "signed_off" ? "current" : (current ?? (await currentCheck(run))).status;
+  const stale = run.state === "checked" && status !== "current";
   return {
     state: run.state,
     signedOffAt: run.signedOffAt?.toISOString() ?? null,
     signedOffBy: by ? { id: by.id, name: by.name } : null,
-    canSignOff: isManager && run.state === "checked",
+    canSignOff: isManager && run.state === "checked" && !stale,
     blockedReason:
-      isManager && run.state !== "checked" && run.state !== "signed_off"
-        ? `Sign-off needs a theory check; this run is ${runStateLabels[run.state as RunState].toLowerCase()}.`
-        : null,
+      isManager && status === "out_of_date"
+        ? "The theory check is out of date; sign-off waits for a check made from the run as it is now."
+        : isManager && run.state !== "checked" && run.state !== "signed_off"
+          ? `Sign-off needs a theory check; this run is ${runStateLabels[run.state as RunState].toLowerCase()}.`
+          : isManager && stale
+            ? "Sign-off needs a theory check; this run has none."
+            : null,
     canCorrect: run.state === "signed_off" && (user.role === "lab_manager" || user.role === "technician"),
   };
 }
 
 /** Everything the run record's own panels need, in one call for the run page's loader. */
-export async function getRunRecordParts(run: Run, user: CurrentUser) {
-  const [history, links, signOff] = await Promise.all([getRunHistory(run.id), getSupersedesLinks(run), getSignOffView(run, user)]);
+export async function getRunRecordParts(run: Run, user: CurrentUser, current?: CurrentCheck) {
+  const [history, links, signOff] = await Promise.all([getRunHistory(run.id), getSupersedesLinks(run), getSignOffView(run, user, current)]);
   return { history, links, signOff };
 }
 export type RunRecordParts = Awaited<ReturnType<typeof getRunRecordParts>>;
@@ -174,7 +197,7 @@ function serializeCheck(c: TheoryCheck | null, withResult: boolean) {
 }
 
 /** The run as GET /api/v1/runs/:id returns it; export.json adds the full result and settings. */
-export async function getRunDetail(runId: number, opts: { full?: boolean } = {}) {
+export async function getRunDetail(runId: number, opts: { full?: boolean; current?: CurrentCheck } = {}) {
   const run = await Run.findByPk(runId);
   if (!run) return null;
   const calibrationIds = calibrationIdsInForce(run);
@@ -186,7 +209,7 @@ export async function getRunDetail(runId: number, opts: { full?: boolean } = {})
     ViewSetup.findOne({ where: { runId } }),
     TrackingJob.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] }),
     Track.findAll({ where: { runId }, attributes: ["id", "number", "pointCount", "detectedShare", "jitterPx", "jobId"], order: [["number", "ASC"]] }),
-    TheoryCheck.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] }),
+    opts.current ?? currentCheck(run),
     calibrationIds.length ? Calibration.findAll({ where: { id: { [Op.in]: calibrationIds } } }) : [],
     getRunHistory(runId),
     getSupersedesLinks(run),
@@ -197,7 +220,7 @@ export async function getRunDetail(runId: number, opts: { full?: boolean } = {})
     id: run.id,
     label: runLabel(run.id),
     state: run.state,
-    verdict: run.verdict,
+    verdict: check.status === "current" ? run.verdict : null,
     conditions: {
       setRateRpm: run.setRateRpm,
       direction: run.direction,
@@ -221,7 +244,10 @@ export async function getRunDetail(runId: number, opts: { full?: boolean } = {})
       count: tracks.length,
       items: tracks.map((t) => ({ id: t.id, number: t.number, jobId: t.jobId, pointCount: t.pointCount, detectedShare: t.detectedShare, jitterPx: t.jitterPx })),
     },
-    latestTheoryCheck: serializeCheck(check, Boolean(opts.full)),
+    // Only a check made from the run's present inputs is shown; a stale one is named, not shown.
+    latestTheoryCheck: serializeCheck(check.check, Boolean(opts.full)),
+    checkStatus: check.status,
+    checkOutOfDate: check.status === "out_of_date" ? { because: check.changed, recheckPending: recheckPending(run.id) || job?.state === "queued" || job?.state === "running", checkId: check.latest?.id ?? null } : null,
     calibrationsInForce: {
       ids: calibrationIds,
       recorded: calibrationSnapshot(run),
@@ -262,6 +288,8 @@ export async function getRunExport(runId: number) {
       label: detail.label,
       state: detail.state,
       verdict: detail.verdict,
+      checkStatus: detail.checkStatus,
+      checkOutOfDate: detail.checkOutOfDate,
       purpose: detail.purpose,
       notes: detail.notes,
       createdAt: detail.createdAt,

@@ -1,5 +1,5 @@
 import type { Transaction } from "sequelize";
-import { Equipment, Run, RunHistory, sequelize } from "../db";
+import { Equipment, Frame, Run, RunHistory, sequelize } from "../db";
 import type { RunInput } from "~/lib/validation/run";
 import type { CurrentUser } from "../auth/permissions";
 import type { RunState } from "~/lib/runs";
@@ -84,7 +84,42 @@ function columns(input: RunInput) {
   };
 }
 
+/** Fields the fit reads (a change re-runs the fit) and fields tracking reads (a change re-tracks). */
+const fitFields = new Set(["setRateRpm", "direction", "cameraMode", "rateReachedAt", "tableId"]);
+const trackFields = new Set(["tracer", "frameRateFps", "cameraId"]);
+const equipmentFields = new Set(["tableId", "tankId", "cameraId"]);
+
+async function freezeCalibrations(equipmentIds: number[], at: Date) {
+  const inForce = await calibrationsInForce(equipmentIds, at);
+  const pastDue = await calibrationsPastDueAt(equipmentIds, at);
+  return JSON.stringify({ at: at.toISOString(), inForce, pastDue });
+}
+
+function snapshotSummary(text: string | null) {
+  const s = calibrationSnapshot({ calibrationsInForce: text });
+  const list = (xs: { id: number | string; kind: string }[]) => xs.map((c) => `${c.kind} #${c.id}`).join(", ") || "none";
+  return `in force: ${list(s.inForce)}; past due: ${list(s.pastDue as never)}`;
+}
+
+/** A minute of clock skew between the person's clock and the server's is forgiven. */
+const clockSkewMs = 60_000;
+
+/** The table cannot have reached its rate in the future, nor after the frames were filmed (the first frame's arrival). */
+async function assertRateReachedAtPossible(at: Date | undefined, runId?: number) {
+  if (!at) return;
+  if (at.getTime() > Date.now() + clockSkewMs) {
+    throw new RunValidationError([{ field: "rateReachedAt", message: "The rate reached time is in the future: give the time the table actually reached its rate." }]);
+  }
+  if (runId) {
+    const first = await Frame.findOne({ where: { runId }, order: [["createdAt", "ASC"]], attributes: ["createdAt"] });
+    if (first && at.getTime() > first.createdAt.getTime()) {
+      throw new RunValidationError([{ field: "rateReachedAt", message: `The rate reached time is after the first frame arrived (${first.createdAt.toISOString()}): the table reached its rate before it was filmed, so give that earlier time.` }]);
+    }
+  }
+}
+
 export async function createRun(input: RunInput, user: CurrentUser) {
+  await assertRateReachedAtPossible(input.rateReachedAt);
   const { problems } = await checkEquipment(input);
   if (problems.length) throw new RunValidationError(problems);
   return sequelize.transaction(async (transaction) => {
@@ -138,14 +173,31 @@ export async function updateRun(runId: number, input: RunInput, user: CurrentUse
   assertCanChange(run, user);
   const { problems } = await checkEquipment(input);
   if (problems.length) throw new RunValidationError(problems);
+  await assertRateReachedAtPossible(input.rateReachedAt, runId);
   const next = columns(input);
+  let changed: string[] = [];
+  let snapshotChanged = false;
+  let redo: "fit" | "track" | null = null;
   await sequelize.transaction(async (transaction) => {
     const changes = Object.entries(next).filter(([k, v]) => show(run.get(k as keyof Run)) !== show(v));
+    changed = changes.map(([k]) => k);
     for (const [field, value] of changes) {
       await RunHistory.create({ runId, userId: user.id, field, oldValue: show(run.get(field as keyof Run)), newValue: show(value) }, { transaction });
     }
-    if (changes.length) await run.update(next, { transaction });
+    const refreeze = changed.some((k) => k === "rateReachedAt" || equipmentFields.has(k));
+    // Without a rate reached time the run's time is when it was logged, as frozen then.
+    const loggedAt = (!run.rateReachedAt && calibrationSnapshot(run).at) || run.createdAt.toISOString();
+    const snapshot = refreeze ? await freezeCalibrations([next.tableId, next.tankId, next.cameraId], next.rateReachedAt ?? new Date(loggedAt)) : null;
+    snapshotChanged = snapshot !== null && snapshot !== run.calibrationsInForce;
+    // The snapshot's time moves with the rate reached time; the history names only a change of which records apply.
+    if (snapshot && snapshotSummary(snapshot) !== snapshotSummary(run.calibrationsInForce)) {
+      await RunHistory.create({ runId, userId: user.id, field: "calibrationsInForce", oldValue: snapshotSummary(run.calibrationsInForce), newValue: snapshotSummary(snapshot) }, { transaction });
+    }
+    redo = changed.some((k) => trackFields.has(k)) ? "track" : snapshotChanged || changed.some((k) => fitFields.has(k)) ? "fit" : null;
+    // The verdict in the runs table belongs to the old inputs: it goes until the re-check sets it again.
+    if (changes.length) await run.update({ ...next, ...(snapshot ? { calibrationsInForce: snapshot } : {}), ...(redo ? { verdict: null } : {}) }, { transaction });
   });
+  if (redo) await (await import("./rechecks")).inputsChanged(runId, user.id, redo);
   return run;
 }
 

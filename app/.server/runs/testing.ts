@@ -1,4 +1,8 @@
-import { Equipment, User } from "../db";
+import { Equipment, Run, Track, TrackingJob, User, ViewSetup } from "../db";
+import { createRun } from "./service";
+import { checkRun } from "./theory";
+import { rpmToRadPerS } from "~/lib/analysis/units";
+import { trackingFingerprint } from "./provenance";
 import type { CurrentUser } from "../auth/permissions";
 import type { Role } from "~/lib/roles";
 
@@ -41,4 +45,45 @@ export function runInput(lab: RunLab, overrides: Record<string, unknown> = {}) {
     purpose: "Inertial circle demonstration",
     ...overrides,
   };
+}
+
+/**
+ * A finished tracking job for the run as it is now (frames, view setup, tracer, frame rate), as the
+ * queue records it: tracks made under it count as made from the run's present inputs. Create the
+ * view setup and frames first.
+ */
+export async function doneTrackingJob(run: Run, requestedById: number, frames = 0) {
+  return TrackingJob.create({
+    runId: run.id,
+    requestedById,
+    state: "done",
+    framesTotal: frames,
+    framesDone: frames,
+    error: null,
+    startedAt: new Date(),
+    finishedAt: new Date(),
+    inputFingerprint: await trackingFingerprint(run),
+  });
+}
+
+/**
+ * A run tracked and checked through checkRun: a float on the inertial circle of a table truly
+ * turning at `trueRpm` (the set rate unless given), seen by a co-rotating camera at 30 frames/s.
+ */
+export async function checkedRunFor(lab: RunLab, user: CurrentUser, overrides: Record<string, unknown> = {}, trueRpm?: number) {
+  const run = await createRun(runInput(lab, overrides), user);
+  const centre = { x: 640, y: 360 };
+  const pxPerM = 1000;
+  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: pxPerM, scalePoints: null, mirrored: false, createdById: user.id });
+  const job = await doneTrackingJob(run, user.id, 180);
+  const f = 2 * rpmToRadPerS(trueRpm ?? run.setRateRpm) * (run.direction === "cw" ? -1 : 1);
+  const points = Array.from({ length: 180 }, (_, i) => {
+    const t = i / 30;
+    return [t, centre.x + (0.02 + 0.07 * Math.cos(-f * t)) * pxPerM, centre.y - 0.07 * Math.sin(-f * t) * pxPerM, i];
+  });
+  await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify(points), pointCount: points.length, detectedShare: 1, jitterPx: 0 });
+  await run.update({ state: "tracked" });
+  const check = await checkRun(run.id, user.id);
+  if (!check) throw new Error("the fixture's run could not be checked");
+  return { run: (await Run.findByPk(run.id))!, check };
 }

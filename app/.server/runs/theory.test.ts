@@ -1,8 +1,10 @@
 import { beforeAll, describe, expect, it } from "vitest";
-import { Equipment, Run, Track, TrackingJob, ViewSetup } from "../db";
+import { Equipment, Run, Track, ViewSetup } from "../db";
 import { smallLab } from "../test-support";
 import { createRun } from "./service";
-import { checkRun, latestCheck, rateInForce } from "./theory";
+import { checkRun, rateInForce, storedCheck } from "./theory";
+import { currentCheck } from "./provenance";
+import { doneTrackingJob } from "./testing";
 import { createCalibration, signOffCalibration, toDayString } from "../calibrations";
 import { rpmToRadPerS } from "~/lib/analysis/units";
 
@@ -31,12 +33,17 @@ function inertialTrack(trueRpm: number, seconds = 6, fps = 30) {
 
 async function runWithTrack(trueRpm: number) {
   const run = await createRun(lab.runInput({ setRateRpm: 10 }), lab.tech);
-  const job = await TrackingJob.create({ runId: run.id, requestedById: lab.tech.id, state: "done", framesTotal: 180, framesDone: 180, error: null, startedAt: new Date(), finishedAt: new Date() });
+  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: pxPerM, scalePoints: null, mirrored: false, createdById: lab.tech.id });
+  const job = await doneTrackingJob(run, lab.tech.id, 180);
   const points = inertialTrack(trueRpm);
   await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify(points), pointCount: points.length, detectedShare: 1, jitterPx: 0 });
-  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: pxPerM, scalePoints: null, mirrored: false, createdById: lab.tech.id });
   await run.update({ state: "tracked" });
   return run;
+}
+
+async function checkNow(runId: number) {
+  const { check } = await currentCheck(runId);
+  return check ? storedCheck(check) : null;
 }
 
 describe("the theory check uses the rate calibration in force when the run was logged", () => {
@@ -44,7 +51,7 @@ describe("the theory check uses the rate calibration in force when the run was l
     // Before any calibration: the set rate is all there is, and the 5 % error shows.
     const before = await runWithTrack(10.5);
     await checkRun(before.id, lab.tech.id);
-    const uncalibrated = await latestCheck(before.id);
+    const uncalibrated = await checkNow(before.id);
     expect(uncalibrated!.result.omegaSource).toBe("set rate, uncalibrated");
     expect(uncalibrated!.result.verdict).toBe("disagrees");
 
@@ -65,7 +72,7 @@ describe("the theory check uses the rate calibration in force when the run was l
     expect(rate!.value).toBeCloseTo(rpmToRadPerS(10.5), 3);
     expect(rate!.stdError).toBeGreaterThan(0);
     await checkRun(after.id, lab.tech.id);
-    const calibrated = await latestCheck(after.id);
+    const calibrated = await checkNow(after.id);
     expect(calibrated!.result.omegaSource).toBe("rate calibration");
     expect(calibrated!.result.calibrationId).toBe(cal.id);
     expect(calibrated!.result.verdict).toBe("agrees");

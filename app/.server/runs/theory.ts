@@ -5,6 +5,8 @@ import { codeVersion } from "../version";
 import { runTheoryCheck, type TheoryCheckInput, type TheoryCheckResult } from "~/lib/analysis/check";
 import { rpmToRadPerS } from "~/lib/analysis/units";
 import { setRunState } from "./service";
+import { checkHistoryValues, presentFingerprint } from "./provenance";
+import { RunHistory } from "../db";
 
 // The rate lookup lives with the other calibrations the check applies.
 export { rateInForce, type RateInForce } from "./applied-calibrations";
@@ -19,7 +21,7 @@ export function signedOmega(run: Pick<Run, "setRateRpm" | "direction">) {
 
 /** Builds the theory-check input for a run's longest track: the same function the CLI and the browser call. */
 export async function theoryInputFor(run: Run): Promise<{ input: TheoryCheckInput; track: Track } | null> {
-  const tracks = await Track.findAll({ where: { runId: run.id }, order: [["pointCount", "DESC"]], limit: 1 });
+  const tracks = await Track.findAll({ where: { runId: run.id }, order: [["pointCount", "DESC"], ["id", "ASC"]], limit: 1 });
   const setup = await ViewSetup.findOne({ where: { runId: run.id } });
   if (!tracks.length || !setup) return null;
   const table = await Equipment.findByPk(run.tableId);
@@ -53,15 +55,22 @@ export interface StoredCheck {
   createdAt: string;
 }
 
-/** Runs the theory check on the run's longest track and stores it with what is needed to reproduce it. */
+/**
+ * Runs the theory check on the run's longest track and stores it with what is needed to reproduce
+ * it, and the fingerprint of its inputs (see ./provenance). A signed-off run's check never changes;
+ * tracks made from other frames or another view setup than the present ones are not fitted.
+ */
 export async function checkRun(runId: number, userId: number | null) {
   const run = await Run.findByPk(runId);
-  if (!run) return null;
+  if (!run || run.state === "signed_off") return null;
   const prepared = await theoryInputFor(run);
   if (!prepared) return null;
+  const { fingerprint, inputs } = await presentFingerprint(run, prepared.track);
+  if (!fingerprint) return null;
   const result = runTheoryCheck(prepared.input);
   const { points, ...rest } = prepared.input;
-  const stored = { result, input: { ...rest, trackId: prepared.track.id, pointCount: points.length } };
+  const stored = { result, input: { ...rest, trackId: prepared.track.id, pointCount: points.length }, provenance: { fingerprint, inputs } };
+  const previous = await TheoryCheck.findOne({ where: { runId }, order: [["id", "DESC"]] });
   return sequelize.transaction(async (transaction) => {
     const check = await TheoryCheck.create(
       {
@@ -73,18 +82,19 @@ export async function checkRun(runId: number, userId: number | null) {
         result: JSON.stringify(stored),
         codeVersion,
         createdById: userId,
+        inputFingerprint: fingerprint,
       },
       { transaction },
     );
     await run.update({ verdict: result.verdict }, { transaction });
+    await RunHistory.create({ runId, userId, field: "theoryCheck", ...checkHistoryValues(previous, check, inputs) }, { transaction });
     if (run.state === "tracked") await setRunState(run, "checked", userId, transaction);
     return check;
   });
 }
 
-export async function latestCheck(runId: number): Promise<StoredCheck | null> {
-  const row = await TheoryCheck.findOne({ where: { runId }, order: [["id", "DESC"]] });
-  if (!row) return null;
+/** A stored check row as the run page reads it; which row is current is currentCheck's to say. */
+export function storedCheck(row: TheoryCheck): StoredCheck {
   const parsed = JSON.parse(row.result);
   return { id: row.id, result: parsed.result, input: parsed.input, codeVersion: row.codeVersion, createdAt: row.createdAt.toISOString() };
 }

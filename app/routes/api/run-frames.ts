@@ -5,6 +5,7 @@ import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { receiveFrameFile, UploadError } from "~/.server/uploads/frames";
 import { withMultipartUpload } from "~/.server/uploads/staging";
 import { Frame } from "~/.server/db";
+import { inputsChanged } from "~/.server/runs/rechecks";
 import { uploadLimits } from "~/lib/upload-limits";
 import { parseFrameTime } from "~/lib/video-frames";
 
@@ -48,6 +49,8 @@ export async function action({ request, params }: Route.ActionArgs) {
           return Response.json({ error: { code: "no_frames_accepted", message: result.rejected[0].message }, ...result }, { status: 422 });
         }
         const allDuplicates = result.accepted.length > 0 && result.accepted.every((a) => a.duplicate);
+        // New frames make a checked run's tracks and check out of date: track again.
+        if (!allDuplicates && result.accepted.length) await inputsChanged(run.id, user.id, "track");
         return Response.json(result, { status: allDuplicates ? 200 : 201 });
       } catch (err) {
         if (err instanceof UploadError) return apiError(err.status, err.code, `${file.name}: ${err.message}`);

@@ -3,7 +3,8 @@ import { migrate, Run, RunHistory, TheoryCheck, Track, TrackingJob, ViewSetup } 
 import { createApiToken, revokeApiToken } from "~/.server/auth/api-tokens";
 import { createRun } from "~/.server/runs/service";
 import { signOffRun } from "~/.server/runs/record";
-import { runInput, seedRunLab, type RunLab } from "~/.server/runs/testing";
+import { doneTrackingJob, runInput, seedRunLab, type RunLab } from "~/.server/runs/testing";
+import { presentFingerprint } from "~/.server/runs/provenance";
 import { loader as listLoader, action as createAction } from "./runs";
 import { loader as runLoader, action as runAction } from "./run";
 import { loader as csvLoader } from "./run-tracks-csv";
@@ -28,12 +29,24 @@ const get = (path: string, token: string | null) =>
 const send = (method: string, path: string, token: string, body: unknown) =>
   new Request(`http://localhost${path}`, { method, headers: { Authorization: `Bearer ${token}`, "Content-Type": "application/json" }, body: JSON.stringify(body) });
 
-async function checkedRun(overrides: Record<string, unknown> = {}) {
+const setupRow = (run: Run) => ({ runId: run.id, cameraId: lab.camera.id, centreXPx: 640, centreYPx: 360, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: 1000, scalePoints: null, mirrored: false, createdById: lab.technician.id });
+
+/**
+ * A checked run with one track and a stored check of known figures. The check carries the
+ * fingerprint of the run's inputs as checkRun records it, so it is the run's current check.
+ */
+async function checkedRun(overrides: Record<string, unknown> = {}, opts: { points?: number[][]; withSetup?: boolean; calibrationsInForce?: unknown } = {}) {
   const run = await createRun(runInput(lab, overrides), lab.technician);
-  const job = await TrackingJob.create({ runId: run.id, state: "done", error: null, requestedById: lab.technician.id, startedAt: new Date(), finishedAt: new Date() });
+  if (opts.calibrationsInForce) await run.update({ calibrationsInForce: JSON.stringify(opts.calibrationsInForce) });
+  if (opts.withSetup !== false) await ViewSetup.create(setupRow(run));
+  const job = await doneTrackingJob(run, lab.technician.id);
+  const points = opts.points ?? [[0, 700, 300, 0], [0.5, 650, 250, 15]];
+  const track = await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify(points), pointCount: points.length, detectedShare: 1, jitterPx: 0.2 });
   await run.update({ state: "checked", verdict: "agrees" });
-  await TheoryCheck.create({ runId: run.id, trackId: null, verdict: "agrees", fMeasuredPerS: 2.1, fPredictedPerS: 2.09, result: JSON.stringify({ result: { omega: 1.05, settings: { window: 9, polyOrder: 2, tolerance: 0.03 } }, input: { omegaSet: 1.047, cameraMode: overrides.cameraMode ?? "rotating", settings: { tolerance: 0.03 } } }), codeVersion: "test", createdById: lab.technician.id });
-  return { run, job };
+  const { fingerprint } = await presentFingerprint(run, track);
+  if (!fingerprint) throw new Error("the fixture's track is not from the run's present inputs");
+  await TheoryCheck.create({ runId: run.id, trackId: track.id, verdict: "agrees", fMeasuredPerS: 2.1, fPredictedPerS: 2.09, result: JSON.stringify({ result: { omega: 1.05, settings: { window: 9, polyOrder: 2, tolerance: 0.03 } }, input: { omegaSet: 1.047, cameraMode: overrides.cameraMode ?? "rotating", settings: { tolerance: 0.03 } } }), codeVersion: "test", createdById: lab.technician.id, inputFingerprint: fingerprint });
+  return { run, job, track };
 }
 
 beforeAll(async () => {
@@ -163,8 +176,10 @@ describe("GET and PATCH /api/v1/runs/:id", () => {
       equipment: { table: { name: "Bench table North" }, tank: { name: "Round tank 40" }, camera: { name: "Mast camera" } },
       frames: { count: 0 },
       latestTrackingJob: { id: job.id, state: "done" },
-      tracks: { count: 0 },
+      tracks: { count: 1 },
       latestTheoryCheck: { verdict: "agrees", fMeasuredPerS: 2.1 },
+      checkStatus: "current",
+      checkOutOfDate: null,
     });
     expect(body.history[0]).toMatchObject({ field: "created", who: { name: "Ada Brightwater" } });
     expect((await call(runLoader, get("/api/v1/runs/999999", techToken), { id: "999999" })).status).toBe(404);
@@ -200,8 +215,7 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
   });
 
   it("writes pixel columns always, and rotating-frame metres once the view setup has a scale", async () => {
-    const { run, job } = await checkedRun();
-    const track = await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify([[0, 700, 300, 0], [0.5, 650, 250, 15]]), pointCount: 2, detectedShare: 1, jitterPx: 0.2 });
+    const { run, track } = await checkedRun({}, { withSetup: false, points: [[0, 700, 300, 0], [0.5, 650, 250, 15]] });
     const csv = async () => {
       const res = await call(csvLoader, get(`/api/v1/runs/${run.id}/tracks.csv`, techToken), { id: String(run.id) });
       expect(res.status).toBe(200);
@@ -211,7 +225,7 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
     expect(await csv()).toEqual(["track_id,t_s,x_px,y_px", `${track.id},0,700,300`, `${track.id},0.5,650,250`]);
 
     // Co-rotating camera, centre (640, 360), 1000 px/m: x = (col − 640)/1000, y = −(row − 360)/1000.
-    await ViewSetup.create({ runId: run.id, cameraId: lab.camera.id, centreXPx: 640, centreYPx: 360, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: 1000, scalePoints: null, mirrored: false, createdById: lab.technician.id });
+    await ViewSetup.create(setupRow(run));
     const lines = await csv();
     expect(lines[0]).toBe("track_id,t_s,x_px,y_px,x_m,y_m");
     const [, , , , xm, ym] = lines[2].split(",").map(Number);
@@ -220,10 +234,8 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
   });
 
   it("de-rotates a lab-fixed camera's positions by −Ω(t − t₀) with the checked rate", async () => {
-    const { run, job } = await checkedRun({ cameraMode: "lab" });
     // Ω = 1.05 rad/s from the stored check; after 0.5 s the frame has turned 0.525 rad.
-    await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify([[0, 740, 360, 0], [0.5, 740, 360, 15]]), pointCount: 2, detectedShare: 1, jitterPx: 0 });
-    await ViewSetup.create({ runId: run.id, cameraId: lab.camera.id, centreXPx: 640, centreYPx: 360, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: 1000, scalePoints: null, mirrored: false, createdById: lab.technician.id });
+    const { run } = await checkedRun({ cameraMode: "lab" }, { points: [[0, 740, 360, 0], [0.5, 740, 360, 15]] });
     const text = await (await call(csvLoader, get(`/api/v1/runs/${run.id}/tracks.csv`, techToken), { id: String(run.id) })).text();
     const [, , , , xm, ym] = text.trim().split("\r\n")[2].split(",").map(Number);
     expect(xm).toBeCloseTo(0.1 * Math.cos(-0.525), 8);
@@ -231,8 +243,7 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
   });
 
   it("exports the run with conditions, equipment, calibration ids, settings, result and code version", async () => {
-    const { run } = await checkedRun();
-    await run.update({ calibrationsInForce: JSON.stringify([{ id: 41, kind: "rate" }, { id: 42, kind: "scale" }]) });
+    const { run } = await checkedRun({}, { calibrationsInForce: [{ id: 41, kind: "rate" }, { id: 42, kind: "scale" }] });
     const res = await call(exportLoader, get(`/api/v1/runs/${run.id}/export.json`, instructorToken), { id: String(run.id) });
     expect(res.status).toBe(200);
     const body = await res.json();

@@ -118,7 +118,7 @@ const columns = col.columns([
   col.accessor("tracer", { header: labelOf.tracer, enableSorting: false, cell: (info) => tracerLabels[info.getValue()] }),
   col.accessor("frameCount", { header: labelOf.frameCount }),
   col.accessor("state", { header: labelOf.state, cell: (info) => <RunStateTag state={info.getValue()} /> }),
-  col.accessor("verdict", { header: labelOf.verdict, cell: (info) => <VerdictTag verdict={info.getValue()} /> }),
+  col.accessor("verdict", { header: labelOf.verdict, cell: (info) => <VerdictTag verdict={info.getValue()} outOfDate={info.row.original.state === "checked"} /> }),
   col.accessor("purpose", {
     header: labelOf.purpose,
     enableSorting: false,

@@ -4,6 +4,7 @@ import type { Route } from "./+types/report";
 import { requireUser } from "~/.server/auth/permissions";
 import { getRunDetail, getSignOffView, getRunHistory } from "~/.server/runs/record";
 import { Run } from "~/.server/db";
+import { currentCheck } from "~/.server/runs/provenance";
 import type { TheoryCheckResult } from "~/lib/analysis/check";
 import { TheoryPlots } from "~/components/plots/theory-plots";
 import { CalibrationsAppliedList } from "~/components/runs/calibrations-applied-list";
@@ -23,7 +24,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const runId = Number(params.id);
   const model = Number.isInteger(runId) && runId > 0 ? await Run.findByPk(runId) : null;
   if (!model) throw data("That run does not exist.", { status: 404 });
-  const [run, signOff, history] = await Promise.all([getRunDetail(runId, { full: true }), getSignOffView(model, user), getRunHistory(runId)]);
+  const current = await currentCheck(model);
+  const [run, signOff, history] = await Promise.all([getRunDetail(runId, { full: true, current }), getSignOffView(model, user, current), getRunHistory(runId)]);
   if (!run) throw data("That run does not exist.", { status: 404 });
   const check = run.latestTheoryCheck as (NonNullable<typeof run.latestTheoryCheck> & { result?: { result?: TheoryCheckResult } | null }) | null;
   // The report needs the check's figures, not its plotted series: keep the page light.
@@ -72,6 +74,9 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
 
       <section className="mt-4">
         <h2 className="text-xl">Verdict</h2>
+        {run.checkOutOfDate ? (
+          <p className="mt-2 font-bold">The theory check is out of date (changed since: {run.checkOutOfDate.because.join(", ")}); no verdict until a new check is made.</p>
+        ) : null}
         <div className="mt-2 flex flex-wrap items-center gap-3 text-lg">
           <VerdictTag verdict={check?.verdict ?? null} />
           {r?.reason ? <span>{r.reason}</span> : null}

@@ -19,6 +19,7 @@ import { SignOffPanel } from "~/components/run-record/sign-off-panel";
 import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { RunExportLinks } from "~/components/run-record/run-export-links";
 import { getRunRecordParts } from "~/.server/runs/record";
+import { currentCheck } from "~/.server/runs/provenance";
 import { calibrationKindLabels } from "~/lib/calibrations";
 import { flaggedCalibrations } from "~/lib/calibrations-applied";
 
@@ -27,7 +28,8 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? runLab
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const run = await loadRun(request, params.id);
-  const [page, settings, record] = await Promise.all([runPageData(run, user), getLabSettings(), getRunRecordParts(run, user)]);
+  const current = await currentCheck(run);
+  const [page, settings, record] = await Promise.all([runPageData(run, user, current), getLabSettings(), getRunRecordParts(run, user, current)]);
   return { ...page, record, user, spinUpTimesToWait: settings.spinUpTimesToWait };
 }
 
@@ -58,7 +60,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
       <PageHeader
         title={
           <span className="flex flex-wrap items-center gap-3">
-            {runLabel(run.id)} <RunStateTag state={run.state as RunState} /> <VerdictTag verdict={run.verdict} />
+            {runLabel(run.id)} <RunStateTag state={run.state as RunState} /> <VerdictTag verdict={run.verdict} outOfDate={Boolean(d.checkOutOfDate)} />
           </span>
         }
         subtitle={`${run.purpose} · logged by ${d.technician?.name ?? "?"} on ${formatDateTime(run.createdAt)}`}
@@ -70,6 +72,12 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         }
       />
       <SupersedesLinks supersedes={d.record.links.supersedes} supersededBy={d.record.links.supersededBy} />
+      {d.checkOutOfDate ? (
+        <Notice kind="caution" title="The theory check is out of date">
+          Changed since the last check: {d.checkOutOfDate.because.join(", ")}. Its verdict is withdrawn and the run cannot be signed off until a new check is made.{" "}
+          {d.checkOutOfDate.recheckPending ? "Tankside is checking the run again now; reload to see the new verdict." : "Track the run again to get a check made from it as it is now."}
+        </Notice>
+      ) : null}
       {run.state === "signed_off" ? <Notice kind="info" title="Signed off: this run is read-only">A correction is logged as a new run linked to this one.</Notice> : null}
       {flaggedCalibrations(d.check?.result.calibrationsApplied).map((c) => (
         <Notice key={`flag-${c.kind}-${c.calibrationId}`} kind="caution" title={`The ${calibrationKindLabels[c.kind].toLowerCase()} in force disagrees with this run's view setup`}>

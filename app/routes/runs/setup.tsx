@@ -6,6 +6,7 @@ import { Frame, Run, ViewSetup } from "~/.server/db";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { scaleCalibrationOfRun } from "~/.server/runs/applied-calibrations";
 import { formatNumber } from "~/lib/format";
+import { saveViewSetup } from "~/.server/runs/view-setup";
 import { viewSetupSchema } from "~/lib/validation/view-setup";
 import { runLabel } from "~/lib/runs";
 import { Button, ButtonLink } from "~/components/ui/button";
@@ -89,9 +90,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     mirrored: v.mirrored,
     createdById: user.id,
   };
-  const existing = await ViewSetup.findOne({ where: { runId: run.id } });
-  if (existing) await existing.update(values);
-  else await ViewSetup.create(values);
+  await saveViewSetup(run, values, user.id);
   return redirect(`/runs/${run.id}#tracking`);
 }
 

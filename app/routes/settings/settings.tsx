@@ -4,6 +4,7 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/settings";
 import { requireRole } from "~/.server/auth/permissions";
 import { getLabSettings, setLabSetting } from "~/.server/settings";
+import { refitUnsignedRuns } from "~/.server/runs/rechecks";
 import { labSettingsSchema } from "~/lib/validation/settings";
 import { settingDefaults, settingLimits, type SettingKey } from "~/lib/settings";
 import { Button } from "~/components/ui/button";
@@ -19,11 +20,14 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request }: Route.ActionArgs) {
-  await requireRole(request, "lab_manager");
+  const user = await requireRole(request, "lab_manager");
   const submission = parseWithZod(await request.formData(), { schema: labSettingsSchema });
   if (submission.status !== "success") return data({ result: submission.reply(), saved: false }, { status: 400 });
+  const before = await getLabSettings();
   // Every value is checked before any is written, so a bad entry changes nothing.
   for (const [key, value] of Object.entries(submission.value) as [SettingKey, number][]) await setLabSetting(key, value);
+  // The tolerance decides verdicts: every unsigned run with a check is fitted again under the new one.
+  if ((await getLabSettings()).checkTolerancePct !== before.checkTolerancePct) await refitUnsignedRuns(user.id);
   return { result: submission.reply(), saved: true };
 }
 

@@ -91,6 +91,8 @@ export class TrackingJob extends Model<InferAttributes<TrackingJob>, InferCreati
   declare finishedAt: Date | null;
   declare attempts: CreationOptional<number>;
   declare resumeFromFrame: CreationOptional<number>;
+  /** sha256 of what was tracked (frames, view setup, tracer, frame times). */
+  declare inputFingerprint: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -107,6 +109,7 @@ TrackingJob.init(
     finishedAt: { type: DataTypes.DATE, allowNull: true },
     attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
     resumeFromFrame: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+    inputFingerprint: { type: DataTypes.STRING(64), allowNull: true },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },
@@ -175,6 +178,8 @@ export class TheoryCheck extends Model<InferAttributes<TheoryCheck>, InferCreati
   declare result: string;
   declare codeVersion: string;
   declare createdById: number | null;
+  /** sha256 of the canonical inputs the check was computed from; null when they could not be vouched for. */
+  declare inputFingerprint: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
 }
 TheoryCheck.init(
@@ -188,6 +193,7 @@ TheoryCheck.init(
     result: { type: DataTypes.TEXT, allowNull: false },
     codeVersion: { type: DataTypes.STRING(40), allowNull: false },
     createdById: { type: DataTypes.INTEGER, allowNull: true },
+    inputFingerprint: { type: DataTypes.STRING(64), allowNull: true },
     createdAt: DataTypes.DATE,
   },
   { sequelize, tableName: "theory_checks", underscored: true, updatedAt: false },

@@ -1,0 +1,166 @@
+import crypto from "node:crypto";
+import { Equipment, Frame, Run, TheoryCheck, Track, TrackingJob, ViewSetup } from "../db";
+import { getLabSettings } from "../settings";
+import { calibrationSnapshot } from "./service";
+
+/**
+ * What a theory check is computed from, and the one answer to "is this run's check current?".
+ * The inputs are written as canonical JSON (keys sorted) and hashed; a check stores the hash and
+ * the inputs themselves, and it is current only while the run's present inputs hash to the same
+ * value. Every reader of a run's check (run page, report, export, API, sign-off) asks currentCheck.
+ */
+
+function canonical(value: unknown): string {
+  if (value === undefined) return "null";
+  if (value === null || typeof value !== "object") return JSON.stringify(value);
+  if (value instanceof Date) return JSON.stringify(value.toISOString());
+  if (Array.isArray(value)) return `[${value.map(canonical).join(",")}]`;
+  const entries = Object.entries(value as Record<string, unknown>).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
+  return `{${entries.map(([k, v]) => `${JSON.stringify(k)}:${canonical(v)}`).join(",")}}`;
+}
+
+export const sha256 = (value: unknown) => crypto.createHash("sha256").update(canonical(value)).digest("hex");
+
+/** What tracking reads: the frames (content and times), the view setup, the tracer and the frame rate. */
+export async function trackingInputs(run: Run) {
+  const [frames, setup] = await Promise.all([
+    Frame.findAll({ where: { runId: run.id }, attributes: ["id", "position", "sha256", "timeS"], order: [["position", "ASC"]] }),
+    ViewSetup.findOne({ where: { runId: run.id } }),
+  ]);
+  return {
+    frames: { count: frames.length, digest: sha256(frames.map((f) => [f.id, f.position, f.sha256, f.timeS])) },
+    viewSetup: setup
+      ? {
+          centre: [setup.centreXPx, setup.centreYPx],
+          tankEdge: [setup.tankEdgeXPx, setup.tankEdgeYPx, setup.tankEdgeRPx],
+          scalePxPerM: setup.scalePxPerM,
+          mirrored: setup.mirrored,
+        }
+      : null,
+    tracer: run.tracer,
+    frameRateFps: run.frameRateFps,
+    cameraId: run.cameraId,
+  };
+}
+
+export async function trackingFingerprint(run: Run) {
+  return sha256(await trackingInputs(run));
+}
+
+/**
+ * Everything the fit reads beside the track: the run's conditions, the table's flatness, the
+ * whole frozen calibration snapshot (so a calibration of any kind the fit comes to apply is
+ * already covered) and the lab's tolerance.
+ */
+export async function checkInputs(run: Run, track: Pick<Track, "id" | "pointCount" | "jobId"> | null) {
+  const [settings, table] = await Promise.all([getLabSettings(), Equipment.findByPk(run.tableId, { attributes: ["id", "flatTable"] })]);
+  return {
+    conditions: {
+      setRateRpm: run.setRateRpm,
+      direction: run.direction,
+      cameraMode: run.cameraMode,
+      rateReachedAt: run.rateReachedAt?.toISOString() ?? null,
+      tableId: run.tableId,
+      flatTable: Boolean(table?.flatTable),
+    },
+    calibrations: calibrationSnapshot(run),
+    settings: { checkTolerancePct: settings.checkTolerancePct },
+    tracking: await trackingInputs(run),
+    track: track ? { id: track.id, pointCount: track.pointCount, jobId: track.jobId } : null,
+  };
+}
+export type CheckInputs = Awaited<ReturnType<typeof checkInputs>>;
+
+/** The words a person knows for each input, in the order they are listed. */
+const inputWords: [path: string, words: string][] = [
+  ["conditions.setRateRpm", "set rate"],
+  ["conditions.direction", "direction"],
+  ["conditions.cameraMode", "camera mode"],
+  ["conditions.rateReachedAt", "rate reached time"],
+  ["conditions.tableId", "table"],
+  ["conditions.flatTable", "table's flatness"],
+  ["calibrations", "calibrations in force"],
+  ["settings.checkTolerancePct", "verdict tolerance"],
+  ["tracking.frames", "frames"],
+  ["tracking.viewSetup", "view setup"],
+  ["tracking.tracer", "tracer"],
+  ["tracking.frameRateFps", "frame rate"],
+  ["tracking.cameraId", "camera"],
+  ["track", "track"],
+];
+
+function at(value: unknown, path: string): unknown {
+  return path.split(".").reduce<unknown>((v, k) => (v && typeof v === "object" ? (v as Record<string, unknown>)[k] : undefined), value);
+}
+
+/** Which inputs differ between two sets, in words ("set rate", "view setup"); all of them when the old set is unknown. */
+export function changedInputs(before: unknown, after: CheckInputs): string[] {
+  if (!before || typeof before !== "object") return ["inputs not recorded with the earlier check"];
+  // The track follows from the tracking inputs: name it only when nothing upstream of it changed.
+  const changed = inputWords.filter(([path]) => canonical(at(before, path)) !== canonical(at(after, path))).map(([, w]) => w);
+  return changed.length > 1 ? changed.filter((w) => w !== "track") : changed;
+}
+
+async function longestTrack(runId: number) {
+  return Track.findOne({ where: { runId }, attributes: ["id", "pointCount", "jobId"], order: [["pointCount", "DESC"], ["id", "ASC"]] });
+}
+
+/**
+ * The fingerprint a check of `track` (the longest, by default) made now would carry, or null when
+ * that track was made from other frames or another view setup than the present ones: a fit of it
+ * vouches for nothing.
+ */
+export async function presentFingerprint(run: Run, track?: Pick<Track, "id" | "pointCount" | "jobId">): Promise<{ fingerprint: string | null; inputs: CheckInputs }> {
+  const used = track ?? (await longestTrack(run.id));
+  const inputs = await checkInputs(run, used);
+  if (!used) return { fingerprint: null, inputs };
+  const job = await TrackingJob.findByPk(used.jobId, { attributes: ["id", "inputFingerprint"] });
+  const tracksArePresent = job?.inputFingerprint === sha256(inputs.tracking);
+  return { fingerprint: tracksArePresent ? sha256(inputs) : null, inputs };
+}
+
+/** The run history's entry for a new check: old verdict → new verdict, and which inputs changed. */
+export function checkHistoryValues(previous: TheoryCheck | null, check: Pick<TheoryCheck, "id" | "verdict">, inputs: CheckInputs) {
+  if (!previous) return { oldValue: null, newValue: `#${check.id} ${check.verdict}` };
+  const changed = changedInputs(recordedInputs(previous), inputs);
+  const why = changed.length ? `re-checked after a change of ${changed.join(", ")}` : "checked again, nothing changed";
+  return { oldValue: `#${previous.id} ${previous.verdict}`, newValue: `#${check.id} ${check.verdict} (${why})` };
+}
+
+export type CheckStatus = "current" | "out_of_date" | "missing";
+
+export interface CurrentCheck {
+  status: CheckStatus;
+  /** The check to show and act on: set only when status is "current". */
+  check: TheoryCheck | null;
+  /** The newest check made, current or not. */
+  latest: TheoryCheck | null;
+  /** When out of date: which inputs changed since the latest check, in words. */
+  changed: string[];
+}
+
+/** The inputs a stored check recorded (see checkRun), or null for a check made before they were kept. */
+export function recordedInputs(check: Pick<TheoryCheck, "result">): unknown {
+  try {
+    return (JSON.parse(check.result) as { provenance?: { inputs?: unknown } }).provenance?.inputs ?? null;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * The run's current theory check: the latest one, and only when it was computed from the run's
+ * present inputs. A signed-off run keeps the check it was signed with: its inputs cannot change
+ * any more, and a later lab setting does not reopen a signed verdict.
+ */
+export async function currentCheck(runOrId: Run | number): Promise<CurrentCheck> {
+  const run = typeof runOrId === "number" ? await Run.findByPk(runOrId) : runOrId;
+  if (!run) return { status: "missing", check: null, latest: null, changed: [] };
+  const latest = await TheoryCheck.findOne({ where: { runId: run.id }, order: [["id", "DESC"]] });
+  if (!latest) return { status: "missing", check: null, latest: null, changed: [] };
+  if (run.state === "signed_off") return { status: "current", check: latest, latest, changed: [] };
+  const { fingerprint, inputs } = await presentFingerprint(run);
+  if (fingerprint && latest.inputFingerprint === fingerprint) return { status: "current", check: latest, latest, changed: [] };
+  const changed = changedInputs(recordedInputs(latest), inputs);
+  return { status: "out_of_date", check: null, latest, changed: changed.length ? changed : ["tracks not made from the present frames and view setup"] };
+}

@@ -151,8 +151,8 @@ export default function Account({ loaderData }: Route.ComponentProps) {
             <div className="flex-1">
               <TextField label="Token name" name="label" placeholder="e.g. term export script" maxLength={80} />
             </div>
-            <div className="w-40">
-              <TextField label="Works for" name="expiresInDays" type="number" min={1} max={API_TOKEN_MAX_DAYS} step={1} defaultValue={String(API_TOKEN_DEFAULT_DAYS)} unit="days" hint={`At most ${API_TOKEN_MAX_DAYS}.`} />
+            <div className="w-48">
+              <TextField label={`Works for (1–${API_TOKEN_MAX_DAYS})`} name="expiresInDays" type="number" min={1} max={API_TOKEN_MAX_DAYS} step={1} defaultValue={String(API_TOKEN_DEFAULT_DAYS)} unit="days" />
             </div>
             <Button type="submit">Create token</Button>
           </Form>

@@ -15,22 +15,21 @@ describe("new password length (OWASP ASVS 4.0.3 V2.1.1, V2.1.2)", () => {
 
 describe("new password guessability (OWASP ASVS 4.0.3 V2.1.7, zxcvbn-ts)", () => {
   it.each([
-    ["correcthorsebatterystaple", /too easy to guess/],
+    ["correcthorsebatterystaple", /well-known example passphrase/],
     ["Password12345!", /commonly used password/],
     ["P@ssw0rd12345", /predictable letter substitutions/],
     ["1234567890ab", /too easy to guess/],
     ["qwertyuiop12", /too easy to guess/],
     ["aaaaaaaaaaaa", /Repeated characters/],
     ["abcdefghijkl", /sequences/],
-    ["tankside-demo", /too easy to guess/],
   ])("refuses the common or patterned %j and says why", (password, why) => {
     expect(passwordProblem(password, jane)).toMatch(why);
   });
 
-  it.each(["tankside-lab-2026", "jane.doe@tankside.example", "jane.doe.tankside", "janedoe@tankside", "JaneDoe2026!!", "janedoe-2026-lab"])(
+  it.each(["tankside-demo", "tankside-lab-2026", "jane.doe@tankside.example", "jane.doe.tankside", "janedoe@tankside", "JaneDoe2026!!", "janedoe-2026-lab"])(
     "refuses %j, built on the person's e-mail, name or the lab's name",
     (password) => {
-      expect(passwordProblem(password, jane)).toMatch(/too easy to guess|your name, your e-mail address or the lab's name/);
+      expect(passwordProblem(password, jane)).toMatch(/built on your name, your e-mail address or the lab.s name/);
     },
   );
 

@@ -70,6 +70,18 @@ export async function clearSignInFailures(email: string) {
   await signInThrottles.account.clear(email);
 }
 
+/**
+ * A route's `headers` export for throttled actions. React Router passes only Set-Cookie from an
+ * action's data() to the response unless the route says otherwise, so the blocked answer's
+ * Retry-After never reached the client; this keeps the parent's headers and adds that one.
+ */
+export function keepRetryAfter({ parentHeaders, actionHeaders }: { parentHeaders: Headers; actionHeaders: Headers }) {
+  const out = new Headers(parentHeaders);
+  const wait = actionHeaders.get("Retry-After");
+  if (wait) out.set("Retry-After", wait);
+  return out;
+}
+
 /** The blocked answer's message: whole minutes, rounded up, as a person reads a clock. */
 export function throttleMessage(t: Throttle) {
   const minutes = Math.ceil(t.retryAfterSeconds / 60);

@@ -7,7 +7,7 @@ import { getSession } from "~/.server/auth/session";
 import { changeOwnPassword, PeopleError } from "~/.server/people";
 import { issueApiToken, listApiTokens, revokeApiToken } from "~/.server/auth/api-tokens";
 import { passwordProblem } from "~/.server/auth/password-strength";
-import { currentPasswordThrottle, throttleMessage } from "~/.server/auth/rate-limit";
+import { currentPasswordThrottle, keepRetryAfter, throttleMessage } from "~/.server/auth/rate-limit";
 import { changePasswordSchema } from "~/lib/validation/people";
 import { API_TOKEN_DEFAULT_DAYS, API_TOKEN_MAX_DAYS, apiTokenSchema } from "~/lib/validation/api-tokens";
 import { roleLabels } from "~/lib/roles";
@@ -19,9 +19,9 @@ import { formatDateTime } from "~/lib/format";
 
 export const meta: Route.MetaFunction = () => [{ title: "Your account · Tankside" }];
 
-/** Keeps the blocked answer's Retry-After: React Router passes only Set-Cookie on by default. */
-export function headers({ actionHeaders, loaderHeaders }: Route.HeadersArgs) {
-  return actionHeaders.has("Retry-After") ? actionHeaders : loaderHeaders;
+/** The throttled answer's Retry-After must reach the client (see keepRetryAfter). */
+export function headers(args: Route.HeadersArgs) {
+  return keepRetryAfter(args);
 }
 
 export async function loader({ request }: Route.LoaderArgs) {

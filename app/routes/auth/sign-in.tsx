@@ -5,7 +5,7 @@ import type { Route } from "./+types/sign-in";
 import { authenticator, SignInError, SIGN_IN_FAILED } from "~/.server/auth/authenticator";
 import { getCurrentUser, safeRedirectTo } from "~/.server/auth/permissions";
 import { startSession } from "~/.server/auth/session";
-import { checkSignInThrottle, clearSignInFailures, clientAddressOf, recordSignInFailure, throttleMessage } from "~/.server/auth/rate-limit";
+import { checkSignInThrottle, clearSignInFailures, clientAddressOf, keepRetryAfter, recordSignInFailure, throttleMessage } from "~/.server/auth/rate-limit";
 import { env } from "~/.server/env";
 import { signInSchema } from "~/lib/validation/people";
 import { Button } from "~/components/ui/button";
@@ -15,12 +15,9 @@ import { TanksideMark } from "~/components/app-shell";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Tankside" }];
 
-/**
- * React Router passes only Set-Cookie from an action to the response unless the route says which
- * headers to keep: without this, the blocked answer's Retry-After never reached the client.
- */
-export function headers({ actionHeaders, loaderHeaders }: Route.HeadersArgs) {
-  return actionHeaders.has("Retry-After") ? actionHeaders : loaderHeaders;
+/** The throttled answer's Retry-After must reach the client (see keepRetryAfter). */
+export function headers(args: Route.HeadersArgs) {
+  return keepRetryAfter(args);
 }
 
 export async function loader({ request }: Route.LoaderArgs) {

@@ -67,6 +67,7 @@ export function storageWith(cookie: Cookie) {
         // The absolute lifetime counts from sign-in; later commits never extend it.
         expiresAt: new Date(now.getTime() + SESSION_ABSOLUTE_HOURS * HOUR_MS),
         lastSeenAt: now,
+        createdAt: now,
       });
       return id;
     },

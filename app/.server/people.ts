@@ -4,7 +4,7 @@ import type { AuthTokenPurpose } from "./db/models/auth-token";
 import { env } from "./env";
 import { hashPassword, verifyPassword } from "./auth/password";
 import { hashToken, newSecretToken } from "./auth/tokens";
-import { endAllSessionsOf } from "./auth/session";
+import { afterDeactivation, afterPasswordChange } from "./auth/credential-changes";
 import { sendMail, type MailOutcome } from "./mail/send";
 import { roleLabels, type Role } from "~/lib/roles";
 import { INVITATION_HOURS, RESET_MINUTES } from "~/lib/validation/people";
@@ -113,7 +113,7 @@ export async function setPasswordWithToken(token: string, purpose: AuthTokenPurp
     await user.update({ passwordHash, passwordChangedAt: new Date() }, { transaction });
     return user;
   }).then(async (user) => {
-    await endAllSessionsOf(user.id);
+    await afterPasswordChange(user, { via: purpose === "password_reset" ? "reset" : "invitation" });
     return user;
   });
 }
@@ -149,7 +149,7 @@ export async function changeOwnPassword(userId: number, current: string, next: s
     throw new PeopleError("Your current password is not right.", "current");
   }
   await user.update({ passwordHash: await hashPassword(next), passwordChangedAt: new Date() });
-  await endAllSessionsOf(user.id, keepSessionId);
+  await afterPasswordChange(user, { via: "account", keepSessionId });
 }
 
 /** Managers who can actually sign in: active and with a password chosen (an unanswered invitation does not count). */
@@ -183,7 +183,7 @@ export async function setActive(userId: number, active: boolean) {
     }
     await user.update({ active }, { transaction });
   });
-  if (!active) await endAllSessionsOf(userId);
+  if (!active) await afterDeactivation(userId);
 }
 
 /**

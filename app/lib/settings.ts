@@ -1,3 +1,10 @@
+/**
+ * A session ends this many hours after sign-in however busy it is (OWASP ASVS 4.0.3 V3.3.2, level 2:
+ * re-authentication at least every 12 hours). Fixed, not a lab setting: it is the ceiling the
+ * idle timeout below lives under.
+ */
+export const SESSION_ABSOLUTE_HOURS = 12;
+
 /** The lab's own rules, kept as settings a lab manager changes; the values here are the defaults. */
 export const settingDefaults = {
   /** Verdict tolerance: |f measured − f predicted| within this share of |f predicted| agrees. */
@@ -10,6 +17,8 @@ export const settingDefaults = {
   timingCheckIntervalDays: 365,
   /** Reminder e-mail this many days before a calibration falls due. */
   calibrationReminderDays: 14,
+  /** A signed-in session ends after this many hours without a request (OWASP ASVS 4.0.3 V3.3.2). */
+  sessionIdleHours: 8,
 } as const;
 
 export type LabSettings = { -readonly [K in keyof typeof settingDefaults]: number };
@@ -22,4 +31,6 @@ export const settingLimits: Record<SettingKey, { min: number; max: number; label
   scaleCalibrationIntervalDays: { min: 1, max: 3650, label: "Scale calibration interval", unit: "days" },
   timingCheckIntervalDays: { min: 1, max: 3650, label: "Timing check interval", unit: "days" },
   calibrationReminderDays: { min: 0, max: 365, label: "Reminder before a calibration is due", unit: "days" },
+  // At most the absolute lifetime: a longer idle timeout could never be reached.
+  sessionIdleHours: { min: 0.25, max: SESSION_ABSOLUTE_HOURS, label: "Sign out after inactivity", unit: "hours" },
 };

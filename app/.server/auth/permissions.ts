@@ -23,10 +23,8 @@ export async function getCurrentUser(request: Request): Promise<CurrentUser | nu
   if (auth) {
     if (!isApiRequest(request)) return null;
     const user = await userFromBearerToken(auth);
-    if (user === "invalid") {
-      throw apiError(401, "invalid_token", "That API token is wrong, revoked or expired.");
-    }
-    return user && user.active ? toCurrent(user) : null;
+    if ("refused" in user) throw apiError(401, user.refused, user.message);
+    return toCurrent(user);
   }
   const session = await getSession(request);
   const userId = session.get("userId");

@@ -1,19 +1,32 @@
 import crypto from "node:crypto";
-import { createCookie, createSessionStorage, redirect } from "react-router";
+import { createCookie, createSessionStorage, redirect, type Cookie } from "react-router";
 import { Op } from "sequelize";
-import { Session } from "../db";
+import { LabSetting, Session } from "../db";
 import { env } from "../env";
+import { SESSION_ABSOLUTE_HOURS, settingDefaults } from "~/lib/settings";
 
-const SESSION_DAYS = 14;
+const HOUR_MS = 3600 * 1000;
+/** Last-seen is written at most this often: a page with many requests does not write on each one. */
+export const LAST_SEEN_WRITE_MS = 60_000;
 
-export const sessionCookie = createCookie("tankside_session", {
-  httpOnly: true,
-  sameSite: "lax",
-  path: "/",
-  secure: env.cookieSecure,
-  secrets: [env.sessionSecret],
-  maxAge: SESSION_DAYS * 24 * 3600,
-});
+/**
+ * The session cookie. Behind HTTPS (COOKIE_SECURE=1) it carries the `__Host-` prefix, which tells
+ * the browser to accept it only with Secure, Path=/ and no Domain, so no sibling host can plant or
+ * overwrite it (OWASP ASVS 4.0.3 V3.4.1, V3.4.4; RFC 6265bis §4.1.3.2). HttpOnly and SameSite=Lax
+ * cover V3.4.2 and V3.4.3. Plain HTTP on a bench PC cannot use the prefix.
+ */
+export function makeSessionCookie(secure: boolean, secret = env.sessionSecret): Cookie {
+  return createCookie(secure ? "__Host-tankside_session" : "tankside_session", {
+    httpOnly: true,
+    sameSite: "lax",
+    path: "/",
+    secure,
+    secrets: [secret],
+    maxAge: SESSION_ABSOLUTE_HOURS * 3600,
+  });
+}
+
+export const sessionCookie = makeSessionCookie(env.cookieSecure);
 
 export interface SessionData {
   userId: number;
@@ -22,42 +35,65 @@ export interface FlashData {
   notice: string;
 }
 
+/** The lab's idle timeout in milliseconds, read on each request so a change applies at once. */
+async function idleTimeoutMs(): Promise<number> {
+  const row = await LabSetting.findByPk("sessionIdleHours");
+  const hours = row ? Number(row.value) : NaN;
+  return (Number.isFinite(hours) && hours > 0 ? hours : settingDefaults.sessionIdleHours) * HOUR_MS;
+}
+
+/**
+ * Why a stored session may no longer be used, or null. Both limits are checked here on every
+ * request, on the server, whatever the cookie says (OWASP ASVS 4.0.3 V3.3.2).
+ */
+export function sessionEnded(row: Pick<Session, "createdAt" | "expiresAt" | "lastSeenAt" | "updatedAt">, idleMs: number, now = Date.now()) {
+  if (row.expiresAt.getTime() <= now) return "expired";
+  if (row.createdAt.getTime() + SESSION_ABSOLUTE_HOURS * HOUR_MS <= now) return "expired";
+  if ((row.lastSeenAt ?? row.updatedAt).getTime() + idleMs <= now) return "idle";
+  return null;
+}
+
 /** Sessions live in the database, so signing out or deactivating a person ends them at once. */
-export const sessionStorage = createSessionStorage<SessionData, FlashData>({
-  cookie: sessionCookie,
-  async createData(data, expires) {
-    const id = crypto.randomBytes(32).toString("hex");
-    await Session.create({
-      id,
-      userId: data.userId ?? null,
-      data: JSON.stringify(data),
-      expiresAt: expires ?? new Date(Date.now() + SESSION_DAYS * 24 * 3600 * 1000),
-    });
-    return id;
-  },
-  async readData(id) {
-    const row = await Session.findByPk(id);
-    if (!row) return null;
-    if (row.expiresAt.getTime() < Date.now()) {
-      await row.destroy();
-      return null;
-    }
-    return JSON.parse(row.data);
-  },
-  async updateData(id, data, expires) {
-    await Session.update(
-      {
-        data: JSON.stringify(data),
+export function storageWith(cookie: Cookie) {
+  return createSessionStorage<SessionData, FlashData>({
+    cookie,
+    async createData(data) {
+      const id = crypto.randomBytes(32).toString("hex");
+      const now = new Date();
+      await Session.create({
+        id,
         userId: data.userId ?? null,
-        expiresAt: expires ?? new Date(Date.now() + SESSION_DAYS * 24 * 3600 * 1000),
-      },
-      { where: { id } },
-    );
-  },
-  async deleteData(id) {
-    await Session.destroy({ where: { id } });
-  },
-});
+        data: JSON.stringify(data),
+        // The absolute lifetime counts from sign-in; later commits never extend it.
+        expiresAt: new Date(now.getTime() + SESSION_ABSOLUTE_HOURS * HOUR_MS),
+        lastSeenAt: now,
+        createdAt: now,
+      });
+      return id;
+    },
+    async readData(id) {
+      const row = await Session.findByPk(id);
+      if (!row) return null;
+      const now = Date.now();
+      if (sessionEnded(row, await idleTimeoutMs(), now)) {
+        await row.destroy();
+        return null;
+      }
+      if (!row.lastSeenAt || now - row.lastSeenAt.getTime() >= LAST_SEEN_WRITE_MS) {
+        await Session.update({ lastSeenAt: new Date(now) }, { where: { id } });
+      }
+      return JSON.parse(row.data);
+    },
+    async updateData(id, data) {
+      await Session.update({ data: JSON.stringify(data), userId: data.userId ?? null, lastSeenAt: new Date() }, { where: { id } });
+    },
+    async deleteData(id) {
+      await Session.destroy({ where: { id } });
+    },
+  });
+}
+
+export const sessionStorage = storageWith(sessionCookie);
 
 export function getSession(request: Request) {
   return sessionStorage.getSession(request.headers.get("Cookie"));
@@ -83,6 +119,8 @@ export async function endAllSessionsOf(userId: number, exceptSessionId?: string)
   });
 }
 
+/** Removes sessions past their absolute lifetime or idle for longer than the lab's timeout. */
 export async function purgeExpiredSessions() {
-  await Session.destroy({ where: { expiresAt: { [Op.lt]: new Date() } } });
+  const idleSince = new Date(Date.now() - (await idleTimeoutMs()));
+  await Session.destroy({ where: { [Op.or]: [{ expiresAt: { [Op.lt]: new Date() } }, { lastSeenAt: { [Op.lt]: idleSince } }] } });
 }

@@ -16,7 +16,7 @@ const json = (schemaRef: string, description: string) => ({
 const err = (description: string) => json("Error", description);
 const anyJson = (description: string) => ({ description, content: { "application/json": { schema: { type: "object" } } } });
 const idParam = (name = "id") => ({ name, in: "path", required: true, schema: { type: "integer", minimum: 1 } });
-const authErrors = { "401": err("Not signed in, or the API token is wrong, revoked or expired.") };
+const authErrors = { "401": err("Not signed in (unauthenticated), or the API token is wrong (invalid_token), expired (token_expired) or revoked (token_revoked).") };
 const forbidden = { "403": err("Your role does not allow this.") };
 const notFound = { "404": err("No such run.") };
 

@@ -68,7 +68,7 @@ export function schemas(): Record<string, JsonSchema> {
           type: "object",
           required: ["code", "message"],
           properties: {
-            code: { type: "string", description: "Stable, machine-readable: invalid_filter, invalid_run, run_signed_off, no_tracks, unauthenticated, invalid_token, forbidden, not_found…" },
+            code: { type: "string", description: "Stable, machine-readable: invalid_filter, invalid_run, run_signed_off, no_tracks, unauthenticated, invalid_token, token_expired, token_revoked, forbidden, not_found…" },
             message: { type: "string", description: "A sentence for a person." },
             field: { type: "string" },
             fields: { type: "object", additionalProperties: { type: "string" }, description: "One message per body field (422)." },

@@ -22,6 +22,7 @@ export const labSettingsSchema = z
     scaleCalibrationIntervalDays: field("scaleCalibrationIntervalDays"),
     timingCheckIntervalDays: field("timingCheckIntervalDays"),
     calibrationReminderDays: field("calibrationReminderDays"),
+    sessionIdleHours: field("sessionIdleHours"),
   })
   .superRefine((v, ctx) => {
     const shortest = Math.min(v.rateCalibrationIntervalDays, v.scaleCalibrationIntervalDays, v.timingCheckIntervalDays);

@@ -131,7 +131,7 @@ describe("GET /api/v1/runs", () => {
     await revokeApiToken(lab.technician.id, row.id);
     const revoked = await call(listLoader, get("/api/v1/runs", token));
     expect(revoked.status).toBe(401);
-    expect((await revoked.json()).error.message).toMatch(/wrong, revoked or expired/);
+    expect((await revoked.json()).error).toMatchObject({ code: "token_revoked", message: expect.stringMatching(/revoked because its owner revoked it/) });
   });
 });
 

@@ -4,6 +4,7 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/reset-password";
 import { findUsableToken, PeopleError, setPasswordWithToken } from "~/.server/people";
 import { startSession } from "~/.server/auth/session";
+import { passwordProblem } from "~/.server/auth/password-strength";
 import { setPasswordSchema } from "~/lib/validation/people";
 import { Button } from "~/components/ui/button";
 import { TextField } from "~/components/ui/field";
@@ -29,6 +30,10 @@ export async function action({ request, params }: Route.ActionArgs) {
   const purpose = purposeOf(request);
   const submission = parseWithZod(await request.formData(), { schema: setPasswordSchema });
   if (submission.status !== "success") return data(submission.reply({ hideFields: ["password", "confirm"] }), { status: 400 });
+  // Judged before the link is spent, against the person the link belongs to.
+  const found = await findUsableToken(params.token, purpose);
+  const weak = found ? passwordProblem(submission.value.password, found.user) : null;
+  if (weak) return data(submission.reply({ fieldErrors: { password: [weak] }, hideFields: ["password", "confirm"] }), { status: 400 });
   try {
     const user = await setPasswordWithToken(params.token, purpose, submission.value.password);
     return startSession(request, user.id, "/");
@@ -63,7 +68,7 @@ export default function ChoosePassword({ loaderData, actionData }: Route.Compone
   return (
     <div className="mx-auto max-w-xl rounded-card border border-line bg-sheet p-8">
       <h1>{welcome ? `Welcome, ${loaderData.name}` : "Choose a new password"}</h1>
-      <p className="mt-2 text-muted">For the account {loaderData.email}. At least 12 characters; a short sentence works well.</p>
+      <p className="mt-2 text-muted">For the account {loaderData.email}. At least 12 characters, not a common password and not built on your name or e-mail; a short sentence works well.</p>
       <Form method="post" className="mt-4 flex flex-col gap-4" {...getFormProps(form)}>
         <FormProblem errors={form.errors} />
         <TextField label="New password" type="password" name={fields.password.name} error={fields.password.errors} autoComplete="new-password" />

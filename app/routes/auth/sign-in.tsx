@@ -5,7 +5,7 @@ import type { Route } from "./+types/sign-in";
 import { authenticator, SignInError, SIGN_IN_FAILED } from "~/.server/auth/authenticator";
 import { getCurrentUser, safeRedirectTo } from "~/.server/auth/permissions";
 import { startSession } from "~/.server/auth/session";
-import { checkSignInThrottle, clearSignInFailures, clientAddressOf, recordSignInFailure } from "~/.server/auth/rate-limit";
+import { checkSignInThrottle, clearSignInFailures, clientAddressOf, keepRetryAfter, recordSignInFailure, throttleMessage } from "~/.server/auth/rate-limit";
 import { env } from "~/.server/env";
 import { signInSchema } from "~/lib/validation/people";
 import { Button } from "~/components/ui/button";
@@ -14,6 +14,11 @@ import { Notice, FormProblem } from "~/components/ui/notice";
 import { TanksideMark } from "~/components/app-shell";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Tankside" }];
+
+/** The throttled answer's Retry-After must reach the client (see keepRetryAfter). */
+export function headers(args: Route.HeadersArgs) {
+  return keepRetryAfter(args);
+}
 
 export async function loader({ request }: Route.LoaderArgs) {
   const url = new URL(request.url);
@@ -39,7 +44,7 @@ export async function action({ request, context }: Route.ActionArgs) {
   if (throttle.blocked) {
     return data(
       submission.reply({
-        formErrors: [`Too many failed attempts. Wait ${Math.ceil(throttle.retryAfterSeconds / 60)} minute(s) and try again.`],
+        formErrors: [throttleMessage(throttle)],
         hideFields: ["password"],
       }),
       { status: 429, headers: { "Retry-After": String(throttle.retryAfterSeconds) } },

@@ -42,6 +42,11 @@ const groups: { title: string; hint: string; keys: SettingKey[] }[] = [
     hint: "The spin-up wait sets the lead time Tankside proposes before a booked run; a theory check agrees only when the whole 95 % interval of (f measured − f predicted)/f predicted lies within ± the tolerance, disagrees only when it lies wholly outside, and is inconclusive otherwise.",
     keys: ["spinUpTimesToWait", "checkTolerancePct"],
   },
+  {
+    title: "Sign-in",
+    hint: "A browser left signed in but unused is signed out after this many hours; it is signed out 12 hours after sign-in in any case.",
+    keys: ["sessionIdleHours"],
+  },
 ];
 
 export default function Settings({ loaderData, actionData }: Route.ComponentProps) {

@@ -7,6 +7,9 @@ import {
 } from "sequelize";
 import { sequelize } from "../connection";
 
+/** Why a token stopped working: its owner revoked it, changed their password, or was deactivated. */
+export type ApiTokenRevokedReason = "revoked" | "password_changed" | "deactivated";
+
 /** A personal API token: shown once, stored as a SHA-256, acts with its owner's role. */
 export class ApiToken extends Model<InferAttributes<ApiToken>, InferCreationAttributes<ApiToken>> {
   declare id: CreationOptional<number>;
@@ -16,6 +19,8 @@ export class ApiToken extends Model<InferAttributes<ApiToken>, InferCreationAttr
   declare tokenPrefix: string;
   declare lastUsedAt: Date | null;
   declare revokedAt: Date | null;
+  declare revokedReason: ApiTokenRevokedReason | null;
+  declare expiresAt: Date;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -29,6 +34,8 @@ ApiToken.init(
     tokenPrefix: { type: DataTypes.STRING(16), allowNull: false },
     lastUsedAt: { type: DataTypes.DATE, allowNull: true },
     revokedAt: { type: DataTypes.DATE, allowNull: true },
+    revokedReason: { type: DataTypes.STRING(30), allowNull: true },
+    expiresAt: { type: DataTypes.DATE, allowNull: false },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

@@ -12,6 +12,7 @@ export class Session extends Model<InferAttributes<Session>, InferCreationAttrib
   declare userId: number | null;
   declare data: string;
   declare expiresAt: Date;
+  declare lastSeenAt: Date | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -22,6 +23,7 @@ Session.init(
     userId: { type: DataTypes.INTEGER, allowNull: true },
     data: { type: DataTypes.TEXT, allowNull: false, defaultValue: "{}" },
     expiresAt: { type: DataTypes.DATE, allowNull: false },
+    lastSeenAt: { type: DataTypes.DATE, allowNull: true },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

@@ -3,7 +3,7 @@ import crypto from "node:crypto";
 import express from "express";
 import compression from "compression";
 import { createRequestHandler } from "@react-router/express";
-import { loadContext, noStore, sameOriginOnly, strictTransport } from "./server-guards.mjs";
+import { loadContext, noStore, sameOriginOnly, servedMethodsOnly, strictTransport } from "./server-guards.mjs";
 
 const dev = process.argv.includes("--dev");
 const port = Number(process.env.PORT ?? 3000);
@@ -59,6 +59,7 @@ app.use(closeUnreadUploads);
 app.use(compression());
 app.use(securityHeaders);
 app.use(strictTransport);
+app.use(servedMethodsOnly);
 app.use(sameOriginOnly);
 
 let build;

@@ -1,20 +1,20 @@
 import type { Route } from "./+types/calibrations";
-import { requireRole, requireUser } from "~/.server/auth/permissions";
+import { requireCapability } from "~/.server/auth/permissions";
 import { readJson } from "~/.server/http";
 import { createCalibration, listCalibrations, serializeCalibrations } from "~/.server/calibrations";
 import { invalidInput, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 import { calibrationSchema } from "~/lib/validation/calibrations";
 
-/** GET /api/v1/calibrations?equipmentId= — anyone signed in reads the records. */
+/** GET /api/v1/calibrations?equipmentId= — every role reads the records. */
 export async function loader({ request }: Route.LoaderArgs) {
-  await requireUser(request);
+  await requireCapability(request, "read_calibrations");
   const equipmentId = Number(new URL(request.url).searchParams.get("equipmentId") ?? "") || undefined;
   return Response.json(await serializeCalibrations(await listCalibrations({ equipmentId })));
 }
 
 /** POST /api/v1/calibrations — technicians and lab managers record calibrations. */
 export async function action({ request }: Route.ActionArgs) {
-  const user = await requireRole(request, "technician", "lab_manager");
+  const user = await requireCapability(request, "record_calibration");
   if (request.method !== "POST") return methodNotAllowed("GET, POST");
   const parsed = calibrationSchema.safeParse(await readJson(request));
   if (!parsed.success) return invalidInput(parsed.error);

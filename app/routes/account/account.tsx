@@ -3,6 +3,7 @@ import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { z } from "zod";
 import type { Route } from "./+types/account";
+import { readForm } from "~/.server/http";
 import { requireUser } from "~/.server/auth/permissions";
 import { getSession } from "~/.server/auth/session";
 import { changeOwnPassword, PeopleError } from "~/.server/people";
@@ -37,7 +38,7 @@ const tokenSchema = z.object({ label: z.string().trim().min(1, "Name the token (
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = form.get("intent");
   if (intent === "password") {
     const submission = parseWithZod(form, { schema: changePasswordSchema });

@@ -3,7 +3,7 @@ import { requireCapability } from "~/.server/auth/permissions";
 import { apiError, parseId, readJson } from "~/.server/http";
 import { getCalibration, serializeCalibrations, updateCalibration } from "~/.server/calibrations";
 import { invalidInput, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
-import { calibrationSchema } from "~/lib/validation/calibrations";
+import { calibrationApiSchema } from "~/lib/validation/calibrations";
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   await requireCapability(request, "read_calibrations");
@@ -18,7 +18,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireCapability(request, "record_calibration");
   if (request.method !== "PUT" && request.method !== "PATCH") return methodNotAllowed("GET, PUT");
   const id = parseId(request, params.id, "That calibration record");
-  const parsed = calibrationSchema.safeParse(await readJson(request));
+  const parsed = calibrationApiSchema.safeParse(await readJson(request));
   if (!parsed.success) return invalidInput(parsed.error);
   try {
     const cal = await updateCalibration(id, parsed.data, user);

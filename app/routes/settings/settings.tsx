@@ -2,6 +2,7 @@ import { Form, data } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/settings";
+import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
 import { getLabSettings, setLabSetting } from "~/.server/settings";
 import { labSettingsSchema } from "~/lib/validation/settings";
@@ -20,7 +21,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request }: Route.ActionArgs) {
   await requireRole(request, "lab_manager");
-  const submission = parseWithZod(await request.formData(), { schema: labSettingsSchema });
+  const submission = parseWithZod(await readForm(request), { schema: labSettingsSchema });
   if (submission.status !== "success") return data({ result: submission.reply(), saved: false }, { status: 400 });
   // Every value is checked before any is written, so a bad entry changes nothing.
   for (const [key, value] of Object.entries(submission.value) as [SettingKey, number][]) await setLabSetting(key, value);

@@ -61,7 +61,7 @@ describe("malformed requests get a 4xx, never a 500, and change nothing", { time
       const route = routeFor(url);
       const params = paramsOf(route, url);
       const valid = t.valid(lab);
-      const sendJson = (text: string | null, type: string | null) => ({ method: t.method, url, headers: type ? { "Content-Type": type } : {}, body: text });
+      const sendJson = (text: string | null, type: string | null): Send => ({ method: t.method, url, headers: type ? { "Content-Type": type } : {}, body: text });
       for (const c of bodyCases) {
         await attack(`${t.name}, ${c.name}`, route, sendJson(c.body(valid), c.type), params, problems);
         n++;

@@ -2,7 +2,9 @@ import crypto from "node:crypto";
 import fs from "node:fs/promises";
 import path from "node:path";
 import sharp from "sharp";
-import { CalibrationAttachment } from "../db";
+import { Transaction } from "sequelize";
+import { CalibrationAttachment, sequelize } from "../db";
+import { noteCalibrationChange } from "../calibration-history";
 import { env } from "../env";
 import type { CurrentUser } from "../auth/permissions";
 import { assertCalibrationEditable, CalibrationError } from "../calibrations";
@@ -45,16 +47,23 @@ export async function addCalibrationAttachment(calibrationId: number, file: { na
   await fs.mkdir(attachmentDir(), { recursive: true });
   await fs.writeFile(path.join(attachmentDir(), storedName), file.bytes, { flag: "wx" });
   try {
-    // Checked again: a sign-off may have landed while the file was being written.
-    await assertCalibrationEditable(calibrationId, uploader);
-    return await CalibrationAttachment.create({
-      calibrationId,
-      originalName: file.name.slice(0, 255) || "attachment",
-      storedName,
-      contentType: kind.type,
-      sizeBytes: file.bytes.length,
-      sha256: crypto.createHash("sha256").update(file.bytes).digest("hex"),
-      uploadedById,
+    return await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+      // Checked again, under the write lock: a sign-off may have landed while the file was being written.
+      await assertCalibrationEditable(calibrationId, uploader, t);
+      const row = await CalibrationAttachment.create(
+        {
+          calibrationId,
+          originalName: file.name.slice(0, 255) || "attachment",
+          storedName,
+          contentType: kind.type,
+          sizeBytes: file.bytes.length,
+          sha256: crypto.createHash("sha256").update(file.bytes).digest("hex"),
+          uploadedById,
+        },
+        { transaction: t },
+      );
+      await noteCalibrationChange(t, calibrationId, uploadedById, "attachment", null, row.originalName);
+      return row;
     });
   } catch (err) {
     await fs.rm(path.join(attachmentDir(), storedName), { force: true });

@@ -5,6 +5,8 @@ import uppyDashboard from "@uppy/dashboard/css/style.min.css?url";
 import { can, requireCapability } from "~/.server/auth/permissions";
 import { notFound, parseId, readForm } from "~/.server/http";
 import { CalibrationError, getCalibration, serializeCalibrations, signOffCalibration } from "~/.server/calibrations";
+import { getCalibrationHistory } from "~/.server/calibration-history";
+import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { calibrationKindLabels, trueRateFromCalibration } from "~/lib/calibrations";
 import { formatDate, formatDateTime, formatNumber } from "~/lib/format";
 import { Button, ButtonLink } from "~/components/ui/button";
@@ -23,8 +25,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireCapability(request, "read_calibrations");
   const cal = await getCalibration(parseId(request, params.id, "That calibration record"));
   if (!cal) throw notFound(request, "That calibration record");
-  const [record] = await serializeCalibrations([cal]);
-  return { record: record!, canRecord: can(user, "record_calibration"), canSign: can(user, "sign_off_calibration") };
+  const [[record], history] = await Promise.all([serializeCalibrations([cal]), getCalibrationHistory(cal.id)]);
+  return { record: record!, history, canRecord: can(user, "record_calibration"), canSign: can(user, "sign_off_calibration") };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -154,6 +156,9 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
             <p className="mb-4 text-muted">None attached.</p>
           )}
           {!signed && loaderData.canRecord ? <CalibrationUploader calibrationId={r.id} /> : signed ? <p className="text-sm text-muted">Signed records take no new attachments.</p> : null}
+        </Card>
+        <Card title="History">
+          <RunHistoryList entries={loaderData.history} events={["created", "attachment", "signedOff"]} testId="calibration-history" />
         </Card>
       </div>
     </div>

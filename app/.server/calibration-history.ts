@@ -33,14 +33,17 @@ export function noteCalibrationChange(t: Transaction, calibrationId: number, use
   return CalibrationHistory.create({ calibrationId, userId, field, oldValue: show(oldValue), newValue: show(newValue) }, { transaction: t });
 }
 
-/** A line for each entered field an edit changes, before the edit is written. */
-export async function noteCalibrationEdits(t: Transaction, cal: Calibration, next: Record<string, unknown>, userId: number) {
-  for (const field of Object.keys(calibrationFieldLabels)) {
-    if (!(field in next)) continue;
-    const before = show(cal.get(field as keyof Calibration));
-    const after = show(next[field]);
-    if (before !== after) await noteCalibrationChange(t, cal.id, userId, field, before, after);
-  }
+/** The entered fields an edit changes, old → new as shown; taken before the edit is written. */
+export function calibrationEdits(cal: Calibration, next: Record<string, unknown>) {
+  return Object.keys(calibrationFieldLabels)
+    .filter((field) => field in next)
+    .map((field) => ({ field, oldValue: show(cal.get(field as keyof Calibration)), newValue: show(next[field]) }))
+    .filter((c) => c.oldValue !== c.newValue);
+}
+
+/** A line for each of those changes, in the edit's transaction. */
+export async function noteCalibrationEdits(t: Transaction, calibrationId: number, userId: number, edits: ReturnType<typeof calibrationEdits>) {
+  for (const e of edits) await noteCalibrationChange(t, calibrationId, userId, e.field, e.oldValue, e.newValue);
 }
 
 export interface CalibrationHistoryEntry {

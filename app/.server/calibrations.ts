@@ -2,7 +2,7 @@ import { Op, Transaction } from "sequelize";
 import { Calibration, CalibrationAttachment, CalibrationReminder, Equipment, User, sequelize } from "./db";
 import { getLabSettings } from "./settings";
 import { canEditCalibration, type CurrentUser } from "./auth/permissions";
-import { noteCalibrationChange, noteCalibrationEdits } from "./calibration-history";
+import { calibrationEdits, noteCalibrationChange, noteCalibrationEdits } from "./calibration-history";
 import {
   CalibrationInputError,
   calibrationKindFor,
@@ -132,8 +132,9 @@ export async function updateCalibration(id: number, input: CalibrationInput, edi
       throw new CalibrationError(422, "fixed_fields", "The kind and the equipment of a record cannot change; record a new calibration instead.");
     }
     const columns = await columnsFor(input, t);
-    await noteCalibrationEdits(t, cal, columns, editor.id);
+    const edits = calibrationEdits(cal, columns);
     await cal.update(columns, { transaction: t });
+    await noteCalibrationEdits(t, cal.id, editor.id, edits);
     return cal;
   });
 }

@@ -2,6 +2,27 @@
 
 const safeMethods = new Set(["GET", "HEAD", "OPTIONS"]);
 
+/**
+ * The methods Tankside answers at a path: pages take GET and form POSTs; the JSON API also takes
+ * PUT, PATCH and DELETE. Anything else (TRACE, CONNECT, OPTIONS, made-up verbs) never reaches the
+ * app — an action would otherwise treat it as a form submission.
+ */
+export function methodsServed(path) {
+  return path.startsWith("/api/") ? ["GET", "HEAD", "POST", "PUT", "PATCH", "DELETE"] : ["GET", "HEAD", "POST"];
+}
+
+/** 405 with an Allow header for a method the path does not serve (RFC 9110 §15.5.6). */
+export function servedMethodsOnly(req, res, next) {
+  const allowed = methodsServed(req.path);
+  if (allowed.includes(req.method)) return next();
+  res.setHeader("Allow", allowed.join(", "));
+  const message = `${req.method} is not served here; use ${allowed.join(", ")}.`;
+  if (req.path.startsWith("/api/") || (req.get("accept") ?? "").includes("json")) {
+    return res.status(405).json({ error: { code: "method_not_allowed", message } });
+  }
+  res.status(405).type("text/plain").send(message);
+}
+
 function originOf(value) {
   try {
     return new URL(value).origin;

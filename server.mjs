@@ -2,7 +2,7 @@
 import crypto from "node:crypto";
 import express from "express";
 import compression from "compression";
-import { loadContext, noStore, sameOriginOnly, strictTransport } from "./server-guards.mjs";
+import { loadContext, noStore, sameOriginOnly, servedMethodsOnly, strictTransport } from "./server-guards.mjs";
 import { closeUnreadUploads, createRequestHandler, refuseOversizedBodies } from "./server-bodies.mjs";
 
 const dev = process.argv.includes("--dev");
@@ -48,6 +48,7 @@ app.use(closeUnreadUploads);
 app.use(compression());
 app.use(securityHeaders);
 app.use(strictTransport);
+app.use(servedMethodsOnly);
 app.use(refuseOversizedBodies);
 app.use(sameOriginOnly);
 

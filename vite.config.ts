@@ -9,7 +9,7 @@ export default defineConfig({
   resolve: { tsconfigPaths: true },
   build: { chunkSizeWarningLimit: 1500 },
   test: {
-    include: ["app/**/*.test.ts", "app/**/*.test.tsx", "tests/unit/**/*.test.ts"],
+    include: ["app/**/*.test.ts", "app/**/*.test.tsx", "tests/unit/**/*.test.ts", "tests/attack/**/*.test.ts"],
     setupFiles: ["tests/setup/vitest-env.ts"],
     environment: "node",
     testTimeout: 30_000,

@@ -2,6 +2,7 @@ import { Op, Transaction } from "sequelize";
 import { Calibration, CalibrationAttachment, CalibrationReminder, Equipment, User, sequelize } from "./db";
 import { getLabSettings } from "./settings";
 import { canEditCalibration, type CurrentUser } from "./auth/permissions";
+import { calibrationEdits, noteCalibrationChange, noteCalibrationEdits } from "./calibration-history";
 import {
   CalibrationInputError,
   calibrationKindFor,
@@ -112,7 +113,11 @@ async function columnsFor(input: CalibrationInput, t?: Transaction) {
 
 export async function createCalibration(input: CalibrationInput, performer: Pick<CurrentUser, "id">) {
   const columns = await columnsFor(input);
-  return Calibration.create({ ...columns, performedById: performer.id, signedOffById: null, signedOffAt: null });
+  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+    const cal = await Calibration.create({ ...columns, performedById: performer.id, signedOffById: null, signedOffAt: null }, { transaction: t });
+    await noteCalibrationChange(t, cal.id, performer.id, "created", null, calibrationKindLabels[input.kind]);
+    return cal;
+  });
 }
 
 /**
@@ -129,7 +134,9 @@ export async function updateCalibration(id: number, input: CalibrationInput, edi
       throw new CalibrationError(422, "fixed_fields", "The kind and the equipment of a record cannot change; record a new calibration instead.");
     }
     const columns = await columnsFor(input, t);
+    const edits = calibrationEdits(cal, columns);
     await cal.update(columns, { transaction: t });
+    await noteCalibrationEdits(t, cal.id, editor.id, edits);
     return cal;
   });
 }
@@ -138,18 +145,21 @@ export async function updateCalibration(id: number, input: CalibrationInput, edi
 export async function signOffCalibration(id: number, manager: Pick<CurrentUser, "id" | "role">) {
   if (manager.role !== "lab_manager") throw new CalibrationError(403, "forbidden", "Only a lab manager signs calibrations off.");
   const now = new Date();
-  const [count] = await Calibration.update(
-    { signedOffById: manager.id, signedOffAt: now },
-    { where: { id, signedOffAt: { [Op.is]: null } } },
-  );
-  const cal = await Calibration.findByPk(id);
-  if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
-  if (count === 0) throw new CalibrationError(409, "calibration_signed", "This record was already signed off.");
-  return cal;
+  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+    const [count] = await Calibration.update(
+      { signedOffById: manager.id, signedOffAt: now },
+      { where: { id, signedOffAt: { [Op.is]: null } }, transaction: t },
+    );
+    const cal = await Calibration.findByPk(id, { transaction: t });
+    if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
+    if (count === 0) throw new CalibrationError(409, "calibration_signed", "This record was already signed off.");
+    await noteCalibrationChange(t, id, manager.id, "signedOff", null, null);
+    return cal;
+  });
 }
 
-export async function assertCalibrationEditable(id: number, editor: Pick<CurrentUser, "id" | "role">) {
-  const cal = await Calibration.findByPk(id);
+export async function assertCalibrationEditable(id: number, editor: Pick<CurrentUser, "id" | "role">, t?: Transaction) {
+  const cal = await Calibration.findByPk(id, { transaction: t });
   if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
   if (!canEditCalibration(editor, cal)) throw new CalibrationError(403, "forbidden", NOT_YOURS_MESSAGE);
   if (cal.signedOffAt) throw new CalibrationError(409, "calibration_signed", SIGNED_MESSAGE);

@@ -4,7 +4,7 @@ import { apiAs, latestMailId, linkIn, people, signIn, waitForMail } from "./help
 const navFor = {
   [people.manager]: ["Today", "Runs", "Equipment", "Bookings", "Calibrations", "People", "Captured mail", "Settings"],
   [people.tech]: ["Today", "Runs", "Equipment", "Bookings", "Calibrations"],
-  [people.instructor]: ["Today", "Runs", "Equipment", "Bookings"],
+  [people.instructor]: ["Today", "Runs", "Equipment", "Bookings", "Calibrations"],
 };
 
 test.describe("sign-in, navigation and sign-out for each role", () => {

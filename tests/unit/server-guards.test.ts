@@ -1,6 +1,6 @@
 import { afterEach, describe, expect, it } from "vitest";
 // @ts-expect-error plain ESM module of the server, without type declarations
-import { loadContext, noStore, sameOriginOnly, strictTransport } from "../../server-guards.mjs";
+import { loadContext, noStore, sameOriginOnly, servedMethodsOnly, strictTransport } from "../../server-guards.mjs";
 
 interface Fake {
   status: number;
@@ -49,6 +49,30 @@ describe("sameOriginOnly", () => {
   it("lets a bearer-token API call through (it carries no cookie) but not a page POST with one", () => {
     expect(run(sameOriginOnly, { path: "/api/v1/runs", headers: { authorization: "Bearer tks_x", origin: "https://script.example" } }).out.passed).toBe(true);
     expect(run(sameOriginOnly, { path: "/account", headers: { authorization: "Bearer tks_x", origin: "https://evil.example" } }).out.passed).toBe(false);
+  });
+});
+
+describe("servedMethodsOnly", () => {
+  it("answers TRACE, CONNECT, OPTIONS and made-up methods with 405 and an Allow header, JSON under /api/", () => {
+    for (const method of ["TRACE", "CONNECT", "OPTIONS", "PROPFIND", "BREW"]) {
+      const page = run(servedMethodsOnly, { method, path: "/" }).out;
+      expect(page.passed, method).toBe(false);
+      expect(page.status, method).toBe(405);
+      expect(page.headers.allow).toBe("GET, HEAD, POST");
+      const api = run(servedMethodsOnly, { method, path: "/api/v1/runs" }).out;
+      expect(api.status, method).toBe(405);
+      expect(api.headers.allow).toBe("GET, HEAD, POST, PUT, PATCH, DELETE");
+      expect(api.body).toMatchObject({ error: { code: "method_not_allowed", message: expect.stringContaining(method) } });
+    }
+  });
+  it("keeps PUT, PATCH and DELETE to the API and refuses them on pages, which only take form POSTs", () => {
+    for (const method of ["PUT", "PATCH", "DELETE"]) {
+      expect(run(servedMethodsOnly, { method, path: "/api/v1/runs/1" }).out.passed, method).toBe(true);
+      expect(run(servedMethodsOnly, { method, path: "/settings" }).out.status, method).toBe(405);
+    }
+    for (const method of ["GET", "HEAD", "POST"]) {
+      expect(run(servedMethodsOnly, { method, path: "/settings" }).out.passed, method).toBe(true);
+    }
   });
 });
 

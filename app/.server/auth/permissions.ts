@@ -4,7 +4,7 @@ import { apiError, isApiRequest } from "../http";
 import { getSession } from "./session";
 import { userFromBearerToken } from "./api-tokens";
 import type { Role } from "~/lib/roles";
-import { roleLabels } from "~/lib/roles";
+import { capabilityRoles, roleCan, roleLabels, type Capability } from "~/lib/roles";
 
 export interface CurrentUser {
   id: number;
@@ -86,4 +86,14 @@ export async function requireRole(request: Request, ...allowed: Role[]): Promise
     forbidden(request, `This needs the role of ${allowed.map((r) => roleLabels[r].toLowerCase()).join(" or ")}.`);
   }
   return user;
+}
+
+/** May this person do this? One table (capabilityRoles in lib/roles.ts) for pages, API and navigation. */
+export function can(user: Pick<CurrentUser, "role">, capability: Capability): boolean {
+  return roleCan(user.role, capability);
+}
+
+/** requireRole by capability: the sign-in redirect or 401 for nobody, 403 for a role without it. */
+export function requireCapability(request: Request, capability: Capability): Promise<CurrentUser> {
+  return requireRole(request, ...capabilityRoles[capability]);
 }

@@ -9,6 +9,6 @@ export { ApiToken } from "./models/api-token";
 export { Equipment } from "./models/equipment";
 export { Run } from "./models/run";
 export { Frame, ViewSetup, TrackingJob, Track, Detection, TheoryCheck, RunHistory } from "./models/tracking";
-export { Calibration, CalibrationAttachment, CalibrationReminder } from "./models/calibration";
+export { Calibration, CalibrationAttachment, CalibrationHistory, CalibrationReminder } from "./models/calibration";
 export { Booking, CalendarFeed } from "./models/booking";
 export { UserPreference } from "./models/user-preference";

@@ -2,9 +2,20 @@
  * The bookings (and calibration records) part of Tankside's OpenAPI 3.1 document, as a fragment
  * to merge into GET /api/v1/openapi.json: `paths` plus the `components.schemas` they refer to.
  */
+import { capabilityRoles, roleLabels, roles, type Capability, type Role } from "~/lib/roles";
+
 const json = (schema: object) => ({ "application/json": { schema } });
 const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` });
 const error = (description: string) => ({ description, content: json(ref("Error")) });
+/** The roles a capability names, in words: "every role", "technician or lab manager". */
+const rolesText = (capability: Capability) => {
+  const allowed = capabilityRoles[capability] as readonly Role[];
+  const names = allowed.map((r) => roleLabels[r].toLowerCase());
+  return allowed.length === roles.length ? "every role" : names.length > 1 ? `${names.slice(0, -1).join(", ")} or ${names.at(-1)}` : names[0]!;
+};
+/** Who may call an operation, from the one capability table; `x-roles` lets scripts (and tests) read it. */
+const whoMay = (capability: Capability) => ({ "x-roles": capabilityRoles[capability], description: `Open to ${rolesText(capability)}.` });
+const notForRole = (capability: Capability) => error(`Not for your role: only ${rolesText(capability)}.`);
 const idParam = { name: "id", in: "path", required: true, schema: { type: "integer", minimum: 1 } };
 
 export const bookingSchemas = {
@@ -185,37 +196,40 @@ export const bookingPaths = {
     },
   },
   "/api/v1/calibrations": {
-    get: { tags: ["Calibrations"], summary: "List calibration records", parameters: [{ name: "equipmentId", in: "query", schema: { type: "integer" } }], responses: { "200": { description: "Newest first.", content: json({ type: "array", items: ref("Calibration") }) }, "401": error("Not signed in.") } },
+    get: { tags: ["Calibrations"], summary: "List calibration records", ...whoMay("read_calibrations"), parameters: [{ name: "equipmentId", in: "query", schema: { type: "integer" } }], responses: { "200": { description: "Newest first.", content: json({ type: "array", items: ref("Calibration") }) }, "401": error("Not signed in.") } },
     post: {
       tags: ["Calibrations"],
       summary: "Record a calibration (technician or lab manager)",
+      ...whoMay("record_calibration"),
       requestBody: { required: true, content: json(ref("CalibrationInput")) },
-      responses: { "201": { description: "Recorded, awaiting sign-off.", content: json(ref("Calibration")) }, "400": error("invalid_input"), "401": error("Not signed in."), "403": error("Instructors do not record calibrations."), "404": error("Unknown equipment."), "422": error("Wrong kind of equipment, due date before the calibration date, bad readings.") },
+      responses: { "201": { description: "Recorded, awaiting sign-off.", content: json(ref("Calibration")) }, "400": error("invalid_input"), "401": error("Not signed in."), "403": notForRole("record_calibration"), "404": error("Unknown equipment."), "422": error("Wrong kind of equipment, due date before the calibration date, bad readings.") },
     },
   },
   "/api/v1/calibrations/{id}": {
-    get: { tags: ["Calibrations"], summary: "One record", parameters: [idParam], responses: { "200": { description: "The record.", content: json(ref("Calibration")) }, "404": error("No such record.") } },
+    get: { tags: ["Calibrations"], summary: "One record", ...whoMay("read_calibrations"), parameters: [idParam], responses: { "200": { description: "The record.", content: json(ref("Calibration")) }, "401": error("Not signed in."), "404": error("No such record.") } },
     put: {
       tags: ["Calibrations"],
       summary: "Replace a record that is not signed off",
+      ...whoMay("record_calibration"),
       parameters: [idParam],
       requestBody: { required: true, content: json(ref("CalibrationInput")) },
-      responses: { "200": { description: "Changed.", content: json(ref("Calibration")) }, "403": error("Instructors cannot."), "409": error("calibration_signed: a signed record never changes."), "422": error("Bad input.") },
+      responses: { "200": { description: "Changed.", content: json(ref("Calibration")) }, "403": notForRole("record_calibration"), "409": error("calibration_signed: a signed record never changes."), "422": error("Bad input.") },
     },
   },
   "/api/v1/calibrations/{id}/sign-off": {
-    post: { tags: ["Calibrations"], summary: "Sign off (lab manager)", parameters: [idParam], responses: { "200": { description: "Signed.", content: json(ref("Calibration")) }, "403": error("Only a lab manager."), "409": error("Already signed.") } },
+    post: { tags: ["Calibrations"], summary: "Sign off (lab manager)", ...whoMay("sign_off_calibration"), parameters: [idParam], responses: { "200": { description: "Signed.", content: json(ref("Calibration")) }, "403": notForRole("sign_off_calibration"), "409": error("Already signed.") } },
   },
   "/api/v1/calibrations/{id}/attachments": {
     post: {
       tags: ["Calibrations"],
       summary: "Attach a photo or PDF (checked by content) to an unsigned record",
+      ...whoMay("record_calibration"),
       parameters: [idParam],
       requestBody: { required: true, content: { "multipart/form-data": { schema: { type: "object", required: ["file"], properties: { file: { type: "string", format: "binary" } } } } } },
-      responses: { "201": { description: "Stored." }, "409": error("The record is signed."), "413": error("Over 20 MB."), "422": error("unsupported_attachment: not an image or a PDF.") },
+      responses: { "201": { description: "Stored." }, "403": notForRole("record_calibration"), "409": error("The record is signed."), "413": error("Over 20 MB."), "422": error("unsupported_attachment: not an image or a PDF.") },
     },
   },
   "/api/v1/calibrations/{id}/attachments/{attachmentId}": {
-    get: { tags: ["Calibrations"], summary: "Download an attachment (signed-in people)", parameters: [idParam, { name: "attachmentId", in: "path", required: true, schema: { type: "integer" } }], responses: { "200": { description: "The file." }, "401": error("Not signed in."), "404": error("No such attachment.") } },
+    get: { tags: ["Calibrations"], summary: "Download an attachment", ...whoMay("read_calibrations"), parameters: [idParam, { name: "attachmentId", in: "path", required: true, schema: { type: "integer" } }], responses: { "200": { description: "The file." }, "401": error("Not signed in."), "404": error("No such attachment.") } },
   },
 } as const;

@@ -1,13 +1,12 @@
 import { Run } from "../db";
-import { apiError, isApiRequest, notFound } from "../http";
+import { apiError, isApiRequest, notFound, parseId } from "../http";
 import { assertCanChange, RunError } from "./service";
 import type { CurrentUser } from "../auth/permissions";
 import { data } from "react-router";
 
 /** Loads a run or throws the right 404 for a page or the API. */
 export async function loadRun(request: Request, id: string | undefined) {
-  const runId = Number(id);
-  const run = Number.isInteger(runId) && runId > 0 ? await Run.findByPk(runId) : null;
+  const run = await Run.findByPk(parseId(request, id, "That run"));
   if (!run) throw notFound(request, "That run");
   return run;
 }

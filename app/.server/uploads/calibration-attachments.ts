@@ -2,7 +2,9 @@ import crypto from "node:crypto";
 import fs from "node:fs/promises";
 import path from "node:path";
 import sharp from "sharp";
-import { CalibrationAttachment } from "../db";
+import { Transaction } from "sequelize";
+import { CalibrationAttachment, sequelize } from "../db";
+import { noteCalibrationChange } from "../calibration-history";
 import { env } from "../env";
 import type { CurrentUser } from "../auth/permissions";
 import { assertCalibrationEditable, CalibrationError } from "../calibrations";
@@ -61,16 +63,23 @@ async function storeAttachment(calibrationId: number, file: StagedFile, uploader
   const storedName = `${crypto.randomUUID()}.${kind.ext}`;
   await moveStaged(file, path.join(attachmentDir(), storedName));
   try {
-    // Checked again: a sign-off may have landed while the file was being written.
-    await assertCalibrationEditable(calibrationId, uploader);
-    return await CalibrationAttachment.create({
-      calibrationId,
-      originalName: file.name.slice(0, 255) || "attachment",
-      storedName,
-      contentType: kind.type,
-      sizeBytes: file.sizeBytes,
-      sha256,
-      uploadedById,
+    return await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+      // Checked again, under the write lock: a sign-off may have landed while the file was being written.
+      await assertCalibrationEditable(calibrationId, uploader, t);
+      const row = await CalibrationAttachment.create(
+        {
+          calibrationId,
+          originalName: file.name.slice(0, 255) || "attachment",
+          storedName,
+          contentType: kind.type,
+          sizeBytes: file.sizeBytes,
+          sha256,
+          uploadedById,
+        },
+        { transaction: t },
+      );
+      await noteCalibrationChange(t, calibrationId, uploadedById, "attachment", null, row.originalName);
+      return row;
     });
   } catch (err) {
     await fs.rm(path.join(attachmentDir(), storedName), { force: true });

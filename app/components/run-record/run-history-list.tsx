@@ -5,11 +5,14 @@ function value(v: string | null) {
   return v === null || v === "" ? <span className="text-muted">(none)</span> : <span className="font-mono">{v}</span>;
 }
 
-/** Every change to the run, oldest first: who, when, which field, old → new. */
-export function RunHistoryList({ entries }: { entries: RunHistoryEntry[] }) {
+/**
+ * Every change to a record (a run, or a calibration record), oldest first: who, when, which field,
+ * old → new. Fields named in `events` are single happenings (logged, signed off) shown by their value.
+ */
+export function RunHistoryList({ entries, events = ["created"], testId = "run-history" }: { entries: RunHistoryEntry[]; events?: string[]; testId?: string }) {
   if (!entries.length) return <p className="text-muted">No changes recorded.</p>;
   return (
-    <table className="w-full text-left" data-testid="run-history">
+    <table className="w-full text-left" data-testid={testId}>
       <thead className="border-b-2 border-line-strong">
         <tr>
           <th scope="col" className="py-2 pr-3">When</th>
@@ -25,7 +28,7 @@ export function RunHistoryList({ entries }: { entries: RunHistoryEntry[] }) {
             <td className="py-2 pr-3">{e.who?.name ?? "Tankside"}</td>
             <td className="py-2 pr-3">{e.fieldLabel}</td>
             <td className="py-2">
-              {e.field === "created" ? value(e.newValue) : <>{value(e.oldValue)} <span aria-label="changed to">→</span> {value(e.newValue)}</>}
+              {events.includes(e.field) ? (e.newValue === null ? null : value(e.newValue)) : <>{value(e.oldValue)} <span aria-label="changed to">→</span> {value(e.newValue)}</>}
             </td>
           </tr>
         ))}

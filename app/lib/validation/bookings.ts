@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { bookingStates } from "../bookings";
+import { FIRST_YEAR, isPlausibleDateTime, LAST_YEAR } from "./fields";
 
 const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
@@ -7,7 +8,7 @@ const localDateTime = (what: string) =>
   z
     .string({ error: `Enter the ${what}.` })
     .regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2})?$/, `Enter the ${what} as a date and time.`)
-    .refine((s) => !Number.isNaN(new Date(s).getTime()), `That ${what} is not a real time.`);
+    .refine(isPlausibleDateTime, `That ${what} is not a real time between ${FIRST_YEAR} and ${LAST_YEAR}.`);
 
 const purpose = z
   .string({ error: "Say what the booking is for." })
@@ -45,17 +46,17 @@ export const bookingRequestSchema = z
   });
 
 /** The API body: ISO 8601 times with a zone (Z or an offset), so no one guesses the time zone. */
-export const bookingApiSchema = z.object({
+export const bookingApiSchema = z.strictObject({
   equipmentId: z.number({ error: "equipmentId must be a number." }).int("equipmentId must be a whole number.").positive("equipmentId must be positive."),
-  start: z.iso.datetime({ offset: true, error: "start must be an ISO 8601 time with a zone, e.g. 2026-03-14T09:00:00Z." }),
-  end: z.iso.datetime({ offset: true, error: "end must be an ISO 8601 time with a zone, e.g. 2026-03-14T11:00:00Z." }),
+  start: z.iso.datetime({ offset: true, error: "start must be an ISO 8601 time with a zone, e.g. 2026-03-14T09:00:00Z." }).refine(isPlausibleDateTime, `start must be a real time between ${FIRST_YEAR} and ${LAST_YEAR}.`),
+  end: z.iso.datetime({ offset: true, error: "end must be an ISO 8601 time with a zone, e.g. 2026-03-14T11:00:00Z." }).refine(isPlausibleDateTime, `end must be a real time between ${FIRST_YEAR} and ${LAST_YEAR}.`),
   purpose,
   plannedRateRpm: z.number().positive("plannedRateRpm must be more than zero.").max(200).optional(),
   plannedDepthCm: z.number().positive("plannedDepthCm must be more than zero.").max(200).optional(),
   addSpinUpLead: z.boolean().optional(),
 });
 
-export const declineSchema = z.object({
+export const declineSchema = z.strictObject({
   reason: z.string({ error: "Give a reason for declining." }).trim().min(3, "Give a reason for declining (a few words).").max(500, "Keep the reason under 500 characters."),
 });
 

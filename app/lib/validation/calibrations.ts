@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { calibrationKinds, MIN_RATE_READINGS } from "../calibrations";
+import { FIRST_YEAR, isPlausibleDay, LAST_YEAR, strictNumber } from "./fields";
 
 const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
@@ -10,10 +11,10 @@ const day = (what: string) =>
   z
     .string({ error: `Enter the ${what} (year-month-day).` })
     .regex(/^\d{4}-\d{2}-\d{2}$/, `Enter the ${what} as year-month-day, e.g. 2026-03-14.`)
-    .refine((s) => !Number.isNaN(new Date(`${s}T00:00:00`).getTime()), `That ${what} is not a real day.`);
+    .refine(isPlausibleDay, `That ${what} is not a real day between ${FIRST_YEAR} and ${LAST_YEAR}.`);
 
 const positive = (what: string, max: number, unit: string) =>
-  z.preprocess(
+  strictNumber(z.preprocess(
     blankToUndefined,
     z.coerce
       .number({ error: `${what} must be a number.` })
@@ -21,21 +22,21 @@ const positive = (what: string, max: number, unit: string) =>
       .positive(`${what} must be more than zero.`)
       .max(max, `${what} above ${max} ${unit} is not plausible here.`)
       .optional(),
-  );
+  ));
 
 const nonNegative = (what: string, max: number, unit: string) =>
-  z.preprocess(
+  strictNumber(z.preprocess(
     blankToUndefined,
     z.coerce
       .number({ error: `${what} must be a number.` })
       .min(0, `${what} cannot be negative.`)
       .max(max, `${what} above ${max} ${unit} is not plausible here.`)
       .optional(),
-  );
+  ));
 
 const reading = z.object({
-  setRpm: z.coerce.number({ error: "Set rate must be a number." }).refine((v) => v > 0, "A set rate must be more than zero rpm."),
-  measuredRpm: z.coerce.number({ error: "Measured rate must be a number." }).refine((v) => v > 0, "A measured rate must be more than zero rpm."),
+  setRpm: strictNumber(z.coerce.number({ error: "Set rate must be a number." }).refine((v) => v > 0, "A set rate must be more than zero rpm.")),
+  measuredRpm: strictNumber(z.coerce.number({ error: "Measured rate must be a number." }).refine((v) => v > 0, "A measured rate must be more than zero rpm.")),
 });
 
 /** Rows the person left empty on the form are dropped; a half-filled row is an error. */
@@ -52,54 +53,58 @@ const readings = z.preprocess(
 );
 
 /** One form for the three kinds; the refinement asks for what each kind needs. Lengths in mm on the form. */
-export const calibrationSchema = z
-  .object({
-    kind: z.enum(calibrationKinds, { error: "Choose rate calibration, scale calibration or timing check." }),
-    equipmentId: z.coerce.number({ error: "Choose the equipment." }).int().positive("Choose the equipment."),
-    performedOn: day("calibration date"),
-    dueOn: z.preprocess(blankToUndefined, day("due date").optional()),
-    notes: optionalText(4000),
-    meterId: z.preprocess(blankToUndefined, z.coerce.number().int().positive().optional()),
-    readings,
-    knownLengthMm: positive("Known length", 10_000, "mm"),
-    knownLengthUncertaintyMm: nonNegative("Uncertainty of the known length", 1_000, "mm"),
-    lengthPx: positive("Length in the image", 100_000, "px"),
-    lengthUncertaintyPx: nonNegative("Uncertainty in pixels", 10_000, "px"),
-    nominalFrameRateFps: positive("Nominal frame rate", 10_000, "frames/s"),
-    frameIntervals: positive("Frame intervals counted", 10_000_000, "intervals"),
-    frameIntervalsUncertainty: nonNegative("Uncertainty of the count", 1_000, "intervals"),
-    referenceElapsedS: positive("Elapsed time by the reference", 86_400, "s"),
-    referenceElapsedUncertaintyS: nonNegative("Uncertainty of the elapsed time", 3_600, "s"),
-  })
-  .superRefine((v, ctx) => {
-    const need = (field: keyof typeof v, message: string) => {
-      if (v[field] === undefined) ctx.addIssue({ code: "custom", path: [field], message });
-    };
-    if (v.dueOn && v.dueOn < v.performedOn) {
-      ctx.addIssue({ code: "custom", path: ["dueOn"], message: "The due date cannot be before the calibration date." });
+const calibrationFields = z.object({
+  kind: z.enum(calibrationKinds, { error: "Choose rate calibration, scale calibration or timing check." }),
+  equipmentId: strictNumber(z.coerce.number({ error: "Choose the equipment." }).int().positive("Choose the equipment.")),
+  performedOn: day("calibration date"),
+  dueOn: z.preprocess(blankToUndefined, day("due date").optional()),
+  notes: optionalText(4000),
+  meterId: strictNumber(z.preprocess(blankToUndefined, z.coerce.number({ error: "Choose the rate meter." }).int().positive("Choose the rate meter.").optional())),
+  readings,
+  knownLengthMm: positive("Known length", 10_000, "mm"),
+  knownLengthUncertaintyMm: nonNegative("Uncertainty of the known length", 1_000, "mm"),
+  lengthPx: positive("Length in the image", 100_000, "px"),
+  lengthUncertaintyPx: nonNegative("Uncertainty in pixels", 10_000, "px"),
+  nominalFrameRateFps: positive("Nominal frame rate", 10_000, "frames/s"),
+  frameIntervals: positive("Frame intervals counted", 10_000_000, "intervals"),
+  frameIntervalsUncertainty: nonNegative("Uncertainty of the count", 1_000, "intervals"),
+  referenceElapsedS: positive("Elapsed time by the reference", 86_400, "s"),
+  referenceElapsedUncertaintyS: nonNegative("Uncertainty of the elapsed time", 3_600, "s"),
+});
+
+function kindNeeds(v: z.infer<typeof calibrationFields>, ctx: z.RefinementCtx) {
+  const need = (field: keyof typeof v, message: string) => {
+    if (v[field] === undefined) ctx.addIssue({ code: "custom", path: [field], message });
+  };
+  if (v.dueOn && v.dueOn < v.performedOn) {
+    ctx.addIssue({ code: "custom", path: ["dueOn"], message: "The due date cannot be before the calibration date." });
+  }
+  if (v.kind === "rate") {
+    need("meterId", "Choose the rate meter the readings were taken with.");
+    const n = v.readings?.length ?? 0;
+    if (n < MIN_RATE_READINGS) {
+      ctx.addIssue({ code: "custom", path: ["readings"], message: `Enter readings at ${MIN_RATE_READINGS} or more set rates (${n} entered).` });
+    } else if (new Set(v.readings!.map((r) => r.setRpm)).size < 2) {
+      ctx.addIssue({ code: "custom", path: ["readings"], message: "Use at least two different set rates, or no line can be fitted." });
     }
-    if (v.kind === "rate") {
-      need("meterId", "Choose the rate meter the readings were taken with.");
-      const n = v.readings?.length ?? 0;
-      if (n < MIN_RATE_READINGS) {
-        ctx.addIssue({ code: "custom", path: ["readings"], message: `Enter readings at ${MIN_RATE_READINGS} or more set rates (${n} entered).` });
-      } else if (new Set(v.readings!.map((r) => r.setRpm)).size < 2) {
-        ctx.addIssue({ code: "custom", path: ["readings"], message: "Use at least two different set rates, or no line can be fitted." });
-      }
-    }
-    if (v.kind === "scale") {
-      need("knownLengthMm", "Enter the known length.");
-      need("knownLengthUncertaintyMm", "Enter the uncertainty of the known length (0 if exact).");
-      need("lengthPx", "Enter the length measured in the image.");
-      need("lengthUncertaintyPx", "Enter the uncertainty in pixels (e.g. 1 px).");
-    }
-    if (v.kind === "timing") {
-      need("nominalFrameRateFps", "Enter the camera's nominal frame rate.");
-      need("frameIntervals", "Enter how many frame intervals you counted.");
-      need("frameIntervalsUncertainty", "Enter the uncertainty of the count (e.g. 1).");
-      need("referenceElapsedS", "Enter the elapsed time by the reference clock or meter.");
-      need("referenceElapsedUncertaintyS", "Enter the uncertainty of the elapsed time.");
-    }
-  });
+  }
+  if (v.kind === "scale") {
+    need("knownLengthMm", "Enter the known length.");
+    need("knownLengthUncertaintyMm", "Enter the uncertainty of the known length (0 if exact).");
+    need("lengthPx", "Enter the length measured in the image.");
+    need("lengthUncertaintyPx", "Enter the uncertainty in pixels (e.g. 1 px).");
+  }
+  if (v.kind === "timing") {
+    need("nominalFrameRateFps", "Enter the camera's nominal frame rate.");
+    need("frameIntervals", "Enter how many frame intervals you counted.");
+    need("frameIntervalsUncertainty", "Enter the uncertainty of the count (e.g. 1).");
+    need("referenceElapsedS", "Enter the elapsed time by the reference clock or meter.");
+    need("referenceElapsedUncertaintyS", "Enter the uncertainty of the elapsed time.");
+  }
+}
+
+export const calibrationSchema = calibrationFields.superRefine(kindNeeds);
+/** The API's body: the same fields, refusing ones it does not know so a misspelt field is an error, not dropped. */
+export const calibrationApiSchema = calibrationFields.strict().superRefine(kindNeeds);
 
 export type CalibrationInput = z.infer<typeof calibrationSchema>;

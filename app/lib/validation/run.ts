@@ -1,16 +1,17 @@
 import { z } from "zod";
+import { dateInput, FIRST_YEAR, LAST_YEAR, strictNumber } from "./fields";
 
 const num = (what: string) =>
-  z.preprocess((v) => (v === "" || v === null ? undefined : v), z.coerce.number({ error: `Enter the ${what}.` }));
+  strictNumber(z.preprocess((v) => (v === "" || v === null ? undefined : v), z.coerce.number({ error: `Enter the ${what}.` })));
 
 /**
  * The run log form. Lengths are entered in cm and stored in metres; limits that depend on the
  * chosen equipment (table maximum, tank depth) are checked against the register on the server.
  */
 export const runSchema = z.object({
-  tableId: z.coerce.number({ error: "Choose the table." }).int().positive("Choose the table."),
-  tankId: z.coerce.number({ error: "Choose the tank." }).int().positive("Choose the tank."),
-  cameraId: z.coerce.number({ error: "Choose the camera." }).int().positive("Choose the camera."),
+  tableId: strictNumber(z.coerce.number({ error: "Choose the table." }).int().positive("Choose the table.")),
+  tankId: strictNumber(z.coerce.number({ error: "Choose the tank." }).int().positive("Choose the tank.")),
+  cameraId: strictNumber(z.coerce.number({ error: "Choose the camera." }).int().positive("Choose the camera.")),
   setRateRpm: num("set rate")
     .refine((v) => Number.isFinite(v), "Enter the set rate as a number.")
     .refine((v) => v > 0, "The set rate must be above 0 rpm; choose the direction below for clockwise runs.")
@@ -21,15 +22,15 @@ export const runSchema = z.object({
     .refine((v) => v >= 0, "Water below 0 °C would be ice: check the thermometer reading.")
     .refine((v) => v <= 40, "Above 40 °C is outside what Tankside's water properties cover (0–40 °C)."),
   rateReachedAt: z.preprocess(
-    (v) => (v === "" || v === null ? undefined : v),
-    z.coerce.date({ error: "Give the time the table reached its rate as a date and time." }).optional(),
+    (v) => (v === "" || v === null ? undefined : dateInput(v)),
+    z.coerce.date({ error: `Give the time the table reached its rate as a date and time between ${FIRST_YEAR} and ${LAST_YEAR}.` }).optional(),
   ),
   cameraMode: z.enum(["rotating", "lab"], { error: "Say whether the camera rides on the table or stands in the room." }),
   frameRateFps: num("frame rate").refine((v) => v > 0, "The frame rate must be more than 0 frames per second.").refine((v) => v <= 1000, "Above 1000 frames/s is beyond the cameras Tankside handles."),
   tracer: z.enum(["float", "dye"], { error: "Choose float or dye." }),
   purpose: z.string({ error: "Say what the run is for." }).trim().min(3, "Say what the run is for (a few words).").max(300, "Keep the purpose under 300 characters."),
   notes: z.preprocess((v) => (v === "" ? undefined : v), z.string().max(5000, "Keep notes under 5000 characters.").optional()),
-  supersedesId: z.preprocess((v) => (v === "" || v === null ? undefined : v), z.coerce.number().int().positive().optional()),
+  supersedesId: strictNumber(z.preprocess((v) => (v === "" || v === null ? undefined : v), z.coerce.number().int().positive().optional())),
 });
 
 export type RunInput = z.infer<typeof runSchema>;

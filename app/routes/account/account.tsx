@@ -2,6 +2,7 @@ import { Form, data, useActionData } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/account";
+import { readForm } from "~/.server/http";
 import { requireUser } from "~/.server/auth/permissions";
 import { getSession } from "~/.server/auth/session";
 import { changeOwnPassword, PeopleError } from "~/.server/people";
@@ -47,7 +48,7 @@ const hidden = ["current", "password", "confirm"];
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = form.get("intent");
   if (intent === "password") {
     const submission = parseWithZod(form, { schema: changePasswordSchema });

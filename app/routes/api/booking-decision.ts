@@ -1,6 +1,6 @@
 import type { Route } from "./+types/booking-decision";
 import { requireRole, requireUser } from "~/.server/auth/permissions";
-import { readJson } from "~/.server/http";
+import { parseId, readJson } from "~/.server/http";
 import { approveBooking, cancelBooking, declineBooking, serializeBooking } from "~/.server/bookings";
 import { invalidInput, mailReport, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 import { declineSchema } from "~/lib/validation/bookings";
@@ -8,10 +8,10 @@ import { declineSchema } from "~/lib/validation/bookings";
 /** POST /api/v1/bookings/:id/approve | /decline {"reason"} | /cancel — one module, three routes. */
 export async function action({ request, params }: Route.ActionArgs) {
   const what = new URL(request.url).pathname.split("/").pop();
-  const id = Number(params.id);
   if (what === "cancel") {
     const user = await requireUser(request);
     if (request.method !== "POST") return methodNotAllowed("POST");
+    const id = parseId(request, params.id, "That booking");
     try {
       const { booking, mail } = await cancelBooking(id, user);
       return Response.json({ ...(await serializeBooking(booking)), mail: mailReport(mail) });
@@ -21,6 +21,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
   const manager = await requireRole(request, "lab_manager");
   if (request.method !== "POST") return methodNotAllowed("POST");
+  const id = parseId(request, params.id, "That booking");
   try {
     if (what === "approve") {
       const { booking, mail } = await approveBooking(id, manager);

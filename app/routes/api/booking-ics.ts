@@ -1,12 +1,12 @@
 import type { Route } from "./+types/booking-ics";
 import { requireUser } from "~/.server/auth/permissions";
-import { apiError } from "~/.server/http";
+import { apiError, parseId } from "~/.server/http";
 import { bookingIcs, getBooking, serializeBooking } from "~/.server/bookings";
 
 /** GET /api/v1/bookings/:id/ics — one booking as an iCalendar (RFC 5545) file, for a signed-in person. */
 export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request);
-  const booking = await getBooking(Number(params.id));
+  const booking = await getBooking(parseId(request, params.id, "That booking"));
   if (!booking) return apiError(404, "not_found", "No booking with that id.");
   return new Response(bookingIcs(await serializeBooking(booking)), {
     headers: {

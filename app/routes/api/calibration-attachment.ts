@@ -1,12 +1,12 @@
 import type { Route } from "./+types/calibration-attachment";
-import { requireUser } from "~/.server/auth/permissions";
-import { apiError } from "~/.server/http";
+import { requireCapability } from "~/.server/auth/permissions";
+import { apiError, parseId } from "~/.server/http";
 import { readCalibrationAttachment } from "~/.server/uploads/calibration-attachments";
 
 /** GET /api/v1/calibrations/:id/attachments/:attachmentId — the stored file, for signed-in people only. */
 export async function loader({ request, params }: Route.LoaderArgs) {
-  await requireUser(request);
-  const found = await readCalibrationAttachment(Number(params.id), Number(params.attachmentId)).catch(() => null);
+  await requireCapability(request, "read_calibrations");
+  const found = await readCalibrationAttachment(parseId(request, params.id, "That attachment"), parseId(request, params.attachmentId, "That attachment")).catch(() => null);
   if (!found) return apiError(404, "not_found", "No such attachment.");
   const inline = found.row.contentType.startsWith("image/") || found.row.contentType === "application/pdf";
   const safeName = found.row.originalName.replace(/[^\w.\- ]+/g, "_");

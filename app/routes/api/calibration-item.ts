@@ -1,13 +1,13 @@
 import type { Route } from "./+types/calibration-item";
-import { requireRole, requireUser } from "~/.server/auth/permissions";
-import { apiError, readJson } from "~/.server/http";
+import { requireCapability } from "~/.server/auth/permissions";
+import { apiError, parseId, readJson } from "~/.server/http";
 import { getCalibration, serializeCalibrations, updateCalibration } from "~/.server/calibrations";
 import { invalidInput, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
-import { calibrationSchema } from "~/lib/validation/calibrations";
+import { calibrationApiSchema } from "~/lib/validation/calibrations";
 
 export async function loader({ request, params }: Route.LoaderArgs) {
-  await requireUser(request);
-  const cal = await getCalibration(Number(params.id));
+  await requireCapability(request, "read_calibrations");
+  const cal = await getCalibration(parseId(request, params.id, "That calibration record"));
   if (!cal) return apiError(404, "not_found", "No calibration record with that id.");
   const [view] = await serializeCalibrations([cal]);
   return Response.json(view);
@@ -15,12 +15,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 /** PUT /api/v1/calibrations/:id — replaces a record not yet signed off; a signed one answers 409. */
 export async function action({ request, params }: Route.ActionArgs) {
-  const user = await requireRole(request, "technician", "lab_manager");
+  const user = await requireCapability(request, "record_calibration");
   if (request.method !== "PUT" && request.method !== "PATCH") return methodNotAllowed("GET, PUT");
-  const parsed = calibrationSchema.safeParse(await readJson(request));
+  const id = parseId(request, params.id, "That calibration record");
+  const parsed = calibrationApiSchema.safeParse(await readJson(request));
   if (!parsed.success) return invalidInput(parsed.error);
   try {
-    const cal = await updateCalibration(Number(params.id), parsed.data, user);
+    const cal = await updateCalibration(id, parsed.data, user);
     const [view] = await serializeCalibrations([cal]);
     return Response.json(view);
   } catch (err) {

@@ -1,22 +1,25 @@
 import type { Route } from "./+types/calibrations";
-import { requireRole, requireUser } from "~/.server/auth/permissions";
-import { readJson } from "~/.server/http";
+import { requireCapability } from "~/.server/auth/permissions";
+import { apiError, readJson } from "~/.server/http";
 import { createCalibration, listCalibrations, serializeCalibrations } from "~/.server/calibrations";
 import { invalidInput, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
-import { calibrationSchema } from "~/lib/validation/calibrations";
+import { calibrationApiSchema } from "~/lib/validation/calibrations";
 
-/** GET /api/v1/calibrations?equipmentId= — anyone signed in reads the records. */
+/** GET /api/v1/calibrations?equipmentId= — every role reads the records. */
 export async function loader({ request }: Route.LoaderArgs) {
-  await requireUser(request);
-  const equipmentId = Number(new URL(request.url).searchParams.get("equipmentId") ?? "") || undefined;
+  await requireCapability(request, "read_calibrations");
+  const raw = new URL(request.url).searchParams.get("equipmentId");
+  // A filter that cannot be an id is an error, not a silently unfiltered list.
+  if (raw && !/^[1-9]\d{0,14}$/.test(raw)) return apiError(400, "invalid_filter", "equipmentId must be the id number of one piece of equipment.");
+  const equipmentId = raw ? Number(raw) : undefined;
   return Response.json(await serializeCalibrations(await listCalibrations({ equipmentId })));
 }
 
 /** POST /api/v1/calibrations — technicians and lab managers record calibrations. */
 export async function action({ request }: Route.ActionArgs) {
-  const user = await requireRole(request, "technician", "lab_manager");
+  const user = await requireCapability(request, "record_calibration");
   if (request.method !== "POST") return methodNotAllowed("GET, POST");
-  const parsed = calibrationSchema.safeParse(await readJson(request));
+  const parsed = calibrationApiSchema.safeParse(await readJson(request));
   if (!parsed.success) return invalidInput(parsed.error);
   try {
     const cal = await createCalibration(parsed.data, user);

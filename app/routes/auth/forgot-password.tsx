@@ -2,6 +2,7 @@ import { Form, data } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/forgot-password";
+import { readForm } from "~/.server/http";
 import { requestPasswordReset } from "~/.server/people";
 import { forgotSchema, RESET_MINUTES } from "~/lib/validation/people";
 import { Button } from "~/components/ui/button";
@@ -11,7 +12,7 @@ import { Notice } from "~/components/ui/notice";
 export const meta: Route.MetaFunction = () => [{ title: "Forgot password · Tankside" }];
 
 export async function action({ request }: Route.ActionArgs) {
-  const submission = parseWithZod(await request.formData(), { schema: forgotSchema });
+  const submission = parseWithZod(await readForm(request), { schema: forgotSchema });
   if (submission.status !== "success") return data({ result: submission.reply(), sent: false, mailError: null }, { status: 400 });
   const outcome = await requestPasswordReset(submission.value.email);
   if (outcome && !outcome.ok) {

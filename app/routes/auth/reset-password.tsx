@@ -2,6 +2,7 @@ import { Form, data } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/reset-password";
+import { readForm } from "~/.server/http";
 import { findUsableToken, PeopleError, setPasswordWithToken } from "~/.server/people";
 import { startSession } from "~/.server/auth/session";
 import { passwordProblem } from "~/.server/auth/password-strength";
@@ -28,7 +29,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const purpose = purposeOf(request);
-  const submission = parseWithZod(await request.formData(), { schema: setPasswordSchema });
+  const submission = parseWithZod(await readForm(request), { schema: setPasswordSchema });
   if (submission.status !== "success") return data(submission.reply({ hideFields: ["password", "confirm"] }), { status: 400 });
   // Judged before the link is spent, against the person the link belongs to.
   const found = await findUsableToken(params.token, purpose);

@@ -2,6 +2,7 @@ import { Form, data, redirect, useNavigation } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/sign-in";
+import { readForm } from "~/.server/http";
 import { authenticator, SignInError, SIGN_IN_FAILED } from "~/.server/auth/authenticator";
 import { getCurrentUser, safeRedirectTo } from "~/.server/auth/permissions";
 import { startSession } from "~/.server/auth/session";
@@ -33,7 +34,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request, context }: Route.ActionArgs) {
-  const form = await request.clone().formData();
+  const form = await readForm(request.clone());
   const submission = parseWithZod(form, { schema: signInSchema });
   if (submission.status !== "success") {
     return data(submission.reply({ hideFields: ["password"] }), { status: 400 });

@@ -1,7 +1,7 @@
 import { Form, data } from "react-router";
 import type { Route } from "./+types/detail";
 import { requireUser } from "~/.server/auth/permissions";
-import { notFound } from "~/.server/http";
+import { notFound, parseId, readForm } from "~/.server/http";
 import { BookingError, approveBooking, cancelBooking, declineBooking, getBooking, serializeBooking } from "~/.server/bookings";
 import { declineSchema } from "~/lib/validation/bookings";
 import { bookingStateLabels, tableBookingCaution } from "~/lib/bookings";
@@ -15,7 +15,7 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `Booking #${data
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
-  const booking = await getBooking(Number(params.id));
+  const booking = await getBooking(parseId(request, params.id, "That booking"));
   if (!booking) throw notFound(request, "That booking");
   return { user, booking: await serializeBooking(booking), now: Date.now() };
 }
@@ -24,9 +24,9 @@ type Outcome = { notice?: string; problem?: string; reasonError?: string };
 
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireUser(request);
-  const form = await request.formData();
+  const id = parseId(request, params.id, "That booking");
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
-  const id = Number(params.id);
   const mailNote = (mail: { ok: boolean; error?: string }) => (mail.ok ? {} : { problem: `Saved, but the e-mail failed: ${mail.error}` });
   try {
     if (intent === "approve") {

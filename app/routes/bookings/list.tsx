@@ -4,6 +4,7 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { useState } from "react";
 import { addDays, format, startOfWeek } from "date-fns";
 import type { Route } from "./+types/list";
+import { readForm } from "~/.server/http";
 import rbcStyles from "react-big-calendar/lib/css/react-big-calendar.css?url";
 import weekStyles from "~/components/booking-week.css?url";
 import { requireUser } from "~/.server/auth/permissions";
@@ -80,7 +81,7 @@ type Outcome = { request?: SubmissionResult<string[]>; notice?: string; problem?
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const id = Number(form.get("bookingId"));
   const mailNote = (mail: { ok: boolean; error?: string }, who: string) => (mail.ok ? {} : { problem: `Saved, but the e-mail to ${who} failed: ${mail.error}` });

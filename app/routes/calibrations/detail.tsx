@@ -2,9 +2,11 @@ import { Form, data } from "react-router";
 import type { Route } from "./+types/detail";
 import uppyCore from "@uppy/core/css/style.min.css?url";
 import uppyDashboard from "@uppy/dashboard/css/style.min.css?url";
-import { requireRole, requireUser } from "~/.server/auth/permissions";
-import { notFound } from "~/.server/http";
+import { can, requireCapability } from "~/.server/auth/permissions";
+import { notFound, parseId, readForm } from "~/.server/http";
 import { CalibrationError, getCalibration, serializeCalibrations, signOffCalibration } from "~/.server/calibrations";
+import { getCalibrationHistory } from "~/.server/calibration-history";
+import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { calibrationKindLabels, trueRateFromCalibration } from "~/lib/calibrations";
 import { formatDate, formatDateTime, formatNumber } from "~/lib/format";
 import { Button, ButtonLink } from "~/components/ui/button";
@@ -20,19 +22,20 @@ export const links: Route.LinksFunction = () => [
 ];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const user = await requireUser(request);
-  const cal = await getCalibration(Number(params.id));
+  const user = await requireCapability(request, "read_calibrations");
+  const cal = await getCalibration(parseId(request, params.id, "That calibration record"));
   if (!cal) throw notFound(request, "That calibration record");
-  const [record] = await serializeCalibrations([cal]);
-  return { record: record!, canRecord: user.role !== "instructor", canSign: user.role === "lab_manager" };
+  const [[record], history] = await Promise.all([serializeCalibrations([cal]), getCalibrationHistory(cal.id)]);
+  return { record: record!, history, canRecord: can(user, "record_calibration"), canSign: can(user, "sign_off_calibration") };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const manager = await requireRole(request, "lab_manager");
-  const intent = String((await request.formData()).get("intent") ?? "");
+  const manager = await requireCapability(request, "sign_off_calibration");
+  const id = parseId(request, params.id, "That calibration record");
+  const intent = String((await readForm(request)).get("intent") ?? "");
   if (intent !== "sign-off") return data({ problem: "Unknown action." }, { status: 400 });
   try {
-    await signOffCalibration(Number(params.id), manager);
+    await signOffCalibration(id, manager);
     return { notice: "Signed off. From now on this record is kept exactly as it is." };
   } catch (err) {
     if (err instanceof CalibrationError) return data({ problem: err.message }, { status: err.status });
@@ -153,6 +156,9 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
             <p className="mb-4 text-muted">None attached.</p>
           )}
           {!signed && loaderData.canRecord ? <CalibrationUploader calibrationId={r.id} /> : signed ? <p className="text-sm text-muted">Signed records take no new attachments.</p> : null}
+        </Card>
+        <Card title="History">
+          <RunHistoryList entries={loaderData.history} events={["created", "attachment", "signedOff"]} testId="calibration-history" />
         </Card>
       </div>
     </div>

@@ -3,8 +3,8 @@ import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { useState } from "react";
 import type { Route } from "./+types/edit";
-import { requireRole } from "~/.server/auth/permissions";
-import { notFound } from "~/.server/http";
+import { requireCapability } from "~/.server/auth/permissions";
+import { notFound, parseId, readForm } from "~/.server/http";
 import { CalibrationError, createCalibration, getCalibration, serializeCalibrations, toDayString, updateCalibration } from "~/.server/calibrations";
 import { listEquipment } from "~/.server/equipment";
 import { getLabSettings } from "~/.server/settings";
@@ -21,12 +21,12 @@ const ROWS = 8;
 
 /** One module for /calibrations/new and /calibrations/:id/edit (only while not signed off). */
 export async function loader({ request, params }: Route.LoaderArgs) {
-  await requireRole(request, "technician", "lab_manager");
+  await requireCapability(request, "record_calibration");
   const [items, settings] = await Promise.all([listEquipment(), getLabSettings()]);
   const url = new URL(request.url);
   let record = null;
   if (params.id) {
-    const cal = await getCalibration(Number(params.id));
+    const cal = await getCalibration(parseId(request, params.id, "That calibration record"));
     if (!cal) throw notFound(request, "That calibration record");
     [record] = await serializeCalibrations([cal]);
   }
@@ -40,11 +40,12 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const user = await requireRole(request, "technician", "lab_manager");
-  const submission = parseWithZod(await request.formData(), { schema: calibrationSchema });
+  const user = await requireCapability(request, "record_calibration");
+  const id = params.id === undefined ? undefined : parseId(request, params.id, "That calibration record");
+  const submission = parseWithZod(await readForm(request), { schema: calibrationSchema });
   if (submission.status !== "success") return data(submission.reply(), { status: 400 });
   try {
-    const cal = params.id ? await updateCalibration(Number(params.id), submission.value, user) : await createCalibration(submission.value, user);
+    const cal = id ? await updateCalibration(id, submission.value, user) : await createCalibration(submission.value, user);
     return redirect(`/calibrations/${cal.id}`);
   } catch (err) {
     if (err instanceof CalibrationError) {

@@ -1,6 +1,6 @@
 import { Link } from "react-router";
 import type { Route } from "./+types/list";
-import { requireRole } from "~/.server/auth/permissions";
+import { can, requireCapability } from "~/.server/auth/permissions";
 import { listCalibrations, listCalibrationsDueOrExpired, serializeCalibrations } from "~/.server/calibrations";
 import { getLabSettings } from "~/.server/settings";
 import { calibrationKindLabels } from "~/lib/calibrations";
@@ -13,21 +13,21 @@ import { StandingTag, calibrationResult } from "~/components/calibration-facts";
 export const meta: Route.MetaFunction = () => [{ title: "Calibrations · Tankside" }];
 
 export async function loader({ request }: Route.LoaderArgs) {
-  await requireRole(request, "technician", "lab_manager");
+  const user = await requireCapability(request, "read_calibrations");
   const settings = await getLabSettings();
   const [due, all] = await Promise.all([listCalibrationsDueOrExpired(settings.calibrationReminderDays), listCalibrations()]);
   const records = await serializeCalibrations(all);
   // Due and past-due first, then drafts awaiting sign-off, then the rest newest first.
   const rank = (id: number, standing: string) => (due.some((d) => d.id === id) ? 0 : standing === "draft" ? 1 : 2);
   records.sort((a, b) => rank(a.id, a.standing) - rank(b.id, b.standing) || b.performedOn.localeCompare(a.performedOn));
-  return { due, records, reminderDays: settings.calibrationReminderDays };
+  return { due, records, reminderDays: settings.calibrationReminderDays, canRecord: can(user, "record_calibration") };
 }
 
 export default function Calibrations({ loaderData }: Route.ComponentProps) {
   const { due, records } = loaderData;
   return (
     <div>
-      <PageHeader title="Calibrations" subtitle="Every record, with what is due or past due first." actions={<ButtonLink to="/calibrations/new" tone="primary">Record a calibration</ButtonLink>} />
+      <PageHeader title="Calibrations" subtitle="Every record, with what is due or past due first." actions={loaderData.canRecord ? <ButtonLink to="/calibrations/new" tone="primary">Record a calibration</ButtonLink> : null} />
       {due.length ? (
         <div className="mb-6">
           <Notice kind={due.some((d) => d.pastDue) ? "error" : "caution"} title={`${due.length} due within ${loaderData.reminderDays} days or past due`}>

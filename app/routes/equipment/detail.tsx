@@ -1,7 +1,7 @@
 import type { Route } from "./+types/detail";
 import { requireUser } from "~/.server/auth/permissions";
 import { getEquipment, serializeEquipment } from "~/.server/equipment";
-import { notFound } from "~/.server/http";
+import { notFound, parseId } from "~/.server/http";
 import { kindLabels } from "~/lib/equipment";
 import { ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
@@ -14,7 +14,7 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.item.na
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
-  const item = await getEquipment(Number(params.id));
+  const item = await getEquipment(parseId(request, params.id, "That piece of equipment"));
   if (!item) throw notFound(request, "That piece of equipment");
   const [calibrations, bookings] = await Promise.all([
     equipmentCalibrationSummary(item.id, item.kind),

@@ -5,7 +5,7 @@ import { useState } from "react";
 import type { Route } from "./+types/edit";
 import { requireRole } from "~/.server/auth/permissions";
 import { createEquipment, getEquipment, serializeEquipment, updateEquipment } from "~/.server/equipment";
-import { notFound } from "~/.server/http";
+import { notFound, parseId, readForm } from "~/.server/http";
 import { equipmentSchema } from "~/lib/validation/equipment";
 import { equipmentKinds, equipmentStatuses, kindLabels, meterTypes, statusLabels, type EquipmentKind } from "~/lib/equipment";
 import { Button } from "~/components/ui/button";
@@ -19,21 +19,22 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.item ? 
 export async function loader({ request, params }: Route.LoaderArgs) {
   await requireRole(request, "lab_manager");
   if (!params.id) return { item: null };
-  const item = await getEquipment(Number(params.id));
+  const item = await getEquipment(parseId(request, params.id, "That piece of equipment"));
   if (!item) throw notFound(request, "That piece of equipment");
   return { item: serializeEquipment(item) };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
   await requireRole(request, "lab_manager");
-  const submission = parseWithZod(await request.formData(), { schema: equipmentSchema });
+  const id = params.id === undefined ? undefined : parseId(request, params.id, "That piece of equipment");
+  const submission = parseWithZod(await readForm(request), { schema: equipmentSchema });
   if (submission.status !== "success") return data(submission.reply(), { status: 400 });
-  if (!params.id) {
+  if (!id) {
     const item = await createEquipment(submission.value);
     return redirect(`/equipment/${item.id}`);
   }
   try {
-    const item = await updateEquipment(Number(params.id), submission.value);
+    const item = await updateEquipment(id, submission.value);
     if (!item) throw notFound(request, "That piece of equipment");
     return redirect(`/equipment/${item.id}`);
   } catch (err) {

@@ -2,6 +2,7 @@ import { Form, data } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/people";
+import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
 import { invitePerson, listPeople, PeopleError, changeRole, resendInvitation, setActive } from "~/.server/people";
 import { inviteSchema, roleChangeSchema } from "~/lib/validation/people";
@@ -26,7 +27,7 @@ type Outcome = { notice?: string; problem?: string };
 
 export async function action({ request }: Route.ActionArgs) {
   const me = await requireRole(request, "lab_manager");
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   try {
     if (intent === "invite") {

@@ -3,6 +3,7 @@ import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { useState } from "react";
 import type { Route } from "./+types/edit";
+import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
 import { listEquipment, serializeEquipment } from "~/.server/equipment";
 import { createRun, RunError, RunValidationError, updateRun } from "~/.server/runs/service";
@@ -39,7 +40,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireRole(request, "technician", "lab_manager");
-  const submission = parseWithZod(await request.formData(), { schema: runSchema });
+  const submission = parseWithZod(await readForm(request), { schema: runSchema });
   if (submission.status !== "success") return data(submission.reply(), { status: 400 });
   try {
     if (params.id) {

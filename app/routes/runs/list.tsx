@@ -13,6 +13,7 @@ import {
   type Updater,
 } from "@tanstack/react-table";
 import type { Route } from "./+types/list";
+import { readForm } from "~/.server/http";
 import type { loader as rowsLoader } from "./rows";
 import { requireUser } from "~/.server/auth/permissions";
 import {
@@ -66,7 +67,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 /** Saves the person's column choice; the table itself is already showing it. */
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
-  const form = await request.formData();
+  const form = await readForm(request);
   if (form.get("intent") !== "columns") return data({ ok: false, message: "Unknown action." }, { status: 400 });
   let hidden: unknown;
   try {

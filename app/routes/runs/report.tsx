@@ -1,6 +1,7 @@
 import type { ReactNode } from "react";
 import { data } from "react-router";
 import type { Route } from "./+types/report";
+import { parseId } from "~/.server/http";
 import { requireUser } from "~/.server/auth/permissions";
 import { getRunDetail, getSignOffView, getRunHistory } from "~/.server/runs/record";
 import { Run } from "~/.server/db";
@@ -21,8 +22,8 @@ export const meta: Route.MetaFunction = ({ data: d }) => [{ title: d ? `${d.run.
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
-  const runId = Number(params.id);
-  const model = Number.isInteger(runId) && runId > 0 ? await Run.findByPk(runId) : null;
+  const runId = parseId(request, params.id, "That run");
+  const model = await Run.findByPk(runId);
   if (!model) throw data("That run does not exist.", { status: 404 });
   const current = await currentCheck(model);
   const [run, signOff, history] = await Promise.all([getRunDetail(runId, { full: true, current }), getSignOffView(model, user, current), getRunHistory(runId)]);

@@ -22,6 +22,7 @@ import { getRunRecordParts } from "~/.server/runs/record";
 import { currentCheck } from "~/.server/runs/provenance";
 import { calibrationKindLabels } from "~/lib/calibrations";
 import { flaggedCalibrations } from "~/lib/calibrations-applied";
+import { roleCan } from "~/lib/roles";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? runLabel(data.run.id) : "Run"} · Tankside` }];
 
@@ -89,7 +90,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         return (
           <Notice key={c.id} kind="caution" title={`The ${calibrationKindLabels[c.kind].toLowerCase()} of ${item?.name ?? "an item"} was past due when this run was logged`}>
             It fell due {formatDateTime(c.dueAt)}; the theory check used {c.kind === "rate" ? "the set rate, uncalibrated" : "no calibration of this kind"}.
-            {d.user.role !== "instructor" ? <> <Link to={`/calibrations/${c.id}`}>See the record</Link>.</> : null}
+            {roleCan(d.user.role, "read_calibrations") ? <> <Link to={`/calibrations/${c.id}`}>See the record</Link>.</> : null}
           </Notice>
         );
       })}
@@ -111,7 +112,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
                 <ul>
                   {d.calibrations.inForce.map((c) => (
                     <li key={c.id}>
-                      {d.user.role !== "instructor" ? <Link to={`/calibrations/${c.id}`}>{calibrationKindLabels[c.kind]} #{c.id}</Link> : `${calibrationKindLabels[c.kind]} #${c.id}`} of {[d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId)?.name ?? "?"}, due {formatDateTime(c.dueAt)}
+                      {roleCan(d.user.role, "read_calibrations") ? <Link to={`/calibrations/${c.id}`}>{calibrationKindLabels[c.kind]} #{c.id}</Link> : `${calibrationKindLabels[c.kind]} #${c.id}`} of {[d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId)?.name ?? "?"}, due {formatDateTime(c.dueAt)}
                     </li>
                   ))}
                 </ul>

@@ -1,6 +1,7 @@
 import { Form, data, redirect } from "react-router";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/setup";
+import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
 import { Frame, Run, ViewSetup } from "~/.server/db";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
@@ -66,7 +67,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireRole(request, "technician", "lab_manager");
   const run = await loadRun(request, params.id);
   requireChangeable(request, run, user);
-  const submission = parseWithZod(await request.formData(), { schema: viewSetupSchema });
+  const submission = parseWithZod(await readForm(request), { schema: viewSetupSchema });
   if (submission.status !== "success") return data({ errors: submission.reply().error ?? {} }, { status: 400 });
   const v = submission.value;
   const w = run.frameWidthPx ?? 0;

@@ -1,5 +1,6 @@
 import { data, redirect } from "react-router";
 import type { Route } from "./+types/sign-off";
+import { parseId, readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
 import { RunError } from "~/.server/runs/service";
 import { signOffRun } from "~/.server/runs/record";
@@ -7,12 +8,11 @@ import { signOffRun } from "~/.server/runs/record";
 /** POST /runs/:id/sign-off (lab manager): signs a checked run off; afterwards it is read-only everywhere. */
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireRole(request, "lab_manager");
-  const form = await request.formData();
+  const runId = parseId(request, params.id, "That run");
+  const form = await readForm(request);
   if (form.get("confirm") !== "yes") {
     return data({ ok: false as const, message: "Tick the box to confirm you have checked the run before signing it off." }, { status: 400 });
   }
-  const runId = Number(params.id);
-  if (!Number.isInteger(runId) || runId < 1) throw data("That run does not exist.", { status: 404 });
   try {
     await signOffRun(runId, user);
   } catch (err) {

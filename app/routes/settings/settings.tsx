@@ -2,6 +2,7 @@ import { Form, data } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/settings";
+import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
 import { getLabSettings, setLabSetting } from "~/.server/settings";
 import { refitUnsignedRuns } from "~/.server/runs/rechecks";
@@ -21,7 +22,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireRole(request, "lab_manager");
-  const submission = parseWithZod(await request.formData(), { schema: labSettingsSchema });
+  const submission = parseWithZod(await readForm(request), { schema: labSettingsSchema });
   if (submission.status !== "success") return data({ result: submission.reply(), saved: false }, { status: 400 });
   const before = await getLabSettings();
   // Every value is checked before any is written, so a bad entry changes nothing.

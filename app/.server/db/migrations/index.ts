@@ -6,6 +6,7 @@ import * as m0004 from "./0004-calibrations-and-bookings";
 import * as m0005 from "./0005-run-log-preferences";
 import * as m0006 from "./0006-check-provenance";
 import * as m0008 from "./0008-session-idle-and-token-expiry";
+import * as m0009 from "./0009-calibration-history";
 import * as m0010 from "./0010-camera-scale-tolerance";
 
 export interface Migration {
@@ -23,5 +24,6 @@ export const migrations: Migration[] = [
   { name: "0005-run-log-preferences", ...m0005 },
   { name: "0006-check-provenance", ...m0006 },
   { name: "0008-session-idle-and-token-expiry", ...m0008 },
+  { name: "0009-calibration-history", ...m0009 },
   { name: "0010-camera-scale-tolerance", ...m0010 },
 ];

@@ -151,3 +151,27 @@ CalibrationReminder.init(
   },
   { sequelize, tableName: "calibration_reminders", underscored: true, timestamps: false },
 );
+
+/** One change to a calibration record: who, when, which field, old → new ("created", "attachment" and "signed off" too). */
+export class CalibrationHistory extends Model<InferAttributes<CalibrationHistory>, InferCreationAttributes<CalibrationHistory>> {
+  declare id: CreationOptional<number>;
+  declare calibrationId: number;
+  declare userId: number | null;
+  declare field: string;
+  declare oldValue: string | null;
+  declare newValue: string | null;
+  declare createdAt: CreationOptional<Date>;
+}
+
+CalibrationHistory.init(
+  {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    calibrationId: { type: DataTypes.INTEGER, allowNull: false },
+    userId: { type: DataTypes.INTEGER, allowNull: true },
+    field: { type: DataTypes.STRING(60), allowNull: false },
+    oldValue: { type: DataTypes.TEXT, allowNull: true },
+    newValue: { type: DataTypes.TEXT, allowNull: true },
+    createdAt: DataTypes.DATE,
+  },
+  { sequelize, tableName: "calibration_history", underscored: true, updatedAt: false },
+);

@@ -1,0 +1,74 @@
+import type { Transaction } from "sequelize";
+import { Calibration, CalibrationHistory, User } from "./db";
+
+/** The entered fields a history line is kept for, with the words the page shows; results follow from them. */
+export const calibrationFieldLabels: Record<string, string> = {
+  created: "recorded",
+  meterId: "rate meter",
+  readings: "readings",
+  performedAt: "calibration date",
+  dueAt: "due date",
+  notes: "notes",
+  knownLengthM: "known length (m)",
+  knownLengthUncertaintyM: "uncertainty of the known length (m)",
+  lengthPx: "length in the image (px)",
+  lengthUncertaintyPx: "uncertainty in pixels",
+  nominalFrameRateFps: "nominal frame rate (frames/s)",
+  frameIntervals: "frame intervals counted",
+  frameIntervalsUncertainty: "uncertainty of the count",
+  referenceElapsedS: "elapsed time by the reference (s)",
+  referenceElapsedUncertaintyS: "uncertainty of the elapsed time (s)",
+  attachment: "file attached",
+  signedOff: "signed off",
+};
+
+function dayOf(d: Date) {
+  return `${d.getFullYear()}-${String(d.getMonth() + 1).padStart(2, "0")}-${String(d.getDate()).padStart(2, "0")}`;
+}
+/** Calibration dates are days in the lab's time zone; everything else is shown as stored. */
+const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? dayOf(v) : String(v));
+
+/** One history line, written inside the caller's transaction so it stands or falls with the change. */
+export function noteCalibrationChange(t: Transaction, calibrationId: number, userId: number, field: string, oldValue: unknown, newValue: unknown) {
+  return CalibrationHistory.create({ calibrationId, userId, field, oldValue: show(oldValue), newValue: show(newValue) }, { transaction: t });
+}
+
+/** The entered fields an edit changes, old → new as shown; taken before the edit is written. */
+export function calibrationEdits(cal: Calibration, next: Record<string, unknown>) {
+  return Object.keys(calibrationFieldLabels)
+    .filter((field) => field in next)
+    .map((field) => ({ field, oldValue: show(cal.get(field as keyof Calibration)), newValue: show(next[field]) }))
+    .filter((c) => c.oldValue !== c.newValue);
+}
+
+/** A line for each of those changes, in the edit's transaction. */
+export async function noteCalibrationEdits(t: Transaction, calibrationId: number, userId: number, edits: ReturnType<typeof calibrationEdits>) {
+  for (const e of edits) await noteCalibrationChange(t, calibrationId, userId, e.field, e.oldValue, e.newValue);
+}
+
+export interface CalibrationHistoryEntry {
+  id: number;
+  at: string;
+  who: { id: number; name: string } | null;
+  field: string;
+  fieldLabel: string;
+  oldValue: string | null;
+  newValue: string | null;
+}
+
+/** Every change to a record, oldest first, with people's names. */
+export async function getCalibrationHistory(calibrationId: number): Promise<CalibrationHistoryEntry[]> {
+  const rows = await CalibrationHistory.findAll({ where: { calibrationId }, order: [["createdAt", "ASC"], ["id", "ASC"]] });
+  const userIds = [...new Set(rows.map((r) => r.userId).filter((id): id is number => id !== null))];
+  const users = userIds.length ? await User.findAll({ where: { id: userIds }, attributes: ["id", "name"] }) : [];
+  const names = new Map(users.map((u) => [u.id, u.name]));
+  return rows.map((r) => ({
+    id: r.id,
+    at: r.createdAt.toISOString(),
+    who: r.userId === null ? null : { id: r.userId, name: names.get(r.userId) ?? `#${r.userId}` },
+    field: r.field,
+    fieldLabel: calibrationFieldLabels[r.field] ?? r.field,
+    oldValue: r.oldValue,
+    newValue: r.newValue,
+  }));
+}

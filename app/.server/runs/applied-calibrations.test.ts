@@ -1,8 +1,10 @@
 import { beforeAll, describe, expect, it } from "vitest";
-import { Track, TrackingJob, ViewSetup } from "../db";
+import { Track, ViewSetup } from "../db";
 import { smallLab } from "../test-support";
 import { createRun } from "./service";
-import { checkRun, latestCheck } from "./theory";
+import { checkRun, storedCheck } from "./theory";
+import { currentCheck } from "./provenance";
+import { doneTrackingJob } from "./testing";
 import { getRunExport } from "./record";
 import { tracksCsv } from "./exports";
 import { createCalibration, signOffCalibration, toDayString } from "../calibrations";
@@ -36,13 +38,16 @@ function fastClockTrack(seconds = 6) {
 
 async function runWithTrack(setupPxPerM: number | null) {
   const run = await createRun(lab.runInput({ setRateRpm: SET_RPM, frameRateFps: NOMINAL_FPS }), lab.tech);
-  const job = await TrackingJob.create({ runId: run.id, requestedById: lab.tech.id, state: "done", framesTotal: 180, framesDone: 180, error: null, startedAt: new Date(), finishedAt: new Date() });
+  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: setupPxPerM, scalePoints: null, mirrored: false, createdById: lab.tech.id });
+  // The job is recorded after the view setup, as the queue would: its tracks count as made from the present inputs.
+  const job = await doneTrackingJob(run, lab.tech.id, 180);
   const points = fastClockTrack();
   await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify(points), pointCount: points.length, detectedShare: 1, jitterPx: 0 });
-  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: setupPxPerM, scalePoints: null, mirrored: false, createdById: lab.tech.id });
   await run.update({ state: "tracked" });
   await checkRun(run.id, lab.tech.id);
-  return { run, check: (await latestCheck(run.id))! };
+  const { check } = await currentCheck(run.id);
+  if (!check) throw new Error("the run's check is not current");
+  return { run, check: storedCheck(check) };
 }
 
 const yesterday = () => toDayString(new Date(Date.now() - 86_400_000));

@@ -82,6 +82,7 @@ export const policy: Record<string, Partial<Record<Method, Access>>> = {
   "routes/api/booking-feed": { GET: "public" },
   "routes/api/calibrations": { GET: signedIn, POST: labStaff },
   "routes/api/calibration-item": { GET: signedIn, PUT: labStaff, PATCH: labStaff },
+  "routes/api/run-sign-off": { POST: managers },
   "routes/api/calibration-sign-off": { POST: managers },
   "routes/api/calibration-attachments": { POST: labStaff },
   "routes/api/calibration-attachment": { GET: signedIn },

@@ -1,6 +1,6 @@
 import type { Route } from "./+types/run-sign-off";
 import { requireRole } from "~/.server/auth/permissions";
-import { apiError } from "~/.server/http";
+import { parseId } from "~/.server/http";
 import { methodNotAllowed } from "~/.server/api-responses";
 import { signOffRun } from "~/.server/runs/record";
 import { runErrorResponse, serializeRun } from "~/.server/runs/api";
@@ -13,8 +13,7 @@ import { runErrorResponse, serializeRun } from "~/.server/runs/api";
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireRole(request, "lab_manager");
   if (request.method !== "POST") return methodNotAllowed("POST");
-  const runId = Number(params.id);
-  if (!Number.isInteger(runId) || runId < 1) return apiError(404, "not_found", "No such run.");
+  const runId = parseId(request, params.id, "That run");
   try {
     return Response.json(serializeRun(await signOffRun(runId, user)));
   } catch (err) {

@@ -27,7 +27,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const form = await request.formData();
   const intent = String(form.get("intent") ?? "");
   const id = Number(params.id);
-  const mailNote = (mail: { ok: boolean; error?: string }) => (mail.ok ? {} : { problem: `Saved, but the e-mail failed: ${mail.error}` });
+  const mailNote = (mail: { queued: boolean }) => (mail.queued ? {} : { problem: "Saved, but there was nobody to e-mail about it." });
   try {
     if (intent === "approve") {
       const { mail } = await approveBooking(id, user);

@@ -4,6 +4,7 @@ import * as m0002 from "./0002-equipment";
 import * as m0003 from "./0003-runs-and-tracking";
 import * as m0004 from "./0004-calibrations-and-bookings";
 import * as m0005 from "./0005-run-log-preferences";
+import * as m0007 from "./0007-mail-outbox";
 
 export interface Migration {
   name: string;
@@ -18,4 +19,5 @@ export const migrations: Migration[] = [
   { name: "0003-runs-and-tracking", ...m0003 },
   { name: "0004-calibrations-and-bookings", ...m0004 },
   { name: "0005-run-log-preferences", ...m0005 },
+  { name: "0007-mail-outbox", ...m0007 },
 ];

@@ -7,6 +7,7 @@ vi.hoisted(() => {
 
 import { AuthToken, OutboxMail, User, migrate, sequelize } from "~/.server/db";
 import { OutboxSender } from "~/.server/mail/outbox-sender";
+import { passwordResetsSettled } from "~/.server/people";
 import { action } from "./forgot-password";
 
 const REAL = "reset-real@tankside.example";
@@ -22,10 +23,11 @@ afterAll(async () => {
   await sequelize.close();
 });
 
-/** The action's answer as the browser gets it: status and body. */
+/** The action's answer as the browser gets it (status and body), once the link it asked for is written. */
 async function ask(email: string) {
   const request = new Request("http://localhost/forgot-password", { method: "POST", body: new URLSearchParams({ email }) });
   const result = (await action({ request, params: {}, context: {} } as never)) as unknown;
+  await passwordResetsSettled();
   const wrapped = result as { type?: string; data?: unknown; init?: { status?: number } | null };
   return wrapped?.type === "DataWithResponseInit" ? { status: wrapped.init?.status ?? 200, body: JSON.stringify(wrapped.data) } : { status: 200, body: JSON.stringify(result) };
 }

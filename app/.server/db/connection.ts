@@ -49,7 +49,7 @@ function configureEveryConnection(sequelize: Sequelize) {
     const db = await open(options);
     if (!configured.has(db)) {
       configured.add(db);
-      await (sequelize as unknown as { runHooks: (name: string, ...args: unknown[]) => Promise<void> }).runHooks("afterConnect", db, options);
+      await sequelize.runHooks("afterConnect", db, options);
     }
     return db;
   };

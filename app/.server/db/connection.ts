@@ -35,34 +35,12 @@ function createSequelize(url: string): Sequelize {
   return new Sequelize(url, common);
 }
 
-/**
- * Sequelize's SQLite connection manager opens its own connections (one more per transaction) and
- * never runs `afterConnect` hooks, so the pragmas above were not applied: the journal stayed in
- * rollback mode with a full sync at every commit. Wrapping its getConnection applies them to every
- * new connection.
- */
-function configureEveryConnection(sequelize: Sequelize) {
-  const manager = sequelize.connectionManager as unknown as { getConnection: (options: unknown) => Promise<sqlite3.Database> };
-  const open = manager.getConnection.bind(manager);
-  const configured = new WeakSet<sqlite3.Database>();
-  manager.getConnection = async (options) => {
-    const db = await open(options);
-    if (!configured.has(db)) {
-      configured.add(db);
-      await sequelize.runHooks("afterConnect", db, options);
-    }
-    return db;
-  };
-}
-
 const globalKey = "__tanksideSequelize" as const;
 type GlobalWithDb = typeof globalThis & { [globalKey]?: { url: string; sequelize: Sequelize } };
 const g = globalThis as GlobalWithDb;
 
 if (!g[globalKey] || g[globalKey].url !== env.databaseUrl) {
-  const created = createSequelize(env.databaseUrl);
-  if (created.getDialect() === "sqlite") configureEveryConnection(created);
-  g[globalKey] = { url: env.databaseUrl, sequelize: created };
+  g[globalKey] = { url: env.databaseUrl, sequelize: createSequelize(env.databaseUrl) };
 }
 
 export const sequelize = g[globalKey].sequelize;

@@ -49,6 +49,7 @@ export default [
     route("me", "routes/api/me.ts"),
     route("users", "routes/api/users.ts"),
     route("mail", "routes/api/mail.ts"),
+    route("mail/outbox", "routes/api/mail-outbox.ts"),
     route("equipment", "routes/api/equipment.ts"),
     route("equipment/:id", "routes/api/equipment-item.ts"),
     route("runs", "routes/api/runs.ts"),

@@ -2,6 +2,7 @@ import type { ZodError } from "zod";
 import { apiError } from "./http";
 import { BookingError } from "./bookings";
 import { CalibrationError } from "./calibrations";
+import type { MailQueued } from "./mail/outbox";
 
 /** The API's answer to a refusal from the bookings or calibrations functions; anything else is rethrown. */
 export function refusalResponse(err: unknown): Response {
@@ -20,6 +21,7 @@ export function methodNotAllowed(allowed: string): Response {
   return Response.json({ error: { code: "method_not_allowed", message: `Use ${allowed} here.` } }, { status: 405, headers: { Allow: allowed } });
 }
 
-export function mailReport(mail: { ok: true } | { ok: false; error: string }) {
-  return mail.ok ? { sent: true } : { sent: false, error: mail.error };
+/** The mail a change caused: queued in the outbox (its delivery shows at /api/v1/mail/outbox), or nobody to tell. */
+export function mailReport(mail: MailQueued) {
+  return mail.queued ? { queued: true, outboxId: mail.id } : { queued: false };
 }

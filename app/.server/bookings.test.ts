@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import ICAL from "ical.js";
-import { Booking, CapturedMail, Equipment, User, migrate, sequelize } from "./db";
+import { Op } from "sequelize";
+import { Booking, CapturedMail, Equipment, OutboxMail, User, migrate, sequelize } from "./db";
 import {
   BookingError,
   approveBooking,
@@ -15,6 +16,7 @@ import {
   serializeBooking,
 } from "./bookings";
 import { stopFakeSmtp } from "./mail/fake-smtp";
+import { OutboxSender } from "./mail/outbox-sender";
 import { env } from "./env";
 import { ekmanSpinUpTimeS } from "~/lib/bookings";
 import { formatDateTime } from "~/lib/format";
@@ -26,6 +28,8 @@ let manager: User;
 let manager2: User;
 const asManager = () => ({ id: manager.id, role: "lab_manager" as const, name: manager.name });
 const asInstructor = () => ({ id: instructor.id, role: "instructor" as const, name: instructor.name });
+/** Delivers what is queued, as the server's sender does after each commit. */
+const deliver = () => new OutboxSender().drain();
 const hoursFromNow = (h: number) => new Date(Math.round((Date.now() + h * 3_600_000) / 60_000) * 60_000);
 
 beforeAll(async () => {
@@ -50,7 +54,8 @@ describe("requesting", () => {
   it("creates a requested booking and mails every active lab manager a link to it", async () => {
     const { booking, mail } = await request(24, 26);
     expect(booking.state).toBe("requested");
-    expect(mail.ok).toBe(true);
+    expect(mail.queued).toBe(true);
+    await deliver();
     const got = await CapturedMail.findOne({ where: { subject: `Booking requested: Booking table, ${formatDateTime(booking.startAt)} – ${formatDateTime(booking.endAt)}` } });
     expect(got!.envelopeTo.split(", ").sort()).toEqual([manager2.email, manager.email].sort());
     expect(got!.textBody).toContain(`${env.appUrl}/bookings/${booking.id}`);
@@ -98,7 +103,8 @@ describe("deciding", () => {
     await expect(approveBooking(booking.id, { id: instructor.id, role: "instructor", name: instructor.name })).rejects.toMatchObject({ status: 403 });
     await expect(declineBooking(booking.id, asManager(), "")).rejects.toMatchObject({ status: 422 });
     const { mail } = await declineBooking(booking.id, asManager(), "The table is being levelled that day.");
-    expect(mail.ok).toBe(true);
+    expect(mail.queued).toBe(true);
+    await deliver();
     const last = await CapturedMail.findOne({ order: [["id", "DESC"]] });
     expect(last!.subject).toMatch(/^Booking declined: Booking table/);
     expect(last!.envelopeTo).toBe(instructor.email);
@@ -122,12 +128,51 @@ describe("deciding", () => {
     await approveBooking(booking.id, asManager());
     const { booking: cancelled, mail } = await cancelBooking(booking.id, asInstructor());
     expect(cancelled.state).toBe("cancelled");
-    expect(mail.ok).toBe(true);
+    expect(mail.queued).toBe(true);
+    await deliver();
     const last = await CapturedMail.findOne({ order: [["id", "DESC"]] });
     expect(last!.subject).toMatch(/^Booking cancelled/);
     expect(last!.envelopeTo.split(", ").sort()).toEqual([instructor.email, manager.email, manager2.email].sort());
     await expect(cancelBooking(booking.id, asManager())).rejects.toMatchObject({ status: 409 });
     expect((await listBookings({ state: "cancelled", equipmentId: table.id })).map((b) => b.id)).toContain(booking.id);
+  });
+});
+
+describe("a decision and its mail are one transaction", () => {
+  const decisionMail = (id: number) => OutboxMail.findAll({ where: { subject: { [Op.like]: "Booking approved:%" }, textBody: { [Op.like]: `%/bookings/${id}\n%` } } });
+
+  it("a committed approval has its mail queued before the call returns, so a crash right after cannot lose it", async () => {
+    const { booking } = await request(110, 111);
+    const { mail } = await approveBooking(booking.id, asManager());
+    const rows = await decisionMail(booking.id);
+    expect(rows).toHaveLength(1);
+    expect(mail).toEqual({ queued: true, id: rows[0]!.id });
+    expect(rows[0]!.state).toBe("queued");
+    expect(rows[0]!.recipients).toBe(instructor.email);
+    // A fresh sender (as after a restart) delivers it.
+    expect((await deliver()).sent).toContain(rows[0]!.id);
+    expect(await CapturedMail.count({ where: { subject: rows[0]!.subject } })).toBe(1);
+  });
+
+  it("an approval whose transaction fails after the mail was written leaves neither the decision nor the mail", async () => {
+    const { booking } = await request(112, 113);
+    OutboxMail.addHook("afterCreate", "fail-after-enqueue", () => {
+      throw new Error("disk full");
+    });
+    try {
+      await expect(approveBooking(booking.id, asManager())).rejects.toThrow("disk full");
+    } finally {
+      OutboxMail.removeHook("afterCreate", "fail-after-enqueue");
+    }
+    expect((await Booking.findByPk(booking.id))!.state).toBe("requested");
+    expect(await decisionMail(booking.id)).toHaveLength(0);
+  });
+
+  it("a refused approval (already decided) queues no mail", async () => {
+    const { booking } = await request(114, 115);
+    await approveBooking(booking.id, asManager());
+    await expect(approveBooking(booking.id, asManager())).rejects.toMatchObject({ status: 409 });
+    expect(await decisionMail(booking.id)).toHaveLength(1);
   });
 });
 

@@ -2,7 +2,7 @@ import { Op, Transaction, type WhereOptions } from "sequelize";
 import { createEvent, createEvents, type EventAttributes } from "ics";
 import { Booking, CalendarFeed, Equipment, User, sequelize } from "./db";
 import { env } from "./env";
-import { sendMail, type MailOutcome } from "./mail/send";
+import { enqueueMail, mailQueued, type MailQueued } from "./mail/outbox";
 import { getLabSettings } from "./settings";
 import { hashToken, newSecretToken } from "./auth/tokens";
 import type { CurrentUser } from "./auth/permissions";
@@ -35,8 +35,8 @@ export interface BookingRequest {
 /** A request a minute old may still start "now"; anything earlier is a slot in the past. */
 const PAST_GRACE_MS = 60_000;
 
-async function labManagerEmails() {
-  const managers = await User.findAll({ where: { role: "lab_manager", active: true }, order: [["id", "ASC"]] });
+async function labManagerEmails(transaction: Transaction) {
+  const managers = await User.findAll({ where: { role: "lab_manager", active: true }, order: [["id", "ASC"]], transaction });
   return managers.map((m) => m.email);
 }
 
@@ -99,7 +99,8 @@ export async function createBooking(input: BookingRequest, requester: Pick<Curre
   if (end.getTime() - start.getTime() > MAX_BOOKING_DAYS * 86_400_000) {
     throw new BookingError(422, "invalid_slot", `A booking can be at most ${MAX_BOOKING_DAYS} days long.`, "end");
   }
-  const { booking, item } = await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+  // The mail is queued in the same transaction: it exists exactly when the booking does.
+  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
     const item = await loadItemForBooking(input.equipmentId, t);
     const other = await approvedOverlap(item.id, start, end, t);
     if (other) throw conflictError(other);
@@ -122,20 +123,22 @@ export async function createBooking(input: BookingRequest, requester: Pick<Curre
       },
       { transaction: t },
     );
-    return { booking, item };
+    const mail = await enqueueMail(
+      {
+        to: await labManagerEmails(t),
+        subject: `Booking requested: ${item.name}, ${slotText(booking)}`,
+        text: [
+          `${requester.name} asks for ${item.name}, ${slotText(booking)}.`,
+          `Purpose: ${booking.purpose}`,
+          ...(lead ? [`The start includes ${Math.round(lead / 60)} min of spin-up lead time.`] : []),
+          "",
+          `Approve or decline it: ${link(booking)}`,
+        ].join("\n"),
+      },
+      { transaction: t },
+    );
+    return { booking, mail: mailQueued(mail) };
   });
-  const mail = await sendMail({
-    to: await labManagerEmails(),
-    subject: `Booking requested: ${item.name}, ${slotText(booking)}`,
-    text: [
-      `${requester.name} asks for ${item.name}, ${slotText(booking)}.`,
-      `Purpose: ${booking.purpose}`,
-      ...(lead ? [`The start includes ${Math.round(lead / 60)} min of spin-up lead time.`] : []),
-      "",
-      `Approve or decline it: ${link(booking)}`,
-    ].join("\n"),
-  });
-  return { booking, mail };
 }
 
 type Decision = "approve" | "decline";
@@ -145,7 +148,9 @@ async function decide(id: number, manager: Pick<CurrentUser, "id" | "role" | "na
   // Exactly one of two racing approvals wins: write transactions run one at a time (db/write-queue.ts in this
   // process, BEGIN IMMEDIATE against other processes), so the second starts after the first has committed,
   // reads the booking and its overlaps afresh inside its own transaction, and is refused.
-  const { booking, item } = await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+  // The decision's mail is queued inside its transaction: a decision that rolls back leaves no mail, and
+  // one that commits cannot lose its mail to a crash.
+  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
     const booking = await Booking.findByPk(id, { transaction: t });
     if (!booking) throw new BookingError(404, "not_found", "That booking does not exist.");
     if (booking.state !== "requested") {
@@ -164,25 +169,27 @@ async function decide(id: number, manager: Pick<CurrentUser, "id" | "role" | "na
       { state: decision === "approve" ? "approved" : "declined", decidedById: manager.id, decidedAt: new Date(), declineReason: decision === "decline" ? reason!.trim() : null },
       { transaction: t },
     );
-    return { booking, item };
+    const requester = await User.findByPk(booking.requesterId, { transaction: t });
+    const name = item?.name ?? `item #${booking.equipmentId}`;
+    const mail = await enqueueMail(
+      {
+        to: requester ? [requester.email] : [],
+        subject: decision === "approve" ? `Booking approved: ${name}, ${slotText(booking)}` : `Booking declined: ${name}, ${slotText(booking)}`,
+        text: [
+          decision === "approve"
+            ? `${manager.name} approved your booking of ${name}, ${slotText(booking)}.`
+            : `${manager.name} declined your booking of ${name}, ${slotText(booking)}.\nReason: ${booking.declineReason}`,
+          `Purpose: ${booking.purpose}`,
+          ...(decision === "approve" && item?.kind === "table" ? ["", tableBookingCaution] : []),
+          "",
+          `The booking: ${link(booking)}`,
+          ...(decision === "approve" ? [`Add it to your calendar: ${env.appUrl}/api/v1/bookings/${booking.id}/ics`] : []),
+        ].join("\n"),
+      },
+      { transaction: t },
+    );
+    return { booking, mail: mailQueued(mail) };
   });
-  const requester = await User.findByPk(booking.requesterId);
-  const name = item?.name ?? `item #${booking.equipmentId}`;
-  const mail = await sendMail({
-    to: requester ? [requester.email] : [],
-    subject: decision === "approve" ? `Booking approved: ${name}, ${slotText(booking)}` : `Booking declined: ${name}, ${slotText(booking)}`,
-    text: [
-      decision === "approve"
-        ? `${manager.name} approved your booking of ${name}, ${slotText(booking)}.`
-        : `${manager.name} declined your booking of ${name}, ${slotText(booking)}.\nReason: ${booking.declineReason}`,
-      `Purpose: ${booking.purpose}`,
-      ...(decision === "approve" && item?.kind === "table" ? ["", tableBookingCaution] : []),
-      "",
-      `The booking: ${link(booking)}`,
-      ...(decision === "approve" ? [`Add it to your calendar: ${env.appUrl}/api/v1/bookings/${booking.id}/ics`] : []),
-    ].join("\n"),
-  });
-  return { booking, mail };
 }
 
 export async function approveBooking(id: number, manager: Pick<CurrentUser, "id" | "role" | "name">) {
@@ -196,7 +203,7 @@ export async function declineBooking(id: number, manager: Pick<CurrentUser, "id"
 
 /** The requester or a lab manager cancels a requested or approved booking whose slot is not over. */
 export async function cancelBooking(id: number, user: Pick<CurrentUser, "id" | "role" | "name">) {
-  const { booking, wasApproved } = await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
     const booking = await Booking.findByPk(id, { transaction: t });
     if (!booking) throw new BookingError(404, "not_found", "That booking does not exist.");
     if (booking.requesterId !== user.id && user.role !== "lab_manager") {
@@ -208,25 +215,28 @@ export async function cancelBooking(id: number, user: Pick<CurrentUser, "id" | "
     if (booking.endAt.getTime() <= Date.now()) throw new BookingError(422, "slot_in_past", "That slot is over; there is nothing to cancel.");
     const wasApproved = booking.state === "approved";
     await booking.update({ state: "cancelled", cancelledById: user.id, cancelledAt: new Date() }, { transaction: t });
-    return { booking, wasApproved };
+    const requester = await User.findByPk(booking.requesterId, { transaction: t });
+    const item = await Equipment.findByPk(booking.equipmentId, { transaction: t });
+    const name = item?.name ?? `item #${booking.equipmentId}`;
+    const byRequester = booking.requesterId === user.id;
+    // The requester always hears; the lab managers too when someone frees a slot they had approved or still had to decide.
+    const to = new Set<string>(requester ? [requester.email] : []);
+    if (byRequester) for (const e of await labManagerEmails(t)) to.add(e);
+    const mail = await enqueueMail(
+      {
+        to: [...to],
+        subject: `Booking cancelled: ${name}, ${slotText(booking)}`,
+        text: [
+          `${byRequester ? `${user.name} cancelled their` : `${user.name} (lab manager) cancelled your`} ${wasApproved ? "approved" : "requested"} booking of ${name}, ${slotText(booking)}.`,
+          `Purpose: ${booking.purpose}`,
+          "",
+          `The booking: ${link(booking)}`,
+        ].join("\n"),
+      },
+      { transaction: t },
+    );
+    return { booking, mail: mailQueued(mail) };
   });
-  const [requester, item] = await Promise.all([User.findByPk(booking.requesterId), Equipment.findByPk(booking.equipmentId)]);
-  const name = item?.name ?? `item #${booking.equipmentId}`;
-  const byRequester = booking.requesterId === user.id;
-  // The requester always hears; the lab managers too when someone frees a slot they had approved or still had to decide.
-  const to = new Set<string>(requester ? [requester.email] : []);
-  if (byRequester) for (const e of await labManagerEmails()) to.add(e);
-  const mail = await sendMail({
-    to: [...to],
-    subject: `Booking cancelled: ${name}, ${slotText(booking)}`,
-    text: [
-      `${byRequester ? `${user.name} cancelled their` : `${user.name} (lab manager) cancelled your`} ${wasApproved ? "approved" : "requested"} booking of ${name}, ${slotText(booking)}.`,
-      `Purpose: ${booking.purpose}`,
-      "",
-      `The booking: ${link(booking)}`,
-    ].join("\n"),
-  });
-  return { booking, mail };
 }
 
 export function getBooking(id: number) {
@@ -378,4 +388,4 @@ export async function feedOwner(token: string) {
   return user;
 }
 
-export type { MailOutcome };
+export type { MailQueued };

@@ -1,12 +1,15 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { Op } from "sequelize";
-import { Calibration, CalibrationAttachment, CalibrationReminder, CapturedMail, Equipment, User, migrate, sequelize } from "./db";
+import { Calibration, CalibrationAttachment, CapturedMail, Equipment, OutboxMail, User, migrate, sequelize } from "./db";
+import { OutboxSender } from "./mail/outbox-sender";
 import {
   CalibrationError,
+  calibrationReminderKey,
   calibrationsInForce,
   createCalibration,
   listCalibrationsDueOrExpired,
   rateCalibrationInForce,
+  serializeCalibrations,
   signOffCalibration,
   toDayString,
   trueRateFromCalibration,
@@ -171,7 +174,7 @@ describe("in force at a moment (what a run freezes at its creation)", () => {
 });
 
 describe("due list and reminders", () => {
-  it("lists past due first and sends one reminder per record, not again after a restart", async () => {
+  it("lists past due first and enqueues one reminder per record, delivered once, not again after a restart", async () => {
     const base = { maker: null, model: null, serialNumber: null, location: null, notes: null, diameterM: 0.5, maxRateRpm: 20, flatTable: false, rateTolerancePct: 1, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
     const soon = await Equipment.create({ ...base, kind: "table", name: "Reminder table soon" });
     const late = await Equipment.create({ ...base, kind: "table", name: "Reminder table late" });
@@ -186,7 +189,8 @@ describe("due list and reminders", () => {
 
     const countMail = () => CapturedMail.count({ where: { subject: { [Op.like]: "%Reminder table%" } } });
     const first = await runCalibrationReminders();
-    expect(first.sent).toEqual(expect.arrayContaining([a.id, b.id]));
+    expect(first.queued).toEqual(expect.arrayContaining([a.id, b.id]));
+    await new OutboxSender().drain();
     expect(await countMail()).toBe(2);
     const mail = await CapturedMail.findOne({ where: { subject: { [Op.like]: "%Reminder table late%" } } });
     expect(mail!.envelopeTo.split(", ").sort()).toEqual(["m2@tankside.example", "m@tankside.example"]);
@@ -194,24 +198,37 @@ describe("due list and reminders", () => {
 
     // A restart: the task runs again from the start, in a fresh pass.
     const second = await runCalibrationReminders();
-    expect(second.sent).not.toContain(a.id);
-    expect(second.sent).not.toContain(b.id);
+    expect(second.queued).not.toContain(a.id);
+    expect(second.queued).not.toContain(b.id);
+    await new OutboxSender().drain();
     expect(await countMail()).toBe(2);
-    expect((await CalibrationReminder.findByPk(a.id))!.state).toBe("sent");
+    const rows = await OutboxMail.findAll({ where: { dedupeKey: [calibrationReminderKey(a.id), calibrationReminderKey(b.id)] } });
+    expect(rows.map((r) => r.state)).toEqual(["sent", "sent"]);
+    const [view] = await serializeCalibrations([(await Calibration.findByPk(a.id))!]);
+    expect(view!.reminder).toMatchObject({ state: "sent" });
   });
 
-  it("records a failed send and retries it on the next pass", async () => {
+  it("two reminder passes running at once enqueue each record's reminder exactly once", async () => {
+    const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Reminder table twice" } as never);
+    const c = await createCalibration(rateInput({ equipmentId: t.id, performedOn: daysAgo(178), dueOn: toDayString(new Date(Date.now() + 3 * 86_400_000)) }), tech);
+    await signOffCalibration(c.id, managerUser());
+    const [x, y] = await Promise.all([runCalibrationReminders(), runCalibrationReminders()]);
+    expect([...x.queued, ...y.queued].filter((id) => id === c.id)).toHaveLength(1);
+    expect(await OutboxMail.count({ where: { dedupeKey: calibrationReminderKey(c.id) } })).toBe(1);
+  });
+
+  it("queues nothing while there is no lab manager to tell, and queues it on the next pass once there is", async () => {
     const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Reminder table retry" } as never);
     const c = await createCalibration(rateInput({ equipmentId: t.id, performedOn: daysAgo(175), dueOn: toDayString(new Date(Date.now() + 2 * 86_400_000)) }), tech);
     await signOffCalibration(c.id, managerUser());
-    // No active lab manager: the send fails with no recipients.
     await User.update({ active: false }, { where: { role: "lab_manager" } });
-    const failed = await runCalibrationReminders();
-    expect(failed.failed.map((f) => f.id)).toContain(c.id);
-    expect((await CalibrationReminder.findByPk(c.id))!.state).toBe("failed");
+    const nobody = await runCalibrationReminders();
+    expect(nobody.queued).not.toContain(c.id);
+    expect(await OutboxMail.count({ where: { dedupeKey: calibrationReminderKey(c.id) } })).toBe(0);
     await User.update({ active: true }, { where: { role: "lab_manager" } });
     const retried = await runCalibrationReminders();
-    expect(retried.sent).toEqual([c.id]);
+    expect(retried.queued).toEqual([c.id]);
+    await new OutboxSender().drain();
     expect(await CapturedMail.count({ where: { subject: { [Op.like]: "%Reminder table retry%" } } })).toBe(1);
   });
 });

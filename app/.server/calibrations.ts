@@ -1,5 +1,6 @@
 import { Op, Transaction } from "sequelize";
-import { Calibration, CalibrationAttachment, CalibrationReminder, Equipment, User, sequelize } from "./db";
+import { Calibration, CalibrationAttachment, Equipment, User, sequelize } from "./db";
+import { findOutboxByKeys } from "./mail/outbox";
 import { getLabSettings } from "./settings";
 import { canEditCalibration, type CurrentUser } from "./auth/permissions";
 import { calibrationEdits, noteCalibrationChange, noteCalibrationEdits } from "./calibration-history";
@@ -327,6 +328,11 @@ export async function standingOf(records: Calibration[], at: Date = new Date()):
   return out;
 }
 
+/** The outbox key of a record's due reminder: one reminder per record, ever. */
+export function calibrationReminderKey(calibrationId: number) {
+  return `calibration-reminder:${calibrationId}`;
+}
+
 export function listCalibrations(filter: { equipmentId?: number } = {}) {
   return Calibration.findAll({
     where: filter.equipmentId ? { equipmentId: filter.equipmentId } : {},
@@ -342,7 +348,7 @@ export async function serializeCalibrations(records: Calibration[]) {
     userIds.length ? User.findAll({ where: { id: { [Op.in]: userIds } } }) : [],
     equipIds.length ? Equipment.findAll({ where: { id: { [Op.in]: equipIds } } }) : [],
     records.length ? CalibrationAttachment.findAll({ where: { calibrationId: { [Op.in]: records.map((r) => r.id) } }, order: [["id", "ASC"]] }) : [],
-    records.length ? CalibrationReminder.findAll({ where: { calibrationId: { [Op.in]: records.map((r) => r.id) } } }) : [],
+    findOutboxByKeys(records.map((r) => calibrationReminderKey(r.id))),
     standingOf(records),
   ]);
   const userName = new Map(users.map((u) => [u.id, u.name]));
@@ -391,12 +397,10 @@ export async function serializeCalibrations(records: Calibration[]) {
     signedOffByName: r.signedOffById ? (userName.get(r.signedOffById) ?? "—") : null,
     signedOffAt: r.signedOffAt ? r.signedOffAt.toISOString() : null,
     standing: standing.get(r.id)!,
-    reminder: reminders.find((m) => m.calibrationId === r.id)
-      ? (() => {
-          const m = reminders.find((x) => x.calibrationId === r.id)!;
-          return { state: m.state, sentAt: m.sentAt?.toISOString() ?? null, lastError: m.lastError };
-        })()
-      : null,
+    reminder: (() => {
+      const m = reminders.find((x) => x.dedupeKey === calibrationReminderKey(r.id));
+      return m ? { state: m.state, sentAt: m.sentAt?.toISOString() ?? null, lastError: m.lastError, attempts: m.attempts } : null;
+    })(),
     attachments: attachments
       .filter((a) => a.calibrationId === r.id)
       .map((a) => ({ id: a.id, originalName: a.originalName, contentType: a.contentType, sizeBytes: a.sizeBytes, url: `/api/v1/calibrations/${r.id}/attachments/${a.id}` })),

@@ -1,3 +1,5 @@
 // Each feature that runs work inside the server process registers it with onBoot() on import.
 import "./jobs/tracking-queue";
+// The mail sender first: it must be listening before the reminder task enqueues anything.
+import "./mail/outbox-sender";
 import "./calibration-reminders";

@@ -9,15 +9,25 @@ import { startFakeSmtp } from "./fake-smtp";
  */
 export const usingFakeMail = !env.smtpUrl && (!env.isProduction || env.fakeMailRequested);
 
+/**
+ * A relay that stops answering must not hold a send (and the outbox row's lease) for nodemailer's
+ * default ten minutes: these bound each step, and the outbox's lease is longer than their sum.
+ */
+export const SMTP_TIMEOUTS = { connectionTimeout: 10_000, greetingTimeout: 10_000, socketTimeout: 20_000 } as const;
+
 let transporter: Promise<Transporter> | null = null;
 
-function getTransporter(): Promise<Transporter> {
+export function getTransporter(): Promise<Transporter> {
   transporter ??= (async () => {
-    if (env.smtpUrl) return nodemailer.createTransport(env.smtpUrl);
+    if (env.smtpUrl) return nodemailer.createTransport({ url: env.smtpUrl, ...SMTP_TIMEOUTS });
     if (!usingFakeMail) throw new Error("SMTP_URL is not set (and TANKSIDE_FAKE_MAIL=1 was not given)");
     const { port } = await startFakeSmtp();
-    return nodemailer.createTransport({ host: "127.0.0.1", port, secure: false, ignoreTLS: true });
+    return nodemailer.createTransport({ host: "127.0.0.1", port, secure: false, ignoreTLS: true, ...SMTP_TIMEOUTS });
   })();
+  // A failed set-up (the fake server could not listen) is tried afresh next time.
+  transporter.catch(() => {
+    transporter = null;
+  });
   return transporter;
 }
 
@@ -30,16 +40,23 @@ export interface OutgoingMail {
 
 export type MailOutcome = { ok: true } | { ok: false; error: string };
 
+/** Hands one message to the relay; throws with the relay's or the network's error. */
+export async function deliverMail(mail: OutgoingMail, transport?: Transporter): Promise<void> {
+  const recipients = Array.isArray(mail.to) ? mail.to : [mail.to];
+  if (recipients.length === 0) throw new Error("no recipients");
+  await (transport ?? (await getTransporter())).sendMail({ from: env.mailFrom, to: recipients, subject: mail.subject, text: mail.text, html: mail.html });
+}
+
 /**
- * Sends one message. Failures are logged to the console and to the mail log, and returned so the
+ * Sends one message at once, outside any transaction: for mail that must not wait. Mail caused by a
+ * change in the database goes through `enqueueMail` (mail/outbox.ts) instead, so it survives a crash
+ * and is retried. Failures are logged to the console and to the mail log, and returned so the
  * page can tell the person the mail did not go; they are never swallowed.
  */
 export async function sendMail(mail: OutgoingMail): Promise<MailOutcome> {
   const recipients = Array.isArray(mail.to) ? mail.to : [mail.to];
   try {
-    if (recipients.length === 0) throw new Error("no recipients");
-    const transport = await getTransporter();
-    await transport.sendMail({ from: env.mailFrom, to: recipients, subject: mail.subject, text: mail.text, html: mail.html });
+    await deliverMail(mail);
     await MailLog.create({ recipients: recipients.join(", "), subject: mail.subject, status: "sent", error: null });
     return { ok: true };
   } catch (err) {

@@ -69,8 +69,8 @@ export const bookingSchemas = {
       createdAt: { type: "string", format: "date-time" },
       mail: {
         type: "object",
-        description: "Present on changes: whether the e-mail to the people concerned went out.",
-        properties: { sent: { type: "boolean" }, error: { type: "string" } },
+        description: "Present on changes: whether the e-mail to the people concerned was queued in the outbox (written with the change itself); its delivery is listed at /api/v1/mail/outbox.",
+        properties: { queued: { type: "boolean" }, outboxId: { type: "integer" } },
       },
     },
   },

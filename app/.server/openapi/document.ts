@@ -35,6 +35,17 @@ export const corePaths: Paths = {
       responses: { "200": anyJson("Newest first, at most 200"), ...authErrors, ...forbidden, "404": err("Mail goes through a real relay here.") },
     },
   },
+  "/api/v1/mail/outbox": {
+    get: {
+      summary: "The mail outbox: every queued, sent or failed e-mail without its text (lab manager)",
+      operationId: "listOutbox",
+      responses: {
+        "200": anyJson("Newest first, at most 200: id, recipients, subject, state (queued | sent | failed), attempts, nextAttemptAt, lastError, sentAt, createdAt"),
+        ...authErrors,
+        ...forbidden,
+      },
+    },
+  },
   "/api/v1/equipment": {
     get: {
       summary: "The equipment register",

@@ -27,7 +27,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const id = parseId(request, params.id, "That booking");
   const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
-  const mailNote = (mail: { ok: boolean; error?: string }) => (mail.ok ? {} : { problem: `Saved, but the e-mail failed: ${mail.error}` });
+  const mailNote = (mail: { queued: boolean }) => (mail.queued ? {} : { problem: "Saved, but there was nobody to e-mail about it." });
   try {
     if (intent === "approve") {
       const { mail } = await approveBooking(id, user);

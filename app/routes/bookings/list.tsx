@@ -84,7 +84,7 @@ export async function action({ request }: Route.ActionArgs) {
   const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const id = Number(form.get("bookingId"));
-  const mailNote = (mail: { ok: boolean; error?: string }, who: string) => (mail.ok ? {} : { problem: `Saved, but the e-mail to ${who} failed: ${mail.error}` });
+  const mailNote = (mail: { queued: boolean }, who: string) => (mail.queued ? {} : { problem: `Saved, but no e-mail could be addressed to ${who}.` });
   try {
     if (intent === "request") {
       const submission = parseWithZod(form, { schema: bookingRequestSchema });

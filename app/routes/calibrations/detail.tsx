@@ -43,6 +43,12 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
 }
 
+function reminderText(m: { state: string; sentAt: string | null; lastError: string | null; attempts: number }) {
+  if (m.state === "sent") return `Sent ${formatDateTime(m.sentAt)}`;
+  if (m.state === "failed") return `Not sent: gave up after ${m.attempts} attempts (${m.lastError})`;
+  return m.lastError ? `Queued; attempt ${m.attempts} failed (${m.lastError}), tried again automatically` : "Queued";
+}
+
 export default function CalibrationDetail({ loaderData, actionData }: Route.ComponentProps) {
   const r = loaderData.record;
   const outcome = (actionData ?? {}) as { notice?: string; problem?: string };
@@ -58,7 +64,7 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
     ["Due", formatDate(r.dueAt)],
     ["Signed off", r.signedOffAt ? `${formatDateTime(r.signedOffAt)} by ${r.signedOffByName}` : "Not yet"],
     ["Result", calibrationResult(r)],
-    ["Reminder", r.reminder ? (r.reminder.state === "sent" ? `Sent ${formatDateTime(r.reminder.sentAt)}` : r.reminder.state === "failed" ? `Failed (${r.reminder.lastError}); retried within the hour` : "Being sent") : null],
+    ["Reminder", r.reminder ? reminderText(r.reminder) : null],
   ];
   return (
     <div>

@@ -1,38 +1,98 @@
-import { data } from "react-router";
 import type { Route } from "./+types/mail";
 import { requireRole } from "~/.server/auth/permissions";
 import { CapturedMail } from "~/.server/db";
 import { usingFakeMail } from "~/.server/mail/send";
-import { Card, PageHeader } from "~/components/ui/card";
+import { listOutbox, MAX_ATTEMPTS } from "~/.server/mail/outbox";
+import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { formatDateTime } from "~/lib/format";
 
-export const meta: Route.MetaFunction = () => [{ title: "Captured mail · Tankside" }];
+export const meta: Route.MetaFunction = () => [{ title: "Mail · Tankside" }];
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireRole(request, "lab_manager");
-  if (!usingFakeMail) throw data("Mail goes through a real relay here; nothing is captured.", { status: 404 });
+  const outbox = await listOutbox(100);
+  if (!usingFakeMail) return { outbox, captured: null, maxAttempts: MAX_ATTEMPTS };
   const rows = await CapturedMail.findAll({ order: [["id", "DESC"]], limit: 100 });
   return {
-    messages: rows.map((m) => ({ id: m.id, to: m.envelopeTo, from: m.envelopeFrom, subject: m.subject, text: m.textBody, receivedAt: m.receivedAt.toISOString() })),
+    outbox,
+    maxAttempts: MAX_ATTEMPTS,
+    captured: rows.map((m) => ({ id: m.id, to: m.envelopeTo, from: m.envelopeFrom, subject: m.subject, text: m.textBody, receivedAt: m.receivedAt.toISOString() })),
   };
 }
 
+const stateTone = { queued: "caution", sent: "agrees", failed: "disagrees" } as const;
+const stateLabel = { queued: "Queued", sent: "Sent", failed: "Failed" } as const;
+
 export default function Mail({ loaderData }: Route.ComponentProps) {
+  const { outbox, captured, maxAttempts } = loaderData;
   return (
     <div>
-      <PageHeader title="Captured mail" subtitle="What Tankside sent while no real mail relay is set (SMTP_URL unset). Nothing here left this computer." />
-      {loaderData.messages.length === 0 ? <Notice>No mail yet.</Notice> : null}
-      <div className="flex flex-col gap-4">
-        {loaderData.messages.map((m) => (
-          <Card key={m.id} title={m.subject}>
-            <p className="text-sm text-muted">
-              to <span className="font-bold text-ink">{m.to}</span> · {formatDateTime(m.receivedAt)}
-            </p>
-            <pre className="mt-3 whitespace-pre-wrap break-words font-sans">{m.text}</pre>
-          </Card>
-        ))}
-      </div>
+      <PageHeader
+        title={captured ? "Captured mail" : "Outgoing mail"}
+        subtitle={
+          captured
+            ? "What Tankside sent while no real mail relay is set (SMTP_URL unset). Nothing here left this computer."
+            : "Every e-mail Tankside queued and whether the mail relay took it."
+        }
+      />
+      <Card title="Outbox" className="mb-6">
+        <p className="mb-3 text-sm text-muted">
+          A failed attempt is tried again after 1 minute, then after twice the wait each time up to an hour; after {maxAttempts} failed attempts the
+          message is marked failed. Message texts are not kept here: they may hold someone's single-use link.
+        </p>
+        {outbox.length === 0 ? (
+          <Notice>Nothing queued or sent yet.</Notice>
+        ) : (
+          <div className="overflow-x-auto">
+            <table className="w-full text-left">
+              <thead>
+                <tr className="border-b-2 border-line">
+                  <th className="py-2 pr-3">Queued</th>
+                  <th className="py-2 pr-3">To</th>
+                  <th className="py-2 pr-3">Subject</th>
+                  <th className="py-2 pr-3">State</th>
+                  <th className="py-2">Details</th>
+                </tr>
+              </thead>
+              <tbody>
+                {outbox.map((m) => (
+                  <tr key={m.id} className="border-b border-line align-top" data-testid={`outbox-${m.id}`}>
+                    <td className="py-3 pr-3 text-sm">{formatDateTime(m.createdAt)}</td>
+                    <td className="py-3 pr-3 text-sm break-all">{m.recipients.join(", ") || "—"}</td>
+                    <td className="py-3 pr-3">{m.subject}</td>
+                    <td className="py-3 pr-3">
+                      <Tag tone={stateTone[m.state]}>{stateLabel[m.state]}</Tag>
+                    </td>
+                    <td className="py-3 text-sm">
+                      {m.state === "sent" && m.sentAt ? `${formatDateTime(m.sentAt)}` : null}
+                      {m.state === "queued" && m.nextAttemptAt ? `${m.attempts ? `${m.attempts} failed; next ` : ""}try ${formatDateTime(m.nextAttemptAt)}` : null}
+                      {m.state === "failed" ? `gave up after ${m.attempts} attempts` : null}
+                      {m.lastError && m.state !== "sent" ? <p className="text-muted break-words">{m.lastError}</p> : null}
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        )}
+      </Card>
+      {captured ? (
+        <>
+          <h2 className="mb-3">Received by the built-in mail server</h2>
+          {captured.length === 0 ? <Notice>No mail yet.</Notice> : null}
+          <div className="flex flex-col gap-4">
+            {captured.map((m) => (
+              <Card key={m.id} title={m.subject}>
+                <p className="text-sm text-muted">
+                  to <span className="font-bold text-ink">{m.to}</span> · {formatDateTime(m.receivedAt)}
+                </p>
+                <pre className="mt-3 whitespace-pre-wrap break-words font-sans">{m.text}</pre>
+              </Card>
+            ))}
+          </div>
+        </>
+      ) : null}
     </div>
   );
 }

@@ -36,9 +36,9 @@ export async function action({ request }: Route.ActionArgs) {
       const { user, mail } = await invitePerson(submission.value, me);
       return {
         invite: submission.reply({ resetForm: true }),
-        ...(mail.ok
+        ...(mail.queued
           ? { notice: `Invitation sent to ${user.email}.` }
-          : { problem: `${user.name} was added, but the invitation e-mail failed: ${mail.error}. Use "Send invitation again" once mail works.` }),
+          : { problem: `${user.name} was added, but no invitation e-mail could be queued. Use "Send invitation again".` }),
       };
     }
     const userId = Number(form.get("userId"));
@@ -55,7 +55,7 @@ export async function action({ request }: Route.ActionArgs) {
     }
     if (intent === "resend") {
       const mail = await resendInvitation(userId, me);
-      return mail.ok ? { notice: "Invitation sent again." } : data({ problem: `The e-mail failed: ${mail.error}` }, { status: 502 });
+      return mail.queued ? { notice: "Invitation sent again." } : data({ problem: "No invitation e-mail could be queued." }, { status: 500 });
     }
     return data({ problem: "Unknown action." }, { status: 400 });
   } catch (err) {

@@ -5,6 +5,7 @@ import * as m0003 from "./0003-runs-and-tracking";
 import * as m0004 from "./0004-calibrations-and-bookings";
 import * as m0005 from "./0005-run-log-preferences";
 import * as m0006 from "./0006-check-provenance";
+import * as m0007 from "./0007-mail-outbox";
 import * as m0008 from "./0008-session-idle-and-token-expiry";
 import * as m0009 from "./0009-calibration-history";
 import * as m0010 from "./0010-camera-scale-tolerance";
@@ -23,6 +24,7 @@ export const migrations: Migration[] = [
   { name: "0004-calibrations-and-bookings", ...m0004 },
   { name: "0005-run-log-preferences", ...m0005 },
   { name: "0006-check-provenance", ...m0006 },
+  { name: "0007-mail-outbox", ...m0007 },
   { name: "0008-session-idle-and-token-expiry", ...m0008 },
   { name: "0009-calibration-history", ...m0009 },
   { name: "0010-camera-scale-tolerance", ...m0010 },

@@ -129,29 +129,6 @@ CalibrationAttachment.init(
   { sequelize, tableName: "calibration_attachments", underscored: true, updatedAt: false },
 );
 
-export type ReminderState = "sending" | "sent" | "failed";
-
-export class CalibrationReminder extends Model<InferAttributes<CalibrationReminder>, InferCreationAttributes<CalibrationReminder>> {
-  declare calibrationId: number;
-  declare state: ReminderState;
-  declare claimedAt: Date;
-  declare sentAt: Date | null;
-  declare attempts: CreationOptional<number>;
-  declare lastError: string | null;
-}
-
-CalibrationReminder.init(
-  {
-    calibrationId: { type: DataTypes.INTEGER, primaryKey: true },
-    state: { type: DataTypes.STRING(10), allowNull: false },
-    claimedAt: { type: DataTypes.DATE, allowNull: false },
-    sentAt: { type: DataTypes.DATE, allowNull: true },
-    attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
-    lastError: { type: DataTypes.TEXT, allowNull: true },
-  },
-  { sequelize, tableName: "calibration_reminders", underscored: true, timestamps: false },
-);
-
 /** One change to a calibration record: who, when, which field, old → new ("created", "attachment" and "signed off" too). */
 export class CalibrationHistory extends Model<InferAttributes<CalibrationHistory>, InferCreationAttributes<CalibrationHistory>> {
   declare id: CreationOptional<number>;

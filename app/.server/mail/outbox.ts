@@ -1,0 +1,122 @@
+import { Op, UniqueConstraintError, type Transaction } from "sequelize";
+import { OutboxMail } from "../db";
+import type { OutboxState } from "../db/models/outbox-mail";
+import type { OutgoingMail } from "./send";
+
+/**
+ * The retry schedule: after the n-th failed attempt the next one waits 1 min × 2^(n−1), at most
+ * 1 h (1, 2, 4, 8, 16, 32, 60, 60, 60 min); the 10th failure marks the row failed, about 4 h after
+ * the first attempt.
+ */
+export const FIRST_RETRY_MS = 60_000;
+export const MAX_RETRY_MS = 60 * 60_000;
+export const MAX_ATTEMPTS = 10;
+/** A claimed row whose sender never reported back (it crashed) is free again after this. */
+export const LEASE_MS = 2 * 60_000;
+
+export function retryDelayMs(failedAttempts: number): number {
+  return Math.min(MAX_RETRY_MS, FIRST_RETRY_MS * 2 ** Math.max(0, failedAttempts - 1));
+}
+
+type Listener = () => void;
+let onEnqueued: Listener | null = null;
+
+/** The sender registers here to be woken when a transaction that enqueued mail has committed. */
+export function setEnqueueListener(listener: Listener | null) {
+  onEnqueued = listener;
+}
+
+function wake() {
+  // After the response's own work: the commit hook must not wait for delivery.
+  if (onEnqueued) setImmediate(onEnqueued);
+}
+
+export interface EnqueueOptions {
+  /** The transaction of the change that causes the mail: the row exists iff the change commits. */
+  transaction?: Transaction;
+  /** Enqueue at most once per key, ever (a calibration's reminder). */
+  dedupeKey?: string;
+}
+
+/**
+ * Puts one message in the outbox. Returns the row, or null when there is nobody to send it to or a
+ * message with the same dedupe key was enqueued before. The sender delivers it after the commit.
+ */
+export async function enqueueMail(message: OutgoingMail, options: EnqueueOptions = {}): Promise<OutboxMail | null> {
+  const recipients = [...new Set((Array.isArray(message.to) ? message.to : [message.to]).map((r) => r.trim()).filter(Boolean))];
+  if (recipients.length === 0) {
+    console.warn(`[mail] "${message.subject}" has no recipients; nothing was queued`);
+    return null;
+  }
+  const { transaction, dedupeKey } = options;
+  const row = {
+    recipients: recipients.join(", "),
+    subject: message.subject,
+    textBody: message.text,
+    htmlBody: message.html ?? null,
+    nextAttemptAt: new Date(),
+    dedupeKey: dedupeKey ?? null,
+  };
+  let created: OutboxMail;
+  if (dedupeKey) {
+    // The unique key decides; a savepoint keeps a losing insert from aborting the caller's transaction (PostgreSQL).
+    const existing = await OutboxMail.findOne({ where: { dedupeKey }, transaction });
+    if (existing) return null;
+    try {
+      created = await OutboxMail.sequelize!.transaction({ transaction }, (t) => OutboxMail.create(row, { transaction: t }));
+    } catch (err) {
+      if (err instanceof UniqueConstraintError) return null;
+      throw err;
+    }
+  } else {
+    created = await OutboxMail.create(row, { transaction });
+  }
+  if (transaction) transaction.afterCommit(wake);
+  else wake();
+  return created;
+}
+
+export interface OutboxView {
+  id: number;
+  recipients: string[];
+  subject: string;
+  state: OutboxState;
+  attempts: number;
+  nextAttemptAt: string | null;
+  lastError: string | null;
+  sentAt: string | null;
+  createdAt: string;
+}
+
+/** The newest rows first, without bodies: they may hold single-use links meant for one person only. */
+export async function listOutbox(limit = 100): Promise<OutboxView[]> {
+  const rows = await OutboxMail.findAll({
+    attributes: { exclude: ["textBody", "htmlBody"] },
+    order: [["id", "DESC"]],
+    limit,
+  });
+  return rows.map((r) => ({
+    id: r.id,
+    recipients: r.recipients ? r.recipients.split(", ") : [],
+    subject: r.subject,
+    state: r.state,
+    attempts: r.attempts,
+    nextAttemptAt: r.state === "queued" ? r.nextAttemptAt.toISOString() : null,
+    lastError: r.lastError,
+    sentAt: r.sentAt?.toISOString() ?? null,
+    createdAt: r.createdAt.toISOString(),
+  }));
+}
+
+/** The outbox row of a dedupe key, for pages that show whether a one-off message went out. */
+export function findOutboxByKeys(keys: string[]) {
+  if (keys.length === 0) return Promise.resolve([] as OutboxMail[]);
+  return OutboxMail.findAll({ attributes: { exclude: ["textBody", "htmlBody"] }, where: { dedupeKey: { [Op.in]: keys } } });
+}
+
+/** What a service tells its caller about the mail its change caused: queued, or nobody to send it to. */
+export type MailQueued = { queued: true; id: number } | { queued: false };
+
+export function mailQueued(row: OutboxMail | null): MailQueued {
+  return row ? { queued: true, id: row.id } : { queued: false };
+}

@@ -1,5 +1,5 @@
-import { Op } from "sequelize";
-import { ApiToken, User } from "../db";
+import { Op, type Transaction } from "sequelize";
+import { ApiToken, User, sequelize } from "../db";
 import type { ApiTokenRevokedReason } from "../db/models/api-token";
 import { hashToken, newSecretToken } from "./tokens";
 import { notifySecurityEvent } from "./notices";
@@ -48,7 +48,7 @@ export async function userFromBearerToken(header: string): Promise<User | Bearer
 }
 
 /** Makes a token without telling anyone: for tests, seeds and benchmarks. People use issueApiToken. */
-export async function createApiToken(userId: number, label: string, expiresInDays = API_TOKEN_DEFAULT_DAYS) {
+export async function createApiToken(userId: number, label: string, expiresInDays = API_TOKEN_DEFAULT_DAYS, transaction?: Transaction) {
   if (!Number.isInteger(expiresInDays) || expiresInDays < 1 || expiresInDays > API_TOKEN_MAX_DAYS) {
     throw new RangeError(`A token works for 1 to ${API_TOKEN_MAX_DAYS} days.`);
   }
@@ -62,15 +62,18 @@ export async function createApiToken(userId: number, label: string, expiresInDay
     revokedAt: null,
     revokedReason: null,
     expiresAt: new Date(Date.now() + expiresInDays * DAY_MS),
-  });
+  }, { transaction });
   return { token, row };
 }
 
 /** A token made by its owner on the account page: the owner gets an e-mail saying so (OWASP ASVS 4.0.3 V2.2.3). */
 export async function issueApiToken(user: { id: number; email: string; name: string }, input: { label: string; expiresInDays: number }) {
-  const made = await createApiToken(user.id, input.label, input.expiresInDays);
-  const mail = await notifySecurityEvent(user, { kind: "api_token_created", label: input.label, expiresAt: made.row.expiresAt });
-  return { ...made, mail };
+  // The token and its notice commit together: no token without its e-mail.
+  return sequelize.transaction(async (transaction) => {
+    const made = await createApiToken(user.id, input.label, input.expiresInDays, transaction);
+    const mail = await notifySecurityEvent(user, { kind: "api_token_created", label: input.label, expiresAt: made.row.expiresAt }, transaction);
+    return { ...made, mail };
+  });
 }
 
 export async function revokeApiToken(userId: number, tokenId: number): Promise<boolean> {

@@ -5,6 +5,7 @@ import { createApiToken, userFromBearerToken } from "./api-tokens";
 import { hashPassword } from "./password";
 import { hashToken, newSecretToken } from "./tokens";
 import { sessionStorage } from "./session";
+import { OutboxSender } from "../mail/outbox-sender";
 
 const OLD = "kettle ferry lantern quietly";
 const NEW = "Moss grows on seven bridges";
@@ -28,7 +29,11 @@ async function linkFor(userId: number, purpose: "password_reset" | "invitation")
   await AuthToken.create({ userId, purpose, tokenHash: hashToken(token), expiresAt: new Date(Date.now() + 3600_000), usedAt: null, createdById: null });
   return token;
 }
-const mailsTo = (email: string, subject: string) => CapturedMail.findAll({ where: { envelopeTo: email, subject } });
+/** What reached the inbox once the outbox has been delivered, as the server's sender does after each commit. */
+async function mailsTo(email: string, subject: string) {
+  await new OutboxSender().drain();
+  return CapturedMail.findAll({ where: { envelopeTo: email, subject } });
+}
 
 describe("a password change ends the other ways in and tells the person (OWASP ASVS 4.0.3 V3.3.3, V2.2.3)", () => {
   it("own change on the account page: other sessions end, this one stays, every API token is revoked, a notice is mailed", async () => {

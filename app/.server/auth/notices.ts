@@ -1,5 +1,6 @@
 import { env } from "../env";
-import { sendMail, type MailOutcome } from "../mail/send";
+import type { Transaction } from "sequelize";
+import { enqueueMail, mailQueued, type MailQueued } from "../mail/outbox";
 import { formatDateTime } from "~/lib/format";
 
 /** Changes to how someone signs in that they must hear about, in case it was not them. */
@@ -9,13 +10,13 @@ export type SecurityEvent =
 
 /**
  * Tells a person by e-mail that their password changed or that an API token was made in their name
- * (OWASP ASVS 4.0.3 V2.2.3). The one place such notices are sent from, so switching them to a
- * queued outbox later is a change here only. Never throws: the change itself has happened.
+ * (OWASP ASVS 4.0.3 V2.2.3). The one place such notices come from; they go through the durable
+ * outbox, in the transaction of the change when there is one.
  */
-export function notifySecurityEvent(user: { email: string; name: string }, event: SecurityEvent): Promise<MailOutcome> {
+export async function notifySecurityEvent(user: { email: string; name: string }, event: SecurityEvent, transaction?: Transaction): Promise<MailQueued> {
   const notYou = `If this was not you, reset your password now at ${env.appUrl}/forgot-password and tell your lab manager.`;
   if (event.kind === "password_changed") {
-    return sendMail({
+    const row = await enqueueMail({
       to: user.email,
       subject: "Your Tankside password was changed",
       text: [
@@ -28,9 +29,10 @@ export function notifySecurityEvent(user: { email: string; name: string }, event
         "",
         notYou,
       ].join("\n"),
-    });
+    }, { transaction });
+    return mailQueued(row);
   }
-  return sendMail({
+  const row = await enqueueMail({
     to: user.email,
     subject: "A new Tankside API token was made",
     text: [
@@ -41,5 +43,6 @@ export function notifySecurityEvent(user: { email: string; name: string }, event
       "",
       notYou,
     ].join("\n"),
-  });
+  }, { transaction });
+  return mailQueued(row);
 }

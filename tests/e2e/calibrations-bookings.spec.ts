@@ -197,7 +197,7 @@ test("role gates: 401 anonymous, 403 beyond the role, 200 within it", async ({ b
   const expectations: [string, string, Record<string, number>][] = [
     ["GET", "/bookings", { [people.instructor]: 200, [people.tech]: 200, [people.manager]: 200 }],
     ["GET", "/bookings/1", { [people.instructor]: 200, [people.tech]: 200, [people.manager]: 200 }],
-    ["GET", "/calibrations", { [people.instructor]: 403, [people.tech]: 200, [people.manager]: 200 }],
+    ["GET", "/calibrations", { [people.instructor]: 200, [people.tech]: 200, [people.manager]: 200 }], // read-only for instructors: they book what is calibrated
     ["GET", "/calibrations/new", { [people.instructor]: 403, [people.tech]: 200, [people.manager]: 200 }],
     ["GET", "/calibrations/1", { [people.instructor]: 200, [people.tech]: 200, [people.manager]: 200 }],
     ["GET", "/settings", { [people.instructor]: 403, [people.tech]: 403, [people.manager]: 200 }],

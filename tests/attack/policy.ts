@@ -63,6 +63,7 @@ export const policy: Record<string, Partial<Record<Method, Access>>> = {
   "routes/api/me": { GET: signedIn },
   "routes/api/users": { GET: managers },
   "routes/api/mail": { GET: managers },
+  "routes/api/mail-outbox": { GET: managers },
   "routes/api/equipment": { GET: signedIn },
   "routes/api/equipment-item": { GET: signedIn },
   "routes/api/runs": { GET: signedIn, POST: labStaff },

@@ -1,3 +1,4 @@
+import type { RunHistoryEntry } from "./runs/record";
 import type { Transaction } from "sequelize";
 import { Calibration, CalibrationHistory, User } from "./db";
 
@@ -46,15 +47,8 @@ export async function noteCalibrationEdits(t: Transaction, calibrationId: number
   for (const e of edits) await noteCalibrationChange(t, calibrationId, userId, e.field, e.oldValue, e.newValue);
 }
 
-export interface CalibrationHistoryEntry {
-  id: number;
-  at: string;
-  who: { id: number; name: string } | null;
-  field: string;
-  fieldLabel: string;
-  oldValue: string | null;
-  newValue: string | null;
-}
+/** A calibration's history reads like a run's: one line per change, with who made it. */
+export type CalibrationHistoryEntry = RunHistoryEntry;
 
 /** Every change to a record, oldest first, with people's names. */
 export async function getCalibrationHistory(calibrationId: number): Promise<CalibrationHistoryEntry[]> {

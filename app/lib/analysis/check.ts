@@ -8,7 +8,7 @@ import { fitCoriolis, inertialPeriodFromAngle, predictedRadius, turningRate } fr
 import type { CameraMode, TimedPoint, ViewGeometry } from "./frames";
 import { imageToTable, reRotate, rotatingFrameToImage, trackToRotatingFrame } from "./frames";
 import { DECISION_RULE, decide, Z95 } from "./decision";
-import { fmt } from "./format";
+import { fmt, percentRange } from "./format";
 import { linearFit } from "./regression";
 import { correctFrameTimes, type AppliedCalibration, type FrameTimeCorrection } from "../calibrations-applied";
 import {
@@ -496,7 +496,7 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   });
   const interval95 = { low: decision.low, high: decision.high };
   let reason: string;
-  const span = `the 95% interval of the difference (f measured − f predicted)/f predicted is ${pct(decision.low)} to ${pct(decision.high)}`;
+  const span = `the 95% interval of the difference (f measured − f predicted)/f predicted is ${percentRange(decision.low, decision.high)}`;
   if (decision.verdict === "disagrees" && measuredSense !== expectedSense) {
     reason = `${numbers}: the tracer is deflected to the ${measuredSense} of its motion, but a ${omega > 0 ? "counterclockwise" : "clockwise"} table deflects it to the ${expectedSense}. Check the view setup's mirror setting (a camera under the table or a mirrored image flips the sense) and the direction logged for the run.`;
   } else if (decision.verdict === "agrees") {

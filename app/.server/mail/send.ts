@@ -1,5 +1,4 @@
 import nodemailer, { type Transporter } from "nodemailer";
-import { MailLog } from "../db";
 import { env } from "../env";
 import { startFakeSmtp } from "./fake-smtp";
 
@@ -38,35 +37,11 @@ export interface OutgoingMail {
   html?: string;
 }
 
-export type MailOutcome = { ok: true } | { ok: false; error: string };
-
 /** Hands one message to the relay; throws with the relay's or the network's error. */
 export async function deliverMail(mail: OutgoingMail, transport?: Transporter): Promise<void> {
   const recipients = Array.isArray(mail.to) ? mail.to : [mail.to];
   if (recipients.length === 0) throw new Error("no recipients");
   await (transport ?? (await getTransporter())).sendMail({ from: env.mailFrom, to: recipients, subject: mail.subject, text: mail.text, html: mail.html });
-}
-
-/**
- * Sends one message at once, outside any transaction: for mail that must not wait. Mail caused by a
- * change in the database goes through `enqueueMail` (mail/outbox.ts) instead, so it survives a crash
- * and is retried. Failures are logged to the console and to the mail log, and returned so the
- * page can tell the person the mail did not go; they are never swallowed.
- */
-export async function sendMail(mail: OutgoingMail): Promise<MailOutcome> {
-  const recipients = Array.isArray(mail.to) ? mail.to : [mail.to];
-  try {
-    await deliverMail(mail);
-    await MailLog.create({ recipients: recipients.join(", "), subject: mail.subject, status: "sent", error: null });
-    return { ok: true };
-  } catch (err) {
-    const message = err instanceof Error ? err.message : String(err);
-    console.error(`[mail] could not send "${mail.subject}" to ${recipients.join(", ")}: ${message}`);
-    await MailLog.create({ recipients: recipients.join(", "), subject: mail.subject, status: "failed", error: message }).catch(
-      () => undefined,
-    );
-    return { ok: false, error: message };
-  }
 }
 
 export function resetMailTransport() {

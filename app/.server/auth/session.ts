@@ -1,9 +1,10 @@
 import crypto from "node:crypto";
 import { createCookie, createSessionStorage, redirect, type Cookie } from "react-router";
 import { Op } from "sequelize";
-import { LabSetting, Session } from "../db";
+import { Session } from "../db";
+import { getLabSettings } from "../settings";
 import { env } from "../env";
-import { SESSION_ABSOLUTE_HOURS, settingDefaults } from "~/lib/settings";
+import { SESSION_ABSOLUTE_HOURS } from "~/lib/settings";
 
 const HOUR_MS = 3600 * 1000;
 /** Last-seen is written at most this often: a page with many requests does not write on each one. */
@@ -37,9 +38,7 @@ export interface FlashData {
 
 /** The lab's idle timeout in milliseconds, read on each request so a change applies at once. */
 async function idleTimeoutMs(): Promise<number> {
-  const row = await LabSetting.findByPk("sessionIdleHours");
-  const hours = row ? Number(row.value) : NaN;
-  return (Number.isFinite(hours) && hours > 0 ? hours : settingDefaults.sessionIdleHours) * HOUR_MS;
+  return (await getLabSettings()).sessionIdleHours * HOUR_MS;
 }
 
 /**

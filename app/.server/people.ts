@@ -2,6 +2,7 @@ import { Op, type Transaction } from "sequelize";
 import { AuthToken, User, sequelize } from "./db";
 import type { AuthTokenPurpose } from "./db/models/auth-token";
 import { env } from "./env";
+import { onBoot } from "./boot";
 import { hashPassword, verifyPassword } from "./auth/password";
 import { hashToken, newSecretToken } from "./auth/tokens";
 import { afterDeactivation, afterPasswordChange } from "./auth/credential-changes";
@@ -198,6 +199,9 @@ async function queueResetLink(user: User, secret: ReturnType<typeof newLinkSecre
 export async function passwordResetsSettled() {
   await Promise.all([...resetsUnderWay]);
 }
+
+// A clean stop writes the reset links already promised before the database closes.
+onBoot({ name: "password-resets", start: () => undefined, stop: passwordResetsSettled });
 
 export async function changeOwnPassword(userId: number, current: string, next: string, keepSessionId?: string) {
   const user = await User.findByPk(userId);

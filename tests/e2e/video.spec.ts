@@ -22,7 +22,7 @@ async function logRun(page: Page, purpose: string) {
 // Both made from the same rendered stack: a float on its inertial circle with the table at the set 15 rpm, 30 frames/s.
 for (const kind of ["mp4-h264", "webm-vp8"] as VideoKind[]) {
   test(`a ${kind} video of 90 frames is cut in the browser into 90 frames with the container's own times, and the run agrees with theory`, async ({ page }) => {
-    test.setTimeout(240_000);
+    test.setTimeout(300_000);
     const video = await renderVideo({ kind, frames: 90, rpm: 15, outDir });
     // The container's own frame times, from ffprobe: the reference the cut must match.
     expect(video.times).toHaveLength(90);
@@ -30,7 +30,7 @@ for (const kind of ["mp4-h264", "webm-vp8"] as VideoKind[]) {
     await signIn(page, people.tech);
     const runId = await logRun(page, `Browser test of cutting a ${kind} video`);
     await page.getByLabel("Choose frames, a ZIP or a video").setInputFiles(video.file);
-    await expect(page.getByRole("heading", { name: "Frame stack (90)" })).toBeVisible({ timeout: 120_000 });
+    await expect(page.getByRole("heading", { name: "Frame stack (90)" })).toBeVisible({ timeout: 180_000 });
     await expect(page.getByTestId("upload-outcomes")).not.toContainText("refused");
 
     const listed = (await (await page.request.get(`/api/v1/runs/${runId}/frames`)).json()) as { frameCount: number; frames: { position: number; timeS: number | null }[] };

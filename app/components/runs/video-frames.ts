@@ -179,7 +179,7 @@ export async function cutVideoIntoFrames(video: File, maxFrames: number, onProgr
         lastGap = err.message;
       }
     }
-    throw new Error(`The browser kept missing frames of this video (${lastGap}), even at a quarter speed. Close other tabs and try again, or bring a frame stack.`);
+    throw new Error(`The browser kept missing frames of this video (${lastGap}), even at a tenth of its speed. Close other tabs and try again, or bring a frame stack.`);
   } finally {
     URL.revokeObjectURL(url);
     el.removeAttribute("src");

@@ -52,19 +52,32 @@ app.use(servedMethodsOnly);
 app.use(refuseOversizedBodies);
 app.use(sameOriginOnly);
 
+// A setting that keeps Tankside from starting (an unreachable database, say) is one line, not a stack.
+function refuseToStart(err) {
+  if (err && err.startupProblem) {
+    console.error(err.message);
+    process.exit(1);
+  }
+  throw err;
+}
+
 let build;
-if (dev) {
-  const vite = await import("vite");
-  const viteServer = await vite.createServer({ server: { middlewareMode: true } });
-  app.use(viteServer.middlewares);
-  build = () => viteServer.ssrLoadModule("virtual:react-router/server-build");
-  const mod = await build();
-  await mod.entry.module.boot();
-} else {
-  build = await import(new URL(`./${buildDir}/server/index.js`, import.meta.url).href);
-  await build.entry.module.boot();
-  app.use("/assets", express.static(`${buildDir}/client/assets`, { immutable: true, maxAge: "1y" }));
-  app.use(express.static(`${buildDir}/client`, { maxAge: "1h", index: false }));
+try {
+  if (dev) {
+    const vite = await import("vite");
+    const viteServer = await vite.createServer({ server: { middlewareMode: true } });
+    app.use(viteServer.middlewares);
+    build = () => viteServer.ssrLoadModule("virtual:react-router/server-build");
+    const mod = await build();
+    await mod.entry.module.boot();
+  } else {
+    build = await import(new URL(`./${buildDir}/server/index.js`, import.meta.url).href);
+    await build.entry.module.boot();
+    app.use("/assets", express.static(`${buildDir}/client/assets`, { immutable: true, maxAge: "1y" }));
+    app.use(express.static(`${buildDir}/client`, { maxAge: "1h", index: false }));
+  }
+} catch (err) {
+  refuseToStart(err);
 }
 
 app.use(noStore);

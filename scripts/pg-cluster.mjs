@@ -3,15 +3,17 @@
 //   node scripts/pg-cluster.mjs start   → initdb (first time) and start; prints the URL
 //   node scripts/pg-cluster.mjs stop    → stop it and remove its folder
 //   node scripts/pg-cluster.mjs run -- <command…>  → start, run the command with TEST_DATABASE_URL set, stop
-// The cluster lives in tests/.tmp/pg-<port>, listens on 127.0.0.1 only, trusts local connections
+// The cluster lives in <tmp>/tankside-pg-<port>, listens on 127.0.0.1 only, trusts local connections
 // (it is a test database on a loopback port; never use this for a real lab), and is not fsync'd.
 import { spawnSync, spawn } from "node:child_process";
 import fs from "node:fs";
+import os from "node:os";
 import path from "node:path";
 
-const root = path.resolve(import.meta.dirname, "..");
 const port = Number(process.env.TANKSIDE_PG_PORT ?? 54329);
-const dir = path.join(root, "tests/.tmp", `pg-${port}`);
+// Under the system temp folder, not the checkout: the postgres user must be able to reach it, and a
+// checkout under /root is closed to it.
+const dir = path.join(os.tmpdir(), `tankside-pg-${port}`);
 const data = path.join(dir, "data");
 const url = `postgres://postgres@127.0.0.1:${port}/postgres`;
 

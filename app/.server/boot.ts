@@ -1,4 +1,6 @@
 import { migrate, sequelize } from "./db";
+import { databaseProblem } from "./db/connection";
+import { StartupProblem } from "./startup-problem";
 import { env, mailSetupProblem } from "./env";
 import { startFakeSmtp } from "./mail/fake-smtp";
 import { purgeExpiredSessions } from "./auth/session";
@@ -25,6 +27,8 @@ export function boot(): Promise<void> {
       console.error(mailProblem);
       process.exit(1);
     }
+    const dbProblem = await databaseProblem();
+    if (dbProblem) throw new StartupProblem(dbProblem);
     const applied = await migrate();
     if (applied.length) console.log(`[tankside] migrations applied: ${applied.join(", ")}`);
     if (!env.smtpUrl) {

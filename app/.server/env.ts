@@ -38,6 +38,8 @@ export const env = {
   port,
   projectRoot,
   databaseUrl: process.env.DATABASE_URL ?? `sqlite:${path.join(projectRoot, "tankside.sqlite")}`,
+  /** PostgreSQL only: connections each process keeps at most (several web and worker processes share the server's max_connections). */
+  databasePoolMax: Math.max(1, Number(process.env.DATABASE_POOL_MAX ?? 10) || 10),
   get sessionSecret() {
     return sessionSecret();
   },

@@ -4,13 +4,13 @@ import fs from "node:fs";
 import net from "node:net";
 import path from "node:path";
 import sharp from "sharp";
-import sqlite3 from "sqlite3";
+import { freshDatabaseUrl, integrityCheck, queryAll } from "../setup/test-database.mjs";
 
 /**
  * Kill -9 in the middle of work. A server of its own (the built app, its own port and folder, not
  * the shared one) takes frame uploads, booking approvals and a tracking job at once, and is killed
- * with SIGKILL while they are in flight. After a restart: the database passes SQLite's integrity
- * check, every write the client got a 2xx for is there, the tracking job resumes from its stored
+ * with SIGKILL while they are in flight. After a restart: the database passes its own integrity
+ * check (SQLite's integrity_check, or amcheck on PostgreSQL), every write the client got a 2xx for is there, the tracking job resumes from its stored
  * detections and finishes, and frame files that no row names are gone.
  */
 
@@ -59,17 +59,6 @@ class Server {
   }
 }
 
-function sqliteAll<T>(file: string, sql: string): Promise<T[]> {
-  return new Promise((resolve, reject) => {
-    const db = new sqlite3.Database(file, (err) => {
-      if (err) return reject(err);
-      db.all(sql, (queryErr, rows) => db.close(() => (queryErr ? reject(queryErr) : resolve(rows as T[]))));
-    });
-  });
-}
-
-const integrity = async (file: string) => (await sqliteAll<{ integrity_check: string }>(file, "PRAGMA integrity_check")).map((r) => r.integrity_check);
-
 /** Every file under uploads/runs/, as "runId/name". */
 function runFiles(uploads: string) {
   const dir = path.join(uploads, "runs");
@@ -84,9 +73,9 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
   const tmp = path.join(root, "tests/.tmp", `crash-${port}`);
   fs.rmSync(tmp, { recursive: true, force: true });
   fs.mkdirSync(path.join(tmp, "uploads"), { recursive: true });
-  const dbFile = path.join(tmp, "crash.sqlite");
+  const databaseUrl = await freshDatabaseUrl(`crash_${port}`, tmp);
   const uploads = path.join(tmp, "uploads");
-  const env: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "production", TANKSIDE_FAKE_MAIL: "1", PORT: String(port), HOST: "127.0.0.1", DATABASE_URL: `sqlite:${dbFile}`, UPLOADS_DIR: uploads, SESSION_SECRET: "crash-test-session-secret-0123456789", APP_URL: base };
+  const env: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "production", TANKSIDE_FAKE_MAIL: "1", PORT: String(port), HOST: "127.0.0.1", DATABASE_URL: databaseUrl, UPLOADS_DIR: uploads, SESSION_SECRET: "crash-test-session-secret-0123456789", APP_URL: base };
   delete env.SMTP_URL;
 
   const made = spawnSync("npx", ["tsx", "tests/setup/crash-lab.ts", String(TRACK_FRAMES), String(BOOKINGS)], { cwd: root, env, encoding: "utf8" });
@@ -159,7 +148,7 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
     expect(framesDoneAtKill).toBeLessThan(TRACK_FRAMES);
 
     // ── The file as the crash left it ─────────────────────────────────────────────────
-    expect(await integrity(dbFile)).toEqual(["ok"]);
+    expect(await integrityCheck(databaseUrl)).toEqual(["ok"]);
     // A file left by an upload whose row never committed. The start-up cleanup spares files younger
     // than ORPHAN_MIN_AGE_MS (they may belong to an upload still committing), so everything the
     // killed server left is dated back past that, as if the restart came later.
@@ -206,10 +195,10 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
     second = null;
 
     // ── After a clean stop ────────────────────────────────────────────────────────────
-    expect(await integrity(dbFile)).toEqual(["ok"]);
-    const [job] = await sqliteAll<{ attempts: number; state: string }>(dbFile, `SELECT attempts, state FROM tracking_jobs WHERE id = ${jobId}`);
+    expect(await integrityCheck(databaseUrl)).toEqual(["ok"]);
+    const [job] = (await queryAll(databaseUrl, `SELECT attempts, state FROM tracking_jobs WHERE id = ${jobId}`)) as { attempts: number; state: string }[];
     expect(job).toEqual({ attempts: 2, state: "done" });
-    const rows = await sqliteAll<{ run_id: number; stored_name: string; thumb_name: string | null }>(dbFile, "SELECT run_id, stored_name, thumb_name FROM frames");
+    const rows = (await queryAll(databaseUrl, "SELECT run_id, stored_name, thumb_name FROM frames")) as { run_id: number; stored_name: string; thumb_name: string | null }[];
     const named = new Set(rows.flatMap((r) => [`${r.run_id}/${r.stored_name}`, ...(r.thumb_name ? [`${r.run_id}/${r.thumb_name}`] : [])]));
     expect(runFiles(uploads).filter((f) => !named.has(f))).toEqual([]);
     expect([...named].filter((f) => !fs.existsSync(path.join(uploads, "runs", f)))).toEqual([]);

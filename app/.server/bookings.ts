@@ -359,13 +359,14 @@ export async function personalFeedIcs(userId: number): Promise<string> {
 
 const FEED_PREFIX = "tkc_";
 
-/** Makes (or replaces) a person's secret feed address; the token is shown once, only its hash is kept. */
+/**
+ * Makes (or replaces) a person's secret feed address; the token is shown once, only its hash is kept.
+ * One feed per person (unique user_id): one INSERT … ON CONFLICT (user_id) DO UPDATE, so two at once
+ * leave one row, the later address, on either database.
+ */
 export async function createCalendarFeed(userId: number): Promise<string> {
   const token = FEED_PREFIX + newSecretToken(24);
-  await sequelize.transaction(async (t) => {
-    await CalendarFeed.destroy({ where: { userId }, transaction: t });
-    await CalendarFeed.create({ userId, tokenHash: hashToken(token), tokenPrefix: token.slice(0, 10), lastUsedAt: null }, { transaction: t });
-  });
+  await CalendarFeed.upsert({ userId, tokenHash: hashToken(token), tokenPrefix: token.slice(0, 10), lastUsedAt: null, createdAt: new Date() });
   return token;
 }
 

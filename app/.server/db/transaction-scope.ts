@@ -44,7 +44,9 @@ type QueryFn = (sql: unknown, options?: { transaction?: Transaction | null }) =>
  * Wraps `sequelize.transaction` and `sequelize.query` (every model call goes through the latter):
  * refuses queries and transactions started inside a callback without its transaction, and runs a
  * managed transaction that PostgreSQL chose as a deadlock victim again, up to three times in all.
- * Savepoints (`{ transaction: t }`) and unmanaged transactions pass through untouched.
+ * Savepoints (`{ transaction: t }`) pass through untouched; an unmanaged transaction (no callback,
+ * as Sequelize's own findOrCreate makes) is refused inside a callback like any other, and otherwise
+ * neither scoped nor retried: its caller commits or rolls back.
  */
 export function scopeTransactions(sequelize: Sequelize) {
   const transaction = (sequelize.transaction as TransactionFn).bind(sequelize);

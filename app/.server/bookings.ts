@@ -1,6 +1,6 @@
 import { Op, Transaction, type WhereOptions } from "sequelize";
 import { createEvent, createEvents, type EventAttributes } from "ics";
-import { Booking, CalendarFeed, Equipment, User, sequelize } from "./db";
+import { Booking, CalendarFeed, Equipment, User, locking, sequelize } from "./db";
 import { env } from "./env";
 import { enqueueMail, mailQueued, type MailQueued } from "./mail/outbox";
 import { getLabSettings } from "./settings";
@@ -66,8 +66,9 @@ function conflictError(other: Booking) {
   return new BookingError(409, "booking_conflict", `It overlaps booking #${other.id} (approved, ${slotText(other)}). Two approved bookings never share an item.`);
 }
 
+/** The item, locked: requests and approvals of one item take turns from here to their commit. */
 async function loadItemForBooking(equipmentId: number, t: Transaction) {
-  const item = await Equipment.findByPk(equipmentId, { transaction: t });
+  const item = await Equipment.findByPk(equipmentId, locking(t));
   if (!item) throw new BookingError(404, "not_found", "That piece of equipment does not exist.", "equipmentId");
   if (item.status !== "in_service") {
     throw new BookingError(422, "equipment_unavailable", `${item.name} is ${item.status === "retired" ? "retired" : "out of service"} and cannot be booked.`, "equipmentId");
@@ -75,7 +76,10 @@ async function loadItemForBooking(equipmentId: number, t: Transaction) {
   return item;
 }
 
-/** Requests a slot. Checks and the insert share one write-locked transaction. */
+/**
+ * Requests a slot. Checks and the insert share one transaction, after the item's row lock: an
+ * approval of an overlapping booking commits either before the check (and is seen) or after it.
+ */
 export async function createBooking(input: BookingRequest, requester: Pick<CurrentUser, "id" | "name">) {
   if (!(input.start instanceof Date) || Number.isNaN(input.start.getTime()) || Number.isNaN(input.end.getTime())) {
     throw new BookingError(400, "invalid_time", "Start and end must be real times.", "start");
@@ -145,18 +149,18 @@ type Decision = "approve" | "decline";
 
 async function decide(id: number, manager: Pick<CurrentUser, "id" | "role" | "name">, decision: Decision, reason?: string) {
   if (manager.role !== "lab_manager") throw new BookingError(403, "forbidden", "Only a lab manager approves or declines bookings.");
-  // Exactly one of two racing approvals wins: write transactions run one at a time (db/write-queue.ts in this
-  // process, BEGIN IMMEDIATE against other processes), so the second starts after the first has committed,
-  // reads the booking and its overlaps afresh inside its own transaction, and is refused.
-  // The decision's mail is queued inside its transaction: a decision that rolls back leaves no mail, and
+  // Exactly one of two racing approvals wins, on either database: each locks the booking, then its item, before
+  // checking (row-lock.ts; on SQLite the write queue runs one transaction at a time anyway). A second approval of
+  // the same item waits for the first to commit, then reads the overlap afresh inside its own transaction and is
+  // refused. The decision's mail is queued inside its transaction: a decision that rolls back leaves no mail, and
   // one that commits cannot lose its mail to a crash.
   return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
-    const booking = await Booking.findByPk(id, { transaction: t });
+    const booking = await Booking.findByPk(id, locking(t));
     if (!booking) throw new BookingError(404, "not_found", "That booking does not exist.");
     if (booking.state !== "requested") {
       throw new BookingError(409, "invalid_state", `That booking is ${bookingStateLabels[booking.state].toLowerCase()} already; only a requested booking can be ${decision === "approve" ? "approved" : "declined"}.`);
     }
-    const item = await Equipment.findByPk(booking.equipmentId, { transaction: t });
+    const item = await Equipment.findByPk(booking.equipmentId, locking(t));
     if (decision === "approve") {
       if (!item || item.status !== "in_service") {
         throw new BookingError(422, "equipment_unavailable", `${item?.name ?? "That item"} is not in service, so the booking cannot be approved.`);
@@ -204,7 +208,7 @@ export async function declineBooking(id: number, manager: Pick<CurrentUser, "id"
 /** The requester or a lab manager cancels a requested or approved booking whose slot is not over. */
 export async function cancelBooking(id: number, user: Pick<CurrentUser, "id" | "role" | "name">) {
   return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
-    const booking = await Booking.findByPk(id, { transaction: t });
+    const booking = await Booking.findByPk(id, locking(t));
     if (!booking) throw new BookingError(404, "not_found", "That booking does not exist.");
     if (booking.requesterId !== user.id && user.role !== "lab_manager") {
       throw new BookingError(403, "forbidden", "Only the person who asked for it or a lab manager can cancel a booking.");
@@ -355,13 +359,14 @@ export async function personalFeedIcs(userId: number): Promise<string> {
 
 const FEED_PREFIX = "tkc_";
 
-/** Makes (or replaces) a person's secret feed address; the token is shown once, only its hash is kept. */
+/**
+ * Makes (or replaces) a person's secret feed address; the token is shown once, only its hash is kept.
+ * One feed per person (unique user_id): one INSERT … ON CONFLICT (user_id) DO UPDATE, so two at once
+ * leave one row, the later address, on either database.
+ */
 export async function createCalendarFeed(userId: number): Promise<string> {
   const token = FEED_PREFIX + newSecretToken(24);
-  await sequelize.transaction(async (t) => {
-    await CalendarFeed.destroy({ where: { userId }, transaction: t });
-    await CalendarFeed.create({ userId, tokenHash: hashToken(token), tokenPrefix: token.slice(0, 10), lastUsedAt: null }, { transaction: t });
-  });
+  await CalendarFeed.upsert({ userId, tokenHash: hashToken(token), tokenPrefix: token.slice(0, 10), lastUsedAt: null, createdAt: new Date() });
   return token;
 }
 

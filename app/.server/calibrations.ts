@@ -1,5 +1,5 @@
 import { Op, Transaction } from "sequelize";
-import { Calibration, CalibrationAttachment, Equipment, User, sequelize } from "./db";
+import { Calibration, CalibrationAttachment, Equipment, User, locking, sequelize } from "./db";
 import { findOutboxByKeys } from "./mail/outbox";
 import { getLabSettings } from "./settings";
 import { canEditCalibration, type CurrentUser } from "./auth/permissions";
@@ -62,7 +62,7 @@ async function columnsFor(input: CalibrationInput, t?: Transaction) {
   if (performedAt.getTime() > Date.now()) {
     throw new CalibrationError(422, "invalid_date", "The calibration date cannot be in the future: record a calibration once it is done.", "performedOn");
   }
-  const settings = await getLabSettings();
+  const settings = await getLabSettings(t);
   const performedDay = new Date(performedAt);
   performedDay.setDate(performedDay.getDate() + intervalDaysFor(input.kind, settings));
   const dueOn = input.dueOn ?? toDayString(performedDay);
@@ -122,12 +122,13 @@ export async function createCalibration(input: CalibrationInput, performer: Pick
 }
 
 /**
- * Changes a record that is not yet signed off. The check and the write share one write-locked
- * transaction, so a sign-off landing in between cannot be overwritten.
+ * Changes a record that is not yet signed off. The check and the write share one transaction that
+ * holds the record's row lock, so a sign-off (a conditional UPDATE of the same row) lands wholly
+ * before the check or after the write, never in between.
  */
 export async function updateCalibration(id: number, input: CalibrationInput, editor: Pick<CurrentUser, "id" | "role">) {
   return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
-    const cal = await Calibration.findByPk(id, { transaction: t });
+    const cal = await Calibration.findByPk(id, locking(t));
     if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
     if (!canEditCalibration(editor, cal)) throw new CalibrationError(403, "forbidden", NOT_YOURS_MESSAGE);
     if (cal.signedOffAt) throw new CalibrationError(409, "calibration_signed", SIGNED_MESSAGE);
@@ -159,8 +160,9 @@ export async function signOffCalibration(id: number, manager: Pick<CurrentUser, 
   });
 }
 
+/** Inside a transaction the record stays locked until it ends, so it cannot be signed off meanwhile. */
 export async function assertCalibrationEditable(id: number, editor: Pick<CurrentUser, "id" | "role">, t?: Transaction) {
-  const cal = await Calibration.findByPk(id, { transaction: t });
+  const cal = await Calibration.findByPk(id, t ? locking(t) : {});
   if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
   if (!canEditCalibration(editor, cal)) throw new CalibrationError(403, "forbidden", NOT_YOURS_MESSAGE);
   if (cal.signedOffAt) throw new CalibrationError(409, "calibration_signed", SIGNED_MESSAGE);
@@ -172,9 +174,10 @@ export function getCalibration(id: number) {
 }
 
 /** The record that counts for (item, kind) at a moment: the latest signed one done and signed by then. */
-async function latestSigned(equipmentIds: number[], at: Date) {
+async function latestSigned(equipmentIds: number[], at: Date, transaction?: Transaction) {
   if (equipmentIds.length === 0) return [];
   const rows = await Calibration.findAll({
+    transaction,
     where: { equipmentId: { [Op.in]: equipmentIds }, signedOffAt: { [Op.lte]: at }, performedAt: { [Op.lte]: at } },
     order: [["performedAt", "DESC"], ["id", "DESC"]],
   });
@@ -209,8 +212,8 @@ export interface CalibrationInForce {
  * The calibrations in force at `at` for these items: per item and kind, the latest record signed
  * off by then, provided it is not past due at `at`. Times are ISO strings, ready to store on a run.
  */
-export async function calibrationsInForce(equipmentIds: number[], at: Date): Promise<CalibrationInForce[]> {
-  const latest = await latestSigned(equipmentIds, at);
+export async function calibrationsInForce(equipmentIds: number[], at: Date, transaction?: Transaction): Promise<CalibrationInForce[]> {
+  const latest = await latestSigned(equipmentIds, at, transaction);
   return latest
     .filter((c) => c.dueAt.getTime() >= at.getTime())
     .sort((a, b) => a.equipmentId - b.equipmentId || a.kind.localeCompare(b.kind))
@@ -239,8 +242,8 @@ export interface PastDueAtRun {
 }
 
 /** Latest signed records of these items that were already past due at `at`: what a run made then must be flagged for. */
-export async function calibrationsPastDueAt(equipmentIds: number[], at: Date): Promise<PastDueAtRun[]> {
-  const latest = await latestSigned(equipmentIds, at);
+export async function calibrationsPastDueAt(equipmentIds: number[], at: Date, transaction?: Transaction): Promise<PastDueAtRun[]> {
+  const latest = await latestSigned(equipmentIds, at, transaction);
   return latest
     .filter((c) => c.dueAt.getTime() < at.getTime())
     .map((c) => ({ id: c.id, kind: c.kind, equipmentId: c.equipmentId, dueAt: c.dueAt.toISOString() }));

@@ -30,6 +30,13 @@ export function mailSetupProblem(vars: { NODE_ENV?: string; SMTP_URL?: string; T
   return "Tankside will not start: SMTP_URL is not set in production. Set SMTP_URL to your mail relay, or set TANKSIDE_FAKE_MAIL=1 to use the built-in fake mail server on purpose (demo and tests only).";
 }
 
+function positiveInteger(name: string, fallback: number): number {
+  const text = process.env[name];
+  if (text === undefined || text === "") return fallback;
+  if (!/^[1-9]\d{0,3}$/.test(text)) throw new Error(`${name} must be a whole number from 1 to 9999, not "${text}".`);
+  return Number(text);
+}
+
 export const env = {
   nodeEnv,
   isProduction,
@@ -38,8 +45,8 @@ export const env = {
   port,
   projectRoot,
   databaseUrl: process.env.DATABASE_URL ?? `sqlite:${path.join(projectRoot, "tankside.sqlite")}`,
-  /** PostgreSQL only: connections each process keeps at most (several web and worker processes share the server's max_connections). */
-  databasePoolMax: Math.max(1, Number(process.env.DATABASE_POOL_MAX ?? 10) || 10),
+  /** PostgreSQL only: the most connections one process opens (each app process, script and migration has its own pool). */
+  databasePoolMax: positiveInteger("DATABASE_POOL_MAX", 10),
   get sessionSecret() {
     return sessionSecret();
   },

@@ -1,5 +1,5 @@
-import { Op, type Transaction } from "sequelize";
-import { AuthToken, User, sequelize } from "./db";
+import { Op, UniqueConstraintError, type Transaction } from "sequelize";
+import { AuthToken, User, locking, sequelize } from "./db";
 import type { AuthTokenPurpose } from "./db/models/auth-token";
 import { env } from "./env";
 import { onBoot } from "./boot";
@@ -60,6 +60,19 @@ async function issueToken(
   return secret.token;
 }
 
+/**
+ * The unique index on e-mail decides who is already on the list: of two invitations of one address
+ * at once, on either database, one is saved and the other refused.
+ */
+async function createUnlessListed(person: { email: string; name: string; role: Role }, transaction: Transaction) {
+  try {
+    return await User.create({ ...person, passwordHash: null, passwordChangedAt: null }, { transaction });
+  } catch (err) {
+    if (err instanceof UniqueConstraintError) throw new PeopleError("Someone with that e-mail address is already on the list.", "email", 409);
+    throw err;
+  }
+}
+
 export async function invitePerson(
   input: { email: string; name: string; role: Role },
   invitedBy: { id: number; name: string },
@@ -67,10 +80,7 @@ export async function invitePerson(
   const email = input.email.trim().toLowerCase();
   // The person, their link and the invitation e-mail are saved together or not at all.
   return sequelize.transaction(async (transaction) => {
-    if (await User.findOne({ where: { email }, transaction })) {
-      throw new PeopleError("Someone with that e-mail address is already on the list.", "email", 409);
-    }
-    const user = await User.create({ email, name: input.name.trim(), role: input.role, passwordHash: null, passwordChangedAt: null }, { transaction });
+    const user = await createUnlessListed({ email, name: input.name.trim(), role: input.role }, transaction);
     const token = await issueToken(user.id, "invitation", INVITATION_HOURS * 60, invitedBy.id, transaction);
     const link = `${env.appUrl}/welcome/${token}`;
     const mail = await enqueueMail(
@@ -213,13 +223,19 @@ export async function changeOwnPassword(userId: number, current: string, next: s
   await afterPasswordChange(user, { via: "account", keepSessionId });
 }
 
-/** Managers who can actually sign in: active and with a password chosen (an unanswered invitation does not count). */
-async function usableManagerCount(transaction: import("sequelize").Transaction) {
-  return User.count({ where: { role: "lab_manager", active: true, passwordHash: { [Op.ne]: null } }, transaction });
+/**
+ * Managers who can actually sign in: active and with a password chosen (an unanswered invitation
+ * does not count). Their rows stay locked until the transaction ends, taken in id order: of two
+ * changes at once that would each leave one manager (demoting A, deactivating B), the second waits,
+ * counts again without the first one's person, and is refused.
+ */
+async function usableManagerCount(transaction: Transaction) {
+  const managers = await User.findAll({ where: { role: "lab_manager", active: true, passwordHash: { [Op.ne]: null } }, attributes: ["id"], order: [["id", "ASC"]], ...locking(transaction) });
+  return managers.length;
 }
 
 /** Whether taking this person out of the lab-manager role (or deactivating them) would leave no manager able to sign in. */
-async function isLastUsableManager(user: User, transaction: import("sequelize").Transaction) {
+async function isLastUsableManager(user: User, transaction: Transaction) {
   if (user.role !== "lab_manager" || !user.active || !user.passwordHash) return false;
   return (await usableManagerCount(transaction)) <= 1;
 }

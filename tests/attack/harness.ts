@@ -143,14 +143,15 @@ export function isApiError(json: unknown) {
 /** Tables whose rows a refused request may still touch: sessions (each request gets a fresh one) and token last-use times. */
 const volatile = new Set(["sessions", "api_tokens", "SequelizeMeta"]);
 
-/** Row count and a hash of the contents of every table (a table added later is covered too). */
+/** Row count and a hash of the contents of every table (a table added later is covered too), on either database. */
 export async function dataFingerprint() {
-  const [rows] = (await sequelize.query("SELECT name FROM sqlite_master WHERE type = 'table'")) as [{ name: string }[], unknown];
-  const present = new Set(rows.map((r) => r.name));
+  const tables = (await sequelize.getQueryInterface().showAllTables()) as string[];
   const out: Record<string, string | number> = {};
-  for (const table of [...present].filter((t) => !volatile.has(t) && !t.startsWith("sqlite_")).sort()) {
-    const [all] = (await sequelize.query(`SELECT * FROM "${table}" ORDER BY rowid`)) as [unknown[], unknown];
-    out[table] = `${all.length} rows, ${crypto.createHash("sha256").update(JSON.stringify(all)).digest("hex").slice(0, 16)}`;
+  for (const table of tables.filter((t) => !volatile.has(t)).sort()) {
+    const [all] = (await sequelize.query(`SELECT * FROM "${table}"`)) as [unknown[], unknown];
+    // Sorted as text, so neither database's row order matters.
+    const rows = all.map((r) => JSON.stringify(r)).sort();
+    out[table] = `${rows.length} rows, ${crypto.createHash("sha256").update(rows.join("\n")).digest("hex").slice(0, 16)}`;
   }
   return out;
 }

@@ -122,6 +122,8 @@ export const numberCases: { name: string; json: string }[] = [
   { name: "1e309 (Infinity)", json: "1e309" },
   { name: "text 1e309", json: '"1e309"' },
   { name: "-1", json: "-1" },
+  // Past PostgreSQL's 32-bit integer columns (2^31).
+  { name: "2147483648", json: "2147483648" },
 ];
 
 /** Values a text field must refuse. */
@@ -131,6 +133,8 @@ export const textCases: { name: string; json: string }[] = [
   { name: "an array", json: '["a"]' },
   { name: "an object", json: '{"text":"a"}' },
   { name: "1 MB of text", json: JSON.stringify("x".repeat(MB)) },
+  // PostgreSQL refuses NUL in text; SQLite would cut the text there. Neither may see it.
+  { name: "a NUL character inside the text", json: '"Dye run\\u0000 in tank A"' },
 ];
 
 /** Values a date (or date and time) field must refuse. */
@@ -154,7 +158,7 @@ export const dayCases: { name: string; json: string }[] = [
 ];
 
 /** Ids that name nothing: every route with a parameter gets each of them. */
-export const badIds = ["abc", "1e309", "-1", "0x10", "1.5", "0", "99999999999999999999", "\u0000", "1 OR 1=1", "Infinity"];
+export const badIds = ["abc", "1e309", "-1", "0x10", "1.5", "0", "99999999999999999999", "2147483648", "999999999999999", "\u0000", "1 OR 1=1", "Infinity"];
 
 /** GETs with filters: each query must be refused. */
 export const queryTargets: { name: string; api: boolean; path: string; queries: string[] }[] = [

@@ -1,4 +1,5 @@
 export { sequelize, isSqlite } from "./connection";
+export { locking } from "./row-lock";
 export { migrate } from "./migrate";
 export { User } from "./models/user";
 export { Session } from "./models/session";

@@ -1,4 +1,3 @@
-import { AsyncLocalStorage } from "node:async_hooks";
 import { QueryTypes, type Sequelize, type Transaction, type TransactionOptions } from "sequelize";
 
 /**
@@ -16,16 +15,10 @@ import { QueryTypes, type Sequelize, type Transaction, type TransactionOptions }
  * What does not: reads, and anything run with `{ transaction }` (it is part of a turn already —
  * savepoints from `sequelize.transaction({ transaction: t })` included).
  *
- * A write that would wait for the turn its own caller holds can never get it: a new transaction,
- * or a write without `{ transaction }`, started inside a transaction's callback. Those fail at once
- * with NestedWriteError instead of hanging; pass the transaction along.
+ * A write that would wait for the turn its own caller holds could never get it: a new transaction,
+ * or a write without `{ transaction }`, started inside a transaction's callback. transaction-scope.ts
+ * refuses those at once, on either database.
  */
-export class NestedWriteError extends Error {
-  constructor(what: string) {
-    super(`${what} was started inside a transaction and would wait for that same transaction forever; pass { transaction } to it.`);
-    this.name = "NestedWriteError";
-  }
-}
 
 /** First in, first out: `turn()` resolves when every earlier turn has been released. */
 export class WriteQueue {
@@ -71,13 +64,6 @@ export function isRead(sql: unknown, type: string | undefined): boolean {
   return /^\s*SELECT\b/i.test(text) || (/^\s*PRAGMA\b/i.test(text) && !text.includes("="));
 }
 
-/** Which transaction's turn the running code is inside, if any (cleared when the turn ends). */
-const insideTurn = new AsyncLocalStorage<{ open: boolean }>();
-
-function refuseInsideTurn(what: string) {
-  if (insideTurn.getStore()?.open) throw new NestedWriteError(what);
-}
-
 type TransactionFn = (options?: TransactionOptions, autoCallback?: (t: Transaction) => PromiseLike<unknown>) => Promise<unknown>;
 type QueryFn = (sql: unknown, options?: { transaction?: Transaction | null; type?: string }) => Promise<unknown>;
 
@@ -90,14 +76,11 @@ export function queueWrites(sequelize: Sequelize, queue = new WriteQueue()): Wri
     const [options, autoCallback] = typeof optionsOrCallback === "function" ? [undefined, optionsOrCallback as (t: Transaction) => PromiseLike<unknown>] : [optionsOrCallback, maybeCallback];
     // A savepoint inside a transaction runs on that transaction's connection, within its turn.
     if (options?.transaction) return transaction(options, autoCallback);
-    refuseInsideTurn("A new transaction");
     const release = await queue.turn();
     if (autoCallback) {
-      const turn = { open: true };
       try {
-        return await insideTurn.run(turn, () => transaction(options, autoCallback));
+        return await transaction(options, autoCallback);
       } finally {
-        turn.open = false;
         release();
       }
     }
@@ -118,7 +101,6 @@ export function queueWrites(sequelize: Sequelize, queue = new WriteQueue()): Wri
 
   const queuedQuery: QueryFn = (sql, options) => {
     if (options?.transaction || isRead(sql, options?.type)) return query(sql, options);
-    refuseInsideTurn("A write without { transaction }");
     return queue.run(() => query(sql, options));
   };
 

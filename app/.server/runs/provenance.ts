@@ -1,4 +1,5 @@
 import crypto from "node:crypto";
+import type { Transaction } from "sequelize";
 import { Equipment, Frame, Run, TheoryCheck, Track, TrackingJob, ViewSetup } from "../db";
 import { getLabSettings } from "../settings";
 import { calibrationSnapshot } from "./service";
@@ -8,6 +9,7 @@ import { calibrationSnapshot } from "./service";
  * The inputs are written as canonical JSON (keys sorted) and hashed; a check stores the hash and
  * the inputs themselves, and it is current only while the run's present inputs hash to the same
  * value. Every reader of a run's check (run page, report, export, API, sign-off) asks currentCheck.
+ * Each reader takes an optional transaction: one that decides on the answer (sign-off) reads inside it.
  */
 
 function canonical(value: unknown): string {
@@ -22,10 +24,10 @@ function canonical(value: unknown): string {
 export const sha256 = (value: unknown) => crypto.createHash("sha256").update(canonical(value)).digest("hex");
 
 /** What tracking reads: the frames (content and times), the view setup, the tracer and the frame rate. */
-export async function trackingInputs(run: Run) {
+export async function trackingInputs(run: Run, transaction?: Transaction) {
   const [frames, setup] = await Promise.all([
-    Frame.findAll({ where: { runId: run.id }, attributes: ["id", "position", "sha256", "timeS"], order: [["position", "ASC"]] }),
-    ViewSetup.findOne({ where: { runId: run.id } }),
+    Frame.findAll({ where: { runId: run.id }, attributes: ["id", "position", "sha256", "timeS"], order: [["position", "ASC"]], transaction }),
+    ViewSetup.findOne({ where: { runId: run.id }, transaction }),
   ]);
   return {
     frames: { count: frames.length, digest: sha256(frames.map((f) => [f.id, f.position, f.sha256, f.timeS])) },
@@ -43,8 +45,8 @@ export async function trackingInputs(run: Run) {
   };
 }
 
-export async function trackingFingerprint(run: Run) {
-  return sha256(await trackingInputs(run));
+export async function trackingFingerprint(run: Run, transaction?: Transaction) {
+  return sha256(await trackingInputs(run, transaction));
 }
 
 /**
@@ -52,8 +54,8 @@ export async function trackingFingerprint(run: Run) {
  * whole frozen calibration snapshot (so a calibration of any kind the fit comes to apply is
  * already covered) and the lab's tolerance.
  */
-export async function checkInputs(run: Run, track: Pick<Track, "id" | "pointCount" | "jobId"> | null) {
-  const [settings, table] = await Promise.all([getLabSettings(), Equipment.findByPk(run.tableId, { attributes: ["id", "flatTable"] })]);
+export async function checkInputs(run: Run, track: Pick<Track, "id" | "pointCount" | "jobId"> | null, transaction?: Transaction) {
+  const [settings, table] = await Promise.all([getLabSettings(transaction), Equipment.findByPk(run.tableId, { attributes: ["id", "flatTable"], transaction })]);
   return {
     conditions: {
       setRateRpm: run.setRateRpm,
@@ -65,7 +67,7 @@ export async function checkInputs(run: Run, track: Pick<Track, "id" | "pointCoun
     },
     calibrations: calibrationSnapshot(run),
     settings: { checkTolerancePct: settings.checkTolerancePct },
-    tracking: await trackingInputs(run),
+    tracking: await trackingInputs(run, transaction),
     track: track ? { id: track.id, pointCount: track.pointCount, jobId: track.jobId } : null,
   };
 }
@@ -101,8 +103,8 @@ export function changedInputs(before: unknown, after: CheckInputs): string[] {
   return changed.length > 1 ? changed.filter((w) => w !== "track") : changed;
 }
 
-async function longestTrack(runId: number) {
-  return Track.findOne({ where: { runId }, attributes: ["id", "pointCount", "jobId"], order: [["pointCount", "DESC"], ["id", "ASC"]] });
+async function longestTrack(runId: number, transaction?: Transaction) {
+  return Track.findOne({ where: { runId }, attributes: ["id", "pointCount", "jobId"], order: [["pointCount", "DESC"], ["id", "ASC"]], transaction });
 }
 
 /**
@@ -110,11 +112,11 @@ async function longestTrack(runId: number) {
  * that track was made from other frames or another view setup than the present ones: a fit of it
  * vouches for nothing.
  */
-export async function presentFingerprint(run: Run, track?: Pick<Track, "id" | "pointCount" | "jobId">): Promise<{ fingerprint: string | null; inputs: CheckInputs }> {
-  const used = track ?? (await longestTrack(run.id));
-  const inputs = await checkInputs(run, used);
+export async function presentFingerprint(run: Run, track?: Pick<Track, "id" | "pointCount" | "jobId">, transaction?: Transaction): Promise<{ fingerprint: string | null; inputs: CheckInputs }> {
+  const used = track ?? (await longestTrack(run.id, transaction));
+  const inputs = await checkInputs(run, used, transaction);
   if (!used) return { fingerprint: null, inputs };
-  const job = await TrackingJob.findByPk(used.jobId, { attributes: ["id", "inputFingerprint"] });
+  const job = await TrackingJob.findByPk(used.jobId, { attributes: ["id", "inputFingerprint"], transaction });
   const tracksArePresent = job?.inputFingerprint === sha256(inputs.tracking);
   return { fingerprint: tracksArePresent ? sha256(inputs) : null, inputs };
 }
@@ -153,13 +155,13 @@ export function recordedInputs(check: Pick<TheoryCheck, "result">): unknown {
  * present inputs. A signed-off run keeps the check it was signed with: its inputs cannot change
  * any more, and a later lab setting does not reopen a signed verdict.
  */
-export async function currentCheck(runOrId: Run | number): Promise<CurrentCheck> {
-  const run = typeof runOrId === "number" ? await Run.findByPk(runOrId) : runOrId;
+export async function currentCheck(runOrId: Run | number, transaction?: Transaction): Promise<CurrentCheck> {
+  const run = typeof runOrId === "number" ? await Run.findByPk(runOrId, { transaction }) : runOrId;
   if (!run) return { status: "missing", check: null, latest: null, changed: [] };
-  const latest = await TheoryCheck.findOne({ where: { runId: run.id }, order: [["id", "DESC"]] });
+  const latest = await TheoryCheck.findOne({ where: { runId: run.id }, order: [["id", "DESC"]], transaction });
   if (!latest) return { status: "missing", check: null, latest: null, changed: [] };
   if (run.state === "signed_off") return { status: "current", check: latest, latest, changed: [] };
-  const { fingerprint, inputs } = await presentFingerprint(run);
+  const { fingerprint, inputs } = await presentFingerprint(run, undefined, transaction);
   if (fingerprint && latest.inputFingerprint === fingerprint) return { status: "current", check: latest, latest, changed: [] };
   const changed = changedInputs(recordedInputs(latest), inputs);
   return { status: "out_of_date", check: null, latest, changed: changed.length ? changed : ["tracks not made from the present frames and view setup"] };

@@ -186,9 +186,8 @@ export async function getRunColumnChoice(userId: number): Promise<RunColumnChoic
   }
 }
 
+/** One row per person and key (unique index): INSERT … ON CONFLICT DO UPDATE, so saves at once never collide. */
 export async function saveRunColumnChoice(userId: number, choice: RunColumnChoice) {
   const value = JSON.stringify(runColumnChoiceSchema.parse(choice));
-  const existing = await UserPreference.findOne({ where: { userId, key: COLUMNS_KEY } });
-  if (existing) await existing.update({ value });
-  else await UserPreference.create({ userId, key: COLUMNS_KEY, value });
+  await UserPreference.upsert({ userId, key: COLUMNS_KEY, value });
 }

@@ -1,6 +1,6 @@
 import { calibrationSnapshot } from "./service";
 import { Op } from "sequelize";
-import { Calibration, Equipment, Frame, Run, RunHistory, TheoryCheck, Track, TrackingJob, User, ViewSetup, sequelize } from "../db";
+import { Calibration, Equipment, Frame, Run, RunHistory, TheoryCheck, Track, TrackingJob, User, ViewSetup, locking, sequelize } from "../db";
 import { codeVersion } from "../version";
 import { serializeEquipment } from "../equipment";
 import { RunError, setRunState } from "./service";
@@ -16,13 +16,14 @@ import { runFieldLabels } from "~/lib/validation/run";
  */
 export async function signOffRun(runId: number, user: CurrentUser) {
   if (user.role !== "lab_manager") throw new RunError("Only a lab manager can sign a run off.", 403, undefined, "forbidden");
+  // The run's row lock: an edit, a new frame or a re-check of this run commits before the check below or waits for the sign-off.
   return sequelize.transaction(async (transaction) => {
-    const run = await Run.findByPk(runId, { transaction });
+    const run = await Run.findByPk(runId, locking(transaction));
     if (!run) throw new RunError("No such run.", 404, undefined, "not_found");
     if (run.state === "signed_off") {
       throw new RunError(`${runLabel(run.id)} is already signed off.`, 409, undefined, "run_signed_off");
     }
-    const current = await currentCheck(run);
+    const current = await currentCheck(run, transaction);
     if (current.status === "out_of_date") {
       throw new RunError(
         `${runLabel(run.id)}'s theory check is out of date (changed since: ${current.changed.join(", ")}). Wait for the new check, then sign off.`,

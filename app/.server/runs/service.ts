@@ -1,5 +1,5 @@
 import type { Transaction } from "sequelize";
-import { Equipment, Frame, Run, RunHistory, sequelize } from "../db";
+import { Equipment, Frame, Run, RunHistory, locking, sequelize } from "../db";
 import type { RunInput } from "~/lib/validation/run";
 import type { CurrentUser } from "../auth/permissions";
 import type { RunState } from "~/lib/runs";
@@ -89,9 +89,10 @@ const fitFields = new Set(["setRateRpm", "direction", "cameraMode", "rateReached
 const trackFields = new Set(["tracer", "frameRateFps", "cameraId"]);
 const equipmentFields = new Set(["tableId", "tankId", "cameraId"]);
 
-async function freezeCalibrations(equipmentIds: number[], at: Date) {
-  const inForce = await calibrationsInForce(equipmentIds, at);
-  const pastDue = await calibrationsPastDueAt(equipmentIds, at);
+/** Frozen with the run: later sign-offs or expiries do not change what this run was made under. */
+async function freezeCalibrations(equipmentIds: number[], at: Date, transaction: Transaction) {
+  const inForce = await calibrationsInForce(equipmentIds, at, transaction);
+  const pastDue = await calibrationsPastDueAt(equipmentIds, at, transaction);
   return JSON.stringify({ at: at.toISOString(), inForce, pastDue });
 }
 
@@ -128,10 +129,7 @@ export async function createRun(input: RunInput, user: CurrentUser) {
       if (!old) throw new RunError("The run this corrects does not exist.", 404, "supersedesId", "not_found");
     }
     const at = input.rateReachedAt ?? new Date();
-    // Frozen with the run: later sign-offs or expiries do not change what this run was made under.
-    const equipmentIds = [input.tableId, input.tankId, input.cameraId];
-    const inForce = await calibrationsInForce(equipmentIds, at);
-    const pastDue = await calibrationsPastDueAt(equipmentIds, at);
+    const calibrations = await freezeCalibrations([input.tableId, input.tankId, input.cameraId], at, transaction);
     const run = await Run.create(
       {
         ...columns(input),
@@ -139,7 +137,7 @@ export async function createRun(input: RunInput, user: CurrentUser) {
         supersedesId: input.supersedesId ?? null,
         signedOffById: null,
         signedOffAt: null,
-        calibrationsInForce: JSON.stringify({ at: at.toISOString(), inForce, pastDue }),
+        calibrationsInForce: calibrations,
         verdict: null,
         frameWidthPx: null,
         frameHeightPx: null,
@@ -179,6 +177,9 @@ export async function updateRun(runId: number, input: RunInput, user: CurrentUse
   let snapshotChanged = false;
   let redo: "fit" | "track" | null = null;
   await sequelize.transaction(async (transaction) => {
+    // Checked again holding the run's lock: a sign-off or another edit may have committed since the read above.
+    await run.reload(locking(transaction));
+    assertCanChange(run, user);
     const changes = Object.entries(next).filter(([k, v]) => show(run.get(k as keyof Run)) !== show(v));
     changed = changes.map(([k]) => k);
     for (const [field, value] of changes) {
@@ -187,7 +188,7 @@ export async function updateRun(runId: number, input: RunInput, user: CurrentUse
     const refreeze = changed.some((k) => k === "rateReachedAt" || equipmentFields.has(k));
     // Without a rate reached time the run's time is when it was logged, as frozen then.
     const loggedAt = (!run.rateReachedAt && calibrationSnapshot(run).at) || run.createdAt.toISOString();
-    const snapshot = refreeze ? await freezeCalibrations([next.tableId, next.tankId, next.cameraId], next.rateReachedAt ?? new Date(loggedAt)) : null;
+    const snapshot = refreeze ? await freezeCalibrations([next.tableId, next.tankId, next.cameraId], next.rateReachedAt ?? new Date(loggedAt), transaction) : null;
     snapshotChanged = snapshot !== null && snapshot !== run.calibrationsInForce;
     // The snapshot's time moves with the rate reached time; the history names only a change of which records apply.
     if (snapshot && snapshotSummary(snapshot) !== snapshotSummary(run.calibrationsInForce)) {

@@ -1,4 +1,4 @@
-import { Equipment, Run, TheoryCheck, Track, ViewSetup, sequelize } from "../db";
+import { Equipment, Run, TheoryCheck, Track, ViewSetup, locking, sequelize } from "../db";
 import { calibrationsForCheck } from "./applied-calibrations";
 import { getLabSettings } from "../settings";
 import { codeVersion } from "../version";
@@ -72,6 +72,9 @@ export async function checkRun(runId: number, userId: number | null) {
   const stored = { result, input: { ...rest, trackId: prepared.track.id, pointCount: points.length }, provenance: { fingerprint, inputs } };
   const previous = await TheoryCheck.findOne({ where: { runId }, order: [["id", "DESC"]] });
   return sequelize.transaction(async (transaction) => {
+    // Read again holding the run's lock: a sign-off may have committed while the fit ran, and a signed run keeps its check.
+    await run.reload(locking(transaction));
+    if (run.state === "signed_off") return null;
     const check = await TheoryCheck.create(
       {
         runId,

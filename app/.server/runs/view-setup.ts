@@ -1,18 +1,27 @@
-import { ViewSetup, type Run } from "../db";
+import { Run, ViewSetup, locking, sequelize } from "../db";
 import { inputsChanged } from "./rechecks";
 
 export type ViewSetupValues = Omit<ViewSetup["_creationAttributes"], "id" | "createdAt" | "updatedAt">;
 
-/** Saves the run's view setup; a changed setup makes the check out of date and re-tracks the run. */
+/**
+ * Saves the run's view setup (one per run, a unique index); a changed setup makes the check out of
+ * date and re-tracks the run. Saves of one run take turns behind the run's row lock, so the second
+ * of two at once finds the first one's row and updates it, and "changed" compares with what the
+ * previous save left.
+ */
 export async function saveViewSetup(run: Run, values: ViewSetupValues, userId: number) {
-  const existing = await ViewSetup.findOne({ where: { runId: run.id } });
-  if (!existing) {
-    await ViewSetup.create(values);
-    return;
-  }
-  existing.set(values);
-  const changed = (existing.changed() || []).filter((k) => k !== "createdById" && k !== "updatedAt");
-  await existing.save();
+  const changed = await sequelize.transaction(async (transaction) => {
+    await Run.findByPk(run.id, locking(transaction));
+    const existing = await ViewSetup.findOne({ where: { runId: run.id }, transaction });
+    if (!existing) {
+      await ViewSetup.create(values, { transaction });
+      return false;
+    }
+    existing.set(values);
+    const fields = (existing.changed() || []).filter((k) => k !== "createdById" && k !== "updatedAt");
+    await existing.save({ transaction });
+    return fields.length > 0;
+  });
   // The tracks were made with the old marks: track again, and the check follows the new tracks.
-  if (changed.length) await inputsChanged(run.id, userId, "track");
+  if (changed) await inputsChanged(run.id, userId, "track");
 }

@@ -64,7 +64,7 @@ async function storeAttachment(calibrationId: number, file: StagedFile, uploader
   await moveStaged(file, path.join(attachmentDir(), storedName));
   try {
     return await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
-      // Checked again, under the write lock: a sign-off may have landed while the file was being written.
+      // Checked again, holding the record's lock: a sign-off may have landed while the file was being written.
       await assertCalibrationEditable(calibrationId, uploader, t);
       const row = await CalibrationAttachment.create(
         {

@@ -3,7 +3,7 @@ import fsp from "node:fs/promises";
 import sharp from "sharp";
 import yauzl from "yauzl";
 import { orderBy } from "natural-orderby";
-import { Frame, Run, sequelize } from "../db";
+import { Frame, Run, locking, sequelize } from "../db";
 import { uploadLimits } from "~/lib/upload-limits";
 import { generatedName, removeQuietly, runFilePath, writeRunFile } from "./storage";
 import { discardStaged, moveStaged, readHead, stageBytes, UploadError, type StagedFile } from "./staging";
@@ -111,7 +111,8 @@ async function addFrame(run: Run, originalName: string, source: Buffer | StagedF
   const thumbFile = await writeRunFile(run.id, thumbName, info.thumb);
   try {
     return await sequelize.transaction(async (transaction) => {
-      await run.reload({ transaction });
+      // Frames of one run take turns from here: each counts and numbers the frames the previous one left.
+      await run.reload(locking(transaction));
       if (run.frameCount >= uploadLimits.maxFramesPerRun) {
         throw new UploadError(`This run already has ${uploadLimits.maxFramesPerRun} frames, the most one run may hold.`, 413, "too_many_frames");
       }

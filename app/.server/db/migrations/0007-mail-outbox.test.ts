@@ -11,14 +11,16 @@ describe("migration 0007: the reminders' sent-once claims move into the outbox",
   it("keeps a sent reminder's key, so it is never enqueued again, and drops unsent claims", async () => {
     await migrate();
     await createMigrator().down({ to: "0007-mail-outbox" });
-    // Claims as the old reminder task left them; the records they point at do not matter here.
-    await sequelize.query("PRAGMA foreign_keys=OFF");
-    await sequelize.query(
-      `INSERT INTO calibration_reminders (calibration_id, state, claimed_at, sent_at, attempts, last_error) VALUES
-       (901, 'sent', '2026-11-01 08:00:00.000 +00:00', '2026-11-01 08:00:01.000 +00:00', 1, NULL),
-       (902, 'failed', '2026-11-01 08:00:00.000 +00:00', NULL, 2, 'no recipients')`,
-    );
-    await sequelize.query("PRAGMA foreign_keys=ON");
+    // Claims as the old reminder task left them, on records that exist (the foreign keys hold on either database).
+    const qi = sequelize.getQueryInterface();
+    const at = new Date("2026-11-01T08:00:00.000Z");
+    await qi.bulkInsert("users", [{ id: 900, email: "tech@tankside.example", name: "Tech", role: "technician", active: true, password_hash: null, created_at: at, updated_at: at }]);
+    await qi.bulkInsert("equipment", [{ id: 900, kind: "table", name: "Bench table", status: "in_service", created_at: at, updated_at: at }]);
+    await qi.bulkInsert("calibrations", [901, 902].map((id) => ({ id, kind: "rate", equipment_id: 900, performed_by_id: 900, performed_at: at, due_at: at, created_at: at, updated_at: at })));
+    await qi.bulkInsert("calibration_reminders", [
+      { calibration_id: 901, state: "sent", claimed_at: at, sent_at: new Date("2026-11-01T08:00:01.000Z"), attempts: 1, last_error: null },
+      { calibration_id: 902, state: "failed", claimed_at: at, sent_at: null, attempts: 2, last_error: "no recipients" },
+    ]);
     await migrate();
 
     const carried = await OutboxMail.findAll({ where: { dedupeKey: ["calibration-reminder:901", "calibration-reminder:902"] } });

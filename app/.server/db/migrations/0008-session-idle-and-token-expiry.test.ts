@@ -6,10 +6,12 @@ describe("migration 0008 on a database already in use", () => {
   it("gives existing API tokens 90 days from the upgrade and existing sessions a last-seen time, readable by the models", async () => {
     const migrator = createMigrator();
     await migrator.up({ to: "0005-run-log-preferences" });
-    const then = "2026-12-01 10:00:00.000 +00:00";
-    await sequelize.query(`INSERT INTO users (email, name, role, password_hash, active, created_at, updated_at) VALUES ('old@tankside.example', 'Old', 'technician', NULL, 1, '${then}', '${then}')`);
-    await sequelize.query(`INSERT INTO api_tokens (user_id, label, token_hash, token_prefix, created_at, updated_at) VALUES (1, 'old script', 'hash', 'tks_old', '${then}', '${then}')`);
-    await sequelize.query(`INSERT INTO sessions (id, user_id, data, expires_at, created_at, updated_at) VALUES ('old-session', 1, '{}', '2026-12-10 10:00:00.000 +00:00', '${then}', '${then}')`);
+    // Rows as they were before 0008, written through the query interface so each database gets its own booleans and dates.
+    const qi = sequelize.getQueryInterface();
+    const then = new Date("2026-12-01T10:00:00.000Z");
+    await qi.bulkInsert("users", [{ id: 900, email: "old@tankside.example", name: "Old", role: "technician", password_hash: null, active: true, created_at: then, updated_at: then }]);
+    await qi.bulkInsert("api_tokens", [{ user_id: 900, label: "old script", token_hash: "hash", token_prefix: "tks_old", created_at: then, updated_at: then }]);
+    await qi.bulkInsert("sessions", [{ id: "old-session", user_id: 900, data: "{}", expires_at: new Date("2026-12-10T10:00:00.000Z"), created_at: then, updated_at: then }]);
 
     const before = Date.now();
     await migrator.up();

@@ -70,5 +70,6 @@ CalendarFeed.init(
     lastUsedAt: { type: DataTypes.DATE, allowNull: true },
     createdAt: DataTypes.DATE,
   },
-  { sequelize, tableName: "calendar_feeds", underscored: true, updatedAt: false },
+  // One feed per person, as migration 0004 made it; declared here so upsert knows its ON CONFLICT target.
+  { sequelize, tableName: "calendar_feeds", underscored: true, updatedAt: false, indexes: [{ unique: true, fields: ["user_id"] }] },
 );

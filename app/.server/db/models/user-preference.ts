@@ -26,5 +26,6 @@ UserPreference.init(
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },
-  { sequelize, tableName: "user_preferences", underscored: true },
+  // As migration 0005 made it; declared here so upsert knows its ON CONFLICT target.
+  { sequelize, tableName: "user_preferences", underscored: true, indexes: [{ unique: true, fields: ["user_id", "key"] }] },
 );

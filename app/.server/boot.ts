@@ -1,5 +1,5 @@
 import { migrate, sequelize } from "./db";
-import { env, mailSetupProblem } from "./env";
+import { env, mailSetupProblem, workersSetupProblem } from "./env";
 import { startFakeSmtp } from "./mail/fake-smtp";
 import { purgeExpiredSessions } from "./auth/session";
 import { removeOrphanUploads } from "./uploads/orphans";
@@ -20,9 +20,9 @@ export function boot(): Promise<void> {
   g[key] ??= (async () => {
     // Touch the session secret early so a production start without one fails loudly.
     void env.sessionSecret;
-    const mailProblem = mailSetupProblem(process.env);
-    if (mailProblem) {
-      console.error(mailProblem);
+    const problem = mailSetupProblem(process.env) ?? workersSetupProblem({ ...process.env, DATABASE_URL: env.databaseUrl });
+    if (problem) {
+      console.error(problem);
       process.exit(1);
     }
     const applied = await migrate();

@@ -1,6 +1,9 @@
 import { Umzug, SequelizeStorage } from "umzug";
-import { sequelize } from "./connection";
+import { sequelize, isSqlite } from "./connection";
 import { migrations } from "./migrations";
+
+/** Any fixed number: the PostgreSQL advisory lock that lets one starting process migrate at a time. */
+const MIGRATION_LOCK = 7_284_615_001;
 
 export function createMigrator() {
   return new Umzug({
@@ -11,8 +14,15 @@ export function createMigrator() {
   });
 }
 
-/** Applies every pending migration; safe to call on each start. Returns the names applied now. */
+/**
+ * Applies every pending migration; safe to call on each start. Returns the names applied now.
+ * On PostgreSQL several processes (web servers, workers) may start at once: each waits for a
+ * transaction-scoped advisory lock, so one migrates and the others then find nothing pending.
+ */
 export async function migrate(): Promise<string[]> {
-  const applied = await createMigrator().up();
-  return applied.map((m) => m.name);
+  if (isSqlite) return (await createMigrator().up()).map((m) => m.name);
+  return sequelize.transaction(async (transaction) => {
+    await sequelize.query(`SELECT pg_advisory_xact_lock(${MIGRATION_LOCK})`, { transaction });
+    return (await createMigrator().up()).map((m) => m.name);
+  });
 }

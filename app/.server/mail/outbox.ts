@@ -1,5 +1,6 @@
 import { Op, UniqueConstraintError, type Transaction } from "sequelize";
-import { OutboxMail } from "../db";
+import { OutboxMail, sequelize } from "../db";
+import { QUEUES, ring, usesJobQueue } from "../jobs/boss";
 import type { OutboxState } from "../db/models/outbox-mail";
 import type { OutgoingMail } from "./send";
 
@@ -43,6 +44,8 @@ export interface EnqueueOptions {
  * message with the same dedupe key was enqueued before. The sender delivers it after the commit.
  */
 export async function enqueueMail(message: OutgoingMail, options: EnqueueOptions = {}): Promise<OutboxMail | null> {
+  // The shared queue's doorbell is written with the row, so both exist or neither does.
+  if (usesJobQueue && !options.transaction) return sequelize.transaction((transaction) => enqueueMail(message, { ...options, transaction }));
   const recipients = [...new Set((Array.isArray(message.to) ? message.to : [message.to]).map((r) => r.trim()).filter(Boolean))];
   if (recipients.length === 0) {
     console.warn(`[mail] "${message.subject}" has no recipients; nothing was queued`);
@@ -71,9 +74,18 @@ export async function enqueueMail(message: OutgoingMail, options: EnqueueOptions
   } else {
     created = await OutboxMail.create(row, { transaction });
   }
+  if (usesJobQueue) await ringMail(created, transaction);
   if (transaction) transaction.afterCommit(wake);
   else wake();
   return created;
+}
+
+/**
+ * PostgreSQL: rings the shared queue's doorbell for one outbox row, due at its next attempt. At most
+ * one doorbell per row waits (the key), so the periodic sweep may ring every queued row.
+ */
+export function ringMail(row: Pick<OutboxMail, "id" | "nextAttemptAt">, transaction?: Transaction) {
+  return ring(QUEUES.mail, `mail-${row.id}`, { outboxId: row.id }, { transaction, startAfter: row.nextAttemptAt });
 }
 
 export interface OutboxView {

@@ -57,6 +57,7 @@ async function trackOne(trackingJobId: number) {
   const claim = await claimTrackingJob(trackingJobId, workerName);
   // Finished, cancelled, or held by a live worker: nothing to do. (A queued job whose run is busy is rung again by the sweep.)
   if (claim.kind !== "claimed") return;
+  console.log(`[tracking] job ${trackingJobId} (run ${claim.job.runId}) taken by ${workerName} (attempt ${claim.job.attempts + 1})`);
   const controller = new AbortController();
   running.set(trackingJobId, controller);
   const beat = setInterval(() => {

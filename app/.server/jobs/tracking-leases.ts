@@ -69,7 +69,10 @@ export async function renewLease(jobId: number, owner: string): Promise<boolean>
 export async function handBack(jobId: number, owner: string) {
   await sequelize.transaction(async (transaction) => {
     const [n] = await TrackingJob.update({ state: "queued", leaseOwner: null, leaseUntil: null }, { where: { id: jobId, state: "running", leaseOwner: owner }, transaction });
-    if (n) await ringTracking(jobId, transaction);
+    if (!n) return;
+    await ringTracking(jobId, transaction);
+    const job = await TrackingJob.findByPk(jobId, { attributes: ["resumeFromFrame"], transaction });
+    console.log(`[tracking] job ${jobId} handed back to the queue after frame ${job?.resumeFromFrame ?? 0}`);
   });
 }
 

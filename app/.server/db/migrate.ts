@@ -1,4 +1,6 @@
+import pg from "pg";
 import { Umzug, SequelizeStorage } from "umzug";
+import { env } from "../env";
 import { sequelize, isSqlite } from "./connection";
 import { migrations } from "./migrations";
 
@@ -16,13 +18,20 @@ export function createMigrator() {
 
 /**
  * Applies every pending migration; safe to call on each start. Returns the names applied now.
- * On PostgreSQL several processes (web servers, workers) may start at once: each waits for a
- * transaction-scoped advisory lock, so one migrates and the others then find nothing pending.
+ * On PostgreSQL several processes (web servers, workers) may start at once: each first takes an
+ * advisory lock on a connection of its own (outside Sequelize's pool), so one migrates and the
+ * others then find nothing pending.
  */
 export async function migrate(): Promise<string[]> {
   if (isSqlite) return (await createMigrator().up()).map((m) => m.name);
-  return sequelize.transaction(async (transaction) => {
-    await sequelize.query(`SELECT pg_advisory_xact_lock(${MIGRATION_LOCK})`, { transaction });
+  const lock = new pg.Client({ connectionString: env.databaseUrl });
+  await lock.connect();
+  try {
+    await lock.query("SELECT pg_advisory_lock($1)", [MIGRATION_LOCK]);
     return (await createMigrator().up()).map((m) => m.name);
-  });
+  } finally {
+    // Ending the session releases the lock too, should the unlock itself fail.
+    await lock.query("SELECT pg_advisory_unlock($1)", [MIGRATION_LOCK]).catch(() => undefined);
+    await lock.end();
+  }
 }

@@ -1,5 +1,5 @@
 import { Op, UniqueConstraintError, type Transaction } from "sequelize";
-import { OutboxMail, sequelize } from "../db";
+import { OutboxMail } from "../db";
 import { QUEUES, ring, usesJobQueue } from "../jobs/boss";
 import type { OutboxState } from "../db/models/outbox-mail";
 import type { OutgoingMail } from "./send";
@@ -44,8 +44,6 @@ export interface EnqueueOptions {
  * message with the same dedupe key was enqueued before. The sender delivers it after the commit.
  */
 export async function enqueueMail(message: OutgoingMail, options: EnqueueOptions = {}): Promise<OutboxMail | null> {
-  // The shared queue's doorbell is written with the row, so both exist or neither does.
-  if (usesJobQueue && !options.transaction) return sequelize.transaction((transaction) => enqueueMail(message, { ...options, transaction }));
   const recipients = [...new Set((Array.isArray(message.to) ? message.to : [message.to]).map((r) => r.trim()).filter(Boolean))];
   if (recipients.length === 0) {
     console.warn(`[mail] "${message.subject}" has no recipients; nothing was queued`);
@@ -74,9 +72,17 @@ export async function enqueueMail(message: OutgoingMail, options: EnqueueOptions
   } else {
     created = await OutboxMail.create(row, { transaction });
   }
-  if (usesJobQueue) await ringMail(created, transaction);
-  if (transaction) transaction.afterCommit(wake);
-  else wake();
+  // PostgreSQL: the shared queue's doorbell is rung once the row has committed, outside the caller's
+  // transaction, so a queue that is slow or down never holds up or fails the change itself; a ring
+  // lost to a crash or an error is made good by the workers' outbox sweep (mail/outbox-jobs.ts).
+  const after = usesJobQueue
+    ? () =>
+        void ringMail(created).then(wake, (err: unknown) => {
+          console.error(`[mail] "${message.subject}" waits for the outbox sweep: the queue was not reached (${err instanceof Error ? err.message : String(err)})`);
+        })
+    : wake;
+  if (transaction) transaction.afterCommit(after);
+  else after();
   return created;
 }
 

@@ -111,7 +111,9 @@ async function addFrame(run: Run, originalName: string, source: Buffer | StagedF
   const thumbFile = await writeRunFile(run.id, thumbName, info.thumb);
   try {
     return await sequelize.transaction(async (transaction) => {
-      await run.reload({ transaction });
+      // PostgreSQL: the run's row is locked, so uploads to one run from several requests (or web
+      // servers) number their frames one after another; SQLite's write queue already does that.
+      await run.reload({ transaction, lock: transaction.LOCK.UPDATE });
       if (run.frameCount >= uploadLimits.maxFramesPerRun) {
         throw new UploadError(`This run already has ${uploadLimits.maxFramesPerRun} frames, the most one run may hold.`, 413, "too_many_frames");
       }

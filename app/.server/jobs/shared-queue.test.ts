@@ -3,13 +3,15 @@ import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { Op } from "sequelize";
 import { SMTPServer } from "smtp-server";
 import { simpleParser } from "mailparser";
-import { Detection, OutboxMail, TrackingJob, type Run } from "../db";
+import { Detection, Equipment, OutboxMail, TrackingJob, type Run } from "../db";
 import { boot, shutdown } from "../boot";
 import "../features";
 import { smallLab } from "../test-support";
 import { createRun } from "../runs/service";
 import { enqueueMail } from "../mail/outbox";
 import { enqueueTracking } from "./tracking-queue";
+import { calibrationReminderKey, createCalibration, signOffCalibration, toDayString } from "../calibrations";
+import { QUEUES, queueClient, ring } from "./boss";
 import { WorkerProcess, prepareRun, renderStack, tracksOf, waitFor } from "./testing";
 
 // This process plays a web process told not to take jobs (set before env.ts is read); the workers
@@ -174,6 +176,29 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
     expect(subjects.map((s) => received.get(s) ?? 0)).toEqual(subjects.map(() => 1));
     const rows = await OutboxMail.findAll({ where: { subject: { [Op.in]: subjects } } });
     expect(rows.every((r) => r.attempts === 1)).toBe(true);
+  }, 120_000);
+
+  it("calibration reminders run in a worker from the shared queue (hourly on pg-boss's clock), each record's reminder sent once", async () => {
+    const schedules = await (await queueClient()).getSchedules();
+    expect(schedules.map((x) => [x.name, x.cron])).toContainEqual([QUEUES.reminders, "0 * * * *"]);
+    const meter = await Equipment.create({ kind: "rate_meter", name: "Shared queue tachometer", meterType: "tachometer" } as never);
+    const day = (n: number) => toDayString(new Date(Date.now() + n * 86_400_000));
+    const cal = await createCalibration(
+      { kind: "rate", equipmentId: lab.table.id, meterId: meter.id, performedOn: day(-170), dueOn: day(5), readings: [5, 10, 15, 20].map((r) => ({ setRpm: r, measuredRpm: r })) },
+      lab.tech,
+    );
+    await signOffCalibration(cal.id, lab.manager);
+    // Two passes, as the hourly slot and a worker's start would ring them.
+    await ring(QUEUES.reminders, "test-pass-1", {});
+    const row = await waitFor("the reminder to be queued and sent", async () => {
+      const r = await OutboxMail.findOne({ where: { dedupeKey: calibrationReminderKey(cal.id) } });
+      return r?.state === "sent" ? r : null;
+    }, 60_000, 250);
+    const second = (await ring(QUEUES.reminders, "test-pass-2", {}))!;
+    const boss = await queueClient();
+    await waitFor("the second pass to be done", async () => (await boss.getJobById(QUEUES.reminders, second, { includeArchive: true }))?.state === "completed", 60_000, 250);
+    expect(await OutboxMail.count({ where: { dedupeKey: calibrationReminderKey(cal.id) } })).toBe(1);
+    expect(received.get(row.subject)).toBe(1);
   }, 120_000);
 
   it("a worker stopped with SIGTERM mid-job hands the job back at once, and the other worker resumes it", async () => {

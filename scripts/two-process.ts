@@ -249,6 +249,7 @@ const pgUrl = Object.assign(new URL(adminUrl), { pathname: `/${dbName}` }).toStr
 const procs: Proc[] = [];
 let pgOutcome: Awaited<ReturnType<typeof trackRuns>>;
 let workerJobs: number[][] = [];
+process.on("exit", () => fs.rmSync(tmp, { recursive: true, force: true }));
 try {
   const env = baseEnv(pgUrl, path.join(tmp, "pg-uploads"));
   const lab = makeLab(env);
@@ -312,7 +313,6 @@ try {
   check(outcome.outcomes[0].verdict === pgOutcome!.outcomes[0].verdict, `the same verdict on both (${outcome.outcomes[0].verdict})`);
 } finally {
   await Promise.all(procs.map((p) => p.stop()));
-  fs.rmSync(tmp, { recursive: true, force: true });
 }
 
 console.log(`${failures.length ? "FAILED" : "passed"}: ${failures.length} failed check(s); ${seconds(Date.now() - started)} in all`);

@@ -145,6 +145,7 @@ async function register(s: State, kind: WorkKind) {
 /** Starts taking the given kinds of job in this process (idempotent). */
 export async function startWorkers(kinds: WorkKind[] = ALL_WORK): Promise<void> {
   if (!usesJobQueue) throw new Error("Workers of the shared job queue need PostgreSQL.");
+  void env.jobLeaseSeconds; // a bad TANKSIDE_JOB_LEASE_S stops the start, not the first job
   stopping = false;
   state ??= (async () => {
     await queueClient(); // creates pg-boss's schema and Tankside's queues

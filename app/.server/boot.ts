@@ -1,7 +1,7 @@
 import { migrate, sequelize } from "./db";
 import { databaseProblem } from "./db/connection";
 import { StartupProblem } from "./startup-problem";
-import { env, mailSetupProblem } from "./env";
+import { env, mailSetupProblem, workersSetupProblem } from "./env";
 import { startFakeSmtp } from "./mail/fake-smtp";
 import { purgeExpiredSessions } from "./auth/session";
 import { removeOrphanUploads } from "./uploads/orphans";
@@ -22,9 +22,9 @@ export function boot(): Promise<void> {
   g[key] ??= (async () => {
     // Touch the session secret early so a production start without one fails loudly.
     void env.sessionSecret;
-    const mailProblem = mailSetupProblem(process.env);
-    if (mailProblem) {
-      console.error(mailProblem);
+    const problem = mailSetupProblem(process.env) ?? workersSetupProblem({ ...process.env, DATABASE_URL: env.databaseUrl });
+    if (problem) {
+      console.error(problem);
       process.exit(1);
     }
     const dbProblem = await databaseProblem();

@@ -1,6 +1,7 @@
 import { User } from "./db";
 import { env } from "./env";
 import { onBoot } from "./boot";
+import { usesJobQueue } from "./jobs/boss";
 import { enqueueMail } from "./mail/outbox";
 import { getLabSettings } from "./settings";
 import { calibrationReminderKey, listCalibrationsDueOrExpired } from "./calibrations";
@@ -72,6 +73,8 @@ function tick() {
 onBoot({
   name: "calibration-reminders",
   start() {
+    // On PostgreSQL the shared queue's workers run the pass (hourly, and when a worker starts).
+    if (usesJobQueue) return;
     void tick();
     timer = setInterval(() => void tick(), INTERVAL_MS);
     timer.unref();

@@ -37,6 +37,29 @@ function positiveInteger(name: string, fallback: number): number {
   return Number(text);
 }
 
+/**
+ * Whether this process takes background jobs (tracking, mail, calibration reminders). TANKSIDE_WORKERS=0
+ * leaves them to `npm run worker` processes, which only PostgreSQL can share: with SQLite the web
+ * process is the only one that can run them. Returns the reason the settings cannot work, or null.
+ */
+export function workersSetupProblem(vars: { TANKSIDE_WORKERS?: string; DATABASE_URL?: string }): string | null {
+  const value = vars.TANKSIDE_WORKERS;
+  if (value === undefined || value === "" || value === "1") return null;
+  if (value !== "0") return `Tankside will not start: TANKSIDE_WORKERS must be 1 (this process runs background jobs, the default) or 0 (leave them to \`npm run worker\`), not "${value}".`;
+  if (!/^postgres(ql)?:\/\//.test(vars.DATABASE_URL ?? "")) {
+    return "Tankside will not start: TANKSIDE_WORKERS=0 needs PostgreSQL (DATABASE_URL=postgres://…); with SQLite the web process is the only one that can run tracking and mail, so leave TANKSIDE_WORKERS unset.";
+  }
+  return null;
+}
+
+/** How long a tracking job's claim lasts without a heartbeat (s); a worker killed mid-job is replaced after about this long. */
+function jobLeaseSeconds(): number {
+  const raw = process.env.TANKSIDE_JOB_LEASE_S;
+  const value = raw ? Number(raw) : 30;
+  if (!Number.isFinite(value) || value < 3 || value > 3600) throw new Error(`TANKSIDE_JOB_LEASE_S must be a number of seconds from 3 to 3600, not "${raw}".`);
+  return value;
+}
+
 export const env = {
   nodeEnv,
   isProduction,
@@ -57,5 +80,10 @@ export const env = {
   fakeMailRequested: process.env.TANKSIDE_FAKE_MAIL === "1",
   mailFrom: process.env.MAIL_FROM ?? "Tankside <tankside@tankside.example>",
   appUrl: (process.env.APP_URL ?? `http://localhost:${port}`).replace(/\/$/, ""),
+  /** This process takes background jobs unless TANKSIDE_WORKERS=0 (PostgreSQL only; see workersSetupProblem). */
+  runsJobs: process.env.TANKSIDE_WORKERS !== "0",
+  get jobLeaseSeconds() {
+    return jobLeaseSeconds();
+  },
   uploadsDir: path.resolve(process.env.UPLOADS_DIR ?? path.join(projectRoot, "uploads")),
 };

@@ -3,3 +3,5 @@ import "./jobs/tracking-queue";
 // The mail sender first: it must be listening before the reminder task enqueues anything.
 import "./mail/outbox-sender";
 import "./calibration-reminders";
+// PostgreSQL: the shared queue's workers (tracking, mail, reminders) in this process, unless TANKSIDE_WORKERS=0.
+import "./jobs/job-workers";

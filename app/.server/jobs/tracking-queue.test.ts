@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import sharp from "sharp";
-import { Detection, Run, TheoryCheck, Track, TrackingJob, ViewSetup } from "../db";
+import { Detection, Run, TheoryCheck, Track, TrackingJob, ViewSetup, isSqlite } from "../db";
 import { smallLab } from "../test-support";
 import { createRun } from "../runs/service";
 import { receiveFrameFile } from "../uploads/frames";
@@ -113,6 +113,29 @@ describe("the tracking job queue", () => {
     expect(interrupted.attempts).toBe(1);
     const track = await Track.findOne({ where: { runId: run.id, jobId: interrupted.id } });
     expect(track?.pointCount).toBeGreaterThanOrEqual(59);
+  });
+
+  it("a stop mid-job (the server shutting down) leaves the job to resume at the next start, not cancelled", async () => {
+    const run = await runWithFrames(120);
+    await setUp(run);
+    const job = await enqueueTracking(run, lab.tech.id);
+    for (let i = 0; i < 2000 && job.state !== "running"; i++) {
+      await new Promise((r) => setTimeout(r, 10));
+      await job.reload();
+    }
+    expect(job.state).toBe("running");
+    await stopTrackingQueue();
+    await job.reload();
+    // SQLite keeps it running for the next start to resume; PostgreSQL's worker hands it back to the shared queue.
+    expect(job.state).toBe(isSqlite ? "running" : "queued");
+    expect(job.error).toBeNull();
+    expect(job.framesDone).toBeLessThan(120);
+    await resumeInterruptedJobs();
+    await whenTrackingIdle();
+    await job.reload();
+    expect(job.state).toBe("done");
+    expect(job.attempts).toBe(2);
+    expect(job.framesDone).toBe(120);
   });
 
   it("cancels a queued job", async () => {

@@ -1,27 +1,20 @@
 import { Op } from "sequelize";
-import { Detection, Frame, Run, Track, TrackingJob, ViewSetup, sequelize } from "../db";
+import { Frame, Run, TrackingJob, ViewSetup, sequelize } from "../db";
 import { onBoot } from "../boot";
-import { runFilePath } from "../uploads/storage";
-import { trackFrameStack, closeTrackingPool } from "../tracking/track-frame-stack";
-import { isTrackingCancelled } from "../tracking/errors";
-import { setRunState } from "../runs/service";
-import { checkRun } from "../runs/theory";
-import { trackingFingerprint } from "../runs/provenance";
-import type { FrameDetections, TrackingSetup } from "~/lib/tracking/types";
+import { env } from "../env";
+import { closeTrackingPool } from "../tracking/track-frame-stack";
+import { usesJobQueue } from "./boss";
+import { JobError, runTrackingJob } from "./tracking-run";
+import { ringTracking, sweepTrackingJobs } from "./tracking-leases";
+import { abortLocalJob, localTrackingBusy, notifyWorker, startWorkers, stopWorkers } from "./job-workers";
 
 /**
- * The tracking job queue. Jobs live in the database; this process runs one at a time (the worker
- * pool already uses every core for its frames) and is the only writer, as SQLite wants.
+ * The tracking job queue. Jobs live in the database, where the pages read their state and progress.
+ * On SQLite this process runs them one at a time (the worker pool already uses every core for its
+ * frames) and is the only writer, as SQLite wants. On PostgreSQL each job also gets a doorbell in
+ * the shared queue (pg-boss), and whichever worker process takes it runs the job (job-workers.ts).
  */
-export class JobError extends Error {
-  constructor(
-    message: string,
-    readonly status = 409,
-    readonly code = "tracking_not_possible",
-  ) {
-    super(message);
-  }
-}
+export { JobError };
 
 const running = new Map<number, AbortController>();
 let pumping: Promise<void> | null = null;
@@ -46,6 +39,8 @@ export function latestJob(runId: number) {
   return TrackingJob.findOne({ where: { runId }, order: [["id", "DESC"]] });
 }
 
+const alreadyActive = () => new JobError("A tracking job for this run is already queued or running.", 409, "job_active");
+
 export async function enqueueTracking(run: Run, userId: number) {
   if (run.state === "signed_off") throw new JobError("This run is signed off; its tracks cannot change.", 409, "run_signed_off");
   const frames = await Frame.count({ where: { runId: run.id } });
@@ -53,11 +48,36 @@ export async function enqueueTracking(run: Run, userId: number) {
   if (frames < 3) throw new JobError("Tracking needs at least 3 frames.", 409, "too_few_frames");
   const setup = await ViewSetup.findOne({ where: { runId: run.id } });
   if (!setup) throw new JobError("Set up the view first: mark the rotation centre, the tank edge and the scale.", 409, "no_view_setup");
+  if (usesJobQueue) return enqueueShared(run, userId, frames);
   const active = await TrackingJob.findOne({ where: { runId: run.id, state: { [Op.in]: ["queued", "running"] } } });
-  if (active) throw new JobError("A tracking job for this run is already queued or running.", 409, "job_active");
+  if (active) throw alreadyActive();
   const job = await TrackingJob.create({ runId: run.id, requestedById: userId, framesTotal: frames, error: null, startedAt: null, finishedAt: null });
   kick();
   return job;
+}
+
+/**
+ * PostgreSQL: the run's row is locked while looking for an active job, so two web processes asked
+ * at once make one job; the job and its doorbell commit together.
+ */
+async function enqueueShared(run: Run, userId: number, frames: number) {
+  const job = await sequelize.transaction(async (transaction) => {
+    await Run.findByPk(run.id, { attributes: ["id"], transaction, lock: transaction.LOCK.UPDATE });
+    const active = await TrackingJob.findOne({ where: { runId: run.id, state: { [Op.in]: ["queued", "running"] } }, transaction });
+    if (active) throw alreadyActive();
+    const created = await TrackingJob.create({ runId: run.id, requestedById: userId, framesTotal: frames, error: null, startedAt: null, finishedAt: null }, { transaction });
+    await ringTracking(created.id, transaction);
+    return created;
+  });
+  await startLocalWorker();
+  notifyWorker("tracking");
+  return job;
+}
+
+/** A process that runs jobs (not TANKSIDE_WORKERS=0) takes them even before boot, as the SQLite queue does (seeding, tests). */
+async function startLocalWorker() {
+  if (!env.runsJobs || stopped) return;
+  await startWorkers(["tracking"]);
 }
 
 export async function cancelTracking(runId: number) {
@@ -67,6 +87,8 @@ export async function cancelTracking(runId: number) {
     await job.update({ state: "cancelled", finishedAt: new Date(), error: "Cancelled before it started." });
   } else {
     running.get(job.id)?.abort();
+    // A worker in another process sees this at its next progress write or heartbeat and stops.
+    abortLocalJob(job.id);
     // The runner marks it cancelled when the pool stops; say so now so the page does not wait.
     await job.update({ state: "cancelled", finishedAt: new Date(), error: "Cancelled by a technician." });
   }
@@ -89,152 +111,31 @@ function kick() {
   })().catch((err) => console.error("[tracking] queue stopped:", err));
 }
 
-async function frameStackOf(run: Run) {
-  const frames = await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] });
-  const allTimed = frames.every((f) => f.timeS !== null && Number.isFinite(f.timeS));
-  return {
-    files: frames.map((f) => runFilePath(run.id, f.storedName)),
-    // Frames cut from a video keep their own times; a numbered stack is spaced by the frame rate.
-    times: frames.map((f, i) => (allTimed ? (f.timeS as number) : i / run.frameRateFps)),
-  };
-}
-
-async function trackingSetupOf(run: Run): Promise<TrackingSetup> {
-  const setup = await ViewSetup.findOne({ where: { runId: run.id } });
-  if (!setup) throw new JobError("The view setup was removed.");
-  return {
-    tracer: run.tracer,
-    centre: { x: setup.centreXPx, y: setup.centreYPx },
-    tankEdge: setup.tankEdgeRPx && setup.tankEdgeXPx !== null && setup.tankEdgeYPx !== null ? { cx: setup.tankEdgeXPx, cy: setup.tankEdgeYPx, r: setup.tankEdgeRPx } : null,
-    mirrored: setup.mirrored,
-  };
-}
-
-async function priorDetections(job: TrackingJob): Promise<FrameDetections[]> {
-  const upTo = job.resumeFromFrame;
-  if (upTo <= 0) return [];
-  await Detection.destroy({ where: { jobId: job.id, frameIndex: { [Op.gte]: upTo } } });
-  const rows = await Detection.findAll({ where: { jobId: job.id }, order: [["frameIndex", "ASC"]] });
-  const frames: FrameDetections[] = [];
-  for (let i = 0; i < upTo; i++) frames.push({ frameIndex: i, t: Number.NaN, detections: [] });
-  for (const r of rows) {
-    const f = frames[r.frameIndex];
-    if (!f) continue;
-    f.t = r.timeS;
-    f.detections.push({ x: r.xPx, y: r.yPx, area: r.areaPx ?? 0, roundness: r.roundness ?? 1, intensity: 0 });
-  }
-  return frames;
-}
-
+/** SQLite: the only runner, so the job is held simply by being "running"; a stop leaves it for the next start. */
 async function runJob(job: TrackingJob) {
   const controller = new AbortController();
   running.set(job.id, controller);
-  const run = await Run.findByPk(job.runId);
   try {
-    if (!run) throw new JobError("The run was deleted.");
-    const stack = await frameStackOf(run);
-    const setup = await trackingSetupOf(run);
-    const prior = await priorDetections(job);
-    for (const f of prior) if (!Number.isFinite(f.t)) f.t = stack.times[f.frameIndex];
-    // What is tracked is recorded before tracking: a change meanwhile leaves these tracks out of date.
-    const inputFingerprint = await trackingFingerprint(run);
-    await job.update({ state: "running", startedAt: job.startedAt ?? new Date(), attempts: job.attempts + 1, framesTotal: stack.files.length, error: null, inputFingerprint });
-
-    const done = new Set<number>(prior.map((p) => p.frameIndex));
-    let watermark = prior.length;
-    let pending: FrameDetections[] = [];
-    let framesDone = prior.length;
-    let lastFlush = Date.now();
-    let flushing: Promise<unknown> = Promise.resolve();
-    const flush = () => {
-      const batch = pending;
-      pending = [];
-      const mark = watermark;
-      const count = framesDone;
-      flushing = flushing.then(async () => {
-        const rows = batch.flatMap((f) =>
-          f.detections.map((d) => ({ jobId: job.id, frameIndex: f.frameIndex, timeS: f.t, xPx: d.x, yPx: d.y, areaPx: d.area, roundness: d.roundness })),
-        );
-        if (rows.length) await Detection.bulkCreate(rows);
-        await TrackingJob.update({ framesDone: count, resumeFromFrame: mark }, { where: { id: job.id, state: "running" } });
-      });
-      return flushing;
-    };
-
-    const result = await trackFrameStack({
-      files: stack.files,
-      times: stack.times,
-      setup,
-      signal: controller.signal,
-      startAt: prior.length,
-      priorDetections: prior,
-      onFrameDetections: (fd) => {
-        pending.push(fd);
-        done.add(fd.frameIndex);
-        framesDone++;
-        while (done.has(watermark)) watermark++;
-        if (Date.now() - lastFlush > 500) {
-          lastFlush = Date.now();
-          void flush();
-        }
-      },
-    });
-    await flush();
-    await flushing;
-
-    const quality = new Map(result.quality.tracks.map((q) => [q.id, q]));
-    await sequelize.transaction(async (transaction) => {
-      await Track.destroy({ where: { runId: run.id }, transaction });
-      await Track.bulkCreate(
-        result.tracks.map((t, i) => ({
-          runId: run.id,
-          jobId: job.id,
-          number: i + 1,
-          points: JSON.stringify(t.points.map((p) => [p.t, round(p.x), round(p.y), p.frameIndex])),
-          pointCount: t.points.length,
-          detectedShare: quality.get(t.id)?.detectedShare ?? null,
-          jitterPx: quality.get(t.id)?.jitterPx ?? null,
-        })),
-        { transaction },
-      );
-      await job.update(
-        { state: "done", framesDone: result.frames, resumeFromFrame: result.frames, finishedAt: new Date(), error: result.tracks.length ? null : "No track was long enough to keep." },
-        { transaction },
-      );
-      await run.reload({ transaction });
-      if (run.state !== "signed_off") await setRunState(run, "tracked", job.requestedById, transaction);
-      await run.update({ verdict: null }, { transaction });
-    });
-    // Frames or the view setup changed while tracking: these tracks are already out of date, so track again.
-    if ((await trackingFingerprint(await run.reload())) !== inputFingerprint) {
-      const { scheduleRecheck } = await import("../runs/rechecks");
-      scheduleRecheck(run.id, job.requestedById, "track");
-      return;
-    }
-    await checkRun(run.id, job.requestedById).catch((err) => console.error(`[tracking] theory check of run ${run.id} failed:`, err));
-  } catch (err) {
-    await job.reload();
-    if (job.state === "cancelled" || isTrackingCancelled(err) || controller.signal.aborted) {
-      if (job.state !== "cancelled") await job.update({ state: "cancelled", finishedAt: new Date(), error: "Cancelled." });
-    } else if (stopped) {
-      // The server is stopping: leave the job running in the database so the next start resumes it.
-    } else {
-      const reason = err instanceof Error ? err.message : String(err);
-      console.error(`[tracking] job ${job.id} failed: ${reason}`);
-      await job.update({ state: "failed", finishedAt: new Date(), error: reason });
-    }
+    await runTrackingJob(job, { where: {}, fenced: false, stopping: () => stopped }, controller);
   } finally {
     running.delete(job.id);
   }
 }
 
-const round = (v: number) => Math.round(v * 1000) / 1000;
-
-/** At start: jobs that were running when the server stopped go back in the queue and resume. */
+/**
+ * At start: jobs that were running when the server stopped go back in the queue and resume. On
+ * PostgreSQL only jobs whose worker's lease has run out: others are still being tracked elsewhere.
+ */
 export async function resumeInterruptedJobs() {
+  stopped = false;
+  if (usesJobQueue) {
+    const taken = await sweepTrackingJobs();
+    if (taken.length) console.log(`[tracking] resuming ${taken.length} interrupted job(s)`);
+    await startLocalWorker();
+    return taken.length;
+  }
   const [count] = await TrackingJob.update({ state: "queued" }, { where: { state: "running" } });
   if (count) console.log(`[tracking] resuming ${count} interrupted job(s)`);
-  stopped = false;
   kick();
   return count;
 }
@@ -243,12 +144,24 @@ export async function stopTrackingQueue() {
   stopped = true;
   for (const c of running.values()) c.abort();
   await pumping?.catch(() => undefined);
+  if (usesJobQueue) await stopWorkers();
   await closeTrackingPool();
 }
 
-/** Resolves when the queue has nothing left to do (tests and the demo seeding wait on it). */
+/**
+ * Resolves when the queue has nothing left to do (tests and the demo seeding wait on it). On
+ * PostgreSQL: no job queued or running in the database and no tracking handler under way here.
+ */
 export async function whenTrackingIdle() {
+  if (usesJobQueue) {
+    for (;;) {
+      const open = await TrackingJob.count({ where: { state: { [Op.in]: ["queued", "running"] } } });
+      if (open === 0 && !localTrackingBusy()) return;
+      await new Promise((r) => setTimeout(r, 100));
+    }
+  }
   while (pumping) await pumping;
 }
 
-onBoot({ name: "tracking-queue", start: async () => void (await resumeInterruptedJobs()), stop: stopTrackingQueue });
+// On PostgreSQL the shared queue's workers start with the "job-workers" hook (job-workers.ts).
+onBoot({ name: "tracking-queue", start: async () => void (usesJobQueue || (await resumeInterruptedJobs())), stop: stopTrackingQueue });

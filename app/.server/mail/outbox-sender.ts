@@ -3,6 +3,7 @@ import { Op, type WhereOptions } from "sequelize";
 import type { Transporter } from "nodemailer";
 import { OutboxMail, sequelize } from "../db";
 import { onBoot } from "../boot";
+import { usesJobQueue } from "../jobs/boss";
 import { deliverMail, getTransporter } from "./send";
 import { LEASE_MS, MAX_ATTEMPTS, retryDelayMs, setEnqueueListener } from "./outbox";
 
@@ -64,13 +65,27 @@ export class OutboxSender {
       limit: 5,
     });
     for (const { id } of candidates) {
-      const [won] = await OutboxMail.update(
-        { leaseOwner: this.owner, leaseUntil: new Date(now.getTime() + this.leaseMs), attempts: sequelize.literal("attempts + 1") as unknown as number },
-        { where: { id, state: "queued", ...this.free(now) } },
-      );
-      if (won === 1) return OutboxMail.findByPk(id);
+      const row = await this.take(id, now, { state: "queued", ...this.free(now) });
+      if (row) return row;
     }
     return null;
+  }
+
+  /**
+   * Takes the lease on one row named by a doorbell of the shared queue (PostgreSQL), if it is
+   * queued, due and free; null otherwise (sent, failed, not due yet, or held by another sender).
+   */
+  claim(id: number): Promise<OutboxMail | null> {
+    const now = this.now();
+    return this.take(id, now, { state: "queued", nextAttemptAt: { [Op.lte]: now }, ...this.free(now) });
+  }
+
+  private async take(id: number, now: Date, where: WhereOptions<OutboxMail>): Promise<OutboxMail | null> {
+    const [won] = await OutboxMail.update(
+      { leaseOwner: this.owner, leaseUntil: new Date(now.getTime() + this.leaseMs), attempts: sequelize.literal("attempts + 1") as unknown as number },
+      { where: { ...where, id } },
+    );
+    return won === 1 ? OutboxMail.findByPk(id) : null;
   }
 
   /** Sends one claimed row and records the outcome; only while this sender still holds its lease. */
@@ -173,6 +188,8 @@ let active: OutboxSender | null = null;
 onBoot({
   name: "mail-outbox",
   start() {
+    // On PostgreSQL the shared queue's workers send (mail/outbox-jobs.ts); this sender is SQLite's.
+    if (usesJobQueue) return;
     active = new OutboxSender();
     active.start();
   },

@@ -1,5 +1,6 @@
 import { Op, UniqueConstraintError, type Transaction } from "sequelize";
 import { OutboxMail } from "../db";
+import { QUEUES, ring, usesJobQueue } from "../jobs/boss";
 import type { OutboxState } from "../db/models/outbox-mail";
 import type { OutgoingMail } from "./send";
 
@@ -71,9 +72,26 @@ export async function enqueueMail(message: OutgoingMail, options: EnqueueOptions
   } else {
     created = await OutboxMail.create(row, { transaction });
   }
-  if (transaction) transaction.afterCommit(wake);
-  else wake();
+  // PostgreSQL: the shared queue's doorbell is rung once the row has committed, outside the caller's
+  // transaction, so a queue that is slow or down never holds up or fails the change itself; a ring
+  // lost to a crash or an error is made good by the workers' outbox sweep (mail/outbox-jobs.ts).
+  const after = usesJobQueue
+    ? () =>
+        void ringMail(created).then(wake, (err: unknown) => {
+          console.error(`[mail] "${message.subject}" waits for the outbox sweep: the queue was not reached (${err instanceof Error ? err.message : String(err)})`);
+        })
+    : wake;
+  if (transaction) transaction.afterCommit(after);
+  else after();
   return created;
+}
+
+/**
+ * PostgreSQL: rings the shared queue's doorbell for one outbox row, due at its next attempt. At most
+ * one doorbell per row waits (the key), so the periodic sweep may ring every queued row.
+ */
+export function ringMail(row: Pick<OutboxMail, "id" | "nextAttemptAt">, transaction?: Transaction) {
+  return ring(QUEUES.mail, `mail-${row.id}`, { outboxId: row.id }, { transaction, startAfter: row.nextAttemptAt });
 }
 
 export interface OutboxView {

@@ -93,6 +93,9 @@ export class TrackingJob extends Model<InferAttributes<TrackingJob>, InferCreati
   declare resumeFromFrame: CreationOptional<number>;
   /** sha256 of what was tracked (frames, view setup, tracer, frame times). */
   declare inputFingerprint: CreationOptional<string | null>;
+  /** PostgreSQL: the worker holding the job, and until when without a heartbeat. */
+  declare leaseOwner: CreationOptional<string | null>;
+  declare leaseUntil: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -110,6 +113,8 @@ TrackingJob.init(
     attempts: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
     resumeFromFrame: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
     inputFingerprint: { type: DataTypes.STRING(64), allowNull: true },
+    leaseOwner: { type: DataTypes.STRING(80), allowNull: true },
+    leaseUntil: { type: DataTypes.DATE, allowNull: true },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

@@ -1,0 +1,228 @@
+import { Op, type WhereOptions } from "sequelize";
+import { Detection, Frame, Run, Track, TrackingJob, ViewSetup, sequelize } from "../db";
+import { runFilePath } from "../uploads/storage";
+import { trackFrameStack } from "../tracking/track-frame-stack";
+import { isTrackingCancelled } from "../tracking/errors";
+import { setRunState } from "../runs/service";
+import { checkRun } from "../runs/theory";
+import { trackingFingerprint } from "../runs/provenance";
+import type { FrameDetections, TrackingSetup } from "~/lib/tracking/types";
+
+/**
+ * One tracking job from its stored state to its tracks: read the frames through storage, resume
+ * after the detections already stored, store detections and progress as frames finish, write the
+ * tracks and run the theory check. The in-process queue (SQLite) and the shared queue's workers
+ * (PostgreSQL) both run jobs through here; they differ only in how the job is held (`JobHold`).
+ */
+export class JobError extends Error {
+  constructor(
+    message: string,
+    readonly status = 409,
+    readonly code = "tracking_not_possible",
+  ) {
+    super(message);
+  }
+}
+
+/** The job is no longer this runner's: cancelled, or taken over by another worker after a lost lease. */
+class JobLost extends Error {}
+
+export interface JobHold {
+  /** Conditions on every write of the job's progress and outcome, beside its id and state "running". */
+  where: WhereOptions<TrackingJob>;
+  /**
+   * Each progress write is a transaction that updates the job row first and stores detections only
+   * when that row is still held (`where`), and the outcome is written the same way: a runner that
+   * lost the job (its lease ran out and another worker took it) stops without writing anything.
+   */
+  fenced: boolean;
+  /** Extra values written with each progress write (a lease renewal). */
+  progress?: () => Record<string, unknown>;
+  /** Extra values written with the outcome (the lease let go). */
+  release?: Record<string, unknown>;
+  /** This process is stopping: the job is left for the next start (or handed back), not cancelled. */
+  stopping: () => boolean;
+  /** Called when the process stops mid-job, to hand the job back. */
+  handBack?: (job: TrackingJob) => Promise<void>;
+}
+
+async function frameStackOf(run: Run) {
+  const frames = await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] });
+  const allTimed = frames.every((f) => f.timeS !== null && Number.isFinite(f.timeS));
+  return {
+    files: frames.map((f) => runFilePath(run.id, f.storedName)),
+    // Frames cut from a video keep their own times; a numbered stack is spaced by the frame rate.
+    times: frames.map((f, i) => (allTimed ? (f.timeS as number) : i / run.frameRateFps)),
+  };
+}
+
+async function trackingSetupOf(run: Run): Promise<TrackingSetup> {
+  const setup = await ViewSetup.findOne({ where: { runId: run.id } });
+  if (!setup) throw new JobError("The view setup was removed.");
+  return {
+    tracer: run.tracer,
+    centre: { x: setup.centreXPx, y: setup.centreYPx },
+    tankEdge: setup.tankEdgeRPx && setup.tankEdgeXPx !== null && setup.tankEdgeYPx !== null ? { cx: setup.tankEdgeXPx, cy: setup.tankEdgeYPx, r: setup.tankEdgeRPx } : null,
+    mirrored: setup.mirrored,
+  };
+}
+
+async function priorDetections(job: TrackingJob): Promise<FrameDetections[]> {
+  const upTo = job.resumeFromFrame;
+  if (upTo <= 0) return [];
+  await Detection.destroy({ where: { jobId: job.id, frameIndex: { [Op.gte]: upTo } } });
+  const rows = await Detection.findAll({ where: { jobId: job.id }, order: [["frameIndex", "ASC"]] });
+  const frames: FrameDetections[] = [];
+  for (let i = 0; i < upTo; i++) frames.push({ frameIndex: i, t: Number.NaN, detections: [] });
+  for (const r of rows) {
+    const f = frames[r.frameIndex];
+    if (!f) continue;
+    f.t = r.timeS;
+    f.detections.push({ x: r.xPx, y: r.yPx, area: r.areaPx ?? 0, roundness: r.roundness ?? 1, intensity: 0 });
+  }
+  return frames;
+}
+
+const round = (v: number) => Math.round(v * 1000) / 1000;
+
+export async function runTrackingJob(job: TrackingJob, hold: JobHold, controller: AbortController) {
+  const mine = { id: job.id, state: "running", ...hold.where } as WhereOptions<TrackingJob>;
+  const run = await Run.findByPk(job.runId);
+  // The job's outcome, written only while the job is still held (on PostgreSQL) or as it is (SQLite).
+  const record = async (values: Partial<TrackingJob>) => {
+    if (hold.fenced) await TrackingJob.update({ ...values, ...hold.release }, { where: mine });
+    else await job.update(values);
+  };
+  let flushError: unknown = null;
+  try {
+    if (!run) throw new JobError("The run was deleted.");
+    const stack = await frameStackOf(run);
+    const setup = await trackingSetupOf(run);
+    const prior = await priorDetections(job);
+    for (const f of prior) if (!Number.isFinite(f.t)) f.t = stack.times[f.frameIndex];
+    if (prior.length) console.log(`[tracking] job ${job.id} (run ${run.id}) resumes at frame ${prior.length + 1} of ${stack.files.length}`);
+    // What is tracked is recorded before tracking: a change meanwhile leaves these tracks out of date.
+    const inputFingerprint = await trackingFingerprint(run);
+    const starting = { state: "running" as const, startedAt: job.startedAt ?? new Date(), attempts: job.attempts + 1, framesTotal: stack.files.length, error: null, inputFingerprint };
+    if (hold.fenced) {
+      const [held] = await TrackingJob.update(starting, { where: mine });
+      if (!held) throw new JobLost();
+    } else {
+      await job.update(starting);
+    }
+
+    const done = new Set<number>(prior.map((p) => p.frameIndex));
+    let watermark = prior.length;
+    let pending: FrameDetections[] = [];
+    let framesDone = prior.length;
+    let lastFlush = Date.now();
+    let flushing: Promise<unknown> = Promise.resolve();
+    const write = async (batch: FrameDetections[], count: number, mark: number) => {
+      const rows = batch.flatMap((f) =>
+        f.detections.map((d) => ({ jobId: job.id, frameIndex: f.frameIndex, timeS: f.t, xPx: d.x, yPx: d.y, areaPx: d.area, roundness: d.roundness })),
+      );
+      if (!hold.fenced) {
+        if (rows.length) await Detection.bulkCreate(rows);
+        await TrackingJob.update({ framesDone: count, resumeFromFrame: mark }, { where: { id: job.id, state: "running" } });
+        return;
+      }
+      const held = await sequelize.transaction(async (transaction) => {
+        const [n] = await TrackingJob.update({ framesDone: count, resumeFromFrame: mark, ...hold.progress?.() }, { where: mine, transaction });
+        if (n && rows.length) await Detection.bulkCreate(rows, { transaction });
+        return n === 1;
+      });
+      if (!held) throw new JobLost();
+    };
+    const flush = () => {
+      const batch = pending;
+      pending = [];
+      const mark = watermark;
+      const count = framesDone;
+      flushing = flushing
+        .then(() => (flushError ? undefined : write(batch, count, mark)))
+        .catch((err) => {
+          // Kept, and the tracking stopped: the job ends below with this error, never half-written.
+          flushError ??= err;
+          controller.abort();
+        });
+      return flushing;
+    };
+
+    const result = await trackFrameStack({
+      files: stack.files,
+      times: stack.times,
+      setup,
+      signal: controller.signal,
+      startAt: prior.length,
+      priorDetections: prior,
+      onFrameDetections: (fd) => {
+        pending.push(fd);
+        done.add(fd.frameIndex);
+        framesDone++;
+        while (done.has(watermark)) watermark++;
+        if (Date.now() - lastFlush > 500) {
+          lastFlush = Date.now();
+          void flush();
+        }
+      },
+    }).catch(async (err) => {
+      await flushing;
+      throw flushError ?? err;
+    });
+    await flush();
+    if (flushError) throw flushError;
+
+    const quality = new Map(result.quality.tracks.map((q) => [q.id, q]));
+    const finished = { state: "done" as const, framesDone: result.frames, resumeFromFrame: result.frames, finishedAt: new Date(), error: result.tracks.length ? null : "No track was long enough to keep." };
+    await sequelize.transaction(async (transaction) => {
+      if (hold.fenced) {
+        // The job row first: its lock orders this against a worker taking the job over.
+        const [held] = await TrackingJob.update({ ...finished, ...hold.release }, { where: mine, transaction });
+        if (!held) throw new JobLost();
+      }
+      await Track.destroy({ where: { runId: run.id }, transaction });
+      await Track.bulkCreate(
+        result.tracks.map((t, i) => ({
+          runId: run.id,
+          jobId: job.id,
+          number: i + 1,
+          points: JSON.stringify(t.points.map((p) => [p.t, round(p.x), round(p.y), p.frameIndex])),
+          pointCount: t.points.length,
+          detectedShare: quality.get(t.id)?.detectedShare ?? null,
+          jitterPx: quality.get(t.id)?.jitterPx ?? null,
+        })),
+        { transaction },
+      );
+      if (!hold.fenced) await job.update(finished, { transaction });
+      await run.reload({ transaction });
+      if (run.state !== "signed_off") await setRunState(run, "tracked", job.requestedById, transaction);
+      await run.update({ verdict: null }, { transaction });
+    });
+    // Frames or the view setup changed while tracking: these tracks are already out of date, so track again.
+    if ((await trackingFingerprint(await run.reload())) !== inputFingerprint) {
+      const { scheduleRecheck } = await import("../runs/rechecks");
+      scheduleRecheck(run.id, job.requestedById, "track");
+      return;
+    }
+    await checkRun(run.id, job.requestedById).catch((err) => console.error(`[tracking] theory check of run ${run.id} failed:`, err));
+  } catch (err) {
+    await job.reload();
+    if (job.state === "cancelled") return;
+    if (err instanceof JobLost || (hold.fenced && (job.state !== "running" || (await TrackingJob.count({ where: mine })) === 0))) {
+      console.warn(`[tracking] job ${job.id} is no longer this worker's (its lease ran out and another took it over); this worker stops it`);
+      return;
+    }
+    if (hold.stopping()) {
+      // The process is stopping: the job stays running in the database and resumes from its stored detections.
+      await hold.handBack?.(job);
+      return;
+    }
+    if (!flushError && (isTrackingCancelled(err) || controller.signal.aborted)) {
+      await record({ state: "cancelled", finishedAt: new Date(), error: "Cancelled." });
+      return;
+    }
+    const reason = err instanceof Error ? err.message : String(err);
+    console.error(`[tracking] job ${job.id} failed: ${reason}`);
+    await record({ state: "failed", finishedAt: new Date(), error: reason });
+  }
+}

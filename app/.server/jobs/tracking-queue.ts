@@ -1,7 +1,7 @@
 import { Op } from "sequelize";
 import { Detection, Frame, Run, Track, TrackingJob, ViewSetup, sequelize } from "../db";
 import { onBoot } from "../boot";
-import { runFilePath } from "../uploads/storage";
+import { mapLimit, MissingObjectError, runKey, ScratchDir, store } from "../storage";
 import { trackFrameStack, closeTrackingPool } from "../tracking/track-frame-stack";
 import { isTrackingCancelled } from "../tracking/errors";
 import { setRunState } from "../runs/service";
@@ -89,11 +89,23 @@ function kick() {
   })().catch((err) => console.error("[tracking] queue stopped:", err));
 }
 
-async function frameStackOf(run: Run) {
+/**
+ * The frames as files the tracking pool can read: on disk, the stored files themselves; from a
+ * bucket, copies downloaded into the job's scratch folder (removed when the job ends).
+ */
+async function frameStackOf(run: Run, scratch: ScratchDir) {
   const frames = await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] });
   const allTimed = frames.every((f) => f.timeS !== null && Number.isFinite(f.timeS));
+  const files = await mapLimit(frames, 4, async (f, i) => {
+    try {
+      return await store().localPath(runKey(run.id, f.storedName), scratch);
+    } catch (err) {
+      if (err instanceof MissingObjectError) throw new JobError(`The file of frame ${i + 1} (${f.originalName}) is missing from storage. Bring the same frames again to put it back, then track again.`, 409, "frame_file_missing");
+      throw err;
+    }
+  });
   return {
-    files: frames.map((f) => runFilePath(run.id, f.storedName)),
+    files,
     // Frames cut from a video keep their own times; a numbered stack is spaced by the frame rate.
     times: frames.map((f, i) => (allTimed ? (f.timeS as number) : i / run.frameRateFps)),
   };
@@ -129,10 +141,11 @@ async function priorDetections(job: TrackingJob): Promise<FrameDetections[]> {
 async function runJob(job: TrackingJob) {
   const controller = new AbortController();
   running.set(job.id, controller);
+  const scratch = new ScratchDir(`tracking-job-${job.id}`);
   const run = await Run.findByPk(job.runId);
   try {
     if (!run) throw new JobError("The run was deleted.");
-    const stack = await frameStackOf(run);
+    const stack = await frameStackOf(run, scratch);
     const setup = await trackingSetupOf(run);
     const prior = await priorDetections(job);
     for (const f of prior) if (!Number.isFinite(f.t)) f.t = stack.times[f.frameIndex];
@@ -225,6 +238,7 @@ async function runJob(job: TrackingJob) {
     }
   } finally {
     running.delete(job.id);
+    await scratch.dispose().catch((err) => console.error(`[tracking] scratch folder of job ${job.id} not removed:`, err));
   }
 }
 

@@ -1,14 +1,13 @@
 import crypto from "node:crypto";
 import fs from "node:fs/promises";
-import path from "node:path";
 import sharp from "sharp";
 import { Transaction } from "sequelize";
 import { CalibrationAttachment, sequelize } from "../db";
 import { noteCalibrationChange } from "../calibration-history";
-import { env } from "../env";
+import { calibrationKey, store, type OpenedObject } from "../storage";
 import type { CurrentUser } from "../auth/permissions";
 import { assertCalibrationEditable, CalibrationError } from "../calibrations";
-import { discardStaged, moveStaged, sha256OfFile, stageBytes, type StagedFile } from "./staging";
+import { discardStaged, sha256OfFile, stageBytes, type StagedFile } from "./staging";
 
 export const MAX_ATTACHMENT_BYTES = 20 * 1024 * 1024;
 
@@ -29,10 +28,6 @@ export async function sniffAttachment(bytes: Buffer): Promise<{ type: string; ex
   } catch {
     return null;
   }
-}
-
-function attachmentDir() {
-  return path.join(env.uploadsDir, "calibrations");
 }
 
 /**
@@ -61,7 +56,8 @@ async function storeAttachment(calibrationId: number, file: StagedFile, uploader
   }
   const sha256 = await sha256OfFile(file.path);
   const storedName = `${crypto.randomUUID()}.${kind.ext}`;
-  await moveStaged(file, path.join(attachmentDir(), storedName));
+  const key = calibrationKey(storedName);
+  await store().putFile(key, file.path, kind.type);
   try {
     return await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
       // Checked again, under the write lock: a sign-off may have landed while the file was being written.
@@ -82,16 +78,19 @@ async function storeAttachment(calibrationId: number, file: StagedFile, uploader
       return row;
     });
   } catch (err) {
-    await fs.rm(path.join(attachmentDir(), storedName), { force: true });
+    await store().delete(key).catch(() => undefined);
     throw err;
   }
 }
 
-export async function readCalibrationAttachment(calibrationId: number, attachmentId: number) {
+/**
+ * An attachment's row and its stored file, opened for streaming: `file` is null when the row
+ * exists but the file has gone missing from storage; the answer is null when there is no such row.
+ */
+export async function readCalibrationAttachment(calibrationId: number, attachmentId: number): Promise<{ row: CalibrationAttachment; file: OpenedObject | null } | null> {
   const row = await CalibrationAttachment.findOne({ where: { id: attachmentId, calibrationId } });
   if (!row) return null;
   // Stored names are generated here; the check still keeps a tampered row from leaving the folder.
   if (!/^[0-9a-f-]{36}\.[a-z]{3,4}$/.test(row.storedName)) return null;
-  const bytes = await fs.readFile(path.join(attachmentDir(), row.storedName));
-  return { row, bytes };
+  return { row, file: await store().open(calibrationKey(row.storedName)) };
 }

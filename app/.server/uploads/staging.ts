@@ -62,18 +62,6 @@ export async function sha256OfFile(file: string) {
   return hash.digest("hex");
 }
 
-/** Moves a staged file to its final place (same volume: a rename; otherwise a copy). */
-export async function moveStaged(file: StagedFile, to: string) {
-  await fsp.mkdir(path.dirname(to), { recursive: true });
-  try {
-    await fsp.rename(file.path, to);
-  } catch (err) {
-    if ((err as NodeJS.ErrnoException).code !== "EXDEV") throw err;
-    await fsp.copyFile(file.path, to, fs.constants.COPYFILE_EXCL);
-    await fsp.rm(file.path, { force: true });
-  }
-}
-
 export interface MultipartOptions {
   /** The most the `file` part may hold; counted while it is written. */
   maxFileBytes: number;

@@ -1,0 +1,16 @@
+// s3rver ships no type declarations; this is the part of its API the test set-up uses.
+declare module "s3rver" {
+  interface S3rverOptions {
+    address?: string;
+    port?: number;
+    directory?: string;
+    silent?: boolean;
+    resetOnClose?: boolean;
+    configureBuckets?: { name: string }[];
+  }
+  export default class S3rver {
+    constructor(options: S3rverOptions);
+    run(): Promise<{ address: string; port: number }>;
+    close(): Promise<void>;
+  }
+}

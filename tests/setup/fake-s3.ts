@@ -1,13 +1,15 @@
 /**
- * A fake S3 server for tests: s3rver (from npm) on 127.0.0.1 at a free port, keeping its objects in
- * a fresh temporary folder, with the access key it knows (S3RVER / S3RVER). Buckets are made
- * through the real S3 API, as an administrator would.
+ * A fake S3 server for tests: s3rver (from npm) on 127.0.0.1 at a free port, in a child process
+ * (see fake-s3-server.mjs for why), keeping its objects in a fresh temporary folder, with the
+ * access key it knows (S3RVER / S3RVER). Buckets are made through the real S3 API, as an
+ * administrator would.
  */
+import { spawn } from "node:child_process";
 import fs from "node:fs/promises";
 import os from "node:os";
 import path from "node:path";
 import crypto from "node:crypto";
-import S3rver from "s3rver";
+import readline from "node:readline";
 import { CreateBucketCommand, S3Client } from "@aws-sdk/client-s3";
 
 export const FAKE_S3_ACCESS_KEY = "S3RVER";
@@ -25,15 +27,24 @@ export interface FakeS3 extends FakeS3Address {
 // The SDK's notice that later releases need Node 22 would otherwise fill the test output.
 process.env.AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED ??= "true";
 
+const serverScript = path.join(import.meta.dirname, "fake-s3-server.mjs");
+
 export async function startFakeS3(): Promise<FakeS3> {
   const dir = await fs.mkdtemp(path.join(os.tmpdir(), "tankside-fake-s3-"));
-  const server = new S3rver({ address: "127.0.0.1", port: 0, directory: dir, silent: true });
-  const { port } = await server.run();
+  const child = spawn(process.execPath, ["--openssl-legacy-provider", serverScript, dir], { stdio: ["pipe", "pipe", "inherit"] });
+  const exited = new Promise<number | null>((resolve) => child.once("exit", (code) => resolve(code)));
+  const port = await new Promise<number>((resolve, reject) => {
+    const lines = readline.createInterface({ input: child.stdout! });
+    lines.once("line", (line) => resolve((JSON.parse(line) as { port: number }).port));
+    child.once("error", reject);
+    void exited.then((code) => reject(new Error(`the fake S3 server stopped before it listened (exit ${code})`)));
+  });
   return {
     endpoint: `http://127.0.0.1:${port}`,
     dir,
     async close() {
-      await server.close();
+      child.stdin!.end();
+      await exited;
       await fs.rm(dir, { recursive: true, force: true });
     },
   };

@@ -161,7 +161,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
                     title={`${f.name}: file missing from storage`}
                     className="flex h-[68px] w-[120px] items-center justify-center rounded border border-dashed border-disagrees-ink bg-disagrees-bg px-1 text-center text-sm text-disagrees-ink"
                   >
-                    Frame {f.position + 1} missing
+                    {`Frame ${f.position + 1} missing`}
                   </span>
                 ) : (
                   <a href={`/runs/${run.id}/frames/${f.id}/image`} title={`${f.name}${f.timeS !== null ? ` at ${f.timeS.toFixed(3)} s` : ""}`}>

@@ -31,9 +31,9 @@ export async function sniffAttachment(bytes: Buffer): Promise<{ type: string; ex
 }
 
 /**
- * Adds a photo or PDF to a calibration record: a staged upload, checked from disk and moved into
- * place, or bytes in memory (tests), staged first so both take the same path. Whatever this
- * function staged itself is removed again.
+ * Adds a photo or PDF to a calibration record: a staged upload, checked from disk and handed to
+ * the store under `calibrations/`, or bytes in memory (tests), staged first so both take the same
+ * path. Whatever this function staged itself is removed again.
  */
 export async function addCalibrationAttachment(calibrationId: number, upload: StagedFile | { name: string; bytes: Buffer }, uploader: Pick<CurrentUser, "id" | "role">) {
   const file = "bytes" in upload ? await stageBytes(upload.name, upload.bytes) : upload;

@@ -89,8 +89,9 @@ async function renumber(runId: number, transaction: import("sequelize").Transact
 }
 
 /**
- * Stores one checked image as a frame of the run: a ZIP entry's bytes, or a staged upload that is
- * moved into place. Duplicate content is ignored, not stored twice.
+ * Stores one checked image as a frame of the run: a ZIP entry's bytes, or a staged upload that the
+ * store takes (renamed into the run's folder, or streamed to the bucket). Duplicate content is
+ * not stored twice, but puts back a file that has gone missing.
  */
 async function addFrame(run: Run, originalName: string, source: Buffer | StagedFile, timeS: number | null): Promise<AcceptedFrame> {
   const staged = Buffer.isBuffer(source) ? null : source;
@@ -289,8 +290,8 @@ async function addEntries(run: Run, reopened: yauzl.ZipFile, entries: yauzl.Entr
 /**
  * Takes one uploaded file (an image or a ZIP of images) for a run: a staged upload, checked from
  * disk, or a File in memory (seed data, tests), staged first so both take the same path. A staged
- * image that is accepted moves into the run's folder; whatever this function staged itself is
- * removed again.
+ * image that is accepted goes to the store under `runs/<run id>/`; whatever this function staged
+ * itself is removed again.
  */
 export async function receiveFrameFile(run: Run, upload: StagedFile | File, timeS: number | null): Promise<FrameUploadResult> {
   const staged = upload instanceof File ? await stageBytes(upload.name, new Uint8Array(await upload.arrayBuffer())) : upload;

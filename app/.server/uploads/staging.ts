@@ -18,7 +18,7 @@ export class UploadError extends Error {
   }
 }
 
-/** An uploaded file on disk under uploads/tmp/, waiting to be checked and moved into place. */
+/** An uploaded file on disk under uploads/tmp/, waiting to be checked and handed to the store. */
 export interface StagedFile {
   path: string;
   name: string;

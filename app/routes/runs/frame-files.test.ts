@@ -8,11 +8,12 @@ import { receiveFrameFile } from "~/.server/uploads/frames";
 import { runKey, store } from "~/.server/storage";
 import { loader as frameImageLoader } from "./frame-image";
 import { loader as runPageLoader } from "./run";
+import { loader as setupLoader } from "./setup";
 
 /**
  * A frame file gone from wherever the suite keeps them (the local folder by default, a bucket
  * under TEST_STORAGE=s3): the frame route answers 404 naming the frame, never a 500, and the run
- * page's data counts it so the page can say so.
+ * page's and view setup page's data say so, so the pages can.
  */
 let lab: Awaited<ReturnType<typeof smallLab>>;
 beforeAll(async () => {
@@ -56,6 +57,10 @@ describe("frame files missing from storage", () => {
     expect(data.frameFiles).toEqual({ missing: 2, unavailable: false });
     expect(data.frames.map((f) => f.missing)).toEqual([true, true, false]);
 
+    // The view setup is marked on the first frame, whose file is gone: the page says so.
+    const setup = await setupLoader({ request: await signedIn(`/runs/${run.id}/setup`, lab.tech.id), params: { id: String(run.id) }, context: {} } as never);
+    expect(setup.imageMissing).toBe(true);
+
     // The same frames again put the files back; nothing is added twice.
     for (const i of [1, 2]) {
       const again = await receiveFrameFile(run, new File([new Uint8Array(await png(i))], `frame_${i}.png`), null);
@@ -65,5 +70,7 @@ describe("frame files missing from storage", () => {
     expect(after.frameFiles.missing).toBe(0);
     expect(after.frames).toHaveLength(3);
     expect((await call(first)).status).toBe(200);
+    const setupAfter = await setupLoader({ request: await signedIn(`/runs/${run.id}/setup`, lab.tech.id), params: { id: String(run.id) }, context: {} } as never);
+    expect(setupAfter.imageMissing).toBe(false);
   });
 });

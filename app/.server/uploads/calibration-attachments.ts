@@ -4,7 +4,7 @@ import sharp from "sharp";
 import { Transaction } from "sequelize";
 import { CalibrationAttachment, sequelize } from "../db";
 import { noteCalibrationChange } from "../calibration-history";
-import { calibrationKey, store, type OpenedObject } from "../storage";
+import { calibrationKey, store } from "../storage";
 import type { CurrentUser } from "../auth/permissions";
 import { assertCalibrationEditable, CalibrationError } from "../calibrations";
 import { discardStaged, sha256OfFile, stageBytes, type StagedFile } from "./staging";
@@ -83,14 +83,11 @@ async function storeAttachment(calibrationId: number, file: StagedFile, uploader
   }
 }
 
-/**
- * An attachment's row and its stored file, opened for streaming: `file` is null when the row
- * exists but the file has gone missing from storage; the answer is null when there is no such row.
- */
-export async function readCalibrationAttachment(calibrationId: number, attachmentId: number): Promise<{ row: CalibrationAttachment; file: OpenedObject | null } | null> {
+/** An attachment's row and the key of its stored file, or null when there is no such row. */
+export async function findCalibrationAttachment(calibrationId: number, attachmentId: number): Promise<{ row: CalibrationAttachment; key: string } | null> {
   const row = await CalibrationAttachment.findOne({ where: { id: attachmentId, calibrationId } });
   if (!row) return null;
   // Stored names are generated here; the check still keeps a tampered row from leaving the folder.
   if (!/^[0-9a-f-]{36}\.[a-z]{3,4}$/.test(row.storedName)) return null;
-  return { row, file: await store().open(calibrationKey(row.storedName)) };
+  return { row, key: calibrationKey(row.storedName) };
 }

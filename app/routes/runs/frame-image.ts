@@ -16,10 +16,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const frame = await Frame.findOne({ where: { id: parseId(request, params.frameId, "That frame"), runId: parseId(request, params.id, "That run") } });
   if (!frame) throw notFound(request, "That frame");
   const thumb = new URL(request.url).searchParams.get("size") === "thumb" && frame.thumbName;
-  return storedFileResponse(runKey(frame.runId, thumb ? frame.thumbName! : frame.storedName), {
+  const what = `${thumb ? "the thumbnail of " : ""}frame ${frame.position + 1} (${frame.originalName})`;
+  return storedFileResponse(request, runKey(frame.runId, thumb ? frame.thumbName! : frame.storedName), {
     contentType: thumb ? "image/webp" : (frameContentTypes[frame.format] ?? "application/octet-stream"),
-    what: `${thumb ? "the thumbnail of " : ""}frame ${frame.position + 1} (${frame.originalName})`,
-    hint: "Bring the same frame again to put it back.",
+    missing: `The file of ${what} is missing from storage. Bring the same frame again to put it back.`,
     // Stored frames never change under the same id.
     headers: { "Cache-Control": "private, max-age=86400, immutable" },
   });

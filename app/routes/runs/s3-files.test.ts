@@ -124,6 +124,13 @@ describe("frames in an S3 bucket", () => {
     expect(thumb.response!.headers.get("Content-Type")).toBe("image/webp");
     expect(await sharp(await bytesOf(thumb.response!)).metadata()).toMatchObject({ format: "webp", width: 64, height: 48 });
 
+    // HEAD only looks the object up.
+    const headRequest = new Request(`http://localhost/runs/${run.id}/frames/${frame.id}/image`, { method: "HEAD", headers: { Cookie: (await page("/", lab.tech.id)).headers.get("Cookie")! } });
+    const head = await call(frameImageLoader, headRequest, { id: String(run.id), frameId: String(frame.id) });
+    expect(head.status).toBe(200);
+    expect(head.response!.headers.get("Content-Length")).toBe(String(sent.length));
+    expect(head.response!.body).toBeNull();
+
     // Nobody signed in: sent to sign in, as for files on disk; the bucket is never shown.
     const anonymous = await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image`), { id: String(run.id), frameId: String(frame.id) });
     expect(anonymous.status).toBe(302);

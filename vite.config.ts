@@ -10,7 +10,9 @@ export default defineConfig({
   build: { chunkSizeWarningLimit: 1500 },
   test: {
     include: ["app/**/*.test.ts", "app/**/*.test.tsx", "tests/unit/**/*.test.ts", "tests/attack/**/*.test.ts"],
-    setupFiles: ["tests/setup/vitest-env.ts"],
+    setupFiles: ["tests/setup/vitest-env.ts", "tests/setup/vitest-storage.ts"],
+    // TEST_STORAGE=s3 runs the suite against a fake S3 server instead of the local folder.
+    globalSetup: ["tests/setup/storage-global.ts"],
     environment: "node",
     testTimeout: 30_000,
     hookTimeout: 60_000,

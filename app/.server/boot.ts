@@ -5,6 +5,7 @@ import { env, mailSetupProblem, workersSetupProblem } from "./env";
 import { startFakeSmtp } from "./mail/fake-smtp";
 import { purgeExpiredSessions } from "./auth/session";
 import { removeOrphanUploads } from "./uploads/orphans";
+import { store, storageStartupProblem } from "./storage";
 
 type Hook = { name: string; start: () => Promise<void> | void; stop?: () => Promise<void> | void };
 const hooks: Hook[] = [];
@@ -29,6 +30,13 @@ export function boot(): Promise<void> {
     }
     const dbProblem = await databaseProblem();
     if (dbProblem) throw new StartupProblem(dbProblem);
+    // Where frames and attachments live: a bad S3 setting stops the start with one line naming it.
+    const storageProblem = await storageStartupProblem();
+    if (storageProblem) {
+      console.error(storageProblem);
+      process.exit(1);
+    }
+    console.log(`[tankside] frames and attachments are kept in ${store().where}`);
     const applied = await migrate();
     if (applied.length) console.log(`[tankside] migrations applied: ${applied.join(", ")}`);
     if (!env.smtpUrl) {

@@ -1,6 +1,6 @@
 import { Op, type WhereOptions } from "sequelize";
 import { Detection, Frame, Run, Track, TrackingJob, ViewSetup, sequelize } from "../db";
-import { runFilePath } from "../uploads/storage";
+import { mapLimit, MissingObjectError, runKey, ScratchDir, store } from "../storage";
 import { trackFrameStack } from "../tracking/track-frame-stack";
 import { isTrackingCancelled } from "../tracking/errors";
 import { setRunState } from "../runs/service";
@@ -46,11 +46,23 @@ export interface JobHold {
   handBack?: (job: TrackingJob) => Promise<void>;
 }
 
-async function frameStackOf(run: Run) {
+/**
+ * The frames as files the tracking pool can read: on disk, the stored files themselves; from a
+ * bucket, copies downloaded into the job's scratch folder (removed when the job ends).
+ */
+async function frameStackOf(run: Run, scratch: ScratchDir) {
   const frames = await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] });
   const allTimed = frames.every((f) => f.timeS !== null && Number.isFinite(f.timeS));
+  const files = await mapLimit(frames, 4, async (f, i) => {
+    try {
+      return await store().localPath(runKey(run.id, f.storedName), scratch);
+    } catch (err) {
+      if (err instanceof MissingObjectError) throw new JobError(`The file of frame ${i + 1} (${f.originalName}) is missing from storage. Bring the same frames again to put it back, then track again.`, 409, "frame_file_missing");
+      throw err;
+    }
+  });
   return {
-    files: frames.map((f) => runFilePath(run.id, f.storedName)),
+    files,
     // Frames cut from a video keep their own times; a numbered stack is spaced by the frame rate.
     times: frames.map((f, i) => (allTimed ? (f.timeS as number) : i / run.frameRateFps)),
   };
@@ -86,6 +98,15 @@ async function priorDetections(job: TrackingJob): Promise<FrameDetections[]> {
 const round = (v: number) => Math.round(v * 1000) / 1000;
 
 export async function runTrackingJob(job: TrackingJob, hold: JobHold, controller: AbortController) {
+  const scratch = new ScratchDir(`tracking-job-${job.id}`);
+  try {
+    await trackHeldJob(job, hold, controller, scratch);
+  } finally {
+    await scratch.dispose().catch((err) => console.error(`[tracking] scratch folder of job ${job.id} not removed:`, err));
+  }
+}
+
+async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortController, scratch: ScratchDir) {
   const mine = { id: job.id, state: "running", ...hold.where } as WhereOptions<TrackingJob>;
   const run = await Run.findByPk(job.runId);
   // The job's outcome, written only while the job is still held (on PostgreSQL) or as it is (SQLite).
@@ -96,7 +117,7 @@ export async function runTrackingJob(job: TrackingJob, hold: JobHold, controller
   let flushError: unknown = null;
   try {
     if (!run) throw new JobError("The run was deleted.");
-    const stack = await frameStackOf(run);
+    const stack = await frameStackOf(run, scratch);
     const setup = await trackingSetupOf(run);
     const prior = await priorDetections(job);
     for (const f of prior) if (!Number.isFinite(f.t)) f.t = stack.times[f.frameIndex];

@@ -6,6 +6,7 @@ import { currentCheck, type CurrentCheck } from "./provenance";
 import { recheckPending } from "./rechecks";
 import type { CurrentUser } from "../auth/permissions";
 import { calibrationSnapshot, canChangeRun } from "./service";
+import { frameFileStatus } from "./frame-files";
 
 /** Everything the run page shows, as plain data; the check is the current one only (see currentCheck). */
 export async function runPageData(run: Run, user: CurrentUser, current?: CurrentCheck) {
@@ -14,13 +15,15 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
     Equipment.findByPk(run.tankId),
     Equipment.findByPk(run.cameraId),
     User.findByPk(run.technicianId, { attributes: ["id", "name", "email"] }),
-    Frame.findAll({ where: { runId: run.id }, attributes: ["id", "position", "originalName", "timeS"], order: [["position", "ASC"]] }),
+    Frame.findAll({ where: { runId: run.id }, attributes: ["id", "position", "originalName", "timeS", "storedName", "thumbName"], order: [["position", "ASC"]] }),
     ViewSetup.findOne({ where: { runId: run.id } }),
     latestJob(run.id),
     Track.findAll({ where: { runId: run.id }, order: [["number", "ASC"]] }),
     current ?? currentCheck(run),
   ]);
   const active = job?.state === "queued" || job?.state === "running";
+  const files = await frameFileStatus(run.id, frames);
+  const missing = new Set(files.missing);
   const snapshot = calibrationSnapshot(run);
   return {
     run: {
@@ -38,7 +41,9 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
     camera: camera ? serializeEquipment(camera) : null,
     technician: technician ? { id: technician.id, name: technician.name } : null,
     calibrations: snapshot,
-    frames: frames.map((f) => ({ id: f.id, position: f.position, name: f.originalName, timeS: f.timeS })),
+    frames: frames.map((f) => ({ id: f.id, position: f.position, name: f.originalName, timeS: f.timeS, missing: missing.has(f.id) })),
+    /** How many frames have lost their stored file, and whether the store could be asked at all. */
+    frameFiles: { missing: files.missing.length, unavailable: files.unavailable },
     setup: setup
       ? {
           centre: { x: setup.centreXPx, y: setup.centreYPx },

@@ -1,24 +1,19 @@
-import fs from "node:fs/promises";
 import sharp from "sharp";
 import { Frame, Track } from "../db";
-import { runFilePath, writeRunFile } from "../uploads/storage";
+import { MissingObjectError, runKey, store } from "../storage";
 import { parseTrackPoints } from "./theory";
 
 const palette = ["#ffd23f", "#3ee0cf", "#ff6b9a", "#9be564", "#c3a6ff", "#ff9f40"];
 
 /**
- * The run's middle frame with every track drawn over it (sharp composing an SVG), made once per
- * tracking job and kept beside the frames.
+ * The run's middle frame with every track drawn over it (sharp composing an SVG) as PNG bytes,
+ * made once per tracking job and kept beside the frames; null when the run has no frames. Throws
+ * MissingObjectError when the middle frame's file is missing from storage.
  */
-export async function trackOverlay(runId: number, jobId: number): Promise<string | null> {
-  const name = `overlay-${jobId}.png`;
-  const file = runFilePath(runId, name);
-  try {
-    await fs.access(file);
-    return file;
-  } catch {
-    // not made yet
-  }
+export async function trackOverlay(runId: number, jobId: number): Promise<Buffer | null> {
+  const key = runKey(runId, `overlay-${jobId}.png`);
+  const made = await store().get(key);
+  if (made) return made;
   const count = await Frame.count({ where: { runId } });
   if (!count) return null;
   const frame = await Frame.findOne({ where: { runId, position: Math.floor(count / 2) } });
@@ -41,13 +36,15 @@ export async function trackOverlay(runId: number, jobId: number): Promise<string
     })
     .join("\n");
   const svg = Buffer.from(`<svg xmlns="http://www.w3.org/2000/svg" width="${w}" height="${h}" viewBox="0 0 ${w} ${h}">${paths}</svg>`);
-  const png = await sharp(runFilePath(runId, frame.storedName))
+  const frameKey = runKey(runId, frame.storedName);
+  const image = await store().get(frameKey);
+  if (!image) throw new MissingObjectError(frameKey, store().where);
+  const png = await sharp(image)
     .composite([{ input: svg, top: 0, left: 0 }])
     .resize({ width: Math.min(w, 1280), withoutEnlargement: true })
     .png({ compressionLevel: 8 })
     .toBuffer();
-  await writeRunFile(runId, name, png).catch(async (err: NodeJS.ErrnoException) => {
-    if (err.code !== "EEXIST") throw err;
-  });
-  return file;
+  // Two requests at once may both draw it; the second write replaces the first with the same picture.
+  await store().put(key, png, "image/png");
+  return png;
 }

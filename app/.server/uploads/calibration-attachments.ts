@@ -1,14 +1,13 @@
 import crypto from "node:crypto";
 import fs from "node:fs/promises";
-import path from "node:path";
 import sharp from "sharp";
 import { Transaction } from "sequelize";
 import { CalibrationAttachment, sequelize } from "../db";
 import { noteCalibrationChange } from "../calibration-history";
-import { env } from "../env";
+import { calibrationKey, store } from "../storage";
 import type { CurrentUser } from "../auth/permissions";
 import { assertCalibrationEditable, CalibrationError } from "../calibrations";
-import { discardStaged, moveStaged, sha256OfFile, stageBytes, type StagedFile } from "./staging";
+import { discardStaged, sha256OfFile, stageBytes, type StagedFile } from "./staging";
 
 export const MAX_ATTACHMENT_BYTES = 20 * 1024 * 1024;
 
@@ -31,14 +30,10 @@ export async function sniffAttachment(bytes: Buffer): Promise<{ type: string; ex
   }
 }
 
-function attachmentDir() {
-  return path.join(env.uploadsDir, "calibrations");
-}
-
 /**
- * Adds a photo or PDF to a calibration record: a staged upload, checked from disk and moved into
- * place, or bytes in memory (tests), staged first so both take the same path. Whatever this
- * function staged itself is removed again.
+ * Adds a photo or PDF to a calibration record: a staged upload, checked from disk and handed to
+ * the store under `calibrations/`, or bytes in memory (tests), staged first so both take the same
+ * path. Whatever this function staged itself is removed again.
  */
 export async function addCalibrationAttachment(calibrationId: number, upload: StagedFile | { name: string; bytes: Buffer }, uploader: Pick<CurrentUser, "id" | "role">) {
   const file = "bytes" in upload ? await stageBytes(upload.name, upload.bytes) : upload;
@@ -61,7 +56,8 @@ async function storeAttachment(calibrationId: number, file: StagedFile, uploader
   }
   const sha256 = await sha256OfFile(file.path);
   const storedName = `${crypto.randomUUID()}.${kind.ext}`;
-  await moveStaged(file, path.join(attachmentDir(), storedName));
+  const key = calibrationKey(storedName);
+  await store().putFile(key, file.path, kind.type);
   try {
     return await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
       // Checked again, holding the record's lock: a sign-off may have landed while the file was being written.
@@ -82,16 +78,16 @@ async function storeAttachment(calibrationId: number, file: StagedFile, uploader
       return row;
     });
   } catch (err) {
-    await fs.rm(path.join(attachmentDir(), storedName), { force: true });
+    await store().delete(key).catch(() => undefined);
     throw err;
   }
 }
 
-export async function readCalibrationAttachment(calibrationId: number, attachmentId: number) {
+/** An attachment's row and the key of its stored file, or null when there is no such row. */
+export async function findCalibrationAttachment(calibrationId: number, attachmentId: number): Promise<{ row: CalibrationAttachment; key: string } | null> {
   const row = await CalibrationAttachment.findOne({ where: { id: attachmentId, calibrationId } });
   if (!row) return null;
   // Stored names are generated here; the check still keeps a tampered row from leaving the folder.
   if (!/^[0-9a-f-]{36}\.[a-z]{3,4}$/.test(row.storedName)) return null;
-  const bytes = await fs.readFile(path.join(attachmentDir(), row.storedName));
-  return { row, bytes };
+  return { row, key: calibrationKey(row.storedName) };
 }

@@ -5,7 +5,8 @@ import zlib from "node:zlib";
 import { Frame, Run } from "../db";
 import { smallLab } from "../test-support";
 import { createRun } from "../runs/service";
-import { receiveFrameFile, runFilePath, UploadError } from "./frames";
+import { receiveFrameFile, UploadError } from "./frames";
+import { runKey, store } from "../storage";
 import { discardStaged, stageBytes, stagingDir } from "./staging";
 
 async function png(w: number, h: number, shade: number) {
@@ -185,13 +186,13 @@ describe("frame uploads are checked by content", () => {
     expect(frames.map((f) => f.timeS)).toEqual([0, 0.04]);
   });
 
-  it("moves an accepted staged upload into the run's folder and checks a refused one from disk", async () => {
+  it("moves an accepted staged upload into the run's storage and checks a refused one from disk", async () => {
     const run = await newRun();
     const staged = await stageBytes("frame_1.png", await png(48, 32, 70));
     const result = await receiveFrameFile(run, staged, null);
     await expect(fs.stat(staged.path)).rejects.toMatchObject({ code: "ENOENT" });
     const frame = await Frame.findByPk(result.accepted[0].frameId);
-    expect((await fs.stat(runFilePath(run.id, frame!.storedName))).size).toBe(staged.sizeBytes);
+    expect((await store().head(runKey(run.id, frame!.storedName)))?.size).toBe(staged.sizeBytes);
     const bad = await stageBytes("frame_2.png", Buffer.from("not an image at all"));
     await expect(receiveFrameFile(run, bad, null)).rejects.toMatchObject({ code: "not_an_image" });
     await discardStaged(bad);

@@ -5,8 +5,8 @@ import yauzl from "yauzl";
 import { orderBy } from "natural-orderby";
 import { Frame, Run, locking, sequelize } from "../db";
 import { uploadLimits } from "~/lib/upload-limits";
-import { generatedName, removeQuietly, runFilePath, writeRunFile } from "./storage";
-import { discardStaged, moveStaged, readHead, stageBytes, UploadError, type StagedFile } from "./staging";
+import { generatedName, runKey, store } from "../storage";
+import { discardStaged, readHead, stageBytes, UploadError, type StagedFile } from "./staging";
 import { setRunState } from "../runs/service";
 
 export interface AcceptedFrame {
@@ -14,6 +14,8 @@ export interface AcceptedFrame {
   frameId: number;
   position: number;
   duplicate: boolean;
+  /** A duplicate whose stored file had gone missing, put back from this upload. */
+  restored?: boolean;
 }
 export interface RejectedFile {
   name: string;
@@ -26,6 +28,7 @@ export interface FrameUploadResult {
 }
 
 const extFor: Record<string, string> = { jpeg: "jpg", png: "png", tiff: "tif", webp: "webp" };
+export const frameContentTypes: Record<string, string> = { jpeg: "image/jpeg", png: "image/png", tiff: "image/tiff", webp: "image/webp" };
 
 export { UploadError };
 
@@ -86,8 +89,9 @@ async function renumber(runId: number, transaction: import("sequelize").Transact
 }
 
 /**
- * Stores one checked image as a frame of the run: a ZIP entry's bytes, or a staged upload that is
- * moved into place. Duplicate content is ignored, not stored twice.
+ * Stores one checked image as a frame of the run: a ZIP entry's bytes, or a staged upload that the
+ * store takes (renamed into the run's folder, or streamed to the bucket). Duplicate content is
+ * not stored twice, but puts back a file that has gone missing.
  */
 async function addFrame(run: Run, originalName: string, source: Buffer | StagedFile, timeS: number | null): Promise<AcceptedFrame> {
   const staged = Buffer.isBuffer(source) ? null : source;
@@ -97,18 +101,21 @@ async function addFrame(run: Run, originalName: string, source: Buffer | StagedF
   const info = await inspectFrame(data);
   const sha256 = crypto.createHash("sha256").update(data).digest("hex");
   const existing = await Frame.findOne({ where: { runId: run.id, sha256 } });
-  if (existing) return { name: originalName, frameId: existing.id, position: existing.position, duplicate: true };
+  if (existing) return { name: originalName, frameId: existing.id, position: existing.position, duplicate: true, ...(await restoreMissing(existing, data, info.thumb)) };
 
   const storedName = generatedName(extFor[info.format]);
   const thumbName = storedName.replace(/\.[a-z]+$/, ".thumb.webp");
-  let file: string;
-  if (staged) {
-    file = runFilePath(run.id, storedName);
-    await moveStaged(staged, file);
-  } else {
-    file = await writeRunFile(run.id, storedName, data);
+  const key = runKey(run.id, storedName);
+  const thumbKey = runKey(run.id, thumbName);
+  const objects = store();
+  if (staged) await objects.putFile(key, staged.path, frameContentTypes[info.format]);
+  else await objects.put(key, data, frameContentTypes[info.format]);
+  try {
+    await objects.put(thumbKey, info.thumb, "image/webp");
+  } catch (err) {
+    await objects.delete(key).catch(() => undefined);
+    throw err;
   }
-  const thumbFile = await writeRunFile(run.id, thumbName, info.thumb);
   try {
     return await sequelize.transaction(async (transaction) => {
       // Frames of one run take turns from here: each counts and numbers the frames the previous one left.
@@ -130,8 +137,8 @@ async function addFrame(run: Run, originalName: string, source: Buffer | StagedF
       return { name: originalName, frameId: frame.id, position: frame.position, duplicate: false };
     });
   } catch (err) {
-    await removeQuietly(file);
-    await removeQuietly(thumbFile);
+    await objects.delete(key).catch(() => undefined);
+    await objects.delete(thumbKey).catch(() => undefined);
     // Two uploads of the same content racing each other: the unique index decides, the loser is a duplicate.
     if (err instanceof Error && err.name === "SequelizeUniqueConstraintError") {
       const winner = await Frame.findOne({ where: { runId: run.id, sha256 } });
@@ -139,6 +146,27 @@ async function addFrame(run: Run, originalName: string, source: Buffer | StagedF
     }
     throw err;
   }
+}
+
+/**
+ * The same content sent again for a frame whose stored file (or thumbnail) has gone missing from
+ * storage puts it back under the frame's own name, so bringing the frames again repairs a run.
+ */
+async function restoreMissing(frame: Frame, data: Buffer, thumb: Buffer): Promise<{ restored?: true }> {
+  const objects = store();
+  const key = runKey(frame.runId, frame.storedName);
+  const thumbKey = frame.thumbName ? runKey(frame.runId, frame.thumbName) : null;
+  const [main, small] = await Promise.all([objects.head(key), thumbKey ? objects.head(thumbKey) : null]);
+  let restored = false;
+  if (!main) {
+    await objects.put(key, data, frameContentTypes[frame.format]);
+    restored = true;
+  }
+  if (thumbKey && !small) {
+    await objects.put(thumbKey, thumb, "image/webp");
+    restored = true;
+  }
+  return restored ? { restored } : {};
 }
 
 function isZip(head: Buffer) {
@@ -263,8 +291,8 @@ async function addEntries(run: Run, reopened: yauzl.ZipFile, entries: yauzl.Entr
 /**
  * Takes one uploaded file (an image or a ZIP of images) for a run: a staged upload, checked from
  * disk, or a File in memory (seed data, tests), staged first so both take the same path. A staged
- * image that is accepted moves into the run's folder; whatever this function staged itself is
- * removed again.
+ * image that is accepted goes to the store under `runs/<run id>/`; whatever this function staged
+ * itself is removed again.
  */
 export async function receiveFrameFile(run: Run, upload: StagedFile | File, timeS: number | null): Promise<FrameUploadResult> {
   const staged = upload instanceof File ? await stageBytes(upload.name, new Uint8Array(await upload.arrayBuffer())) : upload;
@@ -280,5 +308,3 @@ export async function receiveFrameFile(run: Run, upload: StagedFile | File, time
     if (upload instanceof File) await discardStaged(staged);
   }
 }
-
-export { runFilePath };

@@ -5,6 +5,7 @@ import { Frame } from "../db";
 import { env } from "../env";
 import { smallLab } from "../test-support";
 import { createRun } from "../runs/service";
+import { LocalStore } from "../storage";
 import { ORPHAN_MIN_AGE_MS, removeOrphanUploads } from "./orphans";
 
 const exists = (file: string) => fs.stat(file).then(() => true, () => false);
@@ -15,6 +16,10 @@ async function writeAged(file: string, ageMs: number) {
   const t = new Date(Date.now() - ageMs);
   await fs.utimes(file, t, t);
 }
+
+// The folder store, whatever store the suite runs with: this test ages files on disk. The same sweep
+// over a bucket is tested in storage/s3-store.test.ts.
+const local = new LocalStore(env.uploadsDir);
 
 describe("orphan upload files at start", () => {
   it("removes old unreferenced frames and attachments, keeps referenced ones and uploads in flight", async () => {
@@ -41,7 +46,7 @@ describe("orphan upload files at start", () => {
     await writeAged(leftStaged, old);
     await writeAged(staging, 1000);
 
-    expect(await removeOrphanUploads()).toBe(3);
+    expect(await removeOrphanUploads(new Date(), local)).toBe(3);
     expect(await exists(leftStaged)).toBe(false);
     expect(await exists(staging)).toBe(true);
     await fs.rm(staging);
@@ -51,6 +56,6 @@ describe("orphan upload files at start", () => {
     expect(await exists(orphan)).toBe(false);
     expect(await exists(orphanAttachment)).toBe(false);
     // Nothing left to do on a second start.
-    expect(await removeOrphanUploads()).toBe(0);
+    expect(await removeOrphanUploads(new Date(), local)).toBe(0);
   });
 });

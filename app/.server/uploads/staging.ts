@@ -18,7 +18,7 @@ export class UploadError extends Error {
   }
 }
 
-/** An uploaded file on disk under uploads/tmp/, waiting to be checked and moved into place. */
+/** An uploaded file on disk under uploads/tmp/, waiting to be checked and handed to the store. */
 export interface StagedFile {
   path: string;
   name: string;
@@ -60,18 +60,6 @@ export async function sha256OfFile(file: string) {
   const hash = crypto.createHash("sha256");
   await pipeline(fs.createReadStream(file), hash);
   return hash.digest("hex");
-}
-
-/** Moves a staged file to its final place (same volume: a rename; otherwise a copy). */
-export async function moveStaged(file: StagedFile, to: string) {
-  await fsp.mkdir(path.dirname(to), { recursive: true });
-  try {
-    await fsp.rename(file.path, to);
-  } catch (err) {
-    if ((err as NodeJS.ErrnoException).code !== "EXDEV") throw err;
-    await fsp.copyFile(file.path, to, fs.constants.COPYFILE_EXCL);
-    await fsp.rm(file.path, { force: true });
-  }
 }
 
 export interface MultipartOptions {

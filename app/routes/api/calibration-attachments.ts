@@ -5,6 +5,8 @@ import { apiError, parseId } from "~/.server/http";
 import { addCalibrationAttachment, MAX_ATTACHMENT_BYTES } from "~/.server/uploads/calibration-attachments";
 import { methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 import { UploadError, withMultipartUpload } from "~/.server/uploads/staging";
+import { StorageUnavailableError } from "~/.server/storage";
+import { storageUnavailable } from "~/.server/storage/respond";
 
 /** POST /api/v1/calibrations/:id/attachments (multipart, field "file") — Uppy's XHR upload lands here. */
 export async function action({ request, params }: Route.ActionArgs) {
@@ -30,6 +32,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     });
   } catch (err) {
     if (err instanceof UploadError) return apiError(err.status, err.code, err.message);
+    if (err instanceof StorageUnavailableError) return storageUnavailable(err);
     return refusalResponse(err);
   }
 }

@@ -4,6 +4,8 @@ import { apiError } from "~/.server/http";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { receiveFrameFile, UploadError } from "~/.server/uploads/frames";
 import { withMultipartUpload } from "~/.server/uploads/staging";
+import { StorageUnavailableError } from "~/.server/storage";
+import { storageUnavailable } from "~/.server/storage/respond";
 import { Frame } from "~/.server/db";
 import { inputsChanged } from "~/.server/runs/rechecks";
 import { uploadLimits } from "~/lib/upload-limits";
@@ -59,6 +61,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     });
   } catch (err) {
     if (err instanceof UploadError) return apiError(err.status, err.code, err.message);
+    if (err instanceof StorageUnavailableError) return storageUnavailable(err);
     throw err;
   }
 }

@@ -1,28 +1,26 @@
-import fs from "node:fs";
-import { Readable } from "node:stream";
 import type { Route } from "./+types/frame-image";
 import { requireUser } from "~/.server/auth/permissions";
 import { Frame } from "~/.server/db";
 import { notFound, parseId } from "~/.server/http";
-import { runFilePath } from "~/.server/uploads/storage";
+import { runKey } from "~/.server/storage";
+import { storedFileResponse } from "~/.server/storage/respond";
+import { frameContentTypes } from "~/.server/uploads/frames";
 
-const types: Record<string, string> = { jpeg: "image/jpeg", png: "image/png", tiff: "image/tiff", webp: "image/webp" };
-
-/** A frame or its thumbnail, for signed-in people only. ?size=thumb gives the small WebP made at upload. */
+/**
+ * A frame or its thumbnail, for signed-in people only, streamed from storage through the server.
+ * ?size=thumb gives the small WebP made at upload. A file missing from storage is a 404 that says
+ * which frame.
+ */
 export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request);
   const frame = await Frame.findOne({ where: { id: parseId(request, params.frameId, "That frame"), runId: parseId(request, params.id, "That run") } });
   if (!frame) throw notFound(request, "That frame");
   const thumb = new URL(request.url).searchParams.get("size") === "thumb" && frame.thumbName;
-  const file = runFilePath(frame.runId, thumb ? frame.thumbName! : frame.storedName);
-  if (!fs.existsSync(file)) throw notFound(request, "That frame's file");
-  const stat = fs.statSync(file);
-  return new Response(Readable.toWeb(fs.createReadStream(file)) as ReadableStream, {
-    headers: {
-      "Content-Type": thumb ? "image/webp" : (types[frame.format] ?? "application/octet-stream"),
-      "Content-Length": String(stat.size),
-      // Stored frames never change under the same id.
-      "Cache-Control": "private, max-age=86400, immutable",
-    },
+  const what = `${thumb ? "the thumbnail of " : ""}frame ${frame.position + 1} (${frame.originalName})`;
+  return storedFileResponse(request, runKey(frame.runId, thumb ? frame.thumbName! : frame.storedName), {
+    contentType: thumb ? "image/webp" : (frameContentTypes[frame.format] ?? "application/octet-stream"),
+    missing: `The file of ${what} is missing from storage. Bring the same frame again to put it back.`,
+    // Stored frames never change under the same id.
+    headers: { "Cache-Control": "private, max-age=86400, immutable" },
   });
 }

@@ -137,13 +137,37 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
       </div>
 
       <Card title={`Frame stack (${d.frames.length})`}>
+        {d.frameFiles.missing ? (
+          <div className="mb-4" data-testid="frames-missing">
+            <Notice kind="error" title={`${d.frameFiles.missing} of ${d.frames.length} frames are missing from storage`}>
+              Their files are no longer where Tankside keeps them, so they cannot be shown and tracking cannot read them. Bring the same frames again (the same
+              files or ZIP) to put them back; frames already there are not added twice.
+            </Notice>
+          </div>
+        ) : null}
+        {d.frameFiles.unavailable ? (
+          <div className="mb-4">
+            <Notice kind="caution" title="The file store cannot be reached just now">
+              The frames may not show until it answers again.
+            </Notice>
+          </div>
+        ) : null}
         {d.frames.length ? (
           <ol className="flex gap-2 overflow-x-auto pb-2" aria-label="Frames" data-testid="filmstrip">
             {d.frames.map((f) => (
               <li key={f.id} className="shrink-0">
-                <a href={`/runs/${run.id}/frames/${f.id}/image`} title={`${f.name}${f.timeS !== null ? ` at ${f.timeS.toFixed(3)} s` : ""}`}>
-                  <img src={`/runs/${run.id}/frames/${f.id}/image?size=thumb`} loading="lazy" width={120} height={68} alt={`Frame ${f.position + 1}: ${f.name}`} className="h-[68px] w-[120px] rounded border border-line object-cover" />
-                </a>
+                {f.missing ? (
+                  <span
+                    title={`${f.name}: file missing from storage`}
+                    className="flex h-[68px] w-[120px] items-center justify-center rounded border border-dashed border-disagrees-ink bg-disagrees-bg px-1 text-center text-sm text-disagrees-ink"
+                  >
+                    {`Frame ${f.position + 1} missing`}
+                  </span>
+                ) : (
+                  <a href={`/runs/${run.id}/frames/${f.id}/image`} title={`${f.name}${f.timeS !== null ? ` at ${f.timeS.toFixed(3)} s` : ""}`}>
+                    <img src={`/runs/${run.id}/frames/${f.id}/image?size=thumb`} loading="lazy" width={120} height={68} alt={`Frame ${f.position + 1}: ${f.name}`} className="h-[68px] w-[120px] rounded border border-line object-cover" />
+                  </a>
+                )}
               </li>
             ))}
           </ol>

@@ -14,6 +14,7 @@ import { Button, ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { ViewSetupEditor, type SetupValues } from "~/components/runs/view-setup-editor";
+import { runKey, store, StorageUnavailableError } from "~/.server/storage";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `View setup ${data ? runLabel(data.runId) : ""} · Tankside` }];
 
@@ -54,7 +55,16 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const previous = own ? null : await lastSetupOfCamera(run.cameraId, frame!.widthPx, frame!.heightPx);
   const start = own ?? previous;
   const scaleCalibration = await scaleCalibrationOfRun(run);
+  // The marks are made on this frame's picture: say so plainly when its file is gone from storage.
+  const imageMissing = await store()
+    .head(runKey(run.id, frame!.storedName))
+    .then((o) => o === null)
+    .catch((err) => {
+      if (err instanceof StorageUnavailableError) return false;
+      throw err;
+    });
   return {
+    imageMissing,
     scaleCalibration,
     runId: run.id,
     frame: { id: frame!.id, width: frame!.widthPx, height: frame!.heightPx },
@@ -96,11 +106,18 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function Setup({ loaderData, actionData }: Route.ComponentProps) {
-  const { runId, frame, initial, reusedFrom, scaleCalibration } = loaderData;
+  const { runId, frame, initial, reusedFrom, scaleCalibration, imageMissing } = loaderData;
   const errors = (actionData?.errors ?? {}) as Record<string, string[] | undefined>;
   return (
     <div>
       <PageHeader title={`View setup · ${runLabel(runId)}`} subtitle="Mark the rotation centre, the tank edge and the scale on the first frame." actions={<ButtonLink to={`/runs/${runId}`}>Back to the run</ButtonLink>} />
+      {imageMissing ? (
+        <div className="mb-4">
+          <Notice kind="error" title="The first frame's file is missing from storage">
+            Its picture cannot be shown to mark on. Bring the same frames again on the run's page to put the files back.
+          </Notice>
+        </div>
+      ) : null}
       {reusedFrom ? (
         <div className="mb-4">
           <Notice kind="info" title={`Started from the last setup of this camera (${runLabel(reusedFrom)})`}>Check the marks still sit where they should before saving.</Notice>

@@ -1,6 +1,7 @@
 #!/usr/bin/env node
 // The whole test suite, on both databases: typecheck, one production build, then Vitest and the
-// browser tests on SQLite, then the same on a throw-away PostgreSQL cluster (scripts/pg-cluster.mjs).
+// browser tests on SQLite, then the same on a throw-away PostgreSQL cluster (scripts/pg-cluster.mjs),
+// then two web servers and two workers sharing that database and a fake S3 bucket (scripts/two-process.ts).
 //   node scripts/test-all.mjs                 both databases (what `npm test` and .ci/run do)
 //   node scripts/test-all.mjs --only sqlite   SQLite only
 //   node scripts/test-all.mjs --only pg       PostgreSQL only (`npm run test:pg`)
@@ -69,6 +70,8 @@ try {
     try {
       step("Vitest on PostgreSQL", "npx", ["vitest", "run"], { TEST_DATABASE_URL: url });
       step("browser tests on PostgreSQL", "npx", ["playwright", "test"], { TEST_DATABASE_URL: url });
+    // Two web servers and two workers on one PostgreSQL database and a fake S3 bucket, then one SQLite server.
+    step("two processes, PostgreSQL + S3", "npx", ["tsx", "scripts/two-process.ts"], { TEST_DATABASE_URL: url });
     } finally {
       if (!external) spawnSync("node", ["scripts/pg-cluster.mjs", "stop"], { cwd: root, stdio: "inherit" });
     }

@@ -1,7 +1,7 @@
 // npm run test:two-process — Tankside on more than one process, through its HTTP API.
 //
 // PostgreSQL: two built web servers (node server.mjs, TANKSIDE_WORKERS=0, different ports) and two
-// `npm run worker` processes on one database, with one UPLOADS_DIR on local disk. Ten runs are
+// `npm run worker` processes on one database, with frames in one bucket of a fake S3 server. Ten runs are
 // logged, given their frames, set up and sent to tracking across both web servers; progress is read
 // from the other server while the workers track. Every run must be tracked exactly once (one job,
 // one attempt, taken by one worker) with the tracks of a single-process run.
@@ -17,6 +17,8 @@ import path from "node:path";
 import pg from "pg";
 import sharp from "sharp";
 import sqlite3 from "sqlite3";
+import { ListObjectsV2Command, S3Client } from "@aws-sdk/client-s3";
+import { FAKE_S3_ACCESS_KEY, FAKE_S3_SECRET_KEY, createBucket, s3Env, startFakeS3, type FakeS3 } from "../tests/setup/fake-s3";
 import { renderRunFrames, type SyntheticRunSpec } from "../app/lib/tracking/synthetic";
 import { rpmToRadPerS } from "../app/lib/analysis/units";
 
@@ -105,6 +107,23 @@ class Proc {
 const web = (label: string, port: number, env: NodeJS.ProcessEnv) => new Proc(label, ["server.mjs"], { ...env, PORT: String(port), HOST: "127.0.0.1", APP_URL: `http://127.0.0.1:${port}` });
 // What `npm run worker` runs (tsx app/.server/worker.ts), as one process so it stops with one signal.
 const worker = (label: string, env: NodeJS.ProcessEnv) => new Proc(label, ["--import", "tsx", "app/.server/worker.ts"], env);
+
+/** Objects under a prefix of the fake server's bucket, counted through the S3 API. */
+async function countObjects(s3: FakeS3, bucketName: string, prefix: string) {
+  const client = new S3Client({ endpoint: s3.endpoint, region: "us-east-1", forcePathStyle: true, credentials: { accessKeyId: FAKE_S3_ACCESS_KEY, secretAccessKey: FAKE_S3_SECRET_KEY } });
+  let count = 0;
+  let token: string | undefined;
+  try {
+    do {
+      const page = await client.send(new ListObjectsV2Command({ Bucket: bucketName, Prefix: prefix, ContinuationToken: token }));
+      count += page.KeyCount ?? 0;
+      token = page.IsTruncated ? page.NextContinuationToken : undefined;
+    } while (token);
+  } finally {
+    client.destroy();
+  }
+  return count;
+}
 
 function baseEnv(databaseUrl: string, uploads: string): NodeJS.ProcessEnv {
   const env: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "production", TANKSIDE_FAKE_MAIL: "1", SESSION_SECRET: "two-process-session-secret-0123456789", DATABASE_URL: databaseUrl, UPLOADS_DIR: uploads };
@@ -246,12 +265,16 @@ await admin.query(`DROP DATABASE IF EXISTS ${dbName}`);
 await admin.query(`CREATE DATABASE ${dbName}`);
 const pgUrl = Object.assign(new URL(adminUrl), { pathname: `/${dbName}` }).toString();
 
+// Frames in object storage: a fake S3 server from npm (s3rver) with one bucket, shared by all four.
+const fakeS3 = await startFakeS3();
+const bucket = await createBucket(fakeS3, "tankside-two-process");
+
 const procs: Proc[] = [];
 let pgOutcome: Awaited<ReturnType<typeof trackRuns>>;
 let workerJobs: number[][] = [];
 process.on("exit", () => fs.rmSync(tmp, { recursive: true, force: true }));
 try {
-  const env = baseEnv(pgUrl, path.join(tmp, "pg-uploads"));
+  const env = { ...baseEnv(pgUrl, path.join(tmp, "pg-uploads")), ...s3Env(fakeS3, bucket) };
   const lab = makeLab(env);
   const [portA, portB] = [await freePort(), await freePort()];
   const tBoot = Date.now();
@@ -281,6 +304,10 @@ try {
   check(detections.every((d) => Number(d.dupes) === 0), "no frame's detection stored twice");
   check(pgOutcome.outcomes.some((o) => o.progressSeen.some((n) => n > 0 && n < FRAMES)), "progress written by a worker was read through the other web server mid-job");
   check(pgOutcome.outcomes.every((o) => sameTracks(o, pgOutcome.outcomes[0])), "all ten runs have the same tracks");
+  const objects = await countObjects(fakeS3, bucket, "runs/");
+  const onDisk = fs.existsSync(path.join(tmp, "pg-uploads", "runs")) ? fs.readdirSync(path.join(tmp, "pg-uploads", "runs")).length : 0;
+  console.log(`PostgreSQL: ${objects} objects under runs/ in the bucket, ${onDisk} run folders on the local disk`);
+  check(objects >= RUNS * FRAMES && onDisk === 0, "every frame went to the bucket, none to the web servers' disk");
 } finally {
   await Promise.all(procs.map((p) => p.stop()));
   procs.length = 0;
@@ -288,6 +315,7 @@ try {
   else await admin.query(`DROP DATABASE IF EXISTS ${dbName} WITH (FORCE)`).catch((err) => console.error(err));
   await admin.end();
   if (startedCluster) spawnSync(process.execPath, ["scripts/pg-cluster.mjs", "stop"], { cwd: root, stdio: "inherit" });
+  await fakeS3.close();
 }
 
 // ── SQLite: one web server with its in-process queue ─────────────────────────────────────────

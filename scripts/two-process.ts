@@ -19,8 +19,8 @@ import sharp from "sharp";
 import sqlite3 from "sqlite3";
 import { ListObjectsV2Command, S3Client } from "@aws-sdk/client-s3";
 import { FAKE_S3_ACCESS_KEY, FAKE_S3_SECRET_KEY, createBucket, s3Env, startFakeS3, type FakeS3 } from "../tests/setup/fake-s3";
-import { renderRunFrames, type SyntheticRunSpec } from "../app/lib/tracking/synthetic";
-import { rpmToRadPerS } from "../app/lib/analysis/units";
+import { renderRunFrames } from "../app/lib/tracking/synthetic";
+import { floatStackCentre, floatStackSpec } from "../app/lib/tracking/float-stack";
 
 const root = path.resolve(import.meta.dirname, "..");
 const RUNS = Number(process.env.TWO_PROCESS_RUNS ?? 10);
@@ -39,23 +39,8 @@ if (!fs.existsSync(path.join(root, process.env.TANKSIDE_BUILD_DIR ?? "build", "s
 }
 
 // ── Frames: one rendered stack (a float on an inertial circle), the same for every run ──────────
-const W = 320;
-const H = 240;
-const centre = { x: 160.3, y: 119.6 };
-const spec: SyntheticRunSpec = {
-  width: W,
-  height: H,
-  frames: FRAMES,
-  fps: 30,
-  seed: 11,
-  camera: "rotating",
-  omega: rpmToRadPerS(15),
-  centre,
-  pxPerM: 600,
-  tankRadiusPx: 110,
-  noiseSigma: 2,
-  tracers: [{ kind: "float", sigmaPx: 2.5, brightness: 120, path: { kind: "inertial-circle", centre: { x: 0.01, y: 0 }, radius: 0.06, phase: 0 } }],
-};
+const centre = floatStackCentre;
+const spec = floatStackSpec(FRAMES);
 const frames: { name: string; jpeg: Buffer }[] = [];
 await renderRunFrames(spec, async (f) => {
   const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } }).jpeg({ quality: 92 }).toBuffer();

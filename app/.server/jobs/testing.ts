@@ -3,8 +3,8 @@ import path from "node:path";
 import sharp from "sharp";
 import { Run, Track, ViewSetup } from "../db";
 import { receiveFrameFile } from "../uploads/frames";
-import { renderRunFrames, type SyntheticRunSpec } from "~/lib/tracking/synthetic";
-import { rpmToRadPerS } from "~/lib/analysis/units";
+import { renderRunFrames } from "~/lib/tracking/synthetic";
+import { floatStackCentre, floatStackSpec } from "~/lib/tracking/float-stack";
 
 /** Test support for the shared queue: real `npm run worker` processes, and rendered runs to track. */
 
@@ -50,31 +50,12 @@ export class WorkerProcess {
   }
 }
 
-export const W = 320;
-export const H = 240;
-export const centre = { x: 160.3, y: 119.6 };
-
-export function floatSpec(frames: number): SyntheticRunSpec {
-  return {
-    width: W,
-    height: H,
-    frames,
-    fps: 30,
-    seed: 11,
-    camera: "rotating",
-    omega: rpmToRadPerS(15),
-    centre,
-    pxPerM: 600,
-    tankRadiusPx: 110,
-    noiseSigma: 2,
-    tracers: [{ kind: "float", sigmaPx: 2.5, brightness: 120, path: { kind: "inertial-circle", centre: { x: 0.01, y: 0 }, radius: 0.06, phase: 0 } }],
-  };
-}
+export const centre = floatStackCentre;
 
 /** Renders a stack once as JPEG files, so many runs can be given the very same frames. */
 export async function renderStack(frames: number): Promise<File[]> {
   const files: File[] = [];
-  await renderRunFrames(floatSpec(frames), async (f) => {
+  await renderRunFrames(floatStackSpec(frames), async (f) => {
     const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } }).jpeg({ quality: 92 }).toBuffer();
     files.push(new File([new Uint8Array(jpeg)], `frame_${String(f.index).padStart(4, "0")}.jpg`));
   });

@@ -5,8 +5,8 @@ import { smallLab } from "../test-support";
 import { createRun } from "../runs/service";
 import { receiveFrameFile } from "../uploads/frames";
 import { cancelTracking, enqueueTracking, JobError, resumeInterruptedJobs, stopTrackingQueue, whenTrackingIdle } from "./tracking-queue";
-import { renderRunFrames, type SyntheticRunSpec } from "~/lib/tracking/synthetic";
-import { rpmToRadPerS } from "~/lib/analysis/units";
+import { renderRunFrames } from "~/lib/tracking/synthetic";
+import { floatStackCentre, floatStackSpec } from "~/lib/tracking/float-stack";
 
 let lab: Awaited<ReturnType<typeof smallLab>>;
 beforeAll(async () => {
@@ -16,28 +16,8 @@ afterAll(async () => {
   await stopTrackingQueue();
 });
 
-const W = 320;
-const H = 240;
-const centre = { x: 160.3, y: 119.6 };
-
-function spec(frames: number, withTracer = true): SyntheticRunSpec {
-  return {
-    width: W,
-    height: H,
-    frames,
-    fps: 30,
-    seed: 7,
-    camera: "rotating",
-    omega: rpmToRadPerS(15),
-    centre,
-    pxPerM: 600,
-    tankRadiusPx: 110,
-    noiseSigma: 2,
-    tracers: withTracer
-      ? [{ kind: "float", sigmaPx: 2.5, brightness: 120, path: { kind: "inertial-circle", centre: { x: 0.01, y: 0 }, radius: 0.06, phase: 0 } }]
-      : [],
-  };
-}
+const centre = floatStackCentre;
+const spec = (frames: number, withTracer = true) => floatStackSpec(frames, { seed: 7, withTracer });
 
 async function runWithFrames(frames: number, withTracer = true) {
   const run = await createRun(lab.runInput({ setRateRpm: 15 }), lab.tech);

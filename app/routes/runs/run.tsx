@@ -140,8 +140,10 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         {d.frameFiles.missing ? (
           <div className="mb-4" data-testid="frames-missing">
             <Notice kind="error" title={`${d.frameFiles.missing} of ${d.frames.length} frames are missing from storage`}>
-              Their files are no longer where Tankside keeps them, so they cannot be shown and tracking cannot read them. Bring the same frames again (the same
-              files or ZIP) to put them back; frames already there are not added twice.
+              Their files are no longer where Tankside keeps them, so they cannot be shown and tracking cannot read them.{" "}
+              {canChange
+                ? "Bring the same frames again (the same files or ZIP) to put them back; frames already there are not added twice."
+                : "A technician can put them back by bringing the same frames again."}
             </Notice>
           </div>
         ) : null}

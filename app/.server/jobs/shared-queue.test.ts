@@ -37,7 +37,7 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
     workers.push(w);
     return w;
   };
-  const newRun = async (purpose: string) => prepareRun(await createRun(lab.runInput({ setRateRpm: 15, purpose }), lab.tech), stack, lab.tech.id);
+  const newRun = async (purpose: string, frames: File[] = stack) => prepareRun(await createRun(lab.runInput({ setRateRpm: 15, purpose }), lab.tech), frames, lab.tech.id);
   const jobOf = (runId: number) => TrackingJob.findOne({ where: { runId }, order: [["id", "DESC"]] });
   const doneJob = (runId: number) => async () => {
     const job = await jobOf(runId);
@@ -203,23 +203,39 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
 
   it("a worker stopped with SIGTERM mid-job hands the job back at once, and the other worker resumes it", async () => {
     const [second, third] = [workers[1], workers[2]];
-    const run = await newRun("worker stopped mid-job");
+    // A run long enough (several seconds of tracking) that the signal surely lands mid-job: the
+    // 120-frame run can be finished between the first progress the test sees and the signal.
+    const LONG = 360;
+    const run = await newRun("worker stopped mid-job", await renderStack(LONG));
     const job = await enqueueTracking(run, lab.tech.id);
-    const holder = await waitFor("a worker to make progress", async () => {
+    const seen = await waitFor("a worker to make progress", async () => {
       const j = await jobOf(run.id);
-      return j && j.state === "running" && j.framesDone > 0 ? j.leaseOwner : null;
+      return j && j.state === "running" && j.framesDone > 0 ? j : null;
     }, 120_000, 20);
+    expect(seen.framesDone).toBeLessThan(LONG / 2);
+    const holder = seen.leaseOwner;
     const [leaving, staying] = second.output.includes(`as ${holder}`) ? [second, third] : [third, second];
     const staysTaken = staying.jobsTaken().length;
     await leaving.stop("SIGTERM");
     expect((await leaving.exited).code).toBe(0);
     // Handed back at once rather than left for its lease to run out.
-    expect(leaving.output).toMatch(new RegExp(`\\[tracking\\] job ${job.id} handed back to the queue after frame \\d+`));
+    const handedBack = leaving.output.match(new RegExp(`\\[tracking\\] job ${job.id} handed back to the queue after frame (\\d+)`));
+    expect(handedBack).not.toBeNull();
+    const stoppedAt = Number(handedBack![1]);
+    expect(stoppedAt).toBeGreaterThan(0);
+    const kept = await Detection.findAll({ where: { jobId: job.id, frameIndex: { [Op.lt]: stoppedAt } }, attributes: ["id"] });
+    expect(kept.length).toBeGreaterThan(0);
     const done = await waitFor("the other worker to finish the job", doneJob(run.id), 120_000);
     expect(done.attempts).toBe(2);
+    expect(done.framesDone).toBe(LONG);
     expect(staying.jobsTaken().slice(staysTaken)).toEqual([job.id]);
-    expect(staying.output).toMatch(new RegExp(`job ${job.id} \\(run ${run.id}\\) resumes at frame \\d+`));
+    expect(staying.output).toContain(`job ${job.id} (run ${run.id}) resumes at frame ${stoppedAt + 1} of ${LONG}`);
+    // The frames stored before the hand-back were not searched again, and the float is one whole track.
+    const after = await Detection.findAll({ where: { jobId: job.id, frameIndex: { [Op.lt]: stoppedAt } }, attributes: ["id"] });
+    expect(after.map((d) => d.id).sort((a, b) => a - b)).toEqual(kept.map((d) => d.id).sort((a, b) => a - b));
     expect(await TrackingJob.count({ where: { runId: run.id } })).toBe(1);
-    expect(await tracksOf(run.id)).toEqual(reference);
+    const tracks = await tracksOf(run.id);
+    expect(tracks.length).toBe(1);
+    expect(tracks[0].pointCount).toBeGreaterThanOrEqual(LONG - 1);
   }, 240_000);
 });

@@ -75,7 +75,7 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
   fs.mkdirSync(path.join(tmp, "uploads"), { recursive: true });
   const databaseUrl = await freshDatabaseUrl(`crash_${port}`, tmp);
   const uploads = path.join(tmp, "uploads");
-  const env: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "production", TANKSIDE_FAKE_MAIL: "1", PORT: String(port), HOST: "127.0.0.1", DATABASE_URL: databaseUrl, UPLOADS_DIR: uploads, SESSION_SECRET: "crash-test-session-secret-0123456789", APP_URL: base };
+  const env: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "production", TANKSIDE_FAKE_MAIL: "1", PORT: String(port), HOST: "127.0.0.1", DATABASE_URL: databaseUrl, UPLOADS_DIR: uploads, SESSION_SECRET: "crash-test-session-secret-0123456789", APP_URL: base, TANKSIDE_JOB_LEASE_S: "5" };
   delete env.SMTP_URL;
 
   const made = spawnSync("npx", ["tsx", "tests/setup/crash-lab.ts", String(TRACK_FRAMES), String(BOOKINGS)], { cwd: root, env, encoding: "utf8" });
@@ -173,8 +173,8 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
     expect(approvedNow.filter((s) => s !== "approved")).toEqual([]);
 
     // The same job goes back in the queue, picks up where its stored detections end and finishes. On
-    // SQLite at start; on PostgreSQL once the killed server's lease on it has run out (30 s), since a
-    // running job there may belong to another live worker.
+    // SQLite at start; on PostgreSQL once the killed server's lease on it has run out (5 s here,
+    // TANKSIDE_JOB_LEASE_S above; 30 s by default), since a running job there may belong to another live worker.
     if (onPostgres) {
       await expect.poll(() => second!.output, { timeout: 120_000, intervals: [500] }).toMatch(new RegExp(`\\[tracking\\] (resuming 1 interrupted job\\(s\\)|taken back from a worker that stopped answering: job\\(s\\) ${jobId}\\b)`));
     } else {

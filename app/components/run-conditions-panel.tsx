@@ -11,7 +11,7 @@ import {
   WATER_TEMPERATURE_RANGE,
 } from "~/lib/conditions/run-conditions";
 import { rpmToRadPerS } from "~/lib/analysis/units";
-import { formatNumber } from "~/lib/format";
+import { formatNumber } from "~/lib/number-format";
 import { Card } from "./ui/card";
 import { Notice } from "./ui/notice";
 

@@ -1,8 +1,9 @@
 import { Run, Track, ViewSetup } from "../db";
-import { currentCheck } from "./provenance";
+import { currentCheck } from "./current-check";
 import { RunError } from "./service";
 import { csvDocument, type CsvCell } from "../csv";
-import { parseTrackPoints, signedOmega } from "./theory";
+import { parseTrackPoints } from "./theory";
+import { runOmega } from "~/lib/analysis/run-omega";
 import { trackToRotatingFrame, type ViewGeometry } from "~/lib/analysis/frames";
 import { runLabel } from "~/lib/runs";
 import { correctFrameTimes } from "~/lib/calibrations-applied";
@@ -34,7 +35,7 @@ export async function tracksCsv(runId: number): Promise<{ filename: string; csv:
   }
   const setup = await ViewSetup.findOne({ where: { runId } });
   const { check } = await currentCheck(run);
-  let omega = signedOmega(run);
+  let omega = runOmega(run);
   let timeFactor = 1;
   let checkPxPerM: number | null = null;
   if (check) {

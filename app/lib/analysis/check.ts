@@ -3,6 +3,7 @@
  * force? One function for the worker, the command line and the browser. It never throws: any
  * input it cannot judge honestly gives the verdict "inconclusive" with the reason in words.
  */
+import { mean } from "simple-statistics";
 import { fitCircle } from "./circle-fit";
 import { fitCoriolis, inertialPeriodFromAngle, predictedRadius, turningRate } from "./coriolis-fit";
 import type { CameraMode, TimedPoint, ViewGeometry } from "./frames";
@@ -11,6 +12,7 @@ import { DECISION_RULE, decide, Z95 } from "./decision";
 import { formatFixed, formatNumber, formatWithError, percentRange } from "../number-format";
 import { linearFit } from "./regression";
 import { correctFrameTimes, type AppliedCalibration, type FrameTimeCorrection } from "../calibrations-applied";
+import { unwrapAngles } from "./angles";
 import {
   chooseWindow,
   DEFAULT_POLY_ORDER,
@@ -158,8 +160,8 @@ const isFiniteNumber = (v: unknown): v is number => typeof v === "number" && Num
 /** Spread of points along and across their main direction (principal axes). */
 function principalSpread(points: readonly { x: number; y: number }[]): { major: number; minor: number } {
   const n = points.length;
-  const mx = points.reduce((s, p) => s + p.x, 0) / n;
-  const my = points.reduce((s, p) => s + p.y, 0) / n;
+  const mx = mean(points.map((p) => p.x));
+  const my = mean(points.map((p) => p.y));
   let sxx = 0;
   let syy = 0;
   let sxy = 0;
@@ -171,9 +173,9 @@ function principalSpread(points: readonly { x: number; y: number }[]): { major: 
   sxx /= n;
   syy /= n;
   sxy /= n;
-  const mean = (sxx + syy) / 2;
+  const halfTrace = (sxx + syy) / 2;
   const d = Math.sqrt(((sxx - syy) / 2) ** 2 + sxy * sxy);
-  return { major: Math.sqrt(Math.max(0, mean + d)), minor: Math.sqrt(Math.max(0, mean - d)) };
+  return { major: Math.sqrt(Math.max(0, halfTrace + d)), minor: Math.sqrt(Math.max(0, halfTrace - d)) };
 }
 
 export function runTheoryCheck(input: TheoryCheckInput): TheoryCheckResult {
@@ -438,7 +440,7 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
       rmsResidualPx: circleFit.rmsResidual * pxPerUnit,
     };
   }
-  const meanSpeed = samples.reduce((s, p) => s + Math.hypot(p.u, p.v), 0) / samples.length;
+  const meanSpeed = mean(samples.map((p) => Math.hypot(p.u, p.v)));
   const predictedRadiusM = view.pxPerM === null ? null : predictedRadius(meanSpeed, fPredicted);
 
   const series = { rotating, lab, accelFit, angle: angleFit?.angles ?? [], residuals };
@@ -540,19 +542,7 @@ export function measureOmegaFromMark(
     if (!(minRadius >= 2)) {
       return none("The mark passes within 2 px of the rotation centre, where its angle cannot be read.", pts.length);
     }
-    const angles: number[] = [];
-    let offset = 0;
-    let previous = Number.NaN;
-    for (const p of table) {
-      const a = Math.atan2(p.y, p.x);
-      if (Number.isFinite(previous)) {
-        const d = a - previous;
-        if (d > Math.PI) offset -= 2 * Math.PI;
-        else if (d < -Math.PI) offset += 2 * Math.PI;
-      }
-      previous = a;
-      angles.push(a + offset);
-    }
+    const angles = unwrapAngles(table.map((p) => Math.atan2(p.y, p.x)));
     const turns = (angles[angles.length - 1]! - angles[0]!) / (2 * Math.PI);
     if (Math.abs(turns) < 0.05) {
       return none(`The mark turns only ${formatNumber(Math.abs(turns) * 360, 2)}° over the track: too little to measure the rate.`, pts.length, turns);

@@ -5,7 +5,7 @@ import { parseId } from "~/.server/http";
 import { requireUser } from "~/.server/auth/permissions";
 import { getRunDetail, getSignOffView, getRunHistory } from "~/.server/runs/record";
 import { Run } from "~/.server/db";
-import { currentCheck } from "~/.server/runs/provenance";
+import { currentCheck } from "~/.server/runs/current-check";
 import type { TheoryCheckResult } from "~/lib/analysis/check";
 import { TheoryPlots } from "~/components/plots/theory-plots";
 import { CalibrationsAppliedList } from "~/components/runs/calibrations-applied-list";

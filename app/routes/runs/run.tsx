@@ -20,7 +20,7 @@ import { SignOffPanel } from "~/components/run-record/sign-off-panel";
 import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { RunExportLinks } from "~/components/run-record/run-export-links";
 import { getRunRecordParts } from "~/.server/runs/record";
-import { currentCheck } from "~/.server/runs/provenance";
+import { currentCheck } from "~/.server/runs/current-check";
 import { calibrationKindLabels } from "~/lib/calibrations";
 import { flaggedCalibrations } from "~/lib/calibrations-applied";
 import { roleCan } from "~/lib/roles";

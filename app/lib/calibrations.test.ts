@@ -56,7 +56,7 @@ describe("trueRateFromCalibration", () => {
   const fit = fitRateCalibration(readings, 1);
   const line = { slope: fit.slope, intercept: fit.interceptRpm, slopeStdError: fit.slopeStdError, interceptStdError: fit.interceptStdErrorRpm, slopeInterceptCovariance: fit.slopeInterceptCovarianceRpm };
 
-  it("matches the textbook standard error of the mean response, s·√(1/n + (x₀ − x̄)²/Sxx)", () => {
+  it("matches the standard error of the mean response of a fitted line, s·√(1/n + (x₀ − x̄)²/Sxx) (Draper & Smith 1998, Applied Regression Analysis, 3rd ed.; from memory)", () => {
     const x = readings.map((r) => r.setRpm);
     const n = x.length;
     const xMean = mean(x);

@@ -21,7 +21,7 @@ describe("seeded random numbers", () => {
     expect(Math.abs(sampleStandardDeviation(xs) - Math.sqrt(1 / 12))).toBeLessThan(0.003);
   });
 
-  it("gives standard normal deviates by Box–Muller", () => {
+  it("gives standard normal deviates by Box–Muller (Box & Muller 1958; from memory)", () => {
     const normal = gaussian(seededRandom(11));
     const zs = Array.from({ length: 100_000 }, normal);
     expect(Math.abs(mean(zs))).toBeLessThan(0.016);

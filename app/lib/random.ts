@@ -5,7 +5,7 @@
  */
 
 /**
- * Mulberry32 (Tommy Ettinger, 2017; public domain): 32 bits of state, uniform on [0, 1) with
+ * Mulberry32 (Tommy Ettinger, 2017, public domain; from memory): 32 bits of state, uniform on [0, 1) with
  * 2⁻³² resolution. Small, fast and good enough for noise; not cryptographic.
  */
 export function seededRandom(seed: number): () => number {
@@ -19,7 +19,7 @@ export function seededRandom(seed: number): () => number {
   };
 }
 
-/** Standard normal deviates from a uniform source by the Box–Muller transform (Box & Muller 1958), cosine branch. */
+/** Standard normal deviates from a uniform source by the Box–Muller transform (Box & Muller 1958, Ann. Math. Stat. 29, 610; from memory), cosine branch. */
 export function gaussian(random: () => number): () => number {
   return () => {
     let u = 0;

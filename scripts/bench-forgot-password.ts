@@ -9,7 +9,7 @@
 import os from "node:os";
 import path from "node:path";
 import fs from "node:fs";
-import { errorFunction } from "simple-statistics";
+import { errorFunction, median } from "simple-statistics";
 
 const scratch = path.join(os.tmpdir(), `tankside-bench-forgot-${process.pid}.sqlite`);
 process.env.DATABASE_URL = `sqlite:${scratch}`;
@@ -27,12 +27,6 @@ const serverUrl = flag("--url");
 const WARM_UP = 10;
 const REAL = flag("--real") ?? "bench-real@tankside.example";
 const UNKNOWN = "bench-nobody@tankside.example";
-
-function median(xs: number[]) {
-  const s = [...xs].sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2;
-}
 
 /** Mann–Whitney U with mid-ranks for ties and the normal approximation (fine for n ≥ 20; common practice). */
 function mannWhitney(a: number[], b: number[]) {

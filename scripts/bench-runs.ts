@@ -4,6 +4,7 @@
 import os from "node:os";
 import path from "node:path";
 import fs from "node:fs";
+import { quantile } from "simple-statistics";
 import { freshDatabaseUrl, onPostgres } from "../tests/setup/test-database.mjs";
 
 const scratchDir = os.tmpdir();
@@ -98,9 +99,7 @@ async function main() {
       if (result instanceof Response && result.status !== 200) throw new Error(`${url}: ${result.status} ${await result.text()}`);
       if (i >= 5) times.push(ms); // the first calls warm SQLite's page cache and the statement paths
     }
-    times.sort((a, b) => a - b);
-    const q = (p: number) => times[Math.min(times.length - 1, Math.ceil(p * times.length) - 1)];
-    return { p50: q(0.5), p95: q(0.95) };
+    return { p50: quantile(times, 0.5), p95: quantile(times, 0.95) };
   };
 
   const rows: string[] = [];

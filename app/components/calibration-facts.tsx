@@ -1,6 +1,6 @@
 import type { CalibrationKind, CalibrationStanding } from "~/lib/calibrations";
 import { standingLabels } from "~/lib/calibrations";
-import { formatNumber } from "~/lib/format";
+import { formatNumber } from "~/lib/number-format";
 import { Tag } from "./ui/card";
 
 export function StandingTag({ standing }: { standing: CalibrationStanding }) {

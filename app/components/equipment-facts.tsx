@@ -1,6 +1,7 @@
 import type { EquipmentKind } from "~/lib/equipment";
 import { statusLabels, type EquipmentStatus } from "~/lib/equipment";
 import { Tag } from "./ui/card";
+import { formatNumber } from "~/lib/number-format";
 
 interface Facts {
   kind: EquipmentKind;
@@ -14,7 +15,7 @@ interface Facts {
   meterType: string | null;
 }
 
-const cm = (m: number | null) => (m === null ? "—" : `${Number((m * 100).toPrecision(4))} cm`);
+const cm = (m: number | null) => (m === null ? "—" : `${formatNumber(m * 100, 4)} cm`);
 
 /** The one-line summary of an item's key figures, in the units people read on the bench. */
 export function equipmentSummary(e: Facts): string {

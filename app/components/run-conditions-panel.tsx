@@ -10,8 +10,8 @@ import {
   waterKinematicViscosity,
   WATER_TEMPERATURE_RANGE,
 } from "~/lib/conditions/run-conditions";
-import { rpmToRadPerS } from "~/lib/analysis/units";
-import { formatNumber } from "~/lib/format";
+import { omegaFromTableRate } from "~/lib/analysis/run-omega";
+import { formatNumber } from "~/lib/number-format";
 import { Card } from "./ui/card";
 import { Notice } from "./ui/notice";
 
@@ -49,8 +49,7 @@ const minutes = (s: number) => (Number.isFinite(s) ? (s >= 120 ? `${formatNumber
 
 /** The run's conditions worked out live from the same library code the server uses. */
 export function RunConditionsPanel(p: RunConditionsProps) {
-  const sign = p.direction === "cw" ? -1 : 1;
-  const omega = Number.isFinite(p.rpm) && p.rpm > 0 ? sign * rpmToRadPerS(p.rpm) : Number.NaN;
+  const omega = omegaFromTableRate(p.rpm, p.direction);
   const depth = p.depthCm / 100;
   const tempOk = Number.isFinite(p.temperatureC) && p.temperatureC >= WATER_TEMPERATURE_RANGE.min && p.temperatureC <= WATER_TEMPERATURE_RANGE.max;
   const nu = tempOk ? waterKinematicViscosity(p.temperatureC) : Number.NaN;

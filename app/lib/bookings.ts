@@ -1,3 +1,4 @@
+import { rpmToRadPerS } from "./analysis/units";
 import { spinUpTime } from "./conditions/run-conditions";
 
 export const bookingStates = ["requested", "approved", "declined", "cancelled"] as const;
@@ -19,7 +20,7 @@ export const WATER_KINEMATIC_VISCOSITY_M2_S = 1.0e-6;
  */
 export function ekmanSpinUpTimeS(depthM: number, rateRpm: number, nuM2PerS = WATER_KINEMATIC_VISCOSITY_M2_S): number {
   if (!(depthM > 0) || !(rateRpm > 0) || !(nuM2PerS > 0)) throw new RangeError("depth, rate and viscosity must be more than zero");
-  return spinUpTime(depthM, nuM2PerS, (rateRpm * 2 * Math.PI) / 60);
+  return spinUpTime(depthM, nuM2PerS, rpmToRadPerS(rateRpm));
 }
 
 /** The lead time before filming: the lab's number of spin-up times to wait, each τ long. */

@@ -8,7 +8,7 @@
  * - Scale calibration: gives pixels per metre when the view setup has none; a view setup whose
  *   scale differs from it by more than the record's tolerance is flagged, never silently replaced.
  */
-import { fmt } from "./analysis/format";
+import { formatFixed, formatNumber, formatWithError } from "./number-format";
 import type { CalibrationKind } from "./calibrations";
 
 /** A camera's scale tolerance when none is stated: view setups within 1 % of the calibration agree. */
@@ -42,12 +42,6 @@ export interface AppliedCalibration {
   text: string;
 }
 
-/** A value with its standard error, to the error's second significant digit. */
-function withError(value: number, se: number, minDecimals = 0): string {
-  const decimals = se > 0 && Number.isFinite(se) ? Math.min(9, Math.max(minDecimals, 1 - Math.floor(Math.log10(se)))) : minDecimals;
-  return `${value.toFixed(decimals)} ± ${se.toFixed(decimals)}`;
-}
-
 const finite = (v: unknown): v is number => typeof v === "number" && Number.isFinite(v);
 
 export function noneInForce(kind: CalibrationKind): AppliedCalibration {
@@ -70,7 +64,7 @@ export function describeRate(rate: { calibrationId: number; setRpm: number; true
     kind: "rate",
     calibrationId: rate.calibrationId,
     use: "applied",
-    text: `rate calibration #${rate.calibrationId}: set ${rate.setRpm.toFixed(2)} rpm → ${withError(rate.trueRpm, rate.stdErrorRpm, 2)} rpm (f predicted = 2Ω at the true rate, its standard error included)`,
+    text: `rate calibration #${rate.calibrationId}: set ${formatFixed(rate.setRpm, 2)} rpm → ${formatWithError(rate.trueRpm, rate.stdErrorRpm, 2)} rpm (f predicted = 2Ω at the true rate, its standard error included)`,
   };
 }
 
@@ -99,7 +93,7 @@ export function frameTimeCorrection(record: TimingRecord, runFrameRateFps: numbe
   if (!(runFrameRateFps > 0) || Math.abs(runFrameRateFps - nominal) > SAME_NOMINAL_RATE * nominal) {
     return {
       correction: null,
-      entry: notUsed("timing", id, `it timed the camera at ${fmt(nominal, 6)} frames/s nominal and this run was filmed at ${fmt(runFrameRateFps, 6)} frames/s; frame times are as the camera gave them.`),
+      entry: notUsed("timing", id, `it timed the camera at ${formatNumber(nominal, 6)} frames/s nominal and this run was filmed at ${formatNumber(runFrameRateFps, 6)} frames/s; frame times are as the camera gave them.`),
     };
   }
   const factor = nominal / trueFps;
@@ -111,7 +105,7 @@ export function frameTimeCorrection(record: TimingRecord, runFrameRateFps: numbe
       kind: "timing",
       calibrationId: id,
       use: "applied",
-      text: `timing check #${id}: frame times × ${factor.toFixed(5)} (true frame rate ${withError(trueFps, u)} frames/s against ${fmt(nominal, 6)} nominal, the camera's clock ${deviation >= 0 ? "fast" : "slow"} by ${fmt(Math.abs(deviation), 2)} %); its uncertainty adds ${fmt(100 * relStdError, 2)} % of f in quadrature to f measured's standard error`,
+      text: `timing check #${id}: frame times × ${formatFixed(factor, 5)} (true frame rate ${formatWithError(trueFps, u)} frames/s against ${formatNumber(nominal, 6)} nominal, the camera's clock ${deviation >= 0 ? "fast" : "slow"} by ${formatNumber(Math.abs(deviation), 2)} %); its uncertainty adds ${formatNumber(100 * relStdError, 2)} % of f in quadrature to f measured's standard error`,
     },
   };
 }
@@ -145,7 +139,7 @@ export function scaleInUse(setupPxPerM: number | null, record: ScaleRecord): { p
     return { pxPerM: setupPxPerM, differencePct: null, entry: notUsed("scale", id, `the record has no usable scale. ${SCALE_EFFECT}`) };
   }
   const u = finite(record.scaleUncertaintyPxPerM) ? record.scaleUncertaintyPxPerM : 0;
-  const calText = u > 0 ? `${withError(cal, u)} px/m` : `${fmt(cal, 5)} px/m`;
+  const calText = u > 0 ? `${formatWithError(cal, u)} px/m` : `${formatNumber(cal, 5)} px/m`;
   if (setupPxPerM === null) {
     return {
       pxPerM: cal,
@@ -155,14 +149,14 @@ export function scaleInUse(setupPxPerM: number | null, record: ScaleRecord): { p
   }
   const stated = finite(record.tolerancePct) && record.tolerancePct > 0;
   const tolerance = stated ? (record.tolerancePct as number) : DEFAULT_SCALE_TOLERANCE_PCT;
-  const toleranceText = stated ? `tolerance ${fmt(tolerance, 3)} %` : `tolerance ${fmt(tolerance, 3)} %, the default: the record states none`;
+  const toleranceText = stated ? `tolerance ${formatNumber(tolerance, 3)} %` : `tolerance ${formatNumber(tolerance, 3)} %, the default: the record states none`;
   const differencePct = (100 * (setupPxPerM - cal)) / cal;
-  const setupText = `${fmt(setupPxPerM, 5)} px/m`;
+  const setupText = `${formatNumber(setupPxPerM, 5)} px/m`;
   if (Math.abs(differencePct) <= tolerance) {
     return {
       pxPerM: setupPxPerM,
       differencePct,
-      entry: notUsed("scale", id, `the view setup's scale ${setupText} agrees with the calibration's ${calText} within ${fmt(Math.abs(differencePct), 2)} % (${toleranceText}). ${SCALE_EFFECT}`),
+      entry: notUsed("scale", id, `the view setup's scale ${setupText} agrees with the calibration's ${calText} within ${formatNumber(Math.abs(differencePct), 2)} % (${toleranceText}). ${SCALE_EFFECT}`),
     };
   }
   return {
@@ -172,7 +166,7 @@ export function scaleInUse(setupPxPerM: number | null, record: ScaleRecord): { p
       kind: "scale",
       calibrationId: id,
       use: "flagged",
-      text: `scale calibration #${id}: flagged — the view setup's scale ${setupText} differs from the calibration's ${calText} by ${fmt(Math.abs(differencePct), 2)} % (${toleranceText}). The view setup's scale was kept: re-mark the scale on the setup page or check the camera's mount. ${SCALE_EFFECT}`,
+      text: `scale calibration #${id}: flagged — the view setup's scale ${setupText} differs from the calibration's ${calText} by ${formatNumber(Math.abs(differencePct), 2)} % (${toleranceText}). The view setup's scale was kept: re-mark the scale on the setup page or check the camera's mount. ${SCALE_EFFECT}`,
     },
   };
 }

@@ -1,3 +1,4 @@
+import { mean, sumNthPowerDeviations } from "simple-statistics";
 import { describe, expect, it } from "vitest";
 import { norrisCertified, norrisData } from "../../tests/fixtures/nist-strd-norris";
 import { CalibrationInputError, fitRateCalibration, frameRateFromTiming, scaleFromKnownLength, trueRateFromCalibration } from "./calibrations";
@@ -55,13 +56,13 @@ describe("trueRateFromCalibration", () => {
   const fit = fitRateCalibration(readings, 1);
   const line = { slope: fit.slope, intercept: fit.interceptRpm, slopeStdError: fit.slopeStdError, interceptStdError: fit.interceptStdErrorRpm, slopeInterceptCovariance: fit.slopeInterceptCovarianceRpm };
 
-  it("matches the textbook standard error of the mean response, s·√(1/n + (x₀ − x̄)²/Sxx)", () => {
+  it("matches the standard error of the mean response of a fitted line, s·√(1/n + (x₀ − x̄)²/Sxx) (Draper & Smith 1998, Applied Regression Analysis, 3rd ed.; from memory)", () => {
     const x = readings.map((r) => r.setRpm);
     const n = x.length;
-    const mean = x.reduce((s, v) => s + v, 0) / n;
-    const sxx = x.reduce((s, v) => s + (v - mean) ** 2, 0);
-    for (const x0 of [0, 7, mean, 25]) {
-      const expected = fit.residualSdRpm * Math.sqrt(1 / n + (x0 - mean) ** 2 / sxx);
+    const xMean = mean(x);
+    const sxx = sumNthPowerDeviations(x, 2);
+    for (const x0 of [0, 7, xMean, 25]) {
+      const expected = fit.residualSdRpm * Math.sqrt(1 / n + (x0 - xMean) ** 2 / sxx);
       const got = trueRateFromCalibration(line, x0);
       expect(relErr(got.stdErrorRpm, expected)).toBeLessThan(1e-9);
       expect(got.rpm).toBeCloseTo(fit.slope * x0 + fit.interceptRpm, 12);

@@ -1,3 +1,4 @@
+import { mean } from "simple-statistics";
 import { linearFit } from "./analysis/regression";
 import type { LabSettings } from "./settings";
 import type { EquipmentKind } from "./equipment";
@@ -94,7 +95,7 @@ export function fitRateCalibration(readings: readonly RateReading[], tolerancePc
     throw new CalibrationInputError("The readings need at least two different set rates to fit a line.", "readings");
   }
   const fit = linearFit(set, measured);
-  const meanSet = set.reduce((s, v) => s + v, 0) / set.length;
+  const meanSet = mean(set);
   // linearFit fits on centred x, where the slope and the centred intercept are uncorrelated;
   // intercept = b_c − slope·x̄, so cov(slope, intercept) = −x̄·var(slope).
   const covariance = -meanSet * fit.slopeSE * fit.slopeSE;

@@ -6,7 +6,8 @@ import type { RunListItem } from "~/.server/runs/queries";
 import { ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { VerdictTag } from "~/components/run-record/tags";
-import { formatDate, formatDateTime, formatNumber } from "~/lib/format";
+import { formatDate, formatDateTime } from "~/lib/format";
+import { formatNumber } from "~/lib/number-format";
 import { roleLabels } from "~/lib/roles";
 import { runFiltersToSearch } from "~/lib/validation/run-filters";
 

@@ -8,6 +8,7 @@ import { readdir, stat } from "node:fs/promises";
 import path from "node:path";
 import { compare } from "natural-orderby";
 import { runTheoryCheck } from "../../lib/analysis/check";
+import { omegaFromTableRate } from "../../lib/analysis/run-omega";
 import type { Track, TrackingSetup } from "../../lib/tracking/types";
 import { TrackingError } from "../tracking/errors";
 import { closeTrackingPool, trackFrameStack, type TrackFrameStackResult } from "../tracking/track-frame-stack";
@@ -27,7 +28,7 @@ async function frameFiles(dir: string): Promise<string[]> {
 
 /** Signed Ω, rad/s: counterclockwise seen from above is positive. */
 function omegaSet(args: AnalyzeArguments): number {
-  return ((args.direction === "ccw" ? 1 : -1) * 2 * Math.PI * args.rpm) / 60;
+  return omegaFromTableRate(args.rpm, args.direction);
 }
 
 /** The theory check on the longest track: the one place where tracking output meets the physics. */

@@ -3,7 +3,7 @@ import { Track, ViewSetup } from "../db";
 import { smallLab } from "../test-support";
 import { createRun } from "./service";
 import { checkRun, storedCheck } from "./theory";
-import { currentCheck } from "./provenance";
+import { currentCheck } from "./current-check";
 import { doneTrackingJob } from "./testing";
 import { getRunExport } from "./record";
 import { tracksCsv } from "./exports";

@@ -12,6 +12,7 @@ import {
   type FrameTimeCorrection,
 } from "~/lib/calibrations-applied";
 import { rpmToRadPerS } from "~/lib/analysis/units";
+import { omegaFromTableRate } from "~/lib/analysis/run-omega";
 
 export type RateInForce = { value: number; stdError: number; calibrationId: number } | null;
 
@@ -72,8 +73,7 @@ export async function calibrationsForCheck(run: Run, setupPxPerM: number | null)
     if (!line) out.calibrationsApplied.push(notUsed("rate", rate.id, "the record has no fitted line; f predicted is from the set rate, uncalibrated."));
     else {
       const { rpm, stdErrorRpm } = trueRateFromCalibration(line, run.setRateRpm);
-      const sign = run.direction === "cw" ? -1 : 1;
-      out.omegaCalibrated = { value: sign * rpmToRadPerS(rpm), stdError: rpmToRadPerS(stdErrorRpm), calibrationId: rate.id };
+      out.omegaCalibrated = { value: omegaFromTableRate(rpm, run.direction), stdError: rpmToRadPerS(stdErrorRpm), calibrationId: rate.id };
       out.calibrationsApplied.push(describeRate({ calibrationId: rate.id, setRpm: run.setRateRpm, trueRpm: rpm, stdErrorRpm }));
     }
   }

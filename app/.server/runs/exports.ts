@@ -1,14 +1,16 @@
 import { Run, Track, ViewSetup } from "../db";
-import { currentCheck } from "./provenance";
+import { currentCheck } from "./current-check";
 import { RunError } from "./service";
-import { parseTrackPoints, signedOmega } from "./theory";
+import { csvDocument, type CsvCell } from "../csv";
+import { parseTrackPoints } from "./theory";
+import { runOmega } from "~/lib/analysis/run-omega";
 import { trackToRotatingFrame, type ViewGeometry } from "~/lib/analysis/frames";
 import { runLabel } from "~/lib/runs";
 import { correctFrameTimes } from "~/lib/calibrations-applied";
 
-function csvNumber(v: number) {
+function csvNumber(v: number): CsvCell {
   // Enough digits for sub-pixel positions and millisecond times; no locale, no thousands separators.
-  return Number.isFinite(v) ? String(Number(v.toPrecision(10))) : "";
+  return Number.isFinite(v) ? String(Number(v.toPrecision(10))) : null;
 }
 
 /**
@@ -33,7 +35,7 @@ export async function tracksCsv(runId: number): Promise<{ filename: string; csv:
   }
   const setup = await ViewSetup.findOne({ where: { runId } });
   const { check } = await currentCheck(run);
-  let omega = signedOmega(run);
+  let omega = runOmega(run);
   let timeFactor = 1;
   let checkPxPerM: number | null = null;
   if (check) {
@@ -53,16 +55,20 @@ export async function tracksCsv(runId: number): Promise<{ filename: string; csv:
   const pxPerM = setup?.scalePxPerM || checkPxPerM;
   const view: ViewGeometry | null = setup && pxPerM ? { centre: { x: setup.centreXPx, y: setup.centreYPx }, pxPerM, mirrored: setup.mirrored } : null;
 
-  const lines = [view ? "track_id,t_s,x_px,y_px,x_m,y_m" : "track_id,t_s,x_px,y_px"];
+  const columns = view ? ["track_id", "t_s", "x_px", "y_px", "x_m", "y_m"] : ["track_id", "t_s", "x_px", "y_px"];
+  const rows: CsvCell[][] = [];
   for (const track of tracks) {
     const points = parseTrackPoints(track);
     const timed = timeFactor === 1 ? points : correctFrameTimes(points, timeFactor);
     const rotating = view && timed.length ? trackToRotatingFrame(timed, view, run.cameraMode, omega, timed[0].t) : null;
     points.forEach((p, i) => {
-      const cells = [String(track.id), csvNumber(p.t), csvNumber(p.x), csvNumber(p.y)];
-      if (rotating) cells.push(csvNumber(rotating[i].x), csvNumber(rotating[i].y));
-      lines.push(cells.join(","));
+      const cells: CsvCell[] = [track.id, csvNumber(p.t), csvNumber(p.x), csvNumber(p.y)];
+      if (rotating) {
+        const r = rotating[i];
+        cells.push(r ? csvNumber(r.x) : null, r ? csvNumber(r.y) : null);
+      }
+      rows.push(cells);
     });
   }
-  return { filename: `${runLabel(run.id)}-tracks.csv`, csv: `${lines.join("\r\n")}\r\n`, withMetres: Boolean(view) };
+  return { filename: `${runLabel(run.id)}-tracks.csv`, csv: csvDocument(columns, rows), withMetres: Boolean(view) };
 }

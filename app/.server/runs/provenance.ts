@@ -1,15 +1,14 @@
 import crypto from "node:crypto";
 import type { Transaction } from "sequelize";
-import { Equipment, Frame, Run, TheoryCheck, Track, TrackingJob, ViewSetup } from "../db";
+import { Equipment, Frame, type Run, type TheoryCheck, Track, TrackingJob, ViewSetup } from "../db";
 import { getLabSettings } from "../settings";
 import { calibrationSnapshot } from "./service";
 
 /**
- * What a theory check is computed from, and the one answer to "is this run's check current?".
- * The inputs are written as canonical JSON (keys sorted) and hashed; a check stores the hash and
- * the inputs themselves, and it is current only while the run's present inputs hash to the same
- * value. Every reader of a run's check (run page, report, export, API, sign-off) asks currentCheck.
- * Each reader takes an optional transaction: one that decides on the answer (sign-off) reads inside it.
+ * What a theory check is computed from: the inputs written as canonical JSON (keys sorted) and
+ * hashed. A check stores the hash and the inputs themselves; ./current-check compares them with
+ * the run's present inputs. Each reader takes an optional transaction: one that decides on the
+ * answer (sign-off) reads inside it.
  */
 
 function canonical(value: unknown): string {
@@ -129,18 +128,6 @@ export function checkHistoryValues(previous: TheoryCheck | null, check: Pick<The
   return { oldValue: `#${previous.id} ${previous.verdict}`, newValue: `#${check.id} ${check.verdict} (${why})` };
 }
 
-export type CheckStatus = "current" | "out_of_date" | "missing";
-
-export interface CurrentCheck {
-  status: CheckStatus;
-  /** The check to show and act on: set only when status is "current". */
-  check: TheoryCheck | null;
-  /** The newest check made, current or not. */
-  latest: TheoryCheck | null;
-  /** When out of date: which inputs changed since the latest check, in words. */
-  changed: string[];
-}
-
 /** The inputs a stored check recorded (see checkRun), or null for a check made before they were kept. */
 export function recordedInputs(check: Pick<TheoryCheck, "result">): unknown {
   try {
@@ -148,21 +135,4 @@ export function recordedInputs(check: Pick<TheoryCheck, "result">): unknown {
   } catch {
     return null;
   }
-}
-
-/**
- * The run's current theory check: the latest one, and only when it was computed from the run's
- * present inputs. A signed-off run keeps the check it was signed with: its inputs cannot change
- * any more, and a later lab setting does not reopen a signed verdict.
- */
-export async function currentCheck(runOrId: Run | number, transaction?: Transaction): Promise<CurrentCheck> {
-  const run = typeof runOrId === "number" ? await Run.findByPk(runOrId, { transaction }) : runOrId;
-  if (!run) return { status: "missing", check: null, latest: null, changed: [] };
-  const latest = await TheoryCheck.findOne({ where: { runId: run.id }, order: [["id", "DESC"]], transaction });
-  if (!latest) return { status: "missing", check: null, latest: null, changed: [] };
-  if (run.state === "signed_off") return { status: "current", check: latest, latest, changed: [] };
-  const { fingerprint, inputs } = await presentFingerprint(run, undefined, transaction);
-  if (fingerprint && latest.inputFingerprint === fingerprint) return { status: "current", check: latest, latest, changed: [] };
-  const changed = changedInputs(recordedInputs(latest), inputs);
-  return { status: "out_of_date", check: null, latest, changed: changed.length ? changed : ["tracks not made from the present frames and view setup"] };
 }

@@ -5,7 +5,7 @@ import { createApiToken } from "../auth/api-tokens";
 import { calibrationsInForce, calibrationsPastDueAt, createCalibration, signOffCalibration, toDayString } from "../calibrations";
 import { stopTrackingQueue } from "../jobs/tracking-queue";
 import { createRun, RunValidationError, updateRun } from "./service";
-import { currentCheck } from "./provenance";
+import { currentCheck } from "./current-check";
 import { whenRechecksIdle } from "./rechecks";
 import { storedCheck } from "./theory";
 import { checkedRunFor, runInput, seedRunLab, type RunLab } from "./testing";

@@ -3,7 +3,7 @@ import { Frame, migrate, Run, RunHistory, TheoryCheck, Track, TrackingJob, ViewS
 import { sessionStorage } from "../auth/session";
 import { setLabSetting } from "../settings";
 import { stopTrackingQueue, whenTrackingIdle } from "../jobs/tracking-queue";
-import { currentCheck } from "./provenance";
+import { currentCheck } from "./current-check";
 import { holdRechecks, inputsChanged, recheckUnfingerprinted, whenRechecksIdle } from "./rechecks";
 import { getRunDetail, getRunExport, signOffRun } from "./record";
 import { listRuns } from "./queries";

@@ -4,6 +4,7 @@ import { onBoot } from "../boot";
 import { enqueueTracking } from "../jobs/tracking-queue";
 import { checkRun } from "./theory";
 import { trackingFingerprint } from "./provenance";
+import { latestCheck } from "./current-check";
 
 /**
  * Re-runs what a change to a run's inputs needs, in the background: the fit alone for conditions,
@@ -102,7 +103,7 @@ export async function recheckUnfingerprinted() {
   for (const { runId } of legacy) {
     const [run, latest] = await Promise.all([
       Run.findByPk(runId, { attributes: ["id", "state"] }),
-      TheoryCheck.findOne({ where: { runId }, order: [["id", "DESC"]], attributes: ["id", "inputFingerprint"] }),
+      latestCheck(runId, { attributes: ["id", "inputFingerprint"] }),
     ]);
     if (!run || run.state === "signed_off" || !latest || latest.inputFingerprint !== null) continue;
     await Run.update({ verdict: null }, { where: { id: runId } });

@@ -4,7 +4,7 @@ import { Calibration, Equipment, Frame, Run, RunHistory, TheoryCheck, Track, Tra
 import { codeVersion } from "../version";
 import { serializeEquipment } from "../equipment";
 import { RunError, setRunState } from "./service";
-import { currentCheck, type CurrentCheck } from "./provenance";
+import { currentCheck, type CurrentCheck } from "./current-check";
 import { recheckPending } from "./rechecks";
 import type { CurrentUser } from "../auth/permissions";
 import { runLabel, runStateLabels, type RunState } from "~/lib/runs";

@@ -1,7 +1,7 @@
 import { Equipment, Run, Track, TrackingJob, User, ViewSetup } from "../db";
 import { createRun } from "./service";
 import { checkRun } from "./theory";
-import { rpmToRadPerS } from "~/lib/analysis/units";
+import { omegaFromTableRate } from "~/lib/analysis/run-omega";
 import { trackingFingerprint } from "./provenance";
 import type { CurrentUser } from "../auth/permissions";
 import type { Role } from "~/lib/roles";
@@ -76,7 +76,7 @@ export async function checkedRunFor(lab: RunLab, user: CurrentUser, overrides: R
   const pxPerM = 1000;
   await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: pxPerM, scalePoints: null, mirrored: false, createdById: user.id });
   const job = await doneTrackingJob(run, user.id, 180);
-  const f = 2 * rpmToRadPerS(trueRpm ?? run.setRateRpm) * (run.direction === "cw" ? -1 : 1);
+  const f = 2 * omegaFromTableRate(trueRpm ?? run.setRateRpm, run.direction);
   const points = Array.from({ length: 180 }, (_, i) => {
     const t = i / 30;
     return [t, centre.x + (0.02 + 0.07 * Math.cos(-f * t)) * pxPerM, centre.y - 0.07 * Math.sin(-f * t) * pxPerM, i];

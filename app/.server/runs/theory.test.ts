@@ -3,7 +3,7 @@ import { Equipment, Run, Track, ViewSetup } from "../db";
 import { smallLab } from "../test-support";
 import { createRun } from "./service";
 import { checkRun, rateInForce, storedCheck } from "./theory";
-import { currentCheck } from "./provenance";
+import { currentCheck } from "./current-check";
 import { doneTrackingJob } from "./testing";
 import { createCalibration, signOffCalibration, toDayString } from "../calibrations";
 import { rpmToRadPerS } from "~/lib/analysis/units";

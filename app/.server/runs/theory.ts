@@ -3,9 +3,10 @@ import { calibrationsForCheck } from "./applied-calibrations";
 import { getLabSettings } from "../settings";
 import { codeVersion } from "../version";
 import { runTheoryCheck, type TheoryCheckInput, type TheoryCheckResult } from "~/lib/analysis/check";
-import { rpmToRadPerS } from "~/lib/analysis/units";
+import { runOmega } from "~/lib/analysis/run-omega";
 import { setRunState } from "./service";
 import { checkHistoryValues, presentFingerprint } from "./provenance";
+import { latestCheck } from "./current-check";
 import { RunHistory } from "../db";
 
 // The rate lookup lives with the other calibrations the check applies.
@@ -13,10 +14,6 @@ export { rateInForce, type RateInForce } from "./applied-calibrations";
 
 export function parseTrackPoints(track: Track) {
   return (JSON.parse(track.points) as [number, number, number, number][]).map(([t, x, y, frameIndex]) => ({ t, x, y, frameIndex }));
-}
-
-export function signedOmega(run: Pick<Run, "setRateRpm" | "direction">) {
-  return rpmToRadPerS(run.setRateRpm) * (run.direction === "cw" ? -1 : 1);
 }
 
 /** Builds the theory-check input for a run's longest track: the same function the CLI and the browser call. */
@@ -35,7 +32,7 @@ export async function theoryInputFor(run: Run): Promise<{ input: TheoryCheckInpu
       pxPerM: applied.pxPerM,
       mirrored: setup.mirrored,
     },
-    omegaSet: signedOmega(run),
+    omegaSet: runOmega(run),
     omegaCalibrated: applied.omegaCalibrated,
     frameTimes: applied.frameTimes,
     calibrationsApplied: applied.calibrationsApplied,
@@ -70,7 +67,7 @@ export async function checkRun(runId: number, userId: number | null) {
   const result = runTheoryCheck(prepared.input);
   const { points, ...rest } = prepared.input;
   const stored = { result, input: { ...rest, trackId: prepared.track.id, pointCount: points.length }, provenance: { fingerprint, inputs } };
-  const previous = await TheoryCheck.findOne({ where: { runId }, order: [["id", "DESC"]] });
+  const previous = await latestCheck(runId);
   return sequelize.transaction(async (transaction) => {
     // Read again holding the run's lock: a sign-off may have committed while the fit ran, and a signed run keeps its check.
     await run.reload(locking(transaction));

@@ -5,7 +5,7 @@ import { createRun } from "../runs/service";
 import { receiveFrameFile } from "../uploads/frames";
 import { enqueueTracking, whenTrackingIdle } from "../jobs/tracking-queue";
 import { renderRunFrames, type SyntheticRunSpec } from "~/lib/tracking/synthetic";
-import { rpmToRadPerS } from "~/lib/analysis/units";
+import { omegaFromTableRate } from "~/lib/analysis/run-omega";
 
 interface DemoRun {
   table: string;
@@ -61,7 +61,7 @@ addDemoStep({
       );
       const when = new Date(reached.getTime() + 20 * 60_000);
       await Run.update({ createdAt: when, updatedAt: when }, { where: { id: run.id }, silent: true });
-      const omega = rpmToRadPerS(d.trueRpm ?? d.rpm) * (d.direction === "cw" ? -1 : 1);
+      const omega = omegaFromTableRate(d.trueRpm ?? d.rpm, d.direction);
       const centre = { x: W / 2 + 3.4, y: H / 2 - 2.1 };
       const tankRadiusPx = Math.min(W, H) / 2 - 12;
       const spec: SyntheticRunSpec = {

@@ -8,6 +8,7 @@ import { uploadLimits } from "~/lib/upload-limits";
 import { generatedName, runKey, store } from "../storage";
 import { discardStaged, readHead, stageBytes, UploadError, type StagedFile } from "./staging";
 import { setRunState } from "../runs/service";
+import { formatFixed } from "~/lib/number-format";
 
 export interface AcceptedFrame {
   name: string;
@@ -33,7 +34,7 @@ export const frameContentTypes: Record<string, string> = { jpeg: "image/jpeg", p
 export { UploadError };
 
 function frameTooLarge(bytes: number) {
-  return new UploadError(`The file is ${(bytes / 1e6).toFixed(1)} MB; one frame may be at most ${uploadLimits.maxFrameBytes / 1024 / 1024} MB.`, 413, "too_large");
+  return new UploadError(`The file is ${formatFixed(bytes / 1e6, 1)} MB; one frame may be at most ${uploadLimits.maxFrameBytes / 1024 / 1024} MB.`, 413, "too_large");
 }
 
 /**

@@ -1,6 +1,7 @@
 import { CartesianGrid, Legend, Line, LineChart, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis, ZAxis } from "recharts";
 import type { TheoryCheckResult } from "~/lib/analysis/check";
 import { imageToTable } from "~/lib/analysis/frames";
+import { formatNumber } from "~/lib/number-format";
 
 /** Plot colours: the app's teal for data, amber for fits, ink for theory; each series also has a legend word. */
 const colours = { data: "#0c6a72", second: "#8f2318", fit: "#c27c00", theory: "#13202b" };
@@ -37,7 +38,7 @@ function niceTicks([lo, hi]: [number, number], count = 6): number[] {
   return out;
 }
 
-const tick = (v: number) => Number(v.toPrecision(3)).toString();
+const tick = (v: number) => formatNumber(v, 3);
 
 function PlotFrame({ title, caption, children, square }: { title: string; caption: string; children: React.ReactElement; square?: boolean }) {
   return (

@@ -1,6 +1,6 @@
 import type { StoredCheckView } from "./types";
 import { TheoryPlots } from "~/components/plots/theory-plots";
-import { formatNumber } from "~/lib/format";
+import { formatNumber } from "~/lib/number-format";
 import { CalibrationsAppliedList } from "./calibrations-applied-list";
 
 const verdictWords = { agrees: "Agrees with theory", disagrees: "Disagrees with theory", inconclusive: "Inconclusive" } as const;

@@ -2,6 +2,7 @@ import { useRef, useState, type MouseEvent } from "react";
 import { circleThroughThreePoints, distance, type Point } from "~/lib/geometry";
 import { Button } from "~/components/ui/button";
 import { TextField } from "~/components/ui/field";
+import { formatFixed } from "~/lib/number-format";
 
 export interface SetupValues {
   centre: Point | null;
@@ -112,7 +113,7 @@ export function ViewSetupEditor({ imageUrl, width, height, initial, errors }: { 
           <input type="hidden" name="scaleLengthPx" value={scalePx === null ? "" : String(scalePx)} />
           <input type="hidden" name="scalePoints" value={v.scalePoints ? JSON.stringify(v.scalePoints) : ""} />
           <p className="text-muted">
-            {pxPerM ? `${(pxPerM / 100).toFixed(2)} px per cm (${pxPerM.toFixed(1)} px/m)` : "No scale: speeds and radii stay in pixels; f does not need one."}
+            {pxPerM ? `${formatFixed(pxPerM / 100, 2)} px per cm (${formatFixed(pxPerM, 1)} px/m)` : "No scale: speeds and radii stay in pixels; f does not need one."}
           </p>
         </fieldset>
         <label className="flex min-h-12 items-center gap-3 font-bold">

@@ -1,7 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { runTheoryCheck, type TheoryCheckInput } from "./check";
 import { frameTimeCorrection } from "../calibrations-applied";
-import { defaultView, inertialTrack, repeatableRandom } from "../../../tests/fixtures/inertial-tracks";
+import { defaultView, inertialTrack } from "../../../tests/fixtures/inertial-tracks";
+import { seededRandom } from "../random";
 
 const OMEGA = 1.1;
 const NOMINAL_FPS = 30;
@@ -10,7 +11,7 @@ const TRUE_FPS = 30.6;
 
 /** A track filmed at the true rate, stamped with the camera's own (wrong) times i/30. */
 function fastClockTrack(cameraMode: "rotating" | "lab", seed: number) {
-  const filmed = inertialTrack({ omega: OMEGA, fps: TRUE_FPS, duration: 6, drag: 0.03, noisePx: 0.3, cameraMode, random: repeatableRandom(seed) });
+  const filmed = inertialTrack({ omega: OMEGA, fps: TRUE_FPS, duration: 6, drag: 0.03, noisePx: 0.3, cameraMode, random: seededRandom(seed) });
   return filmed.map((p, i) => ({ ...p, t: i / NOMINAL_FPS }));
 }
 

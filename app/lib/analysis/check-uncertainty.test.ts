@@ -3,10 +3,12 @@
  * model, and the three inputs that must give no confident interval at all. The rendered stacks
  * that go through detection itself are in app/.server/tracking/theory-on-rendered-stacks.test.ts.
  */
+import { mean } from "simple-statistics";
 import { describe, expect, it } from "vitest";
 import { runTheoryCheck, type TheoryCheckInput } from "./check";
 import { Z95 } from "./decision";
-import { gaussian, inertialTrack, repeatableRandom } from "../../../tests/fixtures/inertial-tracks";
+import { inertialTrack } from "../../../tests/fixtures/inertial-tracks";
+import { gaussian, seededRandom } from "../random";
 
 // 10 rpm counterclockwise, co-rotating camera, a 640×360 view at 700 px/m, 30 fps.
 const OMEGA = (10 * 2 * Math.PI) / 60;
@@ -53,7 +55,7 @@ function check(points: TheoryCheckInput["points"]) {
 
 function summary(z: number[]) {
   return {
-    mean: z.reduce((a, b) => a + b, 0) / z.length,
+    mean: mean(z),
     coverage: z.filter((v) => Math.abs(v) <= Z95).length / z.length,
   };
 }
@@ -65,7 +67,7 @@ describe("honest uncertainty with the detector's error model (Monte Carlo, seeds
   ] as const)(
     "%s at image noise σ = 2–12 grey levels: mean (f − truth)/s within ±0.3, 95% interval covering 90–99% of 200 tracks",
     (_, seed, shortest, longest) => {
-      const random = repeatableRandom(seed);
+      const random = seededRandom(seed);
       const z: number[] = [];
       for (let i = 0; i < 200; i++) {
         const frames = shortest + Math.floor((longest - shortest + 1) * random());
@@ -85,7 +87,7 @@ describe("honest uncertainty with the detector's error model (Monte Carlo, seeds
 
 describe("tracks that cannot give f honestly: inconclusive, with the reason, and no interval", () => {
   const track = (opts: { frames: number; noisePx: number; seed: number; drop?: number }) => {
-    const random = repeatableRandom(opts.seed);
+    const random = seededRandom(opts.seed);
     const dropFrames = new Set<number>();
     for (let i = 1; i < opts.frames - 1; i++) if (random() < (opts.drop ?? 0)) dropFrames.add(i);
     return inertialTrack({

@@ -2,9 +2,10 @@ import { describe, expect, it } from "vitest";
 import { measureOmegaFromMark, runTheoryCheck } from "./check";
 import type { TheoryCheckInput } from "./check";
 import { rotatingFrameToImage } from "./frames";
-import { omegaFromTableRate } from "./units";
+import { omegaFromTableRate } from "./run-omega";
 import type { InertialTrackSpec } from "../../../tests/fixtures/inertial-tracks";
-import { defaultView, gaussian, inertialTrack, repeatableRandom } from "../../../tests/fixtures/inertial-tracks";
+import { defaultView, inertialTrack } from "../../../tests/fixtures/inertial-tracks";
+import { gaussian, seededRandom } from "../random";
 
 function checkOf(spec: InertialTrackSpec, extra: Partial<TheoryCheckInput> = {}) {
   return runTheoryCheck({
@@ -32,7 +33,7 @@ describe("theory check on analytic inertial motions with tracking noise", () => 
           duration: 7,
           startTime: 12.5,
           noisePx: 0.4,
-          random: repeatableRandom(cases.length + 11),
+          random: seededRandom(cases.length + 11),
         });
       }
     }
@@ -47,7 +48,7 @@ describe("theory check on analytic inertial motions with tracking noise", () => 
     start: { x: -0.15, y: 0.1 },
     velocity: { x: 0.06, y: 0.02 },
     noisePx: 0.4,
-    random: repeatableRandom(99),
+    random: seededRandom(99),
   });
 
   for (const c of cases) {
@@ -152,7 +153,7 @@ describe("the rate in force", () => {
 
 describe("honest uncertainty (Monte Carlo)", () => {
   it("the 95% interval f ± 1.96·SE holds the true f between 90% and 99% of the time over 300 noisy tracks", () => {
-    const random = repeatableRandom(20240611);
+    const random = seededRandom(20240611);
     const normal = gaussian(random);
     const trials = 300;
     let covered = 0;
@@ -207,7 +208,7 @@ describe("bad input: inconclusive with a reason, never a throw", () => {
   it("all points collinear", () => {
     const line = Array.from({ length: 200 }, (_, i) => ({ t: i / 30, x: 300 + 2 * i, y: 200 + i }));
     expectInconclusive({ ...base, points: line }, /straight line/);
-    const normal = gaussian(repeatableRandom(3));
+    const normal = gaussian(seededRandom(3));
     const noisyLine = line.map((p) => ({ ...p, x: p.x + 0.3 * normal(), y: p.y + 0.3 * normal() }));
     expectInconclusive({ ...base, points: noisyLine }, /straight line/);
   });
@@ -293,7 +294,7 @@ describe("bad input: inconclusive with a reason, never a throw", () => {
 describe("Ω measured from a mark on the table (lab-fixed camera)", () => {
   const centre = { x: 640, y: 360 };
   const mark = (omega: number, mirrored: boolean, noise: number) => {
-    const normal = gaussian(repeatableRandom(5));
+    const normal = gaussian(seededRandom(5));
     return Array.from({ length: 240 }, (_, i) => {
       const t = 4 + i / 30;
       const a = 0.3 + omega * (t - 4);

@@ -3,14 +3,16 @@
  * force? One function for the worker, the command line and the browser. It never throws: any
  * input it cannot judge honestly gives the verdict "inconclusive" with the reason in words.
  */
+import { mean } from "simple-statistics";
 import { fitCircle } from "./circle-fit";
 import { fitCoriolis, inertialPeriodFromAngle, predictedRadius, turningRate } from "./coriolis-fit";
 import type { CameraMode, TimedPoint, ViewGeometry } from "./frames";
 import { imageToTable, reRotate, rotatingFrameToImage, trackToRotatingFrame } from "./frames";
 import { DECISION_RULE, decide, Z95 } from "./decision";
-import { fmt, percentRange } from "./format";
+import { formatFixed, formatNumber, formatWithError, percentRange } from "../number-format";
 import { linearFit } from "./regression";
 import { correctFrameTimes, type AppliedCalibration, type FrameTimeCorrection } from "../calibrations-applied";
+import { unwrapAngles } from "./angles";
 import {
   chooseWindow,
   DEFAULT_POLY_ORDER,
@@ -149,15 +151,8 @@ export const MAX_VELOCITY_NOISE_SHARE = 1 / 32;
 const MAX_LEFT_OUT_FRACTION = 0.2;
 
 
-/** A value with its standard error, both to the standard error's second significant digit. */
-function withError(value: number, se: number): string {
-  if (!(se > 0) || !Number.isFinite(se)) return fmt(value, 4);
-  const decimals = Math.min(12, Math.max(0, 1 - Math.floor(Math.log10(se))));
-  return `${value.toFixed(decimals)} ± ${se.toFixed(decimals)}`;
-}
-
 function pct(fraction: number, digits = 2): string {
-  return `${fmt(100 * fraction, digits)}%`;
+  return `${formatNumber(100 * fraction, digits)}%`;
 }
 
 const isFiniteNumber = (v: unknown): v is number => typeof v === "number" && Number.isFinite(v);
@@ -165,8 +160,8 @@ const isFiniteNumber = (v: unknown): v is number => typeof v === "number" && Num
 /** Spread of points along and across their main direction (principal axes). */
 function principalSpread(points: readonly { x: number; y: number }[]): { major: number; minor: number } {
   const n = points.length;
-  const mx = points.reduce((s, p) => s + p.x, 0) / n;
-  const my = points.reduce((s, p) => s + p.y, 0) / n;
+  const mx = mean(points.map((p) => p.x));
+  const my = mean(points.map((p) => p.y));
   let sxx = 0;
   let syy = 0;
   let sxy = 0;
@@ -178,9 +173,9 @@ function principalSpread(points: readonly { x: number; y: number }[]): { major: 
   sxx /= n;
   syy /= n;
   sxy /= n;
-  const mean = (sxx + syy) / 2;
+  const halfTrace = (sxx + syy) / 2;
   const d = Math.sqrt(((sxx - syy) / 2) ** 2 + sxy * sxy);
-  return { major: Math.sqrt(Math.max(0, mean + d)), minor: Math.sqrt(Math.max(0, mean - d)) };
+  return { major: Math.sqrt(Math.max(0, halfTrace + d)), minor: Math.sqrt(Math.max(0, halfTrace - d)) };
 }
 
 export function runTheoryCheck(input: TheoryCheckInput): TheoryCheckResult {
@@ -330,14 +325,14 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   const framesPerPeriod = inertialPeriod / frameInterval;
   if (!(framesPerPeriod >= MIN_FRAMES_PER_PERIOD)) {
     return inconclusive(
-      `The frames are ${fmt(frameInterval)} s apart, only ${fmt(framesPerPeriod, 2)} frames per inertial period of ${fmt(inertialPeriod)} s: at least ${MIN_FRAMES_PER_PERIOD} are needed to follow the turning (film faster or run the table slower).`,
+      `The frames are ${formatNumber(frameInterval, 3)} s apart, only ${formatNumber(framesPerPeriod, 2)} frames per inertial period of ${formatNumber(inertialPeriod, 3)} s: at least ${MIN_FRAMES_PER_PERIOD} are needed to follow the turning (film faster or run the table slower).`,
       base,
     );
   }
   const duration = points[points.length - 1]!.t - points[0]!.t;
   if (duration < MIN_PERIOD_FRACTION * inertialPeriod) {
     return inconclusive(
-      `The track lasts ${fmt(duration)} s, ${pct(duration / inertialPeriod, 2)} of an inertial period (${fmt(inertialPeriod)} s): at least ${pct(MIN_PERIOD_FRACTION, 2)} is needed to see the turning.`,
+      `The track lasts ${formatNumber(duration, 3)} s, ${pct(duration / inertialPeriod, 2)} of an inertial period (${formatNumber(inertialPeriod, 3)} s): at least ${pct(MIN_PERIOD_FRACTION, 2)} is needed to see the turning.`,
       base,
     );
   }
@@ -381,13 +376,13 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   const noiseFloor = 3 * Math.max(noise, 1e-9 * rotSpread.major);
   if (imageSpread.major <= 3 * Math.max(noisePx, 1e-9) || rotSpread.major <= noiseFloor) {
     return inconclusive(
-      `The tracer barely moves (spread ${fmt(imageSpread.major)} px against tracking noise of ${fmt(noisePx)} px): there is no motion to check.`,
+      `The tracer barely moves (spread ${formatNumber(imageSpread.major, 3)} px against tracking noise of ${formatNumber(noisePx, 3)} px): there is no motion to check.`,
       withSettings,
     );
   }
   if (rotSpread.minor <= noiseFloor) {
     return inconclusive(
-      `All points lie on a straight line in the rotating frame (within the tracking noise of ${fmt(noisePx)} px): there is no turning to measure. A free tracer on a turning table follows a curved path; check that it was free to move and that the track is the tracer's.`,
+      `All points lie on a straight line in the rotating frame (within the tracking noise of ${formatNumber(noisePx, 3)} px): there is no turning to measure. A free tracer on a turning table follows a curved path; check that it was free to move and that the track is the tracer's.`,
       withSettings,
     );
   }
@@ -398,7 +393,7 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   }
   if (!(fit.velocityNoiseShare <= MAX_VELOCITY_NOISE_SHARE)) {
     return inconclusive(
-      `The track is too noisy for its speed: tracking noise of ${fmt(noisePx)} px makes up ${pct(fit.velocityNoiseShare, 2)} of the measured velocities' spread (at most ${pct(MAX_VELOCITY_NOISE_SHARE, 2)} gives an uncertainty that can be trusted). A faster tracer, a longer track or steadier tracking (a brighter tracer, less image noise) would help.`,
+      `The track is too noisy for its speed: tracking noise of ${formatNumber(noisePx, 3)} px makes up ${pct(fit.velocityNoiseShare, 2)} of the measured velocities' spread (at most ${pct(MAX_VELOCITY_NOISE_SHARE, 2)} gives an uncertainty that can be trusted). A faster tracer, a longer track or steadier tracking (a brighter tracer, less image noise) would help.`,
       withSettings,
     );
   }
@@ -445,7 +440,7 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
       rmsResidualPx: circleFit.rmsResidual * pxPerUnit,
     };
   }
-  const meanSpeed = samples.reduce((s, p) => s + Math.hypot(p.u, p.v), 0) / samples.length;
+  const meanSpeed = mean(samples.map((p) => Math.hypot(p.u, p.v)));
   const predictedRadiusM = view.pxPerM === null ? null : predictedRadius(meanSpeed, fPredicted);
 
   const series = { rotating, lab, accelFit, angle: angleFit?.angles ?? [], residuals };
@@ -470,8 +465,8 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   const diff = fMeasured - fPredicted;
   const rateWords = omegaSource === "rate calibration" ? "the rate calibration in force" : "the set rate (uncalibrated)";
   const decimals = Math.min(12, Math.max(0, 1 - Math.floor(Math.log10(fStdError))));
-  const predictedText = fPredictedStdError > 0 ? withError(fPredicted, fPredictedStdError) : fPredicted.toFixed(decimals);
-  const numbers = `f measured ${withError(fMeasured, fStdError)} s⁻¹, f predicted ${predictedText} s⁻¹ from ${rateWords}`;
+  const predictedText = fPredictedStdError > 0 ? formatWithError(fPredicted, fPredictedStdError) : formatFixed(fPredicted, decimals);
+  const numbers = `f measured ${formatWithError(fMeasured, fStdError)} s⁻¹, f predicted ${predictedText} s⁻¹ from ${rateWords}`;
   const notes: string[] = [];
   if (nLeftOut > 0) notes.push(`${nLeftOut} point${nLeftOut === 1 ? " was" : "s were"} left out for a missing or repeated frame time or position.`);
   if (isFiniteNumber(fit.dragStdError) && fit.drag < -2 * fit.dragStdError) {
@@ -479,7 +474,7 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   }
   if (timing) {
     notes.push(
-      `Frame times were multiplied by ${timeFactor.toFixed(5)} from the timing check in force${timing.calibrationId !== null && timing.calibrationId !== undefined ? ` (#${timing.calibrationId})` : ""}; its uncertainty is part of f measured's standard error.`,
+      `Frame times were multiplied by ${formatFixed(timeFactor, 5)} from the timing check in force${timing.calibrationId !== null && timing.calibrationId !== undefined ? ` (#${timing.calibrationId})` : ""}; its uncertainty is part of f measured's standard error.`,
     );
   }
   const withNotes = (text: string) => [text, ...notes].join(" ");
@@ -547,22 +542,10 @@ export function measureOmegaFromMark(
     if (!(minRadius >= 2)) {
       return none("The mark passes within 2 px of the rotation centre, where its angle cannot be read.", pts.length);
     }
-    const angles: number[] = [];
-    let offset = 0;
-    let previous = Number.NaN;
-    for (const p of table) {
-      const a = Math.atan2(p.y, p.x);
-      if (Number.isFinite(previous)) {
-        const d = a - previous;
-        if (d > Math.PI) offset -= 2 * Math.PI;
-        else if (d < -Math.PI) offset += 2 * Math.PI;
-      }
-      previous = a;
-      angles.push(a + offset);
-    }
+    const angles = unwrapAngles(table.map((p) => Math.atan2(p.y, p.x)));
     const turns = (angles[angles.length - 1]! - angles[0]!) / (2 * Math.PI);
     if (Math.abs(turns) < 0.05) {
-      return none(`The mark turns only ${fmt(Math.abs(turns) * 360, 2)}° over the track: too little to measure the rate.`, pts.length, turns);
+      return none(`The mark turns only ${formatNumber(Math.abs(turns) * 360, 2)}° over the track: too little to measure the rate.`, pts.length, turns);
     }
     const fit = linearFit(
       pts.map((p) => p.t),

@@ -5,7 +5,6 @@ import {
   inertialPeriodFromAngle,
   predictedRadius,
   straightLaunchDeflection,
-  unwrapAngles,
 } from "./coriolis-fit";
 import { chooseWindow, smoothTrack } from "./savgol";
 import type { InertialTrackSpec } from "../../../tests/fixtures/inertial-tracks";
@@ -83,10 +82,6 @@ describe("inertial kinematics", () => {
       expect(angle.f).toBeCloseTo(2 * omega, 6);
       expect(deflectionSense(angle.rate)).toBe(omega > 0 ? "right" : "left");
     }
-  });
-
-  it("unwraps angles across ±π", () => {
-    expect(unwrapAngles([3, -3, -2.5, 3.1])).toEqual([3, -3 + 2 * Math.PI, -2.5 + 2 * Math.PI, 3.1]);
   });
 
   it("predicts the radius |V|/|f| and the straight-launch deflection R − √(R² − L²) ≈ f L²/(2V) (circle geometry, common practice)", () => {

@@ -7,6 +7,7 @@
  */
 import { leastSquares, linearFit } from "./regression";
 import type { SmoothedSample } from "./savgol";
+import { unwrapAngles } from "./angles";
 
 export interface CoriolisFitOptions {
   /** Ω² (s⁻²) on a flat table, 0 otherwise. */
@@ -281,21 +282,6 @@ function correctForFilterGain(
   }
   if (!Number.isFinite(lamRe) || !Number.isFinite(lamIm)) return null;
   return { f: -lamIm, drag: -lamRe, varianceScale: 1 / (rRe * rRe + rIm * rIm) };
-}
-
-/** Angles unwrapped so successive values never jump by more than π. */
-export function unwrapAngles(angles: readonly number[]): number[] {
-  const out: number[] = [];
-  let offset = 0;
-  for (let i = 0; i < angles.length; i++) {
-    if (i > 0) {
-      const d = angles[i]! - angles[i - 1]!;
-      if (d > Math.PI) offset -= 2 * Math.PI;
-      else if (d < -Math.PI) offset += 2 * Math.PI;
-    }
-    out.push(angles[i]! + offset);
-  }
-  return out;
 }
 
 export interface TurningRate {

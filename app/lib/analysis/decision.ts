@@ -7,7 +7,7 @@
  * "inconclusive", with how much smaller s would have to be to decide.
  */
 import type { TheoryVerdict } from "./check";
-import { fmt } from "./format";
+import { formatNumber } from "../number-format";
 
 
 /** Two-sided 95 % normal quantile. */
@@ -58,7 +58,7 @@ export function decide(input: { d: number; s: number; tolerance: number; wrongSe
     verdict: "inconclusive",
     low,
     high,
-    advice: `The standard error would have to be ${fmt(factor, 3)}× smaller to decide: a track about ${fmt(lengthFactor, 3)}× longer at the same frame rate${framesText}, or tracking noise ${fmt(factor, 3)}× smaller, should do it.`,
+    advice: `The standard error would have to be ${formatNumber(factor, 3)}× smaller to decide: a track about ${formatNumber(lengthFactor, 3)}× longer at the same frame rate${framesText}, or tracking noise ${formatNumber(factor, 3)}× smaller, should do it.`,
   };
 }
 

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { chooseWindow, positionNoise, savitzkyGolayCoefficients, smoothTrack, typicalFrameInterval } from "./savgol";
-import { gaussian, repeatableRandom } from "../../../tests/fixtures/inertial-tracks";
+import { gaussian, seededRandom } from "../random";
 
 const expectWeights = (actual: number[], numerators: number[], denominator: number) => {
   expect(actual).toHaveLength(numerators.length);
@@ -87,7 +87,7 @@ describe("smoothing a track on its own frame times", () => {
   });
 
   it("estimates the tracking noise it smooths away", () => {
-    const normal = gaussian(repeatableRandom(7));
+    const normal = gaussian(seededRandom(7));
     const pts = Array.from({ length: 600 }, (_, i) => {
       const p = path(i * dt);
       return { t: i * dt, x: p.x + 0.002 * normal(), y: p.y + 0.002 * normal() };

@@ -8,6 +8,7 @@
  * resampling that would invent positions. A window that spans a long gap is refused, so no
  * estimate ever bridges a lost stretch of track.
  */
+import { median } from "simple-statistics";
 import type { TimedPoint } from "./frames";
 import { qrFactorise } from "./regression";
 
@@ -111,10 +112,7 @@ export function typicalFrameInterval(times: readonly number[]): number {
     const dt = times[i]! - times[i - 1]!;
     if (dt > 0) d.push(dt);
   }
-  if (d.length === 0) return Number.NaN;
-  d.sort((a, b) => a - b);
-  const mid = Math.floor(d.length / 2);
-  return d.length % 2 === 1 ? d[mid]! : (d[mid - 1]! + d[mid]!) / 2;
+  return d.length === 0 ? Number.NaN : median(d);
 }
 
 export interface SmoothingWeights {

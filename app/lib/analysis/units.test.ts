@@ -3,7 +3,6 @@ import {
   coriolisAcceleration,
   coriolisParameter,
   EARTH_ROTATION_RATE,
-  omegaFromTableRate,
   ONE_TURN_PER_DAY,
   radPerSToRpm,
   rpmToRadPerS,
@@ -15,17 +14,6 @@ describe("rates", () => {
     expect(rpmToRadPerS(30)).toBeCloseTo(Math.PI, 14);
     expect(rpmToRadPerS(60)).toBeCloseTo(2 * Math.PI, 14);
     expect(radPerSToRpm(rpmToRadPerS(9.55))).toBeCloseTo(9.55, 12);
-  });
-
-  it("signs the rate by direction: clockwise seen from above is negative", () => {
-    expect(omegaFromTableRate(10, "ccw")).toBeCloseTo(1.0471975511965976, 14);
-    expect(omegaFromTableRate(10, "cw")).toBeCloseTo(-1.0471975511965976, 14);
-    expect(omegaFromTableRate(0, "cw")).toBe(0);
-  });
-
-  it("treats a negative or missing rpm as no usable rate", () => {
-    expect(Number.isNaN(omegaFromTableRate(-5, "ccw"))).toBe(true);
-    expect(Number.isNaN(omegaFromTableRate(Number.NaN, "ccw"))).toBe(true);
   });
 });
 

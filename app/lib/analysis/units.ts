@@ -23,20 +23,6 @@ export function radPerSToRpm(omega: number): number {
   return (60 * omega) / (2 * Math.PI);
 }
 
-/**
- * Signed Ω from a table's rate as the technician logs it: a rate in rpm and a direction.
- * A negative or non-finite rpm is a contradictory entry (the direction carries the sign), so it
- * gives NaN, which every downstream check treats as "no usable rate".
- */
-export function omegaFromTableRate(rpm: number, sense: RotationSense): number {
-  if (!Number.isFinite(rpm) || rpm < 0) return Number.NaN;
-  if (sense !== "ccw" && sense !== "cw") return Number.NaN;
-  const omega = rpmToRadPerS(rpm);
-  // A table at rest has no direction: plain zero, never −0 (which would print as "−0").
-  if (omega === 0) return 0;
-  return sense === "cw" ? -omega : omega;
-}
-
 export function degreesToRadians(deg: number): number {
   return (deg * Math.PI) / 180;
 }

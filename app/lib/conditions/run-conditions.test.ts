@@ -102,7 +102,7 @@ describe("inertial period and Rossby number", () => {
     expect(Number.isNaN(inertialPeriod(0))).toBe(true);
   });
 
-  it("Ro = U/(|f|L)", () => {
+  it("Ro = U/(|f|L) (common practice)", () => {
     expect(rossbyNumber(0.01, -2, 0.1)).toBeCloseTo(0.05, 15);
     expect(Number.isNaN(rossbyNumber(0.01, 0, 0.1))).toBe(true);
   });

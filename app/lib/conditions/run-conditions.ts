@@ -6,6 +6,7 @@
  * (shown as a dash), never an exception, because these run on every keystroke.
  */
 import { radPerSToRpm, STANDARD_GRAVITY } from "../analysis/units";
+import { formatNumber } from "../number-format";
 
 /** Temperatures (°C) over which both water correlations below are published as valid. */
 export const WATER_TEMPERATURE_RANGE = { min: 0, max: 40 } as const;
@@ -150,7 +151,7 @@ export const LARGE_DROP_FRACTION = 0.5;
 const DEFER = "These limits are guides: the lab's own safety rules and the equipment maker's instructions come first.";
 
 function mm(metres: number): string {
-  return `${Number((metres * 1000).toPrecision(3))} mm`;
+  return `${formatNumber(metres * 1000, 3)} mm`;
 }
 
 export interface CautionInput {
@@ -177,8 +178,8 @@ export function cautions(input: CautionInput): Caution[] {
   const rpm = Math.abs(radPerSToRpm(omega));
   const max = input.maxRateRpm;
   if (max !== null && max !== undefined && positive(max)) {
-    const rateText = `${Number(rpm.toPrecision(3))} rpm`;
-    const maxText = `${Number(max.toPrecision(3))} rpm`;
+    const rateText = `${formatNumber(rpm, 3)} rpm`;
+    const maxText = `${formatNumber(max, 3)} rpm`;
     if (rpm > max) {
       out.push({
         kind: "above-maximum-rate",

@@ -1,3 +1,4 @@
+import { mean } from "simple-statistics";
 import { createRequire } from "node:module";
 import { afterAll, describe, expect, it } from "vitest";
 import { backgroundSampleIndices, medianBackground } from "./background";
@@ -126,8 +127,8 @@ describe("what is not a tracer", () => {
   it("reports a dye patch as elongated and a float as round", () => {
     const dye = detectStack({ ...stackSpec("rotating", [dyeTracer()]), frames: 10 }, { tracer: "dye" }).perFrame.flat();
     const float = detectStack({ ...stackSpec("rotating", [floatTracer()]), frames: 10 }, { tracer: "float" }).perFrame.flat();
-    const mean = (ds: Detection[]) => ds.reduce((s, d) => s + d.roundness, 0) / ds.length;
-    expect(mean(float)).toBeGreaterThan(0.8);
-    expect(mean(dye)).toBeLessThan(mean(float) - 0.1);
+    const roundness = (ds: Detection[]) => mean(ds.map((d) => d.roundness));
+    expect(roundness(float)).toBeGreaterThan(0.8);
+    expect(roundness(dye)).toBeLessThan(roundness(float) - 0.1);
   });
 });

@@ -1,4 +1,5 @@
 import type { DyeColour, TrackingSetup } from "./types";
+import { formatFixed } from "../number-format";
 
 /** The rectangle of the frame that is decoded and searched, full-frame px. */
 export interface CropBox {
@@ -71,7 +72,7 @@ export function planDetection(
     const bottom = Math.min(frameHeight, Math.ceil(cy + r) + 1);
     if (right - left < 8 || bottom - top < 8) {
       throw new ViewSetupError(
-        `The tank edge (centre ${cx.toFixed(0)}, ${cy.toFixed(0)}, radius ${r.toFixed(0)} px) lies outside the ${frameWidth}×${frameHeight} frame.`,
+        `The tank edge (centre ${formatFixed(cx, 0)}, ${formatFixed(cy, 0)}, radius ${formatFixed(r, 0)} px) lies outside the ${frameWidth}×${frameHeight} frame.`,
       );
     }
     crop = { left, top, width: right - left, height: bottom - top };

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { seededRandom } from "./synthetic";
+import { seededRandom } from "../random";
 import { trackingQuality, trackJitter } from "./quality";
 import type { FrameDetections, Track, TrackPoint } from "./types";
 

@@ -3,6 +3,7 @@
  * scatter of each track about a local quadratic in time (7 points), which smooth motion follows
  * closely and centroid noise does not.
  */
+import { mean } from "simple-statistics";
 import type { FrameDetections, Track, TrackPoint, TrackQuality, TrackingQuality } from "./types";
 
 const window = 7;
@@ -45,7 +46,7 @@ function residuals(points: readonly TrackPoint[]): { sum: number; count: number 
   for (let i = 0; i < n; i++) {
     const start = Math.max(0, Math.min(n - size, i - (size >> 1)));
     const win = points.slice(start, start + size);
-    const tMean = win.reduce((s, p) => s + p.t, 0) / size;
+    const tMean = mean(win.map((p) => p.t));
     const span = Math.max(1e-9, Math.max(...win.map((p) => Math.abs(p.t - tMean))));
     const u = win.map((p) => (p.t - tMean) / span);
     const s = [0, 0, 0, 0, 0];

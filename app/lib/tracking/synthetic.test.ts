@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { createSyntheticRenderer, pathPosition, tracerPosition, type SyntheticRunSpec } from "./synthetic";
+import { wrapAngle } from "../analysis/angles";
 
 const omega = 1.5;
 const base: SyntheticRunSpec = {
@@ -28,17 +29,13 @@ function angleFromAbove(p: { x: number; y: number }, c: { x: number; y: number }
   return Math.atan2(-(p.y - c.y), p.x - c.x);
 }
 
-function unwrap(a: number): number {
-  return Math.atan2(Math.sin(a), Math.cos(a));
-}
-
 describe("synthetic frame stacks (right-handed frame seen from above, image y down: common practice)", () => {
   it("draws an inertial circle clockwise seen from above for Ω > 0, one turn per π/Ω", () => {
     const path = base.tracers[0].path;
     const circleCentre = { x: 80 + 0.01 * 400, y: 60 + 0.02 * 400 };
     const a0 = angleFromAbove(tracerPosition(base, base.tracers[0], 0), circleCentre);
     const a1 = angleFromAbove(tracerPosition(base, base.tracers[0], 0.1), circleCentre);
-    expect(unwrap(a1 - a0)).toBeCloseTo(-2 * omega * 0.1, 10);
+    expect(wrapAngle(a1 - a0)).toBeCloseTo(-2 * omega * 0.1, 10);
     const period = Math.PI / omega;
     const start = pathPosition(path, omega, 0);
     const after = pathPosition(path, omega, period);
@@ -54,11 +51,11 @@ describe("synthetic frame stacks (right-handed frame seen from above, image y do
     };
     const a0 = angleFromAbove(tracerPosition(spec, spec.tracers[0], 0), spec.centre);
     const a1 = angleFromAbove(tracerPosition(spec, spec.tracers[0], 0.2), spec.centre);
-    expect(unwrap(a1 - a0)).toBeCloseTo(omega * 0.2, 10);
+    expect(wrapAngle(a1 - a0)).toBeCloseTo(omega * 0.2, 10);
     const mirrored = { ...spec, mirrored: true };
     const m0 = angleFromAbove(tracerPosition(mirrored, spec.tracers[0], 0), spec.centre);
     const m1 = angleFromAbove(tracerPosition(mirrored, spec.tracers[0], 0.2), spec.centre);
-    expect(unwrap(m1 - m0)).toBeCloseTo(-omega * 0.2, 10);
+    expect(wrapAngle(m1 - m0)).toBeCloseTo(-omega * 0.2, 10);
   });
 
   it("renders the same bytes for the same seed, different noise for another, and puts the float where it says", () => {

@@ -6,6 +6,7 @@
  * (x right, y up, origin on the axis, metres); a lab-fixed view turns them, and the tank marks,
  * by +Ω t about the centre; a mirrored view flips x; image rows run downward.
  */
+import { seededRandom } from "../random";
 
 export type Rgb = [number, number, number];
 
@@ -85,18 +86,6 @@ const tableColour: Rgb = [118, 108, 96];
 const rimColour: Rgb = [40, 42, 46];
 const markColour: Rgb = [25, 25, 30];
 const defaultWater: Rgb = [62, 74, 84];
-
-/** mulberry32: small, fast and good enough for sensor noise. */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function gaussianTable(seed: number, size: number): Float32Array {
   const random = seededRandom(seed);

@@ -8,7 +8,8 @@ import { CalibrationError, getCalibration, serializeCalibrations, signOffCalibra
 import { getCalibrationHistory } from "~/.server/calibration-history";
 import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { calibrationKindLabels, trueRateFromCalibration } from "~/lib/calibrations";
-import { formatDate, formatDateTime, formatNumber } from "~/lib/format";
+import { formatDate, formatDateTime } from "~/lib/format";
+import { formatNumber } from "~/lib/number-format";
 import { Button, ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";

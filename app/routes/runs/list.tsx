@@ -31,7 +31,8 @@ import { PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { SelectField, TextField } from "~/components/ui/field";
 import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
-import { formatDateTime, formatNumber } from "~/lib/format";
+import { formatDateTime } from "~/lib/format";
+import { formatNumber } from "~/lib/number-format";
 import { runStates, runStateLabels, tracerLabels } from "~/lib/runs";
 import {
   DEFAULT_PAGE_SIZE,

@@ -5,7 +5,7 @@ import { parseId } from "~/.server/http";
 import { requireUser } from "~/.server/auth/permissions";
 import { getRunDetail, getSignOffView, getRunHistory } from "~/.server/runs/record";
 import { Run } from "~/.server/db";
-import { currentCheck } from "~/.server/runs/provenance";
+import { currentCheck } from "~/.server/runs/current-check";
 import type { TheoryCheckResult } from "~/lib/analysis/check";
 import { TheoryPlots } from "~/components/plots/theory-plots";
 import { CalibrationsAppliedList } from "~/components/runs/calibrations-applied-list";
@@ -15,7 +15,8 @@ import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { SignOffPanel } from "~/components/run-record/sign-off-panel";
 import { SupersedesLinks } from "~/components/run-record/supersedes-links";
 import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
-import { formatDate, formatDateTime, formatNumber } from "~/lib/format";
+import { formatDate, formatDateTime } from "~/lib/format";
+import { formatNumber } from "~/lib/number-format";
 import { cameraModeLabels, directionLabels, tracerLabels } from "~/lib/runs";
 
 export const meta: Route.MetaFunction = ({ data: d }) => [{ title: d ? `${d.run.label} report · Tankside` : "Run report · Tankside" }];

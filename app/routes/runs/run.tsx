@@ -5,7 +5,8 @@ import { loadRun } from "~/.server/runs/access";
 import { runPageData } from "~/.server/runs/detail";
 import { getLabSettings } from "~/.server/settings";
 import { cameraModeLabels, directionLabels, runLabel, tracerLabels, type RunState } from "~/lib/runs";
-import { formatDateTime, formatNumber } from "~/lib/format";
+import { formatDateTime } from "~/lib/format";
+import { formatFixed, formatNumber } from "~/lib/number-format";
 import { ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
@@ -19,7 +20,7 @@ import { SignOffPanel } from "~/components/run-record/sign-off-panel";
 import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { RunExportLinks } from "~/components/run-record/run-export-links";
 import { getRunRecordParts } from "~/.server/runs/record";
-import { currentCheck } from "~/.server/runs/provenance";
+import { currentCheck } from "~/.server/runs/current-check";
 import { calibrationKindLabels } from "~/lib/calibrations";
 import { flaggedCalibrations } from "~/lib/calibrations-applied";
 import { roleCan } from "~/lib/roles";
@@ -166,7 +167,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
                     {`Frame ${f.position + 1} missing`}
                   </span>
                 ) : (
-                  <a href={`/runs/${run.id}/frames/${f.id}/image`} title={`${f.name}${f.timeS !== null ? ` at ${f.timeS.toFixed(3)} s` : ""}`}>
+                  <a href={`/runs/${run.id}/frames/${f.id}/image`} title={`${f.name}${f.timeS !== null ? ` at ${formatFixed(f.timeS, 3)} s` : ""}`}>
                     <img src={`/runs/${run.id}/frames/${f.id}/image?size=thumb`} loading="lazy" width={120} height={68} alt={`Frame ${f.position + 1}: ${f.name}`} className="h-[68px] w-[120px] rounded border border-line object-cover" />
                   </a>
                 )}

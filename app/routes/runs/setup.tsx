@@ -6,7 +6,7 @@ import { requireRole } from "~/.server/auth/permissions";
 import { Frame, Run, ViewSetup } from "~/.server/db";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { scaleCalibrationOfRun } from "~/.server/runs/applied-calibrations";
-import { formatNumber } from "~/lib/format";
+import { formatNumber } from "~/lib/number-format";
 import { saveViewSetup } from "~/.server/runs/view-setup";
 import { viewSetupSchema } from "~/lib/validation/view-setup";
 import { runLabel } from "~/lib/runs";

@@ -1,0 +1,45 @@
+import type { Transaction } from "sequelize";
+import { Run, TheoryCheck } from "../db";
+import { changedInputs, presentFingerprint, recordedInputs } from "./provenance";
+
+/**
+ * The one answer to "which is this run's check, and is it current?". Every reader of a run's check
+ * (run page, report, export, API, sign-off) asks currentCheck; whoever needs the newest check
+ * made, current or not (the next check's history entry, the start-up re-check of old checks),
+ * asks latestCheck. A check is current only while the run's present inputs hash to the
+ * fingerprint it stored (./provenance).
+ */
+
+export type CheckStatus = "current" | "out_of_date" | "missing";
+
+export interface CurrentCheck {
+  status: CheckStatus;
+  /** The check to show and act on: set only when status is "current". */
+  check: TheoryCheck | null;
+  /** The newest check made, current or not. */
+  latest: TheoryCheck | null;
+  /** When out of date: which inputs changed since the latest check, in words. */
+  changed: string[];
+}
+
+/** The newest check made for the run (highest id: ids rise with every check), current or not. */
+export async function latestCheck(runId: number, options: { transaction?: Transaction; attributes?: (keyof TheoryCheck & string)[] } = {}): Promise<TheoryCheck | null> {
+  return TheoryCheck.findOne({ where: { runId }, order: [["id", "DESC"]], ...options });
+}
+
+/**
+ * The run's current theory check: the latest one, and only when it was computed from the run's
+ * present inputs. A signed-off run keeps the check it was signed with: its inputs cannot change
+ * any more, and a later lab setting does not reopen a signed verdict.
+ */
+export async function currentCheck(runOrId: Run | number, transaction?: Transaction): Promise<CurrentCheck> {
+  const run = typeof runOrId === "number" ? await Run.findByPk(runOrId, { transaction }) : runOrId;
+  if (!run) return { status: "missing", check: null, latest: null, changed: [] };
+  const latest = await latestCheck(run.id, { transaction });
+  if (!latest) return { status: "missing", check: null, latest: null, changed: [] };
+  if (run.state === "signed_off") return { status: "current", check: latest, latest, changed: [] };
+  const { fingerprint, inputs } = await presentFingerprint(run, undefined, transaction);
+  if (fingerprint && latest.inputFingerprint === fingerprint) return { status: "current", check: latest, latest, changed: [] };
+  const changed = changedInputs(recordedInputs(latest), inputs);
+  return { status: "out_of_date", check: null, latest, changed: changed.length ? changed : ["tracks not made from the present frames and view setup"] };
+}

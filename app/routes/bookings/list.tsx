@@ -2,7 +2,6 @@ import { Form, Link, data, useNavigation } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { useState } from "react";
-import { addDays, format, startOfWeek } from "date-fns";
 import type { Route } from "./+types/list";
 import { readForm } from "~/.server/http";
 import rbcStyles from "react-big-calendar/lib/css/react-big-calendar.css?url";
@@ -41,6 +40,17 @@ export const links: Route.LinksFunction = () => [
 ];
 
 
+/** "2026-12-03" plus n calendar days. */
+function addDays(day: string, n: number) {
+  const [y, m, d] = day.split("-").map(Number) as [number, number, number];
+  return new Date(Date.UTC(y, m - 1, d + n)).toISOString().slice(0, 10);
+}
+/** The Monday of a calendar day's week. */
+function mondayOf(day: string) {
+  const weekday = new Date(`${day}T12:00:00Z`).getUTCDay();
+  return addDays(day, -((weekday + 6) % 7));
+}
+
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const url = new URL(request.url);
@@ -57,9 +67,12 @@ export async function loader({ request }: Route.LoaderArgs) {
   const bookable = items.filter((i) => i.status === "in_service");
   const weekItemId = Number(url.searchParams.get("item")) || bookable.find((i) => i.kind === "table")?.id || bookable[0]?.id || 0;
   const weekParam = url.searchParams.get("week");
-  const weekStart = startOfWeek(weekParam && !Number.isNaN(new Date(`${weekParam}T12:00`).getTime()) ? new Date(`${weekParam}T12:00`) : new Date(), { weekStartsOn: 1 });
+  // The week runs Monday 00:00 to Monday 00:00 on the lab's clock.
+  const weekStart = mondayOf(weekParam && /^\d{4}-\d{2}-\d{2}$/.test(weekParam) && !Number.isNaN(Date.parse(`${weekParam}T12:00:00Z`)) ? weekParam : zonedDay(new Date(), settings.timeZone));
+  const weekFrom = fromZonedInput(`${weekStart}T00:00`, settings.timeZone)!;
+  const weekTo = fromZonedInput(`${addDays(weekStart, 7)}T00:00`, settings.timeZone)!;
   const weekRows = weekItemId
-    ? (await listBookings({ equipmentId: weekItemId, from: weekStart, to: addDays(weekStart, 7) })).filter((b) => b.state === "approved" || b.state === "requested")
+    ? (await listBookings({ equipmentId: weekItemId, from: weekFrom, to: weekTo })).filter((b) => b.state === "approved" || b.state === "requested")
     : [];
   // The form's fields are on the lab's clock: tomorrow (the lab's day), 10:00 to 12:00.
   const tomorrow = zonedDay(new Date(Date.now() + 86_400_000), settings.timeZone);
@@ -69,7 +82,7 @@ export async function loader({ request }: Route.LoaderArgs) {
     filter: Object.fromEntries(url.searchParams),
     bookings: await serializeBookings(rows),
     items: items.map((i) => ({ id: i.id, name: i.name, kind: i.kind, status: i.status })),
-    week: { itemId: weekItemId, start: format(weekStart, "yyyy-MM-dd"), bookings: await serializeBookings(weekRows) },
+    week: { itemId: weekItemId, start: weekStart, bookings: await serializeBookings(weekRows) },
     spinUpTimesToWait: settings.spinUpTimesToWait,
     feed: feed ? { prefix: feed.tokenPrefix, lastUsedAt: feed.lastUsedAt?.toISOString() ?? null } : null,
     defaults: { start: `${tomorrow}T10:00`, end: `${tomorrow}T12:00` },

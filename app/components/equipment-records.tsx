@@ -89,7 +89,7 @@ export function EquipmentBookings({ itemId, isTable, bookings }: { itemId: numbe
         <ul className="flex flex-col gap-2">
           {bookings.map((b) => (
             <li key={b.id}>
-              <Link to={`/bookings/${b.id}`}>{time.dateTime(b.start)} – {time.dateTime(b.end)}</Link> · {b.purpose} ({b.requesterName}){" "}
+              <Link to={`/bookings/${b.id}`}>{time.range(b.start, b.end)}</Link> · {b.purpose} ({b.requesterName}){" "}
               <Tag tone={b.state === "approved" ? "agrees" : "caution"}>{bookingStateLabels[b.state]}</Tag>
             </li>
           ))}

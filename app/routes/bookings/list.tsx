@@ -297,8 +297,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                       </td>
                       <td className="py-3 pr-3">{b.equipmentName}</td>
                       <td className="py-3 pr-3">
-                        {time.dateTime(b.start)} –<br />
-                        {time.dateTime(b.end)}
+                        {time.range(b.start, b.end)}
                         {b.spinUpLeadMinutes ? <p className="text-sm text-muted">incl. {formatDuration(b.spinUpLeadMinutes * 60)} spin-up</p> : null}
                       </td>
                       <td className="py-3 pr-3">{b.purpose}</td>

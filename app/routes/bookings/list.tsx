@@ -201,7 +201,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                 </option>
               ))}
             </SelectField>
-            <TextField label="Start" type="datetime-local" name={fields.start.name} key={fields.start.key} defaultValue={fields.start.initialValue as string | undefined} error={fields.start.errors} onChange={(e) => setStart(e.target.value)} />
+            <TextField label="Start" type="datetime-local" name={fields.start.name} key={fields.start.key} defaultValue={fields.start.initialValue as string | undefined} error={fields.start.errors} hint={`Lab time (${time.zone}).`} onChange={(e) => setStart(e.target.value)} />
             <TextField label="End" type="datetime-local" name={fields.end.name} key={fields.end.key} defaultValue={fields.end.initialValue as string | undefined} error={fields.end.errors} />
             <TextAreaField label="Purpose" name={fields.purpose.name} key={fields.purpose.key} defaultValue={fields.purpose.initialValue as string | undefined} error={fields.purpose.errors} maxLength={300} placeholder="e.g. Second-year lab, inertial circles" />
             {chosenItem?.kind === "table" ? (

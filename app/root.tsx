@@ -6,6 +6,8 @@ import { ButtonLink } from "./components/ui/button";
 import { useNonce } from "./nonce";
 import { getCurrentUser } from "./.server/auth/permissions";
 import { usingFakeMail } from "./.server/mail/send";
+import { getLabTimeZone } from "./.server/settings";
+import { LabTimeProvider } from "./components/lab-time";
 
 export const links: Route.LinksFunction = () => [
   { rel: "stylesheet", href: stylesheet },
@@ -13,8 +15,8 @@ export const links: Route.LinksFunction = () => [
 ];
 
 export async function loader({ request }: Route.LoaderArgs) {
-  const user = await getCurrentUser(request).catch(() => null);
-  return { user, showMail: usingFakeMail };
+  const [user, timeZone] = await Promise.all([getCurrentUser(request).catch(() => null), getLabTimeZone()]);
+  return { user, showMail: usingFakeMail, timeZone };
 }
 
 export function Layout({ children }: { children: React.ReactNode }) {
@@ -38,9 +40,11 @@ export function Layout({ children }: { children: React.ReactNode }) {
 
 export default function App({ loaderData }: Route.ComponentProps) {
   return (
-    <AppShell user={loaderData.user} showMail={loaderData.showMail}>
-      <Outlet />
-    </AppShell>
+    <LabTimeProvider zone={loaderData.timeZone}>
+      <AppShell user={loaderData.user} showMail={loaderData.showMail}>
+        <Outlet />
+      </AppShell>
+    </LabTimeProvider>
   );
 }
 

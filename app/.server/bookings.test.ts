@@ -19,7 +19,9 @@ import { stopFakeSmtp } from "./mail/fake-smtp";
 import { OutboxSender } from "./mail/outbox-sender";
 import { env } from "./env";
 import { ekmanSpinUpTimeS } from "~/lib/bookings";
-import { formatDateTime } from "~/lib/format";
+import { formatDuration, timeFormat } from "~/lib/time-format";
+import { getLabId, getLabTimeZone, setLabTimeZone } from "./settings";
+import { unfold } from "~/lib/icalendar";
 
 let table: Equipment;
 let broken: Equipment;
@@ -32,9 +34,10 @@ const asInstructor = () => ({ id: instructor.id, role: "instructor" as const, na
 const deliver = () => new OutboxSender().drain();
 const hoursFromNow = (h: number) => new Date(Math.round((Date.now() + h * 3_600_000) / 60_000) * 60_000);
 
+const base = { maker: null, model: null, serialNumber: null, location: null, notes: null, diameterM: 0.6, maxRateRpm: 30, flatTable: false, rateTolerancePct: 1, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
+
 beforeAll(async () => {
   await migrate();
-  const base = { maker: null, model: null, serialNumber: null, location: null, notes: null, diameterM: 0.6, maxRateRpm: 30, flatTable: false, rateTolerancePct: 1, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
   table = await Equipment.create({ ...base, kind: "table", name: "Booking table" });
   broken = await Equipment.create({ ...base, kind: "table", name: "Broken table", status: "out_of_service" });
   instructor = await User.create({ email: "i@tankside.example", name: "Ida Instructor", role: "instructor", passwordHash: null, passwordChangedAt: null });
@@ -56,7 +59,7 @@ describe("requesting", () => {
     expect(booking.state).toBe("requested");
     expect(mail.queued).toBe(true);
     await deliver();
-    const got = await CapturedMail.findOne({ where: { subject: `Booking requested: Booking table, ${formatDateTime(booking.startAt)} – ${formatDateTime(booking.endAt)}` } });
+    const got = await CapturedMail.findOne({ where: { subject: `Booking requested: Booking table, ${timeFormat(await getLabTimeZone()).range(booking.startAt, booking.endAt)}` } });
     expect(got!.envelopeTo.split(", ").sort()).toEqual([manager2.email, manager.email].sort());
     expect(got!.textBody).toContain(`${env.appUrl}/bookings/${booking.id}`);
   });
@@ -180,7 +183,7 @@ describe("iCalendar (RFC 5545), parsed with ical.js", () => {
   it("one booking: DTSTART/DTEND in UTC at the booked times, with its status", async () => {
     const { booking } = await request(100, 102.5);
     await approveBooking(booking.id, asManager());
-    const text = bookingIcs(await serializeBooking((await Booking.findByPk(booking.id))!));
+    const text = await bookingIcs(await serializeBooking((await Booking.findByPk(booking.id))!));
     const cal = new ICAL.Component(ICAL.parse(text));
     expect(cal.name).toBe("vcalendar");
     expect(cal.getFirstPropertyValue("version")).toBe("2.0");
@@ -191,7 +194,7 @@ describe("iCalendar (RFC 5545), parsed with ical.js", () => {
     expect(event.startDate.toJSDate().getTime()).toBe(booking.startAt.getTime());
     expect(event.endDate.toJSDate().getTime()).toBe(booking.endAt.getTime());
     expect(vevent.getFirstPropertyValue("status")).toBe("CONFIRMED");
-    expect(event.uid).toBe(`booking-${booking.id}@${new URL(env.appUrl).hostname}`);
+    expect(event.uid).toBe(`booking-${booking.id}@${await getLabId()}`);
     expect(text).toMatch(/DTSTART:\d{8}T\d{6}Z/);
   });
 
@@ -203,10 +206,101 @@ describe("iCalendar (RFC 5545), parsed with ical.js", () => {
     const events = new ICAL.Component(ICAL.parse(text)).getAllSubcomponents("vevent").map((v) => new ICAL.Event(v));
     const approved = await listBookings({ requesterId: instructor.id, state: "approved" });
     expect(approved.length).toBeGreaterThan(0);
-    expect(events.map((e) => e.uid).sort()).toEqual(approved.map((b) => `booking-${b.id}@${new URL(env.appUrl).hostname}`).sort());
+    const labId = await getLabId();
+    expect(events.map((e) => e.uid).sort()).toEqual(approved.map((b) => `booking-${b.id}@${labId}`).sort());
     // A new address replaces the old one.
     const again = await createCalendarFeed(instructor.id);
     expect(await feedOwner(token)).toBeNull();
     expect((await feedOwner(again))!.id).toBe(instructor.id);
+  });
+});
+
+/** Every physical line of an iCalendar text, with its length in octets. */
+const octetLengths = (text: string) => text.split("\r\n").filter((l) => l !== "").map((l) => Buffer.byteLength(l, "utf8"));
+
+describe("iCalendar folding and UIDs (RFC 5545 §3.1, §3.8.4.7), parsed with ical.js", () => {
+  const longName = "Ørsted tank — west bench, the big one with the Ø-shaped rim — and its camera";
+  const purpose = "Inertial circles for the Ø group — ".repeat(4).trim();
+
+  it("folds every line at 75 octets without splitting a character; the name and purpose survive unfolding intact", async () => {
+    const item = await Equipment.create({ ...base, kind: "table", name: longName });
+    const { booking } = await createBooking({ equipmentId: item.id, start: hoursFromNow(300), end: hoursFromNow(302), purpose }, asInstructor());
+    await approveBooking(booking.id, asManager());
+    const file = await bookingIcs(await serializeBooking((await Booking.findByPk(booking.id))!));
+    const feed = await personalFeedIcs(instructor.id);
+    const uid = `booking-${booking.id}@${await getLabId()}`;
+    for (const text of [file, feed]) {
+      expect(Math.max(...octetLengths(text))).toBeLessThanOrEqual(75);
+      // Some lines really were folded (the long summary), so the check above had something to check.
+      expect(text).toMatch(/\r\n [^\r]/);
+      // No line holds a broken UTF-8 sequence: each decodes to itself.
+      for (const line of text.split("\r\n")) expect(Buffer.from(line, "utf8").toString("utf8")).toBe(line);
+      const events = new ICAL.Component(ICAL.parse(text)).getAllSubcomponents("vevent").map((v) => new ICAL.Event(v));
+      const event = events.find((e) => e.uid === uid)!;
+      expect(event.summary).toBe(`${longName}: ${purpose}`);
+      expect(event.description).toContain(`Purpose: ${purpose}`);
+      expect(event.startDate.toJSDate().getTime()).toBe(booking.startAt.getTime());
+      expect(event.endDate.toJSDate().getTime()).toBe(booking.endAt.getTime());
+      // The text as written on the line, with RFC 5545's escaped commas.
+      expect(unfold(text)).toContain(`SUMMARY:${longName.replaceAll(",", "\\,")}: ${purpose}`);
+    }
+  });
+
+  it("a booking keeps its UID when APP_URL changes: the UID is built from the lab's stored identifier", async () => {
+    const { booking } = await request(320, 321);
+    await approveBooking(booking.id, asManager());
+    const view = await serializeBooking((await Booking.findByPk(booking.id))!);
+    const uidOf = async () => new ICAL.Event(new ICAL.Component(ICAL.parse(await bookingIcs(view))).getFirstSubcomponent("vevent")!).uid;
+    const before = await uidOf();
+    const saved = env.appUrl;
+    try {
+      (env as { appUrl: string }).appUrl = "https://tankside.other-host.example:8443";
+      const after = await uidOf();
+      expect(after).toBe(before);
+      // The address did change in the file, so the UID held although the rest moved with it.
+      expect(unfold(await bookingIcs(view))).toContain("URL:https://tankside.other-host.example:8443/bookings/");
+    } finally {
+      (env as { appUrl: string }).appUrl = saved;
+    }
+    expect(before).toMatch(/^booking-\d+@[0-9a-f-]{36}$/);
+    expect(await getLabId()).toBe(await getLabId());
+  });
+});
+
+describe("times and durations in booking mail", () => {
+  const savedTz = process.env.TZ;
+
+  it.each([
+    ["Europe/Berlin", "Pacific/Honolulu", "09:50", "CET"],
+    ["America/New_York", "Asia/Tokyo", "03:50", "GMT-5"],
+  ])("a slot at 08:50Z reads %s's clock (%s on the server): %s %s", async (labZone, serverZone, clock, zoneName) => {
+    process.env.TZ = serverZone;
+    try {
+      await setLabTimeZone(labZone);
+      // A slot on 3 December of the coming year at 08:50Z–10:50Z (in winter in both zones).
+      const year = new Date().getUTCFullYear() + 1;
+      const start = new Date(`${year}-12-03T08:50:00Z`);
+      const { booking } = await createBooking({ equipmentId: table.id, start, end: new Date(start.getTime() + 2 * 3_600_000), purpose: `Zone check ${labZone}` }, asInstructor());
+      const row = await OutboxMail.findOne({ where: { subject: { [Op.like]: `Booking requested:%` } }, order: [["id", "DESC"]] });
+      expect(row!.textBody).toContain(`Zone check ${labZone}`);
+      const later = clock === "09:50" ? "11:50" : "05:50";
+      expect(row!.subject).toBe(`Booking requested: Booking table, 3 Dec ${year}, ${clock}–${later} ${zoneName}`);
+      expect(row!.textBody).toContain(`Ida Instructor asks for Booking table, 3 Dec ${year}, ${clock}–${later} ${zoneName}.`);
+      await cancelBooking(booking.id, asInstructor());
+    } finally {
+      process.env.TZ = savedTz;
+      await setLabTimeZone("");
+    }
+  });
+
+  it("the spin-up lead time in the mail is the text the booking's page shows (one duration rule)", async () => {
+    const { booking } = await createBooking({ equipmentId: table.id, start: hoursFromNow(340), end: hoursFromNow(342), purpose: "Lead time wording", plannedRateRpm: 6, plannedDepthM: 0.12, addSpinUpLead: true }, asInstructor());
+    const row = await OutboxMail.findOne({ where: { subject: { [Op.like]: `Booking requested:%` } }, order: [["id", "DESC"]] });
+    const view = await serializeBooking(booking);
+    // The booking page and list show formatDuration(spinUpLeadMinutes × 60); the mail must say the same words.
+    const onPage = formatDuration(view.spinUpLeadMinutes! * 60);
+    expect(onPage).toMatch(/^\d+(\.\d)? min$/);
+    expect(row!.textBody).toContain(`The start includes ${onPage} of spin-up lead time.`);
+    expect(formatDuration(booking.spinUpLeadS)).toBe(onPage);
   });
 });

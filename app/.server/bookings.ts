@@ -3,11 +3,12 @@ import { createEvent, createEvents, type EventAttributes } from "ics";
 import { Booking, CalendarFeed, Equipment, User, locking, sequelize } from "./db";
 import { env } from "./env";
 import { enqueueMail, mailQueued, type MailQueued } from "./mail/outbox";
-import { getLabSettings } from "./settings";
+import { getLabId, getLabSettings, getLabTimeZone } from "./settings";
 import { hashToken, newSecretToken } from "./auth/tokens";
 import type { CurrentUser } from "./auth/permissions";
 import { bookingStateLabels, MAX_BOOKING_DAYS, spinUpLeadS, tableBookingCaution, type BookingState } from "~/lib/bookings";
-import { formatDateTime } from "~/lib/format";
+import { formatDuration, timeFormat, type TimeFormat } from "~/lib/time-format";
+import { foldIcsLines } from "~/lib/icalendar";
 
 /** A refusal with the HTTP status and API code that say why. */
 export class BookingError extends Error {
@@ -44,8 +45,13 @@ function link(booking: Booking) {
   return `${env.appUrl}/bookings/${booking.id}`;
 }
 
-function slotText(b: Booking) {
-  return `${formatDateTime(b.startAt)} – ${formatDateTime(b.endAt)}`;
+/** The slot on the lab's clock, with the zone: "3 Dec 2026, 09:50–11:50 CET". */
+function slotText(b: Booking, time: TimeFormat) {
+  return time.range(b.startAt, b.endAt);
+}
+
+async function labTime(transaction: Transaction) {
+  return timeFormat(await getLabTimeZone(transaction));
 }
 
 /** Any approved booking of the same item that overlaps [start, end), read inside the caller's transaction. */
@@ -62,8 +68,8 @@ function approvedOverlap(equipmentId: number, start: Date, end: Date, t: Transac
   });
 }
 
-function conflictError(other: Booking) {
-  return new BookingError(409, "booking_conflict", `It overlaps booking #${other.id} (approved, ${slotText(other)}). Two approved bookings never share an item.`);
+function conflictError(other: Booking, time: TimeFormat) {
+  return new BookingError(409, "booking_conflict", `It overlaps booking #${other.id} (approved, ${slotText(other, time)}). Two approved bookings never share an item.`);
 }
 
 /** The item, locked: requests and approvals of one item take turns from here to their commit. */
@@ -106,8 +112,9 @@ export async function createBooking(input: BookingRequest, requester: Pick<Curre
   // The mail is queued in the same transaction: it exists exactly when the booking does.
   return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
     const item = await loadItemForBooking(input.equipmentId, t);
+    const time = await labTime(t);
     const other = await approvedOverlap(item.id, start, end, t);
-    if (other) throw conflictError(other);
+    if (other) throw conflictError(other, time);
     const booking = await Booking.create(
       {
         equipmentId: item.id,
@@ -130,11 +137,11 @@ export async function createBooking(input: BookingRequest, requester: Pick<Curre
     const mail = await enqueueMail(
       {
         to: await labManagerEmails(t),
-        subject: `Booking requested: ${item.name}, ${slotText(booking)}`,
+        subject: `Booking requested: ${item.name}, ${slotText(booking, time)}`,
         text: [
-          `${requester.name} asks for ${item.name}, ${slotText(booking)}.`,
+          `${requester.name} asks for ${item.name}, ${slotText(booking, time)}.`,
           `Purpose: ${booking.purpose}`,
-          ...(lead ? [`The start includes ${Math.round(lead / 60)} min of spin-up lead time.`] : []),
+          ...(lead ? [`The start includes ${formatDuration(lead)} of spin-up lead time.`] : []),
           "",
           `Approve or decline it: ${link(booking)}`,
         ].join("\n"),
@@ -167,7 +174,7 @@ async function decide(id: number, manager: Pick<CurrentUser, "id" | "role" | "na
       }
       if (booking.endAt.getTime() <= Date.now()) throw new BookingError(422, "slot_in_past", "That slot is over; there is nothing left to approve.");
       const other = await approvedOverlap(booking.equipmentId, booking.startAt, booking.endAt, t, booking.id);
-      if (other) throw conflictError(other);
+      if (other) throw conflictError(other, await labTime(t));
     }
     await booking.update(
       { state: decision === "approve" ? "approved" : "declined", decidedById: manager.id, decidedAt: new Date(), declineReason: decision === "decline" ? reason!.trim() : null },
@@ -175,14 +182,15 @@ async function decide(id: number, manager: Pick<CurrentUser, "id" | "role" | "na
     );
     const requester = await User.findByPk(booking.requesterId, { transaction: t });
     const name = item?.name ?? `item #${booking.equipmentId}`;
+    const time = await labTime(t);
     const mail = await enqueueMail(
       {
         to: requester ? [requester.email] : [],
-        subject: decision === "approve" ? `Booking approved: ${name}, ${slotText(booking)}` : `Booking declined: ${name}, ${slotText(booking)}`,
+        subject: decision === "approve" ? `Booking approved: ${name}, ${slotText(booking, time)}` : `Booking declined: ${name}, ${slotText(booking, time)}`,
         text: [
           decision === "approve"
-            ? `${manager.name} approved your booking of ${name}, ${slotText(booking)}.`
-            : `${manager.name} declined your booking of ${name}, ${slotText(booking)}.\nReason: ${booking.declineReason}`,
+            ? `${manager.name} approved your booking of ${name}, ${slotText(booking, time)}.`
+            : `${manager.name} declined your booking of ${name}, ${slotText(booking, time)}.\nReason: ${booking.declineReason}`,
           `Purpose: ${booking.purpose}`,
           ...(decision === "approve" && item?.kind === "table" ? ["", tableBookingCaution] : []),
           "",
@@ -223,15 +231,16 @@ export async function cancelBooking(id: number, user: Pick<CurrentUser, "id" | "
     const item = await Equipment.findByPk(booking.equipmentId, { transaction: t });
     const name = item?.name ?? `item #${booking.equipmentId}`;
     const byRequester = booking.requesterId === user.id;
+    const time = await labTime(t);
     // The requester always hears; the lab managers too when someone frees a slot they had approved or still had to decide.
     const to = new Set<string>(requester ? [requester.email] : []);
     if (byRequester) for (const e of await labManagerEmails(t)) to.add(e);
     const mail = await enqueueMail(
       {
         to: [...to],
-        subject: `Booking cancelled: ${name}, ${slotText(booking)}`,
+        subject: `Booking cancelled: ${name}, ${slotText(booking, time)}`,
         text: [
-          `${byRequester ? `${user.name} cancelled their` : `${user.name} (lab manager) cancelled your`} ${wasApproved ? "approved" : "requested"} booking of ${name}, ${slotText(booking)}.`,
+          `${byRequester ? `${user.name} cancelled their` : `${user.name} (lab manager) cancelled your`} ${wasApproved ? "approved" : "requested"} booking of ${name}, ${slotText(booking, time)}.`,
           `Purpose: ${booking.purpose}`,
           "",
           `The booking: ${link(booking)}`,
@@ -315,10 +324,17 @@ const icsStatus: Record<BookingState, EventAttributes["status"]> = {
   cancelled: "CANCELLED",
 };
 
-function icsEvent(b: BookingView): EventAttributes {
-  const host = new URL(env.appUrl).hostname || "tankside.local";
+/**
+ * The UID of a booking's event: the booking id and the lab's own identifier (a random UUID stored once),
+ * so a booking keeps its UID when APP_URL or the host name changes and two labs never share one.
+ */
+export function bookingUid(bookingId: number, labId: string) {
+  return `booking-${bookingId}@${labId}`;
+}
+
+function icsEvent(b: BookingView, labId: string): EventAttributes {
   return {
-    uid: `booking-${b.id}@${host}`,
+    uid: bookingUid(b.id, labId),
     // UTC in, UTC out: DTSTART/DTEND end in Z, so every calendar app places them the same.
     start: new Date(b.start).getTime(),
     startInputType: "utc",
@@ -330,7 +346,7 @@ function icsEvent(b: BookingView): EventAttributes {
     description: [
       `Booking #${b.id} (${bookingStateLabels[b.state].toLowerCase()}) by ${b.requesterName}.`,
       `Purpose: ${b.purpose}`,
-      ...(b.spinUpLeadMinutes ? [`Includes ${b.spinUpLeadMinutes} min spin-up lead time.`] : []),
+      ...(b.spinUpLeadMinutes ? [`Includes ${formatDuration(b.spinUpLeadMinutes * 60)} of spin-up lead time.`] : []),
       ...(b.equipmentKind === "table" ? [tableBookingCaution] : []),
     ].join("\n"),
     url: `${env.appUrl}/bookings/${b.id}`,
@@ -342,19 +358,22 @@ function icsEvent(b: BookingView): EventAttributes {
   };
 }
 
-export function bookingIcs(b: BookingView): string {
-  const { error, value } = createEvent({ ...icsEvent(b), method: "PUBLISH" });
+export async function bookingIcs(b: BookingView): Promise<string> {
+  const { error, value } = createEvent({ ...icsEvent(b, await getLabId()), method: "PUBLISH" });
   if (error || !value) throw error ?? new Error("could not build the iCalendar file");
-  return value;
+  return foldIcsLines(value);
 }
 
 /** One person's approved bookings from a month back onwards, as a subscribable calendar. */
 export async function personalFeedIcs(userId: number): Promise<string> {
   const rows = await listBookings({ requesterId: userId, state: "approved", from: new Date(Date.now() - 31 * 86_400_000) });
-  const views = await serializeBookings(rows);
-  const { error, value } = createEvents(views.map(icsEvent), { productId: "tankside/bookings", method: "PUBLISH", calName: "Tankside bookings" });
+  const [views, labId] = await Promise.all([serializeBookings(rows), getLabId()]);
+  const { error, value } = createEvents(
+    views.map((v) => icsEvent(v, labId)),
+    { productId: "tankside/bookings", method: "PUBLISH", calName: "Tankside bookings" },
+  );
   if (error || !value) throw error ?? new Error("could not build the iCalendar feed");
-  return value;
+  return foldIcsLines(value);
 }
 
 const FEED_PREFIX = "tkc_";

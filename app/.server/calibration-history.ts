@@ -1,6 +1,8 @@
 import type { RunHistoryEntry } from "./runs/record";
 import type { Transaction } from "sequelize";
 import { Calibration, CalibrationHistory, User } from "./db";
+import { getLabTimeZone } from "./settings";
+import { zonedDay } from "~/lib/time-format";
 
 /** The entered fields a history line is kept for, with the words the page shows; results follow from them. */
 export const calibrationFieldLabels: Record<string, string> = {
@@ -23,22 +25,20 @@ export const calibrationFieldLabels: Record<string, string> = {
   signedOff: "signed off",
 };
 
-function dayOf(d: Date) {
-  return `${d.getFullYear()}-${String(d.getMonth() + 1).padStart(2, "0")}-${String(d.getDate()).padStart(2, "0")}`;
-}
 /** Calibration dates are days in the lab's time zone; everything else is shown as stored. */
-const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? dayOf(v) : String(v));
+const show = (v: unknown, zone: string) => (v === null || v === undefined ? null : v instanceof Date ? zonedDay(v, zone) : String(v));
 
 /** One history line, written inside the caller's transaction so it stands or falls with the change. */
-export function noteCalibrationChange(t: Transaction, calibrationId: number, userId: number, field: string, oldValue: unknown, newValue: unknown) {
-  return CalibrationHistory.create({ calibrationId, userId, field, oldValue: show(oldValue), newValue: show(newValue) }, { transaction: t });
+export async function noteCalibrationChange(t: Transaction, calibrationId: number, userId: number, field: string, oldValue: unknown, newValue: unknown) {
+  const zone = oldValue instanceof Date || newValue instanceof Date ? await getLabTimeZone(t) : "UTC";
+  return CalibrationHistory.create({ calibrationId, userId, field, oldValue: show(oldValue, zone), newValue: show(newValue, zone) }, { transaction: t });
 }
 
 /** The entered fields an edit changes, old → new as shown; taken before the edit is written. */
-export function calibrationEdits(cal: Calibration, next: Record<string, unknown>) {
+export function calibrationEdits(cal: Calibration, next: Record<string, unknown>, zone: string) {
   return Object.keys(calibrationFieldLabels)
     .filter((field) => field in next)
-    .map((field) => ({ field, oldValue: show(cal.get(field as keyof Calibration)), newValue: show(next[field]) }))
+    .map((field) => ({ field, oldValue: show(cal.get(field as keyof Calibration), zone), newValue: show(next[field], zone) }))
     .filter((c) => c.oldValue !== c.newValue);
 }
 

@@ -6,7 +6,7 @@ import { enqueueMail } from "./mail/outbox";
 import { getLabSettings } from "./settings";
 import { calibrationReminderKey, listCalibrationsDueOrExpired } from "./calibrations";
 import { calibrationKindLabels } from "~/lib/calibrations";
-import { formatDate } from "~/lib/format";
+import { timeFormat } from "~/lib/time-format";
 
 const INTERVAL_MS = 60 * 60_000;
 
@@ -29,17 +29,21 @@ export async function runCalibrationReminders(now: Date = new Date()): Promise<R
   const managers = await User.findAll({ where: { role: "lab_manager", active: true } });
   // With nobody to tell, nothing is queued: the next pass tries again once there is a lab manager.
   if (managers.length === 0) return result;
+  const time = timeFormat(settings.timeZone);
   for (const cal of due) {
-    const what = `${calibrationKindLabels[cal.kind]} of ${cal.equipmentName}`;
-    const when = formatDate(cal.dueAt);
+    // The equipment's name as it was written; only the kind of calibration reads in lower case mid-sentence.
+    const kind = calibrationKindLabels[cal.kind];
+    const what = `${kind} of ${cal.equipmentName}`;
+    const inSentence = `${kind.charAt(0).toLowerCase()}${kind.slice(1)} of ${cal.equipmentName}`;
+    const when = time.date(cal.dueAt);
     const row = await enqueueMail(
       {
         to: managers.map((m) => m.email),
         subject: cal.pastDue ? `Calibration past due: ${what} (due ${when})` : `Calibration due ${when}: ${what}`,
         text: [
           cal.pastDue
-            ? `The ${what.toLowerCase()} was due on ${when} and is no longer in force. Runs made with it are flagged until a new record is signed off.`
-            : `The ${what.toLowerCase()} falls due on ${when} (in ${cal.daysLeft} days).`,
+            ? `The ${inSentence} was due on ${when} and is no longer in force. Runs made with it are flagged until a new record is signed off.`
+            : `The ${inSentence} falls due on ${when} (in ${cal.daysLeft} day${cal.daysLeft === 1 ? "" : "s"}).`,
           "",
           `The record: ${env.appUrl}/calibrations/${cal.id}`,
           `Record a new calibration: ${env.appUrl}/calibrations/new?equipmentId=${cal.equipmentId}&kind=${cal.kind}`,

@@ -16,6 +16,7 @@ import {
   updateCalibration,
 } from "./calibrations";
 import { runCalibrationReminders } from "./calibration-reminders";
+import { setLabTimeZone } from "./settings";
 import { addCalibrationAttachment } from "./uploads/calibration-attachments";
 import { stopFakeSmtp } from "./mail/fake-smtp";
 import type { CalibrationInput } from "~/lib/validation/calibrations";
@@ -230,5 +231,27 @@ describe("due list and reminders", () => {
     expect(retried.queued).toEqual([c.id]);
     await new OutboxSender().drain();
     expect(await CapturedMail.count({ where: { subject: { [Op.like]: "%Reminder table retry%" } } })).toBe(1);
+  });
+
+  it("the reminder keeps the equipment's name as written and gives the due day on the lab's calendar, whatever the server's zone", async () => {
+    const savedTz = process.env.TZ;
+    process.env.TZ = "America/Los_Angeles";
+    await setLabTimeZone("Pacific/Auckland");
+    try {
+      const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Table B (west bench) — Ørsted rig" } as never);
+      const dueOn = toDayString(new Date(Date.now() + 4 * 86_400_000), "Pacific/Auckland");
+      const c = await createCalibration(rateInput({ equipmentId: t.id, performedOn: daysAgo(176), dueOn }), tech);
+      await signOffCalibration(c.id, managerUser());
+      await runCalibrationReminders();
+      const row = await OutboxMail.findOne({ where: { dedupeKey: calibrationReminderKey(c.id) } });
+      // The day as entered, spelled out independently of the code under test.
+      const day = new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" }).format(new Date(`${dueOn}T12:00:00Z`));
+      expect(row!.subject).toBe(`Calibration due ${day}: Rate calibration of Table B (west bench) — Ørsted rig`);
+      expect(row!.textBody).toMatch(new RegExp(`^The rate calibration of Table B \\(west bench\\) — Ørsted rig falls due on ${day} \\(in [34] days\\)\\.`));
+      expect(row!.textBody).not.toContain("table b");
+    } finally {
+      process.env.TZ = savedTz;
+      await setLabTimeZone("");
+    }
   });
 });

@@ -1,7 +1,8 @@
 import { Op, Transaction } from "sequelize";
 import { Calibration, CalibrationAttachment, Equipment, User, locking, sequelize } from "./db";
 import { findOutboxByKeys } from "./mail/outbox";
-import { getLabSettings } from "./settings";
+import { getLabSettings, getLabTimeZone } from "./settings";
+import { fromZonedInput, systemTimeZone, zonedDay } from "~/lib/time-format";
 import { canEditCalibration, type CurrentUser } from "./auth/permissions";
 import { calibrationEdits, noteCalibrationChange, noteCalibrationEdits } from "./calibration-history";
 import {
@@ -37,17 +38,22 @@ export class CalibrationError extends Error {
 const NOT_YOURS_MESSAGE = "Only the person who performed this calibration or a lab manager can change it or add files to it.";
 const SIGNED_MESSAGE = "This calibration record is signed off and can no longer change. Record a new calibration to supersede it.";
 
-function dayStart(day: string): Date {
-  const [y, m, d] = day.split("-").map(Number) as [number, number, number];
-  return new Date(y, m - 1, d, 0, 0, 0, 0);
+/** A calibration date is a day in the lab's time zone: it starts at 00:00 there… */
+function dayStart(day: string, zone: string): Date {
+  return fromZonedInput(`${day}T00:00`, zone) ?? new Date(Number.NaN);
 }
-/** A due date holds through the whole of its day, in the lab's (the server's) time zone. */
-function dayEnd(day: string): Date {
-  const [y, m, d] = day.split("-").map(Number) as [number, number, number];
-  return new Date(y, m - 1, d, 23, 59, 59, 999);
+/** …and a due date holds through the whole of its day there. */
+function dayEnd(day: string, zone: string): Date {
+  return new Date(dayStart(addDays(day, 1), zone).getTime() - 1);
 }
-export function toDayString(d: Date): string {
-  return `${d.getFullYear()}-${String(d.getMonth() + 1).padStart(2, "0")}-${String(d.getDate()).padStart(2, "0")}`;
+/** "2026-12-03" plus n calendar days. */
+function addDays(day: string, n: number): string {
+  const [y, m, d] = day.split("-").map(Number) as [number, number, number];
+  return new Date(Date.UTC(y, m - 1, d + n)).toISOString().slice(0, 10);
+}
+/** The lab's day of an instant, "2026-12-03"; without a zone, the server's (the lab's until one is set). */
+export function toDayString(d: Date, zone: string = systemTimeZone()): string {
+  return zonedDay(d, zone);
 }
 
 /** Works out every stored column from the form's input; throws CalibrationError/CalibrationInputError on bad input. */
@@ -58,14 +64,12 @@ async function columnsFor(input: CalibrationInput, t?: Transaction) {
   if (item.kind !== wanted) {
     throw new CalibrationError(422, "wrong_equipment", `A ${calibrationKindLabels[input.kind].toLowerCase()} is made on a ${kindLabels[wanted].toLowerCase()}, and ${item.name} is a ${kindLabels[item.kind].toLowerCase()}.`, "equipmentId");
   }
-  const performedAt = dayStart(input.performedOn);
+  const settings = await getLabSettings(t);
+  const performedAt = dayStart(input.performedOn, settings.timeZone);
   if (performedAt.getTime() > Date.now()) {
     throw new CalibrationError(422, "invalid_date", "The calibration date cannot be in the future: record a calibration once it is done.", "performedOn");
   }
-  const settings = await getLabSettings(t);
-  const performedDay = new Date(performedAt);
-  performedDay.setDate(performedDay.getDate() + intervalDaysFor(input.kind, settings));
-  const dueOn = input.dueOn ?? toDayString(performedDay);
+  const dueOn = input.dueOn ?? addDays(input.performedOn, intervalDaysFor(input.kind, settings));
   if (dueOn < input.performedOn) {
     throw new CalibrationError(422, "invalid_due_date", "The due date cannot be before the calibration date.", "dueOn");
   }
@@ -77,7 +81,7 @@ async function columnsFor(input: CalibrationInput, t?: Transaction) {
     frameIntervalsUncertainty: null, referenceElapsedS: null, referenceElapsedUncertaintyS: null, trueFrameRateFps: null,
     trueFrameRateUncertaintyFps: null, frameRateDeviationPct: null,
   };
-  const common = { kind: input.kind, equipmentId: item.id, performedAt, dueAt: dayEnd(dueOn), notes: input.notes ?? null };
+  const common = { kind: input.kind, equipmentId: item.id, performedAt, dueAt: dayEnd(dueOn, settings.timeZone), notes: input.notes ?? null };
   try {
     if (input.kind === "rate") {
       const meter = input.meterId ? await Equipment.findByPk(input.meterId, { transaction: t }) : null;
@@ -136,7 +140,7 @@ export async function updateCalibration(id: number, input: CalibrationInput, edi
       throw new CalibrationError(422, "fixed_fields", "The kind and the equipment of a record cannot change; record a new calibration instead.");
     }
     const columns = await columnsFor(input, t);
-    const edits = calibrationEdits(cal, columns);
+    const edits = calibrationEdits(cal, columns, await getLabTimeZone(t));
     await cal.update(columns, { transaction: t });
     await noteCalibrationEdits(t, cal.id, editor.id, edits);
     return cal;
@@ -347,12 +351,13 @@ export function listCalibrations(filter: { equipmentId?: number } = {}) {
 export async function serializeCalibrations(records: Calibration[]) {
   const userIds = [...new Set(records.flatMap((r) => [r.performedById, r.signedOffById]).filter((v): v is number => v !== null))];
   const equipIds = [...new Set(records.flatMap((r) => [r.equipmentId, r.meterId]).filter((v): v is number => v !== null))];
-  const [users, items, attachments, reminders, standing] = await Promise.all([
+  const [users, items, attachments, reminders, standing, zone] = await Promise.all([
     userIds.length ? User.findAll({ where: { id: { [Op.in]: userIds } } }) : [],
     equipIds.length ? Equipment.findAll({ where: { id: { [Op.in]: equipIds } } }) : [],
     records.length ? CalibrationAttachment.findAll({ where: { calibrationId: { [Op.in]: records.map((r) => r.id) } }, order: [["id", "ASC"]] }) : [],
     findOutboxByKeys(records.map((r) => calibrationReminderKey(r.id))),
     standingOf(records),
+    getLabTimeZone(),
   ]);
   const userName = new Map(users.map((u) => [u.id, u.name]));
   const itemName = new Map(items.map((i) => [i.id, i.name]));
@@ -365,9 +370,9 @@ export async function serializeCalibrations(records: Calibration[]) {
     meterName: r.meterId ? (itemName.get(r.meterId) ?? `#${r.meterId}`) : null,
     performedById: r.performedById,
     performedByName: userName.get(r.performedById) ?? "—",
-    performedOn: toDayString(r.performedAt),
+    performedOn: toDayString(r.performedAt, zone),
     performedAt: r.performedAt.toISOString(),
-    dueOn: toDayString(r.dueAt),
+    dueOn: toDayString(r.dueAt, zone),
     dueAt: r.dueAt.toISOString(),
     notes: r.notes,
     readings: r.readings ? (JSON.parse(r.readings) as RateReading[]) : null,

@@ -4,6 +4,8 @@ import { listBookings, serializeBookings } from "./bookings";
 import { listCalibrationsDueOrExpired } from "./calibrations";
 import { listRuns } from "./runs/queries";
 import type { CurrentUser } from "./auth/permissions";
+import { getLabTimeZone } from "./settings";
+import { fromZonedInput, zonedDay } from "~/lib/time-format";
 import type { RunState } from "~/lib/runs";
 import type { RunFilters } from "~/lib/validation/run-filters";
 
@@ -11,8 +13,12 @@ import type { RunFilters } from "~/lib/validation/run-filters";
 export const BOOKING_DAYS_AHEAD = 3;
 export const CALIBRATION_DAYS_AHEAD = 14;
 
-function startOfToday(now: Date) {
-  return new Date(now.getFullYear(), now.getMonth(), now.getDate());
+/** Today's 00:00 and the 00:00 that many days on, on the lab's clock. */
+function labDays(now: Date, days: number, zone: string) {
+  const today = zonedDay(now, zone);
+  const [y, m, d] = today.split("-").map(Number) as [number, number, number];
+  const later = new Date(Date.UTC(y, m - 1, d + days)).toISOString().slice(0, 10);
+  return { from: fromZonedInput(`${today}T00:00`, zone)!, to: fromZonedInput(`${later}T00:00`, zone)! };
 }
 
 async function queue(state: RunState, technicianId?: number) {
@@ -23,8 +29,7 @@ async function queue(state: RunState, technicianId?: number) {
 
 /** What one person's home page shows: their role decides which queues matter. */
 export async function getDashboard(user: CurrentUser, now = new Date()) {
-  const from = startOfToday(now);
-  const to = new Date(from.getFullYear(), from.getMonth(), from.getDate() + BOOKING_DAYS_AHEAD + 1);
+  const { from, to } = labDays(now, BOOKING_DAYS_AHEAD + 1, await getLabTimeZone());
   const mine = user.role === "technician" ? user.id : undefined;
   const isManager = user.role === "lab_manager";
   const logsRuns = user.role !== "instructor";

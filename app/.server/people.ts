@@ -9,6 +9,8 @@ import { afterDeactivation, afterPasswordChange } from "./auth/credential-change
 import { enqueueMail, mailQueued, type MailQueued } from "./mail/outbox";
 import { roleLabels, type Role } from "~/lib/roles";
 import { INVITATION_HOURS, RESET_MINUTES } from "~/lib/validation/people";
+import { formatDuration, timeFormat } from "~/lib/time-format";
+import { getLabTimeZone } from "./settings";
 export { INVITATION_HOURS, RESET_MINUTES };
 
 
@@ -46,7 +48,7 @@ async function issueToken(
     { usedAt: new Date() },
     { where: { userId, purpose, usedAt: { [Op.is]: null } }, transaction },
   );
-  await AuthToken.create(
+  const row = await AuthToken.create(
     {
       userId,
       purpose,
@@ -57,7 +59,12 @@ async function issueToken(
     },
     { transaction },
   );
-  return secret.token;
+  return { token: secret.token, expiresAt: row.expiresAt };
+}
+
+/** "for 72 h (until 6 Dec 2026, 09:50 CET)": how long a link works and when it stops, on the lab's clock. */
+async function linkLifetime(minutes: number, expiresAt: Date, transaction?: Transaction) {
+  return `for ${formatDuration(minutes * 60)} (until ${timeFormat(await getLabTimeZone(transaction)).dateTime(expiresAt)})`;
 }
 
 /**
@@ -81,8 +88,9 @@ export async function invitePerson(
   // The person, their link and the invitation e-mail are saved together or not at all.
   return sequelize.transaction(async (transaction) => {
     const user = await createUnlessListed({ email, name: input.name.trim(), role: input.role }, transaction);
-    const token = await issueToken(user.id, "invitation", INVITATION_HOURS * 60, invitedBy.id, transaction);
+    const { token, expiresAt } = await issueToken(user.id, "invitation", INVITATION_HOURS * 60, invitedBy.id, transaction);
     const link = `${env.appUrl}/welcome/${token}`;
+    const lifetime = await linkLifetime(INVITATION_HOURS * 60, expiresAt, transaction);
     const mail = await enqueueMail(
       {
         to: email,
@@ -91,7 +99,7 @@ export async function invitePerson(
           `Hello ${user.name},`,
           "",
           `${invitedBy.name} has added you to Tankside, the lab's run log, as ${roleLabels[input.role].toLowerCase()}.`,
-          `Choose your password here (the link works once, for ${INVITATION_HOURS} hours):`,
+          `Choose your password here (the link works once, ${lifetime}):`,
           "",
           link,
           "",
@@ -109,12 +117,13 @@ export async function resendInvitation(userId: number, invitedBy: { id: number; 
     const user = await User.findByPk(userId, { transaction });
     if (!user) throw new PeopleError("No such person.", undefined, 404);
     if (user.passwordHash) throw new PeopleError(`${user.name} has already chosen a password.`, undefined, 409);
-    const token = await issueToken(user.id, "invitation", INVITATION_HOURS * 60, invitedBy.id, transaction);
+    const { token, expiresAt } = await issueToken(user.id, "invitation", INVITATION_HOURS * 60, invitedBy.id, transaction);
+    const lifetime = await linkLifetime(INVITATION_HOURS * 60, expiresAt, transaction);
     const mail = await enqueueMail(
       {
         to: user.email,
         subject: "Your Tankside invitation (sent again)",
-        text: `Hello ${user.name},\n\nChoose your Tankside password here (works once, for ${INVITATION_HOURS} hours):\n\n${env.appUrl}/welcome/${token}\n`,
+        text: `Hello ${user.name},\n\nChoose your Tankside password here (works once, ${lifetime}):\n\n${env.appUrl}/welcome/${token}\n`,
       },
       { transaction },
     );
@@ -185,7 +194,8 @@ export async function requestPasswordReset(emailInput: string): Promise<void> {
 
 async function queueResetLink(user: User, secret: ReturnType<typeof newLinkSecret>) {
   await sequelize.transaction(async (transaction) => {
-    const token = await issueToken(user.id, "password_reset", RESET_MINUTES, null, transaction, secret);
+    const { token, expiresAt } = await issueToken(user.id, "password_reset", RESET_MINUTES, null, transaction, secret);
+    const lifetime = await linkLifetime(RESET_MINUTES, expiresAt, transaction);
     await enqueueMail(
       {
         to: user.email,
@@ -197,7 +207,7 @@ async function queueResetLink(user: User, secret: ReturnType<typeof newLinkSecre
           "",
           `${env.appUrl}/reset-password/${token}`,
           "",
-          `The link works once and expires in ${RESET_MINUTES} minutes. If you did not ask, ignore this message; your password stays as it is.`,
+          `The link works once, ${lifetime}. If you did not ask, ignore this message; your password stays as it is.`,
         ].join("\n"),
       },
       { transaction },
@@ -274,6 +284,6 @@ export async function firstManagerLink(emailInput: string, name: string): Promis
   }
   const [user] = await User.findOrCreate({ where: { email }, defaults: { email, name, role: "lab_manager", passwordHash: null, passwordChangedAt: null } });
   if (user.role !== "lab_manager") await user.update({ role: "lab_manager" });
-  const token = await issueToken(user.id, "invitation", INVITATION_HOURS * 60, null);
+  const { token } = await issueToken(user.id, "invitation", INVITATION_HOURS * 60, null);
   return `${env.appUrl}/welcome/${token}`;
 }

@@ -1,17 +1,28 @@
+import { randomUUID } from "node:crypto";
 import type { Transaction } from "sequelize";
 import { LabSetting } from "./db";
-import { settingDefaults, settingLimits, type LabSettings, type SettingKey } from "~/lib/settings";
+import { LAB_ID_SETTING, TIME_ZONE_SETTING, settingDefaults, settingLimits, timeZoneError, type LabSettings, type SettingKey } from "~/lib/settings";
+import { isTimeZone, systemTimeZone } from "~/lib/time-format";
 
 export async function getLabSettings(transaction?: Transaction): Promise<LabSettings> {
   const rows = await LabSetting.findAll({ transaction });
-  const settings: LabSettings = { ...settingDefaults };
+  const settings: LabSettings = { ...settingDefaults, timeZone: systemTimeZone(), timeZoneIsServerDefault: true };
   for (const row of rows) {
     if (row.key in settingDefaults) {
       const value = Number(row.value);
       if (Number.isFinite(value)) settings[row.key as SettingKey] = value;
+    } else if (row.key === TIME_ZONE_SETTING && isTimeZone(row.value)) {
+      settings.timeZone = row.value;
+      settings.timeZoneIsServerDefault = false;
     }
   }
   return settings;
+}
+
+/** The lab's time zone: the one set on the settings page, or the server's until one is set. */
+export async function getLabTimeZone(transaction?: Transaction): Promise<string> {
+  const row = await LabSetting.findByPk(TIME_ZONE_SETTING, { transaction });
+  return row && isTimeZone(row.value) ? row.value : systemTimeZone();
 }
 
 export async function setLabSetting(key: SettingKey, value: number) {
@@ -21,4 +32,29 @@ export async function setLabSetting(key: SettingKey, value: number) {
   }
   // The key is the primary key: INSERT … ON CONFLICT (key) DO UPDATE, so two saves at once leave one row.
   await LabSetting.upsert({ key, value: String(value) });
+}
+
+/** Sets the lab's time zone (an IANA name or UTC); an empty name goes back to the server's zone. */
+export async function setLabTimeZone(name: string) {
+  const zone = name.trim();
+  if (zone === "") {
+    await LabSetting.destroy({ where: { key: TIME_ZONE_SETTING } });
+    return;
+  }
+  if (!isTimeZone(zone)) throw new RangeError(timeZoneError(zone));
+  await LabSetting.upsert({ key: TIME_ZONE_SETTING, value: zone });
+}
+
+/**
+ * The lab's own identifier: a random UUID stored once (migration 0012) and never changed, so what
+ * is built from it (iCalendar UIDs) survives a new address or host name. Should the row be missing
+ * (a database restored without it), one is made; INSERT … ON CONFLICT DO NOTHING keeps the first.
+ */
+export async function getLabId(transaction?: Transaction): Promise<string> {
+  const row = await LabSetting.findByPk(LAB_ID_SETTING, { transaction });
+  if (row) return row.value;
+  await LabSetting.bulkCreate([{ key: LAB_ID_SETTING, value: randomUUID() }], { ignoreDuplicates: true, transaction });
+  const made = await LabSetting.findByPk(LAB_ID_SETTING, { transaction });
+  if (!made) throw new Error("the lab identifier could not be stored");
+  return made.value;
 }

@@ -5,6 +5,18 @@ import { enGB } from "date-fns/locale";
 import { useNavigate } from "react-router";
 import type { BookingState } from "~/lib/bookings";
 import { bookingStateLabels } from "~/lib/bookings";
+import { wallTime } from "~/lib/time-format";
+import { useLabTime } from "./lab-time";
+
+/**
+ * react-big-calendar lays events out on the clock of the JavaScript runtime (the server's while
+ * rendering, then the browser's). Each instant is handed over as the runtime-local Date that shows
+ * the lab's wall-clock time, so the week reads on the lab's clock on both, and hydrates unchanged.
+ */
+function onLabClock(iso: string, zone: string) {
+  const w = wallTime(new Date(iso), zone);
+  return new Date(w.year, w.month - 1, w.day, w.hour, w.minute, w.second);
+}
 
 // Weeks start on Monday and the clock is 24-hour, as on the lab's printed sheets.
 const localizer = dateFnsLocalizer({ format, parse, startOfWeek: (d: Date) => startOfWeek(d, { weekStartsOn: 1 }), getDay, locales: { "en-GB": enGB } });
@@ -26,16 +38,17 @@ interface Ev extends CalendarEvent {
 /** One item's week of bookings on react-big-calendar, dressed in Tankside's own look (booking-week.css). */
 export function BookingWeek({ bookings, week, itemId }: { bookings: WeekBooking[]; week: string; itemId: number }) {
   const navigate = useNavigate();
+  const { zone } = useLabTime();
   const events = useMemo<Ev[]>(
     () =>
       bookings.map((b) => ({
         id: b.id,
         state: b.state,
         title: `${bookingStateLabels[b.state]} · ${b.purpose} (${b.requesterName})`,
-        start: new Date(b.start),
-        end: new Date(b.end),
+        start: onLabClock(b.start, zone),
+        end: onLabClock(b.end, zone),
       })),
-    [bookings],
+    [bookings, zone],
   );
   const date = useMemo(() => new Date(`${week}T12:00:00`), [week]);
   return (

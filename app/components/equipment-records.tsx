@@ -2,7 +2,7 @@ import { Link } from "react-router";
 import type { CalibrationKind, CalibrationStanding } from "~/lib/calibrations";
 import { calibrationKindLabels } from "~/lib/calibrations";
 import { bookingStateLabels, tableBookingCaution, type BookingState } from "~/lib/bookings";
-import { formatDate, formatDateTime } from "~/lib/format";
+import { useLabTime } from "~/components/lab-time";
 import { ButtonLink } from "./ui/button";
 import { Card, Tag } from "./ui/card";
 import { Notice } from "./ui/notice";
@@ -22,6 +22,7 @@ export function EquipmentCalibrations({
   records: RecordRow[];
   canRecord: boolean;
 }) {
+  const time = useLabTime();
   if (kinds.length === 0) return null;
   const pastDue = kinds.filter((k) => k.current?.standing === "past_due");
   return (
@@ -29,7 +30,7 @@ export function EquipmentCalibrations({
       {pastDue.length ? (
         <div className="mb-4">
           <Notice kind="error" title="Past due">
-            {pastDue.map((k) => `${calibrationKindLabels[k.kind]} was due ${formatDate(k.current!.dueAt)}`).join("; ")}. Runs made with this item are flagged until a new record is signed off.
+            {pastDue.map((k) => `${calibrationKindLabels[k.kind]} was due ${time.date(k.current!.dueAt)}`).join("; ")}. Runs made with this item are flagged until a new record is signed off.
           </Notice>
         </div>
       ) : null}
@@ -40,7 +41,7 @@ export function EquipmentCalibrations({
               <span className="font-bold">{calibrationKindLabels[k.kind]}: </span>
               {k.current ? (
                 <>
-                  <StandingTag standing={k.current.standing} /> <Link to={`/calibrations/${k.current.id}`}>record #{k.current.id}</Link>, due {formatDate(k.current.dueAt)}
+                  <StandingTag standing={k.current.standing} /> <Link to={`/calibrations/${k.current.id}`}>record #{k.current.id}</Link>, due {time.date(k.current.dueAt)}
                 </>
               ) : (
                 <Tag tone="caution">None signed off</Tag>
@@ -64,7 +65,7 @@ export function EquipmentCalibrations({
             {records.map((r) => (
               <tr key={r.id} className="border-b border-line align-top">
                 <td className="py-2 pr-3"><Link to={`/calibrations/${r.id}`}>{calibrationKindLabels[r.kind]} #{r.id}</Link></td>
-                <td className="py-2 pr-3">{formatDate(r.performedAt)}, {r.performedByName}</td>
+                <td className="py-2 pr-3">{time.date(r.performedAt)}, {r.performedByName}</td>
                 <td className="py-2 pr-3">{calibrationResult(r)}</td>
                 <td className="py-2"><StandingTag standing={r.standing} /></td>
               </tr>
@@ -80,6 +81,7 @@ export function EquipmentCalibrations({
 
 /** The coming bookings of an item, with the way to the week view and the request form. */
 export function EquipmentBookings({ itemId, isTable, bookings }: { itemId: number; isTable: boolean; bookings: { id: number; start: string; end: string; purpose: string; state: BookingState; requesterName: string }[] }) {
+  const time = useLabTime();
   return (
     <Card title="Bookings" actions={<ButtonLink to={`/bookings?item=${itemId}#week`} tone="quiet">Week view and request</ButtonLink>}>
       {isTable ? <p className="mb-3 text-sm text-muted">{tableBookingCaution}</p> : null}
@@ -87,7 +89,7 @@ export function EquipmentBookings({ itemId, isTable, bookings }: { itemId: numbe
         <ul className="flex flex-col gap-2">
           {bookings.map((b) => (
             <li key={b.id}>
-              <Link to={`/bookings/${b.id}`}>{formatDateTime(b.start)} – {formatDateTime(b.end)}</Link> · {b.purpose} ({b.requesterName}){" "}
+              <Link to={`/bookings/${b.id}`}>{time.range(b.start, b.end)}</Link> · {b.purpose} ({b.requesterName}){" "}
               <Tag tone={b.state === "approved" ? "agrees" : "caution"}>{bookingStateLabels[b.state]}</Tag>
             </li>
           ))}

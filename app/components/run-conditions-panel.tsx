@@ -12,6 +12,8 @@ import {
 } from "~/lib/conditions/run-conditions";
 import { omegaFromTableRate } from "~/lib/analysis/run-omega";
 import { formatNumber } from "~/lib/number-format";
+import { useLabTime } from "~/components/lab-time";
+import { formatDuration } from "~/lib/time-format";
 import { Card } from "./ui/card";
 import { Notice } from "./ui/notice";
 
@@ -44,11 +46,10 @@ function Row({ label, value, unit, note }: { label: string; value: string; unit?
   );
 }
 
-const clock = (d: Date | null) => (d && !Number.isNaN(d.getTime()) ? d.toLocaleTimeString("en-GB", { hour: "2-digit", minute: "2-digit", second: "2-digit" }) : "—");
-const minutes = (s: number) => (Number.isFinite(s) ? (s >= 120 ? `${formatNumber(s / 60, 3)} min` : `${formatNumber(s, 3)} s`) : "—");
 
 /** The run's conditions worked out live from the same library code the server uses. */
 export function RunConditionsPanel(p: RunConditionsProps) {
+  const time = useLabTime();
   const omega = omegaFromTableRate(p.rpm, p.direction);
   const depth = p.depthCm / 100;
   const tempOk = Number.isFinite(p.temperatureC) && p.temperatureC >= WATER_TEMPERATURE_RANGE.min && p.temperatureC <= WATER_TEMPERATURE_RANGE.max;
@@ -67,12 +68,12 @@ export function RunConditionsPanel(p: RunConditionsProps) {
       <dl data-testid="run-conditions">
         <Row label="Ω" value={formatNumber(omega, 4)} unit="rad/s" note={p.direction === "cw" ? "clockwise: negative" : "counterclockwise: positive"} />
         <Row label="f = 2Ω" value={formatNumber(2 * omega, 4)} unit="1/s" />
-        <Row label="Inertial period π/|Ω|" value={minutes(inertialPeriod(omega))} />
+        <Row label="Inertial period π/|Ω|" value={formatDuration(inertialPeriod(omega))} />
         <Row label="ν of water" value={Number.isFinite(nu) ? formatNumber(nu * 1e6, 4) : "—"} unit="mm²/s" note="Korson, Drost-Hansen & Millero 1969" />
         <Row label="Ekman depth √(ν/Ω)" value={Number.isFinite(nu) && absOmega > 0 ? formatNumber(ekmanDepth(nu, absOmega) * 1000, 3) : "—"} unit="mm" />
         <Row label="Ekman number ν/(ΩH²)" value={Number.isFinite(nu) && absOmega > 0 && depth > 0 ? formatNumber(ekmanNumber(nu, absOmega, depth), 3) : "—"} />
-        <Row label="Spin-up time τ = H/√(νΩ)" value={minutes(tau)} />
-        <Row label={`Ready at (${p.spinUpTimesToWait} τ after the rate was reached)`} value={clock(ready)} />
+        <Row label="Spin-up time τ = H/√(νΩ)" value={formatDuration(tau)} />
+        <Row label={`Ready at (${p.spinUpTimesToWait} τ after the rate was reached)`} value={time.timeSeconds(ready)} />
         <Row label="Surface drop at the centre" value={surface ? formatNumber(surface.centreDrop * 1000, 3) : "—"} unit="mm" />
         <Row label="Centre-to-rim rise" value={surface ? formatNumber(surface.centreToRimRise * 1000, 3) : "—"} unit="mm" />
         {p.observed ? <Row label="Rossby number U/(|f|L)" note="tracer speed U, tank radius L" value={formatNumber(ro, 2)} /> : null}

@@ -21,8 +21,24 @@ export const settingDefaults = {
   sessionIdleHours: 8,
 } as const;
 
-export type LabSettings = { -readonly [K in keyof typeof settingDefaults]: number };
-export type SettingKey = keyof LabSettings;
+/** The numeric settings; the lab's time zone, a name, is kept beside them. */
+export type NumberSettings = { -readonly [K in keyof typeof settingDefaults]: number };
+export type SettingKey = keyof NumberSettings;
+
+export type LabSettings = NumberSettings & {
+  /** The IANA time zone every page, e-mail and printout shows times in. */
+  timeZone: string;
+  /** True while no zone is set and the server's own is used. */
+  timeZoneIsServerDefault: boolean;
+};
+
+/** The row keys of the settings that are not numbers. */
+export const TIME_ZONE_SETTING = "timeZone";
+export const LAB_ID_SETTING = "labId";
+
+export function timeZoneError(name: string) {
+  return `"${name}" is not a time zone Tankside knows. Give an IANA name such as Europe/Berlin or America/New_York, or UTC; leave it empty to use the server's zone.`;
+}
 
 export const settingLimits: Record<SettingKey, { min: number; max: number; label: string; unit: string }> = {
   checkTolerancePct: { min: 0.1, max: 50, label: "Verdict tolerance", unit: "% of f predicted" },

@@ -6,8 +6,8 @@ import type { RunListItem } from "~/.server/runs/queries";
 import { ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { VerdictTag } from "~/components/run-record/tags";
-import { formatDate, formatDateTime } from "~/lib/format";
 import { formatNumber } from "~/lib/number-format";
+import { useLabTime } from "~/components/lab-time";
 import { roleLabels } from "~/lib/roles";
 import { runFiltersToSearch } from "~/lib/validation/run-filters";
 
@@ -18,14 +18,8 @@ export async function loader({ request }: Route.LoaderArgs) {
   return { user, dashboard: await getDashboard(user) };
 }
 
-function dayLabel(iso: string) {
-  const d = new Date(iso);
-  const today = new Date();
-  const diff = Math.round((new Date(d.getFullYear(), d.getMonth(), d.getDate()).getTime() - new Date(today.getFullYear(), today.getMonth(), today.getDate()).getTime()) / 86_400_000);
-  return diff === 0 ? "Today" : diff === 1 ? "Tomorrow" : d.toLocaleDateString("en-GB", { weekday: "long", day: "numeric", month: "short" });
-}
-
 function RunLines({ items, empty }: { items: RunListItem[]; empty: string }) {
+  const time = useLabTime();
   if (!items.length) return <p className="text-muted">{empty}</p>;
   return (
     <ul className="divide-y divide-line">
@@ -35,7 +29,7 @@ function RunLines({ items, empty }: { items: RunListItem[]; empty: string }) {
             <span className="font-mono text-lg font-bold">{r.label}</span>
             <span className="text-ink">{r.purpose}</span>
             <span className="text-sm text-muted">
-              {r.table.name} · {formatNumber(r.setRateRpm)} rpm · {r.technician.name} · {formatDate(r.createdAt)}
+              {r.table.name} · {formatNumber(r.setRateRpm)} rpm · {r.technician.name} · {time.date(r.createdAt)}
             </span>
           </Link>
         </li>
@@ -56,6 +50,7 @@ function QueueCard({ title, queue, empty, hint }: { title: string; queue: { stat
 }
 
 export default function Dashboard({ loaderData }: Route.ComponentProps) {
+  const time = useLabTime();
   const { user, dashboard: d } = loaderData;
   const logsRuns = user.role !== "instructor";
   return (
@@ -81,8 +76,8 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
               {d.bookings.map((b) => (
                 <li key={b.id}>
                   <Link to={`/bookings/${b.id}`} className="flex min-h-12 flex-wrap items-center gap-x-3 py-2 no-underline hover:bg-tank-50">
-                    <span className="font-bold text-ink">{dayLabel(b.start)}</span>
-                    <span className="font-mono">{new Date(b.start).toLocaleTimeString("en-GB", { hour: "2-digit", minute: "2-digit" })}–{new Date(b.end).toLocaleTimeString("en-GB", { hour: "2-digit", minute: "2-digit" })}</span>
+                    <span className="font-bold text-ink">{time.dayLabel(b.start)}</span>
+                    <span className="font-mono">{time.timeRange(b.start, b.end)}</span>
                     <span className="text-ink">{b.equipmentName}</span>
                     <span className="text-sm text-muted">{b.purpose} · {b.requesterName}</span>
                     {b.mine ? <Tag tone="tank">Yours</Tag> : null}
@@ -106,7 +101,7 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
                       <span className="font-bold text-ink">{c.equipmentName}</span>
                       <span className="text-ink">{c.kind} calibration</span>
                       <span className="text-sm text-muted">
-                        {c.pastDue ? `was due ${formatDate(c.dueAt)}` : `due ${formatDate(c.dueAt)} (${c.daysLeft} day${c.daysLeft === 1 ? "" : "s"})`}
+                        {c.pastDue ? `was due ${time.date(c.dueAt)}` : `due ${time.date(c.dueAt)} (${c.daysLeft} day${c.daysLeft === 1 ? "" : "s"})`}
                       </span>
                     </Link>
                   </li>
@@ -150,7 +145,7 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
                     <VerdictTag verdict={r.verdict} />
                     <span className="font-mono text-lg font-bold">{r.label}</span>
                     <span className="text-ink">{r.purpose}</span>
-                    <span className="text-sm text-muted">{r.table.name} · {formatDateTime(r.createdAt)}</span>
+                    <span className="text-sm text-muted">{r.table.name} · {time.dateTime(r.createdAt)}</span>
                   </Link>
                 </li>
               ))}

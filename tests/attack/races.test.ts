@@ -130,12 +130,13 @@ describe("twenty of the same write at once: one row, no 500", { timeout: 120_000
 
   it("lab settings (one row per setting): twenty saves at once leave one row per setting", async () => {
     holdTogether(insertInto("lab_settings"), 20);
-    const form = (i: number) => Object.fromEntries(Object.entries({ ...settingDefaults, spinUpTimesToWait: 3 + (i % 5) }).map(([k, v]) => [k, String(v)]));
+    const form = (i: number) => Object.fromEntries(Object.entries({ ...settingDefaults, spinUpTimesToWait: 3 + (i % 5), timeZone: i % 2 ? "Europe/Berlin" : "America/New_York" }).map(([k, v]) => [k, String(v)]));
     const { crashes, statuses } = await twenty((i) => post(settingsAction, lab.manager, "/settings", form(i)));
     expect(crashes).toEqual([]);
     expect(statuses).toEqual({ 200: 20 });
     const rows = await LabSetting.findAll();
-    expect(rows.map((r) => r.key).sort()).toEqual(Object.keys(settingDefaults).sort());
+    // One row per setting, the time zone among them, beside the lab's identifier made at the first start.
+    expect(rows.map((r) => r.key).sort()).toEqual([...Object.keys(settingDefaults), "timeZone", "labId"].sort());
   });
 
   it("people (one per e-mail address): twenty invitations of one address at once add one person and send one invitation; the rest are told 409", async () => {

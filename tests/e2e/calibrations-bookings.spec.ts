@@ -237,3 +237,28 @@ test("settings: the lab manager changes the reminder days; a bad value is refuse
   await page.getByRole("button", { name: "Save settings" }).click();
   await expect(page.getByText("Settings saved.")).toBeVisible();
 });
+
+test("settings: the lab manager names the lab's time zone; Mars/Olympus is refused with a message; pages then name the zone", async ({ page }) => {
+  await signIn(page, people.manager);
+  await page.goto("/settings");
+  const zone = page.getByLabel("Lab time zone");
+  await expect(zone).toHaveValue("");
+  await zone.fill("Mars/Olympus");
+  await page.getByRole("button", { name: "Save settings" }).click();
+  await expect(page.getByText('"Mars/Olympus" is not a time zone Tankside knows.', { exact: false })).toBeVisible();
+  await page.goto("/settings");
+  await expect(zone).toHaveValue("");
+  await zone.fill("Asia/Kolkata");
+  await page.getByRole("button", { name: "Save settings" }).click();
+  await expect(page.getByText("Settings saved.")).toBeVisible();
+  await page.goto("/settings");
+  await expect(zone).toHaveValue("Asia/Kolkata");
+  // India's offset, named on the page, whatever the zone of the machine running the server.
+  await expect(page.getByText(/Now it reads \d{1,2} \w{3} \d{4}, \d{2}:\d{2} GMT\+5:30\./)).toBeVisible();
+  await page.goto("/bookings/1");
+  await expect(page.getByText(/GMT\+5:30/).first()).toBeVisible();
+  await page.goto("/settings");
+  await zone.fill("");
+  await page.getByRole("button", { name: "Save settings" }).click();
+  await expect(page.getByText("Settings saved.")).toBeVisible();
+});

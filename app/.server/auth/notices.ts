@@ -1,7 +1,8 @@
 import { env } from "../env";
 import type { Transaction } from "sequelize";
 import { enqueueMail, mailQueued, type MailQueued } from "../mail/outbox";
-import { formatDateTime } from "~/lib/format";
+import { timeFormat } from "~/lib/time-format";
+import { getLabTimeZone } from "../settings";
 
 /** Changes to how someone signs in that they must hear about, in case it was not them. */
 export type SecurityEvent =
@@ -32,13 +33,14 @@ export async function notifySecurityEvent(user: { email: string; name: string },
     }, { transaction });
     return mailQueued(row);
   }
+  const time = timeFormat(await getLabTimeZone(transaction));
   const row = await enqueueMail({
     to: user.email,
     subject: "A new Tankside API token was made",
     text: [
       `Hello ${user.name},`,
       "",
-      `An API token named "${event.label}" was just made for your account. It acts with your role and works until ${formatDateTime(event.expiresAt)} unless revoked.`,
+      `An API token named "${event.label}" was just made for your account. It acts with your role and works until ${time.dateTime(event.expiresAt)} unless revoked.`,
       `You can see and revoke your tokens at ${env.appUrl}/account.`,
       "",
       notYou,

@@ -2,11 +2,13 @@ import { Booking, Calibration, Equipment, User } from "../db";
 import { createCalibration, toDayString } from "../calibrations";
 import { spinUpLeadS } from "~/lib/bookings";
 import { settingDefaults } from "~/lib/settings";
+import { systemTimeZone } from "~/lib/time-format";
 import type { CalibrationInput } from "~/lib/validation/calibrations";
 import { addDemoStep } from "./demo";
 
 const DAY = 86_400_000;
-const day = (offset: number) => toDayString(new Date(Date.now() + offset * DAY));
+// A fresh demo lab has no time zone set, so it keeps the server's.
+const day = (offset: number) => toDayString(new Date(Date.now() + offset * DAY), systemTimeZone());
 /** A local time `offset` days from today at hh:mm, for bookings people can read at a glance. */
 function at(offset: number, hh: number, mm = 0) {
   const d = new Date(Date.now() + offset * DAY);

@@ -1,5 +1,5 @@
 import type { RunHistoryEntry } from "~/.server/runs/record";
-import { formatDateTime } from "~/lib/format";
+import { useLabTime } from "~/components/lab-time";
 
 function value(v: string | null) {
   return v === null || v === "" ? <span className="text-muted">(none)</span> : <span className="font-mono">{v}</span>;
@@ -10,6 +10,7 @@ function value(v: string | null) {
  * old → new. Fields named in `events` are single happenings (logged, signed off) shown by their value.
  */
 export function RunHistoryList({ entries, events = ["created"], testId = "run-history" }: { entries: RunHistoryEntry[]; events?: string[]; testId?: string }) {
+  const time = useLabTime();
   if (!entries.length) return <p className="text-muted">No changes recorded.</p>;
   return (
     <table className="w-full text-left" data-testid={testId}>
@@ -24,7 +25,7 @@ export function RunHistoryList({ entries, events = ["created"], testId = "run-hi
       <tbody className="divide-y divide-line">
         {entries.map((e) => (
           <tr key={e.id}>
-            <td className="py-2 pr-3 whitespace-nowrap">{formatDateTime(e.at)}</td>
+            <td className="py-2 pr-3 whitespace-nowrap">{time.dateTime(e.at)}</td>
             <td className="py-2 pr-3">{e.who?.name ?? "Tankside"}</td>
             <td className="py-2 pr-3">{e.fieldLabel}</td>
             <td className="py-2">

@@ -4,13 +4,14 @@ import type { SignOffView } from "~/.server/runs/record";
 import { Button, ButtonLink } from "~/components/ui/button";
 import { Card } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
-import { formatDateTime } from "~/lib/format";
+import { useLabTime } from "~/components/lab-time";
 
 /**
  * Sign-off for the run record: who signed and when, or (for a lab manager, on a checked run) the
  * form to sign; on a signed-off run, the way to log a correction.
  */
 export function SignOffPanel({ runId, signOff, redirectTo = `/runs/${runId}` }: { runId: number; signOff: SignOffView; redirectTo?: string }) {
+  const time = useLabTime();
   const fetcher = useFetcher<typeof signOffAction>();
   const busy = fetcher.state !== "idle";
   const failed = fetcher.data && !fetcher.data.ok ? fetcher.data.message : null;
@@ -19,7 +20,7 @@ export function SignOffPanel({ runId, signOff, redirectTo = `/runs/${runId}` }: 
       {signOff.state === "signed_off" ? (
         <div className="flex flex-col gap-3">
           <p data-testid="signed-off">
-            <strong>Signed off</strong> by {signOff.signedOffBy?.name ?? "a lab manager"} on {formatDateTime(signOff.signedOffAt)}. The
+            <strong>Signed off</strong> by {signOff.signedOffBy?.name ?? "a lab manager"} on {time.dateTime(signOff.signedOffAt)}. The
             run is read-only: its conditions, frames, tracks and theory check stay as they were signed.
           </p>
           {signOff.canCorrect ? (

@@ -2,6 +2,7 @@ import type { StoredCheckView } from "./types";
 import { TheoryPlots } from "~/components/plots/theory-plots";
 import { formatNumber } from "~/lib/number-format";
 import { CalibrationsAppliedList } from "./calibrations-applied-list";
+import { useLabTime } from "~/components/lab-time";
 
 const verdictWords = { agrees: "Agrees with theory", disagrees: "Disagrees with theory", inconclusive: "Inconclusive" } as const;
 
@@ -20,6 +21,7 @@ function Figure({ label, value, unit, sub }: { label: string; value: string; uni
 
 /** The theory check as a technician reads it: the verdict and its reason first, then the numbers, then the plots. */
 export function TheoryCheckPanel({ check, setup, printable }: { check: StoredCheckView; setup: { centre: { x: number; y: number }; pxPerM: number | null; mirrored: boolean }; printable?: boolean }) {
+  const time = useLabTime();
   const r = check.result;
   const tone = r.verdict === "agrees" ? "border-agrees-ink bg-agrees-bg text-agrees-ink" : r.verdict === "disagrees" ? "border-disagrees-ink bg-disagrees-bg text-disagrees-ink" : "border-inconclusive-ink bg-inconclusive-bg text-inconclusive-ink";
   const pct = r.ratio !== null ? `${formatNumber((r.ratio - 1) * 100, 2)} %` : "—";
@@ -46,7 +48,7 @@ export function TheoryCheckPanel({ check, setup, printable }: { check: StoredChe
         <CalibrationsAppliedList entries={r.calibrationsApplied} />
       </div>
       <p className="text-sm text-muted">
-        Checked {new Date(check.createdAt).toISOString().slice(0, 16).replace("T", " ")} UTC with Tankside {check.codeVersion}, on track #{check.input.trackId} ({check.input.pointCount} points), camera {check.input.cameraMode === "lab" ? "lab-fixed (de-rotated by −Ω(t − t₀))" : "co-rotating"}
+        Checked {time.dateTime(check.createdAt)} with Tankside {check.codeVersion}, on track #{check.input.trackId} ({check.input.pointCount} points), camera {check.input.cameraMode === "lab" ? "lab-fixed (de-rotated by −Ω(t − t₀))" : "co-rotating"}
         {check.input.flatTable ? ", flat table (centrifugal term included)" : ""}.
       </p>
       <TheoryPlots result={r} setup={setup} key={printable ? "print" : "screen"} />

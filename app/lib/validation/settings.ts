@@ -1,5 +1,6 @@
 import { z } from "zod";
-import { settingLimits, type SettingKey } from "../settings";
+import { settingLimits, timeZoneError, type SettingKey } from "../settings";
+import { isTimeZone } from "../time-format";
 
 const wholeDays: SettingKey[] = ["rateCalibrationIntervalDays", "scaleCalibrationIntervalDays", "timingCheckIntervalDays", "calibrationReminderDays"];
 
@@ -23,6 +24,12 @@ export const labSettingsSchema = z
     timingCheckIntervalDays: field("timingCheckIntervalDays"),
     calibrationReminderDays: field("calibrationReminderDays"),
     sessionIdleHours: field("sessionIdleHours"),
+    // Empty (or left out) means the server's own zone.
+    timeZone: z
+      .string()
+      .optional()
+      .transform((v) => (v ?? "").trim())
+      .refine((v) => v === "" || isTimeZone(v), { error: (issue) => timeZoneError(String(issue.input)) }),
   })
   .superRefine((v, ctx) => {
     const shortest = Math.min(v.rateCalibrationIntervalDays, v.scaleCalibrationIntervalDays, v.timingCheckIntervalDays);

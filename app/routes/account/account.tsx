@@ -16,7 +16,7 @@ import { Button } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
-import { formatDateTime } from "~/lib/format";
+import { useLabTime } from "~/components/lab-time";
 
 export const meta: Route.MetaFunction = () => [{ title: "Your account · Tankside" }];
 
@@ -104,6 +104,7 @@ const revokedLabels: Record<string, string> = {
 };
 
 export default function Account({ loaderData }: Route.ComponentProps) {
+  const time = useLabTime();
   const actionData = useActionData<typeof action>();
   const passwordResult = actionData && "result" in actionData ? actionData.result : undefined;
   const [form, fields] = useForm({
@@ -165,10 +166,10 @@ export default function Account({ loaderData }: Route.ComponentProps) {
                     {t.label} <span className="font-mono text-sm text-muted">{t.prefix}…</span>
                   </p>
                   <p className="text-sm text-muted">
-                    made {formatDateTime(t.createdAt)} · {t.lastUsedAt ? `last used ${formatDateTime(t.lastUsedAt)}` : "never used"} ·{" "}
+                    made {time.dateTime(t.createdAt)} · {t.lastUsedAt ? `last used ${time.dateTime(t.lastUsedAt)}` : "never used"} ·{" "}
                     {t.revokedAt
-                      ? `revoked ${formatDateTime(t.revokedAt)}${t.revokedReason ? ` (${revokedLabels[t.revokedReason]})` : ""}`
-                      : `${t.expired ? "expired" : "expires"} ${formatDateTime(t.expiresAt)}`}
+                      ? `revoked ${time.dateTime(t.revokedAt)}${t.revokedReason ? ` (${revokedLabels[t.revokedReason]})` : ""}`
+                      : `${t.expired ? "expired" : "expires"} ${time.dateTime(t.expiresAt)}`}
                   </p>
                 </div>
                 {t.revokedAt ? (

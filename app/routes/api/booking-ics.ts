@@ -8,7 +8,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request);
   const booking = await getBooking(parseId(request, params.id, "That booking"));
   if (!booking) return apiError(404, "not_found", "No booking with that id.");
-  return new Response(bookingIcs(await serializeBooking(booking)), {
+  return new Response(await bookingIcs(await serializeBooking(booking)), {
     headers: {
       "Content-Type": "text/calendar; charset=utf-8",
       "Content-Disposition": `attachment; filename="tankside-booking-${booking.id}.ics"`,

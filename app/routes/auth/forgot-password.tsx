@@ -5,6 +5,7 @@ import type { Route } from "./+types/forgot-password";
 import { readForm } from "~/.server/http";
 import { requestPasswordReset } from "~/.server/people";
 import { forgotSchema, RESET_MINUTES } from "~/lib/validation/people";
+import { formatDuration } from "~/lib/time-format";
 import { Button } from "~/components/ui/button";
 import { TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
@@ -30,7 +31,7 @@ export default function ForgotPassword({ actionData }: Route.ComponentProps) {
       <h1>Forgot your password?</h1>
       <p className="mt-2 text-muted">
         Give the e-mail address of your Tankside account. If it has one, a link to choose a new password goes there; it works
-        once and for {RESET_MINUTES} minutes.
+        once and for {formatDuration(RESET_MINUTES * 60)}.
       </p>
       {actionData?.sent ? (
         <div className="mt-4">

@@ -5,7 +5,8 @@ import { notFound, parseId, readForm } from "~/.server/http";
 import { BookingError, approveBooking, cancelBooking, declineBooking, getBooking, serializeBooking } from "~/.server/bookings";
 import { declineSchema } from "~/lib/validation/bookings";
 import { bookingStateLabels, tableBookingCaution } from "~/lib/bookings";
-import { formatDateTime } from "~/lib/format";
+import { useLabTime } from "~/components/lab-time";
+import { formatDuration } from "~/lib/time-format";
 import { Button, ButtonA, ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { TextField } from "~/components/ui/field";
@@ -51,6 +52,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 export default function BookingDetail({ loaderData, actionData }: Route.ComponentProps) {
+  const time = useLabTime();
   const { booking: b, user } = loaderData;
   const outcome = (actionData ?? {}) as Outcome;
   const isManager = user.role === "lab_manager";
@@ -59,15 +61,15 @@ export default function BookingDetail({ loaderData, actionData }: Route.Componen
   const tone = b.state === "approved" ? "agrees" : b.state === "requested" ? "caution" : b.state === "declined" ? "disagrees" : "neutral";
   const rows: [string, string | null][] = [
     ["Item", b.equipmentName],
-    ["Slot", `${formatDateTime(b.start)} – ${formatDateTime(b.end)}`],
+    ["Slot", time.range(b.start, b.end)],
     ["Purpose", b.purpose],
-    ["Requested by", `${b.requesterName}, ${formatDateTime(b.createdAt)}`],
+    ["Requested by", `${b.requesterName}, ${time.dateTime(b.createdAt)}`],
     ["Planned rate", b.plannedRateRpm === null ? null : `${b.plannedRateRpm} rpm`],
     ["Planned depth", b.plannedDepthCm === null ? null : `${b.plannedDepthCm} cm`],
-    ["Spin-up lead time", b.spinUpLeadMinutes === null ? null : `${b.spinUpLeadMinutes} min, included before the slot the requester asked for`],
-    ["Decided", b.decidedAt ? `${b.decidedByName}, ${formatDateTime(b.decidedAt)}` : null],
+    ["Spin-up lead time", b.spinUpLeadMinutes === null ? null : `${formatDuration(b.spinUpLeadMinutes * 60)}, included before the slot the requester asked for`],
+    ["Decided", b.decidedAt ? `${b.decidedByName}, ${time.dateTime(b.decidedAt)}` : null],
     ["Reason for declining", b.declineReason],
-    ["Cancelled", b.cancelledAt ? formatDateTime(b.cancelledAt) : null],
+    ["Cancelled", b.cancelledAt ? time.dateTime(b.cancelledAt) : null],
   ];
   return (
     <div>

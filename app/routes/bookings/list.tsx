@@ -2,7 +2,6 @@ import { Form, Link, data, useNavigation } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { useState } from "react";
-import { addDays, format, startOfWeek } from "date-fns";
 import type { Route } from "./+types/list";
 import { readForm } from "~/.server/http";
 import rbcStyles from "react-big-calendar/lib/css/react-big-calendar.css?url";
@@ -22,11 +21,12 @@ import {
   serializeBookings,
 } from "~/.server/bookings";
 import { listEquipment } from "~/.server/equipment";
-import { getLabSettings } from "~/.server/settings";
+import { getLabSettings, getLabTimeZone } from "~/.server/settings";
 import { bookingFilterSchema, bookingRequestSchema, declineSchema } from "~/lib/validation/bookings";
 import { bookingStateLabels, bookingStates, spinUpLeadS, tableBookingCaution, type BookingState } from "~/lib/bookings";
 import { kindLabels } from "~/lib/equipment";
-import { formatDateTime } from "~/lib/format";
+import { useLabTime } from "~/components/lab-time";
+import { formatDuration, fromZonedInput, timeFormat, zonedDay } from "~/lib/time-format";
 import { BookingWeek } from "~/components/booking-week";
 import { Button, ButtonA } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
@@ -39,7 +39,17 @@ export const links: Route.LinksFunction = () => [
   { rel: "stylesheet", href: weekStyles },
 ];
 
-const localInput = (d: Date) => format(d, "yyyy-MM-dd'T'HH:mm");
+
+/** "2026-12-03" plus n calendar days. */
+function addDays(day: string, n: number) {
+  const [y, m, d] = day.split("-").map(Number) as [number, number, number];
+  return new Date(Date.UTC(y, m - 1, d + n)).toISOString().slice(0, 10);
+}
+/** The Monday of a calendar day's week. */
+function mondayOf(day: string) {
+  const weekday = new Date(`${day}T12:00:00Z`).getUTCDay();
+  return addDays(day, -((weekday + 6) % 7));
+}
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
@@ -57,23 +67,25 @@ export async function loader({ request }: Route.LoaderArgs) {
   const bookable = items.filter((i) => i.status === "in_service");
   const weekItemId = Number(url.searchParams.get("item")) || bookable.find((i) => i.kind === "table")?.id || bookable[0]?.id || 0;
   const weekParam = url.searchParams.get("week");
-  const weekStart = startOfWeek(weekParam && !Number.isNaN(new Date(`${weekParam}T12:00`).getTime()) ? new Date(`${weekParam}T12:00`) : new Date(), { weekStartsOn: 1 });
+  // The week runs Monday 00:00 to Monday 00:00 on the lab's clock.
+  const weekStart = mondayOf(weekParam && /^\d{4}-\d{2}-\d{2}$/.test(weekParam) && !Number.isNaN(Date.parse(`${weekParam}T12:00:00Z`)) ? weekParam : zonedDay(new Date(), settings.timeZone));
+  const weekFrom = fromZonedInput(`${weekStart}T00:00`, settings.timeZone)!;
+  const weekTo = fromZonedInput(`${addDays(weekStart, 7)}T00:00`, settings.timeZone)!;
   const weekRows = weekItemId
-    ? (await listBookings({ equipmentId: weekItemId, from: weekStart, to: addDays(weekStart, 7) })).filter((b) => b.state === "approved" || b.state === "requested")
+    ? (await listBookings({ equipmentId: weekItemId, from: weekFrom, to: weekTo })).filter((b) => b.state === "approved" || b.state === "requested")
     : [];
-  const tomorrow = new Date();
-  tomorrow.setDate(tomorrow.getDate() + 1);
-  tomorrow.setHours(10, 0, 0, 0);
+  // The form's fields are on the lab's clock: tomorrow (the lab's day), 10:00 to 12:00.
+  const tomorrow = zonedDay(new Date(Date.now() + 86_400_000), settings.timeZone);
   return {
     user,
     filterProblem: parsed.success ? null : parsed.error.issues[0]!.message,
     filter: Object.fromEntries(url.searchParams),
     bookings: await serializeBookings(rows),
     items: items.map((i) => ({ id: i.id, name: i.name, kind: i.kind, status: i.status })),
-    week: { itemId: weekItemId, start: format(weekStart, "yyyy-MM-dd"), bookings: await serializeBookings(weekRows) },
+    week: { itemId: weekItemId, start: weekStart, bookings: await serializeBookings(weekRows) },
     spinUpTimesToWait: settings.spinUpTimesToWait,
     feed: feed ? { prefix: feed.tokenPrefix, lastUsedAt: feed.lastUsedAt?.toISOString() ?? null } : null,
-    defaults: { start: localInput(tomorrow), end: localInput(new Date(tomorrow.getTime() + 2 * 3_600_000)) },
+    defaults: { start: `${tomorrow}T10:00`, end: `${tomorrow}T12:00` },
   };
 }
 
@@ -90,12 +102,13 @@ export async function action({ request }: Route.ActionArgs) {
       const submission = parseWithZod(form, { schema: bookingRequestSchema });
       if (submission.status !== "success") return data<Outcome>({ request: submission.reply() }, { status: 400 });
       const v = submission.value;
+      const time = timeFormat(await getLabTimeZone());
       try {
         const { booking, mail } = await createBooking(
-          { equipmentId: v.equipmentId, start: new Date(v.start), end: new Date(v.end), purpose: v.purpose, plannedRateRpm: v.plannedRateRpm, plannedDepthM: v.plannedDepthCm === undefined ? undefined : v.plannedDepthCm / 100, addSpinUpLead: v.addSpinUpLead },
+          { equipmentId: v.equipmentId, start: fromZonedInput(v.start, time.zone) ?? new Date(Number.NaN), end: fromZonedInput(v.end, time.zone) ?? new Date(Number.NaN), purpose: v.purpose, plannedRateRpm: v.plannedRateRpm, plannedDepthM: v.plannedDepthCm === undefined ? undefined : v.plannedDepthCm / 100, addSpinUpLead: v.addSpinUpLead },
           user,
         );
-        return data<Outcome>({ request: submission.reply({ resetForm: true }), notice: `Booking #${booking.id} requested for ${formatDateTime(booking.startAt)} – ${formatDateTime(booking.endAt)}. The lab managers have been told.`, ...mailNote(mail, "the lab managers") });
+        return data<Outcome>({ request: submission.reply({ resetForm: true }), notice: `Booking #${booking.id} requested for ${time.range(booking.startAt, booking.endAt)}. The lab managers have been told.`, ...mailNote(mail, "the lab managers") });
       } catch (err) {
         if (err instanceof BookingError) {
           const field = err.field && ["equipmentId", "start", "end", "addSpinUpLead"].includes(err.field) ? err.field : null;
@@ -139,6 +152,7 @@ function StateTag({ state }: { state: BookingState }) {
 }
 
 export default function Bookings({ loaderData, actionData }: Route.ComponentProps) {
+  const time = useLabTime();
   const outcome = (actionData ?? {}) as Outcome;
   const { user, items, bookings, week } = loaderData;
   const isManager = user.role === "lab_manager";
@@ -157,7 +171,8 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
   const [start, setStart] = useState(String(fields.start.initialValue ?? ""));
   const chosenItem = items.find((i) => String(i.id) === chosen);
   const leadS = Number(rate) > 0 && Number(depth) > 0 ? spinUpLeadS(Number(depth) / 100, Number(rate), loaderData.spinUpTimesToWait) : null;
-  const proposedStart = leadS !== null && start && !Number.isNaN(new Date(start).getTime()) ? new Date(Math.floor((new Date(start).getTime() - leadS * 1000) / 60_000) * 60_000) : null;
+  const startAt = start ? fromZonedInput(start, time.zone) : null;
+  const proposedStart = leadS !== null && startAt ? new Date(Math.floor((startAt.getTime() - leadS * 1000) / 60_000) * 60_000) : null;
   const weekItem = items.find((i) => i.id === week.itemId);
 
   return (
@@ -186,7 +201,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                 </option>
               ))}
             </SelectField>
-            <TextField label="Start" type="datetime-local" name={fields.start.name} key={fields.start.key} defaultValue={fields.start.initialValue as string | undefined} error={fields.start.errors} onChange={(e) => setStart(e.target.value)} />
+            <TextField label="Start" type="datetime-local" name={fields.start.name} key={fields.start.key} defaultValue={fields.start.initialValue as string | undefined} error={fields.start.errors} hint={`Lab time (${time.zone}).`} onChange={(e) => setStart(e.target.value)} />
             <TextField label="End" type="datetime-local" name={fields.end.name} key={fields.end.key} defaultValue={fields.end.initialValue as string | undefined} error={fields.end.errors} />
             <TextAreaField label="Purpose" name={fields.purpose.name} key={fields.purpose.key} defaultValue={fields.purpose.initialValue as string | undefined} error={fields.purpose.errors} maxLength={300} placeholder="e.g. Second-year lab, inertial circles" />
             {chosenItem?.kind === "table" ? (
@@ -197,8 +212,8 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                 {leadS !== null ? (
                   <div data-testid="spin-up-proposal">
                     <Notice kind="info" title="Spin-up lead time">
-                      {loaderData.spinUpTimesToWait} × τ = {Math.round(leadS / 60)} min (τ = H/√(νΩ), water at ν = 1.0 × 10⁻⁶ m²/s).
-                      {proposedStart ? ` Tankside proposes starting at ${formatDateTime(proposedStart)}.` : null}
+                      {loaderData.spinUpTimesToWait} × τ = {formatDuration(leadS)} (τ = H/√(νΩ), water at ν = 1.0 × 10⁻⁶ m²/s).
+                      {proposedStart ? ` Tankside proposes starting at ${time.dateTime(proposedStart)}.` : null}
                     </Notice>
                   </div>
                 ) : null}
@@ -282,9 +297,8 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                       </td>
                       <td className="py-3 pr-3">{b.equipmentName}</td>
                       <td className="py-3 pr-3">
-                        {formatDateTime(b.start)} –<br />
-                        {formatDateTime(b.end)}
-                        {b.spinUpLeadMinutes ? <p className="text-sm text-muted">incl. {b.spinUpLeadMinutes} min spin-up</p> : null}
+                        {time.range(b.start, b.end)}
+                        {b.spinUpLeadMinutes ? <p className="text-sm text-muted">incl. {formatDuration(b.spinUpLeadMinutes * 60)} spin-up</p> : null}
                       </td>
                       <td className="py-3 pr-3">{b.purpose}</td>
                       <td className="py-3 pr-3">
@@ -332,7 +346,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
         {loaderData.feed ? (
           <p className="mb-3 text-sm text-muted">
             Current address starts with <code>{loaderData.feed.prefix}…</code>
-            {loaderData.feed.lastUsedAt ? `, last read ${formatDateTime(loaderData.feed.lastUsedAt)}` : ", not read yet"}.
+            {loaderData.feed.lastUsedAt ? `, last read ${time.dateTime(loaderData.feed.lastUsedAt)}` : ", not read yet"}.
           </p>
         ) : null}
         <div className="flex flex-wrap gap-3">

@@ -8,8 +8,9 @@ import { CalibrationError, getCalibration, serializeCalibrations, signOffCalibra
 import { getCalibrationHistory } from "~/.server/calibration-history";
 import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { calibrationKindLabels, trueRateFromCalibration } from "~/lib/calibrations";
-import { formatDate, formatDateTime } from "~/lib/format";
 import { formatNumber } from "~/lib/number-format";
+import { useLabTime } from "~/components/lab-time";
+import type { TimeFormat } from "~/lib/time-format";
 import { Button, ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
@@ -44,13 +45,14 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
 }
 
-function reminderText(m: { state: string; sentAt: string | null; lastError: string | null; attempts: number }) {
-  if (m.state === "sent") return `Sent ${formatDateTime(m.sentAt)}`;
+function reminderText(m: { state: string; sentAt: string | null; lastError: string | null; attempts: number }, time: TimeFormat) {
+  if (m.state === "sent") return `Sent ${time.dateTime(m.sentAt)}`;
   if (m.state === "failed") return `Not sent: gave up after ${m.attempts} attempts (${m.lastError})`;
   return m.lastError ? `Queued; attempt ${m.attempts} failed (${m.lastError}), tried again automatically` : "Queued";
 }
 
 export default function CalibrationDetail({ loaderData, actionData }: Route.ComponentProps) {
+  const time = useLabTime();
   const r = loaderData.record;
   const outcome = (actionData ?? {}) as { notice?: string; problem?: string };
   const signed = Boolean(r.signedOffAt);
@@ -61,11 +63,11 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
   const rows: [string, string | null][] = [
     ["Item", r.equipmentName],
     ["Rate meter", r.meterName],
-    ["Performed", `${formatDate(r.performedAt)} by ${r.performedByName}`],
-    ["Due", formatDate(r.dueAt)],
-    ["Signed off", r.signedOffAt ? `${formatDateTime(r.signedOffAt)} by ${r.signedOffByName}` : "Not yet"],
+    ["Performed", `${time.date(r.performedAt)} by ${r.performedByName}`],
+    ["Due", time.date(r.dueAt)],
+    ["Signed off", r.signedOffAt ? `${time.dateTime(r.signedOffAt)} by ${r.signedOffByName}` : "Not yet"],
     ["Result", calibrationResult(r)],
-    ["Reminder", r.reminder ? reminderText(r.reminder) : null],
+    ["Reminder", r.reminder ? reminderText(r.reminder, time) : null],
   ];
   return (
     <div>

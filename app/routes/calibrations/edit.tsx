@@ -35,7 +35,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     items: items.filter((i) => i.status !== "retired").map((i) => ({ id: i.id, name: i.name, kind: i.kind, nominalFrameRateFps: i.nominalFrameRateFps, rateTolerancePct: i.rateTolerancePct })),
     intervals: { rate: intervalDaysFor("rate", settings), scale: intervalDaysFor("scale", settings), timing: intervalDaysFor("timing", settings) },
     preset: { equipmentId: url.searchParams.get("equipmentId") ?? "", kind: url.searchParams.get("kind") ?? "" },
-    today: toDayString(new Date()),
+    today: toDayString(new Date(), settings.timeZone),
   };
 }
 

@@ -4,7 +4,7 @@ import { can, requireCapability } from "~/.server/auth/permissions";
 import { listCalibrations, listCalibrationsDueOrExpired, serializeCalibrations } from "~/.server/calibrations";
 import { getLabSettings } from "~/.server/settings";
 import { calibrationKindLabels } from "~/lib/calibrations";
-import { formatDate } from "~/lib/format";
+import { useLabTime } from "~/components/lab-time";
 import { ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
@@ -24,6 +24,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export default function Calibrations({ loaderData }: Route.ComponentProps) {
+  const time = useLabTime();
   const { due, records } = loaderData;
   return (
     <div>
@@ -34,7 +35,7 @@ export default function Calibrations({ loaderData }: Route.ComponentProps) {
             <ul className="list-disc pl-5">
               {due.map((d) => (
                 <li key={d.id}>
-                  <Link to={`/calibrations/${d.id}`}>{calibrationKindLabels[d.kind]} of {d.equipmentName}</Link>: {d.pastDue ? `past due since ${formatDate(d.dueAt)}` : `due ${formatDate(d.dueAt)}`}
+                  <Link to={`/calibrations/${d.id}`}>{calibrationKindLabels[d.kind]} of {d.equipmentName}</Link>: {d.pastDue ? `past due since ${time.date(d.dueAt)}` : `due ${time.date(d.dueAt)}`}
                 </li>
               ))}
             </ul>
@@ -59,8 +60,8 @@ export default function Calibrations({ loaderData }: Route.ComponentProps) {
                 <tr key={r.id} className="border-b border-line align-top" data-testid={`calibration-${r.id}`}>
                   <td className="py-3 pr-3"><Link to={`/calibrations/${r.id}`} className="font-bold">{calibrationKindLabels[r.kind]} #{r.id}</Link></td>
                   <td className="py-3 pr-3"><Link to={`/equipment/${r.equipmentId}`}>{r.equipmentName}</Link></td>
-                  <td className="py-3 pr-3">{formatDate(r.performedAt)}<p className="text-sm text-muted">{r.performedByName}</p></td>
-                  <td className="py-3 pr-3">{formatDate(r.dueAt)}</td>
+                  <td className="py-3 pr-3">{time.date(r.performedAt)}<p className="text-sm text-muted">{r.performedByName}</p></td>
+                  <td className="py-3 pr-3">{time.date(r.dueAt)}</td>
                   <td className="py-3 pr-3 text-sm">{calibrationResult(r)}</td>
                   <td className="py-3"><StandingTag standing={r.standing} /></td>
                 </tr>

@@ -5,7 +5,7 @@ import { usingFakeMail } from "~/.server/mail/send";
 import { listOutbox, MAX_ATTEMPTS } from "~/.server/mail/outbox";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
-import { formatDateTime } from "~/lib/format";
+import { useLabTime } from "~/components/lab-time";
 
 export const meta: Route.MetaFunction = () => [{ title: "Mail · Tankside" }];
 
@@ -25,6 +25,7 @@ const stateTone = { queued: "caution", sent: "agrees", failed: "disagrees" } as 
 const stateLabel = { queued: "Queued", sent: "Sent", failed: "Failed" } as const;
 
 export default function Mail({ loaderData }: Route.ComponentProps) {
+  const time = useLabTime();
   const { outbox, captured, maxAttempts } = loaderData;
   return (
     <div>
@@ -58,15 +59,15 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
               <tbody>
                 {outbox.map((m) => (
                   <tr key={m.id} className="border-b border-line align-top" data-testid={`outbox-${m.id}`}>
-                    <td className="py-3 pr-3 text-sm">{formatDateTime(m.createdAt)}</td>
+                    <td className="py-3 pr-3 text-sm">{time.dateTime(m.createdAt)}</td>
                     <td className="py-3 pr-3 text-sm break-all">{m.recipients.join(", ") || "—"}</td>
                     <td className="py-3 pr-3">{m.subject}</td>
                     <td className="py-3 pr-3">
                       <Tag tone={stateTone[m.state]}>{stateLabel[m.state]}</Tag>
                     </td>
                     <td className="py-3 text-sm">
-                      {m.state === "sent" && m.sentAt ? `${formatDateTime(m.sentAt)}` : null}
-                      {m.state === "queued" && m.nextAttemptAt ? `${m.attempts ? `${m.attempts} failed; next ` : ""}try ${formatDateTime(m.nextAttemptAt)}` : null}
+                      {m.state === "sent" && m.sentAt ? `${time.dateTime(m.sentAt)}` : null}
+                      {m.state === "queued" && m.nextAttemptAt ? `${m.attempts ? `${m.attempts} failed; next ` : ""}try ${time.dateTime(m.nextAttemptAt)}` : null}
                       {m.state === "failed" ? `gave up after ${m.attempts} attempts` : null}
                       {m.lastError && m.state !== "sent" ? <p className="text-muted break-words">{m.lastError}</p> : null}
                     </td>
@@ -85,7 +86,7 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
             {captured.map((m) => (
               <Card key={m.id} title={m.subject}>
                 <p className="text-sm text-muted">
-                  to <span className="font-bold text-ink">{m.to}</span> · {formatDateTime(m.receivedAt)}
+                  to <span className="font-bold text-ink">{m.to}</span> · {time.dateTime(m.receivedAt)}
                 </p>
                 <pre className="mt-3 whitespace-pre-wrap break-words font-sans">{m.text}</pre>
               </Card>

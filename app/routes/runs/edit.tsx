@@ -9,6 +9,8 @@ import { listEquipment, serializeEquipment } from "~/.server/equipment";
 import { createRun, RunError, RunValidationError, updateRun } from "~/.server/runs/service";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { getLabSettings } from "~/.server/settings";
+import { useLabTime } from "~/components/lab-time";
+import { fromZonedInput, toZonedInput } from "~/lib/time-format";
 import { runSchema } from "~/lib/validation/run";
 import { cameraModeLabels, directionLabels, runLabel, tracerLabels } from "~/lib/runs";
 import { Button } from "~/components/ui/button";
@@ -62,13 +64,6 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
 }
 
-function toLocalInput(value: Date | string | null | undefined) {
-  if (!value) return "";
-  const d = new Date(value);
-  const pad = (n: number) => String(n).padStart(2, "0");
-  return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}T${pad(d.getHours())}:${pad(d.getMinutes())}`;
-}
-
 type Choice = { value: string; label: string };
 function Choices({ name, legend, choices, defaultValue, error, onChange }: { name: string; legend: string; choices: Choice[]; defaultValue?: string; error?: string[]; onChange?: (v: string) => void }) {
   return (
@@ -86,6 +81,7 @@ function Choices({ name, legend, choices, defaultValue, error, onChange }: { nam
 }
 
 export default function RunForm({ loaderData, actionData }: Route.ComponentProps) {
+  const time = useLabTime();
   const { equipment, run, template } = loaderData;
   const source = run ?? template;
   const navigation = useNavigation();
@@ -105,7 +101,7 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
     direction: source?.direction ?? "ccw",
     depthCm: source ? String(Number((source.waterDepthM * 100).toPrecision(6))) : "",
     temperatureC: String(source?.waterTemperatureC ?? ""),
-    rateReachedAt: run ? toLocalInput(run.rateReachedAt) : "",
+    rateReachedAt: run ? toZonedInput(run.rateReachedAt, time.zone) : "",
   });
   const [reachedIso, setReachedIso] = useState(run?.rateReachedAt ? new Date(run.rateReachedAt).toISOString() : "");
   const table = tables.find((t) => String(t.id) === live.tableId) ?? null;
@@ -154,11 +150,11 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
                 type="datetime-local"
                 defaultValue={live.rateReachedAt}
                 error={fields.rateReachedAt.errors}
-                hint="Spin-up is counted from here."
+                hint={`Spin-up is counted from here. Lab time (${time.zone}).`}
                 onChange={(e) => {
                   setLive({ ...live, rateReachedAt: e.target.value });
-                  const d = new Date(e.target.value);
-                  setReachedIso(Number.isNaN(d.getTime()) ? "" : d.toISOString());
+                  // The field is on the lab's clock, whatever the browser's zone.
+                  setReachedIso(fromZonedInput(e.target.value, time.zone)?.toISOString() ?? "");
                 }}
               />
               <input type="hidden" name="rateReachedAt" value={reachedIso} />

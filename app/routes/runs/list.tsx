@@ -31,8 +31,8 @@ import { PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { SelectField, TextField } from "~/components/ui/field";
 import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
-import { formatDateTime } from "~/lib/format";
 import { formatNumber } from "~/lib/number-format";
+import { LabDateTime } from "~/components/lab-time";
 import { runStates, runStateLabels, tracerLabels } from "~/lib/runs";
 import {
   DEFAULT_PAGE_SIZE,
@@ -105,7 +105,7 @@ const columns = col.columns([
       </Link>
     ),
   }),
-  col.accessor("createdAt", { header: labelOf.createdAt, cell: (info) => formatDateTime(info.getValue()) }),
+  col.accessor("createdAt", { header: labelOf.createdAt, cell: (info) => <LabDateTime value={info.getValue()} /> }),
   col.accessor((r) => r.table.name, { id: "table", header: labelOf.table, enableSorting: false }),
   col.accessor((r) => r.tank.name, { id: "tank", header: labelOf.tank, enableSorting: false }),
   col.accessor((r) => r.camera.name, { id: "camera", header: labelOf.camera, enableSorting: false }),

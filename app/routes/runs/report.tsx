@@ -15,8 +15,8 @@ import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { SignOffPanel } from "~/components/run-record/sign-off-panel";
 import { SupersedesLinks } from "~/components/run-record/supersedes-links";
 import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
-import { formatDate, formatDateTime } from "~/lib/format";
 import { formatNumber } from "~/lib/number-format";
+import { useLabTime } from "~/components/lab-time";
 import { cameraModeLabels, directionLabels, tracerLabels } from "~/lib/runs";
 
 export const meta: Route.MetaFunction = ({ data: d }) => [{ title: d ? `${d.run.label} report · Tankside` : "Run report · Tankside" }];
@@ -53,6 +53,7 @@ const pm = (v: number | null | undefined, se: number | null | undefined, unit: s
   v === null || v === undefined ? "—" : `${formatNumber(v)}${se !== null && se !== undefined ? ` ± ${formatNumber(se, 2)}` : ""} ${unit}`;
 
 export default function RunReport({ loaderData }: Route.ComponentProps) {
+  const time = useLabTime();
   const { run, signOff, history, printedAt } = loaderData;
   const c = run.conditions;
   const check = run.latestTheoryCheck;
@@ -65,7 +66,7 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
       </div>
 
       <header className="mb-4 border-b-2 border-ink pb-3">
-        <p className="text-sm text-muted">Tankside run report · printed {formatDateTime(printedAt)}</p>
+        <p className="text-sm text-muted">Tankside run report · printed {time.dateTime(printedAt)}</p>
         <h1 className="flex flex-wrap items-center gap-3">
           <span className="font-mono">{run.label}</span> <RunStateTag state={run.state} />
         </h1>
@@ -90,10 +91,10 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
         <dl className="mt-2">
           <Row label="Set rate">{formatNumber(c.setRateRpm)} rpm, {directionLabels[c.direction].toLowerCase()}</Row>
           <Row label="Water">{formatNumber(c.waterDepthM * 100)} cm deep at {formatNumber(c.waterTemperatureC, 3)} °C</Row>
-          <Row label="Rate reached at">{formatDateTime(c.rateReachedAt)}</Row>
+          <Row label="Rate reached at">{time.dateTime(c.rateReachedAt)}</Row>
           <Row label="Camera">{cameraModeLabels[c.cameraMode]}, {formatNumber(c.frameRateFps)} frames/s</Row>
           <Row label="Tracer">{tracerLabels[c.tracer]}</Row>
-          <Row label="Logged">{formatDateTime(run.createdAt)} by {run.technician?.name ?? "—"}</Row>
+          <Row label="Logged">{time.dateTime(run.createdAt)} by {run.technician?.name ?? "—"}</Row>
           {run.notes ? <Row label="Notes">{run.notes}</Row> : null}
         </dl>
       </section>
@@ -111,7 +112,7 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
               <ul>
                 {run.calibrationsInForce.records.map((cal) => (
                   <li key={cal.id}>
-                    #{cal.id} {cal.kind} calibration, performed {formatDate(cal.performedAt)}, due {formatDate(cal.dueAt)}
+                    #{cal.id} {cal.kind} calibration, performed {time.date(cal.performedAt)}, due {time.date(cal.dueAt)}
                     {cal.expired ? <strong> — expired</strong> : null}
                   </li>
                 ))}
@@ -147,7 +148,7 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
             </Row>
             <Row label="Points used">{r.nPoints} ({r.nLeftOut} left out)</Row>
             {r.settings ? <Row label="Settings">tolerance {formatNumber(r.settings.tolerance * 100)} %, window {r.settings.window ?? "—"} frames, order {r.settings.polyOrder}</Row> : null}
-            <Row label="Checked">{formatDateTime(check?.createdAt)} · code {check?.codeVersion}</Row>
+            <Row label="Checked">{time.dateTime(check?.createdAt)} · code {check?.codeVersion}</Row>
           </dl>
         ) : (
           <p className="mt-2 text-muted">No theory check yet.</p>
@@ -167,7 +168,7 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
         <div className="hidden print:block">
           <h2 className="text-xl">Sign-off</h2>
           {signOff.state === "signed_off" ? (
-            <p className="mt-2">Signed off by <strong>{signOff.signedOffBy?.name}</strong> on {formatDateTime(signOff.signedOffAt)}.</p>
+            <p className="mt-2">Signed off by <strong>{signOff.signedOffBy?.name}</strong> on {time.dateTime(signOff.signedOffAt)}.</p>
           ) : (
             <>
               <p className="mt-2">Not signed off.</p>

@@ -5,8 +5,8 @@ import { loadRun } from "~/.server/runs/access";
 import { runPageData } from "~/.server/runs/detail";
 import { getLabSettings } from "~/.server/settings";
 import { cameraModeLabels, directionLabels, runLabel, tracerLabels, type RunState } from "~/lib/runs";
-import { formatDateTime } from "~/lib/format";
 import { formatFixed, formatNumber } from "~/lib/number-format";
+import { useLabTime } from "~/components/lab-time";
 import { ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
@@ -45,6 +45,7 @@ function Fact({ label, children }: { label: string; children: React.ReactNode })
 }
 
 export default function RunPage({ loaderData }: Route.ComponentProps) {
+  const time = useLabTime();
   const d = loaderData;
   const { run } = d;
   const canChange = d.canChange;
@@ -65,7 +66,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
             {runLabel(run.id)} <RunStateTag state={run.state as RunState} /> <VerdictTag verdict={run.verdict} outOfDate={Boolean(d.checkOutOfDate)} />
           </span>
         }
-        subtitle={`${run.purpose} · logged by ${d.technician?.name ?? "?"} on ${formatDateTime(run.createdAt)}`}
+        subtitle={`${run.purpose} · logged by ${d.technician?.name ?? "?"} on ${time.dateTime(run.createdAt)}`}
         actions={
           <>
             {canChange ? <ButtonLink to={`/runs/${run.id}/edit`}>Edit conditions</ButtonLink> : null}
@@ -90,7 +91,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         const item = [d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId);
         return (
           <Notice key={c.id} kind="caution" title={`The ${calibrationKindLabels[c.kind].toLowerCase()} of ${item?.name ?? "an item"} was past due when this run was logged`}>
-            It fell due {formatDateTime(c.dueAt)}; the theory check used {c.kind === "rate" ? "the set rate, uncalibrated" : "no calibration of this kind"}.
+            It fell due {time.dateTime(c.dueAt)}; the theory check used {c.kind === "rate" ? "the set rate, uncalibrated" : "no calibration of this kind"}.
             {roleCan(d.user.role, "read_calibrations") ? <> <Link to={`/calibrations/${c.id}`}>See the record</Link>.</> : null}
           </Notice>
         );
@@ -104,7 +105,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
             <Fact label="Camera">{d.camera ? <Link to={`/equipment/${d.camera.id}`}>{d.camera.name}</Link> : "—"} · {cameraModeLabels[run.cameraMode]}</Fact>
             <Fact label="Set rate">{formatNumber(run.setRateRpm, 4)} rpm, {directionLabels[run.direction].toLowerCase()}</Fact>
             <Fact label="Water">{formatNumber(run.waterDepthM * 100, 4)} cm deep at {formatNumber(run.waterTemperatureC, 3)} °C</Fact>
-            <Fact label="Rate reached at">{formatDateTime(run.rateReachedAt)}</Fact>
+            <Fact label="Rate reached at">{time.dateTime(run.rateReachedAt)}</Fact>
             <Fact label="Frames">{d.frames.length ? `${d.frames.length} at ${formatNumber(run.frameRateFps, 4)} frames/s, ${run.frameWidthPx} × ${run.frameHeightPx} px` : `none yet (${formatNumber(run.frameRateFps, 4)} frames/s planned)`}</Fact>
             <Fact label="Tracer">{tracerLabels[run.tracer]}</Fact>
             {run.notes ? <Fact label="Notes"><span className="whitespace-pre-wrap">{run.notes}</span></Fact> : null}
@@ -113,7 +114,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
                 <ul>
                   {d.calibrations.inForce.map((c) => (
                     <li key={c.id}>
-                      {roleCan(d.user.role, "read_calibrations") ? <Link to={`/calibrations/${c.id}`}>{calibrationKindLabels[c.kind]} #{c.id}</Link> : `${calibrationKindLabels[c.kind]} #${c.id}`} of {[d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId)?.name ?? "?"}, due {formatDateTime(c.dueAt)}
+                      {roleCan(d.user.role, "read_calibrations") ? <Link to={`/calibrations/${c.id}`}>{calibrationKindLabels[c.kind]} #{c.id}</Link> : `${calibrationKindLabels[c.kind]} #${c.id}`} of {[d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId)?.name ?? "?"}, due {time.dateTime(c.dueAt)}
                     </li>
                   ))}
                 </ul>

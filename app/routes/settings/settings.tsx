@@ -4,10 +4,11 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/settings";
 import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
-import { getLabSettings, setLabSetting } from "~/.server/settings";
+import { getLabSettings, setLabSetting, setLabTimeZone } from "~/.server/settings";
 import { refitUnsignedRuns } from "~/.server/runs/rechecks";
 import { labSettingsSchema } from "~/lib/validation/settings";
 import { settingDefaults, settingLimits, type SettingKey } from "~/lib/settings";
+import { systemTimeZone, timeFormat, timeZoneNames } from "~/lib/time-format";
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { TextField } from "~/components/ui/field";
@@ -17,7 +18,8 @@ export const meta: Route.MetaFunction = () => [{ title: "Settings · Tankside" }
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireRole(request, "lab_manager");
-  return { settings: await getLabSettings() };
+  // The server's zone is what Tankside uses until the lab manager names one.
+  return { settings: await getLabSettings(), serverTimeZone: systemTimeZone(), timeZones: timeZoneNames(), now: new Date().toISOString() };
 }
 
 export async function action({ request }: Route.ActionArgs) {
@@ -26,7 +28,9 @@ export async function action({ request }: Route.ActionArgs) {
   if (submission.status !== "success") return data({ result: submission.reply(), saved: false }, { status: 400 });
   const before = await getLabSettings();
   // Every value is checked before any is written, so a bad entry changes nothing.
-  for (const [key, value] of Object.entries(submission.value) as [SettingKey, number][]) await setLabSetting(key, value);
+  const { timeZone, ...numbers } = submission.value;
+  for (const [key, value] of Object.entries(numbers) as [SettingKey, number][]) await setLabSetting(key, value);
+  await setLabTimeZone(timeZone);
   // The tolerance decides verdicts: every unsigned run with a check is fitted again under the new one.
   if ((await getLabSettings()).checkTolerancePct !== before.checkTolerancePct) await refitUnsignedRuns(user.id);
   return { result: submission.reply(), saved: true };
@@ -57,8 +61,13 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
     shouldValidate: "onBlur",
     shouldRevalidate: "onInput",
     onValidate: ({ formData }) => parseWithZod(formData, { schema: labSettingsSchema }),
-    defaultValue: Object.fromEntries(Object.entries(loaderData.settings).map(([k, v]) => [k, String(v)])),
+    defaultValue: {
+      ...Object.fromEntries(Object.keys(settingDefaults).map((k) => [k, String(loaderData.settings[k as SettingKey])])),
+      timeZone: loaderData.settings.timeZoneIsServerDefault ? "" : loaderData.settings.timeZone,
+    },
   });
+  const zone = fields.timeZone;
+  const example = timeFormat(loaderData.settings.timeZone).dateTime(loaderData.now);
   return (
     <div>
       <PageHeader title="Settings" subtitle="The lab's own rules. Changes apply from the next record, booking or check." />
@@ -90,6 +99,28 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
             </div>
           </Card>
         ))}
+        <Card title="Time zone">
+          <p className="mb-4 text-muted">
+            Pages, e-mails and printouts show times on the lab&apos;s clock, with the zone named. Calendar files and the API keep UTC.
+          </p>
+          <TextField
+            key={zone.key}
+            label="Lab time zone"
+            name={zone.name}
+            defaultValue={zone.initialValue as string | undefined}
+            error={zone.errors}
+            list="time-zone-names"
+            autoComplete="off"
+            spellCheck={false}
+            placeholder={loaderData.serverTimeZone}
+            hint={`An IANA name such as Europe/Berlin, or UTC. Empty: the server's zone, ${loaderData.serverTimeZone}. Now it reads ${example}.`}
+          />
+          <datalist id="time-zone-names">
+            {loaderData.timeZones.map((z) => (
+              <option key={z} value={z} />
+            ))}
+          </datalist>
+        </Card>
         <div className="lg:col-span-2">
           <Button type="submit">Save settings</Button>
         </div>

@@ -10,6 +10,7 @@ import * as m0008 from "./0008-session-idle-and-token-expiry";
 import * as m0009 from "./0009-calibration-history";
 import * as m0010 from "./0010-camera-scale-tolerance";
 import * as m0011 from "./0011-tracking-job-leases";
+import * as m0012 from "./0012-lab-identity";
 
 export interface Migration {
   name: string;
@@ -30,4 +31,5 @@ export const migrations: Migration[] = [
   { name: "0009-calibration-history", ...m0009 },
   { name: "0010-camera-scale-tolerance", ...m0010 },
   { name: "0011-tracking-job-leases", ...m0011 },
+  { name: "0012-lab-identity", ...m0012 },
 ];

@@ -38,6 +38,12 @@ describe("the OpenAPI document and the routes hold together", () => {
   it("passes swagger-parser's validation (OpenAPI 3.1 schema, every $ref resolves)", async () => {
     // validate() dereferences the object it is given: hand it a copy.
     await expect(SwaggerParser.validate(structuredClone(buildOpenApiDocument()) as never)).resolves.toBeTruthy();
+    // And it does refuse what was wrong before: a $ref to a schema the document does not include.
+    const broken = structuredClone(buildOpenApiDocument()) as unknown as Doc;
+    const get = broken.paths["/api/v1/me"]?.get?.responses["200"]?.content?.["application/json"];
+    if (!get) throw new Error("GET /api/v1/me has no JSON answer");
+    get.schema = { $ref: "#/components/schemas/Booking2" };
+    await expect(SwaggerParser.validate(broken as never)).rejects.toThrow(/Booking2/);
   });
 
   it("gives every operation an operationId, security, a 401 unless public, and errors in the one Error schema", () => {

@@ -30,13 +30,19 @@ export const signedIn: Record<string, string[]>[] = [{ bearerToken: [] }, { sess
 
 type Operation = Omit<RouteConfig, "responses" | "security"> & { responses: Answers; public?: boolean };
 
-/** Registers one operation: its operationId is required, security is set, and 401 is added to every signed-in one. */
+/** server-bodies.mjs refuses a body over its path's limit while it streams, before the route reads it. */
+const tooLarge = error("The body is over this path's size limit (too_large); refused before the route reads it.");
+
+/**
+ * Registers one operation: its operationId is required, security is set, 401 is added to every
+ * signed-in one and 413 to every one that takes a body (unless it says more about its own 413).
+ */
 export function operation(registry: OpenAPIRegistry, op: Operation & { operationId: string }) {
   const { public: isPublic, responses, ...rest } = op;
   registry.registerPath({
     ...rest,
     security: isPublic ? [] : signedIn,
-    responses: isPublic ? responses : { 401: notSignedIn, ...responses },
+    responses: { ...(isPublic ? {} : { 401: notSignedIn }), ...(op.request?.body ? { 413: tooLarge } : {}), ...responses },
   });
 }
 

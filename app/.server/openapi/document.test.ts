@@ -80,7 +80,7 @@ describe("the OpenAPI document and the routes hold together", () => {
     const answer = (json: unknown, status = 200) => ({ status, contentType: "application/json", json });
     expect(contractProblems("PATCH", "/api/v1/runs/1", answer(run))).toEqual([]);
     expect(contractProblems("PATCH", "/api/v1/runs/1", answer({ ...run, secretNote: "x" }))).toEqual([expect.stringMatching(/PATCH \/api\/v1\/runs\/\{id\} → 200: \(body\) must NOT have additional properties \(secretNote\)/)]);
-    const { purpose: _, ...withoutPurpose } = run;
+    const withoutPurpose = Object.fromEntries(Object.entries(run).filter(([key]) => key !== "purpose"));
     expect(contractProblems("PATCH", "/api/v1/runs/1", answer(withoutPurpose)).join()).toMatch(/must have required property 'purpose'/);
     expect(contractProblems("PATCH", "/api/v1/runs/1", answer({ error: { code: "x", message: "y" } }, 418)).join()).toMatch(/status 418 is not documented/);
     expect(contractProblems("GET", "/api/v1/runs/1", answer({ error: { code: "not_found", message: "No.", detail: 1 } }, 404)).join()).toMatch(/additional properties \(detail\)/);

@@ -9,6 +9,7 @@ import type { CurrentUser } from "./auth/permissions";
 import { bookingStateLabels, MAX_BOOKING_DAYS, spinUpLeadS, tableBookingCaution, type BookingState } from "~/lib/bookings";
 import { formatDuration, timeFormat, type TimeFormat } from "~/lib/time-format";
 import { foldIcsLines } from "~/lib/icalendar";
+import type { BookingChangeView, BookingView } from "./openapi/responses/bookings";
 
 /** A refusal with the HTTP status and API code that say why. */
 export class BookingError extends Error {
@@ -286,7 +287,7 @@ export async function serializeBookings(rows: Booking[]) {
   ]);
   const userName = new Map(users.map((u) => [u.id, u.name]));
   const itemById = new Map(items.map((i) => [i.id, i]));
-  return rows.map((b) => ({
+  return rows.map((b): BookingView => ({
     id: b.id,
     equipmentId: b.equipmentId,
     equipmentName: itemById.get(b.equipmentId)?.name ?? `#${b.equipmentId}`,
@@ -309,10 +310,17 @@ export async function serializeBookings(rows: Booking[]) {
     createdAt: b.createdAt.toISOString(),
   }));
 }
-export type BookingView = Awaited<ReturnType<typeof serializeBookings>>[number];
+export type { BookingView };
 
-export async function serializeBooking(b: Booking) {
-  return (await serializeBookings([b]))[0]!;
+export async function serializeBooking(b: Booking): Promise<BookingView> {
+  const [view] = await serializeBookings([b]);
+  if (!view) throw new Error(`booking ${b.id} could not be serialised`);
+  return view;
+}
+
+/** A booking as a change answers it: the booking and the e-mail the change queued. */
+export async function serializeBookingChange(b: Booking, mail: MailQueued): Promise<BookingChangeView> {
+  return { ...(await serializeBooking(b)), mail: mail.queued ? { queued: true as const, outboxId: mail.id } : { queued: false as const } };
 }
 
 // ---- iCalendar (RFC 5545) ----

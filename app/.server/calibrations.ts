@@ -22,6 +22,7 @@ import {
 import type { CalibrationInput } from "~/lib/validation/calibrations";
 import { DEFAULT_SCALE_TOLERANCE_PCT } from "~/lib/calibrations-applied";
 import { kindLabels, type EquipmentKind } from "~/lib/equipment";
+import type { CalibrationView } from "./openapi/responses/calibrations";
 
 /** A refusal with the HTTP status that says why (404 missing, 409 signed, 422 wrong equipment). */
 export class CalibrationError extends Error {
@@ -361,7 +362,7 @@ export async function serializeCalibrations(records: Calibration[]) {
   ]);
   const userName = new Map(users.map((u) => [u.id, u.name]));
   const itemName = new Map(items.map((i) => [i.id, i.name]));
-  return records.map((r) => ({
+  return records.map((r): CalibrationView => ({
     id: r.id,
     kind: r.kind,
     equipmentId: r.equipmentId,
@@ -414,7 +415,7 @@ export async function serializeCalibrations(records: Calibration[]) {
       .map((a) => ({ id: a.id, originalName: a.originalName, contentType: a.contentType, sizeBytes: a.sizeBytes, url: `/api/v1/calibrations/${r.id}/attachments/${a.id}` })),
   }));
 }
-export type CalibrationView = Awaited<ReturnType<typeof serializeCalibrations>>[number];
+export type { CalibrationView };
 
 /** What the equipment page shows: each kind's standing now, the item's records, and its coming bookings. */
 export async function equipmentCalibrationSummary(equipmentId: number, equipmentKind: EquipmentKind) {

@@ -2,9 +2,10 @@ import { Equipment } from "./db";
 import type { EquipmentInput } from "~/lib/validation/equipment";
 import type { EquipmentKind } from "~/lib/equipment";
 import { DEFAULT_SCALE_TOLERANCE_PCT } from "~/lib/calibrations-applied";
+import type { EquipmentView } from "./openapi/responses/equipment";
 
 /** The API and page shape of an item; lengths in metres as stored, plus cm for forms. */
-export function serializeEquipment(e: Equipment) {
+export function serializeEquipment(e: Equipment): EquipmentView {
   return {
     id: e.id,
     name: e.name,
@@ -29,7 +30,7 @@ export function serializeEquipment(e: Equipment) {
     updatedAt: e.updatedAt.toISOString(),
   };
 }
-export type EquipmentView = ReturnType<typeof serializeEquipment>;
+export type { EquipmentView };
 
 function toColumns(input: EquipmentInput) {
   const k = input.kind;

@@ -26,7 +26,7 @@ describe("navigation, OpenAPI document and policy agree", () => {
   });
 
   it("names in x-roles exactly the roles the policy lets through, for every operation that has them", () => {
-    const doc = buildOpenApiDocument() as { paths: Record<string, Record<string, { "x-roles"?: readonly string[] }>> };
+    const doc = buildOpenApiDocument() as unknown as { paths: Record<string, Record<string, { "x-roles"?: readonly string[] }>> };
     let checked = 0;
     for (const [p, item] of Object.entries(doc.paths)) {
       const route = routes.find((r) => r.pattern === p.replace(/\{(\w+)\}/g, ":$1"));

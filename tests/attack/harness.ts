@@ -12,6 +12,7 @@ import { sequelize } from "~/.server/db";
 import { sessionStorage } from "~/.server/auth/session";
 import { createApiToken } from "~/.server/auth/api-tokens";
 import type { Role } from "~/lib/roles";
+import { assertDocumented } from "../support/api-contract";
 // @ts-expect-error plain ESM module of the server, without type declarations
 import { methodsServed } from "../../server-guards.mjs";
 
@@ -121,6 +122,8 @@ export async function callRoute(route: RoutedModule, request: Request, params: R
     } catch {
       json = null;
     }
+    // Every API answer the suite receives is checked against the OpenAPI document: its status must be documented for the operation and its body must match.
+    if (route.isApi) assertDocumented(request.method, request.url, { status: answer.status, contentType: answer.headers.get("Content-Type"), json });
     return { status: answer.status, location: answer.headers.get("Location"), json, crash: null };
   }
   // data(value, { status }) thrown or returned

@@ -7,6 +7,7 @@ import { usesJobQueue } from "./boss";
 import { JobError, runTrackingJob } from "./tracking-run";
 import { ringTracking, sweepTrackingJobs } from "./tracking-leases";
 import { abortLocalJob, localTrackingBusy, notifyWorker, startWorkers, stopWorkers } from "./job-workers";
+import type { TrackingJobView } from "../openapi/responses/tracking";
 
 /**
  * The tracking job queue. Jobs live in the database, where the pages read their state and progress.
@@ -20,7 +21,7 @@ const running = new Map<number, AbortController>();
 let pumping: Promise<void> | null = null;
 let stopped = false;
 
-export function serializeJob(job: TrackingJob | null) {
+export function serializeJob(job: TrackingJob | null): TrackingJobView | null {
   if (!job) return null;
   return {
     id: job.id,

@@ -1,7 +1,7 @@
 import { Op, UniqueConstraintError, type Transaction } from "sequelize";
 import { OutboxMail } from "../db";
 import { QUEUES, ring, usesJobQueue } from "../jobs/boss";
-import type { OutboxState } from "../db/models/outbox-mail";
+import type { OutboxMailView } from "../openapi/responses/people";
 import type { OutgoingMail } from "./send";
 
 /**
@@ -94,17 +94,7 @@ export function ringMail(row: Pick<OutboxMail, "id" | "nextAttemptAt">, transact
   return ring(QUEUES.mail, `mail-${row.id}`, { outboxId: row.id }, { transaction, startAfter: row.nextAttemptAt });
 }
 
-export interface OutboxView {
-  id: number;
-  recipients: string[];
-  subject: string;
-  state: OutboxState;
-  attempts: number;
-  nextAttemptAt: string | null;
-  lastError: string | null;
-  sentAt: string | null;
-  createdAt: string;
-}
+export type OutboxView = OutboxMailView;
 
 /** The newest rows first, without bodies: they may hold single-use links meant for one person only. */
 export async function listOutbox(limit = 100): Promise<OutboxView[]> {
@@ -113,7 +103,7 @@ export async function listOutbox(limit = 100): Promise<OutboxView[]> {
     order: [["id", "DESC"]],
     limit,
   });
-  return rows.map((r) => ({
+  return rows.map((r): OutboxView => ({
     id: r.id,
     recipients: r.recipients ? r.recipients.split(", ") : [],
     subject: r.subject,

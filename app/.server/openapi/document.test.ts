@@ -2,12 +2,23 @@ import fs from "node:fs";
 import path from "node:path";
 import { describe, expect, it } from "vitest";
 import { buildOpenApiDocument } from "./document";
-import { runCreateExample, runPatchExample } from "./schemas";
+import SwaggerParser from "@apidevtools/swagger-parser";
+import { runCreateExample, runPatchExample } from "./paths/runs";
+import { contractProblems } from "../../../tests/support/api-contract";
 import { runApiCreateSchema, runApiPatchSchema } from "~/lib/validation/run-api";
 import { parseRunFilters, runFilterKeys, runSortFields } from "~/lib/validation/run-filters";
 
 const root = path.resolve(import.meta.dirname, "../../..");
-const doc = buildOpenApiDocument();
+type Op = {
+  operationId: string;
+  security: unknown[];
+  parameters?: { name: string; schema: { enum?: string[] } }[];
+  requestBody?: { content: Record<string, { example?: unknown; schema?: unknown }> };
+  responses: Record<string, { content?: Record<string, { schema?: unknown }> }>;
+};
+type Schema = { additionalProperties?: unknown; properties: Record<string, unknown>; required: string[] };
+type Doc = { openapi: string; paths: Record<string, Record<string, Op>>; components: { schemas: Record<string, Schema>; securitySchemes: Record<string, unknown> } };
+const doc = buildOpenApiDocument() as unknown as Doc;
 const methods = ["get", "post", "patch", "put", "delete"] as const;
 
 /** The API routes as app/routes.ts registers them: path in OpenAPI form → route module file. */
@@ -24,6 +35,57 @@ function apiRoutes(): Map<string, string> {
 }
 
 describe("the OpenAPI document and the routes hold together", () => {
+  it("passes swagger-parser's validation (OpenAPI 3.1 schema, every $ref resolves)", async () => {
+    // validate() dereferences the object it is given: hand it a copy.
+    await expect(SwaggerParser.validate(structuredClone(buildOpenApiDocument()) as never)).resolves.toBeTruthy();
+    // And it does refuse what was wrong before: a $ref to a schema the document does not include.
+    const broken = structuredClone(buildOpenApiDocument()) as unknown as Doc;
+    const get = broken.paths["/api/v1/me"]?.get?.responses["200"]?.content?.["application/json"];
+    if (!get) throw new Error("GET /api/v1/me has no JSON answer");
+    get.schema = { $ref: "#/components/schemas/Booking2" };
+    await expect(SwaggerParser.validate(broken as never)).rejects.toThrow(/Booking2/);
+  });
+
+  it("gives every operation an operationId, security, a 401 unless public, and errors in the one Error schema", () => {
+    const ids = new Set<string>();
+    for (const [p, item] of Object.entries(doc.paths)) {
+      for (const [method, op] of Object.entries(item)) {
+        const where = `${method.toUpperCase()} ${p}`;
+        expect(op.operationId, where).toMatch(/^[a-z][A-Za-z]+$/);
+        expect(ids.has(op.operationId), `${where}: operationId ${op.operationId} twice`).toBe(false);
+        ids.add(op.operationId);
+        expect(Array.isArray(op.security), where).toBe(true);
+        if (op.security.length) expect(op.responses["401"], where).toBeDefined();
+        for (const [status, answer] of Object.entries(op.responses)) {
+          if (Number(status) < 400 || (status === "422" && p.endsWith("/frames"))) continue;
+          expect(answer.content?.["application/json"]?.schema, `${where} ${status}`).toEqual({ $ref: "#/components/schemas/Error" });
+        }
+      }
+    }
+  });
+
+  it("lists every field a response schema has as required, and allows no other field", () => {
+    for (const name of ["Run", "RunDetail", "RunExport", "RunListItem", "Booking", "Calibration", "Equipment", "Person", "OutboxMail", "Error", "TrackingJob"]) {
+      const schema = doc.components.schemas[name];
+      if (!schema) throw new Error(`no schema ${name}`);
+      expect(schema.additionalProperties, name).toBe(false);
+      const optional = Object.keys(schema.properties).filter((k) => !schema.required.includes(k));
+      // What may be left out: an unknown value (JSON Schema cannot require one), and the Error's own extras.
+      expect(optional.filter((k) => !["field", "issues", "scalePoints", "calibrationsApplied", "theoryCheckInput"].includes(k)), name).toEqual([]);
+    }
+  });
+
+  it("catches an answer with a field the document lacks, naming it", () => {
+    const run = { id: 1, label: "R-0001", state: "draft", verdict: null, tableId: 1, tankId: 2, cameraId: 3, setRateRpm: 10, direction: "ccw", waterDepthM: 0.12, waterTemperatureC: 20, rateReachedAt: null, cameraMode: "rotating", frameRateFps: 30, tracer: "float", purpose: "A run", notes: null, technicianId: 4, supersedesId: null, signedOffById: null, signedOffAt: null, frameCount: 0, createdAt: "2026-03-14T09:00:00.000Z", updatedAt: "2026-03-14T09:00:00.000Z" };
+    const answer = (json: unknown, status = 200) => ({ status, contentType: "application/json", json });
+    expect(contractProblems("PATCH", "/api/v1/runs/1", answer(run))).toEqual([]);
+    expect(contractProblems("PATCH", "/api/v1/runs/1", answer({ ...run, secretNote: "x" }))).toEqual([expect.stringMatching(/PATCH \/api\/v1\/runs\/\{id\} → 200: \(body\) must NOT have additional properties \(secretNote\)/)]);
+    const withoutPurpose = Object.fromEntries(Object.entries(run).filter(([key]) => key !== "purpose"));
+    expect(contractProblems("PATCH", "/api/v1/runs/1", answer(withoutPurpose)).join()).toMatch(/must have required property 'purpose'/);
+    expect(contractProblems("PATCH", "/api/v1/runs/1", answer({ error: { code: "x", message: "y" } }, 418)).join()).toMatch(/status 418 is not documented/);
+    expect(contractProblems("GET", "/api/v1/runs/1", answer({ error: { code: "not_found", message: "No.", detail: 1 } }, 404)).join()).toMatch(/additional properties \(detail\)/);
+  });
+
   it("is OpenAPI 3.1 with bearer-token and cookie security", () => {
     expect(doc.openapi).toBe("3.1.0");
     expect(Object.keys(doc.components.securitySchemes).sort()).toEqual(["bearerToken", "sessionCookie"]);
@@ -52,7 +114,7 @@ describe("the OpenAPI document and the routes hold together", () => {
   });
 
   it("gives GET /api/v1/runs exactly the query parameters the filter schema accepts, with its enums", () => {
-    const params = doc.paths["/api/v1/runs"].get!.parameters as { name: string; schema: { enum?: string[] } }[];
+    const params = doc.paths["/api/v1/runs"]?.get?.parameters ?? [];
     expect(params.map((p) => p.name).sort()).toEqual([...runFilterKeys].sort());
     expect(params.find((p) => p.name === "sort")?.schema.enum).toEqual([...runSortFields]);
     // Every documented parameter is accepted on its own by the parser the route uses, and a made-up one is not.
@@ -64,13 +126,16 @@ describe("the OpenAPI document and the routes hold together", () => {
   });
 
   it("has request examples that the routes' own zod schemas accept, and bodies generated from them", () => {
-    const post = doc.paths["/api/v1/runs"].post as { requestBody: { content: { "application/json": { example: unknown } } } };
-    const patch = doc.paths["/api/v1/runs/{id}"].patch as { requestBody: { content: { "application/json": { example: unknown } } } };
-    expect(post.requestBody.content["application/json"].example).toEqual(runCreateExample);
+    const post = doc.paths["/api/v1/runs"]?.post?.requestBody?.content["application/json"];
+    const patch = doc.paths["/api/v1/runs/{id}"]?.patch?.requestBody?.content["application/json"];
+    expect(post?.example).toEqual(runCreateExample);
+    expect(post?.schema).toEqual({ $ref: "#/components/schemas/RunCreate" });
     expect(runApiCreateSchema.safeParse(runCreateExample).success).toBe(true);
-    expect(runApiPatchSchema.safeParse(patch.requestBody.content["application/json"].example).success).toBe(true);
-    expect(patch.requestBody.content["application/json"].example).toEqual(runPatchExample);
-    const body = doc.components.schemas.RunCreate as { required: string[]; properties: Record<string, unknown> };
+    expect(runApiPatchSchema.safeParse(patch?.example).success).toBe(true);
+    expect(patch?.example).toEqual(runPatchExample);
+    const body = doc.components.schemas.RunCreate;
+    if (!body) throw new Error("no RunCreate schema");
+    expect(body.additionalProperties).toBe(false);
     expect(Object.keys(body.properties).sort()).toEqual(Object.keys(runApiCreateSchema.shape).sort());
     expect(body.required).toContain("purpose");
   });

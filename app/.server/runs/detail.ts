@@ -7,6 +7,7 @@ import { recheckPending } from "./rechecks";
 import type { CurrentUser } from "../auth/permissions";
 import { calibrationSnapshot, canChangeRun } from "./service";
 import { frameFileStatus } from "./frame-files";
+import { serializeRun } from "./serialize";
 
 /** Everything the run page shows, as plain data; the check is the current one only (see currentCheck). */
 export async function runPageData(run: Run, user: CurrentUser, current?: CurrentCheck) {
@@ -27,13 +28,12 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
   const snapshot = calibrationSnapshot(run);
   return {
     run: {
-      ...run.get({ plain: true }),
+      ...serializeRun(run),
       // The verdict column belongs to the check: while that is out of date no verdict is shown.
       verdict: judged.status === "current" ? run.verdict : null,
-      rateReachedAt: run.rateReachedAt?.toISOString() ?? null,
-      signedOffAt: run.signedOffAt?.toISOString() ?? null,
-      createdAt: run.createdAt.toISOString(),
-      updatedAt: run.updatedAt.toISOString(),
+      frameWidthPx: run.frameWidthPx,
+      frameHeightPx: run.frameHeightPx,
+      calibrationsInForce: run.calibrationsInForce,
     },
     canChange: canChangeRun(run, user),
     table: table ? serializeEquipment(table) : null,

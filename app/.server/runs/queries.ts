@@ -1,6 +1,8 @@
 import { Op, type Order, type WhereOptions } from "sequelize";
 import { Equipment, Run, User, UserPreference, sequelize } from "../db";
-import { runLabel, type RunState, type Verdict } from "~/lib/runs";
+import type { z } from "zod";
+import type { RunListItemView, runPageSchema } from "../openapi/responses/runs";
+import { serializeRunListItem } from "./serialize";
 import {
   defaultRunColumnChoice,
   parseRunFilters,
@@ -67,35 +69,8 @@ export function runsWhere(filters: RunFilters): WhereOptions<Run> {
   return and.length ? { [Op.and]: and } : {};
 }
 
-export interface RunListItem {
-  id: number;
-  label: string;
-  createdAt: string;
-  state: RunState;
-  verdict: Verdict | null;
-  table: { id: number; name: string };
-  tank: { id: number; name: string };
-  camera: { id: number; name: string };
-  technician: { id: number; name: string };
-  setRateRpm: number;
-  direction: "ccw" | "cw";
-  waterDepthM: number;
-  waterTemperatureC: number;
-  cameraMode: "rotating" | "lab";
-  tracer: "float" | "dye";
-  frameCount: number;
-  purpose: string;
-  signedOffAt: string | null;
-  supersedesId: number | null;
-}
-
-export interface RunPage {
-  items: RunListItem[];
-  total: number;
-  page: number;
-  pageSize: number;
-  pageCount: number;
-}
+export type RunListItem = RunListItemView;
+export type RunPage = z.infer<typeof runPageSchema>;
 
 const listAttributes = [
   "id", "createdAt", "state", "verdict", "tableId", "tankId", "cameraId", "technicianId", "setRateRpm", "direction",
@@ -132,27 +107,7 @@ export async function listRuns(filters: RunFilters): Promise<RunPage> {
   const people = new Map(users.map((u) => [u.id, u.name]));
   const item = (id: number) => ({ id, name: names.get(id) ?? `#${id}` });
   return {
-    items: rows.map((r) => ({
-      id: r.id,
-      label: runLabel(r.id),
-      createdAt: r.createdAt.toISOString(),
-      state: r.state,
-      verdict: r.verdict,
-      table: item(r.tableId),
-      tank: item(r.tankId),
-      camera: item(r.cameraId),
-      technician: { id: r.technicianId, name: people.get(r.technicianId) ?? `#${r.technicianId}` },
-      setRateRpm: r.setRateRpm,
-      direction: r.direction,
-      waterDepthM: r.waterDepthM,
-      waterTemperatureC: r.waterTemperatureC,
-      cameraMode: r.cameraMode,
-      tracer: r.tracer,
-      frameCount: r.frameCount,
-      purpose: r.purpose,
-      signedOffAt: r.signedOffAt?.toISOString() ?? null,
-      supersedesId: r.supersedesId,
-    })),
+    items: rows.map((r) => serializeRunListItem(r, { equipment: item, person: (id) => ({ id, name: people.get(id) ?? `#${id}` }) })),
     total,
     page: filters.page,
     pageSize: filters.pageSize,

@@ -11,6 +11,7 @@ import { storedCheck } from "./theory";
 import { checkedRunFor, runInput, seedRunLab, type RunLab } from "./testing";
 import { action as editAction } from "~/routes/runs/edit";
 import { action as apiRunAction } from "~/routes/api/run";
+import { callApi } from "../../../tests/support/api-contract";
 
 let lab: RunLab;
 let techToken: string;
@@ -48,13 +49,13 @@ describe("the rate reached time", () => {
     await Frame.create({ runId: run.id, position: 0, originalName: "f0.png", storedName: `none-${run.id}.png`, thumbName: null, sha256: String(run.id).padEnd(64, "a"), format: "png", widthPx: 1280, heightPx: 720, sizeBytes: 1, timeS: null });
     const afterFrames = new Date(Date.now() + 20_000);
 
-    const api = await apiRunAction({
-      request: new Request(`http://localhost/api/v1/runs/${run.id}`, { method: "PATCH", headers: { Authorization: `Bearer ${techToken}`, "Content-Type": "application/json" }, body: JSON.stringify({ rateReachedAt: afterFrames.toISOString() }) }),
-      params: { id: String(run.id) },
-      context: {},
-    } as never);
+    const api = await callApi(
+      apiRunAction,
+      new Request(`http://localhost/api/v1/runs/${run.id}`, { method: "PATCH", headers: { Authorization: `Bearer ${techToken}`, "Content-Type": "application/json" }, body: JSON.stringify({ rateReachedAt: afterFrames.toISOString() }) }),
+      { id: String(run.id) },
+    );
     expect(api.status).toBe(422);
-    expect((await api.json()).error).toMatchObject({ code: "invalid_run", fields: { rateReachedAt: expect.stringMatching(/after the first frame arrived/) } });
+    expect((await api.json()).error).toMatchObject({ code: "conditions_not_possible", field: "rateReachedAt", issues: [{ field: "rateReachedAt", message: expect.stringMatching(/after the first frame arrived/) }] });
 
     const session = await sessionStorage.getSession();
     session.set("userId", lab.technician.id);

@@ -9,6 +9,10 @@ import { recheckPending } from "./rechecks";
 import type { CurrentUser } from "../auth/permissions";
 import { runLabel, runStateLabels, type RunState } from "~/lib/runs";
 import { runFieldLabels } from "~/lib/validation/run";
+import { serializeJob } from "../jobs/tracking-queue";
+import { serializeRunLink, serializeTheoryCheck, serializeTrackSummary, serializeViewSetup, storedCheckResult } from "./serialize";
+import type { RunDetailView, RunHistoryEntryView, RunLinkView } from "../openapi/responses/runs";
+import type { RunExportView } from "../openapi/responses/run-export";
 
 /**
  * Sign-off vouches for a verdict, so it needs a current theory check: one made from the run's
@@ -50,15 +54,7 @@ export async function signOffRun(runId: number, user: CurrentUser) {
   });
 }
 
-export interface RunHistoryEntry {
-  id: number;
-  at: string;
-  who: { id: number; name: string } | null;
-  field: string;
-  fieldLabel: string;
-  oldValue: string | null;
-  newValue: string | null;
-}
+export type RunHistoryEntry = RunHistoryEntryView;
 
 const equipmentFields = new Set(["tableId", "tankId", "cameraId"]);
 const extraLabels: Record<string, string> = { created: "logged", theoryCheck: "theory check", calibrationsInForce: "calibrations in force" };
@@ -82,7 +78,7 @@ export async function getRunHistory(runId: number): Promise<RunHistoryEntry[]> {
     if (field === "state") return runStateLabels[value as RunState] ?? value;
     return value;
   };
-  return rows.map((r) => ({
+  return rows.map((r): RunHistoryEntry => ({
     id: r.id,
     at: r.createdAt.toISOString(),
     who: r.userId === null ? null : { id: r.userId, name: names.get(r.userId) ?? `#${r.userId}` },
@@ -93,14 +89,8 @@ export async function getRunHistory(runId: number): Promise<RunHistoryEntry[]> {
   }));
 }
 
-export interface RunLink {
-  id: number;
-  label: string;
-  state: RunState;
-  createdAt: string;
-}
-
-const link = (r: Run): RunLink => ({ id: r.id, label: runLabel(r.id), state: r.state, createdAt: r.createdAt.toISOString() });
+export type RunLink = RunLinkView;
+const link = serializeRunLink;
 
 /** The run this one corrects, and the runs that correct it (newest first). */
 export async function getSupersedesLinks(run: Pick<Run, "id" | "supersedesId">) {
@@ -153,15 +143,6 @@ export async function getRunRecordParts(run: Run, user: CurrentUser, current?: C
 }
 export type RunRecordParts = Awaited<ReturnType<typeof getRunRecordParts>>;
 
-function parseJson<T>(text: string | null): T | null {
-  if (!text) return null;
-  try {
-    return JSON.parse(text) as T;
-  } catch {
-    return null;
-  }
-}
-
 /** Ids of the calibration records kept with the run when it was logged. */
 export function calibrationIdsInForce(run: Pick<Run, "calibrationsInForce">): number[] {
   return calibrationSnapshot(run)
@@ -169,36 +150,8 @@ export function calibrationIdsInForce(run: Pick<Run, "calibrationsInForce">): nu
     .filter((id) => Number.isInteger(id) && id > 0);
 }
 
-function serializeSetup(s: ViewSetup | null) {
-  if (!s) return null;
-  return {
-    id: s.id,
-    cameraId: s.cameraId,
-    centrePx: { x: s.centreXPx, y: s.centreYPx },
-    tankEdgePx: s.tankEdgeXPx !== null && s.tankEdgeYPx !== null && s.tankEdgeRPx !== null ? { x: s.tankEdgeXPx, y: s.tankEdgeYPx, r: s.tankEdgeRPx } : null,
-    scalePxPerM: s.scalePxPerM,
-    scalePoints: parseJson<unknown>(s.scalePoints),
-    mirrored: s.mirrored,
-    updatedAt: s.updatedAt.toISOString(),
-  };
-}
-
-function serializeCheck(c: TheoryCheck | null, withResult: boolean) {
-  if (!c) return null;
-  return {
-    id: c.id,
-    trackId: c.trackId,
-    verdict: c.verdict,
-    fMeasuredPerS: c.fMeasuredPerS,
-    fPredictedPerS: c.fPredictedPerS,
-    codeVersion: c.codeVersion,
-    createdAt: c.createdAt.toISOString(),
-    ...(withResult ? { result: parseJson<unknown>(c.result) } : {}),
-  };
-}
-
-/** The run as GET /api/v1/runs/:id returns it; export.json adds the full result and settings. */
-export async function getRunDetail(runId: number, opts: { full?: boolean; current?: CurrentCheck } = {}) {
+/** The run as GET /api/v1/runs/:id returns it, and the current check's row, which export.json reads the full result from. */
+export async function getRunDetailWithCheck(runId: number, opts: { current?: CurrentCheck } = {}): Promise<{ detail: RunDetailView; check: TheoryCheck | null } | null> {
   const run = await Run.findByPk(runId);
   if (!run) return null;
   const calibrationIds = calibrationIdsInForce(run);
@@ -217,7 +170,7 @@ export async function getRunDetail(runId: number, opts: { full?: boolean; curren
   ]);
   const byId = new Map(equipment.map((e) => [e.id, serializeEquipment(e)]));
   const now = Date.now();
-  return {
+  const detail: RunDetailView = {
     id: run.id,
     label: runLabel(run.id),
     state: run.state,
@@ -237,21 +190,16 @@ export async function getRunDetail(runId: number, opts: { full?: boolean; curren
     equipment: { table: byId.get(run.tableId) ?? null, tank: byId.get(run.tankId) ?? null, camera: byId.get(run.cameraId) ?? null },
     technician: technician ? { id: technician.id, name: technician.name, email: technician.email } : null,
     frames: { count: frameCount, widthPx: run.frameWidthPx, heightPx: run.frameHeightPx },
-    viewSetup: serializeSetup(setup),
-    latestTrackingJob: job
-      ? { id: job.id, state: job.state, framesDone: job.framesDone, framesTotal: job.framesTotal, error: job.error, startedAt: job.startedAt?.toISOString() ?? null, finishedAt: job.finishedAt?.toISOString() ?? null }
-      : null,
-    tracks: {
-      count: tracks.length,
-      items: tracks.map((t) => ({ id: t.id, number: t.number, jobId: t.jobId, pointCount: t.pointCount, detectedShare: t.detectedShare, jitterPx: t.jitterPx })),
-    },
+    viewSetup: serializeViewSetup(setup),
+    latestTrackingJob: serializeJob(job),
+    tracks: { count: tracks.length, items: tracks.map(serializeTrackSummary) },
     // Only a check made from the run's present inputs is shown; a stale one is named, not shown.
-    latestTheoryCheck: serializeCheck(check.check, Boolean(opts.full)),
+    latestTheoryCheck: check.check ? serializeTheoryCheck(check.check) : null,
     checkStatus: check.status,
     checkOutOfDate: check.status === "out_of_date" ? { because: check.changed, recheckPending: recheckPending(run.id) || job?.state === "queued" || job?.state === "running", checkId: check.latest?.id ?? null } : null,
     calibrationsInForce: {
       ids: calibrationIds,
-      recorded: calibrationSnapshot(run),
+      recorded: (({ at, inForce, pastDue }) => ({ at, inForce: inForce.map((c) => ({ ...c })), pastDue: pastDue.map((c) => ({ ...c })) }))(calibrationSnapshot(run)),
       records: calibrations.map((c) => ({
         id: c.id,
         kind: c.kind,
@@ -270,15 +218,23 @@ export async function getRunDetail(runId: number, opts: { full?: boolean; curren
     createdAt: run.createdAt.toISOString(),
     updatedAt: run.updatedAt.toISOString(),
   };
+  return { detail, check: check.check };
 }
-export type RunDetail = NonNullable<Awaited<ReturnType<typeof getRunDetail>>>;
+
+/** The run as GET /api/v1/runs/:id returns it. */
+export async function getRunDetail(runId: number, opts: { current?: CurrentCheck } = {}): Promise<RunDetailView | null> {
+  return (await getRunDetailWithCheck(runId, opts))?.detail ?? null;
+}
+export type RunDetail = RunDetailView;
 
 /** export.json: everything needed to reproduce the run's result, stamped with the code that made the file. */
-export async function getRunExport(runId: number) {
-  const detail = await getRunDetail(runId, { full: true });
-  if (!detail) return null;
+export async function getRunExport(runId: number): Promise<RunExportView | null> {
+  const found = await getRunDetailWithCheck(runId);
+  if (!found) return null;
+  const { detail } = found;
   // The stored check is { result, input }: the input (setup, rates, t₀, settings, track) reproduces the result.
-  const check = detail.latestTheoryCheck as (ReturnType<typeof serializeCheck> & { result?: { result?: { settings?: unknown; calibrationsApplied?: unknown }; input?: { settings?: unknown } } | null }) | null;
+  const stored = found.check ? (storedCheckResult(found.check) as { result?: { settings?: unknown; calibrationsApplied?: unknown }; input?: { settings?: unknown } } | null) : null;
+  const check = found.check ? { ...serializeTheoryCheck(found.check), result: stored } : null;
   return {
     format: "tankside-run-export",
     formatVersion: 1,
@@ -306,11 +262,11 @@ export async function getRunExport(runId: number) {
     calibrationIdsInForce: detail.calibrationsInForce.ids,
     calibrationsInForce: detail.calibrationsInForce.records,
     // What the latest check did with each of them, in words (null for a check made before this was recorded).
-    calibrationsApplied: check?.result?.result?.calibrationsApplied ?? null,
+    calibrationsApplied: stored?.result?.calibrationsApplied ?? null,
     tracks: detail.tracks,
     trackingJob: detail.latestTrackingJob,
-    settings: check?.result ? { used: check.result.result?.settings ?? null, requested: check.result.input?.settings ?? null } : null,
-    theoryCheckInput: check?.result?.input ?? null,
+    settings: stored ? { used: stored.result?.settings ?? null, requested: stored.input?.settings ?? null } : null,
+    theoryCheckInput: stored?.input ?? null,
     theoryCheck: check,
     tracksCsv: `/api/v1/runs/${detail.id}/tracks.csv`,
   };

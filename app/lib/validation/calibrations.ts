@@ -108,3 +108,15 @@ export const calibrationSchema = calibrationFields.superRefine(kindNeeds);
 export const calibrationApiSchema = calibrationFields.strict().superRefine(kindNeeds);
 
 export type CalibrationInput = z.infer<typeof calibrationSchema>;
+
+/** GET /api/v1/calibrations's query: an equipmentId that cannot be an id is an error, not a silently unfiltered list. */
+export const calibrationFilterSchema = z.object({
+  equipmentId: z.preprocess(
+    blankToUndefined,
+    z
+      .string()
+      .regex(/^[1-9]\d{0,14}$/, "equipmentId must be the id number of one piece of equipment.")
+      .transform(Number)
+      .optional(),
+  ),
+});

@@ -56,3 +56,11 @@ export const equipmentSchema = z
   });
 
 export type EquipmentInput = z.infer<typeof equipmentSchema>;
+
+const blank = (v: unknown) => (v === "" ? undefined : v);
+
+/** GET /api/v1/equipment's query: a filter that cannot be applied is an error, not a silently unfiltered list. */
+export const equipmentFilterSchema = z.object({
+  kind: z.preprocess(blank, z.enum(equipmentKinds, { error: `kind must be one of ${equipmentKinds.join(", ")}.` }).optional()),
+  status: z.preprocess(blank, z.enum(["in_service"], { error: "status can only be in_service (items that can be used or booked)." }).optional()),
+});

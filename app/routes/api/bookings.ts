@@ -1,8 +1,8 @@
 import type { Route } from "./+types/bookings";
 import { requireUser } from "~/.server/auth/permissions";
 import { readJson } from "~/.server/http";
-import { createBooking, listBookings, serializeBooking, serializeBookings } from "~/.server/bookings";
-import { invalidInput, mailReport, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
+import { createBooking, listBookings, serializeBookingChange, serializeBookings } from "~/.server/bookings";
+import { invalidInput, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 import { bookingApiSchema, bookingFilterSchema } from "~/lib/validation/bookings";
 
 /** GET /api/v1/bookings?equipmentId=&state=&from=&to=&mine=1 — every signed-in person sees the lab's schedule. */
@@ -41,7 +41,7 @@ export async function action({ request }: Route.ActionArgs) {
       },
       user,
     );
-    return Response.json({ ...(await serializeBooking(booking)), mail: mailReport(mail) }, { status: 201, headers: { Location: `/api/v1/bookings/${booking.id}` } });
+    return Response.json(await serializeBookingChange(booking, mail), { status: 201, headers: { Location: `/api/v1/bookings/${booking.id}` } });
   } catch (err) {
     return refusalResponse(err);
   }

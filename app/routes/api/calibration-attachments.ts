@@ -7,6 +7,7 @@ import { methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 import { UploadError, withMultipartUpload } from "~/.server/uploads/staging";
 import { StorageUnavailableError } from "~/.server/storage";
 import { storageUnavailable } from "~/.server/storage/respond";
+import type { CalibrationAttachmentView } from "~/.server/openapi/responses/calibrations";
 
 /** POST /api/v1/calibrations/:id/attachments (multipart, field "file") — Uppy's XHR upload lands here. */
 export async function action({ request, params }: Route.ActionArgs) {
@@ -25,10 +26,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     return await withMultipartUpload(request, limits, async ({ file }) => {
       if (!file) return apiError(400, "invalid_upload", "Send the file in a field named file.");
       const row = await addCalibrationAttachment(id, file, user);
-      return Response.json(
-        { id: row.id, originalName: row.originalName, contentType: row.contentType, sizeBytes: row.sizeBytes, url: `/api/v1/calibrations/${id}/attachments/${row.id}` },
-        { status: 201 },
-      );
+      const view: CalibrationAttachmentView = { id: row.id, originalName: row.originalName, contentType: row.contentType, sizeBytes: row.sizeBytes, url: `/api/v1/calibrations/${id}/attachments/${row.id}` };
+      return Response.json(view, { status: 201 });
     });
   } catch (err) {
     if (err instanceof UploadError) return apiError(err.status, err.code, err.message);

@@ -3,16 +3,14 @@ import { requireCapability } from "~/.server/auth/permissions";
 import { apiError, readJson } from "~/.server/http";
 import { createCalibration, listCalibrations, serializeCalibrations } from "~/.server/calibrations";
 import { invalidInput, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
-import { calibrationApiSchema } from "~/lib/validation/calibrations";
+import { calibrationApiSchema, calibrationFilterSchema } from "~/lib/validation/calibrations";
 
 /** GET /api/v1/calibrations?equipmentId= — every role reads the records. */
 export async function loader({ request }: Route.LoaderArgs) {
   await requireCapability(request, "read_calibrations");
-  const raw = new URL(request.url).searchParams.get("equipmentId");
-  // A filter that cannot be an id is an error, not a silently unfiltered list.
-  if (raw && !/^[1-9]\d{0,14}$/.test(raw)) return apiError(400, "invalid_filter", "equipmentId must be the id number of one piece of equipment.");
-  const equipmentId = raw ? Number(raw) : undefined;
-  return Response.json(await serializeCalibrations(await listCalibrations({ equipmentId })));
+  const parsed = calibrationFilterSchema.safeParse({ equipmentId: new URL(request.url).searchParams.get("equipmentId") ?? undefined });
+  if (!parsed.success) return apiError(400, "invalid_filter", parsed.error.issues[0]?.message ?? "The filter is not valid.", { field: "equipmentId" });
+  return Response.json(await serializeCalibrations(await listCalibrations({ equipmentId: parsed.data.equipmentId })));
 }
 
 /** POST /api/v1/calibrations — technicians and lab managers record calibrations. */

@@ -1,4 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { callApi } from "../../../tests/support/api-contract";
 import { Op } from "sequelize";
 import sharp from "sharp";
 import zlib from "node:zlib";
@@ -25,12 +26,15 @@ let lab: RunLab;
 let meter: Equipment;
 const tokens: Record<"tech" | "manager" | "instructor", string> = { tech: "", manager: "", instructor: "" };
 
-/** Calls a route function the way React Router does; an exception that is not a Response is the server's 500. */
+/**
+ * Calls a route function the way React Router does, checking every answer against the OpenAPI
+ * document (tests/support/api-contract.ts); an exception that is not a Response is the server's 500.
+ */
 async function call(fn: (args: never) => unknown, request: Request, params: Record<string, string> = {}) {
   try {
-    return (await fn({ request, params, context: {} } as never)) as Response;
+    return await callApi(fn, request, params);
   } catch (thrown) {
-    if (thrown instanceof Response) return thrown;
+    if (thrown instanceof Error && thrown.message.startsWith("The answer does not match the OpenAPI document")) throw thrown;
     return Response.json({ error: { code: "internal", message: thrown instanceof Error ? thrown.message : String(thrown) } }, { status: 500 });
   }
 }

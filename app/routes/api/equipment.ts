@@ -2,15 +2,15 @@ import type { Route } from "./+types/equipment";
 import { requireUser } from "~/.server/auth/permissions";
 import { listEquipment, serializeEquipment } from "~/.server/equipment";
 import { apiError } from "~/.server/http";
-import { equipmentKinds, type EquipmentKind } from "~/lib/equipment";
+import { equipmentFilterSchema } from "~/lib/validation/equipment";
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request);
-  const url = new URL(request.url);
-  const kind = url.searchParams.get("kind");
-  if (kind && !(equipmentKinds as readonly string[]).includes(kind)) {
-    return apiError(400, "invalid_filter", `kind must be one of ${equipmentKinds.join(", ")}.`);
+  const parsed = equipmentFilterSchema.safeParse(Object.fromEntries(new URL(request.url).searchParams));
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    return apiError(400, "invalid_filter", issue?.message ?? "The filter is not valid.", { field: issue?.path.join(".") ?? "" });
   }
-  const items = await listEquipment({ kind: (kind as EquipmentKind) || undefined, inServiceOnly: url.searchParams.get("status") === "in_service" });
+  const items = await listEquipment({ kind: parsed.data.kind, inServiceOnly: parsed.data.status === "in_service" });
   return Response.json(items.map(serializeEquipment));
 }

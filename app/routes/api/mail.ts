@@ -3,6 +3,7 @@ import { requireRole } from "~/.server/auth/permissions";
 import { apiError } from "~/.server/http";
 import { CapturedMail } from "~/.server/db";
 import { usingFakeMail } from "~/.server/mail/send";
+import type { CapturedMailView } from "~/.server/openapi/responses/people";
 
 /** The fake mail server's inbox as JSON, for the lab manager (and scripted checks) in demo and test mode. */
 export async function loader({ request }: Route.LoaderArgs) {
@@ -12,6 +13,6 @@ export async function loader({ request }: Route.LoaderArgs) {
   const rows = await CapturedMail.findAll({ order: [["id", "DESC"]], limit: 200 });
   const list = rows
     .filter((m) => !to || m.envelopeTo.toLowerCase().split(", ").includes(to.toLowerCase()))
-    .map((m) => ({ id: m.id, from: m.envelopeFrom, to: m.envelopeTo.split(", "), subject: m.subject, text: m.textBody, receivedAt: m.receivedAt }));
+    .map((m): CapturedMailView => ({ id: m.id, from: m.envelopeFrom, to: m.envelopeTo.split(", "), subject: m.subject, text: m.textBody, receivedAt: m.receivedAt.toISOString() }));
   return Response.json(list);
 }

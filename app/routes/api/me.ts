@@ -1,7 +1,9 @@
 import type { Route } from "./+types/me";
 import { requireUser } from "~/.server/auth/permissions";
+import type { MeView } from "~/.server/openapi/responses/people";
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
-  return Response.json({ id: user.id, email: user.email, name: user.name, role: user.role });
+  const me: MeView = { id: user.id, email: user.email, name: user.name, role: user.role };
+  return Response.json(me);
 }

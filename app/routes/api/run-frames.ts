@@ -10,17 +10,19 @@ import { Frame } from "~/.server/db";
 import { inputsChanged } from "~/.server/runs/rechecks";
 import { uploadLimits } from "~/lib/upload-limits";
 import { parseFrameTime } from "~/lib/video-frames";
+import type { FrameStackView, FrameUploadRefusedView } from "~/.server/openapi/responses/tracking";
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request);
   const run = await loadRun(request, params.runId);
   const frames = await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] });
-  return Response.json({
+  const stack: FrameStackView = {
     frameCount: frames.length,
     width: run.frameWidthPx,
     height: run.frameHeightPx,
     frames: frames.map((f) => ({ id: f.id, position: f.position, name: f.originalName, timeS: f.timeS, format: f.format, sizeBytes: f.sizeBytes })),
-  });
+  };
+  return Response.json(stack);
 }
 
 /** One file per request (Uppy sends each file on its own): an image, or a ZIP of images. */
@@ -48,7 +50,8 @@ export async function action({ request, params }: Route.ActionArgs) {
       try {
         const result = await receiveFrameFile(run, file, time.timeS);
         if (result.accepted.length === 0 && result.rejected.length > 0) {
-          return Response.json({ error: { code: "no_frames_accepted", message: result.rejected[0].message }, ...result }, { status: 422 });
+          const refused: FrameUploadRefusedView = { error: { code: "no_frames_accepted", message: result.rejected[0]?.message ?? "No frame was accepted." }, ...result };
+          return Response.json(refused, { status: 422 });
         }
         const allDuplicates = result.accepted.length > 0 && result.accepted.every((a) => a.duplicate);
         // New frames make a checked run's tracks and check out of date: track again.

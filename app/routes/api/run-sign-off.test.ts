@@ -1,4 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { callApi } from "../../../tests/support/api-contract";
 import { migrate, Run } from "~/.server/db";
 import { createApiToken } from "~/.server/auth/api-tokens";
 import { stopTrackingQueue } from "~/.server/jobs/tracking-queue";
@@ -22,14 +23,8 @@ afterAll(async () => {
   await stopTrackingQueue();
 });
 
-const call = async (fn: (args: never) => unknown, request: Request, id: number): Promise<Response> => {
-  try {
-    return (await fn({ request, params: { id: String(id) }, context: {} } as never)) as Response;
-  } catch (thrown) {
-    if (thrown instanceof Response) return thrown;
-    throw thrown;
-  }
-};
+/** Every answer is checked against the OpenAPI document on the way (see tests/support/api-contract.ts). */
+const call = (fn: (args: never) => unknown, request: Request, id: number) => callApi(fn, request, { id: String(id) });
 const req = (method: string, path: string, token: string | null, body?: unknown) =>
   new Request(`http://localhost${path}`, {
     method,

@@ -3,7 +3,8 @@ import { requireRole } from "~/.server/auth/permissions";
 import { parseId } from "~/.server/http";
 import { methodNotAllowed } from "~/.server/api-responses";
 import { signOffRun } from "~/.server/runs/record";
-import { runErrorResponse, serializeRun } from "~/.server/runs/api";
+import { runErrorResponse } from "~/.server/runs/api";
+import { serializeRun } from "~/.server/runs/serialize";
 
 /**
  * POST /api/v1/runs/:id/sign-off (lab manager): the same service as the run page's form. 409

@@ -4,6 +4,7 @@ import { apiError } from "~/.server/http";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { cancelTracking, enqueueTracking, JobError, latestJob, serializeJob } from "~/.server/jobs/tracking-queue";
 import { Track } from "~/.server/db";
+import type { TrackingView } from "~/.server/openapi/responses/tracking";
 
 /** GET: the latest tracking job's progress and the tracks found. Polled by the run page. */
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -13,12 +14,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     latestJob(run.id),
     Track.findAll({ where: { runId: run.id }, attributes: ["id", "number", "pointCount", "detectedShare", "jitterPx"], order: [["number", "ASC"]] }),
   ]);
-  return Response.json({
+  const view: TrackingView = {
     runId: run.id,
     runState: run.state,
     job: serializeJob(job),
     tracks: tracks.map((t) => ({ id: t.id, number: t.number, points: t.pointCount, detectedShare: t.detectedShare, jitterPx: t.jitterPx })),
-  });
+  };
+  return Response.json(view);
 }
 
 /** POST starts a tracking job; DELETE cancels the queued or running one. */

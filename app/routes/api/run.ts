@@ -4,7 +4,9 @@ import { apiError, readJson } from "~/.server/http";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { getRunDetail } from "~/.server/runs/record";
 import { updateRun } from "~/.server/runs/service";
-import { fieldErrors, runErrorResponse, serializeRun } from "~/.server/runs/api";
+import { runErrorResponse } from "~/.server/runs/api";
+import { serializeRun } from "~/.server/runs/serialize";
+import { invalidInput } from "~/.server/api-responses";
 import { runApiPatchSchema } from "~/lib/validation/run-api";
 import { runSchema } from "~/lib/validation/run";
 
@@ -22,7 +24,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const run = await loadRun(request, params.id);
   requireChangeable(request, run, user);
   const patch = runApiPatchSchema.safeParse(await readJson(request));
-  if (!patch.success) return fieldErrors(patch.error);
+  if (!patch.success) return invalidInput(patch.error);
   // The stored run in the form's units (cm), with the change laid over it, checked as a whole.
   const current = {
     tableId: run.tableId,
@@ -40,7 +42,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     notes: run.notes ?? undefined,
   };
   const merged = runSchema.safeParse({ ...current, ...patch.data });
-  if (!merged.success) return fieldErrors(merged.error);
+  if (!merged.success) return invalidInput(merged.error);
   try {
     const updated = await updateRun(run.id, merged.data, user);
     return Response.json(serializeRun(updated));

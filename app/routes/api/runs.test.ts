@@ -1,4 +1,5 @@
 import { beforeAll, describe, expect, it } from "vitest";
+import { callApi } from "../../../tests/support/api-contract";
 import { migrate, Run, RunHistory, TheoryCheck, Track, TrackingJob, ViewSetup } from "~/.server/db";
 import { createApiToken, revokeApiToken } from "~/.server/auth/api-tokens";
 import { createRun } from "~/.server/runs/service";
@@ -15,15 +16,8 @@ let techToken: string;
 let instructorToken: string;
 let managerToken: string;
 
-type Args = { request: Request; params: Record<string, string>; context: unknown };
-const call = async <T extends (args: never) => unknown>(fn: T, request: Request, params: Record<string, string> = {}): Promise<Response> => {
-  try {
-    return (await fn({ request, params, context: {} } satisfies Args as never)) as Response;
-  } catch (thrown) {
-    if (thrown instanceof Response) return thrown;
-    throw thrown;
-  }
-};
+/** Every answer is checked against the OpenAPI document on the way (see tests/support/api-contract.ts). */
+const call = callApi;
 const get = (path: string, token: string | null) =>
   new Request(`http://localhost${path}`, { headers: token ? { Authorization: `Bearer ${token}` } : {} });
 const send = (method: string, path: string, token: string, body: unknown) =>
@@ -145,21 +139,29 @@ describe("POST /api/v1/runs", () => {
     expect(await RunHistory.count({ where: { runId: run.id, field: "created" } })).toBe(1);
   });
 
-  it("refuses an instructor (403), bad fields (422 per field) and unknown fields, saving nothing", async () => {
+  it("refuses an instructor (403), bad and unknown fields (400 invalid_input, per field) and conditions the table cannot run (422), saving nothing", async () => {
     const before = await Run.count();
     const instructor = await call(createAction, send("POST", "/api/v1/runs", instructorToken, runInput(lab)));
     expect(instructor.status).toBe(403);
     const bad = await call(createAction, send("POST", "/api/v1/runs", techToken, runInput(lab, { setRateRpm: -3, direction: "up" })));
-    expect(bad.status).toBe(422);
-    const body = await bad.json();
-    expect(body.error.fields.setRateRpm).toMatch(/above 0 rpm/);
-    expect(body.error.fields.direction).toMatch(/counterclockwise or clockwise/);
+    expect(bad.status).toBe(400);
+    const body = (await bad.json()) as { error: { code: string; issues: { field: string; message: string }[] } };
+    expect(body.error.code).toBe("invalid_input");
+    const issue = (b: typeof body, field: string) => b.error.issues.find((i) => i.field === field)?.message;
+    expect(issue(body, "setRateRpm")).toMatch(/above 0 rpm/);
+    expect(issue(body, "direction")).toMatch(/counterclockwise or clockwise/);
     const extra = await call(createAction, send("POST", "/api/v1/runs", techToken, { ...runInput(lab), waterDepthM: 0.1 }));
-    expect(extra.status).toBe(422);
-    expect((await extra.json()).error.message).toMatch(/Unknown field: waterDepthM/);
+    expect(extra.status).toBe(400);
+    const extraBody = (await extra.json()) as typeof body & { error: { message: string } };
+    expect(extraBody.error.message).toMatch(/Unknown field: waterDepthM/);
+    expect(extraBody.error.issues).toEqual([{ field: "waterDepthM", message: "Unknown field: waterDepthM." }]);
+    // Well-formed, but beyond what this table is rated for: the lab's register refuses it.
     const tooFast = await call(createAction, send("POST", "/api/v1/runs", techToken, runInput(lab, { setRateRpm: 45 })));
     expect(tooFast.status).toBe(422);
-    expect((await tooFast.json()).error.fields.setRateRpm).toMatch(/rated to 30 rpm/);
+    const fastBody = (await tooFast.json()) as typeof body & { error: { field: string } };
+    expect(fastBody.error.code).toBe("conditions_not_possible");
+    expect(fastBody.error.field).toBe("setRateRpm");
+    expect(issue(fastBody, "setRateRpm")).toMatch(/rated to 30 rpm/);
     expect(await Run.count()).toBe(before);
   });
 });

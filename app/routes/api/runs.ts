@@ -3,7 +3,9 @@ import { requireRole, requireUser } from "~/.server/auth/permissions";
 import { apiError, readJson } from "~/.server/http";
 import { listRuns, runFiltersFrom } from "~/.server/runs/queries";
 import { createRun } from "~/.server/runs/service";
-import { fieldErrors, runErrorResponse, serializeRun } from "~/.server/runs/api";
+import { runErrorResponse } from "~/.server/runs/api";
+import { serializeRun } from "~/.server/runs/serialize";
+import { invalidInput } from "~/.server/api-responses";
 import { runApiCreateSchema } from "~/lib/validation/run-api";
 
 /** GET /api/v1/runs: the runs table's filters, sort and paging as query parameters. */
@@ -11,7 +13,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   await requireUser(request);
   try {
     const page = await listRuns(runFiltersFrom(new URL(request.url).searchParams));
-    return Response.json({ items: page.items, total: page.total, page: page.page, pageSize: page.pageSize });
+    return Response.json(page);
   } catch (err) {
     return runErrorResponse(err);
   }
@@ -23,7 +25,7 @@ export async function action({ request }: Route.ActionArgs) {
   const user = await requireRole(request, "technician", "lab_manager");
   const body = await readJson(request);
   const parsed = runApiCreateSchema.safeParse(body);
-  if (!parsed.success) return fieldErrors(parsed.error);
+  if (!parsed.success) return invalidInput(parsed.error);
   try {
     const run = await createRun(parsed.data, user);
     return Response.json(serializeRun(run), { status: 201, headers: { Location: `/api/v1/runs/${run.id}` } });

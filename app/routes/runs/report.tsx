@@ -3,7 +3,8 @@ import { data } from "react-router";
 import type { Route } from "./+types/report";
 import { parseId } from "~/.server/http";
 import { requireUser } from "~/.server/auth/permissions";
-import { getRunDetail, getSignOffView, getRunHistory } from "~/.server/runs/record";
+import { getRunDetailWithCheck, getSignOffView, getRunHistory } from "~/.server/runs/record";
+import { storedCheckResult } from "~/.server/runs/serialize";
 import { Run } from "~/.server/db";
 import { currentCheck } from "~/.server/runs/current-check";
 import type { TheoryCheckResult } from "~/lib/analysis/check";
@@ -27,9 +28,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const model = await Run.findByPk(runId);
   if (!model) throw data("That run does not exist.", { status: 404 });
   const current = await currentCheck(model);
-  const [run, signOff, history] = await Promise.all([getRunDetail(runId, { full: true, current }), getSignOffView(model, user, current), getRunHistory(runId)]);
-  if (!run) throw data("That run does not exist.", { status: 404 });
-  const check = run.latestTheoryCheck as (NonNullable<typeof run.latestTheoryCheck> & { result?: { result?: TheoryCheckResult } | null }) | null;
+  const [found, signOff, history] = await Promise.all([getRunDetailWithCheck(runId, { current }), getSignOffView(model, user, current), getRunHistory(runId)]);
+  if (!found) throw data("That run does not exist.", { status: 404 });
+  const run = found.detail;
+  const check = run.latestTheoryCheck && found.check ? { ...run.latestTheoryCheck, result: storedCheckResult(found.check) as { result?: TheoryCheckResult } | null } : null;
   // The report needs the check's figures, not its plotted series: keep the page light.
   const stored = check?.result?.result;
   const result = stored ? { ...stored, series: undefined } : null;

@@ -1,0 +1,192 @@
+import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
+import { z } from "../zod";
+import { badBody, error, file, ids, json, notJson, operation, routeSchema } from "./helpers";
+import { runDetailSchema, runPageSchema, runSchema } from "../responses/runs";
+import { runExportSchema } from "../responses/run-export";
+import { errorSchema } from "../responses/common";
+import { frameStackSchema, frameUploadRefusedSchema, frameUploadSchema, trackingJobAnswerSchema, trackingSchema } from "../responses/tracking";
+import { runApiCreateSchema, runApiPatchSchema } from "~/lib/validation/run-api";
+import { runFiltersSchema } from "~/lib/validation/run-filters";
+
+const tags = ["Runs"];
+const noRun = error("No such run (not_found).");
+const writers = error("Only a technician or a lab manager, and for a change the run's own technician or a lab manager (forbidden).");
+const signedOff = "run_signed_off: the run is signed off and read-only; log a correction instead";
+const notPossible = error(
+  "conditions_not_possible: the body is well-formed but the lab's register refuses it (above the table's rated rate, deeper than the tank, a rate-reached time in the future or after the first frame); error.issues names the fields.",
+);
+
+export const runCreateExample = {
+  tableId: 1,
+  tankId: 4,
+  cameraId: 7,
+  setRateRpm: 10,
+  direction: "ccw",
+  waterDepthCm: 12,
+  waterTemperatureC: 20.5,
+  rateReachedAt: "2025-03-14T09:30:00Z",
+  cameraMode: "rotating",
+  frameRateFps: 30,
+  tracer: "float",
+  purpose: "Inertial circles for the second-year demonstration",
+  notes: "Float released near mid-radius.",
+};
+export const runPatchExample = { waterTemperatureC: 21, notes: "Thermometer re-read after the run." };
+
+export function registerRunPaths(registry: OpenAPIRegistry) {
+  const create = registry.register("RunCreate", routeSchema(runApiCreateSchema));
+  const patch = registry.register("RunPatch", routeSchema(runApiPatchSchema));
+  operation(registry, {
+    method: "get",
+    path: "/api/v1/runs",
+    operationId: "listRuns",
+    tags,
+    summary: "Runs, filtered, sorted and paged by the server",
+    description: "The same query as the runs table's address: copy a filtered view's search parameters here.",
+    request: { query: routeSchema(runFiltersSchema) },
+    responses: { 200: json(runPageSchema, "One page"), 400: error("Unknown filter or sort field, malformed date, page out of range (invalid_filter, with field).") },
+  });
+  operation(registry, {
+    method: "post",
+    path: "/api/v1/runs",
+    operationId: "createRun",
+    tags,
+    summary: "Log a run (technician, lab manager)",
+    request: { body: { required: true, content: { "application/json": { schema: create, example: runCreateExample } } } },
+    responses: {
+      201: json(runSchema, "The run as logged, in state draft"),
+      400: badBody(),
+      403: writers,
+      404: error("The run it corrects does not exist (not_found, field supersedesId)."),
+      415: notJson,
+      422: notPossible,
+    },
+  });
+  operation(registry, {
+    method: "get",
+    path: "/api/v1/runs/{id}",
+    operationId: "getRun",
+    tags,
+    summary: "The run record",
+    request: { params: ids("id") },
+    responses: { 200: json(runDetailSchema, "The run"), 404: noRun },
+  });
+  operation(registry, {
+    method: "patch",
+    path: "/api/v1/runs/{id}",
+    operationId: "updateRun",
+    tags,
+    summary: "Change some of a run's conditions (its technician or a lab manager)",
+    description: "The fields are merged over the stored run and checked as a whole; every change is kept in the run's history.",
+    request: { params: ids("id"), body: { required: true, content: { "application/json": { schema: patch, example: runPatchExample } } } },
+    responses: { 200: json(runSchema, "The run after the change"), 400: badBody(), 403: writers, 404: noRun, 409: error(`${signedOff}.`), 415: notJson, 422: notPossible },
+  });
+  operation(registry, {
+    method: "get",
+    path: "/api/v1/runs/{id}/tracks.csv",
+    operationId: "getRunTracksCsv",
+    tags,
+    summary: "The run's tracks as CSV",
+    description:
+      "One row a point: track_id, t_s, x_px, y_px, and x_m, y_m in the rotating frame (origin on the axis, y up, seen from above) when the view setup has a scale.",
+    request: { params: ids("id") },
+    responses: {
+      200: file("text/csv", "CSV", "track_id,t_s,x_px,y_px,x_m,y_m\r\n12,0,640.5,360.25,0.0412,-0.0107\r\n"),
+      404: noRun,
+      409: error("The run has no tracks yet (no_tracks)."),
+    },
+  });
+  operation(registry, {
+    method: "post",
+    path: "/api/v1/runs/{id}/sign-off",
+    operationId: "signOffRun",
+    tags,
+    summary: "Sign a run off (lab manager)",
+    description: "Vouches for the run's current theory check; afterwards the run is read-only and a correction is logged as a new run.",
+    request: { params: ids("id") },
+    responses: {
+      200: json(runSchema, "The run, signed off"),
+      403: error("Only a lab manager signs off (forbidden)."),
+      404: noRun,
+      409: error("check_out_of_date (the check is out of date or missing), not_checked, or run_signed_off (already signed off)."),
+    },
+  });
+  operation(registry, {
+    method: "get",
+    path: "/api/v1/runs/{id}/export.json",
+    operationId: "exportRun",
+    tags,
+    summary: "Everything needed to reproduce the run's result",
+    request: { params: ids("id") },
+    responses: { 200: json(runExportSchema, "The export (as a download)"), 404: noRun },
+  });
+  operation(registry, {
+    method: "get",
+    path: "/api/v1/runs/{runId}/frames",
+    operationId: "listFrames",
+    tags,
+    summary: "The run's frame stack",
+    request: { params: ids("runId") },
+    responses: { 200: json(frameStackSchema, "The frames in order"), 404: noRun },
+  });
+  operation(registry, {
+    method: "post",
+    path: "/api/v1/runs/{runId}/frames",
+    operationId: "uploadFrames",
+    tags,
+    summary: "Upload one frame, or a ZIP of frames (technician, lab manager)",
+    request: {
+      params: ids("runId"),
+      body: {
+        required: true,
+        content: {
+          "multipart/form-data": {
+            schema: z.strictObject({
+              file: z.string().openapi({ format: "binary", description: "JPEG, PNG, TIFF or WebP image, or a ZIP of them; checked by content." }),
+              timeS: z.number().min(0).optional().openapi({ description: "The frame's own time in s, for a frame cut from a video." }),
+            }),
+          },
+        },
+      },
+    },
+    responses: {
+      200: json(frameUploadSchema, "Every file was already in the stack"),
+      201: json(frameUploadSchema, "Accepted and rejected files"),
+      400: error("No file field (missing_file), a bad timeS (invalid_time), or unreadable multipart (invalid_multipart)."),
+      403: writers,
+      404: noRun,
+      409: error(`${signedOff}.`),
+      413: error("Too large, or a ZIP with too many entries."),
+      415: error("Not multipart/form-data (unsupported_media_type)."),
+      422: json(z.union([frameUploadRefusedSchema, errorSchema]), "No frame was accepted (no_frames_accepted, with what happened to each file), or a damaged image or ZIP."),
+      503: error("The file store cannot be reached (storage_unavailable)."),
+    },
+  });
+  operation(registry, {
+    method: "get",
+    path: "/api/v1/runs/{runId}/tracking",
+    operationId: "getTracking",
+    tags,
+    summary: "Progress of the latest tracking job, and the tracks found",
+    request: { params: ids("runId") },
+    responses: { 200: json(trackingSchema, "The job and the tracks"), 404: noRun },
+  });
+  operation(registry, {
+    method: "post",
+    path: "/api/v1/runs/{runId}/tracking",
+    operationId: "startTracking",
+    tags,
+    summary: "Start tracking (technician, lab manager)",
+    request: { params: ids("runId") },
+    responses: { 202: json(trackingJobAnswerSchema, "The queued job"), 403: writers, 404: noRun, 409: error("Already running (job_active), no frames or no view setup, or signed off.") },
+  });
+  operation(registry, {
+    method: "delete",
+    path: "/api/v1/runs/{runId}/tracking",
+    operationId: "cancelTracking",
+    tags,
+    summary: "Cancel the queued or running job",
+    request: { params: ids("runId") },
+    responses: { 200: json(trackingJobAnswerSchema, "The cancelled job"), 403: writers, 404: noRun, 409: error("Nothing to cancel.") },
+  });
+}

@@ -1,0 +1,198 @@
+import { z } from "../zod";
+import { isoTime, isoTimeOrNull, namedSchema } from "./common";
+import { equipmentSchema } from "./equipment";
+import { calibrationKinds } from "~/lib/calibrations";
+import { runStates, verdicts } from "~/lib/runs";
+import { trackingJobSchema } from "./tracking";
+
+const runState = z.enum(runStates);
+const verdict = z.enum(verdicts).nullable();
+const direction = z.enum(["ccw", "cw"]);
+const cameraMode = z.enum(["rotating", "lab"]);
+const tracer = z.enum(["float", "dye"]);
+const label = z.string().openapi({ examples: ["R-0042"] });
+const person = z.strictObject({ id: z.number().int(), name: z.string() });
+
+/** The run as POST/PATCH /api/v1/runs and sign-off answer it: stored columns, SI units as named. */
+export const runSchema = z
+  .strictObject({
+    id: z.number().int(),
+    label,
+    state: runState,
+    verdict,
+    tableId: z.number().int(),
+    tankId: z.number().int(),
+    cameraId: z.number().int(),
+    setRateRpm: z.number(),
+    direction,
+    waterDepthM: z.number(),
+    waterTemperatureC: z.number(),
+    rateReachedAt: isoTimeOrNull(),
+    cameraMode,
+    frameRateFps: z.number(),
+    tracer,
+    purpose: z.string(),
+    notes: z.string().nullable(),
+    technicianId: z.number().int(),
+    supersedesId: z.number().int().nullable(),
+    signedOffById: z.number().int().nullable(),
+    signedOffAt: isoTimeOrNull(),
+    frameCount: z.number().int(),
+    createdAt: isoTime(),
+    updatedAt: isoTime(),
+  })
+  .openapi("Run");
+export type RunView = z.infer<typeof runSchema>;
+
+export const runListItemSchema = z
+  .strictObject({
+    id: z.number().int(),
+    label,
+    createdAt: isoTime(),
+    state: runState,
+    verdict,
+    table: namedSchema,
+    tank: namedSchema,
+    camera: namedSchema,
+    technician: namedSchema,
+    setRateRpm: z.number(),
+    direction,
+    waterDepthM: z.number(),
+    waterTemperatureC: z.number(),
+    cameraMode,
+    tracer,
+    frameCount: z.number().int(),
+    purpose: z.string(),
+    signedOffAt: isoTimeOrNull(),
+    supersedesId: z.number().int().nullable(),
+  })
+  .openapi("RunListItem");
+export type RunListItemView = z.infer<typeof runListItemSchema>;
+
+export const runPageSchema = z
+  .strictObject({ items: z.array(runListItemSchema), total: z.number().int(), page: z.number().int(), pageSize: z.number().int(), pageCount: z.number().int() })
+  .openapi("RunPage");
+
+export const runLinkSchema = z.strictObject({ id: z.number().int(), label, state: runState, createdAt: isoTime() }).openapi("RunLink");
+export type RunLinkView = z.infer<typeof runLinkSchema>;
+
+export const runHistoryEntrySchema = z
+  .strictObject({
+    id: z.number().int(),
+    at: isoTime(),
+    who: person.nullable(),
+    field: z.string(),
+    fieldLabel: z.string(),
+    oldValue: z.string().nullable(),
+    newValue: z.string().nullable(),
+  })
+  .openapi("RunHistoryEntry");
+export type RunHistoryEntryView = z.infer<typeof runHistoryEntrySchema>;
+
+export const runConditionsSchema = z.strictObject({
+  setRateRpm: z.number(),
+  direction,
+  waterDepthM: z.number(),
+  waterTemperatureC: z.number(),
+  rateReachedAt: isoTimeOrNull(),
+  cameraMode,
+  frameRateFps: z.number(),
+  tracer,
+});
+
+export const viewSetupSchema = z
+  .strictObject({
+    id: z.number().int(),
+    cameraId: z.number().int(),
+    centrePx: z.strictObject({ x: z.number(), y: z.number() }),
+    tankEdgePx: z.strictObject({ x: z.number(), y: z.number(), r: z.number() }).nullable(),
+    scalePxPerM: z.number().nullable(),
+    scalePoints: z.unknown().openapi({ description: "The points the scale was measured between, as the view setup stored them (or null)." }),
+    mirrored: z.boolean(),
+    updatedAt: isoTime(),
+  })
+  .openapi("ViewSetup");
+
+export const trackSummarySchema = z.strictObject({
+  id: z.number().int(),
+  number: z.number().int(),
+  jobId: z.number().int(),
+  pointCount: z.number().int(),
+  detectedShare: z.number().nullable(),
+  jitterPx: z.number().nullable(),
+});
+
+export const theoryCheckSummarySchema = z
+  .strictObject({
+    id: z.number().int(),
+    trackId: z.number().int().nullable(),
+    verdict: z.enum(verdicts),
+    fMeasuredPerS: z.number().nullable(),
+    fPredictedPerS: z.number().nullable(),
+    codeVersion: z.string(),
+    createdAt: isoTime(),
+  })
+  .openapi("TheoryCheck");
+export type TheoryCheckView = z.infer<typeof theoryCheckSummarySchema>;
+
+export const checkOutOfDateSchema = z
+  .strictObject({
+    because: z.array(z.string()).openapi({ description: "The inputs changed since the latest check, in words." }),
+    recheckPending: z.boolean(),
+    checkId: z.number().int().nullable(),
+  })
+  .nullable()
+  .openapi({ description: "Set when checkStatus is out_of_date." });
+
+const storedCalibration = z
+  .looseObject({ id: z.union([z.number(), z.string()]), kind: z.string() })
+  .openapi({ description: "As stored with the run when it was logged; older runs stored fewer fields, so further fields may appear." });
+
+export const calibrationRecordAtRunSchema = z.strictObject({
+  id: z.number().int(),
+  kind: z.enum(calibrationKinds),
+  equipmentId: z.number().int(),
+  performedAt: isoTime(),
+  dueAt: isoTime(),
+  expired: z.boolean(),
+  passed: z.boolean().nullable(),
+  signedOffAt: isoTimeOrNull(),
+});
+
+export const signOffSchema = z.strictObject({ signedOffAt: isoTimeOrNull(), signedOffBy: person.nullable() });
+
+export const runDetailSchema = z
+  .strictObject({
+    id: z.number().int(),
+    label,
+    state: runState,
+    verdict: verdict.openapi({ description: "null while the check is not current." }),
+    conditions: runConditionsSchema,
+    purpose: z.string(),
+    notes: z.string().nullable(),
+    equipment: z.strictObject({ table: equipmentSchema.nullable(), tank: equipmentSchema.nullable(), camera: equipmentSchema.nullable() }),
+    technician: z.strictObject({ id: z.number().int(), name: z.string(), email: z.string() }).nullable(),
+    frames: z.strictObject({ count: z.number().int(), widthPx: z.number().int().nullable(), heightPx: z.number().int().nullable() }),
+    viewSetup: viewSetupSchema.nullable(),
+    latestTrackingJob: trackingJobSchema.nullable(),
+    tracks: z.strictObject({ count: z.number().int(), items: z.array(trackSummarySchema) }),
+    latestTheoryCheck: theoryCheckSummarySchema.nullable().openapi({ description: "The current theory check only: null while it is out of date or missing." }),
+    checkStatus: z.enum(["current", "out_of_date", "missing"]),
+    checkOutOfDate: checkOutOfDateSchema,
+    calibrationsInForce: z.strictObject({
+      ids: z.array(z.number().int()),
+      recorded: z.strictObject({ at: isoTimeOrNull(), inForce: z.array(storedCalibration), pastDue: z.array(storedCalibration) }),
+      records: z.array(calibrationRecordAtRunSchema),
+    }),
+    signOff: signOffSchema,
+    supersedes: runLinkSchema.nullable(),
+    supersededBy: z.array(runLinkSchema),
+    history: z.array(runHistoryEntrySchema),
+    createdAt: isoTime(),
+    updatedAt: isoTime(),
+  })
+  .openapi("RunDetail", {
+    description:
+      "The run record. latestTheoryCheck is the current check only; checkStatus says current, out_of_date (an input changed since the latest check: checkOutOfDate.because names which) or missing. While the check is not current, verdict and latestTheoryCheck are null.",
+  });
+export type RunDetailView = z.infer<typeof runDetailSchema>;

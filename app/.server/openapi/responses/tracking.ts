@@ -1,0 +1,62 @@
+import { z } from "../zod";
+import { errorSchema, isoTime, isoTimeOrNull } from "./common";
+import { runStates } from "~/lib/runs";
+
+export const trackingJobSchema = z
+  .strictObject({
+    id: z.number().int(),
+    state: z.enum(["queued", "running", "done", "failed", "cancelled"]),
+    framesDone: z.number().int(),
+    framesTotal: z.number().int(),
+    percent: z.number(),
+    error: z.string().nullable(),
+    startedAt: isoTimeOrNull(),
+    finishedAt: isoTimeOrNull(),
+    createdAt: isoTime(),
+  })
+  .openapi("TrackingJob");
+export type TrackingJobView = z.infer<typeof trackingJobSchema>;
+
+export const trackingSchema = z
+  .strictObject({
+    runId: z.number().int(),
+    runState: z.enum(runStates),
+    job: trackingJobSchema.nullable(),
+    tracks: z.array(z.strictObject({ id: z.number().int(), number: z.number().int(), points: z.number().int(), detectedShare: z.number().nullable(), jitterPx: z.number().nullable() })),
+  })
+  .openapi("Tracking");
+
+export const trackingJobAnswerSchema = z.strictObject({ job: trackingJobSchema }).openapi("TrackingJobAnswer");
+
+export const frameStackSchema = z
+  .strictObject({
+    frameCount: z.number().int(),
+    width: z.number().int().nullable(),
+    height: z.number().int().nullable(),
+    frames: z.array(
+      z.strictObject({ id: z.number().int(), position: z.number().int(), name: z.string(), timeS: z.number().nullable(), format: z.string(), sizeBytes: z.number().int() }),
+    ),
+  })
+  .openapi("FrameStack");
+
+const uploadResultFields = {
+  accepted: z.array(
+    z.strictObject({
+      name: z.string(),
+      frameId: z.number().int(),
+      position: z.number().int(),
+      duplicate: z.boolean(),
+      restored: z.boolean().optional().openapi({ description: "A duplicate whose stored file had gone missing, put back from this upload." }),
+    }),
+  ),
+  rejected: z.array(z.strictObject({ name: z.string(), message: z.string() })),
+  frameCount: z.number().int(),
+};
+export const frameUploadSchema = z.strictObject(uploadResultFields).openapi("FrameUpload");
+export type FrameUploadView = z.infer<typeof frameUploadSchema>;
+
+/** 422 no_frames_accepted: the error, and what happened to each file. */
+export const frameUploadRefusedSchema = z.strictObject({ error: errorSchema.shape.error, ...uploadResultFields }).openapi("FrameUploadRefused");
+export type FrameUploadRefusedView = z.infer<typeof frameUploadRefusedSchema>;
+export type FrameStackView = z.infer<typeof frameStackSchema>;
+export type TrackingView = z.infer<typeof trackingSchema>;

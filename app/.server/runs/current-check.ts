@@ -1,5 +1,5 @@
 import type { Transaction } from "sequelize";
-import { Run, TheoryCheck } from "../db";
+import { Run, TheoryCheck, type TrackingJob } from "../db";
 import { changedInputs, presentFingerprint, recordedInputs } from "./provenance";
 
 /**
@@ -42,4 +42,20 @@ export async function currentCheck(runOrId: Run | number, transaction?: Transact
   if (fingerprint && latest.inputFingerprint === fingerprint) return { status: "current", check: latest, latest, changed: [] };
   const changed = changedInputs(recordedInputs(latest), inputs);
   return { status: "out_of_date", check: null, latest, changed: changed.length ? changed : ["tracks not made from the present frames and view setup"] };
+}
+
+/** How long after a tracking job ends its theory check is still awaited (it usually takes a second or two). */
+const CHECK_AWAITED_MS = 120_000;
+
+/**
+ * True while the theory check that follows a finished tracking job has not been made yet: the job
+ * is done, the run is tracked (not signed off), no check is newer than the job's end, and the job
+ * ended less than two minutes ago (a check that failed is not awaited for ever). The run page keeps
+ * polling while this holds, so the verdict appears without a reload.
+ */
+export async function checkAwaited(run: Run, job: TrackingJob | null, now = new Date()): Promise<boolean> {
+  if (!job || job.state !== "done" || !job.finishedAt || run.state !== "tracked") return false;
+  if (now.getTime() - job.finishedAt.getTime() > CHECK_AWAITED_MS) return false;
+  const latest = await latestCheck(run.id, { attributes: ["id", "createdAt"] });
+  return !latest || latest.createdAt.getTime() < job.finishedAt.getTime();
 }

@@ -2,7 +2,7 @@ import { Equipment, Frame, Run, Track, User, ViewSetup } from "../db";
 import { latestJob, serializeJob } from "../jobs/tracking-queue";
 import { serializeEquipment } from "../equipment";
 import { parseTrackPoints, storedCheck } from "./theory";
-import { currentCheck, type CurrentCheck } from "./current-check";
+import { checkAwaited, currentCheck, type CurrentCheck } from "./current-check";
 import { recheckPending } from "./rechecks";
 import type { CurrentUser } from "../auth/permissions";
 import { calibrationSnapshot, canChangeRun } from "./service";
@@ -53,6 +53,7 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
         }
       : null,
     job: serializeJob(job),
+    checkAwaited: await checkAwaited(run, job),
     tracks: tracks.map((t) => ({
       id: t.id,
       number: t.number,

@@ -15,6 +15,8 @@ interface JobView {
 }
 interface TrackingView {
   job: JobView | null;
+  /** The job is done and the theory check that follows it is not made yet. */
+  checkAwaited: boolean;
   tracks: { id: number; number: number; points: number; detectedShare: number | null; jitterPx: number | null }[];
 }
 interface ErrorView {
@@ -38,17 +40,20 @@ export function TrackingPanel({ runId, initial, canChange, ready, readyReason }:
   const view = poll.data ?? initial;
   const job = view.job;
   const active = job?.state === "queued" || job?.state === "running";
+  // Poll while the job runs, and after it while its theory check is still being made.
+  const following = active || view.checkAwaited;
 
   useEffect(() => {
-    if (!active) return;
+    if (!following) return;
     const timer = setInterval(() => {
       if (poll.state === "idle") poll.load(`/api/v1/runs/${runId}/tracking`);
     }, 1000);
     return () => clearInterval(timer);
-  }, [active, runId, poll]);
+  }, [following, runId, poll]);
 
-  // When a job ends, reload the page's data so the tracks, the overlay and the theory check appear.
-  const finishedKey = job && !active ? `${job.id}-${job.state}` : null;
+  // When a job ends, and again when its check is made, reload the page's data so the tracks, the
+  // overlay and the verdict appear.
+  const finishedKey = job && !active ? `${job.id}-${job.state}-${view.checkAwaited ? "checking" : "checked"}` : null;
   useEffect(() => {
     if (finishedKey && poll.data) revalidator.revalidate();
     // eslint-disable-next-line react-hooks/exhaustive-deps
@@ -86,6 +91,11 @@ export function TrackingPanel({ runId, initial, canChange, ready, readyReason }:
           {active ? <progress className="h-5 w-full" max={job.framesTotal || 1} value={job.framesDone} aria-label="Tracking progress" /> : null}
           {job.state === "failed" && job.error ? <Notice kind="error" title="Tracking failed">{job.error}</Notice> : null}
           {job.state === "done" && job.error ? <Notice kind="caution">{job.error}</Notice> : null}
+          {job.state === "done" && view.checkAwaited ? (
+            <p className="text-muted" role="status">
+              Checking the tracks against theory…
+            </p>
+          ) : null}
         </div>
       ) : (
         <p className="text-muted">No tracking job yet.</p>

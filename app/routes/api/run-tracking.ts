@@ -5,6 +5,7 @@ import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { cancelTracking, enqueueTracking, JobError, latestJob, serializeJob } from "~/.server/jobs/tracking-queue";
 import { Track } from "~/.server/db";
 import type { TrackingView } from "~/.server/openapi/responses/tracking";
+import { checkAwaited } from "~/.server/runs/current-check";
 
 /** GET: the latest tracking job's progress and the tracks found. Polled by the run page. */
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -18,6 +19,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     runId: run.id,
     runState: run.state,
     job: serializeJob(job),
+    checkAwaited: await checkAwaited(run, job),
     tracks: tracks.map((t) => ({ id: t.id, number: t.number, points: t.pointCount, detectedShare: t.detectedShare, jitterPx: t.jitterPx })),
   };
   return Response.json(view);

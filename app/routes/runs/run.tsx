@@ -205,7 +205,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
           )}
         </Card>
         <Card title="Tracking">
-          <TrackingPanel runId={run.id} initial={{ job: d.job, tracks: d.tracks }} canChange={canChange} ready={!readyReason} readyReason={readyReason} />
+          <TrackingPanel runId={run.id} initial={{ job: d.job, checkAwaited: d.checkAwaited, tracks: d.tracks }} canChange={canChange} ready={!readyReason} readyReason={readyReason} />
         </Card>
       </div>
 

@@ -22,6 +22,7 @@ export const trackingSchema = z
     runId: z.number().int(),
     runState: z.enum(runStates),
     job: trackingJobSchema.nullable(),
+    checkAwaited: z.boolean().openapi({ description: "The job is done and the theory check that follows it has not been made yet; poll again for the verdict." }),
     tracks: z.array(z.strictObject({ id: z.number().int(), number: z.number().int(), points: z.number().int(), detectedShare: z.number().nullable(), jitterPx: z.number().nullable() })),
   })
   .openapi("Tracking");

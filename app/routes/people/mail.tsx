@@ -5,6 +5,7 @@ import { usingFakeMail } from "~/.server/mail/send";
 import { listOutbox, MAX_ATTEMPTS } from "~/.server/mail/outbox";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
+import { ScrollRegion } from "~/components/ui/scroll-region";
 import { formatDateTime } from "~/lib/format";
 
 export const meta: Route.MetaFunction = () => [{ title: "Mail · Tankside" }];
@@ -44,7 +45,7 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
         {outbox.length === 0 ? (
           <Notice>Nothing queued or sent yet.</Notice>
         ) : (
-          <div className="overflow-x-auto">
+          <ScrollRegion label="Outgoing mail">
             <table className="w-full text-left">
               <thead>
                 <tr className="border-b-2 border-line">
@@ -74,7 +75,7 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
                 ))}
               </tbody>
             </table>
-          </div>
+          </ScrollRegion>
         )}
       </Card>
       {captured ? (

@@ -35,6 +35,14 @@ interface Ev extends CalendarEvent {
   state: BookingState;
 }
 
+/**
+ * A day's heading as plain text. react-big-calendar's own heading is a `columnheader` outside any
+ * `row`, which assistive technology cannot place; the button around it already names the day.
+ */
+function DayHeading({ label }: { label: string }) {
+  return <span>{label}</span>;
+}
+
 /** One item's week of bookings on react-big-calendar, dressed in Tankside's own look (booking-week.css). */
 export function BookingWeek({ bookings, week, itemId }: { bookings: WeekBooking[]; week: string; itemId: number }) {
   const navigate = useNavigate();
@@ -64,6 +72,10 @@ export function BookingWeek({ bookings, week, itemId }: { bookings: WeekBooking[
         onNavigate={(d) => navigate(`?item=${itemId}&week=${format(d, "yyyy-MM-dd")}#week`, { preventScrollReset: true })}
         onSelectEvent={(e) => navigate(`/bookings/${e.id}`)}
         eventPropGetter={(e) => ({ className: `tankside-event tankside-event-${e.state}` })}
+        // Bookings are timed, never all-day: one over midnight stays in the time grid, and the empty
+        // all-day row (a `row` without cells in the library's markup) is not shown (booking-week.css).
+        showMultiDayTimes
+        components={{ week: { header: DayHeading } }}
         scrollToTime={new Date(1970, 0, 1, 8)}
         step={30}
         timeslots={2}

@@ -6,6 +6,7 @@ import { listOutbox, MAX_ATTEMPTS } from "~/.server/mail/outbox";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { useLabTime } from "~/components/lab-time";
+import { ScrollRegion } from "~/components/ui/scroll-region";
 
 export const meta: Route.MetaFunction = () => [{ title: "Mail · Tankside" }];
 
@@ -45,7 +46,7 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
         {outbox.length === 0 ? (
           <Notice>Nothing queued or sent yet.</Notice>
         ) : (
-          <div className="overflow-x-auto">
+          <ScrollRegion label="Outgoing mail">
             <table className="w-full text-left">
               <thead>
                 <tr className="border-b-2 border-line">
@@ -75,7 +76,7 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
                 ))}
               </tbody>
             </table>
-          </div>
+          </ScrollRegion>
         )}
       </Card>
       {captured ? (

@@ -82,12 +82,12 @@ export function parseRunFilters(params: URLSearchParams): ParsedRunFilters {
     const values = params.getAll(key);
     if (values.length > 1) return { ok: false, field: key, message: `Give ${key} once; it was given ${values.length} times.` };
     // An empty known field is "any" (an untouched select); an unknown one is refused even when empty.
-    if (values[0] !== "" || !knownKeys.has(key)) raw[key] = values[0];
+    if (values[0] !== "" || !knownKeys.has(key)) raw[key] = values[0]!;
   }
   const result = runFiltersSchema.safeParse(raw);
   if (result.success) return { ok: true, filters: result.data };
-  const issue = result.error.issues[0];
-  const field = issue.code === "unrecognized_keys" ? issue.keys[0] : typeof issue.path[0] === "string" ? issue.path[0] : null;
+  const issue = result.error.issues[0]!;
+  const field = issue.code === "unrecognized_keys" ? (issue.keys[0] ?? null) : typeof issue.path[0] === "string" ? issue.path[0] : null;
   return { ok: false, field, message: issue.message };
 }
 

@@ -41,11 +41,11 @@ export async function claimTrackingJob(jobId: number, owner: string): Promise<Cl
   return sequelize.transaction(async (transaction) => {
     const job = await TrackingJob.findByPk(jobId, { transaction, lock: transaction.LOCK.UPDATE });
     if (!job || !["queued", "running"].includes(job.state)) return { kind: "finished" } as const;
-    const [{ live }] = await sequelize.query<{ live: boolean }>(
+    const [lease] = await sequelize.query<{ live: boolean }>(
       `SELECT (lease_until IS NOT NULL AND lease_until > now()) AS live FROM tracking_jobs WHERE id = :id`,
       { replacements: { id: jobId }, type: QueryTypes.SELECT, transaction },
     );
-    if (live && job.leaseOwner !== owner) return { kind: "busy", reason: `held by ${job.leaseOwner}` } as const;
+    if (lease?.live && job.leaseOwner !== owner) return { kind: "busy", reason: `held by ${job.leaseOwner}` } as const;
     await Run.findByPk(job.runId, { attributes: ["id"], transaction, lock: transaction.LOCK.UPDATE });
     const other = await TrackingJob.findOne({
       attributes: ["id"],

@@ -16,9 +16,9 @@ function apiRoutes(): Map<string, string> {
   const block = /prefix\("api\/v1",\s*\[([\s\S]*?)\]\)/.exec(source);
   if (!block) throw new Error("no api/v1 prefix in app/routes.ts");
   const routes = new Map<string, string>();
-  for (const m of block[1].matchAll(/route\("([^"]+)",\s*"([^"]+)"/g)) {
+  for (const m of block[1]!.matchAll(/route\("([^"]+)",\s*"([^"]+)"/g)) {
     if (m[1] === "*") continue;
-    routes.set(`/api/v1/${m[1].replace(/:(\w+)/g, "{$1}")}`, m[2]);
+    routes.set(`/api/v1/${m[1]!.replace(/:(\w+)/g, "{$1}")}`, m[2]!);
   }
   return routes;
 }
@@ -52,7 +52,7 @@ describe("the OpenAPI document and the routes hold together", () => {
   });
 
   it("gives GET /api/v1/runs exactly the query parameters the filter schema accepts, with its enums", () => {
-    const params = doc.paths["/api/v1/runs"].get!.parameters as { name: string; schema: { enum?: string[] } }[];
+    const params = doc.paths["/api/v1/runs"]!.get!.parameters as { name: string; schema: { enum?: string[] } }[];
     expect(params.map((p) => p.name).sort()).toEqual([...runFilterKeys].sort());
     expect(params.find((p) => p.name === "sort")?.schema.enum).toEqual([...runSortFields]);
     // Every documented parameter is accepted on its own by the parser the route uses, and a made-up one is not.
@@ -64,8 +64,8 @@ describe("the OpenAPI document and the routes hold together", () => {
   });
 
   it("has request examples that the routes' own zod schemas accept, and bodies generated from them", () => {
-    const post = doc.paths["/api/v1/runs"].post as { requestBody: { content: { "application/json": { example: unknown } } } };
-    const patch = doc.paths["/api/v1/runs/{id}"].patch as { requestBody: { content: { "application/json": { example: unknown } } } };
+    const post = doc.paths["/api/v1/runs"]!.post as { requestBody: { content: { "application/json": { example: unknown } } } };
+    const patch = doc.paths["/api/v1/runs/{id}"]!.patch as { requestBody: { content: { "application/json": { example: unknown } } } };
     expect(post.requestBody.content["application/json"].example).toEqual(runCreateExample);
     expect(runApiCreateSchema.safeParse(runCreateExample).success).toBe(true);
     expect(runApiPatchSchema.safeParse(patch.requestBody.content["application/json"].example).success).toBe(true);

@@ -42,7 +42,7 @@ const sortColumns: Record<RunSortField, string> = {
 
 /** Start of a YYYY-MM-DD day in the lab's (the server's) local time. */
 function localDayStart(day: string, plusDays = 0): Date {
-  const [y, m, d] = day.split("-").map(Number);
+  const [y = Number.NaN, m = Number.NaN, d = Number.NaN] = day.split("-").map(Number);
   return new Date(y, m - 1, d + plusDays, 0, 0, 0, 0);
 }
 

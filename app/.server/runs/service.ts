@@ -35,9 +35,8 @@ export class RunError extends Error {
 }
 
 async function checkEquipment(input: RunInput, transaction?: Transaction) {
-  const [table, tank, camera] = await Promise.all(
-    [input.tableId, input.tankId, input.cameraId].map((id) => Equipment.findByPk(id, { transaction })),
-  );
+  const byId = (id: number) => Equipment.findByPk(id, { transaction });
+  const [table, tank, camera] = await Promise.all([byId(input.tableId), byId(input.tankId), byId(input.cameraId)]);
   const problems: { field: string; message: string }[] = [];
   const expect = (item: Equipment | null, kind: string, field: string, word: string) => {
     if (!item || item.kind !== kind) problems.push({ field, message: `Choose a ${word} from the register.` });

@@ -29,7 +29,7 @@ export async function theoryInputFor(run: Run): Promise<{ input: TheoryCheckInpu
   // Rate, timing and scale calibrations frozen on the run: what each changes, and the words saying so.
   const applied = await calibrationsForCheck(run, setup.scalePxPerM);
   const input: TheoryCheckInput = {
-    points: parseTrackPoints(tracks[0]),
+    points: parseTrackPoints(tracks[0]!),
     setup: {
       centre: { x: setup.centreXPx, y: setup.centreYPx },
       pxPerM: applied.pxPerM,
@@ -44,7 +44,7 @@ export async function theoryInputFor(run: Run): Promise<{ input: TheoryCheckInpu
     flatTable: Boolean(table?.flatTable),
     settings: { tolerance: settings.checkTolerancePct / 100 },
   };
-  return { input, track: tracks[0] };
+  return { input, track: tracks[0]! };
 }
 
 export interface StoredCheck {

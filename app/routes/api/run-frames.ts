@@ -48,7 +48,7 @@ export async function action({ request, params }: Route.ActionArgs) {
       try {
         const result = await receiveFrameFile(run, file, time.timeS);
         if (result.accepted.length === 0 && result.rejected.length > 0) {
-          return Response.json({ error: { code: "no_frames_accepted", message: result.rejected[0].message }, ...result }, { status: 422 });
+          return Response.json({ error: { code: "no_frames_accepted", message: result.rejected[0]!.message }, ...result }, { status: 422 });
         }
         const allDuplicates = result.accepted.length > 0 && result.accepted.every((a) => a.duplicate);
         // New frames make a checked run's tracks and check out of date: track again.

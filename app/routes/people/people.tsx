@@ -44,7 +44,7 @@ export async function action({ request }: Route.ActionArgs) {
     const userId = Number(form.get("userId"));
     if (intent === "role") {
       const parsed = roleChangeSchema.safeParse({ userId, role: form.get("role") });
-      if (!parsed.success) return data({ problem: parsed.error.issues[0].message }, { status: 400 });
+      if (!parsed.success) return data({ problem: parsed.error.issues[0]!.message }, { status: 400 });
       await changeRole(parsed.data.userId, parsed.data.role);
       return { notice: "Role changed." };
     }

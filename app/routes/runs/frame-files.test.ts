@@ -32,6 +32,7 @@ describe("frame files missing from storage", () => {
     const run = await createRun(lab.runInput(), lab.tech);
     for (const i of [1, 2, 3]) await receiveFrameFile(run, new File([new Uint8Array(await png(i))], `frame_${i}.png`), null);
     const [first, second] = await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] });
+    if (!first || !second) throw new Error("three frames were stored just above");
     await store().delete(runKey(run.id, first.storedName));
     await store().delete(runKey(run.id, second.thumbName!));
 

@@ -39,12 +39,12 @@ async function main() {
   for (let chunk = 0; chunk < RUNS; chunk += 1000) {
     const rows = [];
     for (let i = chunk; i < Math.min(RUNS, chunk + 1000); i++) {
-      const state = states[i % states.length];
+      const state = states[i % states.length]!;
       const checked = state === "checked" || state === "signed_off";
       const at = new Date(start + i * 2.7 * 3600_000);
       rows.push({
         state,
-        tableId: tables[i % 2],
+        tableId: tables[i % 2]!,
         tankId: lab.tank.id,
         cameraId: lab.camera.id,
         setRateRpm: 4 + (i % 23),
@@ -57,7 +57,7 @@ async function main() {
         tracer: i % 5 === 0 ? ("dye" as const) : ("float" as const),
         purpose: `${words[i % words.length]} run ${i}`,
         notes: i % 9 === 0 ? `Repeated with ${words[(i + 3) % words.length]}` : null,
-        technicianId: technicians[i % 3],
+        technicianId: technicians[i % 3]!,
         supersedesId: null,
         signedOffById: state === "signed_off" ? lab.manager.id : null,
         signedOffAt: state === "signed_off" ? at : null,
@@ -78,7 +78,7 @@ async function main() {
   const { token } = await createApiToken(lab.technician.id, "bench");
   const session = await getSession(new Request("http://localhost/"));
   session.set("userId", lab.technician.id);
-  const cookie = (await sessionStorage.commitSession(session)).split(";")[0];
+  const cookie = (await sessionStorage.commitSession(session)).split(";")[0]!;
 
   const cases = [
     { name: "table + state, newest first, page 3", query: `table=${lab.tableB.id}&state=checked&page=3` },
@@ -99,7 +99,7 @@ async function main() {
       if (i >= 5) times.push(ms); // the first calls warm SQLite's page cache and the statement paths
     }
     times.sort((a, b) => a - b);
-    const q = (p: number) => times[Math.min(times.length - 1, Math.ceil(p * times.length) - 1)];
+    const q = (p: number) => times[Math.min(times.length - 1, Math.ceil(p * times.length) - 1)] ?? Number.NaN;
     return { p50: q(0.5), p95: q(0.95) };
   };
 

@@ -106,9 +106,9 @@ async function main() {
   const rows: string[] = [];
   let worst = 0;
   for (const c of cases) {
-    const table = await time(pageLoader as Loader, `http://localhost/runs/rows?${c.query}`, { Cookie: cookie });
-    const page = await time(listPageLoader as Loader, `http://localhost/runs?${c.query}`, { Cookie: cookie });
-    const api = await time(apiLoader as Loader, `http://localhost/api/v1/runs?${c.query}`, { Authorization: `Bearer ${token}` });
+    const table = await time(pageLoader, `http://localhost/runs/rows?${c.query}`, { Cookie: cookie });
+    const page = await time(listPageLoader, `http://localhost/runs?${c.query}`, { Cookie: cookie });
+    const api = await time(apiLoader, `http://localhost/api/v1/runs?${c.query}`, { Authorization: `Bearer ${token}` });
     worst = Math.max(worst, table.p95, page.p95, api.p95);
     const f = (x: number) => x.toFixed(1).padStart(6);
     rows.push(`${c.name.padEnd(52)} rows ${f(table.p50)} ${f(table.p95)} | page ${f(page.p50)} ${f(page.p95)} | api ${f(api.p50)} ${f(api.p95)}`);

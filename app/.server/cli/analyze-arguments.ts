@@ -89,7 +89,7 @@ export function parseAnalyzeArguments(argv: string[]): AnalyzeArguments | "help"
   if (values.centre === undefined) throw new UsageError("--centre is required.");
   const [x, y] = numberList("centre", values.centre, 2);
   const edge = values["tank-edge"] === undefined ? null : numberList("tank-edge", values["tank-edge"], 3);
-  if (edge && !(edge[2]! > 0)) throw new UsageError("--tank-edge needs a radius above zero.");
+  if (edge && !(edge[2] > 0)) throw new UsageError("--tank-edge needs a radius above zero.");
   return {
     framesDir: positionals[0]!,
     rpm: positive("rpm", values.rpm, true),

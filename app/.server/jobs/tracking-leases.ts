@@ -53,7 +53,7 @@ export async function claimTrackingJob(jobId: number, owner: string): Promise<Cl
       transaction,
     });
     if (other) return { kind: "busy", reason: `job ${other.id} of the same run is being tracked` } as const;
-    await job.update({ state: "running", leaseOwner: owner, leaseUntil: leaseUntilLiteral() as unknown as Date }, { transaction });
+    await job.update({ state: "running", leaseOwner: owner, leaseUntil: leaseUntilLiteral() }, { transaction });
     await job.reload({ transaction });
     return { kind: "claimed", job } as const;
   });
@@ -61,7 +61,7 @@ export async function claimTrackingJob(jobId: number, owner: string): Promise<Cl
 
 /** Renews the lease; false when the job is no longer this owner's (cancelled, or taken over). */
 export async function renewLease(jobId: number, owner: string): Promise<boolean> {
-  const [n] = await TrackingJob.update({ leaseUntil: leaseUntilLiteral() as unknown as Date }, { where: { id: jobId, state: "running", leaseOwner: owner } });
+  const [n] = await TrackingJob.update({ leaseUntil: leaseUntilLiteral() }, { where: { id: jobId, state: "running", leaseOwner: owner } });
   return n === 1;
 }
 

@@ -62,7 +62,7 @@ export function runsWhere(filters: RunFilters): WhereOptions<Run> {
   if (filters.to) and.push({ createdAt: { [Op.lt]: localDayStart(filters.to, 1) } });
   if (filters.q) {
     const p = sequelize.escape(likePattern(filters.q));
-    and.push(sequelize.literal(`(lower("Run"."purpose") LIKE ${p} ESCAPE '\\' OR lower(coalesce("Run"."notes", '')) LIKE ${p} ESCAPE '\\')`) as unknown as WhereOptions<Run>);
+    and.push(sequelize.literal(`(lower("Run"."purpose") LIKE ${p} ESCAPE '\\' OR lower(coalesce("Run"."notes", '')) LIKE ${p} ESCAPE '\\')`));
   }
   return and.length ? { [Op.and]: and } : {};
 }

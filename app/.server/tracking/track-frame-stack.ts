@@ -227,7 +227,7 @@ async function floatBackground(
       const image = samples.slice(j * length, (j + 1) * length);
       try {
         return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background: plain }, [
-          image.buffer as ArrayBuffer,
+          image.buffer,
         ])) as Detection[];
       } catch (error) {
         throw searchFailed(index, error);

@@ -65,9 +65,9 @@ function residuals(points: readonly TrackPoint[]): { sum: number; count: number 
     for (const axis of ["x", "y"] as const) {
       const rhs: [number, number, number] = [0, 0, 0];
       win.forEach((p, j) => {
-        rhs[0]! += p[axis]!;
-        rhs[1]! += p[axis] * u[j]!;
-        rhs[2]! += p[axis] * u[j]! * u[j]!;
+        rhs[0] += p[axis];
+        rhs[1] += p[axis] * u[j]!;
+        rhs[2] += p[axis] * u[j]! * u[j]!;
       });
       const c = solve3(normal(), rhs);
       if (!c) continue;

@@ -38,7 +38,7 @@ describe("frame files missing from storage", () => {
 
     const call = async (frame: Frame, query = "") => {
       try {
-        return (await frameImageLoader({ request: await signedIn(`/runs/${run.id}/frames/${frame.id}/image${query}`, lab.tech.id), params: { id: String(run.id), frameId: String(frame.id) }, context: {} } as never)) as Response;
+        return (await frameImageLoader({ request: await signedIn(`/runs/${run.id}/frames/${frame.id}/image${query}`, lab.tech.id), params: { id: String(run.id), frameId: String(frame.id) }, context: {} } as never));
       } catch (thrown) {
         if (thrown instanceof Response) return thrown;
         throw thrown;

@@ -79,7 +79,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
                     key={f.key}
                     label={lim.label}
                     name={f.name}
-                    defaultValue={f.initialValue as string | undefined}
+                    defaultValue={f.initialValue}
                     error={f.errors}
                     unit={lim.unit}
                     inputMode="decimal"

@@ -118,7 +118,7 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
           {kind === "camera" ? text("nominalFrameRateFps", "Nominal frame rate", { unit: "frames/s", inputMode: "decimal" }) : null}
           {kind === "camera" ? text("scaleTolerancePct", "Scale tolerance", { unit: "%", inputMode: "decimal", hint: "A run whose view setup scale differs from the scale calibration in force by more than this share is flagged (default 1 %)." }) : null}
           {kind === "rate_meter" ? (
-            <SelectField label="Type" name={fields.meterType.name} defaultValue={String(fields.meterType.initialValue ?? "tachometer")}>
+            <SelectField label="Type" name={fields.meterType.name} defaultValue={typeof fields.meterType.initialValue === "string" ? fields.meterType.initialValue : "tachometer"}>
               {meterTypes.map((m) => (
                 <option key={m} value={m}>{m}</option>
               ))}

@@ -11,6 +11,7 @@ import { Button } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { SelectField, TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
+import { formText } from "~/lib/form-text";
 
 export const meta: Route.MetaFunction = () => [{ title: "People · Tankside" }];
 
@@ -28,7 +29,7 @@ type Outcome = { notice?: string; problem?: string };
 export async function action({ request }: Route.ActionArgs) {
   const me = await requireRole(request, "lab_manager");
   const form = await readForm(request);
-  const intent = String(form.get("intent") ?? "");
+  const intent = formText(form, "intent");
   try {
     if (intent === "invite") {
       const submission = parseWithZod(form, { schema: inviteSchema });

@@ -48,8 +48,8 @@ export function BookingWeek({ bookings, week, itemId }: { bookings: WeekBooking[
         view="week"
         views={["week"]}
         onView={() => undefined}
-        onNavigate={(d) => navigate(`?item=${itemId}&week=${format(d, "yyyy-MM-dd")}#week`, { preventScrollReset: true })}
-        onSelectEvent={(e) => navigate(`/bookings/${e.id}`)}
+        onNavigate={(d) => void navigate(`?item=${itemId}&week=${format(d, "yyyy-MM-dd")}#week`, { preventScrollReset: true })}
+        onSelectEvent={(e) => void navigate(`/bookings/${e.id}`)}
         eventPropGetter={(e) => ({ className: `tankside-event tankside-event-${e.state}` })}
         scrollToTime={new Date(1970, 0, 1, 8)}
         step={30}

@@ -176,7 +176,7 @@ function isZip(head: Buffer) {
 /** Opened from the staged file: yauzl reads the central directory and each entry from disk. */
 function openZip(file: string): Promise<yauzl.ZipFile> {
   return new Promise((resolve, reject) =>
-    yauzl.open(file, { lazyEntries: true, autoClose: false, validateEntrySizes: true, strictFileNames: false }, (err, zip) => (err || !zip ? reject(err) : resolve(zip))),
+    yauzl.open(file, { lazyEntries: true, autoClose: false, validateEntrySizes: true, strictFileNames: false }, (err, zip) => (err || !zip ? reject(err ?? new Error("The ZIP archive could not be opened.")) : resolve(zip))),
   );
 }
 

@@ -42,7 +42,7 @@ export function TrackingPanel({ runId, initial, canChange, ready, readyReason }:
   useEffect(() => {
     if (!active) return;
     const timer = setInterval(() => {
-      if (poll.state === "idle") poll.load(`/api/v1/runs/${runId}/tracking`);
+      if (poll.state === "idle") void poll.load(`/api/v1/runs/${runId}/tracking`);
     }, 1000);
     return () => clearInterval(timer);
   }, [active, runId, poll]);
@@ -50,7 +50,7 @@ export function TrackingPanel({ runId, initial, canChange, ready, readyReason }:
   // When a job ends, reload the page's data so the tracks, the overlay and the theory check appear.
   const finishedKey = job && !active ? `${job.id}-${job.state}` : null;
   useEffect(() => {
-    if (finishedKey && poll.data) revalidator.revalidate();
+    if (finishedKey && poll.data) void revalidator.revalidate();
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [finishedKey]);
 
@@ -64,7 +64,7 @@ export function TrackingPanel({ runId, initial, canChange, ready, readyReason }:
         const body = (await res.json().catch(() => null)) as ErrorView | null;
         setControlError(body?.error.message ?? `The server answered ${res.status}.`);
       }
-      poll.load(`/api/v1/runs/${runId}/tracking`);
+      void poll.load(`/api/v1/runs/${runId}/tracking`);
     } catch {
       setControlError("Tankside could not be reached; check the connection and try again.");
     } finally {

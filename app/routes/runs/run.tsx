@@ -4,7 +4,7 @@ import { requireUser } from "~/.server/auth/permissions";
 import { loadRun } from "~/.server/runs/access";
 import { runPageData } from "~/.server/runs/detail";
 import { getLabSettings } from "~/.server/settings";
-import { cameraModeLabels, directionLabels, runLabel, tracerLabels, type RunState } from "~/lib/runs";
+import { cameraModeLabels, directionLabels, runLabel, tracerLabels } from "~/lib/runs";
 import { formatDateTime, formatNumber } from "~/lib/format";
 import { ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
@@ -61,7 +61,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
       <PageHeader
         title={
           <span className="flex flex-wrap items-center gap-3">
-            {runLabel(run.id)} <RunStateTag state={run.state as RunState} /> <VerdictTag verdict={run.verdict} outOfDate={Boolean(d.checkOutOfDate)} />
+            {runLabel(run.id)} <RunStateTag state={run.state} /> <VerdictTag verdict={run.verdict} outOfDate={Boolean(d.checkOutOfDate)} />
           </span>
         }
         subtitle={`${run.purpose} · logged by ${d.technician?.name ?? "?"} on ${formatDateTime(run.createdAt)}`}

@@ -206,7 +206,7 @@ export const trackingPaths: Paths = {
 
 function packageVersion() {
   try {
-    return JSON.parse(fs.readFileSync(path.join(env.projectRoot, "package.json"), "utf8")).version as string;
+    return (JSON.parse(fs.readFileSync(path.join(env.projectRoot, "package.json"), "utf8")) as { version: string }).version;
   } catch {
     return "0.0.0";
   }

@@ -14,7 +14,7 @@ export interface CalibrationSnapshot {
 /** The calibrations stored with a run when it was logged. */
 export function calibrationSnapshot(run: Pick<Run, "calibrationsInForce">): CalibrationSnapshot {
   try {
-    const parsed = run.calibrationsInForce ? JSON.parse(run.calibrationsInForce) : null;
+    const parsed = run.calibrationsInForce ? (JSON.parse(run.calibrationsInForce) as Partial<CalibrationSnapshot> | CalibrationSnapshot["inForce"]) : null;
     if (Array.isArray(parsed)) return { at: null, inForce: parsed, pastDue: [] };
     if (parsed && typeof parsed === "object") return { at: parsed.at ?? null, inForce: parsed.inForce ?? [], pastDue: parsed.pastDue ?? [] };
   } catch {
@@ -98,7 +98,7 @@ async function freezeCalibrations(equipmentIds: number[], at: Date, transaction:
 function snapshotSummary(text: string | null) {
   const s = calibrationSnapshot({ calibrationsInForce: text });
   const list = (xs: { id: number | string; kind: string }[]) => xs.map((c) => `${c.kind} #${c.id}`).join(", ") || "none";
-  return `in force: ${list(s.inForce)}; past due: ${list(s.pastDue as never)}`;
+  return `in force: ${list(s.inForce)}; past due: ${list(s.pastDue)}`;
 }
 
 /** A minute of clock skew between the person's clock and the server's is forgiven. */
@@ -162,7 +162,7 @@ export function assertCanChange(run: Run, user: CurrentUser) {
   }
 }
 
-const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? v.toISOString() : String(v));
+const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? v.toISOString() : typeof v === "object" ? JSON.stringify(v) : String(v as string | number | boolean | bigint));
 
 export async function updateRun(runId: number, input: RunInput, user: CurrentUser) {
   const run = await Run.findByPk(runId);

@@ -98,6 +98,6 @@ export async function checkRun(runId: number, userId: number | null) {
 
 /** A stored check row as the run page reads it; which row is current is currentCheck's to say. */
 export function storedCheck(row: TheoryCheck): StoredCheck {
-  const parsed = JSON.parse(row.result);
+  const parsed = JSON.parse(row.result) as Pick<StoredCheck, "result" | "input">;
   return { id: row.id, result: parsed.result, input: parsed.input, codeVersion: row.codeVersion, createdAt: row.createdAt.toISOString() };
 }

@@ -45,6 +45,7 @@ export const runFiltersSchema = z
       from: day("from"),
       to: day("to"),
       // Control characters match nothing a person typed; a NUL above all: Sequelize writes WHERE values into the SQL text, which SQLite ends at a NUL.
+      // eslint-disable-next-line no-control-regex -- matching control characters is the point of this pattern
       q: z.string().trim().max(100, "Search text (q) is limited to 100 characters.").regex(/^[^\u0000-\u001f\u007f]*$/, "Search text (q) cannot contain control characters.").optional(),
       sort: z.enum(runSortFields, { error: `sort must be one of ${runSortFields.join(", ")}.` }).default("createdAt"),
       dir: z.enum(["asc", "desc"], { error: "dir must be asc or desc." }).default("desc"),

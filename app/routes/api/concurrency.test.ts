@@ -168,7 +168,7 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
     const images = await Promise.all(Array.from({ length: 10 }, (_, i) => png(5000 + i)));
     const body = runInput(lab, { purpose: "Logged under load" });
     const kinds = [
-      (k: number) => call(createRunAction, json("POST", "/api/v1/runs", tokens.tech, body)),
+      () => call(createRunAction, json("POST", "/api/v1/runs", tokens.tech, body)),
       (k: number) => call(runAction, json("PATCH", `/api/v1/runs/${runs[k % 5]!.id}`, tokens.tech, { waterTemperatureC: 18 + k / 10, notes: `edit ${k}` }), { id: String(runs[k % 5]!.id) }),
       (k: number) => call(bookingsAction, json("POST", "/api/v1/bookings", tokens.instructor, { equipmentId: lab.tableA.id, start: hoursFromNow(200 + 3 * k).toISOString(), end: hoursFromNow(201 + 3 * k).toISOString(), purpose: `Asked under load ${k}` })),
       (k: number) => call(decisionAction, json("POST", `/api/v1/bookings/${requested[k]!.id}/approve`, tokens.manager, {}), { id: String(requested[k]!.id) }),

@@ -43,8 +43,19 @@ export default defineConfig([
           ],
         },
       ],
+      // An async function with no await is the normal way to implement a promise-returning interface
+      // (storage backends, test stubs); no-floating-promises and no-misused-promises catch the real bugs.
+      "@typescript-eslint/require-await": "off",
       "@typescript-eslint/no-unused-vars": ["error", { argsIgnorePattern: "^_", varsIgnorePattern: "^_", destructuredArrayIgnorePattern: "^_" }],
     },
+  },
+  {
+    // Loaders and actions answer by throwing notFound() and the like, which return a Response (API) or
+    // data() (pages). The allow list above matches each member of a union against one entry, so a
+    // helper that returns either cannot be allowed; here the rule is off rather than disabled at each call.
+    files: ["app/routes/**", "app/.server/**"],
+    ignores: ["**/*.test.ts"],
+    rules: { "@typescript-eslint/only-throw-error": "off" },
   },
   {
     // Tests read response bodies and CLI output as untyped JSON (`await res.json()` is `any`) and
@@ -57,6 +68,8 @@ export default defineConfig([
       "@typescript-eslint/no-unsafe-call": "off",
       "@typescript-eslint/no-unsafe-argument": "off",
       "@typescript-eslint/no-unsafe-return": "off",
+      // A crash in the attack tests is whatever was thrown, printed as is in the failure message.
+      "@typescript-eslint/no-base-to-string": "off",
     },
   },
   {

@@ -1,6 +1,6 @@
 #!/usr/bin/env node
-// The whole test suite, on both databases: typecheck, one production build, then Vitest and the
-// browser tests on SQLite, then the same on a throw-away PostgreSQL cluster (scripts/pg-cluster.mjs),
+// The whole test suite, on both databases: typecheck, lint (ESLint), the format check (Prettier), one
+// production build, then Vitest and the browser tests on SQLite, then the same on a throw-away PostgreSQL cluster (scripts/pg-cluster.mjs),
 // then two web servers and two workers sharing that database and a fake S3 bucket (scripts/two-process.ts).
 //   node scripts/test-all.mjs                 both databases (what `npm test` and .ci/run do)
 //   node scripts/test-all.mjs --only sqlite   SQLite only
@@ -50,6 +50,8 @@ function report() {
 
 try {
   step("typecheck", "npm", ["run", "--silent", "typecheck"]);
+  step("lint", "npx", ["eslint", "."]);
+  step("format check", "npx", ["prettier", "--check", "."]);
   step("build", "npx", ["react-router", "build"]);
 
   if (only !== "pg") {

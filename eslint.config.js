@@ -10,17 +10,7 @@ import globals from "globals";
 import tseslint from "typescript-eslint";
 
 export default defineConfig([
-  globalIgnores([
-    "build/",
-    "build-*/",
-    "node_modules/",
-    "uploads/",
-    ".react-router/",
-    "test-results/",
-    "playwright-report/",
-    "tests/.tmp/",
-    "**/*.d.mts",
-  ]),
+  globalIgnores(["build/", "build-*/", "node_modules/", "uploads/", ".react-router/", "test-results/", "playwright-report/", "tests/.tmp/", "**/*.d.mts"]),
   {
     linterOptions: { reportUnusedDisableDirectives: "error" },
     languageOptions: {

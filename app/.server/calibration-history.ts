@@ -27,7 +27,7 @@ function dayOf(d: Date) {
   return `${d.getFullYear()}-${String(d.getMonth() + 1).padStart(2, "0")}-${String(d.getDate()).padStart(2, "0")}`;
 }
 /** Calibration dates are days in the lab's time zone; everything else is shown as stored. */
-const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? dayOf(v) : typeof v === "object" ? JSON.stringify(v) : String(v as string | number | boolean | bigint));
+const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? dayOf(v) : typeof v === "object" ? JSON.stringify(v) : (v as string | number | boolean | bigint).toString());
 
 /** One history line, written inside the caller's transaction so it stands or falls with the change. */
 export function noteCalibrationChange(t: Transaction, calibrationId: number, userId: number, field: string, oldValue: unknown, newValue: unknown) {

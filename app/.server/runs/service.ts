@@ -162,7 +162,7 @@ export function assertCanChange(run: Run, user: CurrentUser) {
   }
 }
 
-const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? v.toISOString() : typeof v === "object" ? JSON.stringify(v) : String(v as string | number | boolean | bigint));
+const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? v.toISOString() : typeof v === "object" ? JSON.stringify(v) : (v as string | number | boolean | bigint).toString());
 
 export async function updateRun(runId: number, input: RunInput, user: CurrentUser) {
   const run = await Run.findByPk(runId);

@@ -47,8 +47,8 @@ async function seed() {
 function startServer(): Promise<ChildProcess> {
   return new Promise((resolve, reject) => {
     const server = spawn("node", ["server.mjs"], { cwd: root, env, stdio: ["ignore", "pipe", "inherit"] });
-    server.stdout!.setEncoding("utf8");
-    server.stdout!.on("data", (text: string) => {
+    server.stdout.setEncoding("utf8");
+    server.stdout.on("data", (text: string) => {
       if (text.includes("serving on")) resolve(server);
     });
     server.on("exit", (code) => reject(new Error(`the server stopped (${code}) before it listened`)));

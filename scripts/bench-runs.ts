@@ -40,12 +40,12 @@ async function main() {
   for (let chunk = 0; chunk < RUNS; chunk += 1000) {
     const rows = [];
     for (let i = chunk; i < Math.min(RUNS, chunk + 1000); i++) {
-      const state = states[i % states.length];
+      const state = states[i % states.length]!;
       const checked = state === "checked" || state === "signed_off";
       const at = new Date(start + i * 2.7 * 3600_000);
       rows.push({
         state,
-        tableId: tables[i % 2],
+        tableId: tables[i % 2]!,
         tankId: lab.tank.id,
         cameraId: lab.camera.id,
         setRateRpm: 4 + (i % 23),
@@ -58,7 +58,7 @@ async function main() {
         tracer: i % 5 === 0 ? ("dye" as const) : ("float" as const),
         purpose: `${words[i % words.length]} run ${i}`,
         notes: i % 9 === 0 ? `Repeated with ${words[(i + 3) % words.length]}` : null,
-        technicianId: technicians[i % 3],
+        technicianId: technicians[i % 3]!,
         supersedesId: null,
         signedOffById: state === "signed_off" ? lab.manager.id : null,
         signedOffAt: state === "signed_off" ? at : null,
@@ -79,7 +79,7 @@ async function main() {
   const { token } = await createApiToken(lab.technician.id, "bench");
   const session = await getSession(new Request("http://localhost/"));
   session.set("userId", lab.technician.id);
-  const cookie = (await sessionStorage.commitSession(session)).split(";")[0];
+  const cookie = (await sessionStorage.commitSession(session)).split(";")[0]!;
 
   const cases = [
     { name: "table + state, newest first, page 3", query: `table=${lab.tableB.id}&state=checked&page=3` },
@@ -105,9 +105,9 @@ async function main() {
   const rows: string[] = [];
   let worst = 0;
   for (const c of cases) {
-    const table = await time(pageLoader as Loader, `http://localhost/runs/rows?${c.query}`, { Cookie: cookie });
-    const page = await time(listPageLoader as Loader, `http://localhost/runs?${c.query}`, { Cookie: cookie });
-    const api = await time(apiLoader as Loader, `http://localhost/api/v1/runs?${c.query}`, { Authorization: `Bearer ${token}` });
+    const table = await time(pageLoader, `http://localhost/runs/rows?${c.query}`, { Cookie: cookie });
+    const page = await time(listPageLoader, `http://localhost/runs?${c.query}`, { Cookie: cookie });
+    const api = await time(apiLoader, `http://localhost/api/v1/runs?${c.query}`, { Authorization: `Bearer ${token}` });
     worst = Math.max(worst, table.p95, page.p95, api.p95);
     const f = (x: number) => x.toFixed(1).padStart(6);
     rows.push(`${c.name.padEnd(52)} rows ${f(table.p50)} ${f(table.p95)} | page ${f(page.p50)} ${f(page.p95)} | api ${f(api.p50)} ${f(api.p95)}`);

@@ -107,7 +107,7 @@ async function decodeOnly(files: string[]): Promise<number> {
     Array.from({ length: window }, async () => {
       while (next < files.length) {
         const i = next++;
-        await decodeFrame(files[i], i, plan);
+        await decodeFrame(files[i]!, i, plan);
       }
     }),
   );
@@ -148,7 +148,7 @@ async function main(): Promise<void> {
   const longest = result.tracks.reduce((a: Track, b: Track) => (b.points.length > a.points.length ? b : a));
   log(
     `tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${os.availableParallelism()} workers, block ${result.search.shrink} px), ` +
-      `${cpuMsPerFrame.toFixed(1)} ms CPU a frame, load average ${os.loadavg()[0].toFixed(1)}, ` +
+      `${cpuMsPerFrame.toFixed(1)} ms CPU a frame, load average ${os.loadavg()[0]!.toFixed(1)}, ` +
       `${result.tracks.length} track(s), longest ${longest.points.length} points, ` +
       `frames detected ${(result.quality.framesDetectedShare * 100).toFixed(1)} %, jitter ${result.quality.jitterPx?.toFixed(3)} px`,
   );

@@ -85,6 +85,11 @@ function report() {
 
 try {
   step("typecheck", "npm", ["run", "--silent", "typecheck"]);
+  // The typecheck made the route types that ESLint's type-aware rules read.
+  await together([
+    { name: "lint", tag: "lint", cmd: "npx", args: ["eslint", "."] },
+    { name: "format check", tag: "format", cmd: "npx", args: ["prettier", "--check", "."] },
+  ]);
   step("build", "npx", ["react-router", "build"]);
 
   if (only !== "pg") {

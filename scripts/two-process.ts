@@ -149,7 +149,7 @@ interface RunOutcome {
  * alternate between them), and its progress is read from the server that did not start it.
  */
 async function trackRuns(bases: string[], lab: Lab) {
-  const pick = (i: number) => bases[i % bases.length];
+  const pick = (i: number) => bases[i % bases.length]!;
   const tUpload = Date.now();
   const runIds: number[] = [];
   for (let i = 0; i < RUNS; i++) {
@@ -166,7 +166,7 @@ async function trackRuns(bases: string[], lab: Lab) {
   await Promise.all(
     Array.from({ length: 4 }, async () => {
       while (next < uploads.length) {
-        const { runId, f, k } = uploads[next++];
+        const { runId, f, k } = uploads[next++]!; // next < uploads.length was checked just above, with no await between
         const form = new FormData();
         form.append("file", new Blob([new Uint8Array(f.jpeg)], { type: "image/jpeg" }), f.name);
         const res = await api(pick(k), lab.techToken, "POST", `/api/v1/runs/${runId}/frames`, form);
@@ -176,7 +176,8 @@ async function trackRuns(bases: string[], lab: Lab) {
   );
   const uploadMs = Date.now() - tUpload;
   // The view setup is a page form: sign in on one server; the session (in the database) holds on the other too.
-  const signIn = await fetch(`${bases[0]}/sign-in`, { method: "POST", redirect: "manual", headers: { Origin: bases[0], "Content-Type": "application/x-www-form-urlencoded" }, body: new URLSearchParams({ email: lab.email, password: lab.password }) });
+  const home = pick(0);
+  const signIn = await fetch(`${home}/sign-in`, { method: "POST", redirect: "manual", headers: { Origin: home, "Content-Type": "application/x-www-form-urlencoded" }, body: new URLSearchParams({ email: lab.email, password: lab.password }) });
   const cookie = (signIn.headers.get("set-cookie") ?? "").split(";")[0];
   if (signIn.status !== 302 || !cookie) throw new Error(`sign-in: HTTP ${signIn.status} ${(await signIn.text()).slice(0, 300)}`);
   for (const [i, runId] of runIds.entries()) {
@@ -279,7 +280,7 @@ try {
   const { rows: detections } = await dbJobs.query<{ job_id: number; dupes: string }>("SELECT job_id, count(*) - count(DISTINCT (frame_index, x_px, y_px)) AS dupes FROM detections GROUP BY job_id");
   await dbJobs.end();
 
-  console.log(`PostgreSQL: ${RUNS} runs × ${FRAMES} frames uploaded in ${seconds(pgOutcome.uploadMs)}, tracked in ${seconds(pgOutcome.trackMs)}; worker 1 took ${workerJobs[0].length} job(s), worker 2 took ${workerJobs[1].length}`);
+  console.log(`PostgreSQL: ${RUNS} runs × ${FRAMES} frames uploaded in ${seconds(pgOutcome.uploadMs)}, tracked in ${seconds(pgOutcome.trackMs)}; worker 1 took ${workerJobs[0]!.length} job(s), worker 2 took ${workerJobs[1]!.length}`);
   for (const o of pgOutcome.outcomes) console.log(`  run ${o.runId}: job ${o.jobId}, tracks ${o.tracks.map((t) => `#${t.number} ${t.points} points`).join(", ")}, verdict ${o.verdict}, progress seen from the other server: ${o.progressSeen.length ? o.progressSeen.join(" → ") : "(finished between polls)"}`);
   const taken = workerJobs.flat().sort((a, b) => a - b);
   check(JSON.stringify(taken) === JSON.stringify([...pgOutcome.jobIds].sort((a, b) => a - b)), `every job was taken exactly once across the two workers (${taken.length} takes for ${pgOutcome.jobIds.length} jobs)`);
@@ -288,7 +289,7 @@ try {
   check(positions.length === RUNS && positions.every((p) => Number(p.n) === FRAMES && Number(p.distinct_positions) === FRAMES && p.top === FRAMES - 1), "frames uploaded through both servers at once are numbered 0…N−1 in every run, none twice");
   check(detections.every((d) => Number(d.dupes) === 0), "no frame's detection stored twice");
   check(pgOutcome.outcomes.some((o) => o.progressSeen.some((n) => n > 0 && n < FRAMES)), "progress written by a worker was read through the other web server mid-job");
-  check(pgOutcome.outcomes.every((o) => sameTracks(o, pgOutcome.outcomes[0])), "all ten runs have the same tracks");
+  check(pgOutcome.outcomes.every((o) => sameTracks(o, pgOutcome.outcomes[0]!)), "all ten runs have the same tracks");
   const objects = await countObjects(fakeS3, bucket, "runs/");
   const onDisk = fs.existsSync(path.join(tmp, "pg-uploads", "runs")) ? fs.readdirSync(path.join(tmp, "pg-uploads", "runs")).length : 0;
   console.log(`PostgreSQL: ${objects} objects under runs/ in the bucket, ${onDisk} run folders on the local disk`);
@@ -321,9 +322,9 @@ try {
   });
   console.log(`SQLite: ${RUNS} runs × ${FRAMES} frames uploaded in ${seconds(outcome.uploadMs)}, tracked in ${seconds(outcome.trackMs)} by the web server's in-process queue`);
   check(rows.length === RUNS && rows.every((r) => r.state === "done" && r.attempts === 1), `SQLite: one job per run, each done at the first attempt`);
-  check(outcome.outcomes.every((o) => sameTracks(o, outcome.outcomes[0])), "SQLite: all ten runs have the same tracks");
-  check(sameTracks(outcome.outcomes[0], pgOutcome!.outcomes[0]), "the tracks from the two-process PostgreSQL set-up equal the single-process SQLite ones");
-  check(outcome.outcomes[0].verdict === pgOutcome!.outcomes[0].verdict, `the same verdict on both (${outcome.outcomes[0].verdict})`);
+  check(outcome.outcomes.every((o) => sameTracks(o, outcome.outcomes[0]!)), "SQLite: all ten runs have the same tracks");
+  check(sameTracks(outcome.outcomes[0]!, pgOutcome!.outcomes[0]!), "the tracks from the two-process PostgreSQL set-up equal the single-process SQLite ones");
+  check(outcome.outcomes[0]!.verdict === pgOutcome!.outcomes[0]!.verdict, `the same verdict on both (${outcome.outcomes[0]!.verdict})`);
 } finally {
   await Promise.all(procs.map((p) => p.stop()));
 }

@@ -26,7 +26,8 @@ export const calibrationFieldLabels: Record<string, string> = {
 };
 
 /** Calibration dates are days in the lab's time zone; everything else is shown as stored. */
-const show = (v: unknown, zone: string) => (v === null || v === undefined ? null : v instanceof Date ? zonedDay(v, zone) : String(v));
+const show = (v: unknown, zone: string) =>
+  v === null || v === undefined ? null : v instanceof Date ? zonedDay(v, zone) : typeof v === "object" ? JSON.stringify(v) : (v as string | number | boolean | bigint).toString();
 
 /** One history line, written inside the caller's transaction so it stands or falls with the change. */
 export async function noteCalibrationChange(t: Transaction, calibrationId: number, userId: number, field: string, oldValue: unknown, newValue: unknown) {

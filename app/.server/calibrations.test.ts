@@ -159,7 +159,7 @@ describe("in force at a moment (what a run freezes at its creation)", () => {
   });
 
   it("rateCalibrationInForce gives the line, and trueRateFromCalibration the corrected rate", async () => {
-    const other = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Second table" } as never);
+    const other = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Second table" });
     expect(await rateCalibrationInForce(other.id, new Date())).toBeNull();
     const cal = await createCalibration(rateInput({ equipmentId: other.id, readings: [5, 10, 15, 20].map((s, i) => ({ setRpm: s, measuredRpm: 1.004 * s - 0.02 + [0.003, -0.004, 0.002, -0.001][i]! })) }), tech);
     await signOffCalibration(cal.id, managerUser());
@@ -210,7 +210,7 @@ describe("due list and reminders", () => {
   });
 
   it("two reminder passes running at once enqueue each record's reminder exactly once", async () => {
-    const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Reminder table twice" } as never);
+    const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Reminder table twice" });
     const c = await createCalibration(rateInput({ equipmentId: t.id, performedOn: daysAgo(178), dueOn: toDayString(new Date(Date.now() + 3 * 86_400_000)) }), tech);
     await signOffCalibration(c.id, managerUser());
     const [x, y] = await Promise.all([runCalibrationReminders(), runCalibrationReminders()]);
@@ -219,7 +219,7 @@ describe("due list and reminders", () => {
   });
 
   it("queues nothing while there is no lab manager to tell, and queues it on the next pass once there is", async () => {
-    const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Reminder table retry" } as never);
+    const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Reminder table retry" });
     const c = await createCalibration(rateInput({ equipmentId: t.id, performedOn: daysAgo(175), dueOn: toDayString(new Date(Date.now() + 2 * 86_400_000)) }), tech);
     await signOffCalibration(c.id, managerUser());
     await User.update({ active: false }, { where: { role: "lab_manager" } });

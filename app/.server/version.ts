@@ -7,7 +7,7 @@ import { env } from "./env";
 function readVersion(): string {
   let version = "0.0.0";
   try {
-    version = JSON.parse(fs.readFileSync(path.join(env.projectRoot, "package.json"), "utf8")).version;
+    version = (JSON.parse(fs.readFileSync(path.join(env.projectRoot, "package.json"), "utf8")) as { version: string }).version;
   } catch {
     // A copy without package.json still runs; the version then says so.
   }

@@ -69,8 +69,8 @@ export function BookingWeek({ bookings, week, itemId }: { bookings: WeekBooking[
         view="week"
         views={["week"]}
         onView={() => undefined}
-        onNavigate={(d) => navigate(`?item=${itemId}&week=${format(d, "yyyy-MM-dd")}#week`, { preventScrollReset: true })}
-        onSelectEvent={(e) => navigate(`/bookings/${e.id}`)}
+        onNavigate={(d) => void navigate(`?item=${itemId}&week=${format(d, "yyyy-MM-dd")}#week`, { preventScrollReset: true })}
+        onSelectEvent={(e) => void navigate(`/bookings/${e.id}`)}
         eventPropGetter={(e) => ({ className: `tankside-event tankside-event-${e.state}` })}
         // Bookings are timed, never all-day: one over midnight stays in the time grid, and the empty
         // all-day row (a `row` without cells in the library's markup) is not shown (booking-week.css).

@@ -26,7 +26,8 @@ export function CalibrationUploader({ calibrationId }: { calibrationId: number }
     const onError = (file: { name?: string } | undefined, error: { message?: string }, response?: { body?: UploadBody }) => {
       setProblems((p) => [...p, `${file?.name ?? "A file"}: ${response?.body?.error?.message ?? error?.message ?? "refused"}`]);
     };
-    const onComplete = () => revalidator.revalidate();
+    // The revalidation reports its own failures through the route; nothing here waits for it.
+    const onComplete = () => void revalidator.revalidate();
     uppy.on("upload-error", onError);
     uppy.on("complete", onComplete);
     return () => {

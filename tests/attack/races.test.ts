@@ -180,7 +180,7 @@ describe("edits racing a sign-off: nothing changes once signed (5 tries each)", 
     const tech = (await createApiToken(lab.technician.id, "races")).token;
     const manager = (await createApiToken(lab.manager.id, "races")).token;
     for (let attempt = 0; attempt < 5; attempt++) {
-      const cal = await Calibration.create({ ...lab.calibration.get({ plain: true }), id: undefined, notes: "as recorded", signedOffById: null, signedOffAt: null } as never);
+      const cal = await Calibration.create({ ...lab.calibration.get({ plain: true }), id: undefined, notes: "as recorded", signedOffById: null, signedOffAt: null });
       const edit = (i: number) => ({ kind: "scale", equipmentId: lab.camera.id, performedOn: "2026-11-20", knownLengthMm: 300, knownLengthUncertaintyMm: 0.5, lengthPx: 600, lengthUncertaintyPx: 1, notes: `edit ${i}` });
       const outcomes = await Promise.all([
         ...Array.from({ length: 10 }, (_, i) => api(calibrationAction, tech, "PUT", `/api/v1/calibrations/${cal.id}`, cal.id, edit(i))),

@@ -105,7 +105,7 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
       for (let i = worker; i < images.length && !killed; i += 3) {
         const name = `frame_${String(i + 1).padStart(3, "0")}.png`;
         try {
-          const res = await request.post(`${base}/api/v1/runs/${lab.uploadRunId}/frames`, { headers: tech, multipart: { file: { name, mimeType: "image/png", buffer: images[i] } } });
+          const res = await request.post(`${base}/api/v1/runs/${lab.uploadRunId}/frames`, { headers: tech, multipart: { file: { name, mimeType: "image/png", buffer: images[i]! } } });
           if (res.status() === 201) acknowledged.frames.push({ id: (await res.json()).accepted[0].frameId, name });
           else if (!killed) refusedBeforeKill.push(`${name}: ${res.status()}`);
         } catch {
@@ -115,7 +115,7 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
     };
     const approver = async (worker: number) => {
       for (let i = worker; i < lab.bookingIds.length && !killed; i += 2) {
-        const id = lab.bookingIds[i];
+        const id = lab.bookingIds[i]!;
         try {
           const res = await request.post(`${base}/api/v1/bookings/${id}/approve`, { headers: manager, data: {} });
           if (res.status() === 200) acknowledged.approvals.push(id);
@@ -153,7 +153,7 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
     // than ORPHAN_MIN_AGE_MS (they may belong to an upload still committing), so everything the
     // killed server left is dated back past that, as if the restart came later.
     const planted = path.join(uploads, "runs", String(lab.uploadRunId), "left-by-a-crash.png");
-    fs.writeFileSync(planted, images[0]);
+    fs.writeFileSync(planted, images[0]!);
     const past = new Date(Date.now() - 11 * 60_000);
     for (const f of runFiles(uploads)) fs.utimesSync(path.join(uploads, "runs", f), past, past);
 

@@ -46,7 +46,7 @@ for (const email of [people.tech, people.instructor, people.manager]) {
     // Filtering fetched the page; the document never reloaded.
     expect(await page.evaluate(() => (window as unknown as { sameDocument?: boolean }).sameDocument)).toBe(true);
 
-    const run = created[1];
+    const run = created[1]!;
     await row.getByRole("link", { name: run.label }).click();
     await expect(page).toHaveURL(new RegExp(`/runs/${run.id}$`));
 
@@ -132,7 +132,7 @@ test("a wrong or revoked token gets 401, and a tracks export of a run without tr
   expect((await before.json()).pageSize).toBe(10);
 
   // An edit through the token works while the run is open; then the token is revoked.
-  const run = created[0];
+  const run = created[0]!;
   const edit = await anon.patch(`/api/v1/runs/${run.id}`, { headers: auth, data: { notes: "Checked the float before release." } });
   expect(edit.status()).toBe(200);
   await page.getByRole("listitem").filter({ hasText: `${tag} script` }).getByRole("button", { name: "Revoke" }).click();
@@ -153,7 +153,7 @@ test("a lab manager signs a checked run off in the browser; it is then read-only
   const manager = await apiAs(baseURL!, people.manager);
   const checked = (await (await manager.get("/api/v1/runs?state=checked&sort=createdAt&dir=asc")).json()) as { items: ListedRun[] };
   test.skip(checked.items.length === 0, "the demo lab has no checked run to sign off");
-  const run = checked.items[0];
+  const run = checked.items[0]!;
 
   await signIn(page, people.manager);
   // The printable report carries the sign-off panel too, so this does not depend on the run page's layout.

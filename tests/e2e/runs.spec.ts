@@ -66,7 +66,7 @@ test("a technician logs a run, brings a frame stack, sets the view, tracks it an
   const instructor = await apiAs(new URL(page.url()).origin, people.instructor);
   const res = await instructor.post(`/api/v1/runs/${runId}/tracking`);
   expect(res.status()).toBe(403);
-  const up = await instructor.post(`/api/v1/runs/${runId}/frames`, { multipart: { file: { name: "x.png", mimeType: "image/png", buffer: fs.readFileSync(stack.files[0]) } } });
+  const up = await instructor.post(`/api/v1/runs/${runId}/frames`, { multipart: { file: { name: "x.png", mimeType: "image/png", buffer: fs.readFileSync(stack.files[0]!) } } });
   expect(up.status()).toBe(403);
   const progress = await instructor.get(`/api/v1/runs/${runId}/tracking`);
   expect(progress.status()).toBe(200);
@@ -83,7 +83,7 @@ test("the tracking route explains why a run cannot be tracked yet", async ({ bas
     maxRedirects: 0,
   });
   expect(created.status()).toBe(302);
-  const runId = Number(created.headers()["location"].split("/").pop());
+  const runId = Number(created.headers()["location"]!.split("/").pop());
   const start = await tech.post(`/api/v1/runs/${runId}/tracking`);
   expect(start.status()).toBe(409);
   expect((await start.json()).error).toMatchObject({ code: "no_frames", message: expect.stringContaining("no frames yet") });

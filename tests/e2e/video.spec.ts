@@ -38,7 +38,7 @@ for (const kind of ["mp4-h264", "webm-vp8"] as VideoKind[]) {
     const times = listed.frames.map((f) => f.timeS);
     for (let i = 0; i < 90; i++) {
       expect(times[i], `frame ${i}`).not.toBeNull();
-      expect(Math.abs((times[i] as number) - video.times[i]), `frame ${i}: ${times[i]} s against the container's ${video.times[i]} s`).toBeLessThan(1e-3);
+      expect(Math.abs((times[i] as number) - video.times[i]!), `frame ${i}: ${times[i]} s against the container's ${video.times[i]} s`).toBeLessThan(1e-3);
     }
 
     await page.getByRole("link", { name: "Set up the view" }).click();
@@ -57,7 +57,7 @@ for (const kind of ["mp4-h264", "webm-vp8"] as VideoKind[]) {
 
 test("a frame time that is not a finite number of seconds from 0 up to 1e5 is refused with the reason", async ({ baseURL }) => {
   const stack = await renderStackToDir({ frames: 1, rpm: 15 });
-  const png = fs.readFileSync(stack.files[0]);
+  const png = fs.readFileSync(stack.files[0]!);
   const tech = await apiAs(baseURL!, people.tech);
   const equipment = (await (await tech.get("/api/v1/equipment")).json()) as { id: number; kind: string; status: string }[];
   const pick = (kind: string) => equipment.find((e) => e.kind === kind && e.status === "in_service")!.id;
@@ -66,7 +66,7 @@ test("a frame time that is not a finite number of seconds from 0 up to 1e5 is re
     maxRedirects: 0,
   });
   expect(created.status()).toBe(302);
-  const runId = Number(created.headers()["location"].split("/").pop());
+  const runId = Number(created.headers()["location"]!.split("/").pop());
   const send = (timeS: string) => tech.post(`/api/v1/runs/${runId}/frames`, { multipart: { file: { name: "frame_1.png", mimeType: "image/png", buffer: png }, timeS } });
   for (const [timeS, message] of [["-0.1", /before the start/], ["100000", /beyond 100000 s/], ["Infinity", /not a number of seconds/], ["NaN", /not a number of seconds/], ["1e999", /finite/], ["2 s", /not a number of seconds/]] as const) {
     const res = await send(timeS);

@@ -34,7 +34,7 @@ export async function startFakeS3(): Promise<FakeS3> {
   const child = spawn(process.execPath, ["--openssl-legacy-provider", serverScript, dir], { stdio: ["pipe", "pipe", "inherit"] });
   const exited = new Promise<number | null>((resolve) => child.once("exit", (code) => resolve(code)));
   const port = await new Promise<number>((resolve, reject) => {
-    const lines = readline.createInterface({ input: child.stdout! });
+    const lines = readline.createInterface({ input: child.stdout });
     lines.once("line", (line) => resolve((JSON.parse(line) as { port: number }).port));
     child.once("error", reject);
     void exited.then((code) => reject(new Error(`the fake S3 server stopped before it listened (exit ${code})`)));
@@ -43,7 +43,7 @@ export async function startFakeS3(): Promise<FakeS3> {
     endpoint: `http://127.0.0.1:${port}`,
     dir,
     async close() {
-      child.stdin!.end();
+      child.stdin.end();
       await exited;
       await fs.rm(dir, { recursive: true, force: true });
     },

@@ -23,7 +23,7 @@ describe("README security section matches the code", () => {
     `${settingLimits.sessionIdleHours.min} to ${settingLimits.sessionIdleHours.max} hours`,
     `${SESSION_ABSOLUTE_HOURS} hours after sign-in however busy`,
     `API tokens work ${API_TOKEN_DEFAULT_DAYS} days unless a lifetime of 1 to ${API_TOKEN_MAX_DAYS} days is chosen`,
-    `at most once a ${LAST_USED_WRITE_MS === 60_000 ? "minute" : `${LAST_USED_WRITE_MS} ms`}`,
+    `at most once a ${LAST_USED_WRITE_MS === 60_000 ? "minute" : `${Number(LAST_USED_WRITE_MS)} ms`}`,
   ])("states %j", (promise) => {
     expect(readme).toContain(promise);
   });

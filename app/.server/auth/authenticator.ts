@@ -2,6 +2,7 @@ import { Authenticator } from "remix-auth";
 import { FormStrategy } from "remix-auth-form";
 import { User } from "../db";
 import { burnPasswordCheck, verifyPassword } from "./password";
+import { formText } from "~/lib/form-text";
 
 export const SIGN_IN_FAILED = "That e-mail and password do not match an active account.";
 
@@ -18,8 +19,8 @@ export const authenticator = new Authenticator<SignedInUser>();
 
 authenticator.use(
   new FormStrategy(async ({ form }) => {
-    const email = String(form.get("email") ?? "").trim().toLowerCase();
-    const password = String(form.get("password") ?? "");
+    const email = formText(form, "email").trim().toLowerCase();
+    const password = formText(form, "password");
     const user = await User.findOne({ where: { email } });
     if (!user || !user.active || !user.passwordHash) {
       await burnPasswordCheck(password);

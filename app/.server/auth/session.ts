@@ -81,7 +81,7 @@ export function storageWith(cookie: Cookie) {
       if (!row.lastSeenAt || now - row.lastSeenAt.getTime() >= LAST_SEEN_WRITE_MS) {
         await Session.update({ lastSeenAt: new Date(now) }, { where: { id } });
       }
-      return JSON.parse(row.data);
+      return JSON.parse(row.data) as SessionData;
     },
     async updateData(id, data) {
       await Session.update({ data: JSON.stringify(data), userId: data.userId ?? null, lastSeenAt: new Date() }, { where: { id } });

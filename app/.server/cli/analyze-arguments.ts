@@ -31,13 +31,16 @@ export interface AnalyzeArguments {
   mirrored: boolean;
 }
 
-function numberList(name: string, value: string, count: number): number[] {
+/** `count` numbers, as a tuple of that length. */
+type Numbers<N extends number, T extends number[] = []> = T["length"] extends N ? T : Numbers<N, [...T, number]>;
+
+function numberList<N extends number>(name: string, value: string, count: N): Numbers<N> {
   const texts = value.split(",").map((p) => p.trim());
   const parts = texts.map(Number);
   if (parts.length !== count || texts.some((p) => p === "") || parts.some((p) => !Number.isFinite(p))) {
     throw new UsageError(`--${name} needs ${count} numbers separated by commas, not "${value}".`);
   }
-  return parts;
+  return parts as Numbers<N>; // the length was checked just above
 }
 
 function positive(name: string, value: string | undefined, allowZero = false): number {
@@ -88,7 +91,7 @@ export function parseAnalyzeArguments(argv: string[]): AnalyzeArguments | "help"
   const edge = values["tank-edge"] === undefined ? null : numberList("tank-edge", values["tank-edge"], 3);
   if (edge && !(edge[2] > 0)) throw new UsageError("--tank-edge needs a radius above zero.");
   return {
-    framesDir: positionals[0],
+    framesDir: positionals[0]!,
     rpm: positive("rpm", values.rpm, true),
     direction: oneOf("direction", values.direction, ["ccw", "cw"] as const),
     fps: positive("fps", values.fps),

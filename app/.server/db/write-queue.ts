@@ -60,7 +60,7 @@ const READ_TYPES = new Set<string>([QueryTypes.SELECT, QueryTypes.SHOWTABLES, Qu
 /** Reads by their query type; raw SQL only if it plainly reads (SELECT, or a PRAGMA that sets nothing). */
 export function isRead(sql: unknown, type: string | undefined): boolean {
   if (type && READ_TYPES.has(type)) return true;
-  const text = typeof sql === "string" ? sql : typeof sql === "object" && sql && "query" in sql ? String((sql as { query: unknown }).query) : "";
+  const text = typeof sql === "string" ? sql : typeof sql === "object" && sql && "query" in sql ? String((sql).query) : "";
   return /^\s*SELECT\b/i.test(text) || (/^\s*PRAGMA\b/i.test(text) && !text.includes("="));
 }
 

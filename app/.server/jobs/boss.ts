@@ -82,7 +82,7 @@ export async function stopQueueClient() {
 /** pg-boss runs its SQL on the connection of our transaction, so the doorbell commits with the change. */
 function onTransaction(transaction: Transaction): PgBoss.Db {
   const connection = (transaction as unknown as { connection: { query(text: string, values: unknown[]): Promise<{ rows: unknown[] }> } }).connection;
-  return { executeSql: (text, values) => connection.query(text, values) as Promise<{ rows: never[] }> };
+  return { executeSql: (text, values) => connection.query(text, values) };
 }
 
 export interface RingOptions {

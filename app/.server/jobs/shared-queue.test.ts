@@ -96,11 +96,11 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
     expect(received.get("Shared queue: from the web side")).toBe(1);
     reference = await tracksOf(run.id);
     expect(reference.length).toBe(1);
-    expect(reference[0].pointCount).toBeGreaterThanOrEqual(FRAMES - 1);
+    expect(reference[0]!.pointCount).toBeGreaterThanOrEqual(FRAMES - 1);
   }, 180_000);
 
   it("a worker killed with SIGKILL mid-job is replaced: another worker resumes from the stored detections, once, with the same tracks", async () => {
-    const first = workers[0];
+    const first = workers[0]!;
     const run = await newRun("worker killed mid-job");
     const job = await enqueueTracking(run, lab.tech.id);
     // Progress reaches the database the run page polls while the first worker tracks.
@@ -141,7 +141,7 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
   }, 240_000);
 
   it("two workers and five runs: every run is tracked exactly once, by one worker, with the same tracks", async () => {
-    const second = workers[1];
+    const second = workers[1]!;
     const third = startWorker();
     await third.ready();
     const runs: Run[] = [];
@@ -202,7 +202,7 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
   }, 120_000);
 
   it("a worker stopped with SIGTERM mid-job hands the job back at once, and the other worker resumes it", async () => {
-    const [second, third] = [workers[1], workers[2]];
+    const [second, third] = [workers[1]!, workers[2]!];
     // A run long enough (several seconds of tracking) that the signal surely lands mid-job: the
     // 120-frame run can be finished between the first progress the test sees and the signal.
     const LONG = 360;
@@ -236,6 +236,6 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
     expect(await TrackingJob.count({ where: { runId: run.id } })).toBe(1);
     const tracks = await tracksOf(run.id);
     expect(tracks.length).toBe(1);
-    expect(tracks[0].pointCount).toBeGreaterThanOrEqual(LONG - 1);
+    expect(tracks[0]!.pointCount).toBeGreaterThanOrEqual(LONG - 1);
   }, 240_000);
 });

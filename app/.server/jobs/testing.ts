@@ -32,7 +32,7 @@ export class WorkerProcess {
     const started = Date.now();
     for (;;) {
       const m = /\[worker\] taking tracking, mail and reminder jobs as (\S+)/.exec(this.output);
-      if (m) return m[1];
+      if (m?.[1]) return m[1];
       if (this.proc.exitCode !== null || this.proc.signalCode !== null) throw new Error(`the worker stopped before taking jobs:\n${this.output}`);
       if (Date.now() - started > timeoutMs) throw new Error(`the worker did not start in ${timeoutMs} ms:\n${this.output}`);
       await new Promise((r) => setTimeout(r, 100));

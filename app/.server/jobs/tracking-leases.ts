@@ -41,11 +41,11 @@ export async function claimTrackingJob(jobId: number, owner: string): Promise<Cl
   return sequelize.transaction(async (transaction) => {
     const job = await TrackingJob.findByPk(jobId, { transaction, lock: transaction.LOCK.UPDATE });
     if (!job || !["queued", "running"].includes(job.state)) return { kind: "finished" } as const;
-    const [{ live }] = await sequelize.query<{ live: boolean }>(
+    const [lease] = await sequelize.query<{ live: boolean }>(
       `SELECT (lease_until IS NOT NULL AND lease_until > now()) AS live FROM tracking_jobs WHERE id = :id`,
       { replacements: { id: jobId }, type: QueryTypes.SELECT, transaction },
     );
-    if (live && job.leaseOwner !== owner) return { kind: "busy", reason: `held by ${job.leaseOwner}` } as const;
+    if (lease?.live && job.leaseOwner !== owner) return { kind: "busy", reason: `held by ${job.leaseOwner}` } as const;
     await Run.findByPk(job.runId, { attributes: ["id"], transaction, lock: transaction.LOCK.UPDATE });
     const other = await TrackingJob.findOne({
       attributes: ["id"],
@@ -53,7 +53,7 @@ export async function claimTrackingJob(jobId: number, owner: string): Promise<Cl
       transaction,
     });
     if (other) return { kind: "busy", reason: `job ${other.id} of the same run is being tracked` } as const;
-    await job.update({ state: "running", leaseOwner: owner, leaseUntil: leaseUntilLiteral() as unknown as Date }, { transaction });
+    await job.update({ state: "running", leaseOwner: owner, leaseUntil: leaseUntilLiteral() }, { transaction });
     await job.reload({ transaction });
     return { kind: "claimed", job } as const;
   });
@@ -61,7 +61,7 @@ export async function claimTrackingJob(jobId: number, owner: string): Promise<Cl
 
 /** Renews the lease; false when the job is no longer this owner's (cancelled, or taken over). */
 export async function renewLease(jobId: number, owner: string): Promise<boolean> {
-  const [n] = await TrackingJob.update({ leaseUntil: leaseUntilLiteral() as unknown as Date }, { where: { id: jobId, state: "running", leaseOwner: owner } });
+  const [n] = await TrackingJob.update({ leaseUntil: leaseUntilLiteral() }, { where: { id: jobId, state: "running", leaseOwner: owner } });
   return n === 1;
 }
 

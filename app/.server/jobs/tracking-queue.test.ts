@@ -53,7 +53,7 @@ describe("the tracking job queue", () => {
     expect(job.framesDone).toBe(90);
     const tracks = await Track.findAll({ where: { runId: run.id } });
     expect(tracks.length).toBe(1);
-    expect(tracks[0].pointCount).toBeGreaterThanOrEqual(89);
+    expect(tracks[0]!.pointCount).toBeGreaterThanOrEqual(89);
     expect(await Detection.count({ where: { jobId: job.id } })).toBeGreaterThanOrEqual(89);
     const check = await TheoryCheck.findOne({ where: { runId: run.id } });
     expect(check?.verdict).toBe("agrees");

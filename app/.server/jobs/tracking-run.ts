@@ -120,7 +120,7 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     const stack = await frameStackOf(run, scratch);
     const setup = await trackingSetupOf(run);
     const prior = await priorDetections(job);
-    for (const f of prior) if (!Number.isFinite(f.t)) f.t = stack.times[f.frameIndex];
+    for (const f of prior) if (!Number.isFinite(f.t)) f.t = stack.times[f.frameIndex]!;
     if (prior.length) console.log(`[tracking] job ${job.id} (run ${run.id}) resumes at frame ${prior.length + 1} of ${stack.files.length}`);
     // What is tracked is recorded before tracking: a change meanwhile leaves these tracks out of date.
     const inputFingerprint = await trackingFingerprint(run);

@@ -82,7 +82,7 @@ export class OutboxSender {
 
   private async take(id: number, now: Date, where: WhereOptions<OutboxMail>): Promise<OutboxMail | null> {
     const [won] = await OutboxMail.update(
-      { leaseOwner: this.owner, leaseUntil: new Date(now.getTime() + this.leaseMs), attempts: sequelize.literal("attempts + 1") as unknown as number },
+      { leaseOwner: this.owner, leaseUntil: new Date(now.getTime() + this.leaseMs), attempts: sequelize.literal("attempts + 1") },
       { where: { ...where, id } },
     );
     return won === 1 ? OutboxMail.findByPk(id) : null;
@@ -125,7 +125,7 @@ export class OutboxSender {
       do {
         this.again = false;
         for (let row = await this.claimNext(); row; row = await this.claimNext()) {
-          result[(await this.deliver(row)) as keyof DrainResult].push(row.id);
+          result[(await this.deliver(row))].push(row.id);
         }
       } while (this.again);
       return result;

@@ -27,9 +27,9 @@ function apiRoutes(): Map<string, string> {
   const block = /prefix\("api\/v1",\s*\[([\s\S]*?)\]\)/.exec(source);
   if (!block) throw new Error("no api/v1 prefix in app/routes.ts");
   const routes = new Map<string, string>();
-  for (const m of block[1].matchAll(/route\("([^"]+)",\s*"([^"]+)"/g)) {
+  for (const m of block[1]!.matchAll(/route\("([^"]+)",\s*"([^"]+)"/g)) {
     if (m[1] === "*") continue;
-    routes.set(`/api/v1/${m[1].replace(/:(\w+)/g, "{$1}")}`, m[2]);
+    routes.set(`/api/v1/${m[1]!.replace(/:(\w+)/g, "{$1}")}`, m[2]!);
   }
   return routes;
 }

@@ -11,7 +11,7 @@ import { registerCalibrationPaths } from "./paths/calibrations";
 
 function packageVersion() {
   try {
-    return JSON.parse(fs.readFileSync(path.join(env.projectRoot, "package.json"), "utf8")).version as string;
+    return (JSON.parse(fs.readFileSync(path.join(env.projectRoot, "package.json"), "utf8")) as { version: string }).version;
   } catch {
     return "0.0.0";
   }

@@ -62,7 +62,7 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
       jitterPx: t.jitterPx,
       duration: (() => {
         const p = parseTrackPoints(t);
-        return p.length ? p[p.length - 1].t - p[0].t : 0;
+        return p.length ? p[p.length - 1]!.t - p[0]!.t : 0;
       })(),
     })),
     check: judged.check ? storedCheck(judged.check) : null,

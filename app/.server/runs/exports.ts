@@ -60,7 +60,7 @@ export async function tracksCsv(runId: number): Promise<{ filename: string; csv:
   for (const track of tracks) {
     const points = parseTrackPoints(track);
     const timed = timeFactor === 1 ? points : correctFrameTimes(points, timeFactor);
-    const rotating = view && timed.length ? trackToRotatingFrame(timed, view, run.cameraMode, omega, timed[0].t) : null;
+    const rotating = view && timed.length ? trackToRotatingFrame(timed, view, run.cameraMode, omega, timed[0]!.t) : null;
     points.forEach((p, i) => {
       const cells: CsvCell[] = [track.id, csvNumber(p.t), csvNumber(p.x), csvNumber(p.y)];
       if (rotating) {

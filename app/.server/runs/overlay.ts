@@ -28,7 +28,7 @@ export async function trackOverlay(runId: number, jobId: number): Promise<Buffer
       if (!pts.length) return "";
       const colour = palette[i % palette.length];
       const d = pts.map((p, j) => `${j ? "L" : "M"}${p.x.toFixed(1)},${p.y.toFixed(1)}`).join(" ");
-      const start = pts[0];
+      const start = pts[0]!;
       return `<path d="${d}" fill="none" stroke="#000" stroke-opacity="0.55" stroke-width="${stroke + 2}"/>
 <path d="${d}" fill="none" stroke="${colour}" stroke-width="${stroke}"/>
 <circle cx="${start.x}" cy="${start.y}" r="${stroke * 3}" fill="${colour}" stroke="#000" stroke-width="1"/>

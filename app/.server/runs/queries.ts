@@ -44,7 +44,7 @@ const sortColumns: Record<RunSortField, string> = {
 
 /** Start of a YYYY-MM-DD day in the lab's (the server's) local time. */
 function localDayStart(day: string, plusDays = 0): Date {
-  const [y, m, d] = day.split("-").map(Number);
+  const [y = Number.NaN, m = Number.NaN, d = Number.NaN] = day.split("-").map(Number);
   return new Date(y, m - 1, d + plusDays, 0, 0, 0, 0);
 }
 
@@ -64,7 +64,7 @@ export function runsWhere(filters: RunFilters): WhereOptions<Run> {
   if (filters.to) and.push({ createdAt: { [Op.lt]: localDayStart(filters.to, 1) } });
   if (filters.q) {
     const p = sequelize.escape(likePattern(filters.q));
-    and.push(sequelize.literal(`(lower("Run"."purpose") LIKE ${p} ESCAPE '\\' OR lower(coalesce("Run"."notes", '')) LIKE ${p} ESCAPE '\\')`) as unknown as WhereOptions<Run>);
+    and.push(sequelize.literal(`(lower("Run"."purpose") LIKE ${p} ESCAPE '\\' OR lower(coalesce("Run"."notes", '')) LIKE ${p} ESCAPE '\\')`));
   }
   return and.length ? { [Op.and]: and } : {};
 }

@@ -59,7 +59,7 @@ describe("the rate reached time", () => {
 
     const session = await sessionStorage.getSession();
     session.set("userId", lab.technician.id);
-    const cookie = (await sessionStorage.commitSession(session)).split(";")[0];
+    const cookie = (await sessionStorage.commitSession(session)).split(";")[0]!;
     const form = new URLSearchParams(Object.entries({ ...runInput(lab), rateReachedAt: afterFrames.toISOString() }).map(([k, v]) => [k, String(v)]));
     const page = (await editAction({
       request: new Request(`http://localhost/runs/${run.id}/edit`, { method: "POST", headers: { Cookie: cookie, "Content-Type": "application/x-www-form-urlencoded" }, body: form }),

@@ -25,7 +25,7 @@ afterAll(async () => {
 async function managerCookie() {
   const session = await sessionStorage.getSession();
   session.set("userId", lab.manager.id);
-  return (await sessionStorage.commitSession(session)).split(";")[0];
+  return (await sessionStorage.commitSession(session)).split(";")[0]!;
 }
 
 /** The settings page's form as a lab manager sends it, with the defaults but for the tolerance. */

@@ -60,7 +60,7 @@ describe("history and corrections", () => {
     const fromCorrection = await getSupersedesLinks(correction);
     expect(fromOriginal).toMatchObject({ supersedes: null, supersededBy: [{ id: correction.id, label: expect.stringMatching(/^R-\d{4}$/) }] });
     expect(fromCorrection).toMatchObject({ supersedes: { id: original.id }, supersededBy: [] });
-    expect((await getRunHistory(correction.id))[0].newValue).toBe(`correction of run ${original.id}`);
+    expect((await getRunHistory(correction.id))[0]!.newValue).toBe(`correction of run ${original.id}`);
   });
 });
 

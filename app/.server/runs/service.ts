@@ -14,7 +14,7 @@ export interface CalibrationSnapshot {
 /** The calibrations stored with a run when it was logged. */
 export function calibrationSnapshot(run: Pick<Run, "calibrationsInForce">): CalibrationSnapshot {
   try {
-    const parsed = run.calibrationsInForce ? JSON.parse(run.calibrationsInForce) : null;
+    const parsed = run.calibrationsInForce ? (JSON.parse(run.calibrationsInForce) as Partial<CalibrationSnapshot> | CalibrationSnapshot["inForce"]) : null;
     if (Array.isArray(parsed)) return { at: null, inForce: parsed, pastDue: [] };
     if (parsed && typeof parsed === "object") return { at: parsed.at ?? null, inForce: parsed.inForce ?? [], pastDue: parsed.pastDue ?? [] };
   } catch {
@@ -35,9 +35,8 @@ export class RunError extends Error {
 }
 
 async function checkEquipment(input: RunInput, transaction?: Transaction) {
-  const [table, tank, camera] = await Promise.all(
-    [input.tableId, input.tankId, input.cameraId].map((id) => Equipment.findByPk(id, { transaction })),
-  );
+  const byId = (id: number) => Equipment.findByPk(id, { transaction });
+  const [table, tank, camera] = await Promise.all([byId(input.tableId), byId(input.tankId), byId(input.cameraId)]);
   const problems: { field: string; message: string }[] = [];
   const expect = (item: Equipment | null, kind: string, field: string, word: string) => {
     if (!item || item.kind !== kind) problems.push({ field, message: `Choose a ${word} from the register.` });
@@ -99,7 +98,7 @@ async function freezeCalibrations(equipmentIds: number[], at: Date, transaction:
 function snapshotSummary(text: string | null) {
   const s = calibrationSnapshot({ calibrationsInForce: text });
   const list = (xs: { id: number | string; kind: string }[]) => xs.map((c) => `${c.kind} #${c.id}`).join(", ") || "none";
-  return `in force: ${list(s.inForce)}; past due: ${list(s.pastDue as never)}`;
+  return `in force: ${list(s.inForce)}; past due: ${list(s.pastDue)}`;
 }
 
 /** A minute of clock skew between the person's clock and the server's is forgiven. */
@@ -163,7 +162,7 @@ export function assertCanChange(run: Run, user: CurrentUser) {
   }
 }
 
-const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? v.toISOString() : String(v));
+const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? v.toISOString() : typeof v === "object" ? JSON.stringify(v) : (v as string | number | boolean | bigint).toString());
 
 export async function updateRun(runId: number, input: RunInput, user: CurrentUser) {
   const run = await Run.findByPk(runId);

@@ -17,6 +17,7 @@ export async function seedRunLab() {
     { ...blank, kind: "tank", name: "Round tank 57", diameterM: 0.57, depthM: 0.25 },
     { ...blank, kind: "camera", name: "Mast camera", resolutionWidthPx: 1280, resolutionHeightPx: 720, nominalFrameRateFps: 30 },
   ]);
+  if (!tableA || !tableB || !tank || !tank2 || !camera) throw new Error("bulkCreate returned fewer rows than it was given");
   const person = async (role: Role, name: string) => {
     const u = await User.create({ email: `${role}.${Math.random().toString(36).slice(2, 8)}@tankside.example`, name, role, passwordHash: null, passwordChangedAt: null });
     return { id: u.id, email: u.email, name: u.name, role: u.role } satisfies CurrentUser;

@@ -26,7 +26,7 @@ export async function theoryInputFor(run: Run): Promise<{ input: TheoryCheckInpu
   // Rate, timing and scale calibrations frozen on the run: what each changes, and the words saying so.
   const applied = await calibrationsForCheck(run, setup.scalePxPerM);
   const input: TheoryCheckInput = {
-    points: parseTrackPoints(tracks[0]),
+    points: parseTrackPoints(tracks[0]!),
     setup: {
       centre: { x: setup.centreXPx, y: setup.centreYPx },
       pxPerM: applied.pxPerM,
@@ -41,7 +41,7 @@ export async function theoryInputFor(run: Run): Promise<{ input: TheoryCheckInpu
     flatTable: Boolean(table?.flatTable),
     settings: { tolerance: settings.checkTolerancePct / 100 },
   };
-  return { input, track: tracks[0] };
+  return { input, track: tracks[0]! };
 }
 
 export interface StoredCheck {
@@ -95,6 +95,6 @@ export async function checkRun(runId: number, userId: number | null) {
 
 /** A stored check row as the run page reads it; which row is current is currentCheck's to say. */
 export function storedCheck(row: TheoryCheck): StoredCheck {
-  const parsed = JSON.parse(row.result);
+  const parsed = JSON.parse(row.result) as Pick<StoredCheck, "result" | "input">;
   return { id: row.id, result: parsed.result, input: parsed.input, codeVersion: row.codeVersion, createdAt: row.createdAt.toISOString() };
 }

@@ -35,12 +35,14 @@ const scatter = [0.006, -0.009, 0.004, 0.008, -0.007];
 addDemoStep({
   name: "calibrations and bookings",
   async run() {
-    const [manager, tech, tech2, instructor, instructor2] = await Promise.all(
-      ["manager@tankside.example", "tech@tankside.example", "tech2@tankside.example", "instructor@tankside.example", "instructor2@tankside.example"].map((e) => find("user", e)),
-    );
-    const [tableA, tableB, cam1, cam2, tach, gate] = await Promise.all(
-      ["Table A (east bench)", "Table B (west bench)", "Overhead camera 1", "Overhead camera 2", "Optical tachometer T1", "Photogate PG-2"].map((n) => find("item", n)),
-    );
+    const user = (email: string) => find("user", email);
+    const [manager, tech, tech2, instructor, instructor2] = await Promise.all([
+      user("manager@tankside.example"), user("tech@tankside.example"), user("tech2@tankside.example"), user("instructor@tankside.example"), user("instructor2@tankside.example"),
+    ]);
+    const item = (name: string) => find("item", name);
+    const [tableA, tableB, cam1, cam2, tach, gate] = await Promise.all([
+      item("Table A (east bench)"), item("Table B (west bench)"), item("Overhead camera 1"), item("Overhead camera 2"), item("Optical tachometer T1"), item("Photogate PG-2"),
+    ]);
     const sets = [5, 10, 15, 20, 25];
 
     // Table A: an older record, superseded by the one in force (measured = 1.004·set − 0.02 rpm).

@@ -51,7 +51,7 @@ export async function mapLimit<T, R>(items: T[], limit: number, fn: (item: T, in
     while (next < items.length && !failure) {
       const i = next++;
       try {
-        out[i] = await fn(items[i], i);
+        out[i] = await fn(items[i]!, i);
       } catch (err) {
         failure ??= { err };
       }

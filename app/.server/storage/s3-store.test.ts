@@ -96,7 +96,7 @@ describe("orphan cleanup in a bucket", () => {
     await Frame.create({
       runId: run.id, position: 0, originalName: "f0.png", storedName: path.basename(kept), thumbName: path.basename(keptThumb),
       sha256: "1".repeat(64), format: "png", widthPx: 4, heightPx: 4, sizeBytes: 1, timeS: 0,
-    } as never);
+    });
     const attachment = await CalibrationAttachment.findOne();
     const orphan = `runs/${run.id}/22222222-2222-4222-8222-222222222222.png`;
     const orphanAttachment = "calibrations/44444444-4444-4444-8444-444444444444.pdf";

@@ -54,7 +54,7 @@ function reasonOf(error: unknown, bytes?: Buffer): string {
   if ((bytes && !frameFormat(bytes)) || /unsupported image format|bad seek|not a known file format/i.test(message)) {
     return "it is not a JPEG, PNG, TIFF or WebP image";
   }
-  return message.split("\n")[0].replace(/\.$/, "");
+  return message.split("\n")[0]!.replace(/\.$/, "");
 }
 
 async function readBytes(file: string, index: number): Promise<Buffer> {

@@ -45,7 +45,7 @@ function setup(tracer: TrackingSetup["tracer"]): TrackingSetup {
 }
 
 function rmsError(track: Track, truth: WrittenStack["truth"]): number {
-  const sum = track.points.reduce((s, p) => s + (p.x - truth[p.frameIndex][0].x) ** 2 + (p.y - truth[p.frameIndex][0].y) ** 2, 0);
+  const sum = track.points.reduce((s, p) => s + (p.x - truth[p.frameIndex]![0]!.x) ** 2 + (p.y - truth[p.frameIndex]![0]!.y) ** 2, 0);
   return Math.sqrt(sum / track.points.length);
 }
 
@@ -76,17 +76,17 @@ describe("trackFrameStack", () => {
       onProgress: (done, total) => progress.push([done, total]),
       onFrameDetections: (f) => searched.push(f.frameIndex),
     });
-    const rms = rmsError(result.tracks[0], floatStack.truth);
+    const rms = rmsError(result.tracks[0]!, floatStack.truth);
     console.info(`float, lab view, PNG: RMS ${rms.toFixed(3)} px, ${(performance.now() - started).toFixed(0)} ms for 60 frames`);
     expect([result.frames, result.width, result.height]).toEqual([60, 320, 240]);
     expect(result.tracks).toHaveLength(1);
-    expect(result.tracks[0].points).toHaveLength(60);
+    expect(result.tracks[0]!.points).toHaveLength(60);
     expect(rms).toBeLessThanOrEqual(0.1);
     expect(result.quality.framesDetectedShare).toBeGreaterThanOrEqual(0.99);
     expect(result.quality.jitterPx as number).toBeLessThan(0.1);
     expect(progress.at(-1)).toEqual([60, 60]);
     expect(searched.sort((a, b) => a - b)).toEqual([...Array(60).keys()]);
-    expect(result.tracks[0].points[10].t).toBeCloseTo(10 / 30, 12);
+    expect(result.tracks[0]!.points[10]!.t).toBeCloseTo(10 / 30, 12);
   });
 
   it("resumes part-way with the detections already kept and ends with the same track", async () => {
@@ -108,7 +108,7 @@ describe("trackFrameStack", () => {
   it("tracks dye through JPEG frames (colour at half resolution: within 0.25 px)", async () => {
     const stack = await writeSyntheticStack(path.join(dir, "dye"), spec([dye], 40, "rotating"), { format: "jpeg", quality: 92 });
     const result = await trackFrameStack({ files: stack.files, times: stack.times, setup: setup("dye") });
-    const rms = rmsError(result.tracks[0], stack.truth);
+    const rms = rmsError(result.tracks[0]!, stack.truth);
     console.info(`dye, co-rotating view, JPEG q92: RMS ${rms.toFixed(3)} px`);
     expect(result.tracks).toHaveLength(1);
     expect(result.quality.framesDetectedShare).toBeGreaterThanOrEqual(0.99);
@@ -157,7 +157,7 @@ describe("trackFrameStack on bad input: a clear reason, no hang", () => {
     for (let i = 0; i < emptyStack.files.length; i++) {
       const file = path.join(dir, folder, `frame_${String(i + 1).padStart(4, "0")}${i === index ? ext : ".png"}`);
       if (i === index) await write(file);
-      else await copyFile(emptyStack.files[i], file);
+      else await copyFile(emptyStack.files[i]!, file);
       files.push(file);
     }
     return files;
@@ -178,7 +178,7 @@ describe("trackFrameStack on bad input: a clear reason, no hang", () => {
 
   it("a truncated JPEG", async () => {
     const files = await withFrame("truncated", ".jpg", 3, async (f) => {
-      const jpeg = await sharp(await readFile(emptyStack.files[3])).jpeg({ quality: 90 }).toBuffer();
+      const jpeg = await sharp(await readFile(emptyStack.files[3]!)).jpeg({ quality: 90 }).toBuffer();
       await writeFile(f, jpeg.subarray(0, Math.floor(jpeg.length / 2)));
     });
     const error = await failure(files);
@@ -194,7 +194,7 @@ describe("trackFrameStack on bad input: a clear reason, no hang", () => {
 
   it("a frame of another size", async () => {
     const files = await withFrame("other-size", ".png", 4, async (f) => {
-      await sharp(await readFile(emptyStack.files[4])).resize(160, 120).png().toFile(f);
+      await sharp(await readFile(emptyStack.files[4]!)).resize(160, 120).png().toFile(f);
     });
     const error = await failure(files);
     expect(error.code).toBe("frame-size");

@@ -149,7 +149,7 @@ function validate(input: TrackFrameStackInput): void {
     throw new TrackingError("bad-input", `There are ${files.length} frames but ${times.length} frame times.`);
   }
   for (let i = 0; i < times.length; i++) {
-    if (!Number.isFinite(times[i]) || (i > 0 && times[i] <= times[i - 1])) {
+    if (!Number.isFinite(times[i]) || (i > 0 && times[i]! <= times[i - 1]!)) {
       throw new TrackingError("bad-input", `The time of frame ${i + 1} is not after the time of the frame before it.`, {
         frameIndex: i,
       });
@@ -196,7 +196,7 @@ async function floatBackground(
       while (next < indices.length) {
         if (signal?.aborted) throw cancelled();
         const j = next++;
-        samples.set(await decodeFrame(files[indices[j]], indices[j], plan), j * length);
+        samples.set(await decodeFrame(files[indices[j]!]!, indices[j]!, plan), j * length);
       }
     }),
   );
@@ -227,7 +227,7 @@ async function floatBackground(
       const image = samples.slice(j * length, (j + 1) * length);
       try {
         return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background: plain }, [
-          image.buffer as ArrayBuffer,
+          image.buffer,
         ])) as Detection[];
       } catch (error) {
         throw searchFailed(index, error);
@@ -255,7 +255,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   const startAt = input.startAt ?? 0;
   if (signal?.aborted) throw cancelled();
 
-  const { width, height } = await readFrameSize(files[0], 0);
+  const { width, height } = await readFrameSize(files[0]!, 0);
   const plan = makePlan(setup, width, height);
   const key = planKey(plan);
   const workers = trackingPool();
@@ -287,7 +287,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
 
   let failure: unknown = null;
   const searchFrame = async (index: number): Promise<void> => {
-    const image = await decodeFrame(files[index], index, plan);
+    const image = await decodeFrame(files[index]!, index, plan);
     if (failure || signal?.aborted) return;
     let detections: Detection[];
     try {
@@ -297,7 +297,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
     } catch (error) {
       throw searchFailed(index, error);
     }
-    const frame: FrameDetections = { frameIndex: index, t: times[index], detections };
+    const frame: FrameDetections = { frameIndex: index, t: times[index]!, detections };
     byFrame.set(index, frame);
     done++;
     input.onFrameDetections?.(frame);
@@ -321,7 +321,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
 
   const detections: FrameDetections[] = [];
   for (let i = 0; i < total; i++) {
-    detections.push(byFrame.get(i) ?? { frameIndex: i, t: times[i], detections: [] });
+    detections.push(byFrame.get(i) ?? { frameIndex: i, t: times[i]!, detections: [] });
   }
   if (!detections.some((f) => f.detections.length > 0)) {
     throw new TrackingError(

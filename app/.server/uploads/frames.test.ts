@@ -23,7 +23,7 @@ function zip(entries: { name: string; data: Buffer; declaredSize?: number; defla
   });
   const crc32 = (b: Buffer) => {
     let c = 0xffffffff;
-    for (const x of b) c = crcTable[(c ^ x) & 0xff] ^ (c >>> 8);
+    for (const x of b) c = crcTable[(c ^ x) & 0xff]! ^ (c >>> 8);
     return (c ^ 0xffffffff) >>> 0;
   };
   const locals: Buffer[] = [];
@@ -89,7 +89,7 @@ describe("frame uploads are checked by content", () => {
       await receiveFrameFile(run, file(name, await png(64, 48, 40 + i)), null);
     }
     const again = await receiveFrameFile(run, file("copy-of-frame_2.png", await png(64, 48, 41)), null);
-    expect(again.accepted[0].duplicate).toBe(true);
+    expect(again.accepted[0]!.duplicate).toBe(true);
     const frames = await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] });
     expect(frames.map((f) => f.originalName)).toEqual(["frame_1.png", "frame_2.png", "frame_10.png"]);
     await run.reload();
@@ -141,7 +141,7 @@ describe("frame uploads are checked by content", () => {
     const result = await receiveFrameFile(run, file("stack.zip", archive), null);
     expect(result.accepted.map((a) => a.name)).toEqual(["frame_9.png", "frame_10.png"]);
     expect(result.rejected).toHaveLength(1);
-    expect(result.rejected[0].name).toContain("notes.txt");
+    expect(result.rejected[0]!.name).toContain("notes.txt");
     expect(result.frameCount).toBe(2);
   });
 
@@ -171,10 +171,10 @@ describe("frame uploads are checked by content", () => {
     expect(honest.length).toBeLessThan(200_000);
     const big = await receiveFrameFile(run, file("bomb.zip", honest), null);
     expect(big.accepted).toHaveLength(0);
-    expect(big.rejected[0].message).toMatch(/unpacks to more than Tankside accepts/);
+    expect(big.rejected[0]!.message).toMatch(/unpacks to more than Tankside accepts/);
     const liar = zip([{ name: "frame_1.png", data: zeros, declaredSize: 1000, deflate: true }]);
     const lied = await receiveFrameFile(run, file("liar.zip", liar), null);
-    expect(lied.rejected[0].message).toMatch(/does not match the size the ZIP declares/);
+    expect(lied.rejected[0]!.message).toMatch(/does not match the size the ZIP declares/);
     expect(await Frame.count({ where: { runId: run.id } })).toBe(0);
   });
 
@@ -191,7 +191,7 @@ describe("frame uploads are checked by content", () => {
     const staged = await stageBytes("frame_1.png", await png(48, 32, 70));
     const result = await receiveFrameFile(run, staged, null);
     await expect(fs.stat(staged.path)).rejects.toMatchObject({ code: "ENOENT" });
-    const frame = await Frame.findByPk(result.accepted[0].frameId);
+    const frame = await Frame.findByPk(result.accepted[0]!.frameId);
     expect((await store().head(runKey(run.id, frame!.storedName)))?.size).toBe(staged.sizeBytes);
     const bad = await stageBytes("frame_2.png", Buffer.from("not an image at all"));
     await expect(receiveFrameFile(run, bad, null)).rejects.toMatchObject({ code: "not_an_image" });

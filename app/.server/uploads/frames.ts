@@ -84,7 +84,7 @@ async function renumber(runId: number, transaction: import("sequelize").Transact
   // Frames cut from a video carry their time: order by it. Stacks from files go by natural name order (frame_2 before frame_10).
   const ordered = orderBy(frames, [(f) => (f.timeS ?? Number.POSITIVE_INFINITY), (f) => f.originalName], ["asc", "asc"]);
   for (let i = 0; i < ordered.length; i++) {
-    if (ordered[i].position !== i) await Frame.update({ position: i }, { where: { id: ordered[i].id }, transaction });
+    if (ordered[i]!.position !== i) await Frame.update({ position: i }, { where: { id: ordered[i]!.id }, transaction });
   }
   return ordered.length;
 }
@@ -104,7 +104,7 @@ async function addFrame(run: Run, originalName: string, source: Buffer | StagedF
   const existing = await Frame.findOne({ where: { runId: run.id, sha256 } });
   if (existing) return { name: originalName, frameId: existing.id, position: existing.position, duplicate: true, ...(await restoreMissing(existing, data, info.thumb)) };
 
-  const storedName = generatedName(extFor[info.format]);
+  const storedName = generatedName(extFor[info.format]!);
   const thumbName = storedName.replace(/\.[a-z]+$/, ".thumb.webp");
   const key = runKey(run.id, storedName);
   const thumbKey = runKey(run.id, thumbName);
@@ -177,7 +177,7 @@ function isZip(head: Buffer) {
 /** Opened from the staged file: yauzl reads the central directory and each entry from disk. */
 function openZip(file: string): Promise<yauzl.ZipFile> {
   return new Promise((resolve, reject) =>
-    yauzl.open(file, { lazyEntries: true, autoClose: false, validateEntrySizes: true, strictFileNames: false }, (err, zip) => (err || !zip ? reject(err) : resolve(zip))),
+    yauzl.open(file, { lazyEntries: true, autoClose: false, validateEntrySizes: true, strictFileNames: false }, (err, zip) => (err || !zip ? reject(err ?? new Error("The ZIP archive could not be opened.")) : resolve(zip))),
   );
 }
 
@@ -248,7 +248,7 @@ async function addZipEntries(run: Run, staged: StagedFile, zip: yauzl.ZipFile, r
   }
   const unsafe = entries.filter((e) => !safeEntryPath(e.fileName));
   if (unsafe.length) {
-    throw new UploadError(`The ZIP has entries that point outside it (${unsafe[0].fileName}); nothing was taken from it.`, 422, "zip_unsafe_path");
+    throw new UploadError(`The ZIP has entries that point outside it (${unsafe[0]!.fileName}); nothing was taken from it.`, 422, "zip_unsafe_path");
   }
   const budget = { left: uploadLimits.maxZipUnpackedBytes };
   const reopened = await openZip(staged.path);

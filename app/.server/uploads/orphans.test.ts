@@ -34,7 +34,7 @@ describe("orphan upload files at start", () => {
     await Frame.create({
       runId: run.id, position: 0, originalName: "f0.png", storedName: path.basename(kept), thumbName: path.basename(keptThumb),
       sha256: "0".repeat(64), format: "png", widthPx: 4, heightPx: 4, sizeBytes: 1, timeS: 0,
-    } as never);
+    });
     const orphan = path.join(dir, "22222222-2222-4222-8222-222222222222.png");
     const inFlight = path.join(dir, "33333333-3333-4333-8333-333333333333.png");
     const orphanAttachment = path.join(env.uploadsDir, "calibrations", "44444444-4444-4444-8444-444444444444.pdf");

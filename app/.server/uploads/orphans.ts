@@ -38,7 +38,7 @@ export async function removeOrphanUploads(now: Date = new Date(), objects: Objec
     if (!m) continue;
     const runId = Number(m[1]);
     if (!Number.isSafeInteger(runId)) continue;
-    byRun.set(runId, [...(byRun.get(runId) ?? []), { name: m[2], info: o }]);
+    byRun.set(runId, [...(byRun.get(runId) ?? []), { name: m[2]!, info: o }]);
   }
   for (const [runId, files] of byRun) {
     const frames = await Frame.findAll({ where: { runId }, attributes: ["storedName", "thumbName"] });

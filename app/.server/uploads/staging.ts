@@ -164,11 +164,11 @@ export async function stageMultipart(request: Request, opts: MultipartOptions): 
   });
 }
 
-/** Stages a multipart upload, hands it to `use`, and always removes the temporary file after. */
-export async function withMultipartUpload<T>(request: Request, opts: MultipartOptions, use: (upload: MultipartUpload) => Promise<T>): Promise<T> {
+/** Stages a multipart upload, hands it to `consume`, and always removes the temporary file after. */
+export async function withMultipartUpload<T>(request: Request, opts: MultipartOptions, consume: (upload: MultipartUpload) => Promise<T>): Promise<T> {
   const upload = await stageMultipart(request, opts);
   try {
-    return await use(upload);
+    return await consume(upload);
   } finally {
     await discardStaged(upload.file);
   }

@@ -9,7 +9,7 @@ const colours = { data: "#0c6a72", second: "#8f2318", fit: "#c27c00", theory: "#
 function thin<T>(points: T[], max = 500): T[] {
   if (points.length <= max) return points;
   const step = points.length / max;
-  return Array.from({ length: max }, (_, i) => points[Math.floor(i * step)]);
+  return Array.from({ length: max }, (_, i) => points[Math.floor(i * step)]!); // i < max, so the index is below points.length
 }
 
 /** Equal-aspect domains so a circle looks like a circle. */

@@ -80,7 +80,7 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
     const onComplete = () => {
       setBusy(false);
       uppy.clear();
-      revalidator.revalidate();
+      void revalidator.revalidate();
     };
     uppy.on("upload-success", onSuccess);
     uppy.on("upload-error", onError);

@@ -46,7 +46,7 @@ export function TrackingPanel({ runId, initial, canChange, ready, readyReason }:
   useEffect(() => {
     if (!following) return;
     const timer = setInterval(() => {
-      if (poll.state === "idle") poll.load(`/api/v1/runs/${runId}/tracking`);
+      if (poll.state === "idle") void poll.load(`/api/v1/runs/${runId}/tracking`);
     }, 1000);
     return () => clearInterval(timer);
   }, [following, runId, poll]);
@@ -55,7 +55,7 @@ export function TrackingPanel({ runId, initial, canChange, ready, readyReason }:
   // overlay and the verdict appear.
   const finishedKey = job && !active ? `${job.id}-${job.state}-${view.checkAwaited ? "checking" : "checked"}` : null;
   useEffect(() => {
-    if (finishedKey && poll.data) revalidator.revalidate();
+    if (finishedKey && poll.data) void revalidator.revalidate();
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [finishedKey]);
 
@@ -69,7 +69,7 @@ export function TrackingPanel({ runId, initial, canChange, ready, readyReason }:
         const body = (await res.json().catch(() => null)) as ErrorView | null;
         setControlError(body?.error.message ?? `The server answered ${res.status}.`);
       }
-      poll.load(`/api/v1/runs/${runId}/tracking`);
+      void poll.load(`/api/v1/runs/${runId}/tracking`);
     } catch {
       setControlError("Tankside could not be reached; check the connection and try again.");
     } finally {

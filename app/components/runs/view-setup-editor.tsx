@@ -40,14 +40,14 @@ export function ViewSetupEditor({ imageUrl, width, height, initial, errors }: { 
     }
     const next = [...clicks, p];
     if (tool === "rim" && next.length === 3) {
-      const c = circleThroughThreePoints(next[0], next[1], next[2]);
+      const c = circleThroughThreePoints(next[0]!, next[1]!, next[2]!);
       setClicks([]);
       if (c) setV({ ...v, edge: c, centre: v.centre ?? { x: c.cx, y: c.cy } });
       return;
     }
     if (tool === "scale" && next.length === 2) {
       setClicks([]);
-      setV({ ...v, scalePoints: [next[0], next[1]] });
+      setV({ ...v, scalePoints: [next[0]!, next[1]!] });
       return;
     }
     setClicks(next);

@@ -23,6 +23,10 @@ export function ButtonLink({ tone = "plain", className = "", ...props }: LinkPro
   return <Link className={buttonClass(tone, className)} {...props} />;
 }
 
-export function ButtonA({ tone = "plain", className = "", ...props }: AnchorHTMLAttributes<HTMLAnchorElement> & { tone?: Tone }) {
-  return <a className={buttonClass(tone, className)} {...props} />;
+export function ButtonA({ tone = "plain", className = "", children, ...props }: AnchorHTMLAttributes<HTMLAnchorElement> & { tone?: Tone }) {
+  return (
+    <a className={buttonClass(tone, className)} {...props}>
+      {children}
+    </a>
+  );
 }

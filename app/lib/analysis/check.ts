@@ -293,7 +293,7 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
 
   // Points: keep those with a finite time and position, in time order, one per time.
   // The one place frame times are corrected: the camera's times, rescaled to the reference's.
-  const raw = Array.isArray(input.points) ? (timing ? correctFrameTimes(input.points, timeFactor) : input.points) : [];
+  const raw: readonly TimedPoint[] = Array.isArray(input.points) ? (timing ? correctFrameTimes(input.points, timeFactor) : input.points) : [];
   const usable = raw
     .filter((p) => p && isFiniteNumber(p.t) && isFiniteNumber(p.x) && isFiniteNumber(p.y))
     .map((p) => ({ t: p.t, x: p.x, y: p.y }))
@@ -530,7 +530,7 @@ export function measureOmegaFromMark(
   try {
     if (!centre || !isFiniteNumber(centre.x) || !isFiniteNumber(centre.y)) return none("The rotation centre is missing or not a number.");
     const view: ViewGeometry = { centre, pxPerM: null, mirrored: options.mirrored === true };
-    const usable = (Array.isArray(points) ? points : [])
+    const usable = (Array.isArray(points) ? (points as readonly TimedPoint[]) : [])
       .filter((p) => p && isFiniteNumber(p.t) && isFiniteNumber(p.x) && isFiniteNumber(p.y))
       .sort((a, b) => a.t - b.t);
     const pts: TimedPoint[] = [];

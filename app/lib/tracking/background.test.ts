@@ -39,7 +39,7 @@ function detectionErrors(spec: SyntheticRunSpec, background: "plain" | "float-fr
   const renderer = createSyntheticRenderer(spec);
   const frames = Array.from({ length: spec.frames }, (_, i) => renderer.frame(i));
   const crops = frames.map((f) => cropForPlan(f, plan).data);
-  const samples = backgroundSampleIndices(crops.length).map((i) => crops[i]);
+  const samples = backgroundSampleIndices(crops.length).map((i) => crops[i]!);
   const detector = createDetector(cv, plan);
   try {
     const image = (data: Uint8Array) => ({ data, width: plan.crop.width, height: plan.crop.height, channels: 1 });
@@ -49,13 +49,13 @@ function detectionErrors(spec: SyntheticRunSpec, background: "plain" | "float-fr
         : floatBackground(samples, plan.crop.width, (f, b) => detector.detect(image(f), b), plan.crop, plan.shrink);
     const errors = crops.map((c, i) => {
       const d = detector.detect(image(c), bg)[0]!;
-      return { x: d.x - frames[i].truth[0].x, y: d.y - frames[i].truth[0].y };
+      return { x: d.x - frames[i]!.truth[0]!.x, y: d.y - frames[i]!.truth[0]!.y };
     });
     let ss = 0;
     let lag = 0;
     errors.forEach((e, i) => {
       ss += e.x * e.x + e.y * e.y;
-      if (i > 0) lag += e.x * errors[i - 1].x + e.y * errors[i - 1].y;
+      if (i > 0) lag += e.x * errors[i - 1]!.x + e.y * errors[i - 1]!.y;
     });
     return { rmsPerAxis: Math.sqrt(ss / (2 * errors.length)), lag1: lag / ss };
   } finally {
@@ -84,7 +84,7 @@ describe("the still background behind a slow float on a short stack", () => {
 
   it("leaves covered samples out of the median, and fills in from the surroundings only the pixels covered in too many samples", () => {
     const width = 5;
-    const frames = [10, 12, 11, 200, 13].map((v, j) => Uint8Array.from({ length: 25 }, (_, p) => (p === 12 ? [200, 201, 202, 40, 203][j] : v + (p % 5))));
+    const frames = [10, 12, 11, 200, 13].map((v, j) => Uint8Array.from({ length: 25 }, (_, p) => (p === 12 ? [200, 201, 202, 40, 203][j]! : v + (p % 5))));
     const out = new Uint8Array(25);
     const used = new Uint8Array(25);
     // A disc over the middle pixel in samples 0, 1, 2 and 4 (the float sat there), and over the whole of sample 3.

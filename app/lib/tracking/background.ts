@@ -67,7 +67,7 @@ export function tracerExclusions(
 /** Per-pixel median of equally sized single-channel frames. */
 export function medianBackground(frames: readonly Uint8Array[], exclusions?: ExclusionSet): Uint8Array {
   if (frames.length === 0) throw new Error("A background needs at least one frame.");
-  const out = new Uint8Array(frames[0].length);
+  const out = new Uint8Array(frames[0]!.length);
   medianInto(frames, out, 0, out.length, exclusions);
   return out;
 }
@@ -155,8 +155,8 @@ export function medianInto(
         const col = p - r * width;
         left.fill(0);
         for (let s = 0; s < spanSample.length; s++) {
-          const j = spanSample[s];
-          if (!left[j] && col >= spanFrom[s] && col <= spanTo[s]) {
+          const j = spanSample[s]!;
+          if (!left[j] && col >= spanFrom[s]! && col <= spanTo[s]!) {
             left[j] = 1;
             covered++;
           }
@@ -165,9 +165,9 @@ export function medianInto(
     }
     let count = 0;
     if (covered > 0 && covered < n) {
-      for (let j = 0; j < n; j++) if (!left[j]) insert(values, count++, frames[j][p]);
+      for (let j = 0; j < n; j++) if (!left[j]) insert(values, count++, frames[j]![p]!);
     } else {
-      for (let j = 0; j < n; j++) insert(values, count++, frames[j][p]);
+      for (let j = 0; j < n; j++) insert(values, count++, frames[j]![p]!);
     }
     out[p] = middle(values, count);
     if (used) used[p] = covered >= n ? 0 : count;
@@ -191,7 +191,7 @@ export function fillFromSurroundings(
 ): number {
   const height = Math.floor(background.length / width);
   const unknown: number[] = [];
-  for (let p = 0; p < width * height; p++) if (used[p] < minUsed) unknown.push(p);
+  for (let p = 0; p < width * height; p++) if (used[p]! < minUsed) unknown.push(p);
   if (unknown.length === 0 || unknown.length === width * height) return 0;
   const value = Float32Array.from(background);
   const isUnknown = new Uint8Array(width * height);
@@ -207,7 +207,7 @@ export function fillFromSurroundings(
       let k = 0;
       forNeighbours(p, (q) => {
         if (pending[q] === 0) {
-          sum += value[q];
+          sum += value[q]!;
           k++;
         } else if (pending[q] === 1) {
           pending[q] = 2;
@@ -226,16 +226,16 @@ export function fillFromSurroundings(
       let sum = 0;
       let k = 0;
       forNeighbours(p, (q) => {
-        sum += value[q];
+        sum += value[q]!;
         k++;
       });
-      const step = omega * (sum / k - value[p]);
-      value[p] += step;
+      const step = omega * (sum / k - value[p]!);
+      value[p]! += step;
       change = Math.max(change, Math.abs(step));
     }
     if (change < 0.01) break;
   }
-  for (const p of unknown) background[p] = Math.min(255, Math.max(0, Math.round(value[p])));
+  for (const p of unknown) background[p] = Math.min(255, Math.max(0, Math.round(value[p]!)));
   return unknown.length;
 
   function hasKnownNeighbour(p: number): boolean {
@@ -257,14 +257,14 @@ export function fillFromSurroundings(
 /** Median of the first `count` sorted values; an even count takes the mean of the middle two, rounded. */
 function middle(values: Uint8Array, count: number): number {
   const half = count >> 1;
-  return count % 2 === 1 ? values[half] : (values[half - 1] + values[half] + 1) >> 1;
+  return count % 2 === 1 ? values[half]! : (values[half - 1]! + values[half]! + 1) >> 1;
 }
 
 /** Insertion sort step: n is at most a few dozen and mostly the values are nearly equal. */
 function insert(values: Uint8Array, j: number, v: number): void {
   let k = j - 1;
-  while (k >= 0 && values[k] > v) {
-    values[k + 1] = values[k];
+  while (k >= 0 && values[k]! > v) {
+    values[k + 1] = values[k]!;
     k--;
   }
   values[k + 1] = v;

@@ -55,7 +55,7 @@ function detectStack(spec: SyntheticRunSpec, setup: Partial<TrackingSetup> & Pic
   const frames = Array.from({ length: spec.frames }, (_, i) => renderer.frame(i));
   const crops = frames.map((f) => cropForPlan(f, plan));
   const background =
-    plan.tracer === "float" ? medianBackground(backgroundSampleIndices(crops.length).map((i) => crops[i].data)) : null;
+    plan.tracer === "float" ? medianBackground(backgroundSampleIndices(crops.length).map((i) => crops[i]!.data)) : null;
   const detector = createDetector(cv, plan);
   detectors.push(detector);
   return { perFrame: crops.map((c) => detector.detect(c, background)), truth: frames.map((f) => f.truth) };
@@ -70,8 +70,8 @@ function accuracy({ perFrame, truth }: StackResult): { rmsPx: number; detectedSh
     if (detections.length === 0) return;
     found++;
     extra += detections.length - 1;
-    const d = detections[0];
-    sum += (d.x - truth[i][0].x) ** 2 + (d.y - truth[i][0].y) ** 2;
+    const d = detections[0]!;
+    sum += (d.x - truth[i]![0]!.x) ** 2 + (d.y - truth[i]![0]!.y) ** 2;
   });
   return { rmsPx: Math.sqrt(sum / Math.max(1, found)), detectedShare: found / perFrame.length, extra };
 }

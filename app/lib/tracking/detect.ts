@@ -48,14 +48,14 @@ export function cropForPlan(frame: FrameImage, plan: DetectionPlan): FrameImage 
     if (plan.channels === 1) {
       // Floats are searched on the green channel alone, as the decoder delivers it.
       const green = ch >= 3 ? 1 : 0;
-      for (let col = 0; col < width; col++) out[dst + col] = frame.data[src + col * ch + green];
+      for (let col = 0; col < width; col++) out[dst + col] = frame.data[src + col * ch + green]!;
     } else {
       for (let col = 0; col < width; col++) {
         const s = src + col * ch;
         const d = dst + col * 3;
-        out[d] = frame.data[s];
-        out[d + 1] = frame.data[s + 1];
-        out[d + 2] = frame.data[s + 2];
+        out[d] = frame.data[s]!;
+        out[d + 1] = frame.data[s + 1]!;
+        out[d + 2] = frame.data[s + 2]!;
       }
     }
   }
@@ -96,13 +96,13 @@ function rowSpans(
 /** Median and MAD-based sigma of a histogram whose bin i holds the value i − shift. */
 function robustStats(hist: Uint32Array, shift: number): { median: number; sigma: number } {
   let total = 0;
-  for (let i = 0; i < hist.length; i++) total += hist[i];
+  for (let i = 0; i < hist.length; i++) total += hist[i]!;
   if (total === 0) return { median: 0, sigma: minSigma };
   const half = total / 2;
   let acc = 0;
   let medianBin = 0;
   for (let i = 0; i < hist.length; i++) {
-    acc += hist[i];
+    acc += hist[i]!;
     if (acc >= half) {
       medianBin = i;
       break;
@@ -110,14 +110,14 @@ function robustStats(hist: Uint32Array, shift: number): { median: number; sigma:
   }
   // The MAD from the same histogram: widen a window about the median until it holds half the
   // samples, taking each integer value as spread over ±0.5 so the estimate is not whole levels.
-  let inside = hist[medianBin];
+  let inside = hist[medianBin]!;
   let previous = 0;
   let radius = 0;
   while (inside < half && radius < hist.length) {
     radius++;
     previous = inside;
-    if (medianBin - radius >= 0) inside += hist[medianBin - radius];
-    if (medianBin + radius < hist.length) inside += hist[medianBin + radius];
+    if (medianBin - radius >= 0) inside += hist[medianBin - radius]!;
+    if (medianBin + radius < hist.length) inside += hist[medianBin + radius]!;
   }
   const mad = radius === 0 ? (0.5 * half) / inside : radius - 0.5 + (half - previous) / Math.max(1, inside - previous);
   return { median: medianBin - shift, sigma: Math.max(minSigma, 1.4826 * mad) };
@@ -183,15 +183,15 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     hist.fill(0);
     const img = image.data;
     for (let row = 0; row < height; row += noiseStride) {
-      const a = fullSpans[2 * row];
-      const b = fullSpans[2 * row + 1];
+      const a = fullSpans[2 * row]!;
+      const b = fullSpans[2 * row + 1]!;
       for (let col = a; col < b; col += noiseStride) {
         const p = row * width + col;
         if (background) {
-          hist[img[p] - background[p] + 255]++;
+          hist[img[p]! - background[p]! + 255]!++;
         } else {
-          hsv(img[3 * p], img[3 * p + 1], img[3 * p + 2], colour);
-          hist[Math.round(colour[1])]++;
+          hsv(img[3 * p]!, img[3 * p + 1]!, img[3 * p + 2]!, colour);
+          hist[Math.round(colour[1]!)]!++;
         }
       }
     }
@@ -223,13 +223,13 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
       // Compared as block sums, so no division per pixel.
       const level = (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block;
       for (let sy = 0; sy < sh; sy++) {
-        const a = smallSpans[2 * sy];
-        const b = smallSpans[2 * sy + 1];
+        const a = smallSpans[2 * sy]!;
+        const b = smallSpans[2 * sy + 1]!;
         if (a >= b) continue;
         if (k === 1) {
           const base = sy * width;
           for (let p = base + a, end = base + b; p < end; p++) {
-            if (img[p] - background[p] > level) mark(p - base, sy);
+            if (img[p]! - background[p]! > level) mark(p - base, sy);
           }
           continue;
         }
@@ -237,15 +237,15 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
         for (let ky = 0; ky < k; ky++) {
           const base = (sy * k + ky) * width;
           for (let col = a * k, end = b * k; col < end; col++) {
-            blockSums[(col / k) | 0] += img[base + col] - background[base + col];
+            blockSums[(col / k) | 0]! += img[base + col]! - background[base + col]!;
           }
         }
-        for (let sx = a; sx < b; sx++) if (blockSums[sx] > level) mark(sx, sy);
+        for (let sx = a; sx < b; sx++) if (blockSums[sx]! > level) mark(sx, sy);
       }
     } else {
       for (let sy = 0; sy < sh; sy++) {
-        const a = smallSpans[2 * sy];
-        const b = smallSpans[2 * sy + 1];
+        const a = smallSpans[2 * sy]!;
+        const b = smallSpans[2 * sy + 1]!;
         if (a >= b) continue;
         blockSums.fill(0, 3 * a, 3 * b);
         for (let ky = 0; ky < k; ky++) {
@@ -253,20 +253,20 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
           for (let col = a * k, end = b * k; col < end; col++) {
             const p = base + 3 * col;
             const q = 3 * ((col / k) | 0);
-            blockSums[q] += img[p];
-            blockSums[q + 1] += img[p + 1];
-            blockSums[q + 2] += img[p + 2];
+            blockSums[q]! += img[p]!;
+            blockSums[q + 1]! += img[p + 1]!;
+            blockSums[q + 2]! += img[p + 2]!;
           }
         }
         for (let sx = a; sx < b; sx++) {
-          const r = blockSums[3 * sx] / block;
-          const g = blockSums[3 * sx + 1] / block;
-          const bl = blockSums[3 * sx + 2] / block;
+          const r = blockSums[3 * sx]! / block;
+          const g = blockSums[3 * sx + 1]! / block;
+          const bl = blockSums[3 * sx + 2]! / block;
           const v = Math.max(r, g, bl);
           // Value and saturation reject the water before any hue is worked out.
           if (v < valMin || (255 * (v - Math.min(r, g, bl))) / v < satMin) continue;
           hsv(r, g, bl, colour);
-          if (hueInRange(colour[0], hueMin, hueMax)) mark(sx, sy);
+          if (hueInRange(colour[0]!, hueMin, hueMax)) mark(sx, sy);
         }
       }
     }
@@ -408,8 +408,8 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     let sumY = 0;
     let peak = 0;
     for (let row = row0; row < row1; row++) {
-      const a = Math.max(col0, fullSpans[2 * row]);
-      const b = Math.min(col1, fullSpans[2 * row + 1]);
+      const a = Math.max(col0, fullSpans[2 * row]!);
+      const b = Math.min(col1, fullSpans[2 * row + 1]!);
       const labelRow = Math.min(sh - 1, Math.floor(row / k)) * sw;
       for (let col = a; col < b; col++) {
         const owner = lab[labelRow + Math.min(sw - 1, Math.floor(col / k))];
@@ -417,11 +417,11 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
         const p = row * width + col;
         let signal: number;
         if (background) {
-          signal = img[p] - background[p];
+          signal = img[p]! - background[p]!;
         } else {
-          hsv(img[3 * p], img[3 * p + 1], img[3 * p + 2], colour);
-          if (colour[2] < valMin || !hueInRange(colour[0], hueMin, hueMax)) continue;
-          signal = colour[1];
+          hsv(img[3 * p]!, img[3 * p + 1]!, img[3 * p + 2]!, colour);
+          if (colour[2]! < valMin || !hueInRange(colour[0]!, hueMin, hueMax)) continue;
+          signal = colour[1]!;
         }
         const w = signal - floor;
         if (w <= 0) continue;

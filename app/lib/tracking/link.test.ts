@@ -34,7 +34,7 @@ describe("linking detections into tracks", () => {
     const { tracks } = linkDetections(stack, options);
     expect(tracks).toHaveLength(2);
     for (const track of tracks) {
-      const rising = track.points[0].y < 100;
+      const rising = track.points[0]!.y < 100;
       const line = rising ? a : b;
       track.points.forEach((p, i) => expect([p.x, p.y]).toEqual([...line(i)]));
     }
@@ -45,7 +45,7 @@ describe("linking detections into tracks", () => {
     const stack = frames(...Array.from({ length: 12 }, (_, i) => (i === 5 || i === 6 ? [] : [path(i)])));
     const { tracks } = linkDetections(stack, options);
     expect(tracks).toHaveLength(1);
-    expect(tracks[0].points.map((p) => p.frameIndex)).toEqual([0, 1, 2, 3, 4, 7, 8, 9, 10, 11]);
+    expect(tracks[0]!.points.map((p) => p.frameIndex)).toEqual([0, 1, 2, 3, 4, 7, 8, 9, 10, 11]);
   });
 
   it("does not bridge more missing frames than allowed", () => {
@@ -61,8 +61,8 @@ describe("linking detections into tracks", () => {
     );
     const { tracks } = linkDetections(stack, options);
     expect(tracks).toHaveLength(2);
-    expect(tracks[0].points.every((p) => p.x < 100)).toBe(true);
-    expect(tracks[1].points.every((p) => p.x > 200)).toBe(true);
+    expect(tracks[0]!.points.every((p) => p.x < 100)).toBe(true);
+    expect(tracks[1]!.points.every((p) => p.x > 200)).toBe(true);
   });
 
   it("leaves out tracks shorter than the minimum and counts them", () => {
@@ -70,7 +70,7 @@ describe("linking detections into tracks", () => {
     const stack = frames(...Array.from({ length: 10 }, (_, i) => [[20 + i, 20] as const, i < 3 ? ([150, 150] as const) : null]));
     const { tracks, shortTracksDropped } = linkDetections(stack, options);
     expect(tracks).toHaveLength(1);
-    expect(tracks[0].id).toBe(1);
+    expect(tracks[0]!.id).toBe(1);
     expect(shortTracksDropped).toBe(1);
   });
 });
@@ -103,9 +103,9 @@ describe("linking rendered floats", () => {
     const renderer = createSyntheticRenderer(spec);
     const frames = Array.from({ length: spec.frames }, (_, i) => renderer.frame(i));
     const crops = frames.map((f) => cropForPlan(f, plan));
-    const background = medianBackground(backgroundSampleIndices(crops.length).map((i) => crops[i].data));
+    const background = medianBackground(backgroundSampleIndices(crops.length).map((i) => crops[i]!.data));
     const detector = createDetector(cv, plan);
-    const stack = crops.map((c, i) => ({ frameIndex: i, t: frames[i].t, detections: detector.detect(c, background) }));
+    const stack = crops.map((c, i) => ({ frameIndex: i, t: frames[i]!.t, detections: detector.detect(c, background) }));
     detector.dispose();
     // They meet at the centre at t = 0.78 s (frame 23): a single blob for a few frames.
     expect(stack.slice(21, 27).some((f) => f.detections.length < 2)).toBe(true);
@@ -113,7 +113,8 @@ describe("linking rendered floats", () => {
     const { tracks } = linkDetections(stack, { ...options, maxStepPx: 10.6 });
     expect(tracks).toHaveLength(2);
     const nearest = (p: { x: number; y: number; frameIndex: number }) => {
-      const [a, b] = frames[p.frameIndex].truth;
+      const [a, b] = frames[p.frameIndex]!.truth;
+      if (!a || !b) throw new Error("the stack renders two floats");
       return Math.hypot(p.x - a.x, p.y - a.y) < Math.hypot(p.x - b.x, p.y - b.y) ? 0 : 1;
     };
     for (const track of tracks) {
@@ -123,6 +124,6 @@ describe("linking rendered floats", () => {
       expect(after.length).toBeGreaterThan(14);
       expect(new Set([...before, ...after]).size).toBe(1);
     }
-    expect(new Set(tracks.map((t) => nearest(t.points[0]))).size).toBe(2);
+    expect(new Set(tracks.map((t) => nearest(t.points[0]!))).size).toBe(2);
   });
 });

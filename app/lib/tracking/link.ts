@@ -45,7 +45,7 @@ export function linkDetections(frames: readonly FrameDetections[], options: Link
     const f = frame.frameIndex;
     const still: LiveTrack[] = [];
     for (const track of live) {
-      if (f - track.points[track.points.length - 1].frameIndex > maxGapFrames + 1) finished.push(track);
+      if (f - track.points[track.points.length - 1]!.frameIndex > maxGapFrames + 1) finished.push(track);
       else still.push(track);
     }
     live = still;
@@ -54,7 +54,7 @@ export function linkDetections(frames: readonly FrameDetections[], options: Link
 
     if (live.length > 0 && detections.length > 0) {
       const costs = live.map((track) => {
-        const last = track.points[track.points.length - 1];
+        const last = track.points[track.points.length - 1]!;
         const gap = f - last.frameIndex;
         const px = track.vx === null ? last.x : last.x + track.vx * gap;
         const py = track.vx === null ? last.y : last.y + track.vy * gap;
@@ -65,10 +65,10 @@ export function linkDetections(frames: readonly FrameDetections[], options: Link
         });
       });
       for (const [row, col] of munkres(costs)) {
-        if (costs[row][col] >= forbidden) continue;
-        const track = live[row];
-        const last = track.points[track.points.length - 1];
-        const d = detections[col];
+        if (costs[row]![col]! >= forbidden) continue;
+        const track = live[row]!;
+        const last = track.points[track.points.length - 1]!;
+        const d = detections[col]!;
         const gap = f - last.frameIndex;
         track.vx = (d.x - last.x) / gap;
         track.vy = (d.y - last.y) / gap;
@@ -84,7 +84,7 @@ export function linkDetections(frames: readonly FrameDetections[], options: Link
 
   const kept = finished
     .filter((track) => track.points.length >= minTrackPoints)
-    .sort((a, b) => a.points[0].frameIndex - b.points[0].frameIndex || a.points[0].x - b.points[0].x);
+    .sort((a, b) => a.points[0]!.frameIndex - b.points[0]!.frameIndex || a.points[0]!.x - b.points[0]!.x);
   return {
     tracks: kept.map((track, i) => ({ id: i + 1, points: track.points })),
     shortTracksDropped: finished.length - kept.length,

@@ -47,8 +47,8 @@ describe("tracking quality", () => {
     }));
     const quality = trackingQuality(120, frames, [track], 2);
     expect(quality.framesDetectedShare).toBeCloseTo(90 / 120, 10);
-    expect(quality.tracks[0].spanFrames).toBe(99);
-    expect(quality.tracks[0].detectedShare).toBeCloseTo(90 / 99, 10);
+    expect(quality.tracks[0]!.spanFrames).toBe(99);
+    expect(quality.tracks[0]!.detectedShare).toBeCloseTo(90 / 99, 10);
     expect(quality.longestTrackShare).toBeCloseTo(90 / 120, 10);
     expect(quality.shortTracksDropped).toBe(2);
   });

@@ -13,21 +13,21 @@ const minWindow = 5;
 function solve3(a: number[][], b: number[]): number[] | null {
   for (let c = 0; c < 3; c++) {
     let pivot = c;
-    for (let r = c + 1; r < 3; r++) if (Math.abs(a[r][c]) > Math.abs(a[pivot][c])) pivot = r;
-    if (Math.abs(a[pivot][c]) < 1e-12) return null;
-    [a[c], a[pivot]] = [a[pivot], a[c]];
-    [b[c], b[pivot]] = [b[pivot], b[c]];
+    for (let r = c + 1; r < 3; r++) if (Math.abs(a[r]![c]!) > Math.abs(a[pivot]![c]!)) pivot = r;
+    if (Math.abs(a[pivot]![c]!) < 1e-12) return null;
+    [a[c], a[pivot]] = [a[pivot]!, a[c]!];
+    [b[c], b[pivot]] = [b[pivot]!, b[c]!];
     for (let r = c + 1; r < 3; r++) {
-      const m = a[r][c] / a[c][c];
-      for (let k = c; k < 3; k++) a[r][k] -= m * a[c][k];
-      b[r] -= m * b[c];
+      const m = a[r]![c]! / a[c]![c]!;
+      for (let k = c; k < 3; k++) a[r]![k]! -= m * a[c]![k]!;
+      b[r]! -= m * b[c]!;
     }
   }
   const x = [0, 0, 0];
   for (let r = 2; r >= 0; r--) {
-    let s = b[r];
-    for (let k = r + 1; k < 3; k++) s -= a[r][k] * x[k];
-    x[r] = s / a[r][r];
+    let s = b[r]!;
+    for (let k = r + 1; k < 3; k++) s -= a[r]![k]! * x[k]!;
+    x[r] = s / a[r]![r]!;
   }
   return x;
 }
@@ -49,31 +49,31 @@ function residuals(points: readonly TrackPoint[]): { sum: number; count: number 
     const tMean = mean(win.map((p) => p.t));
     const span = Math.max(1e-9, Math.max(...win.map((p) => Math.abs(p.t - tMean))));
     const u = win.map((p) => (p.t - tMean) / span);
-    const s = [0, 0, 0, 0, 0];
-    for (const v of u) for (let k = 0; k < 5; k++) s[k] += v ** k;
+    const s: [number, number, number, number, number] = [0, 0, 0, 0, 0];
+    for (const v of u) for (let k = 0; k < 5; k++) s[k]! += v ** k;
     const normal = () => [
       [s[0], s[1], s[2]],
       [s[1], s[2], s[3]],
       [s[2], s[3], s[4]],
     ];
-    const ui = (points[i].t - tMean) / span;
+    const ui = (points[i]!.t - tMean) / span;
     const row = [1, ui, ui * ui];
     const inverseRow = solve3(normal(), [...row]);
     if (!inverseRow) continue;
-    const leverage = row[0] * inverseRow[0] + row[1] * inverseRow[1] + row[2] * inverseRow[2];
+    const leverage = row[0]! * inverseRow[0]! + row[1]! * inverseRow[1]! + row[2]! * inverseRow[2]!;
     if (leverage >= 1 - 1e-9) continue;
     let r2 = 0;
     for (const axis of ["x", "y"] as const) {
-      const rhs = [0, 0, 0];
+      const rhs: [number, number, number] = [0, 0, 0];
       win.forEach((p, j) => {
         rhs[0] += p[axis];
-        rhs[1] += p[axis] * u[j];
-        rhs[2] += p[axis] * u[j] * u[j];
+        rhs[1] += p[axis] * u[j]!;
+        rhs[2] += p[axis] * u[j]! * u[j]!;
       });
       const c = solve3(normal(), rhs);
       if (!c) continue;
-      const fitted = c[0] + c[1] * ui + c[2] * ui * ui;
-      r2 += (points[i][axis] - fitted) ** 2;
+      const fitted = c[0]! + c[1]! * ui + c[2]! * ui * ui;
+      r2 += (points[i]![axis] - fitted) ** 2;
     }
     sum += r2 / (1 - leverage);
     count++;
@@ -97,8 +97,8 @@ export function trackingQuality(
   let sum = 0;
   let count = 0;
   const perTrack: TrackQuality[] = tracks.map((track) => {
-    const first = track.points[0].frameIndex;
-    const last = track.points[track.points.length - 1].frameIndex;
+    const first = track.points[0]!.frameIndex;
+    const last = track.points[track.points.length - 1]!.frameIndex;
     const spanFrames = last - first + 1;
     const r = residuals(track.points);
     sum += r.sum;

@@ -31,10 +31,10 @@ function angleFromAbove(p: { x: number; y: number }, c: { x: number; y: number }
 
 describe("synthetic frame stacks (right-handed frame seen from above, image y down: common practice)", () => {
   it("draws an inertial circle clockwise seen from above for Ω > 0, one turn per π/Ω", () => {
-    const path = base.tracers[0].path;
+    const path = base.tracers[0]!.path;
     const circleCentre = { x: 80 + 0.01 * 400, y: 60 + 0.02 * 400 };
-    const a0 = angleFromAbove(tracerPosition(base, base.tracers[0], 0), circleCentre);
-    const a1 = angleFromAbove(tracerPosition(base, base.tracers[0], 0.1), circleCentre);
+    const a0 = angleFromAbove(tracerPosition(base, base.tracers[0]!, 0), circleCentre);
+    const a1 = angleFromAbove(tracerPosition(base, base.tracers[0]!, 0.1), circleCentre);
     expect(wrapAngle(a1 - a0)).toBeCloseTo(-2 * omega * 0.1, 10);
     const period = Math.PI / omega;
     const start = pathPosition(path, omega, 0);
@@ -49,12 +49,12 @@ describe("synthetic frame stacks (right-handed frame seen from above, image y do
       camera: "lab",
       tracers: [{ kind: "float", path: { kind: "still", at: { x: 0.1, y: 0 } }, sigmaPx: 2, brightness: 100 }],
     };
-    const a0 = angleFromAbove(tracerPosition(spec, spec.tracers[0], 0), spec.centre);
-    const a1 = angleFromAbove(tracerPosition(spec, spec.tracers[0], 0.2), spec.centre);
+    const a0 = angleFromAbove(tracerPosition(spec, spec.tracers[0]!, 0), spec.centre);
+    const a1 = angleFromAbove(tracerPosition(spec, spec.tracers[0]!, 0.2), spec.centre);
     expect(wrapAngle(a1 - a0)).toBeCloseTo(omega * 0.2, 10);
     const mirrored = { ...spec, mirrored: true };
-    const m0 = angleFromAbove(tracerPosition(mirrored, spec.tracers[0], 0), spec.centre);
-    const m1 = angleFromAbove(tracerPosition(mirrored, spec.tracers[0], 0.2), spec.centre);
+    const m0 = angleFromAbove(tracerPosition(mirrored, spec.tracers[0]!, 0), spec.centre);
+    const m1 = angleFromAbove(tracerPosition(mirrored, spec.tracers[0]!, 0.2), spec.centre);
     expect(wrapAngle(m1 - m0)).toBeCloseTo(-omega * 0.2, 10);
   });
 
@@ -64,8 +64,8 @@ describe("synthetic frame stacks (right-handed frame seen from above, image y do
     const c = createSyntheticRenderer({ ...base, seed: 4 }).frame(2);
     expect(Buffer.from(a.data).equals(Buffer.from(b.data))).toBe(true);
     expect(Buffer.from(a.data).equals(Buffer.from(c.data))).toBe(false);
-    const { x, y } = a.truth[0];
-    const at = (col: number, row: number) => a.data[(row * base.width + col) * 3 + 1];
+    const { x, y } = a.truth[0]!;
+    const at = (col: number, row: number) => a.data[(row * base.width + col) * 3 + 1]!;
     expect(at(Math.round(x), Math.round(y))).toBeGreaterThan(at(Math.round(x) + 8, Math.round(y)) + 60);
   });
 });

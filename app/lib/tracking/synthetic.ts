@@ -175,7 +175,7 @@ export function createSyntheticRenderer(spec: SyntheticRunSpec): SyntheticRender
       const at = tableToView(spec, m, t);
       stamp(at.x, at.y, markRadiusPx + 2, (p, dx, dy) => {
         const cover = Math.min(1, Math.max(0, markRadiusPx + 0.5 - Math.hypot(dx, dy)));
-        for (let c = 0; c < 3; c++) target[p + c] += (markColour[c] - target[p + c]) * cover;
+        for (let c = 0; c < 3; c++) target[p + c]! += (markColour[c]! - target[p + c]!) * cover;
       });
     }
   };
@@ -225,24 +225,24 @@ export function createSyntheticRenderer(spec: SyntheticRunSpec): SyntheticRender
             const u = dx * ca + dy * sa;
             const v = -dx * sa + dy * ca;
             const alpha = tracer.opacity * Math.exp(-0.5 * ((u / sAlong) ** 2 + (v / sAcross) ** 2));
-            for (let c = 0; c < 3; c++) work[p + c] += (tracer.colour[c] - work[p + c]) * alpha;
+            for (let c = 0; c < 3; c++) work[p + c]! += (tracer.colour[c]! - work[p + c]!) * alpha;
           });
         } else {
           const s2 = 2 * tracer.sigmaPx * tracer.sigmaPx;
           stamp(at.x, at.y, 5 * tracer.sigmaPx, (p, dx, dy) => {
             const add = tracer.brightness * Math.exp(-(dx * dx + dy * dy) / s2);
-            work[p] += add;
-            work[p + 1] += add;
-            work[p + 2] += add;
+            work[p]! += add;
+            work[p + 1]! += add;
+            work[p + 2]! += add;
           });
         }
       }
       const data = new Uint8Array(w * h * 3);
       let state = (Math.imul(seed, 0x9e3779b1) ^ Math.imul(index + 1, 0x85ebca6b)) >>> 0 || 1;
       for (let p = 0, q = 0; p < w * h; p++, q += 3) {
-        const lit = light[p];
+        const lit = light[p]!;
         // + 0.5 so that truncating to a byte below rounds.
-        const shine = glare[p] + 0.5;
+        const shine = glare[p]! + 0.5;
         // Two xorshift steps give four 16-bit indices into the Gaussian table; three are used.
         state ^= state << 13;
         state ^= state >>> 17;
@@ -251,9 +251,9 @@ export function createSyntheticRenderer(spec: SyntheticRunSpec): SyntheticRender
         state ^= state << 13;
         state ^= state >>> 17;
         state ^= state << 5;
-        const r = work[q] * lit + shine + noiseSigma * noise[first & 0xffff];
-        const g = work[q + 1] * lit + shine + noiseSigma * noise[first >>> 16];
-        const b = work[q + 2] * lit + shine + noiseSigma * noise[state & 0xffff];
+        const r = work[q]! * lit + shine + noiseSigma * noise[first & 0xffff]!;
+        const g = work[q + 1]! * lit + shine + noiseSigma * noise[first >>> 16]!;
+        const b = work[q + 2]! * lit + shine + noiseSigma * noise[state & 0xffff]!;
         data[q] = r <= 0 ? 0 : r >= 255 ? 255 : r | 0;
         data[q + 1] = g <= 0 ? 0 : g >= 255 ? 255 : g | 0;
         data[q + 2] = b <= 0 ? 0 : b >= 255 ? 255 : b | 0;

@@ -45,6 +45,7 @@ export const runFiltersSchema = z
       from: day("from"),
       to: day("to"),
       // Control characters match nothing a person typed; a NUL above all: Sequelize writes WHERE values into the SQL text, which SQLite ends at a NUL.
+      // eslint-disable-next-line no-control-regex -- matching control characters is the point of this pattern
       q: z.string().trim().max(100, "Search text (q) is limited to 100 characters.").regex(/^[^\u0000-\u001f\u007f]*$/, "Search text (q) cannot contain control characters.").optional(),
       sort: z.enum(runSortFields, { error: `sort must be one of ${runSortFields.join(", ")}.` }).default("createdAt"),
       dir: z.enum(["asc", "desc"], { error: "dir must be asc or desc." }).default("desc"),
@@ -82,12 +83,12 @@ export function parseRunFilters(params: URLSearchParams): ParsedRunFilters {
     const values = params.getAll(key);
     if (values.length > 1) return { ok: false, field: key, message: `Give ${key} once; it was given ${values.length} times.` };
     // An empty known field is "any" (an untouched select); an unknown one is refused even when empty.
-    if (values[0] !== "" || !knownKeys.has(key)) raw[key] = values[0];
+    if (values[0] !== "" || !knownKeys.has(key)) raw[key] = values[0]!;
   }
   const result = runFiltersSchema.safeParse(raw);
   if (result.success) return { ok: true, filters: result.data };
-  const issue = result.error.issues[0];
-  const field = issue.code === "unrecognized_keys" ? issue.keys[0] : typeof issue.path[0] === "string" ? issue.path[0] : null;
+  const issue = result.error.issues[0]!;
+  const field = issue.code === "unrecognized_keys" ? (issue.keys[0] ?? null) : typeof issue.path[0] === "string" ? issue.path[0] : null;
   return { ok: false, field, message: issue.message };
 }
 

@@ -48,7 +48,7 @@ describe("account page: the current-password check is throttled like sign-in (OW
     expect(retryAfter).toBeLessThanOrEqual(900);
     expect(fieldErrors(blocked).current).toEqual(["Too many failed attempts. Wait 15 minutes and try again."]);
     // The route keeps that header on the way out (React Router drops action headers other than cookies by default).
-    expect(headers({ actionHeaders: blocked.headers, loaderHeaders: new Headers(), parentHeaders: new Headers(), errorHeaders: undefined } as never).get("Retry-After")).toBe(String(retryAfter));
+    expect(headers({ actionHeaders: blocked.headers, loaderHeaders: new Headers(), parentHeaders: new Headers(), errorHeaders: undefined }).get("Retry-After")).toBe(String(retryAfter));
     expect(await verifyPassword((await User.findByPk(user.id))!.passwordHash!, PASSWORD)).toBe(true);
   });
 

@@ -152,7 +152,7 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
     const zips = await Promise.all(
       runs.map(async (_, k) => storedZip(await Promise.all(Array.from({ length: 20 }, async (_, i) => ({ name: `frame_${i + 1}.png`, data: await png(2000 + k * 20 + i) }))))),
     );
-    const responses = await Promise.all(runs.map((run, k) => call(framesAction, upload(run.id, tokens.tech, `stack_${k}.zip`, zips[k]), { runId: String(run.id) })));
+    const responses = await Promise.all(runs.map((run, k) => call(framesAction, upload(run.id, tokens.tech, `stack_${k}.zip`, zips[k]!), { runId: String(run.id) })));
     const bodies = await Promise.all(responses.map((r) => r.clone().json()));
     expect({ statuses: tally(responses), framesRefused: bodies.reduce((n, b) => n + (b.rejected?.length ?? 0), 0) }).toEqual({ statuses: { 201: 10 }, framesRefused: 0 });
     expect(await Frame.count({ where: { runId: runs.map((r) => r.id) } })).toBe(200);
@@ -172,16 +172,16 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
     const images = await Promise.all(Array.from({ length: 10 }, (_, i) => png(5000 + i)));
     const body = runInput(lab, { purpose: "Logged under load" });
     const kinds = [
-      (k: number) => call(createRunAction, json("POST", "/api/v1/runs", tokens.tech, body)),
-      (k: number) => call(runAction, json("PATCH", `/api/v1/runs/${runs[k % 5].id}`, tokens.tech, { waterTemperatureC: 18 + k / 10, notes: `edit ${k}` }), { id: String(runs[k % 5].id) }),
+      () => call(createRunAction, json("POST", "/api/v1/runs", tokens.tech, body)),
+      (k: number) => call(runAction, json("PATCH", `/api/v1/runs/${runs[k % 5]!.id}`, tokens.tech, { waterTemperatureC: 18 + k / 10, notes: `edit ${k}` }), { id: String(runs[k % 5]!.id) }),
       (k: number) => call(bookingsAction, json("POST", "/api/v1/bookings", tokens.instructor, { equipmentId: lab.tableA.id, start: hoursFromNow(200 + 3 * k).toISOString(), end: hoursFromNow(201 + 3 * k).toISOString(), purpose: `Asked under load ${k}` })),
-      (k: number) => call(decisionAction, json("POST", `/api/v1/bookings/${requested[k].id}/approve`, tokens.manager, {}), { id: String(requested[k].id) }),
+      (k: number) => call(decisionAction, json("POST", `/api/v1/bookings/${requested[k]!.id}/approve`, tokens.manager, {}), { id: String(requested[k]!.id) }),
       (k: number) =>
-        call(calibrationAction, json("PUT", `/api/v1/calibrations/${cals[k % 5].id}`, tokens.tech, { kind: "rate", equipmentId: lab.tableB.id, meterId: meter.id, performedOn: "2026-11-21", notes: `edit ${k}`, readings: [5, 10, 15, 20].map((s) => ({ setRpm: s, measuredRpm: s * (1 + k / 1000) })) }), { id: String(cals[k % 5].id) }),
-      (k: number) => call(framesAction, upload(runs[k % 5].id, tokens.tech, `mixed_${k}.png`, images[k]), { runId: String(runs[k % 5].id) }),
+        call(calibrationAction, json("PUT", `/api/v1/calibrations/${cals[k % 5]!.id}`, tokens.tech, { kind: "rate", equipmentId: lab.tableB.id, meterId: meter.id, performedOn: "2026-11-21", notes: `edit ${k}`, readings: [5, 10, 15, 20].map((s) => ({ setRpm: s, measuredRpm: s * (1 + k / 1000) })) }), { id: String(cals[k % 5]!.id) }),
+      (k: number) => call(framesAction, upload(runs[k % 5]!.id, tokens.tech, `mixed_${k}.png`, images[k]!), { runId: String(runs[k % 5]!.id) }),
     ];
     // 50 requests, the six kinds interleaved (9 runs logged, 9 run edits, 8 of each other kind).
-    const responses = await Promise.all(Array.from({ length: 50 }, (_, i) => kinds[i % 6](Math.floor(i / 6))));
+    const responses = await Promise.all(Array.from({ length: 50 }, (_, i) => kinds[i % 6]!(Math.floor(i / 6))));
     const failed = responses.filter((r) => r.status < 200 || r.status >= 300);
     expect(tally(failed)).toEqual({});
     expect(await serverErrors(responses)).toEqual([]);
@@ -194,7 +194,7 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
   });
 
   it("a frame of a ZIP that cannot be stored (the database fails) is the server's error, not a damaged entry", async () => {
-    const [run] = await runsOneByOne(1, () => "Zip with a failing store");
+    const run = (await runsOneByOne(1, () => "Zip with a failing store"))[0]!;
     const archive = storedZip([{ name: "frame_1.png", data: await png(9001) }, { name: "frame_2.png", data: await png(9002) }]);
     const failing = vi.spyOn(Frame, "create").mockRejectedValueOnce(new Error("disk I/O error"));
     try {

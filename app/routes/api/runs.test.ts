@@ -230,7 +230,7 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
     await ViewSetup.create(setupRow(run));
     const lines = await csv();
     expect(lines[0]).toBe("track_id,t_s,x_px,y_px,x_m,y_m");
-    const [, , , , xm, ym] = lines[2].split(",").map(Number);
+    const [, , , , xm, ym] = lines[2]!.split(",").map(Number);
     expect(xm).toBeCloseTo(0.01, 9);
     expect(ym).toBeCloseTo(0.11, 9);
   });
@@ -239,7 +239,7 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
     // Ω = 1.05 rad/s from the stored check; after 0.5 s the frame has turned 0.525 rad.
     const { run } = await checkedRun({ cameraMode: "lab" }, { points: [[0, 740, 360, 0], [0.5, 740, 360, 15]] });
     const text = await (await call(csvLoader, get(`/api/v1/runs/${run.id}/tracks.csv`, techToken), { id: String(run.id) })).text();
-    const [, , , , xm, ym] = text.trim().split("\r\n")[2].split(",").map(Number);
+    const [, , , , xm, ym] = text.trim().split("\r\n")[2]!.split(",").map(Number);
     expect(xm).toBeCloseTo(0.1 * Math.cos(-0.525), 8);
     expect(ym).toBeCloseTo(0.1 * Math.sin(-0.525), 8);
   });

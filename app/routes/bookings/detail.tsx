@@ -11,6 +11,7 @@ import { Button, ButtonA, ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
+import { formText } from "~/lib/form-text";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Booking #${data?.booking.id ?? ""} · Tankside` }];
 
@@ -27,7 +28,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireUser(request);
   const id = parseId(request, params.id, "That booking");
   const form = await readForm(request);
-  const intent = String(form.get("intent") ?? "");
+  const intent = formText(form, "intent");
   const mailNote = (mail: { queued: boolean }) => (mail.queued ? {} : { problem: "Saved, but there was nobody to e-mail about it." });
   try {
     if (intent === "approve") {
@@ -54,7 +55,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 export default function BookingDetail({ loaderData, actionData }: Route.ComponentProps) {
   const time = useLabTime();
   const { booking: b, user } = loaderData;
-  const outcome = (actionData ?? {}) as Outcome;
+  const outcome = (actionData ?? {});
   const isManager = user.role === "lab_manager";
   const open = b.state === "requested" || b.state === "approved";
   const canCancel = open && (isManager || b.requesterId === user.id) && new Date(b.end).getTime() > loaderData.now;

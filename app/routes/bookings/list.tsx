@@ -32,6 +32,7 @@ import { Button, ButtonA } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
 import { Notice, FormProblem } from "~/components/ui/notice";
+import { formText } from "~/lib/form-text";
 
 export const meta: Route.MetaFunction = () => [{ title: "Bookings · Tankside" }];
 export const links: Route.LinksFunction = () => [
@@ -94,7 +95,7 @@ type Outcome = { request?: SubmissionResult<string[]>; notice?: string; problem?
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
   const form = await readForm(request);
-  const intent = String(form.get("intent") ?? "");
+  const intent = formText(form, "intent");
   const id = Number(form.get("bookingId"));
   const mailNote = (mail: { queued: boolean }, who: string) => (mail.queued ? {} : { problem: `Saved, but no e-mail could be addressed to ${who}.` });
   try {
@@ -165,8 +166,10 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
     onValidate: ({ formData }) => parseWithZod(formData, { schema: bookingRequestSchema }),
     defaultValue: { equipmentId: String(bookable.find((i) => i.kind === "table")?.id ?? ""), start: loaderData.defaults.start, end: loaderData.defaults.end },
   });
-  const [chosen, setChosen] = useState(String(fields.equipmentId.initialValue ?? ""));
+  const [chosen, setChosen] = useState(typeof fields.equipmentId.initialValue === "string" ? fields.equipmentId.initialValue : "");
   const [rate, setRate] = useState("");
+  // The moment the page was drawn: which bookings have ended, read once rather than on every render.
+  const [now] = useState(() => Date.now());
   const [depth, setDepth] = useState("");
   const [start, setStart] = useState(String(fields.start.initialValue ?? ""));
   const chosenItem = items.find((i) => String(i.id) === chosen);
@@ -288,7 +291,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
               <tbody>
                 {bookings.map((b) => {
                   const open = b.state === "requested" || b.state === "approved";
-                  const canCancel = open && (isManager || b.requesterId === user.id) && new Date(b.end).getTime() > Date.now();
+                  const canCancel = open && (isManager || b.requesterId === user.id) && new Date(b.end).getTime() > now;
                   return (
                     <tr key={b.id} className="border-b border-line align-top" data-testid={`booking-${b.id}`}>
                       <td className="py-3 pr-3">

@@ -16,6 +16,7 @@ import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { StandingTag, calibrationResult } from "~/components/calibration-facts";
 import { CalibrationUploader } from "~/components/calibration-uploader";
+import { formText } from "~/lib/form-text";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? `${calibrationKindLabels[data.record.kind]} #${data.record.id}` : "Calibration"} · Tankside` }];
 export const links: Route.LinksFunction = () => [
@@ -34,7 +35,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const manager = await requireCapability(request, "sign_off_calibration");
   const id = parseId(request, params.id, "That calibration record");
-  const intent = String((await readForm(request)).get("intent") ?? "");
+  const intent = formText(await readForm(request), "intent");
   if (intent !== "sign-off") return data({ problem: "Unknown action." }, { status: 400 });
   try {
     await signOffCalibration(id, manager);

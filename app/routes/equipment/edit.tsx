@@ -76,7 +76,7 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
         }
       : { kind: "table", status: "in_service" },
   });
-  const [kind, setKind] = useState<EquipmentKind>((item?.kind ?? "table") as EquipmentKind);
+  const [kind, setKind] = useState<EquipmentKind>((item?.kind ?? "table"));
   const text = (name: keyof typeof fields, label: string, extra: Record<string, unknown> = {}) => {
     const f = fields[name];
     return <TextField label={label} name={f.name} key={f.key} defaultValue={f.initialValue as string | undefined} error={f.errors} {...extra} />;
@@ -94,7 +94,7 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
           </SelectField>
           {item ? <input type="hidden" name={fields.kind.name} value={item.kind} /> : null}
           {text("name", "Name", { maxLength: 120, placeholder: "e.g. Table B (west bench)" })}
-          <SelectField label="Status" name={fields.status.name} defaultValue={fields.status.initialValue as string | undefined} error={fields.status.errors}>
+          <SelectField label="Status" name={fields.status.name} defaultValue={fields.status.initialValue} error={fields.status.errors}>
             {equipmentStatuses.map((s) => (
               <option key={s} value={s}>{statusLabels[s]}</option>
             ))}
@@ -118,7 +118,7 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
           {kind === "camera" ? text("nominalFrameRateFps", "Nominal frame rate", { unit: "frames/s", inputMode: "decimal" }) : null}
           {kind === "camera" ? text("scaleTolerancePct", "Scale tolerance", { unit: "%", inputMode: "decimal", hint: "A run whose view setup scale differs from the scale calibration in force by more than this share is flagged (default 1 %)." }) : null}
           {kind === "rate_meter" ? (
-            <SelectField label="Type" name={fields.meterType.name} defaultValue={String(fields.meterType.initialValue ?? "tachometer")}>
+            <SelectField label="Type" name={fields.meterType.name} defaultValue={typeof fields.meterType.initialValue === "string" ? fields.meterType.initialValue : "tachometer"}>
               {meterTypes.map((m) => (
                 <option key={m} value={m}>{m}</option>
               ))}

@@ -11,6 +11,7 @@ import { Button } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { SelectField, TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
+import { formText } from "~/lib/form-text";
 
 export const meta: Route.MetaFunction = () => [{ title: "People · Tankside" }];
 
@@ -28,7 +29,7 @@ type Outcome = { notice?: string; problem?: string };
 export async function action({ request }: Route.ActionArgs) {
   const me = await requireRole(request, "lab_manager");
   const form = await readForm(request);
-  const intent = String(form.get("intent") ?? "");
+  const intent = formText(form, "intent");
   try {
     if (intent === "invite") {
       const submission = parseWithZod(form, { schema: inviteSchema });
@@ -44,7 +45,7 @@ export async function action({ request }: Route.ActionArgs) {
     const userId = Number(form.get("userId"));
     if (intent === "role") {
       const parsed = roleChangeSchema.safeParse({ userId, role: form.get("role") });
-      if (!parsed.success) return data({ problem: parsed.error.issues[0].message }, { status: 400 });
+      if (!parsed.success) return data({ problem: parsed.error.issues[0]!.message }, { status: 400 });
       await changeRole(parsed.data.userId, parsed.data.role);
       return { notice: "Role changed." };
     }

@@ -32,12 +32,13 @@ describe("frame files missing from storage", () => {
     const run = await createRun(lab.runInput(), lab.tech);
     for (const i of [1, 2, 3]) await receiveFrameFile(run, new File([new Uint8Array(await png(i))], `frame_${i}.png`), null);
     const [first, second] = await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] });
+    if (!first || !second) throw new Error("three frames were stored just above");
     await store().delete(runKey(run.id, first.storedName));
     await store().delete(runKey(run.id, second.thumbName!));
 
     const call = async (frame: Frame, query = "") => {
       try {
-        return (await frameImageLoader({ request: await signedIn(`/runs/${run.id}/frames/${frame.id}/image${query}`, lab.tech.id), params: { id: String(run.id), frameId: String(frame.id) }, context: {} } as never)) as Response;
+        return (await frameImageLoader({ request: await signedIn(`/runs/${run.id}/frames/${frame.id}/image${query}`, lab.tech.id), params: { id: String(run.id), frameId: String(frame.id) }, context: {} } as never));
       } catch (thrown) {
         if (thrown instanceof Response) return thrown;
         throw thrown;

@@ -45,6 +45,7 @@ import {
   type RunFilters,
   type RunSortField,
 } from "~/lib/validation/run-filters";
+import { formText } from "~/lib/form-text";
 
 export const meta: Route.MetaFunction = () => [{ title: "Runs · Tankside" }];
 
@@ -72,7 +73,7 @@ export async function action({ request }: Route.ActionArgs) {
   if (form.get("intent") !== "columns") return data({ ok: false, message: "Unknown action." }, { status: 400 });
   let hidden: unknown;
   try {
-    hidden = JSON.parse(String(form.get("hidden") ?? "[]"));
+    hidden = JSON.parse(formText(form, "hidden", "[]"));
   } catch {
     return data({ ok: false, message: "The column choice could not be read." }, { status: 400 });
   }
@@ -134,21 +135,25 @@ function visibilityOf(hidden: readonly string[]): ColumnVisibilityState {
 
 const apply = <T,>(updater: Updater<T>, current: T): T => (typeof updater === "function" ? (updater as (old: T) => T)(current) : updater);
 
+/** One empty list for every render, so the table does not see new data while a page loads. */
+const noRows: RunListItem[] = [];
+
 export default function RunsList({ loaderData }: Route.ComponentProps) {
   const location = useLocation();
   const [searchParams, setSearchParams] = useSearchParams();
   const rows = useFetcher<typeof rowsLoader>();
   const saveColumns = useFetcher<typeof action>();
   const loadedFor = useRef(location.search);
+  const loadRows = rows.load;
 
   useEffect(() => {
     // Back/forward and filter changes alike: fetch the page the address describes, keeping the old one on screen meanwhile.
     if (loadedFor.current === location.search) return;
     loadedFor.current = location.search;
-    rows.load(`/runs/rows${location.search}`);
-  }, [location.search]);
+    void loadRows(`/runs/rows${location.search}`);
+  }, [location.search, loadRows]);
 
-  const result: PageResult = (rows.data as PageResult | undefined) ?? loaderData.result;
+  const result: PageResult = (rows.data) ?? loaderData.result;
   const parsed = parseRunFilters(searchParams);
   const filters: RunFilters = parsed.ok
     ? parsed.filters
@@ -161,12 +166,11 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
 
   const sorting: SortingState = [{ id: filters.sort === "id" ? "id" : filters.sort, desc: filters.dir === "desc" }];
   const pagination: PaginationState = { pageIndex: filters.page - 1, pageSize: filters.pageSize };
-  const empty = useRef<RunListItem[]>([]).current;
 
   const table = useTable({
     features,
     columns,
-    data: result.page?.items ?? empty,
+    data: result.page?.items ?? noRows,
     getRowId: (r) => String(r.id),
     state: { sorting, pagination, columnVisibility: visibilityOf(hidden) },
     manualSorting: true,
@@ -180,13 +184,13 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
     },
     onPaginationChange: (updater) => {
       const next = apply(updater, pagination);
-      go({ page: next.pageIndex + 1, pageSize: next.pageSize as RunFilters["pageSize"] });
+      go({ page: next.pageIndex + 1, pageSize: next.pageSize });
     },
     onColumnVisibilityChange: (updater) => {
       const next = apply(updater, visibilityOf(hidden));
       const nextHidden = runTableColumns.map((c) => c.id as string).filter((id) => next[id] === false);
       setHidden(nextHidden);
-      saveColumns.submit({ intent: "columns", hidden: JSON.stringify(nextHidden) }, { method: "post" });
+      void saveColumns.submit({ intent: "columns", hidden: JSON.stringify(nextHidden) }, { method: "post" });
     },
   });
 
@@ -194,7 +198,7 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
     event.preventDefault();
     const form = new FormData(event.currentTarget);
     const text = (k: string) => {
-      const v = String(form.get(k) ?? "").trim();
+      const v = formText(form, k).trim();
       return v === "" ? undefined : v;
     };
     const num = (k: string) => (text(k) ? Number(text(k)) : undefined);

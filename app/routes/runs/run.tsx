@@ -63,7 +63,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
       <PageHeader
         title={
           <span className="flex flex-wrap items-center gap-3">
-            {runLabel(run.id)} <RunStateTag state={run.state as RunState} /> <VerdictTag verdict={run.verdict} outOfDate={Boolean(d.checkOutOfDate)} />
+            {runLabel(run.id)} <RunStateTag state={run.state} /> <VerdictTag verdict={run.verdict} outOfDate={Boolean(d.checkOutOfDate)} />
           </span>
         }
         subtitle={`${run.purpose} · logged by ${d.technician?.name ?? "?"} on ${time.dateTime(run.createdAt)}`}

@@ -7,7 +7,7 @@ import { createElement } from "react";
 import { renderToString } from "react-dom/server";
 import { createRoutesStub } from "react-router";
 import { DeleteObjectCommand, ListObjectsV2Command, S3Client } from "@aws-sdk/client-s3";
-import { CalibrationAttachment, Equipment, Frame, Run, TrackingJob, ViewSetup } from "~/.server/db";
+import { CalibrationAttachment, Equipment, Frame, TrackingJob, ViewSetup } from "~/.server/db";
 import { env } from "~/.server/env";
 import { smallLab } from "~/.server/test-support";
 import { createRun } from "~/.server/runs/service";
@@ -190,7 +190,7 @@ async function trackableRun(frames: number) {
     await receiveFrameFile(run, new File([new Uint8Array(jpeg)], `frame_${f.index}.jpg`), null);
   });
   await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: centre.x, tankEdgeYPx: centre.y, tankEdgeRPx: 105, scalePxPerM: 600, scalePoints: null, mirrored: false, createdById: lab.tech.id });
-  return (await run.reload()) as Run;
+  return (await run.reload());
 }
 
 async function scratchFoldersOf(job: TrackingJob) {

@@ -21,7 +21,7 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `View setup ${da
 function toValues(s: ViewSetup): SetupValues {
   let scalePoints: SetupValues["scalePoints"] = null;
   try {
-    scalePoints = s.scalePoints ? JSON.parse(s.scalePoints) : null;
+    scalePoints = s.scalePoints ? (JSON.parse(s.scalePoints) as SetupValues["scalePoints"]) : null;
   } catch {
     scalePoints = null;
   }

@@ -238,7 +238,7 @@ describe("due list and reminders", () => {
     process.env.TZ = "America/Los_Angeles";
     await setLabTimeZone("Pacific/Auckland");
     try {
-      const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Table B (west bench) — Ørsted rig" } as never);
+      const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Table B (west bench) — Ørsted rig" });
       const dueOn = toDayString(new Date(Date.now() + 4 * 86_400_000), "Pacific/Auckland");
       const c = await createCalibration(rateInput({ equipmentId: t.id, performedOn: daysAgo(176), dueOn }), tech);
       await signOffCalibration(c.id, managerUser());

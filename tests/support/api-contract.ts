@@ -20,7 +20,7 @@ const doc = openApiDocument as unknown as Doc;
 const ajv = new Ajv2020({ allErrors: true, strict: false });
 addFormats(ajv);
 ajv.addFormat("binary", true);
-ajv.addSchema({ $id: DOC_ID, paths: doc.paths, components: openApiDocument.components } as object);
+ajv.addSchema({ $id: DOC_ID, paths: doc.paths, components: openApiDocument.components });
 
 const pointer = (...parts: string[]) => parts.map((p) => p.replace(/~/g, "~0").replace(/\//g, "~1")).join("/");
 const compiled = new Map<string, ValidateFunction>();

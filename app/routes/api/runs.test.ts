@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { callApi } from "../../../tests/support/api-contract";
-import { migrate, Run, RunHistory, TheoryCheck, Track, TrackingJob, ViewSetup } from "~/.server/db";
+import { migrate, Run, RunHistory, TheoryCheck, Track, ViewSetup } from "~/.server/db";
 import { createApiToken, revokeApiToken } from "~/.server/auth/api-tokens";
 import { createRun } from "~/.server/runs/service";
 import { signOffRun } from "~/.server/runs/record";

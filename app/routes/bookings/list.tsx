@@ -154,7 +154,7 @@ function StateTag({ state }: { state: BookingState }) {
 
 export default function Bookings({ loaderData, actionData }: Route.ComponentProps) {
   const time = useLabTime();
-  const outcome = (actionData ?? {}) as Outcome;
+  const outcome = (actionData ?? {});
   const { user, items, bookings, week } = loaderData;
   const isManager = user.role === "lab_manager";
   const bookable = items.filter((i) => i.status === "in_service");
@@ -204,9 +204,9 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                 </option>
               ))}
             </SelectField>
-            <TextField label="Start" type="datetime-local" name={fields.start.name} key={fields.start.key} defaultValue={fields.start.initialValue as string | undefined} error={fields.start.errors} hint={`Lab time (${time.zone}).`} onChange={(e) => setStart(e.target.value)} />
-            <TextField label="End" type="datetime-local" name={fields.end.name} key={fields.end.key} defaultValue={fields.end.initialValue as string | undefined} error={fields.end.errors} />
-            <TextAreaField label="Purpose" name={fields.purpose.name} key={fields.purpose.key} defaultValue={fields.purpose.initialValue as string | undefined} error={fields.purpose.errors} maxLength={300} placeholder="e.g. Second-year lab, inertial circles" />
+            <TextField label="Start" type="datetime-local" name={fields.start.name} key={fields.start.key} defaultValue={fields.start.initialValue} error={fields.start.errors} hint={`Lab time (${time.zone}).`} onChange={(e) => setStart(e.target.value)} />
+            <TextField label="End" type="datetime-local" name={fields.end.name} key={fields.end.key} defaultValue={fields.end.initialValue} error={fields.end.errors} />
+            <TextAreaField label="Purpose" name={fields.purpose.name} key={fields.purpose.key} defaultValue={fields.purpose.initialValue} error={fields.purpose.errors} maxLength={300} placeholder="e.g. Second-year lab, inertial circles" />
             {chosenItem?.kind === "table" ? (
               <>
                 <p className="text-sm text-muted">For a run, give the planned rate and depth: Tankside works out how long the water needs to spin up.</p>

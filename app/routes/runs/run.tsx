@@ -4,7 +4,7 @@ import { requireUser } from "~/.server/auth/permissions";
 import { loadRun } from "~/.server/runs/access";
 import { runPageData } from "~/.server/runs/detail";
 import { getLabSettings } from "~/.server/settings";
-import { cameraModeLabels, directionLabels, runLabel, tracerLabels, type RunState } from "~/lib/runs";
+import { cameraModeLabels, directionLabels, runLabel, tracerLabels } from "~/lib/runs";
 import { formatFixed, formatNumber } from "~/lib/number-format";
 import { useLabTime } from "~/components/lab-time";
 import { ButtonLink } from "~/components/ui/button";

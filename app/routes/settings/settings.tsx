@@ -81,7 +81,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
             <p className="mb-4 text-muted">{g.hint}</p>
             <div className="flex flex-col gap-4">
               {g.keys.map((key) => {
-                const f = fields[key]!;
+                const f = fields[key];
                 const lim = settingLimits[key];
                 return (
                   <TextField
@@ -107,7 +107,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
             key={zone.key}
             label="Lab time zone"
             name={zone.name}
-            defaultValue={zone.initialValue as string | undefined}
+            defaultValue={zone.initialValue}
             error={zone.errors}
             list="time-zone-names"
             autoComplete="off"

@@ -1,6 +1,6 @@
 import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
 import { z } from "../zod";
-import { badBody, error, file, ids, json, notJson, operation, routeSchema } from "./helpers";
+import { badBody, error, ids, json, notJson, operation, routeSchema } from "./helpers";
 import { calibrationAttachmentSchema, calibrationListSchema, calibrationSchema } from "../responses/calibrations";
 import { calibrationApiSchema, calibrationFilterSchema } from "~/lib/validation/calibrations";
 import { capabilityRoles, roleLabels, roles, type Capability, type Role } from "~/lib/roles";

@@ -51,4 +51,4 @@ export function operation(registry: OpenAPIRegistry, op: Operation & { operation
  * schema's methods onto it when it is made, so one made before extendZodWithOpenApi ran has no
  * `.openapi`; a clone is made now and has it. Same definition: the same checks, the same JSON Schema.
  */
-export const routeSchema = <T extends z.ZodType>(schema: T): T => schema.clone() as T;
+export const routeSchema = <T extends z.ZodType>(schema: T): T => schema.clone();

@@ -20,10 +20,7 @@ export default [
     route(":id/edit", "routes/equipment/edit.tsx", { id: "equipment-edit" }),
   ]),
 
-  ...prefix("bookings", [
-    index("routes/bookings/list.tsx"),
-    route(":id", "routes/bookings/detail.tsx"),
-  ]),
+  ...prefix("bookings", [index("routes/bookings/list.tsx"), route(":id", "routes/bookings/detail.tsx")]),
   ...prefix("calibrations", [
     index("routes/calibrations/list.tsx"),
     route("new", "routes/calibrations/edit.tsx", { id: "calibration-new" }),

@@ -66,64 +66,71 @@ function rssMb(pid: number) {
  * stops once an answer arrives. The server's RSS is sampled every 5 ms meanwhile.
  */
 function send(pid: number, opts: { path: string; headers: Record<string, string>; head: string; total: number; tail: string; limitBytes: number }) {
-  return new Promise<{ status: number; secondsTo413: number; secondsAfterLimitSent: number; sentMb: number; peakRssIncreaseMb: number; rssBeforeMb: number; rssAfterMb: number; answer: string }>(
-    (resolve, reject) => {
-      const before = rssMb(pid);
-      let peak = before;
-      const sampler = setInterval(() => (peak = Math.max(peak, rssMb(pid))), 5);
-      const block = Buffer.alloc(256 * 1024, 0x61);
-      let sent = 0;
-      let answered = false;
-      const started = performance.now();
-      // When the client had handed the byte past the limit to the socket: what is left is the refusal itself.
-      let limitSentAt = Number.NaN;
-      const req = http.request({ host: "127.0.0.1", port, path: opts.path, method: "POST", headers: opts.headers });
-      req.on("response", (res) => {
-        answered = true;
-        const answeredAt = performance.now();
-        const seconds = (answeredAt - started) / 1000;
-        let answer = "";
-        res.setEncoding("utf8");
-        res.on("data", (c) => (answer += c));
-        res.on("end", () => {
-          req.destroy();
-          // A moment for the server to drop what it held, sampled as it happens.
-          setTimeout(() => {
-            clearInterval(sampler);
-            peak = Math.max(peak, rssMb(pid));
-            resolve({
-              status: res.statusCode ?? 0,
-              secondsTo413: Number(seconds.toFixed(3)),
-              secondsAfterLimitSent: Number(((answeredAt - limitSentAt) / 1000).toFixed(3)),
-              sentMb: Number((sent / MB).toFixed(1)),
-              peakRssIncreaseMb: Number((peak - before).toFixed(1)),
-              rssBeforeMb: Number(before.toFixed(1)),
-              rssAfterMb: Number(rssMb(pid).toFixed(1)),
-              answer: answer.slice(0, 200),
-            });
-          }, 500);
-        });
-      });
-      req.on("error", (err) => {
-        if (!answered) {
+  return new Promise<{
+    status: number;
+    secondsTo413: number;
+    secondsAfterLimitSent: number;
+    sentMb: number;
+    peakRssIncreaseMb: number;
+    rssBeforeMb: number;
+    rssAfterMb: number;
+    answer: string;
+  }>((resolve, reject) => {
+    const before = rssMb(pid);
+    let peak = before;
+    const sampler = setInterval(() => (peak = Math.max(peak, rssMb(pid))), 5);
+    const block = Buffer.alloc(256 * 1024, 0x61);
+    let sent = 0;
+    let answered = false;
+    const started = performance.now();
+    // When the client had handed the byte past the limit to the socket: what is left is the refusal itself.
+    let limitSentAt = Number.NaN;
+    const req = http.request({ host: "127.0.0.1", port, path: opts.path, method: "POST", headers: opts.headers });
+    req.on("response", (res) => {
+      answered = true;
+      const answeredAt = performance.now();
+      const seconds = (answeredAt - started) / 1000;
+      let answer = "";
+      res.setEncoding("utf8");
+      res.on("data", (c) => (answer += c));
+      res.on("end", () => {
+        req.destroy();
+        // A moment for the server to drop what it held, sampled as it happens.
+        setTimeout(() => {
           clearInterval(sampler);
-          reject(err);
-        }
+          peak = Math.max(peak, rssMb(pid));
+          resolve({
+            status: res.statusCode ?? 0,
+            secondsTo413: Number(seconds.toFixed(3)),
+            secondsAfterLimitSent: Number(((answeredAt - limitSentAt) / 1000).toFixed(3)),
+            sentMb: Number((sent / MB).toFixed(1)),
+            peakRssIncreaseMb: Number((peak - before).toFixed(1)),
+            rssBeforeMb: Number(before.toFixed(1)),
+            rssAfterMb: Number(rssMb(pid).toFixed(1)),
+            answer: answer.slice(0, 200),
+          });
+        }, 500);
       });
-      req.write(opts.head);
-      sent += opts.head.length;
-      const pump = () => {
-        while (!answered && sent < opts.total) {
-          const n = Math.min(block.length, opts.total - sent);
-          sent += n;
-          if (sent > opts.limitBytes && Number.isNaN(limitSentAt)) limitSentAt = performance.now();
-          if (!req.write(n === block.length ? block : block.subarray(0, n))) return void req.once("drain", pump);
-        }
-        if (!answered) req.end(opts.tail);
-      };
-      pump();
-    },
-  );
+    });
+    req.on("error", (err) => {
+      if (!answered) {
+        clearInterval(sampler);
+        reject(err);
+      }
+    });
+    req.write(opts.head);
+    sent += opts.head.length;
+    const pump = () => {
+      while (!answered && sent < opts.total) {
+        const n = Math.min(block.length, opts.total - sent);
+        sent += n;
+        if (sent > opts.limitBytes && Number.isNaN(limitSentAt)) limitSentAt = performance.now();
+        if (!req.write(n === block.length ? block : block.subarray(0, n))) return void req.once("drain", pump);
+      }
+      if (!answered) req.end(opts.tail);
+    };
+    pump();
+  });
 }
 
 async function main() {

@@ -32,7 +32,7 @@ const UNKNOWN = "bench-nobody@tankside.example";
 function mannWhitney(a: number[], b: number[]) {
   const all = [...a.map((v) => ({ v, g: 0 })), ...b.map((v) => ({ v, g: 1 }))].sort((x, y) => x.v - y.v);
   const ranks = new Array<number>(all.length);
-  for (let i = 0; i < all.length; ) {
+  for (let i = 0; i < all.length;) {
     let j = i;
     while (j + 1 < all.length && all[j + 1]!.v === all[i]!.v) j++;
     for (let k = i; k <= j; k++) ranks[k] = (i + j) / 2 + 1;
@@ -70,7 +70,13 @@ async function main() {
   const { hashPassword } = await import("../app/.server/auth/password");
   const { action } = await import("../app/routes/auth/forgot-password");
   await boot();
-  await User.create({ email: REAL, name: "Bench Person", role: "technician", passwordHash: await hashPassword("a long bench password"), passwordChangedAt: new Date() });
+  await User.create({
+    email: REAL,
+    name: "Bench Person",
+    role: "technician",
+    passwordHash: await hashPassword("a long bench password"),
+    passwordChangedAt: new Date(),
+  });
 
   const ask: Ask = async (email) => {
     const request = new Request("http://localhost/forgot-password", { method: "POST", body: new URLSearchParams({ email }) });
@@ -79,13 +85,17 @@ async function main() {
     const ms = performance.now() - t0;
     return { ms, body: JSON.stringify(result) };
   };
-  await compare(ask, async () => {
-    await shutdown();
-    await sequelize.close().catch(() => undefined);
-    fs.rmSync(scratch, { force: true });
-    fs.rmSync(`${scratch}-wal`, { force: true });
-    fs.rmSync(`${scratch}-shm`, { force: true });
-  }, passwordResetsSettled);
+  await compare(
+    ask,
+    async () => {
+      await shutdown();
+      await sequelize.close().catch(() => undefined);
+      fs.rmSync(scratch, { force: true });
+      fs.rmSync(`${scratch}-wal`, { force: true });
+      fs.rmSync(`${scratch}-shm`, { force: true });
+    },
+    passwordResetsSettled,
+  );
 }
 
 async function compare(ask: Ask, done: () => Promise<void>, settle: () => Promise<void> = async () => undefined) {

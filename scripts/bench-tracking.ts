@@ -126,9 +126,7 @@ async function main(): Promise<void> {
   const decodeCpuBefore = process.cpuUsage();
   const decodeFps = await decodeOnly(files);
   const decodeCpu = process.cpuUsage(decodeCpuBefore);
-  log(
-    `decode only: ${decodeFps.toFixed(1)} frames/s, ${((decodeCpu.user + decodeCpu.system) / 1000 / files.length).toFixed(1)} ms CPU a frame`,
-  );
+  log(`decode only: ${decodeFps.toFixed(1)} frames/s, ${((decodeCpu.user + decodeCpu.system) / 1000 / files.length).toFixed(1)} ms CPU a frame`);
 
   const started = performance.now();
   const cpuBefore = process.cpuUsage();

@@ -19,7 +19,12 @@ const url = `postgres://postgres@127.0.0.1:${port}/postgres`;
 
 function binDir() {
   const base = "/usr/lib/postgresql";
-  const versions = fs.existsSync(base) ? fs.readdirSync(base).filter((v) => /^\d+$/.test(v)).sort((a, b) => Number(b) - Number(a)) : [];
+  const versions = fs.existsSync(base)
+    ? fs
+        .readdirSync(base)
+        .filter((v) => /^\d+$/.test(v))
+        .sort((a, b) => Number(b) - Number(a))
+    : [];
   for (const v of versions) if (fs.existsSync(path.join(base, v, "bin/initdb"))) return path.join(base, v, "bin");
   const which = spawnSync("sh", ["-c", "command -v initdb"], { encoding: "utf8" });
   if (which.status === 0) return path.dirname(which.stdout.trim());
@@ -52,7 +57,15 @@ function start() {
   if (!fs.existsSync(path.join(data, "PG_VERSION"))) {
     pgRun(path.join(bin, "initdb"), ["-D", data, "-U", "postgres", "--auth=trust", "--encoding=UTF8", "--locale=C.UTF-8", "-N"]);
   }
-  const opts = [`-p ${port}`, "-c listen_addresses=127.0.0.1", `-k ${dir}`, "-c fsync=off", "-c synchronous_commit=off", "-c full_page_writes=off", "-c max_connections=300"].join(" ");
+  const opts = [
+    `-p ${port}`,
+    "-c listen_addresses=127.0.0.1",
+    `-k ${dir}`,
+    "-c fsync=off",
+    "-c synchronous_commit=off",
+    "-c full_page_writes=off",
+    "-c max_connections=300",
+  ].join(" ");
   pgRun(path.join(bin, "pg_ctl"), ["-D", data, "-l", path.join(dir, "server.log"), "-o", opts, "-w", "start"]);
   return url;
 }

@@ -10,7 +10,9 @@ const browser = await chromium.launch({
   args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"],
 });
 const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
-page.on("console", (m) => { if (m.type() === "error") console.error("console:", m.text()); });
+page.on("console", (m) => {
+  if (m.type() === "error") console.error("console:", m.text());
+});
 page.on("pageerror", (e) => console.error("pageerror:", e.message));
 if (email !== "-") {
   await page.goto(`${base}/sign-in`);

@@ -104,7 +104,9 @@ try {
     if (!url) {
       const cluster = spawnSync("node", ["scripts/pg-cluster.mjs", "start"], { cwd: root, encoding: "utf8", stdio: ["ignore", "pipe", "inherit"] });
       if (cluster.status !== 0) {
-        console.error("[test] PostgreSQL could not be started for the second pass: install Debian's postgresql package (.ci/run does), or set TEST_DATABASE_URL to a server of your own.");
+        console.error(
+          "[test] PostgreSQL could not be started for the second pass: install Debian's postgresql package (.ci/run does), or set TEST_DATABASE_URL to a server of your own.",
+        );
         process.exit(1);
       }
       url = cluster.stdout.trim().split("\n").pop();

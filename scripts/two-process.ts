@@ -43,7 +43,9 @@ const centre = floatStackCentre;
 const spec = floatStackSpec(FRAMES);
 const frames: { name: string; jpeg: Buffer }[] = [];
 await renderRunFrames(spec, async (f) => {
-  const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } }).jpeg({ quality: 92 }).toBuffer();
+  const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } })
+    .jpeg({ quality: 92 })
+    .toBuffer();
   frames.push({ name: `frame_${String(f.index + 1).padStart(4, "0")}.jpg`, jpeg });
 });
 
@@ -89,13 +91,19 @@ class Proc {
   }
 }
 
-const web = (label: string, port: number, env: NodeJS.ProcessEnv) => new Proc(label, ["server.mjs"], { ...env, PORT: String(port), HOST: "127.0.0.1", APP_URL: `http://127.0.0.1:${port}` });
+const web = (label: string, port: number, env: NodeJS.ProcessEnv) =>
+  new Proc(label, ["server.mjs"], { ...env, PORT: String(port), HOST: "127.0.0.1", APP_URL: `http://127.0.0.1:${port}` });
 // What `npm run worker` runs (tsx app/.server/worker.ts), as one process so it stops with one signal.
 const worker = (label: string, env: NodeJS.ProcessEnv) => new Proc(label, ["--import", "tsx", "app/.server/worker.ts"], env);
 
 /** Objects under a prefix of the fake server's bucket, counted through the S3 API. */
 async function countObjects(s3: FakeS3, bucketName: string, prefix: string) {
-  const client = new S3Client({ endpoint: s3.endpoint, region: "us-east-1", forcePathStyle: true, credentials: { accessKeyId: FAKE_S3_ACCESS_KEY, secretAccessKey: FAKE_S3_SECRET_KEY } });
+  const client = new S3Client({
+    endpoint: s3.endpoint,
+    region: "us-east-1",
+    forcePathStyle: true,
+    credentials: { accessKeyId: FAKE_S3_ACCESS_KEY, secretAccessKey: FAKE_S3_SECRET_KEY },
+  });
   let count = 0;
   let token: string | undefined;
   try {
@@ -111,7 +119,14 @@ async function countObjects(s3: FakeS3, bucketName: string, prefix: string) {
 }
 
 function baseEnv(databaseUrl: string, uploads: string): NodeJS.ProcessEnv {
-  const env: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "production", TANKSIDE_FAKE_MAIL: "1", SESSION_SECRET: "two-process-session-secret-0123456789", DATABASE_URL: databaseUrl, UPLOADS_DIR: uploads };
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    NODE_ENV: "production",
+    TANKSIDE_FAKE_MAIL: "1",
+    SESSION_SECRET: "two-process-session-secret-0123456789",
+    DATABASE_URL: databaseUrl,
+    UPLOADS_DIR: uploads,
+  };
   delete env.SMTP_URL;
   delete env.TANKSIDE_WORKERS;
   delete env.TEST_DATABASE_URL;
@@ -121,13 +136,25 @@ function baseEnv(databaseUrl: string, uploads: string): NodeJS.ProcessEnv {
 function makeLab(env: NodeJS.ProcessEnv) {
   const made = spawnSync(process.execPath, ["--import", "tsx", "scripts/two-process-lab.ts"], { cwd: root, env, encoding: "utf8" });
   if (made.status !== 0) throw new Error(`the lab could not be made:\n${made.stdout}\n${made.stderr}`);
-  return JSON.parse(made.stdout.trim().split("\n").pop()!) as { techToken: string; email: string; password: string; tableId: number; tankId: number; cameraId: number };
+  return JSON.parse(made.stdout.trim().split("\n").pop()!) as {
+    techToken: string;
+    email: string;
+    password: string;
+    tableId: number;
+    tankId: number;
+    cameraId: number;
+  };
 }
 
 // ── The API client ───────────────────────────────────────────────────────────────────────────
 type Lab = ReturnType<typeof makeLab>;
 async function api(base: string, token: string, method: string, url: string, body?: BodyInit, type?: string) {
-  const res = await fetch(`${base}${url}`, { method, body, redirect: "manual", headers: { Authorization: `Bearer ${token}`, ...(type ? { "Content-Type": type } : {}) } });
+  const res = await fetch(`${base}${url}`, {
+    method,
+    body,
+    redirect: "manual",
+    headers: { Authorization: `Bearer ${token}`, ...(type ? { "Content-Type": type } : {}) },
+  });
   return res;
 }
 async function json<T>(res: Response, expected: number[], what: string): Promise<T> {
@@ -154,7 +181,26 @@ async function trackRuns(bases: string[], lab: Lab) {
   const runIds: number[] = [];
   for (let i = 0; i < RUNS; i++) {
     const created = await json<{ id: number }>(
-      await api(pick(i), lab.techToken, "POST", "/api/v1/runs", JSON.stringify({ tableId: lab.tableId, tankId: lab.tankId, cameraId: lab.cameraId, setRateRpm: 15, direction: "ccw", waterDepthCm: 10, waterTemperatureC: 20, cameraMode: "rotating", frameRateFps: 30, tracer: "float", purpose: `Two-process check, run ${i + 1}` }), "application/json"),
+      await api(
+        pick(i),
+        lab.techToken,
+        "POST",
+        "/api/v1/runs",
+        JSON.stringify({
+          tableId: lab.tableId,
+          tankId: lab.tankId,
+          cameraId: lab.cameraId,
+          setRateRpm: 15,
+          direction: "ccw",
+          waterDepthCm: 10,
+          waterTemperatureC: 20,
+          cameraMode: "rotating",
+          frameRateFps: 30,
+          tracer: "float",
+          purpose: `Two-process check, run ${i + 1}`,
+        }),
+        "application/json",
+      ),
       [201],
       "log a run",
     );
@@ -177,20 +223,43 @@ async function trackRuns(bases: string[], lab: Lab) {
   const uploadMs = Date.now() - tUpload;
   // The view setup is a page form: sign in on one server; the session (in the database) holds on the other too.
   const home = pick(0);
-  const signIn = await fetch(`${home}/sign-in`, { method: "POST", redirect: "manual", headers: { Origin: home, "Content-Type": "application/x-www-form-urlencoded" }, body: new URLSearchParams({ email: lab.email, password: lab.password }) });
+  const signIn = await fetch(`${home}/sign-in`, {
+    method: "POST",
+    redirect: "manual",
+    headers: { Origin: home, "Content-Type": "application/x-www-form-urlencoded" },
+    body: new URLSearchParams({ email: lab.email, password: lab.password }),
+  });
   const cookie = (signIn.headers.get("set-cookie") ?? "").split(";")[0];
   if (signIn.status !== 302 || !cookie) throw new Error(`sign-in: HTTP ${signIn.status} ${(await signIn.text()).slice(0, 300)}`);
   for (const [i, runId] of runIds.entries()) {
-    const form = new URLSearchParams({ centreX: String(centre.x), centreY: String(centre.y), edgeX: String(centre.x), edgeY: String(centre.y), edgeR: "105", scaleLengthPx: "60", scaleLengthCm: "10" });
+    const form = new URLSearchParams({
+      centreX: String(centre.x),
+      centreY: String(centre.y),
+      edgeX: String(centre.x),
+      edgeY: String(centre.y),
+      edgeR: "105",
+      scaleLengthPx: "60",
+      scaleLengthCm: "10",
+    });
     const base = pick(i + 1);
-    const res = await fetch(`${base}/runs/${runId}/setup`, { method: "POST", redirect: "manual", headers: { Cookie: cookie, Origin: base, "Content-Type": "application/x-www-form-urlencoded" }, body: form });
+    const res = await fetch(`${base}/runs/${runId}/setup`, {
+      method: "POST",
+      redirect: "manual",
+      headers: { Cookie: cookie, Origin: base, "Content-Type": "application/x-www-form-urlencoded" },
+      body: form,
+    });
     const location = res.headers.get("location") ?? "";
-    if (res.status !== 302 || !location.startsWith(`/runs/${runId}`)) throw new Error(`view setup of run ${runId}: HTTP ${res.status} to ${location} ${(await res.text()).slice(0, 300)}`);
+    if (res.status !== 302 || !location.startsWith(`/runs/${runId}`))
+      throw new Error(`view setup of run ${runId}: HTTP ${res.status} to ${location} ${(await res.text()).slice(0, 300)}`);
   }
   const tTrack = Date.now();
   const jobIds: number[] = [];
   for (const [i, runId] of runIds.entries()) {
-    const res = await json<{ job: { id: number } }>(await api(pick(i), lab.techToken, "POST", `/api/v1/runs/${runId}/tracking`), [202], `start tracking run ${runId}`);
+    const res = await json<{ job: { id: number } }>(
+      await api(pick(i), lab.techToken, "POST", `/api/v1/runs/${runId}/tracking`),
+      [202],
+      `start tracking run ${runId}`,
+    );
     jobIds.push(res.job.id);
   }
   // The run page's poll, from the server that did not start the job.
@@ -200,7 +269,11 @@ async function trackRuns(bases: string[], lab: Lab) {
     if (Date.now() - tTrack > 600_000) throw new Error(`tracking did not finish in 10 minutes; still open: ${[...open].join(", ")}`);
     for (const [i, runId] of runIds.entries()) {
       if (!open.has(runId)) continue;
-      const { job } = await json<{ job: { state: string; framesDone: number; error: string | null } }>(await api(pick(i + 1), lab.techToken, "GET", `/api/v1/runs/${runId}/tracking`), [200], "poll");
+      const { job } = await json<{ job: { state: string; framesDone: number; error: string | null } }>(
+        await api(pick(i + 1), lab.techToken, "GET", `/api/v1/runs/${runId}/tracking`),
+        [200],
+        "poll",
+      );
       if (job.state === "running") progressSeen.get(runId)!.add(job.framesDone);
       if (job.state === "done") open.delete(runId);
       else if (job.state === "failed" || job.state === "cancelled") throw new Error(`run ${runId}: job ${job.state}: ${job.error}`);
@@ -212,12 +285,24 @@ async function trackRuns(bases: string[], lab: Lab) {
   await new Promise((r) => setTimeout(r, 1500));
   const outcomes: RunOutcome[] = [];
   for (const [i, runId] of runIds.entries()) {
-    const tracking = await json<{ job: { id: number }; tracks: RunOutcome["tracks"] }>(await api(pick(i), lab.techToken, "GET", `/api/v1/runs/${runId}/tracking`), [200], "tracking");
+    const tracking = await json<{ job: { id: number }; tracks: RunOutcome["tracks"] }>(
+      await api(pick(i), lab.techToken, "GET", `/api/v1/runs/${runId}/tracking`),
+      [200],
+      "tracking",
+    );
     const csvRes = await api(pick(i + 1), lab.techToken, "GET", `/api/v1/runs/${runId}/tracks.csv`);
     if (csvRes.status !== 200) throw new Error(`tracks.csv of run ${runId}: HTTP ${csvRes.status}`);
     // The first column is the track's row id, which differs between runs; the points must not.
-    const csv = (await csvRes.text()).trim().split("\n").map((line) => line.split(",").slice(1).join(",")).join("\n");
-    const run = await json<{ verdict?: string | null; check?: { verdict?: string } | null }>(await api(pick(i), lab.techToken, "GET", `/api/v1/runs/${runId}`), [200], "run");
+    const csv = (await csvRes.text())
+      .trim()
+      .split("\n")
+      .map((line) => line.split(",").slice(1).join(","))
+      .join("\n");
+    const run = await json<{ verdict?: string | null; check?: { verdict?: string } | null }>(
+      await api(pick(i), lab.techToken, "GET", `/api/v1/runs/${runId}`),
+      [200],
+      "run",
+    );
     outcomes.push({
       runId,
       jobId: tracking.job.id,
@@ -230,7 +315,9 @@ async function trackRuns(bases: string[], lab: Lab) {
   return { outcomes, jobIds, uploadMs, trackMs };
 }
 
-const sameTracks = (a: RunOutcome, b: RunOutcome) => a.csv === b.csv && JSON.stringify(a.tracks.map(({ number, points }) => [number, points])) === JSON.stringify(b.tracks.map(({ number, points }) => [number, points]));
+const sameTracks = (a: RunOutcome, b: RunOutcome) =>
+  a.csv === b.csv &&
+  JSON.stringify(a.tracks.map(({ number, points }) => [number, points])) === JSON.stringify(b.tracks.map(({ number, points }) => [number, points]));
 
 // ── PostgreSQL: two web servers, two workers ─────────────────────────────────────────────────
 const tmp = path.join(root, "tests/.tmp", `two-process-${process.pid}`);
@@ -269,27 +356,62 @@ try {
   procs.push(...webs, ...workers);
   await Promise.all([...webs.map((w) => w.waitFor(/\[tankside\] serving on/)), ...workers.map((w) => w.waitFor(/\[worker\] taking/))]);
   console.log(`PostgreSQL: 2 web servers (TANKSIDE_WORKERS=0) and 2 workers up in ${seconds(Date.now() - tBoot)}`);
-  check(webs.every((w) => w.output.includes("TANKSIDE_WORKERS=0: background jobs are left to")), "both web servers say they leave jobs to workers");
+  check(
+    webs.every((w) => w.output.includes("TANKSIDE_WORKERS=0: background jobs are left to")),
+    "both web servers say they leave jobs to workers",
+  );
 
   pgOutcome = await trackRuns([`http://127.0.0.1:${portA}`, `http://127.0.0.1:${portB}`], lab);
   workerJobs = workers.map((w) => [...w.output.matchAll(/\[tracking\] job (\d+) \(run \d+\) taken by/g)].map((m) => Number(m[1])));
   const dbJobs = new pg.Client({ connectionString: pgUrl });
   await dbJobs.connect();
-  const { rows } = await dbJobs.query<{ run_id: number; id: number; state: string; attempts: number }>("SELECT run_id, id, state, attempts FROM tracking_jobs ORDER BY run_id, id");
-  const { rows: positions } = await dbJobs.query<{ run_id: number; n: string; distinct_positions: string; top: number }>("SELECT run_id, count(*) AS n, count(DISTINCT position) AS distinct_positions, max(position) AS top FROM frames GROUP BY run_id");
-  const { rows: detections } = await dbJobs.query<{ job_id: number; dupes: string }>("SELECT job_id, count(*) - count(DISTINCT (frame_index, x_px, y_px)) AS dupes FROM detections GROUP BY job_id");
+  const { rows } = await dbJobs.query<{ run_id: number; id: number; state: string; attempts: number }>(
+    "SELECT run_id, id, state, attempts FROM tracking_jobs ORDER BY run_id, id",
+  );
+  const { rows: positions } = await dbJobs.query<{ run_id: number; n: string; distinct_positions: string; top: number }>(
+    "SELECT run_id, count(*) AS n, count(DISTINCT position) AS distinct_positions, max(position) AS top FROM frames GROUP BY run_id",
+  );
+  const { rows: detections } = await dbJobs.query<{ job_id: number; dupes: string }>(
+    "SELECT job_id, count(*) - count(DISTINCT (frame_index, x_px, y_px)) AS dupes FROM detections GROUP BY job_id",
+  );
   await dbJobs.end();
 
-  console.log(`PostgreSQL: ${RUNS} runs × ${FRAMES} frames uploaded in ${seconds(pgOutcome.uploadMs)}, tracked in ${seconds(pgOutcome.trackMs)}; worker 1 took ${workerJobs[0]!.length} job(s), worker 2 took ${workerJobs[1]!.length}`);
-  for (const o of pgOutcome.outcomes) console.log(`  run ${o.runId}: job ${o.jobId}, tracks ${o.tracks.map((t) => `#${t.number} ${t.points} points`).join(", ")}, verdict ${o.verdict}, progress seen from the other server: ${o.progressSeen.length ? o.progressSeen.join(" → ") : "(finished between polls)"}`);
+  console.log(
+    `PostgreSQL: ${RUNS} runs × ${FRAMES} frames uploaded in ${seconds(pgOutcome.uploadMs)}, tracked in ${seconds(pgOutcome.trackMs)}; worker 1 took ${workerJobs[0]!.length} job(s), worker 2 took ${workerJobs[1]!.length}`,
+  );
+  for (const o of pgOutcome.outcomes)
+    console.log(
+      `  run ${o.runId}: job ${o.jobId}, tracks ${o.tracks.map((t) => `#${t.number} ${t.points} points`).join(", ")}, verdict ${o.verdict}, progress seen from the other server: ${o.progressSeen.length ? o.progressSeen.join(" → ") : "(finished between polls)"}`,
+    );
   const taken = workerJobs.flat().sort((a, b) => a - b);
-  check(JSON.stringify(taken) === JSON.stringify([...pgOutcome.jobIds].sort((a, b) => a - b)), `every job was taken exactly once across the two workers (${taken.length} takes for ${pgOutcome.jobIds.length} jobs)`);
-  check(workerJobs.every((j) => j.length > 0), "both workers tracked runs");
-  check(rows.length === RUNS && rows.every((r) => r.state === "done" && r.attempts === 1), `one job per run, each done at the first attempt (${rows.map((r) => `${r.state}/${r.attempts}`).join(" ")})`);
-  check(positions.length === RUNS && positions.every((p) => Number(p.n) === FRAMES && Number(p.distinct_positions) === FRAMES && p.top === FRAMES - 1), "frames uploaded through both servers at once are numbered 0…N−1 in every run, none twice");
-  check(detections.every((d) => Number(d.dupes) === 0), "no frame's detection stored twice");
-  check(pgOutcome.outcomes.some((o) => o.progressSeen.some((n) => n > 0 && n < FRAMES)), "progress written by a worker was read through the other web server mid-job");
-  check(pgOutcome.outcomes.every((o) => sameTracks(o, pgOutcome.outcomes[0]!)), "all ten runs have the same tracks");
+  check(
+    JSON.stringify(taken) === JSON.stringify([...pgOutcome.jobIds].sort((a, b) => a - b)),
+    `every job was taken exactly once across the two workers (${taken.length} takes for ${pgOutcome.jobIds.length} jobs)`,
+  );
+  check(
+    workerJobs.every((j) => j.length > 0),
+    "both workers tracked runs",
+  );
+  check(
+    rows.length === RUNS && rows.every((r) => r.state === "done" && r.attempts === 1),
+    `one job per run, each done at the first attempt (${rows.map((r) => `${r.state}/${r.attempts}`).join(" ")})`,
+  );
+  check(
+    positions.length === RUNS && positions.every((p) => Number(p.n) === FRAMES && Number(p.distinct_positions) === FRAMES && p.top === FRAMES - 1),
+    "frames uploaded through both servers at once are numbered 0…N−1 in every run, none twice",
+  );
+  check(
+    detections.every((d) => Number(d.dupes) === 0),
+    "no frame's detection stored twice",
+  );
+  check(
+    pgOutcome.outcomes.some((o) => o.progressSeen.some((n) => n > 0 && n < FRAMES)),
+    "progress written by a worker was read through the other web server mid-job",
+  );
+  check(
+    pgOutcome.outcomes.every((o) => sameTracks(o, pgOutcome.outcomes[0]!)),
+    "all ten runs have the same tracks",
+  );
   const objects = await countObjects(fakeS3, bucket, "runs/");
   const onDisk = fs.existsSync(path.join(tmp, "pg-uploads", "runs")) ? fs.readdirSync(path.join(tmp, "pg-uploads", "runs")).length : 0;
   console.log(`PostgreSQL: ${objects} objects under runs/ in the bucket, ${onDisk} run folders on the local disk`);
@@ -320,9 +442,14 @@ try {
       db.all("SELECT run_id, state, attempts FROM tracking_jobs ORDER BY run_id", (e, r) => db.close(() => (e ? reject(e) : resolve(r as never))));
     });
   });
-  console.log(`SQLite: ${RUNS} runs × ${FRAMES} frames uploaded in ${seconds(outcome.uploadMs)}, tracked in ${seconds(outcome.trackMs)} by the web server's in-process queue`);
+  console.log(
+    `SQLite: ${RUNS} runs × ${FRAMES} frames uploaded in ${seconds(outcome.uploadMs)}, tracked in ${seconds(outcome.trackMs)} by the web server's in-process queue`,
+  );
   check(rows.length === RUNS && rows.every((r) => r.state === "done" && r.attempts === 1), `SQLite: one job per run, each done at the first attempt`);
-  check(outcome.outcomes.every((o) => sameTracks(o, outcome.outcomes[0]!)), "SQLite: all ten runs have the same tracks");
+  check(
+    outcome.outcomes.every((o) => sameTracks(o, outcome.outcomes[0]!)),
+    "SQLite: all ten runs have the same tracks",
+  );
   check(sameTracks(outcome.outcomes[0]!, pgOutcome!.outcomes[0]!), "the tracks from the two-process PostgreSQL set-up equal the single-process SQLite ones");
   check(outcome.outcomes[0]!.verdict === pgOutcome!.outcomes[0]!.verdict, `the same verdict on both (${outcome.outcomes[0]!.verdict})`);
 } finally {

@@ -19,7 +19,9 @@ export function refusalResponse(err: unknown): Response {
  */
 export function invalidInput(error: ZodError): Response {
   const issues = error.issues.flatMap((i) =>
-    i.code === "unrecognized_keys" ? i.keys.map((key) => ({ field: [...i.path, key].join("."), message: `Unknown field: ${key}.` })) : [{ field: i.path.join("."), message: i.message }],
+    i.code === "unrecognized_keys"
+      ? i.keys.map((key) => ({ field: [...i.path, key].join("."), message: `Unknown field: ${key}.` }))
+      : [{ field: i.path.join("."), message: i.message }],
   );
   const messages = [...new Set(issues.map((i) => i.message))];
   return apiError(400, "invalid_input", messages.join(" ") || "The input is not valid.", { issues });

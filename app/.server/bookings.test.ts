@@ -34,7 +34,22 @@ const asInstructor = () => ({ id: instructor.id, role: "instructor" as const, na
 const deliver = () => new OutboxSender().drain();
 const hoursFromNow = (h: number) => new Date(Math.round((Date.now() + h * 3_600_000) / 60_000) * 60_000);
 
-const base = { maker: null, model: null, serialNumber: null, location: null, notes: null, diameterM: 0.6, maxRateRpm: 30, flatTable: false, rateTolerancePct: 1, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
+const base = {
+  maker: null,
+  model: null,
+  serialNumber: null,
+  location: null,
+  notes: null,
+  diameterM: 0.6,
+  maxRateRpm: 30,
+  flatTable: false,
+  rateTolerancePct: 1,
+  depthM: null,
+  resolutionWidthPx: null,
+  resolutionHeightPx: null,
+  nominalFrameRateFps: null,
+  meterType: null,
+};
 
 beforeAll(async () => {
   await migrate();
@@ -59,7 +74,9 @@ describe("requesting", () => {
     expect(booking.state).toBe("requested");
     expect(mail.queued).toBe(true);
     await deliver();
-    const got = await CapturedMail.findOne({ where: { subject: `Booking requested: Booking table, ${timeFormat(await getLabTimeZone()).range(booking.startAt, booking.endAt)}` } });
+    const got = await CapturedMail.findOne({
+      where: { subject: `Booking requested: Booking table, ${timeFormat(await getLabTimeZone()).range(booking.startAt, booking.endAt)}` },
+    });
     expect(got!.envelopeTo.split(", ").sort()).toEqual([manager2.email, manager.email].sort());
     expect(got!.textBody).toContain(`${env.appUrl}/bookings/${booking.id}`);
   });
@@ -75,7 +92,10 @@ describe("requesting", () => {
 
   it("moves the start earlier by the lab's spin-up times × τ = H/√(νΩ) when asked", async () => {
     const start = hoursFromNow(30);
-    const { booking } = await createBooking({ equipmentId: table.id, start, end: hoursFromNow(32), purpose: "Spin-up first", plannedRateRpm: 10, plannedDepthM: 0.1, addSpinUpLead: true }, asInstructor());
+    const { booking } = await createBooking(
+      { equipmentId: table.id, start, end: hoursFromNow(32), purpose: "Spin-up first", plannedRateRpm: 10, plannedDepthM: 0.1, addSpinUpLead: true },
+      asInstructor(),
+    );
     // τ at 10 cm and 10 rpm with ν = 1e-6 m²/s: 0.1/√(1e-6·1.0472) ≈ 97.7 s; five of them ≈ 8.1 min.
     const tau = 0.1 / Math.sqrt(1e-6 * ((10 * 2 * Math.PI) / 60));
     expect(ekmanSpinUpTimeS(0.1, 10)).toBeCloseTo(tau, 9);
@@ -90,7 +110,10 @@ describe("deciding", () => {
   it("two concurrent approvals of overlapping bookings: exactly one wins, the other gets booking_conflict", async () => {
     const a = (await request(48, 50)).booking;
     const b = (await request(49, 51)).booking;
-    const results = await Promise.allSettled([approveBooking(a.id, asManager()), approveBooking(b.id, { id: manager2.id, role: "lab_manager", name: manager2.name })]);
+    const results = await Promise.allSettled([
+      approveBooking(a.id, asManager()),
+      approveBooking(b.id, { id: manager2.id, role: "lab_manager", name: manager2.name }),
+    ]);
     const won = results.filter((r) => r.status === "fulfilled");
     const lost = results.filter((r): r is PromiseRejectedResult => r.status === "rejected");
     expect(won).toHaveLength(1);
@@ -118,7 +141,10 @@ describe("deciding", () => {
 
   it("cannot approve a booking of an item that went out of service", async () => {
     const spare = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Spare table" });
-    const { booking } = await createBooking({ equipmentId: spare.id, start: hoursFromNow(80), end: hoursFromNow(81), purpose: "Later failure" }, asInstructor());
+    const { booking } = await createBooking(
+      { equipmentId: spare.id, start: hoursFromNow(80), end: hoursFromNow(81), purpose: "Later failure" },
+      asInstructor(),
+    );
     await spare.update({ status: "out_of_service" });
     await expect(approveBooking(booking.id, asManager())).rejects.toMatchObject({ status: 422, code: "equipment_unavailable" });
     expect((await Booking.findByPk(booking.id))!.state).toBe("requested");
@@ -142,7 +168,8 @@ describe("deciding", () => {
 });
 
 describe("a decision and its mail are one transaction", () => {
-  const decisionMail = (id: number) => OutboxMail.findAll({ where: { subject: { [Op.like]: "Booking approved:%" }, textBody: { [Op.like]: `%/bookings/${id}\n%` } } });
+  const decisionMail = (id: number) =>
+    OutboxMail.findAll({ where: { subject: { [Op.like]: "Booking approved:%" }, textBody: { [Op.like]: `%/bookings/${id}\n%` } } });
 
   it("a committed approval has its mail queued before the call returns, so a crash right after cannot lose it", async () => {
     const { booking } = await request(110, 111);
@@ -216,7 +243,11 @@ describe("iCalendar (RFC 5545), parsed with ical.js", () => {
 });
 
 /** Every physical line of an iCalendar text, with its length in octets. */
-const octetLengths = (text: string) => text.split("\r\n").filter((l) => l !== "").map((l) => Buffer.byteLength(l, "utf8"));
+const octetLengths = (text: string) =>
+  text
+    .split("\r\n")
+    .filter((l) => l !== "")
+    .map((l) => Buffer.byteLength(l, "utf8"));
 
 describe("iCalendar folding and UIDs (RFC 5545 §3.1, §3.8.4.7), parsed with ical.js", () => {
   const longName = "Ørsted tank — west bench, the big one with the Ø-shaped rim — and its camera";
@@ -280,7 +311,10 @@ describe("times and durations in booking mail", () => {
       // A slot on 3 December of the coming year at 08:50Z–10:50Z (in winter in both zones).
       const year = new Date().getUTCFullYear() + 1;
       const start = new Date(`${year}-12-03T08:50:00Z`);
-      const { booking } = await createBooking({ equipmentId: table.id, start, end: new Date(start.getTime() + 2 * 3_600_000), purpose: `Zone check ${labZone}` }, asInstructor());
+      const { booking } = await createBooking(
+        { equipmentId: table.id, start, end: new Date(start.getTime() + 2 * 3_600_000), purpose: `Zone check ${labZone}` },
+        asInstructor(),
+      );
       const row = await OutboxMail.findOne({ where: { subject: { [Op.like]: `Booking requested:%` } }, order: [["id", "DESC"]] });
       expect(row!.textBody).toContain(`Zone check ${labZone}`);
       const later = clock === "09:50" ? "11:50" : "05:50";
@@ -294,7 +328,18 @@ describe("times and durations in booking mail", () => {
   });
 
   it("the spin-up lead time in the mail is the text the booking's page shows (one duration rule)", async () => {
-    const { booking } = await createBooking({ equipmentId: table.id, start: hoursFromNow(340), end: hoursFromNow(342), purpose: "Lead time wording", plannedRateRpm: 6, plannedDepthM: 0.12, addSpinUpLead: true }, asInstructor());
+    const { booking } = await createBooking(
+      {
+        equipmentId: table.id,
+        start: hoursFromNow(340),
+        end: hoursFromNow(342),
+        purpose: "Lead time wording",
+        plannedRateRpm: 6,
+        plannedDepthM: 0.12,
+        addSpinUpLead: true,
+      },
+      asInstructor(),
+    );
     const row = await OutboxMail.findOne({ where: { subject: { [Op.like]: `Booking requested:%` } }, order: [["id", "DESC"]] });
     const view = await serializeBooking(booking);
     // The booking page and list show formatDuration(spinUpLeadMinutes × 60); the mail must say the same words.

@@ -70,7 +70,11 @@ function approvedOverlap(equipmentId: number, start: Date, end: Date, t: Transac
 }
 
 function conflictError(other: Booking, time: TimeFormat) {
-  return new BookingError(409, "booking_conflict", `It overlaps booking #${other.id} (approved, ${slotText(other, time)}). Two approved bookings never share an item.`);
+  return new BookingError(
+    409,
+    "booking_conflict",
+    `It overlaps booking #${other.id} (approved, ${slotText(other, time)}). Two approved bookings never share an item.`,
+  );
 }
 
 /** The item, locked: requests and approvals of one item take turns from here to their commit. */
@@ -78,7 +82,12 @@ async function loadItemForBooking(equipmentId: number, t: Transaction) {
   const item = await Equipment.findByPk(equipmentId, locking(t));
   if (!item) throw new BookingError(404, "not_found", "That piece of equipment does not exist.", "equipmentId");
   if (item.status !== "in_service") {
-    throw new BookingError(422, "equipment_unavailable", `${item.name} is ${item.status === "retired" ? "retired" : "out of service"} and cannot be booked.`, "equipmentId");
+    throw new BookingError(
+      422,
+      "equipment_unavailable",
+      `${item.name} is ${item.status === "retired" ? "retired" : "out of service"} and cannot be booked.`,
+      "equipmentId",
+    );
   }
   return item;
 }
@@ -166,7 +175,11 @@ async function decide(id: number, manager: Pick<CurrentUser, "id" | "role" | "na
     const booking = await Booking.findByPk(id, locking(t));
     if (!booking) throw new BookingError(404, "not_found", "That booking does not exist.");
     if (booking.state !== "requested") {
-      throw new BookingError(409, "invalid_state", `That booking is ${bookingStateLabels[booking.state].toLowerCase()} already; only a requested booking can be ${decision === "approve" ? "approved" : "declined"}.`);
+      throw new BookingError(
+        409,
+        "invalid_state",
+        `That booking is ${bookingStateLabels[booking.state].toLowerCase()} already; only a requested booking can be ${decision === "approve" ? "approved" : "declined"}.`,
+      );
     }
     const item = await Equipment.findByPk(booking.equipmentId, locking(t));
     if (decision === "approve") {
@@ -178,7 +191,12 @@ async function decide(id: number, manager: Pick<CurrentUser, "id" | "role" | "na
       if (other) throw conflictError(other, await labTime(t));
     }
     await booking.update(
-      { state: decision === "approve" ? "approved" : "declined", decidedById: manager.id, decidedAt: new Date(), declineReason: decision === "decline" ? reason!.trim() : null },
+      {
+        state: decision === "approve" ? "approved" : "declined",
+        decidedById: manager.id,
+        decidedAt: new Date(),
+        declineReason: decision === "decline" ? reason!.trim() : null,
+      },
       { transaction: t },
     );
     const requester = await User.findByPk(booking.requesterId, { transaction: t });
@@ -275,7 +293,14 @@ export function listBookings(filter: BookingFilter = {}) {
     ...(filter.from ? { endAt: { [Op.gt]: filter.from } } : {}),
     ...(filter.to ? { startAt: { [Op.lt]: filter.to } } : {}),
   };
-  return Booking.findAll({ where, order: [["startAt", "ASC"], ["id", "ASC"]], limit: filter.limit ?? 500 });
+  return Booking.findAll({
+    where,
+    order: [
+      ["startAt", "ASC"],
+      ["id", "ASC"],
+    ],
+    limit: filter.limit ?? 500,
+  });
 }
 
 export async function serializeBookings(rows: Booking[]) {

@@ -7,7 +7,10 @@ import { seedRunLab, type RunLab } from "./runs/testing";
 import type { CalibrationInput } from "~/lib/validation/calibrations";
 
 let lab: RunLab;
-const png = Buffer.from("89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082", "hex");
+const png = Buffer.from(
+  "89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082",
+  "hex",
+);
 const scale = (over: Partial<CalibrationInput> = {}): CalibrationInput => ({
   kind: "scale",
   equipmentId: lab.camera.id,

@@ -27,7 +27,13 @@ export const calibrationFieldLabels: Record<string, string> = {
 
 /** Calibration dates are days in the lab's time zone; everything else is shown as stored. */
 const show = (v: unknown, zone: string) =>
-  v === null || v === undefined ? null : v instanceof Date ? zonedDay(v, zone) : typeof v === "object" ? JSON.stringify(v) : (v as string | number | boolean | bigint).toString();
+  v === null || v === undefined
+    ? null
+    : v instanceof Date
+      ? zonedDay(v, zone)
+      : typeof v === "object"
+        ? JSON.stringify(v)
+        : (v as string | number | boolean | bigint).toString();
 
 /** One history line, written inside the caller's transaction so it stands or falls with the change. */
 export async function noteCalibrationChange(t: Transaction, calibrationId: number, userId: number, field: string, oldValue: unknown, newValue: unknown) {
@@ -53,7 +59,13 @@ export type CalibrationHistoryEntry = RunHistoryEntry;
 
 /** Every change to a record, oldest first, with people's names. */
 export async function getCalibrationHistory(calibrationId: number): Promise<CalibrationHistoryEntry[]> {
-  const rows = await CalibrationHistory.findAll({ where: { calibrationId }, order: [["createdAt", "ASC"], ["id", "ASC"]] });
+  const rows = await CalibrationHistory.findAll({
+    where: { calibrationId },
+    order: [
+      ["createdAt", "ASC"],
+      ["id", "ASC"],
+    ],
+  });
   const userIds = [...new Set(rows.map((r) => r.userId).filter((id): id is number => id !== null))];
   const users = userIds.length ? await User.findAll({ where: { id: userIds }, attributes: ["id", "name"] }) : [];
   const names = new Map(users.map((u) => [u.id, u.name]));

@@ -41,7 +41,22 @@ const rateInput = (over: Partial<CalibrationInput> = {}): CalibrationInput => ({
 
 beforeAll(async () => {
   await migrate();
-  const base = { maker: null, model: null, serialNumber: null, location: null, notes: null, diameterM: null, maxRateRpm: null, flatTable: null, rateTolerancePct: null, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
+  const base = {
+    maker: null,
+    model: null,
+    serialNumber: null,
+    location: null,
+    notes: null,
+    diameterM: null,
+    maxRateRpm: null,
+    flatTable: null,
+    rateTolerancePct: null,
+    depthM: null,
+    resolutionWidthPx: null,
+    resolutionHeightPx: null,
+    nominalFrameRateFps: null,
+    meterType: null,
+  };
   table = await Equipment.create({ ...base, kind: "table", name: "Test table", diameterM: 0.6, maxRateRpm: 30, flatTable: false, rateTolerancePct: 1 });
   camera = await Equipment.create({ ...base, kind: "camera", name: "Test camera", resolutionWidthPx: 1280, resolutionHeightPx: 720, nominalFrameRateFps: 30 });
   meter = await Equipment.create({ ...base, kind: "rate_meter", name: "Test tachometer", meterType: "tachometer" });
@@ -59,7 +74,10 @@ describe("calibration records", () => {
   it("only the technician who performed it or a lab manager may edit it or attach files", async () => {
     const cal = await createCalibration(rateInput({ notes: "mine" }), tech);
     const other = await User.create({ email: "t2@tankside.example", name: "Other Tech", role: "technician", passwordHash: null, passwordChangedAt: null });
-    const png = Buffer.from("89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082", "hex");
+    const png = Buffer.from(
+      "89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082",
+      "hex",
+    );
     await expect(updateCalibration(cal.id, rateInput({ notes: "not yours" }), other)).rejects.toMatchObject({ status: 403, code: "forbidden" });
     await expect(addCalibrationAttachment(cal.id, { name: "p.png", bytes: png }, other)).rejects.toMatchObject({ status: 403, code: "forbidden" });
     expect((await Calibration.findByPk(cal.id))!.notes).toBe("mine");
@@ -101,7 +119,10 @@ describe("calibration records", () => {
     await expect(attempt).rejects.toBeInstanceOf(CalibrationError);
     await expect(attempt).rejects.toMatchObject({ status: 409, code: "calibration_signed" });
     await expect(signOffCalibration(cal.id, managerUser())).rejects.toMatchObject({ status: 409 });
-    const png = Buffer.from("89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082", "hex");
+    const png = Buffer.from(
+      "89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082",
+      "hex",
+    );
     await expect(addCalibrationAttachment(cal.id, { name: "photo.png", bytes: png }, tech)).rejects.toMatchObject({ status: 409 });
     expect(await Calibration.findByPk(cal.id, { raw: true })).toEqual(snapshot);
   });
@@ -114,23 +135,58 @@ describe("calibration records", () => {
 
   it("accepts a PNG by content and refuses a text file named .pdf", async () => {
     const cal = await createCalibration(rateInput(), tech);
-    const png = Buffer.from("89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082", "hex");
+    const png = Buffer.from(
+      "89504e470d0a1a0a0000000d49484452000000010000000108060000001f15c4890000000d49444154789c6360000002000154a24f5d0000000049454e44ae426082",
+      "hex",
+    );
     const row = await addCalibrationAttachment(cal.id, { name: "meter.png", bytes: png }, tech);
     expect(row.contentType).toBe("image/png");
     expect(row.storedName).not.toContain("meter");
-    const pdf = await addCalibrationAttachment(cal.id, { name: "cert.bin", bytes: Buffer.from("%PDF-1.4\n%âãÏÓ\n1 0 obj\n<<>>\nendobj\ntrailer\n<<>>\n%%EOF\n", "latin1") }, tech);
+    const pdf = await addCalibrationAttachment(
+      cal.id,
+      { name: "cert.bin", bytes: Buffer.from("%PDF-1.4\n%âãÏÓ\n1 0 obj\n<<>>\nendobj\ntrailer\n<<>>\n%%EOF\n", "latin1") },
+      tech,
+    );
     expect(pdf.contentType).toBe("application/pdf");
-    await expect(addCalibrationAttachment(cal.id, { name: "cert.pdf", bytes: Buffer.from("just some text") }, tech)).rejects.toMatchObject({ status: 422, code: "unsupported_attachment" });
+    await expect(addCalibrationAttachment(cal.id, { name: "cert.pdf", bytes: Buffer.from("just some text") }, tech)).rejects.toMatchObject({
+      status: 422,
+      code: "unsupported_attachment",
+    });
   });
 });
 
 describe("in force at a moment (what a run freezes at its creation)", () => {
   let cam: Equipment;
   beforeAll(async () => {
-    cam = await Equipment.create({ kind: "camera", name: "Timing camera", maker: null, model: null, serialNumber: null, location: null, notes: null, diameterM: null, maxRateRpm: null, flatTable: null, rateTolerancePct: null, depthM: null, resolutionWidthPx: 640, resolutionHeightPx: 480, nominalFrameRateFps: 30, meterType: null });
+    cam = await Equipment.create({
+      kind: "camera",
+      name: "Timing camera",
+      maker: null,
+      model: null,
+      serialNumber: null,
+      location: null,
+      notes: null,
+      diameterM: null,
+      maxRateRpm: null,
+      flatTable: null,
+      rateTolerancePct: null,
+      depthM: null,
+      resolutionWidthPx: 640,
+      resolutionHeightPx: 480,
+      nominalFrameRateFps: 30,
+      meterType: null,
+    });
   });
   const timing = (performedOn: string, dueOn?: string): CalibrationInput => ({
-    kind: "timing", equipmentId: cam.id, performedOn, dueOn, nominalFrameRateFps: 30, frameIntervals: 1799, frameIntervalsUncertainty: 1, referenceElapsedS: 60, referenceElapsedUncertaintyS: 0.02,
+    kind: "timing",
+    equipmentId: cam.id,
+    performedOn,
+    dueOn,
+    nominalFrameRateFps: 30,
+    frameIntervals: 1799,
+    frameIntervalsUncertainty: 1,
+    referenceElapsedS: 60,
+    referenceElapsedUncertaintyS: 0.02,
   });
 
   it("a record signed after T is not in force at T; a later signed one supersedes; past due is not in force", async () => {
@@ -161,7 +217,13 @@ describe("in force at a moment (what a run freezes at its creation)", () => {
   it("rateCalibrationInForce gives the line, and trueRateFromCalibration the corrected rate", async () => {
     const other = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Second table" });
     expect(await rateCalibrationInForce(other.id, new Date())).toBeNull();
-    const cal = await createCalibration(rateInput({ equipmentId: other.id, readings: [5, 10, 15, 20].map((s, i) => ({ setRpm: s, measuredRpm: 1.004 * s - 0.02 + [0.003, -0.004, 0.002, -0.001][i]! })) }), tech);
+    const cal = await createCalibration(
+      rateInput({
+        equipmentId: other.id,
+        readings: [5, 10, 15, 20].map((s, i) => ({ setRpm: s, measuredRpm: 1.004 * s - 0.02 + [0.003, -0.004, 0.002, -0.001][i]! })),
+      }),
+      tech,
+    );
     await signOffCalibration(cal.id, managerUser());
     const line = await rateCalibrationInForce(other.id, new Date());
     expect(line).not.toBeNull();
@@ -176,17 +238,38 @@ describe("in force at a moment (what a run freezes at its creation)", () => {
 
 describe("due list and reminders", () => {
   it("lists past due first and enqueues one reminder per record, delivered once, not again after a restart", async () => {
-    const base = { maker: null, model: null, serialNumber: null, location: null, notes: null, diameterM: 0.5, maxRateRpm: 20, flatTable: false, rateTolerancePct: 1, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
+    const base = {
+      maker: null,
+      model: null,
+      serialNumber: null,
+      location: null,
+      notes: null,
+      diameterM: 0.5,
+      maxRateRpm: 20,
+      flatTable: false,
+      rateTolerancePct: 1,
+      depthM: null,
+      resolutionWidthPx: null,
+      resolutionHeightPx: null,
+      nominalFrameRateFps: null,
+      meterType: null,
+    };
     const soon = await Equipment.create({ ...base, kind: "table", name: "Reminder table soon" });
     const late = await Equipment.create({ ...base, kind: "table", name: "Reminder table late" });
-    const a = await createCalibration(rateInput({ equipmentId: soon.id, performedOn: daysAgo(170), dueOn: toDayString(new Date(Date.now() + 5 * 86_400_000)) }), tech);
+    const a = await createCalibration(
+      rateInput({ equipmentId: soon.id, performedOn: daysAgo(170), dueOn: toDayString(new Date(Date.now() + 5 * 86_400_000)) }),
+      tech,
+    );
     const b = await createCalibration(rateInput({ equipmentId: late.id, performedOn: daysAgo(200), dueOn: daysAgo(3) }), tech);
     await signOffCalibration(a.id, managerUser());
     await signOffCalibration(b.id, managerUser());
 
     const due = await listCalibrationsDueOrExpired(14);
     const ours = due.filter((d) => d.id === a.id || d.id === b.id);
-    expect(ours.map((d) => [d.id, d.pastDue])).toEqual([[b.id, true], [a.id, false]]);
+    expect(ours.map((d) => [d.id, d.pastDue])).toEqual([
+      [b.id, true],
+      [a.id, false],
+    ]);
 
     const countMail = () => CapturedMail.count({ where: { subject: { [Op.like]: "%Reminder table%" } } });
     const first = await runCalibrationReminders();
@@ -211,7 +294,10 @@ describe("due list and reminders", () => {
 
   it("two reminder passes running at once enqueue each record's reminder exactly once", async () => {
     const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Reminder table twice" });
-    const c = await createCalibration(rateInput({ equipmentId: t.id, performedOn: daysAgo(178), dueOn: toDayString(new Date(Date.now() + 3 * 86_400_000)) }), tech);
+    const c = await createCalibration(
+      rateInput({ equipmentId: t.id, performedOn: daysAgo(178), dueOn: toDayString(new Date(Date.now() + 3 * 86_400_000)) }),
+      tech,
+    );
     await signOffCalibration(c.id, managerUser());
     const [x, y] = await Promise.all([runCalibrationReminders(), runCalibrationReminders()]);
     expect([...x.queued, ...y.queued].filter((id) => id === c.id)).toHaveLength(1);
@@ -220,7 +306,10 @@ describe("due list and reminders", () => {
 
   it("queues nothing while there is no lab manager to tell, and queues it on the next pass once there is", async () => {
     const t = await Equipment.create({ ...table.get({ plain: true }), id: undefined, name: "Reminder table retry" });
-    const c = await createCalibration(rateInput({ equipmentId: t.id, performedOn: daysAgo(175), dueOn: toDayString(new Date(Date.now() + 2 * 86_400_000)) }), tech);
+    const c = await createCalibration(
+      rateInput({ equipmentId: t.id, performedOn: daysAgo(175), dueOn: toDayString(new Date(Date.now() + 2 * 86_400_000)) }),
+      tech,
+    );
     await signOffCalibration(c.id, managerUser());
     await User.update({ active: false }, { where: { role: "lab_manager" } });
     const nobody = await runCalibrationReminders();

@@ -63,7 +63,12 @@ async function columnsFor(input: CalibrationInput, t?: Transaction) {
   if (!item) throw new CalibrationError(404, "not_found", "That piece of equipment does not exist.", "equipmentId");
   const wanted = calibrationKindFor[input.kind];
   if (item.kind !== wanted) {
-    throw new CalibrationError(422, "wrong_equipment", `A ${calibrationKindLabels[input.kind].toLowerCase()} is made on a ${kindLabels[wanted].toLowerCase()}, and ${item.name} is a ${kindLabels[item.kind].toLowerCase()}.`, "equipmentId");
+    throw new CalibrationError(
+      422,
+      "wrong_equipment",
+      `A ${calibrationKindLabels[input.kind].toLowerCase()} is made on a ${kindLabels[wanted].toLowerCase()}, and ${item.name} is a ${kindLabels[item.kind].toLowerCase()}.`,
+      "equipmentId",
+    );
   }
   const settings = await getLabSettings(t);
   const performedAt = dayStart(input.performedOn, settings.timeZone);
@@ -75,12 +80,34 @@ async function columnsFor(input: CalibrationInput, t?: Transaction) {
     throw new CalibrationError(422, "invalid_due_date", "The due date cannot be before the calibration date.", "dueOn");
   }
   const empty = {
-    meterId: null, readings: null, slope: null, interceptRpm: null, slopeStdError: null, interceptStdErrorRpm: null,
-    slopeInterceptCovarianceRpm: null, meanSetRateRpm: null, residualSdRpm: null, maxResidualRpm: null, maxDeviationRpm: null,
-    maxDeviationPct: null, tolerancePct: null, passed: null, knownLengthM: null, knownLengthUncertaintyM: null, lengthPx: null,
-    lengthUncertaintyPx: null, scalePxPerM: null, scaleUncertaintyPxPerM: null, nominalFrameRateFps: null, frameIntervals: null,
-    frameIntervalsUncertainty: null, referenceElapsedS: null, referenceElapsedUncertaintyS: null, trueFrameRateFps: null,
-    trueFrameRateUncertaintyFps: null, frameRateDeviationPct: null,
+    meterId: null,
+    readings: null,
+    slope: null,
+    interceptRpm: null,
+    slopeStdError: null,
+    interceptStdErrorRpm: null,
+    slopeInterceptCovarianceRpm: null,
+    meanSetRateRpm: null,
+    residualSdRpm: null,
+    maxResidualRpm: null,
+    maxDeviationRpm: null,
+    maxDeviationPct: null,
+    tolerancePct: null,
+    passed: null,
+    knownLengthM: null,
+    knownLengthUncertaintyM: null,
+    lengthPx: null,
+    lengthUncertaintyPx: null,
+    scalePxPerM: null,
+    scaleUncertaintyPxPerM: null,
+    nominalFrameRateFps: null,
+    frameIntervals: null,
+    frameIntervalsUncertainty: null,
+    referenceElapsedS: null,
+    referenceElapsedUncertaintyS: null,
+    trueFrameRateFps: null,
+    trueFrameRateUncertaintyFps: null,
+    frameRateDeviationPct: null,
   };
   const common = { kind: input.kind, equipmentId: item.id, performedAt, dueAt: dayEnd(dueOn, settings.timeZone), notes: input.notes ?? null };
   try {
@@ -92,14 +119,31 @@ async function columnsFor(input: CalibrationInput, t?: Transaction) {
       const readings: RateReading[] = (input.readings ?? []).map((r) => ({ setRpm: r.setRpm, measuredRpm: r.measuredRpm }));
       const fit = fitRateCalibration(readings, item.rateTolerancePct ?? 1);
       return {
-        ...empty, ...common, meterId: meter.id, readings: JSON.stringify(readings), slope: fit.slope, interceptRpm: fit.interceptRpm,
-        slopeStdError: fit.slopeStdError, interceptStdErrorRpm: fit.interceptStdErrorRpm, slopeInterceptCovarianceRpm: fit.slopeInterceptCovarianceRpm,
-        meanSetRateRpm: fit.meanSetRateRpm, residualSdRpm: fit.residualSdRpm, maxResidualRpm: fit.maxResidualRpm,
-        maxDeviationRpm: fit.maxDeviationRpm, maxDeviationPct: fit.maxDeviationPct, tolerancePct: fit.tolerancePct, passed: fit.passed,
+        ...empty,
+        ...common,
+        meterId: meter.id,
+        readings: JSON.stringify(readings),
+        slope: fit.slope,
+        interceptRpm: fit.interceptRpm,
+        slopeStdError: fit.slopeStdError,
+        interceptStdErrorRpm: fit.interceptStdErrorRpm,
+        slopeInterceptCovarianceRpm: fit.slopeInterceptCovarianceRpm,
+        meanSetRateRpm: fit.meanSetRateRpm,
+        residualSdRpm: fit.residualSdRpm,
+        maxResidualRpm: fit.maxResidualRpm,
+        maxDeviationRpm: fit.maxDeviationRpm,
+        maxDeviationPct: fit.maxDeviationPct,
+        tolerancePct: fit.tolerancePct,
+        passed: fit.passed,
       };
     }
     if (input.kind === "scale") {
-      const known = { knownLengthM: input.knownLengthMm! / 1000, knownLengthUncertaintyM: input.knownLengthUncertaintyMm! / 1000, lengthPx: input.lengthPx!, lengthUncertaintyPx: input.lengthUncertaintyPx! };
+      const known = {
+        knownLengthM: input.knownLengthMm! / 1000,
+        knownLengthUncertaintyM: input.knownLengthUncertaintyMm! / 1000,
+        lengthPx: input.lengthPx!,
+        lengthUncertaintyPx: input.lengthUncertaintyPx!,
+      };
       // The camera's scale tolerance is frozen into the record, as the table's rate tolerance is into a rate calibration.
       return { ...empty, ...common, ...known, ...scaleFromKnownLength(known), tolerancePct: item.scaleTolerancePct ?? DEFAULT_SCALE_TOLERANCE_PCT };
     }
@@ -184,7 +228,10 @@ async function latestSigned(equipmentIds: number[], at: Date, transaction?: Tran
   const rows = await Calibration.findAll({
     transaction,
     where: { equipmentId: { [Op.in]: equipmentIds }, signedOffAt: { [Op.lte]: at }, performedAt: { [Op.lte]: at } },
-    order: [["performedAt", "DESC"], ["id", "DESC"]],
+    order: [
+      ["performedAt", "DESC"],
+      ["id", "DESC"],
+    ],
   });
   const seen = new Map<string, Calibration>();
   for (const r of rows) {
@@ -344,7 +391,10 @@ export function calibrationReminderKey(calibrationId: number) {
 export function listCalibrations(filter: { equipmentId?: number } = {}) {
   return Calibration.findAll({
     where: filter.equipmentId ? { equipmentId: filter.equipmentId } : {},
-    order: [["performedAt", "DESC"], ["id", "DESC"]],
+    order: [
+      ["performedAt", "DESC"],
+      ["id", "DESC"],
+    ],
   });
 }
 
@@ -412,7 +462,13 @@ export async function serializeCalibrations(records: Calibration[]) {
     })(),
     attachments: attachments
       .filter((a) => a.calibrationId === r.id)
-      .map((a) => ({ id: a.id, originalName: a.originalName, contentType: a.contentType, sizeBytes: a.sizeBytes, url: `/api/v1/calibrations/${r.id}/attachments/${a.id}` })),
+      .map((a) => ({
+        id: a.id,
+        originalName: a.originalName,
+        contentType: a.contentType,
+        sizeBytes: a.sizeBytes,
+        url: `/api/v1/calibrations/${r.id}/attachments/${a.id}`,
+      })),
   }));
 }
 export type { CalibrationView };

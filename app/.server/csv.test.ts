@@ -39,7 +39,13 @@ function parseRfc4180(text: string): string[][] {
 describe("CSV documents (RFC 4180)", () => {
   it("quotes a text field with a comma, a double quote and a line break, and it reads back as written", () => {
     const awkward = 'Float "B", re-cut\nafter the spill';
-    const csv = csvDocument(["track_id", "note", "x_px"], [[12, awkward, 640.5], [13, "plain", null]]);
+    const csv = csvDocument(
+      ["track_id", "note", "x_px"],
+      [
+        [12, awkward, 640.5],
+        [13, "plain", null],
+      ],
+    );
     expect(csv).toBe('track_id,note,x_px\r\n12,"Float ""B"", re-cut\nafter the spill",640.5\r\n13,plain,\r\n');
     expect(parseRfc4180(csv)).toEqual([
       ["track_id", "note", "x_px"],

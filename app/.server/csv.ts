@@ -9,5 +9,8 @@ export type CsvCell = string | number | null;
  * the quoting; numbers are written as given (format them first when digits matter).
  */
 export function csvDocument(columns: readonly string[], rows: Iterable<readonly CsvCell[]>): string {
-  return stringify(Array.from(rows, (row) => [...row]), { header: true, columns: [...columns], record_delimiter: "windows" });
+  return stringify(
+    Array.from(rows, (row) => [...row]),
+    { header: true, columns: [...columns], record_delimiter: "windows" },
+  );
 }

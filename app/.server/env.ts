@@ -45,7 +45,8 @@ function positiveInteger(name: string, fallback: number): number {
 export function workersSetupProblem(vars: { TANKSIDE_WORKERS?: string; DATABASE_URL?: string }): string | null {
   const value = vars.TANKSIDE_WORKERS;
   if (value === undefined || value === "" || value === "1") return null;
-  if (value !== "0") return `Tankside will not start: TANKSIDE_WORKERS must be 1 (this process runs background jobs, the default) or 0 (leave them to \`npm run worker\`), not "${value}".`;
+  if (value !== "0")
+    return `Tankside will not start: TANKSIDE_WORKERS must be 1 (this process runs background jobs, the default) or 0 (leave them to \`npm run worker\`), not "${value}".`;
   if (!/^postgres(ql)?:\/\//.test(vars.DATABASE_URL ?? "")) {
     return "Tankside will not start: TANKSIDE_WORKERS=0 needs PostgreSQL (DATABASE_URL=postgres://…); with SQLite the web process is the only one that can run tracking and mail, so leave TANKSIDE_WORKERS unset.";
   }

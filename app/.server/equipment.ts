@@ -80,7 +80,10 @@ export function listEquipment(filter: { kind?: EquipmentKind; inServiceOnly?: bo
       ...(filter.kind ? { kind: filter.kind } : {}),
       ...(filter.inServiceOnly ? { status: "in_service" } : {}),
     },
-    order: [["kind", "ASC"], ["name", "ASC"]],
+    order: [
+      ["kind", "ASC"],
+      ["name", "ASC"],
+    ],
   });
 }
 

@@ -13,9 +13,6 @@ import { formatDuration, timeFormat } from "~/lib/time-format";
 import { getLabTimeZone } from "./settings";
 export { INVITATION_HOURS, RESET_MINUTES };
 
-
-
-
 export class PeopleError extends Error {
   constructor(
     message: string,
@@ -27,7 +24,12 @@ export class PeopleError extends Error {
 }
 
 export function listPeople() {
-  return User.findAll({ order: [["active", "DESC"], ["name", "ASC"]] });
+  return User.findAll({
+    order: [
+      ["active", "DESC"],
+      ["name", "ASC"],
+    ],
+  });
 }
 
 function newLinkSecret() {
@@ -44,10 +46,7 @@ async function issueToken(
   secret = newLinkSecret(),
 ) {
   // Any earlier link of the same purpose stops working once a new one is sent.
-  await AuthToken.update(
-    { usedAt: new Date() },
-    { where: { userId, purpose, usedAt: { [Op.is]: null } }, transaction },
-  );
+  await AuthToken.update({ usedAt: new Date() }, { where: { userId, purpose, usedAt: { [Op.is]: null } }, transaction });
   const row = await AuthToken.create(
     {
       userId,
@@ -144,24 +143,23 @@ export async function findUsableToken(token: string, purpose: AuthTokenPurpose) 
 /** Spends the token and sets the password, in one transaction so a link can never work twice. */
 export async function setPasswordWithToken(token: string, purpose: AuthTokenPurpose, password: string) {
   const passwordHash = await hashPassword(password);
-  return sequelize.transaction(async (transaction) => {
-    const row = await AuthToken.findOne({ where: { tokenHash: hashToken(token), purpose }, transaction });
-    if (!row || row.usedAt || row.expiresAt.getTime() < Date.now()) {
-      throw new PeopleError("This link has expired or has already been used. Ask for a new one.", undefined, 410);
-    }
-    const [spent] = await AuthToken.update(
-      { usedAt: new Date() },
-      { where: { id: row.id, usedAt: { [Op.is]: null } }, transaction },
-    );
-    if (spent !== 1) throw new PeopleError("This link has already been used.", undefined, 410);
-    const user = await User.findByPk(row.userId, { transaction });
-    if (!user || !user.active) throw new PeopleError("This account is not active.", undefined, 410);
-    await user.update({ passwordHash, passwordChangedAt: new Date() }, { transaction });
-    return user;
-  }).then(async (user) => {
-    await afterPasswordChange(user, { via: purpose === "password_reset" ? "reset" : "invitation" });
-    return user;
-  });
+  return sequelize
+    .transaction(async (transaction) => {
+      const row = await AuthToken.findOne({ where: { tokenHash: hashToken(token), purpose }, transaction });
+      if (!row || row.usedAt || row.expiresAt.getTime() < Date.now()) {
+        throw new PeopleError("This link has expired or has already been used. Ask for a new one.", undefined, 410);
+      }
+      const [spent] = await AuthToken.update({ usedAt: new Date() }, { where: { id: row.id, usedAt: { [Op.is]: null } }, transaction });
+      if (spent !== 1) throw new PeopleError("This link has already been used.", undefined, 410);
+      const user = await User.findByPk(row.userId, { transaction });
+      if (!user || !user.active) throw new PeopleError("This account is not active.", undefined, 410);
+      await user.update({ passwordHash, passwordChangedAt: new Date() }, { transaction });
+      return user;
+    })
+    .then(async (user) => {
+      await afterPasswordChange(user, { via: purpose === "password_reset" ? "reset" : "invitation" });
+      return user;
+    });
 }
 
 const resetsUnderWay = new Set<Promise<void>>();
@@ -240,7 +238,12 @@ export async function changeOwnPassword(userId: number, current: string, next: s
  * counts again without the first one's person, and is refused.
  */
 async function usableManagerCount(transaction: Transaction) {
-  const managers = await User.findAll({ where: { role: "lab_manager", active: true, passwordHash: { [Op.ne]: null } }, attributes: ["id"], order: [["id", "ASC"]], ...locking(transaction) });
+  const managers = await User.findAll({
+    where: { role: "lab_manager", active: true, passwordHash: { [Op.ne]: null } },
+    attributes: ["id"],
+    order: [["id", "ASC"]],
+    ...locking(transaction),
+  });
   return managers.length;
 }
 

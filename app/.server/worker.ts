@@ -6,7 +6,9 @@ import { isSqlite, migrate, sequelize } from "./db";
 import { env, mailSetupProblem } from "./env";
 
 if (isSqlite) {
-  console.error("npm run worker needs PostgreSQL (DATABASE_URL=postgres://…): with SQLite the web process runs tracking, mail and reminders itself, on one machine.");
+  console.error(
+    "npm run worker needs PostgreSQL (DATABASE_URL=postgres://…): with SQLite the web process runs tracking, mail and reminders itself, on one machine.",
+  );
   process.exit(1);
 }
 const mailProblem = mailSetupProblem(process.env);

@@ -41,9 +41,7 @@ export function AppShell({ user, showMail, children }: { user: ShellUser | null;
                 <span className="block text-sm text-tank-100">{roleLabels[user.role]}</span>
               </NavLink>
               <Form method="post" action="/sign-out">
-                <button className="min-h-12 rounded-lg border-2 border-tank-100 px-4 font-bold text-white hover:bg-tank-700">
-                  Sign out
-                </button>
+                <button className="min-h-12 rounded-lg border-2 border-tank-100 px-4 font-bold text-white hover:bg-tank-700">Sign out</button>
               </Form>
             </div>
           ) : null}
@@ -57,9 +55,7 @@ export function AppShell({ user, showMail, children }: { user: ShellUser | null;
                     to={s.to}
                     end={s.to === "/"}
                     className={({ isActive }) =>
-                      `block min-h-12 px-4 py-3 font-bold no-underline ${
-                        isActive ? "bg-paper text-tank-800" : "text-white hover:bg-tank-800 hover:text-white"
-                      }`
+                      `block min-h-12 px-4 py-3 font-bold no-underline ${isActive ? "bg-paper text-tank-800" : "text-white hover:bg-tank-800 hover:text-white"}`
                     }
                   >
                     {s.label}
@@ -72,8 +68,8 @@ export function AppShell({ user, showMail, children }: { user: ShellUser | null;
       </header>
       <main className="mx-auto w-full max-w-7xl flex-1 px-4 py-6">{children}</main>
       <footer className="no-print border-t border-line py-4 text-center text-sm text-muted">
-        Tankside — keep hands clear of a turning table and water away from mains power; the lab's own safety rules and the
-        equipment maker's instructions come first.
+        Tankside — keep hands clear of a turning table and water away from mains power; the lab's own safety rules and the equipment maker's instructions come
+        first.
       </footer>
     </div>
   );

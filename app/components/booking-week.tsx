@@ -79,7 +79,11 @@ export function BookingWeek({ bookings, week, itemId }: { bookings: WeekBooking[
         scrollToTime={new Date(1970, 0, 1, 8)}
         step={30}
         timeslots={2}
-        formats={{ timeGutterFormat: "HH:mm", eventTimeRangeFormat: ({ start, end }) => `${format(start, "HH:mm")}–${format(end, "HH:mm")}`, dayFormat: "EEE d MMM" }}
+        formats={{
+          timeGutterFormat: "HH:mm",
+          eventTimeRangeFormat: ({ start, end }) => `${format(start, "HH:mm")}–${format(end, "HH:mm")}`,
+          dayFormat: "EEE d MMM",
+        }}
         messages={{ today: "This week", previous: "Previous week", next: "Next week", noEventsInRange: "No bookings this week." }}
         style={{ height: 640 }}
       />

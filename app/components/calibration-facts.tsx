@@ -29,6 +29,7 @@ export function calibrationResult(c: Result): string {
     const b = c.interceptRpm ?? 0;
     return `measured = ${formatNumber(c.slope, 5)} × set ${b < 0 ? "−" : "+"} ${formatNumber(Math.abs(b), 3)} rpm; residual SD ${formatNumber(c.residualSdRpm, 2)} rpm; worst ${formatNumber(c.maxDeviationPct, 2)} % (tolerance ${c.tolerancePct} %) — ${c.passed ? "passes" : "fails"}`;
   }
-  if (c.kind === "scale") return `${formatNumber(c.scalePxPerM, 5)} ± ${formatNumber(c.scaleUncertaintyPxPerM, 2)} px/m${c.tolerancePct !== null ? `; view setups within ${c.tolerancePct} % agree` : ""}`;
+  if (c.kind === "scale")
+    return `${formatNumber(c.scalePxPerM, 5)} ± ${formatNumber(c.scaleUncertaintyPxPerM, 2)} px/m${c.tolerancePct !== null ? `; view setups within ${c.tolerancePct} % agree` : ""}`;
   return `${formatNumber(c.trueFrameRateFps, 6)} ± ${formatNumber(c.trueFrameRateUncertaintyFps, 2)} frames/s (${(c.frameRateDeviationPct ?? 0) >= 0 ? "+" : ""}${formatNumber(c.frameRateDeviationPct, 2)} % from nominal)`;
 }

@@ -8,7 +8,14 @@ import { Card, Tag } from "./ui/card";
 import { Notice } from "./ui/notice";
 import { StandingTag, calibrationResult } from "./calibration-facts";
 
-type RecordRow = Parameters<typeof calibrationResult>[0] & { id: number; kind: CalibrationKind; performedAt: string; dueAt: string; standing: CalibrationStanding; performedByName: string };
+type RecordRow = Parameters<typeof calibrationResult>[0] & {
+  id: number;
+  kind: CalibrationKind;
+  performedAt: string;
+  dueAt: string;
+  standing: CalibrationStanding;
+  performedByName: string;
+};
 
 /** The calibration section of an equipment page: what is in force per kind, past-due flags, and the history. */
 export function EquipmentCalibrations({
@@ -30,7 +37,8 @@ export function EquipmentCalibrations({
       {pastDue.length ? (
         <div className="mb-4">
           <Notice kind="error" title="Past due">
-            {pastDue.map((k) => `${calibrationKindLabels[k.kind]} was due ${time.date(k.current!.dueAt)}`).join("; ")}. Runs made with this item are flagged until a new record is signed off.
+            {pastDue.map((k) => `${calibrationKindLabels[k.kind]} was due ${time.date(k.current!.dueAt)}`).join("; ")}. Runs made with this item are flagged
+            until a new record is signed off.
           </Notice>
         </div>
       ) : null}
@@ -41,13 +49,18 @@ export function EquipmentCalibrations({
               <span className="font-bold">{calibrationKindLabels[k.kind]}: </span>
               {k.current ? (
                 <>
-                  <StandingTag standing={k.current.standing} /> <Link to={`/calibrations/${k.current.id}`}>record #{k.current.id}</Link>, due {time.date(k.current.dueAt)}
+                  <StandingTag standing={k.current.standing} /> <Link to={`/calibrations/${k.current.id}`}>record #{k.current.id}</Link>, due{" "}
+                  {time.date(k.current.dueAt)}
                 </>
               ) : (
                 <Tag tone="caution">None signed off</Tag>
               )}
             </span>
-            {canRecord ? <ButtonLink to={`/calibrations/new?equipmentId=${itemId}&kind=${k.kind}`} tone="quiet">Record</ButtonLink> : null}
+            {canRecord ? (
+              <ButtonLink to={`/calibrations/new?equipmentId=${itemId}&kind=${k.kind}`} tone="quiet">
+                Record
+              </ButtonLink>
+            ) : null}
           </li>
         ))}
       </ul>
@@ -64,10 +77,18 @@ export function EquipmentCalibrations({
           <tbody>
             {records.map((r) => (
               <tr key={r.id} className="border-b border-line align-top">
-                <td className="py-2 pr-3"><Link to={`/calibrations/${r.id}`}>{calibrationKindLabels[r.kind]} #{r.id}</Link></td>
-                <td className="py-2 pr-3">{time.date(r.performedAt)}, {r.performedByName}</td>
+                <td className="py-2 pr-3">
+                  <Link to={`/calibrations/${r.id}`}>
+                    {calibrationKindLabels[r.kind]} #{r.id}
+                  </Link>
+                </td>
+                <td className="py-2 pr-3">
+                  {time.date(r.performedAt)}, {r.performedByName}
+                </td>
                 <td className="py-2 pr-3">{calibrationResult(r)}</td>
-                <td className="py-2"><StandingTag standing={r.standing} /></td>
+                <td className="py-2">
+                  <StandingTag standing={r.standing} />
+                </td>
               </tr>
             ))}
           </tbody>
@@ -80,10 +101,25 @@ export function EquipmentCalibrations({
 }
 
 /** The coming bookings of an item, with the way to the week view and the request form. */
-export function EquipmentBookings({ itemId, isTable, bookings }: { itemId: number; isTable: boolean; bookings: { id: number; start: string; end: string; purpose: string; state: BookingState; requesterName: string }[] }) {
+export function EquipmentBookings({
+  itemId,
+  isTable,
+  bookings,
+}: {
+  itemId: number;
+  isTable: boolean;
+  bookings: { id: number; start: string; end: string; purpose: string; state: BookingState; requesterName: string }[];
+}) {
   const time = useLabTime();
   return (
-    <Card title="Bookings" actions={<ButtonLink to={`/bookings?item=${itemId}#week`} tone="quiet">Week view and request</ButtonLink>}>
+    <Card
+      title="Bookings"
+      actions={
+        <ButtonLink to={`/bookings?item=${itemId}#week`} tone="quiet">
+          Week view and request
+        </ButtonLink>
+      }
+    >
       {isTable ? <p className="mb-3 text-sm text-muted">{tableBookingCaution}</p> : null}
       {bookings.length ? (
         <ul className="flex flex-col gap-2">

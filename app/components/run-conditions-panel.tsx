@@ -46,7 +46,6 @@ function Row({ label, value, unit, note }: { label: string; value: string; unit?
   );
 }
 
-
 /** The run's conditions worked out live from the same library code the server uses. */
 export function RunConditionsPanel(p: RunConditionsProps) {
   const time = useLabTime();
@@ -78,9 +77,7 @@ export function RunConditionsPanel(p: RunConditionsProps) {
         <Row label="Centre-to-rim rise" value={surface ? formatNumber(surface.centreToRimRise * 1000, 3) : "—"} unit="mm" />
         {p.observed ? <Row label="Rossby number U/(|f|L)" note="tracer speed U, tank radius L" value={formatNumber(ro, 2)} /> : null}
       </dl>
-      {!tempOk && Number.isFinite(p.temperatureC) ? (
-        <p className="mt-2 text-sm text-muted">Water properties cover 0–40 °C.</p>
-      ) : null}
+      {!tempOk && Number.isFinite(p.temperatureC) ? <p className="mt-2 text-sm text-muted">Water properties cover 0–40 °C.</p> : null}
       <div className="mt-4 flex flex-col gap-3">
         {warn.map((c) => (
           <Notice key={c.kind} kind="caution">

@@ -28,8 +28,17 @@ describe("timing check: frame times rescaled by nominal/true frame rate", () => 
   });
 
   it("correctFrameTimes multiplies every time and keeps the rest of each point", () => {
-    const out = correctFrameTimes([{ t: 0, x: 1, y: 2 }, { t: 3, x: 4, y: 5 }], 0.5);
-    expect(out).toEqual([{ t: 0, x: 1, y: 2 }, { t: 1.5, x: 4, y: 5 }]);
+    const out = correctFrameTimes(
+      [
+        { t: 0, x: 1, y: 2 },
+        { t: 3, x: 4, y: 5 },
+      ],
+      0.5,
+    );
+    expect(out).toEqual([
+      { t: 0, x: 1, y: 2 },
+      { t: 1.5, x: 4, y: 5 },
+    ]);
   });
 });
 
@@ -72,6 +81,8 @@ describe("scale calibration against the view setup's scale", () => {
 
 describe("rate calibration in words", () => {
   it("names the record, the set rate and the true rate with its standard error", () => {
-    expect(describeRate({ calibrationId: 12, setRpm: 10, trueRpm: 10.0412, stdErrorRpm: 0.0123 }).text).toMatch(/^rate calibration #12: set 10\.00 rpm → 10\.041 ± 0\.012 rpm/);
+    expect(describeRate({ calibrationId: 12, setRpm: 10, trueRpm: 10.0412, stdErrorRpm: 0.0123 }).text).toMatch(
+      /^rate calibration #12: set 10\.00 rpm → 10\.041 ± 0\.012 rpm/,
+    );
   });
 });

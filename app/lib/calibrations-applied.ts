@@ -88,12 +88,19 @@ export interface TimingRecord {
 export function frameTimeCorrection(record: TimingRecord, runFrameRateFps: number): { correction: FrameTimeCorrection | null; entry: AppliedCalibration } {
   const { calibrationId: id, nominalFrameRateFps: nominal, trueFrameRateFps: trueFps, trueFrameRateUncertaintyFps: u } = record;
   if (!finite(nominal) || !finite(trueFps) || !finite(u) || nominal <= 0 || trueFps <= 0 || u < 0) {
-    return { correction: null, entry: notUsed("timing", id, "the record has no usable nominal and true frame rates; frame times are as the camera gave them.") };
+    return {
+      correction: null,
+      entry: notUsed("timing", id, "the record has no usable nominal and true frame rates; frame times are as the camera gave them."),
+    };
   }
   if (!(runFrameRateFps > 0) || Math.abs(runFrameRateFps - nominal) > SAME_NOMINAL_RATE * nominal) {
     return {
       correction: null,
-      entry: notUsed("timing", id, `it timed the camera at ${formatNumber(nominal, 6)} frames/s nominal and this run was filmed at ${formatNumber(runFrameRateFps, 6)} frames/s; frame times are as the camera gave them.`),
+      entry: notUsed(
+        "timing",
+        id,
+        `it timed the camera at ${formatNumber(nominal, 6)} frames/s nominal and this run was filmed at ${formatNumber(runFrameRateFps, 6)} frames/s; frame times are as the camera gave them.`,
+      ),
     };
   }
   const factor = nominal / trueFps;
@@ -132,7 +139,10 @@ export interface ScaleRecord {
  * setup without a scale; a view setup with one keeps it, flagged when it differs from the record by
  * more than the record's tolerance (relative to the calibration's scale).
  */
-export function scaleInUse(setupPxPerM: number | null, record: ScaleRecord): { pxPerM: number | null; entry: AppliedCalibration; differencePct: number | null } {
+export function scaleInUse(
+  setupPxPerM: number | null,
+  record: ScaleRecord,
+): { pxPerM: number | null; entry: AppliedCalibration; differencePct: number | null } {
   const id = record.calibrationId;
   const cal = record.scalePxPerM;
   if (!finite(cal) || cal <= 0) {
@@ -144,7 +154,12 @@ export function scaleInUse(setupPxPerM: number | null, record: ScaleRecord): { p
     return {
       pxPerM: cal,
       differencePct: null,
-      entry: { kind: "scale", calibrationId: id, use: "applied", text: `scale calibration #${id}: applied — the view setup has no scale, so lengths use the calibration's ${calText}. ${SCALE_EFFECT}` },
+      entry: {
+        kind: "scale",
+        calibrationId: id,
+        use: "applied",
+        text: `scale calibration #${id}: applied — the view setup has no scale, so lengths use the calibration's ${calText}. ${SCALE_EFFECT}`,
+      },
     };
   }
   const stated = finite(record.tolerancePct) && record.tolerancePct > 0;
@@ -156,7 +171,11 @@ export function scaleInUse(setupPxPerM: number | null, record: ScaleRecord): { p
     return {
       pxPerM: setupPxPerM,
       differencePct,
-      entry: notUsed("scale", id, `the view setup's scale ${setupText} agrees with the calibration's ${calText} within ${formatNumber(Math.abs(differencePct), 2)} % (${toleranceText}). ${SCALE_EFFECT}`),
+      entry: notUsed(
+        "scale",
+        id,
+        `the view setup's scale ${setupText} agrees with the calibration's ${calText} within ${formatNumber(Math.abs(differencePct), 2)} % (${toleranceText}). ${SCALE_EFFECT}`,
+      ),
     };
   }
   return {

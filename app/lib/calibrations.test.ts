@@ -45,16 +45,48 @@ describe("fitRateCalibration", () => {
   });
 
   it("refuses fewer than three readings, a zero rate and a single set rate", () => {
-    expect(() => fitRateCalibration([{ setRpm: 5, measuredRpm: 5 }, { setRpm: 10, measuredRpm: 10 }], 1)).toThrow(/3 or more/);
-    expect(() => fitRateCalibration([{ setRpm: 0, measuredRpm: 0 }, { setRpm: 5, measuredRpm: 5 }, { setRpm: 10, measuredRpm: 10 }], 1)).toThrow(CalibrationInputError);
-    expect(() => fitRateCalibration([{ setRpm: 5, measuredRpm: 5.1 }, { setRpm: 5, measuredRpm: 5 }, { setRpm: 5, measuredRpm: 4.9 }], 1)).toThrow(/two different/);
+    expect(() =>
+      fitRateCalibration(
+        [
+          { setRpm: 5, measuredRpm: 5 },
+          { setRpm: 10, measuredRpm: 10 },
+        ],
+        1,
+      ),
+    ).toThrow(/3 or more/);
+    expect(() =>
+      fitRateCalibration(
+        [
+          { setRpm: 0, measuredRpm: 0 },
+          { setRpm: 5, measuredRpm: 5 },
+          { setRpm: 10, measuredRpm: 10 },
+        ],
+        1,
+      ),
+    ).toThrow(CalibrationInputError);
+    expect(() =>
+      fitRateCalibration(
+        [
+          { setRpm: 5, measuredRpm: 5.1 },
+          { setRpm: 5, measuredRpm: 5 },
+          { setRpm: 5, measuredRpm: 4.9 },
+        ],
+        1,
+      ),
+    ).toThrow(/two different/);
   });
 });
 
 describe("trueRateFromCalibration", () => {
   const readings = [4, 8, 12, 16, 20].map((s, i) => ({ setRpm: s, measuredRpm: 1.004 * s - 0.02 + [0.01, -0.012, 0.004, 0.009, -0.011][i]! }));
   const fit = fitRateCalibration(readings, 1);
-  const line = { slope: fit.slope, intercept: fit.interceptRpm, slopeStdError: fit.slopeStdError, interceptStdError: fit.interceptStdErrorRpm, slopeInterceptCovariance: fit.slopeInterceptCovarianceRpm };
+  const line = {
+    slope: fit.slope,
+    intercept: fit.interceptRpm,
+    slopeStdError: fit.slopeStdError,
+    interceptStdError: fit.interceptStdErrorRpm,
+    slopeInterceptCovariance: fit.slopeInterceptCovarianceRpm,
+  };
 
   it("matches the standard error of the mean response of a fitted line, s·√(1/n + (x₀ − x̄)²/Sxx) (Draper & Smith 1998, Applied Regression Analysis, 3rd ed.; from memory)", () => {
     const x = readings.map((r) => r.setRpm);
@@ -86,7 +118,13 @@ describe("scale and timing", () => {
   });
 
   it("gives the true frame rate from counted intervals over a reference time", () => {
-    const r = frameRateFromTiming({ nominalFrameRateFps: 30, frameIntervals: 1798, frameIntervalsUncertainty: 1, referenceElapsedS: 60, referenceElapsedUncertaintyS: 0.02 });
+    const r = frameRateFromTiming({
+      nominalFrameRateFps: 30,
+      frameIntervals: 1798,
+      frameIntervalsUncertainty: 1,
+      referenceElapsedS: 60,
+      referenceElapsedUncertaintyS: 0.02,
+    });
     expect(r.trueFrameRateFps).toBeCloseTo(1798 / 60, 12);
     expect(r.frameRateDeviationPct).toBeCloseTo((100 * (1798 / 60 - 30)) / 30, 12);
     expect(r.trueFrameRateUncertaintyFps).toBeCloseTo((1798 / 60) * Math.hypot(1 / 1798, 0.02 / 60), 12);

@@ -23,7 +23,10 @@ export function kindsForEquipment(kind: EquipmentKind): CalibrationKind[] {
   return calibrationKinds.filter((k) => calibrationKindFor[k] === kind);
 }
 
-export function intervalDaysFor(kind: CalibrationKind, settings: Pick<LabSettings, "rateCalibrationIntervalDays" | "scaleCalibrationIntervalDays" | "timingCheckIntervalDays">) {
+export function intervalDaysFor(
+  kind: CalibrationKind,
+  settings: Pick<LabSettings, "rateCalibrationIntervalDays" | "scaleCalibrationIntervalDays" | "timingCheckIntervalDays">,
+) {
   return kind === "rate" ? settings.rateCalibrationIntervalDays : kind === "scale" ? settings.scaleCalibrationIntervalDays : settings.timingCheckIntervalDays;
 }
 
@@ -149,7 +152,12 @@ export interface ScaleResult {
 }
 
 /** Pixels per metre from a known length seen in the image; relative uncertainties add in quadrature. */
-export function scaleFromKnownLength(input: { knownLengthM: number; knownLengthUncertaintyM: number; lengthPx: number; lengthUncertaintyPx: number }): ScaleResult {
+export function scaleFromKnownLength(input: {
+  knownLengthM: number;
+  knownLengthUncertaintyM: number;
+  lengthPx: number;
+  lengthUncertaintyPx: number;
+}): ScaleResult {
   const { knownLengthM: L, knownLengthUncertaintyM: uL, lengthPx: P, lengthUncertaintyPx: uP } = input;
   if (!(L > 0)) throw new CalibrationInputError("The known length must be more than zero.", "knownLengthMm");
   if (!(P > 0)) throw new CalibrationInputError("The length in the image must be more than zero pixels.", "lengthPx");

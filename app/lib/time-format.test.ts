@@ -9,13 +9,16 @@ afterEach(() => {
 });
 
 describe("times in the lab's zone", () => {
-  it.each(["Pacific/Auckland", "America/Los_Angeles", "UTC"])("08:50Z reads 09:50 CET in Berlin and 03:50 GMT-5 in New York whatever the process zone (%s)", (tz) => {
-    process.env.TZ = tz;
-    expect(new Date(2026, 11, 3).getTimezoneOffset() === 0).toBe(tz === "UTC"); // the process zone really changed
-    expect(timeFormat("Europe/Berlin").dateTime(at)).toBe("3 Dec 2026, 09:50 CET");
-    expect(timeFormat("America/New_York").dateTime(at)).toBe("3 Dec 2026, 03:50 GMT-5");
-    expect(timeFormat("UTC").time(at)).toBe("08:50 UTC");
-  });
+  it.each(["Pacific/Auckland", "America/Los_Angeles", "UTC"])(
+    "08:50Z reads 09:50 CET in Berlin and 03:50 GMT-5 in New York whatever the process zone (%s)",
+    (tz) => {
+      process.env.TZ = tz;
+      expect(new Date(2026, 11, 3).getTimezoneOffset() === 0).toBe(tz === "UTC"); // the process zone really changed
+      expect(timeFormat("Europe/Berlin").dateTime(at)).toBe("3 Dec 2026, 09:50 CET");
+      expect(timeFormat("America/New_York").dateTime(at)).toBe("3 Dec 2026, 03:50 GMT-5");
+      expect(timeFormat("UTC").time(at)).toBe("08:50 UTC");
+    },
+  );
 
   it("the date is the lab's day, not UTC's", () => {
     const late = new Date("2026-12-03T23:30:00Z");

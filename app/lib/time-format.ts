@@ -23,7 +23,8 @@ function formatter(zone: string, kind: "date" | "dateTime" | "time" | "timeSecon
     if (kind === "timeSeconds") Object.assign(options, { hour: "2-digit", minute: "2-digit", second: "2-digit", hourCycle: "h23" });
     if (kind === "zoneName") Object.assign(options, { timeZoneName: "short" });
     if (kind === "weekday") Object.assign(options, { weekday: "long", day: "numeric", month: "short" });
-    if (kind === "parts") Object.assign(options, { year: "numeric", month: "2-digit", day: "2-digit", hour: "2-digit", minute: "2-digit", second: "2-digit", hourCycle: "h23" });
+    if (kind === "parts")
+      Object.assign(options, { year: "numeric", month: "2-digit", day: "2-digit", hour: "2-digit", minute: "2-digit", second: "2-digit", hourCycle: "h23" });
     f = new Intl.DateTimeFormat(LOCALE, options);
     cache.set(key, f);
   }
@@ -61,7 +62,11 @@ export function systemTimeZone(): string {
 
 /** The wall-clock fields of an instant in a zone. */
 export function wallTime(d: Date, zone: string) {
-  const parts = Object.fromEntries(formatter(zone, "parts").formatToParts(d).map((p) => [p.type, p.value]));
+  const parts = Object.fromEntries(
+    formatter(zone, "parts")
+      .formatToParts(d)
+      .map((p) => [p.type, p.value]),
+  );
   return {
     year: Number(parts.year),
     month: Number(parts.month),
@@ -81,7 +86,11 @@ function offsetMs(d: Date, zone: string) {
 
 /** The zone's short name at that instant ("CET", "GMT-5"). */
 export function zoneName(d: Date, zone: string): string {
-  return formatter(zone, "zoneName").formatToParts(d).find((p) => p.type === "timeZoneName")?.value ?? zone;
+  return (
+    formatter(zone, "zoneName")
+      .formatToParts(d)
+      .find((p) => p.type === "timeZoneName")?.value ?? zone
+  );
 }
 
 const pad = (n: number, w = 2) => String(n).padStart(w, "0");

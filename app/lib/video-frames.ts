@@ -6,10 +6,7 @@
  * Pure: the browser part lives beside the upload component.
  */
 
-export type FrameOffer =
-  | { kind: "new"; index: number; timeS: number }
-  | { kind: "repeat" }
-  | { kind: "gap"; reason: string };
+export type FrameOffer = { kind: "new"; index: number; timeS: number } | { kind: "repeat" } | { kind: "gap"; reason: string };
 
 export class FrameTimeline {
   readonly times: number[] = [];
@@ -53,7 +50,11 @@ export const cuttingRates = [1, 0.5, 0.25, 0.1] as const;
 
 /** File name of the i-th frame cut from a video: the video's name, made safe, and a zero-padded index. */
 export function cutFrameName(videoName: string, index: number): string {
-  const base = videoName.replace(/\.[^.]+$/, "").replace(/[^a-zA-Z0-9_-]+/g, "_").slice(0, 200) || "video";
+  const base =
+    videoName
+      .replace(/\.[^.]+$/, "")
+      .replace(/[^a-zA-Z0-9_-]+/g, "_")
+      .slice(0, 200) || "video";
   return `${base}_${String(index).padStart(5, "0")}.jpg`;
 }
 

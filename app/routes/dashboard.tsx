@@ -38,11 +38,34 @@ function RunLines({ items, empty }: { items: RunListItem[]; empty: string }) {
   );
 }
 
-function QueueCard({ title, queue, empty, hint }: { title: string; queue: { state: string; total: number; items: RunListItem[]; technicianId: number | null } | null; empty: string; hint: string }) {
+function QueueCard({
+  title,
+  queue,
+  empty,
+  hint,
+}: {
+  title: string;
+  queue: { state: string; total: number; items: RunListItem[]; technicianId: number | null } | null;
+  empty: string;
+  hint: string;
+}) {
   if (!queue) return null;
   const link = `/runs${runFiltersToSearch({ state: queue.state as never, technician: queue.technicianId ?? undefined, sort: "createdAt", dir: "asc" })}`;
   return (
-    <Card title={<>{title} <span className="ml-1 rounded-md bg-tank-50 px-2 font-mono text-tank-800">{queue.total}</span></>} actions={queue.total > queue.items.length ? <Link to={link} className="inline-flex min-h-12 items-center font-bold">All {queue.total} →</Link> : null}>
+    <Card
+      title={
+        <>
+          {title} <span className="ml-1 rounded-md bg-tank-50 px-2 font-mono text-tank-800">{queue.total}</span>
+        </>
+      }
+      actions={
+        queue.total > queue.items.length ? (
+          <Link to={link} className="inline-flex min-h-12 items-center font-bold">
+            All {queue.total} →
+          </Link>
+        ) : null
+      }
+    >
       <p className="mb-2 text-sm text-muted">{hint}</p>
       <RunLines items={queue.items} empty={empty} />
     </Card>
@@ -60,7 +83,11 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
         subtitle={`Signed in as ${roleLabels[user.role].toLowerCase()}.`}
         actions={
           <>
-            {logsRuns ? <ButtonLink to="/runs/new" tone="primary">Log a run</ButtonLink> : null}
+            {logsRuns ? (
+              <ButtonLink to="/runs/new" tone="primary">
+                Log a run
+              </ButtonLink>
+            ) : null}
             <ButtonLink to="/bookings">Book table time</ButtonLink>
             <ButtonLink to="/runs">All runs</ButtonLink>
           </>
@@ -68,7 +95,16 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
       />
 
       <div className="grid gap-6 lg:grid-cols-2">
-        <Card title={`Approved bookings, today and the next ${d.bookingDaysAhead} days`} actions={d.requestedCount ? <Link to="/bookings" className="inline-flex min-h-12 items-center font-bold">{d.requestedCount} waiting for a decision →</Link> : null}>
+        <Card
+          title={`Approved bookings, today and the next ${d.bookingDaysAhead} days`}
+          actions={
+            d.requestedCount ? (
+              <Link to="/bookings" className="inline-flex min-h-12 items-center font-bold">
+                {d.requestedCount} waiting for a decision →
+              </Link>
+            ) : null
+          }
+        >
           {d.bookings.length === 0 ? (
             <p className="text-muted">No approved bookings in these days.</p>
           ) : (
@@ -79,7 +115,9 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
                     <span className="font-bold text-ink">{time.dayLabel(b.start)}</span>
                     <span className="font-mono">{time.timeRange(b.start, b.end)}</span>
                     <span className="text-ink">{b.equipmentName}</span>
-                    <span className="text-sm text-muted">{b.purpose} · {b.requesterName}</span>
+                    <span className="text-sm text-muted">
+                      {b.purpose} · {b.requesterName}
+                    </span>
                     {b.mine ? <Tag tone="tank">Yours</Tag> : null}
                   </Link>
                 </li>
@@ -131,8 +169,18 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
         />
 
         <Card
-          title={<>Recent verdicts that disagree <span className="ml-1 rounded-md bg-disagrees-bg px-2 font-mono text-disagrees-ink">{d.disagreeing.total}</span></>}
-          actions={d.disagreeing.total ? <Link to={`/runs${runFiltersToSearch({ verdict: "disagrees" })}`} className="inline-flex min-h-12 items-center font-bold">All →</Link> : null}
+          title={
+            <>
+              Recent verdicts that disagree <span className="ml-1 rounded-md bg-disagrees-bg px-2 font-mono text-disagrees-ink">{d.disagreeing.total}</span>
+            </>
+          }
+          actions={
+            d.disagreeing.total ? (
+              <Link to={`/runs${runFiltersToSearch({ verdict: "disagrees" })}`} className="inline-flex min-h-12 items-center font-bold">
+                All →
+              </Link>
+            ) : null
+          }
         >
           <p className="mb-2 text-sm text-muted">Measured f does not match 2Ω: check the rate calibration, the scale and the view setup.</p>
           {d.disagreeing.items.length === 0 ? (
@@ -145,7 +193,9 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
                     <VerdictTag verdict={r.verdict} />
                     <span className="font-mono text-lg font-bold">{r.label}</span>
                     <span className="text-ink">{r.purpose}</span>
-                    <span className="text-sm text-muted">{r.table.name} · {time.dateTime(r.createdAt)}</span>
+                    <span className="text-sm text-muted">
+                      {r.table.name} · {time.dateTime(r.createdAt)}
+                    </span>
                   </Link>
                 </li>
               ))}

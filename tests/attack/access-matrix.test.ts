@@ -21,14 +21,23 @@ beforeAll(async () => {
 describe("the policy table covers app/routes.ts", () => {
   it("has a row for every route, and no row for a route that is gone", () => {
     const ids = routes.map((r) => r.id);
-    expect(ids.filter((id) => !(id in policy)), "routes without a policy row in tests/attack/policy.ts").toEqual([]);
-    expect(Object.keys(policy).filter((id) => !ids.includes(id)), "policy rows naming no route").toEqual([]);
+    expect(
+      ids.filter((id) => !(id in policy)),
+      "routes without a policy row in tests/attack/policy.ts",
+    ).toEqual([]);
+    expect(
+      Object.keys(policy).filter((id) => !ids.includes(id)),
+      "policy rows naming no route",
+    ).toEqual([]);
   });
 
   it("lists only methods the route really serves", () => {
     for (const r of routes) {
       const listed = Object.keys(policy[r.id] ?? {});
-      expect(listed.filter((m) => !r.methods.includes(m as never)), `${r.id} (${r.pattern})`).toEqual([]);
+      expect(
+        listed.filter((m) => !r.methods.includes(m as never)),
+        `${r.id} (${r.pattern})`,
+      ).toEqual([]);
     }
   });
 });
@@ -54,12 +63,17 @@ describe("every route × method × person gets what the policy says", () => {
             continue;
           }
           const ok =
-            want === "public" ? got.status < 500 && got.status !== 401 && got.status !== 403
-            : want === "pass" ? got.status < 500 && got.status !== 401 && got.status !== 403 && !toSignIn
-            : want === "sign-in" ? toSignIn
-            : want === "401" ? got.status === 401 && isApiError(got.json)
-            : want === "403" ? got.status === 403 && (!route.isApi || isApiError(got.json))
-            : [401, 403, 405].includes(got.status) || toSignIn;
+            want === "public"
+              ? got.status < 500 && got.status !== 401 && got.status !== 403
+              : want === "pass"
+                ? got.status < 500 && got.status !== 401 && got.status !== 403 && !toSignIn
+                : want === "sign-in"
+                  ? toSignIn
+                  : want === "401"
+                    ? got.status === 401 && isApiError(got.json)
+                    : want === "403"
+                      ? got.status === 403 && (!route.isApi || isApiError(got.json))
+                      : [401, 403, 405].includes(got.status) || toSignIn;
           if (!ok) problems.push(where);
         }
       }

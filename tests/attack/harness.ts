@@ -148,7 +148,7 @@ const volatile = new Set(["sessions", "api_tokens", "SequelizeMeta"]);
 
 /** Row count and a hash of the contents of every table (a table added later is covered too), on either database. */
 export async function dataFingerprint() {
-  const tables = (await sequelize.getQueryInterface().showAllTables());
+  const tables = await sequelize.getQueryInterface().showAllTables();
   const out: Record<string, string | number> = {};
   for (const table of tables.filter((t) => !volatile.has(t)).sort()) {
     const [all] = await sequelize.query(`SELECT * FROM "${table}"`);

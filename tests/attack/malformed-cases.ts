@@ -34,7 +34,20 @@ export const jsonTargets: JsonTarget[] = [
     name: "log a run",
     method: "POST",
     url: () => "/api/v1/runs",
-    valid: (lab) => ({ tableId: lab.tableA.id, tankId: lab.tank.id, cameraId: lab.camera.id, setRateRpm: 10, direction: "ccw", waterDepthCm: 10, waterTemperatureC: 20, cameraMode: "rotating", frameRateFps: 30, tracer: "float", purpose: "Inertial circle demonstration", rateReachedAt: new Date(Date.now() - 3_600_000).toISOString() }),
+    valid: (lab) => ({
+      tableId: lab.tableA.id,
+      tankId: lab.tank.id,
+      cameraId: lab.camera.id,
+      setRateRpm: 10,
+      direction: "ccw",
+      waterDepthCm: 10,
+      waterTemperatureC: 20,
+      cameraMode: "rotating",
+      frameRateFps: 30,
+      tracer: "float",
+      purpose: "Inertial circle demonstration",
+      rateReachedAt: new Date(Date.now() - 3_600_000).toISOString(),
+    }),
     numbers: ["tableId", "setRateRpm", "waterDepthCm", "frameRateFps"],
     texts: ["purpose", "direction"],
     dates: ["rateReachedAt"],
@@ -54,7 +67,12 @@ export const jsonTargets: JsonTarget[] = [
     name: "request a booking",
     method: "POST",
     url: () => "/api/v1/bookings",
-    valid: (lab) => ({ equipmentId: lab.tank2.id, start: new Date(Date.now() + 40 * 86_400_000).toISOString(), end: new Date(Date.now() + 40 * 86_400_000 + 3_600_000).toISOString(), purpose: "Ekman layer class" }),
+    valid: (lab) => ({
+      equipmentId: lab.tank2.id,
+      start: new Date(Date.now() + 40 * 86_400_000).toISOString(),
+      end: new Date(Date.now() + 40 * 86_400_000 + 3_600_000).toISOString(),
+      purpose: "Ekman layer class",
+    }),
     numbers: ["equipmentId"],
     texts: ["purpose"],
     dates: ["start", "end"],
@@ -74,7 +92,15 @@ export const jsonTargets: JsonTarget[] = [
     name: "record a calibration",
     method: "POST",
     url: () => "/api/v1/calibrations",
-    valid: (lab) => ({ kind: "scale", equipmentId: lab.camera.id, performedOn: today(), knownLengthMm: 300, knownLengthUncertaintyMm: 0.5, lengthPx: 600, lengthUncertaintyPx: 1 }),
+    valid: (lab) => ({
+      kind: "scale",
+      equipmentId: lab.camera.id,
+      performedOn: today(),
+      knownLengthMm: 300,
+      knownLengthUncertaintyMm: 0.5,
+      lengthPx: 600,
+      lengthUncertaintyPx: 1,
+    }),
     numbers: ["equipmentId", "knownLengthMm", "lengthPx"],
     texts: ["notes"],
     dates: [],
@@ -85,7 +111,15 @@ export const jsonTargets: JsonTarget[] = [
     name: "replace a calibration",
     method: "PUT",
     url: (lab) => `/api/v1/calibrations/${lab.calibration.id}`,
-    valid: (lab) => ({ kind: "scale", equipmentId: lab.camera.id, performedOn: today(), knownLengthMm: 310, knownLengthUncertaintyMm: 0.5, lengthPx: 620, lengthUncertaintyPx: 1 }),
+    valid: (lab) => ({
+      kind: "scale",
+      equipmentId: lab.camera.id,
+      performedOn: today(),
+      knownLengthMm: 310,
+      knownLengthUncertaintyMm: 0.5,
+      lengthPx: 620,
+      lengthUncertaintyPx: 1,
+    }),
     numbers: ["equipmentId", "knownLengthMm"],
     texts: ["notes"],
     dates: [],
@@ -106,7 +140,11 @@ export const bodyCases: { name: string; type: string | null; body: (valid: Recor
   { name: "10 000 levels of nesting", type: "application/json", body: (v) => `{${JSON.stringify(v).slice(1, -1)},"nested":${deep(10_000)}}` },
   { name: "a NUL byte inside the JSON text", type: "application/json", body: (v) => JSON.stringify(v).replace("{", "{\u0000") },
   { name: "valid JSON sent as text/plain", type: "text/plain", body: (v) => JSON.stringify(v) },
-  { name: "a form body to a JSON route", type: "application/x-www-form-urlencoded", body: (v) => new URLSearchParams(Object.entries(v).map(([k, x]) => [k, String(x)])).toString() },
+  {
+    name: "a form body to a JSON route",
+    type: "application/x-www-form-urlencoded",
+    body: (v) => new URLSearchParams(Object.entries(v).map(([k, x]) => [k, String(x)])).toString(),
+  },
   { name: "an extra field", type: "application/json", body: (v) => JSON.stringify({ ...v, role: "lab_manager" }) },
 ];
 
@@ -162,10 +200,33 @@ export const badIds = ["abc", "1e309", "-1", "0x10", "1.5", "0", "99999999999999
 
 /** GETs with filters: each query must be refused. */
 export const queryTargets: { name: string; api: boolean; path: string; queries: string[] }[] = [
-  { name: "runs list (API)", api: true, path: "/api/v1/runs", queries: ["q=%00", "q=a%00b", `q=${"x".repeat(MB)}`, "page=abc", "page=-1", "pageSize=1e309", "from=2026-02-30", "to=0000-00-00", "sort=%00", "table=true", "table=0x10", "colour=red"] },
+  {
+    name: "runs list (API)",
+    api: true,
+    path: "/api/v1/runs",
+    queries: [
+      "q=%00",
+      "q=a%00b",
+      `q=${"x".repeat(MB)}`,
+      "page=abc",
+      "page=-1",
+      "pageSize=1e309",
+      "from=2026-02-30",
+      "to=0000-00-00",
+      "sort=%00",
+      "table=true",
+      "table=0x10",
+      "colour=red",
+    ],
+  },
   { name: "runs table rows", api: false, path: "/runs/rows", queries: ["q=%00", "page=abc", "from=2026-02-30", "table=[1]"] },
   { name: "runs page", api: false, path: "/runs", queries: ["q=%00", "pageSize=1e309", "technician=abc"] },
-  { name: "bookings (API)", api: true, path: "/api/v1/bookings", queries: ["equipmentId=abc", "equipmentId=true", "equipmentId=-1", "state=%00", "from=not-a-date", "to=%00"] },
+  {
+    name: "bookings (API)",
+    api: true,
+    path: "/api/v1/bookings",
+    queries: ["equipmentId=abc", "equipmentId=true", "equipmentId=-1", "state=%00", "from=not-a-date", "to=%00"],
+  },
   { name: "equipment (API)", api: true, path: "/api/v1/equipment", queries: ["kind=%00", "kind=table%00"] },
   { name: "calibrations (API)", api: true, path: "/api/v1/calibrations", queries: ["equipmentId=abc", "equipmentId=0x10", "equipmentId=%00"] },
 ];
@@ -175,11 +236,21 @@ export const formCases: { name: string; type: string | null; body: string | null
   { name: "no body and no Content-Type", type: null, body: null },
   { name: "JSON instead of a form", type: "application/json", body: '{"intent":"approve"}' },
   { name: "text/plain", type: "text/plain", body: "intent=approve" },
-  { name: "multipart with a boundary that never comes", type: "multipart/form-data; boundary=tankside", body: "--nope\r\nContent-Disposition: form-data; name=\"intent\"\r\n\r\napprove" },
+  {
+    name: "multipart with a boundary that never comes",
+    type: "multipart/form-data; boundary=tankside",
+    body: '--nope\r\nContent-Disposition: form-data; name="intent"\r\n\r\napprove',
+  },
   { name: "a 1 MB field of NULs", type: "application/x-www-form-urlencoded", body: `intent=${"%00".repeat(MB / 3)}` },
 ];
 
 /** Page actions that read no form and rightly act on any POST (signing out needs nothing but the session): a redirect is their answer. */
 export const actsWithoutInput = new Set(["routes/auth/sign-out"]);
 /** API actions that take no body: a POST is the whole request, so "no body" is not malformed for them. */
-export const apiActsWithoutBody = new Set(["api-booking-approve", "api-booking-cancel", "routes/api/calibration-sign-off", "routes/api/run-tracking", "routes/api/not-found"]);
+export const apiActsWithoutBody = new Set([
+  "api-booking-approve",
+  "api-booking-cancel",
+  "routes/api/calibration-sign-off",
+  "routes/api/run-tracking",
+  "routes/api/not-found",
+]);

@@ -5,10 +5,34 @@
  * §15.5 for the statuses).
  */
 import { beforeAll, describe, expect, it } from "vitest";
-import { buildRequest, callRoute, dataFingerprint, fillPattern, identitiesFor, isApiError, routedModules, type Identity, type Outcome, type RoutedModule, type Send } from "./harness";
+import {
+  buildRequest,
+  callRoute,
+  dataFingerprint,
+  fillPattern,
+  identitiesFor,
+  isApiError,
+  routedModules,
+  type Identity,
+  type Outcome,
+  type RoutedModule,
+  type Send,
+} from "./harness";
 import { attackLab, paramsFor, type AttackLab } from "./fixtures";
 import { policy } from "./policy";
-import { actsWithoutInput, apiActsWithoutBody, badIds, bodyCases, dateCases, dayCases, formCases, jsonTargets, numberCases, queryTargets, textCases } from "./malformed-cases";
+import {
+  actsWithoutInput,
+  apiActsWithoutBody,
+  badIds,
+  bodyCases,
+  dateCases,
+  dayCases,
+  formCases,
+  jsonTargets,
+  numberCases,
+  queryTargets,
+  textCases,
+} from "./malformed-cases";
 
 let lab: AttackLab;
 let routes: RoutedModule[];
@@ -61,7 +85,12 @@ describe("malformed requests get a 4xx, never a 500, and change nothing", { time
       const route = routeFor(url);
       const params = paramsOf(route, url);
       const valid = t.valid(lab);
-      const sendJson = (text: string | null, type: string | null): Send => ({ method: t.method, url, headers: type ? { "Content-Type": type } : {}, body: text });
+      const sendJson = (text: string | null, type: string | null): Send => ({
+        method: t.method,
+        url,
+        headers: type ? { "Content-Type": type } : {},
+        body: text,
+      });
       for (const c of bodyCases) {
         await attack(`${t.name}, ${c.name}`, route, sendJson(c.body(valid), c.type), params, problems);
         n++;
@@ -70,7 +99,12 @@ describe("malformed requests get a 4xx, never a 500, and change nothing", { time
         const base = JSON.stringify({ ...valid, [field]: "__value__" });
         return base.replace('"__value__"', json);
       };
-      const fieldCases: [string[], { name: string; json: string }[]][] = [[t.numbers, numberCases], [t.texts, textCases], [t.dates, dateCases], [t.days ?? [], dayCases]];
+      const fieldCases: [string[], { name: string; json: string }[]][] = [
+        [t.numbers, numberCases],
+        [t.texts, textCases],
+        [t.dates, dateCases],
+        [t.days ?? [], dayCases],
+      ];
       for (const [fields, cases] of fieldCases) {
         for (const field of fields) {
           for (const c of cases) {
@@ -101,7 +135,13 @@ describe("malformed requests get a 4xx, never a 500, and change nothing", { time
           for (const method of route.methods.filter((m) => policy[route.id]?.[m] !== undefined)) {
             const body = method === "GET" ? null : route.isApi ? "{}" : new URLSearchParams({ intent: "sign-off", confirm: "yes" });
             const headers: Record<string, string> = method === "GET" ? {} : route.isApi ? { "Content-Type": "application/json" } : {};
-            await attack(`${route.id} with ${name} = ${JSON.stringify(bad)}`, route, { method, url: fillPattern(route.pattern, params), headers, body }, params, problems);
+            await attack(
+              `${route.id} with ${name} = ${JSON.stringify(bad)}`,
+              route,
+              { method, url: fillPattern(route.pattern, params), headers, body },
+              params,
+              problems,
+            );
             n++;
           }
         }
@@ -134,14 +174,27 @@ describe("malformed requests get a 4xx, never a 500, and change nothing", { time
       if (route.isApi) {
         if (apiActsWithoutBody.has(route.id)) continue;
         for (const c of formCases) {
-          await attack(`${route.id}, ${c.name}`, route, { method: "POST", url, headers: c.type ? { "Content-Type": c.type } : {}, body: c.body }, params, problems);
+          await attack(
+            `${route.id}, ${c.name}`,
+            route,
+            { method: "POST", url, headers: c.type ? { "Content-Type": c.type } : {}, body: c.body },
+            params,
+            problems,
+          );
           n++;
         }
         continue;
       }
       for (const c of formCases) {
         const okWhen = actsWithoutInput.has(route.id) ? (o: Outcome) => o.status >= 300 && o.status < 400 : undefined;
-        await attack(`${route.id}, ${c.name}`, route, { method: "POST", url, headers: c.type ? { "Content-Type": c.type } : {}, body: c.body }, params, problems, okWhen);
+        await attack(
+          `${route.id}, ${c.name}`,
+          route,
+          { method: "POST", url, headers: c.type ? { "Content-Type": c.type } : {}, body: c.body },
+          params,
+          problems,
+          okWhen,
+        );
         n++;
       }
     }
@@ -153,7 +206,11 @@ describe("malformed requests get a 4xx, never a 500, and change nothing", { time
     for (const t of jsonTargets) {
       const url = t.url(lab);
       const route = routeFor(url);
-      const got = await callRoute(route, await buildRequest(manager.token, { method: t.method, url, headers: { "Content-Type": "application/json" }, body: JSON.stringify(t.valid(lab)) }), paramsOf(route, url));
+      const got = await callRoute(
+        route,
+        await buildRequest(manager.token, { method: t.method, url, headers: { "Content-Type": "application/json" }, body: JSON.stringify(t.valid(lab)) }),
+        paramsOf(route, url),
+      );
       expect(got.status, `${t.name}: ${JSON.stringify(got.json)?.slice(0, 300)}`).toBeLessThan(300);
     }
     const total = Object.values(counts).reduce((a, b) => a + b, 0);

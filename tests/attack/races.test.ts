@@ -11,7 +11,19 @@
  */
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from "vitest";
 import { Op } from "sequelize";
-import { CalendarFeed, Calibration, CalibrationHistory, LabSetting, OutboxMail, Run, RunHistory, User, UserPreference, ViewSetup, sequelize } from "~/.server/db";
+import {
+  CalendarFeed,
+  Calibration,
+  CalibrationHistory,
+  LabSetting,
+  OutboxMail,
+  Run,
+  RunHistory,
+  User,
+  UserPreference,
+  ViewSetup,
+  sequelize,
+} from "~/.server/db";
 import { feedOwner } from "~/.server/bookings";
 import { createApiToken } from "~/.server/auth/api-tokens";
 import { checkedRunFor } from "~/.server/runs/testing";
@@ -47,7 +59,12 @@ const asCookie = (user: { id: number }): Identity => ({ label: "by cookie", role
 /** A form POST to a page action, answered as React Router would (a throw that is not a Response is a 500). */
 async function post(action: unknown, who: { id: number }, url: string, fields: Record<string, string>, params: Record<string, string> = {}): Promise<Outcome> {
   const route = { action, isApi: false } as unknown as RoutedModule;
-  const request = await buildRequest(asCookie(who), { method: "POST", url, headers: { "Content-Type": "application/x-www-form-urlencoded" }, body: new URLSearchParams(fields).toString() });
+  const request = await buildRequest(asCookie(who), {
+    method: "POST",
+    url,
+    headers: { "Content-Type": "application/x-www-form-urlencoded" },
+    body: new URLSearchParams(fields).toString(),
+  });
   return callRoute(route, request, params);
 }
 
@@ -110,7 +127,9 @@ describe("twenty of the same write at once: one row, no 500", { timeout: 120_000
 
   it("run table columns (one preference per person and key): twenty saves leave one row", async () => {
     holdTogether(insertInto("user_preferences"), 20);
-    const { crashes, statuses } = await twenty((i) => post(runsListAction, lab.technician, "/runs", { intent: "columns", hidden: JSON.stringify(i % 2 ? ["purpose"] : ["tank", "camera"]) }));
+    const { crashes, statuses } = await twenty((i) =>
+      post(runsListAction, lab.technician, "/runs", { intent: "columns", hidden: JSON.stringify(i % 2 ? ["purpose"] : ["tank", "camera"]) }),
+    );
     expect(crashes).toEqual([]);
     expect(statuses).toEqual({ 200: 20 });
     expect(await UserPreference.count({ where: { userId: lab.technician.id, key: "runs.columns" } })).toBe(1);
@@ -130,7 +149,13 @@ describe("twenty of the same write at once: one row, no 500", { timeout: 120_000
 
   it("lab settings (one row per setting): twenty saves at once leave one row per setting", async () => {
     holdTogether(insertInto("lab_settings"), 20);
-    const form = (i: number) => Object.fromEntries(Object.entries({ ...settingDefaults, spinUpTimesToWait: 3 + (i % 5), timeZone: i % 2 ? "Europe/Berlin" : "America/New_York" }).map(([k, v]) => [k, String(v)]));
+    const form = (i: number) =>
+      Object.fromEntries(
+        Object.entries({ ...settingDefaults, spinUpTimesToWait: 3 + (i % 5), timeZone: i % 2 ? "Europe/Berlin" : "America/New_York" }).map(([k, v]) => [
+          k,
+          String(v),
+        ]),
+      );
     const { crashes, statuses } = await twenty((i) => post(settingsAction, lab.manager, "/settings", form(i)));
     expect(crashes).toEqual([]);
     expect(statuses).toEqual({ 200: 20 });
@@ -142,7 +167,9 @@ describe("twenty of the same write at once: one row, no 500", { timeout: 120_000
   it("people (one per e-mail address): twenty invitations of one address at once add one person and send one invitation; the rest are told 409", async () => {
     const email = "new.person@tankside.example";
     holdTogether(insertInto("users"), 20);
-    const { crashes, statuses } = await twenty(() => post(peopleAction, lab.manager, "/people", { intent: "invite", email, name: "New Person", role: "technician" }));
+    const { crashes, statuses } = await twenty(() =>
+      post(peopleAction, lab.manager, "/people", { intent: "invite", email, name: "New Person", role: "technician" }),
+    );
     expect(crashes).toEqual([]);
     expect(statuses).toEqual({ 200: 1, 409: 19 });
     expect(await User.count({ where: { email } })).toBe(1);
@@ -152,13 +179,23 @@ describe("twenty of the same write at once: one row, no 500", { timeout: 120_000
   it("the last two lab managers demoted at the same moment: one change goes through, the other is refused, and one manager remains (10 tries)", async () => {
     for (let attempt = 0; attempt < 10; attempt++) {
       const pair = await Promise.all(
-        ["a", "b"].map((x) => User.create({ email: `manager.${x}${attempt}@tankside.example`, name: `Manager ${x}`, role: "lab_manager", passwordHash: "set", passwordChangedAt: new Date() })),
+        ["a", "b"].map((x) =>
+          User.create({
+            email: `manager.${x}${attempt}@tankside.example`,
+            name: `Manager ${x}`,
+            role: "lab_manager",
+            passwordHash: "set",
+            passwordChangedAt: new Date(),
+          }),
+        ),
       );
       // Only these two count: the fixture's manager, who asks for both changes, has no password (an unanswered invitation), and
       // the pair left over from the try before is one manager who now steps aside.
       await User.update({ role: "technician" }, { where: { role: "lab_manager", id: { [Op.notIn]: pair.map((u) => u.id) }, passwordHash: { [Op.ne]: null } } });
       holdTogether(/^\s*UPDATE [`"]users[`"] SET [`"]role[`"]/i, 2);
-      const outcomes = await Promise.all(pair.map((u) => post(peopleAction, lab.manager, "/people", { intent: "role", userId: String(u.id), role: "technician" })));
+      const outcomes = await Promise.all(
+        pair.map((u) => post(peopleAction, lab.manager, "/people", { intent: "role", userId: String(u.id), role: "technician" })),
+      );
       expect(outcomes.map((o) => o.crash)).toEqual([null, null]);
       expect(outcomes.map((o) => o.status).sort()).toEqual([200, 409]);
       vi.restoreAllMocks();
@@ -171,7 +208,12 @@ describe("twenty of the same write at once: one row, no 500", { timeout: 120_000
 async function api(action: unknown, token: string, method: string, url: string, id: number, body?: unknown): Promise<Outcome> {
   const route = { action, isApi: true } as unknown as RoutedModule;
   const who: Identity = { label: "by token", role: null, by: "token", token };
-  const request = await buildRequest(who, { method, url, headers: body ? { "Content-Type": "application/json" } : {}, body: body ? JSON.stringify(body) : null });
+  const request = await buildRequest(who, {
+    method,
+    url,
+    headers: body ? { "Content-Type": "application/json" } : {},
+    body: body ? JSON.stringify(body) : null,
+  });
   return callRoute(route, request, { id: String(id) });
 }
 
@@ -180,8 +222,23 @@ describe("edits racing a sign-off: nothing changes once signed (5 tries each)", 
     const tech = (await createApiToken(lab.technician.id, "races")).token;
     const manager = (await createApiToken(lab.manager.id, "races")).token;
     for (let attempt = 0; attempt < 5; attempt++) {
-      const cal = await Calibration.create({ ...lab.calibration.get({ plain: true }), id: undefined, notes: "as recorded", signedOffById: null, signedOffAt: null });
-      const edit = (i: number) => ({ kind: "scale", equipmentId: lab.camera.id, performedOn: "2026-11-20", knownLengthMm: 300, knownLengthUncertaintyMm: 0.5, lengthPx: 600, lengthUncertaintyPx: 1, notes: `edit ${i}` });
+      const cal = await Calibration.create({
+        ...lab.calibration.get({ plain: true }),
+        id: undefined,
+        notes: "as recorded",
+        signedOffById: null,
+        signedOffAt: null,
+      });
+      const edit = (i: number) => ({
+        kind: "scale",
+        equipmentId: lab.camera.id,
+        performedOn: "2026-11-20",
+        knownLengthMm: 300,
+        knownLengthUncertaintyMm: 0.5,
+        lengthPx: 600,
+        lengthUncertaintyPx: 1,
+        notes: `edit ${i}`,
+      });
       const outcomes = await Promise.all([
         ...Array.from({ length: 10 }, (_, i) => api(calibrationAction, tech, "PUT", `/api/v1/calibrations/${cal.id}`, cal.id, edit(i))),
         api(calibrationSignOffAction, manager, "POST", `/api/v1/calibrations/${cal.id}/sign-off`, cal.id),

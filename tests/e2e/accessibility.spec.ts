@@ -120,7 +120,11 @@ test.describe("anonymous", () => {
     await expectAccessible(page, "the forgot-password page after sending", async () => {
       await page.goto("/forgot-password");
       await page.getByLabel("E-mail").fill("nobody@tankside.example");
-      await page.getByRole("button").filter({ hasText: /send|link/i }).first().click();
+      await page
+        .getByRole("button")
+        .filter({ hasText: /send|link/i })
+        .first()
+        .click();
       await page.waitForLoadState("networkidle");
     });
   });
@@ -129,7 +133,11 @@ test.describe("anonymous", () => {
     const after = await latestMailId(baseURL!);
     await page.goto("/forgot-password");
     await page.getByLabel("E-mail").fill(people.instructor);
-    await page.getByRole("button").filter({ hasText: /send|link/i }).first().click();
+    await page
+      .getByRole("button")
+      .filter({ hasText: /send|link/i })
+      .first()
+      .click();
     const mail = await waitForMail(baseURL!, people.instructor, "", after);
     const resetPath = linkIn(mail.text, "/reset-password/");
     await expectAccessible(page, "the reset-password form", goto(page, resetPath));

@@ -11,7 +11,10 @@ function localSlot(days: number, hour: number) {
   return { date: d, input: `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}T${pad(hour)}:00` };
 }
 
-test("an instructor requests a table in the browser, the lab manager approves it, the e-mails arrive with links, the week view and .ics show it", async ({ browser, baseURL }) => {
+test("an instructor requests a table in the browser, the lab manager approves it, the e-mails arrive with links, the week view and .ics show it", async ({
+  browser,
+  baseURL,
+}) => {
   const before = await latestMailId(baseURL!);
   const start = localSlot(9, 13);
   const end = localSlot(9, 15);
@@ -59,7 +62,8 @@ test("API: request, racing approvals, decline, cancel and bad input", async ({ b
   const instructor = await apiAs(baseURL!, people.instructor);
   const manager = await apiAs(baseURL!, people.manager);
   const tech = await apiAs(baseURL!, people.tech);
-  const iso = (days: number, h: number) => new Date(Date.UTC(new Date().getUTCFullYear(), new Date().getUTCMonth(), new Date().getUTCDate() + days, h)).toISOString();
+  const iso = (days: number, h: number) =>
+    new Date(Date.UTC(new Date().getUTCFullYear(), new Date().getUTCMonth(), new Date().getUTCDate() + days, h)).toISOString();
   const equipment = (await (await instructor.get("/api/v1/equipment?kind=table")).json()) as { id: number; name: string; status: string }[];
   const tableB = equipment.find((e) => e.name.startsWith("Table B"))!;
   const tableC = equipment.find((e) => e.status === "out_of_service")!;
@@ -68,7 +72,9 @@ test("API: request, racing approvals, decline, cancel and bad input", async ({ b
   expect(a.status()).toBe(201);
   const aBody = await a.json();
   expect(aBody).toMatchObject({ id: expect.any(Number), state: "requested", equipmentId: tableB.id });
-  const b = await (await instructor.post("/api/v1/bookings", { data: { equipmentId: tableB.id, start: iso(20, 10), end: iso(20, 12), purpose: "Race two" } })).json();
+  const b = await (
+    await instructor.post("/api/v1/bookings", { data: { equipmentId: tableB.id, start: iso(20, 10), end: iso(20, 12), purpose: "Race two" } })
+  ).json();
 
   expect((await instructor.post(`/api/v1/bookings/${aBody.id}/approve`)).status()).toBe(403);
   expect((await tech.post(`/api/v1/bookings/${aBody.id}/approve`)).status()).toBe(403);
@@ -101,7 +107,9 @@ test("API: request, racing approvals, decline, cancel and bad input", async ({ b
   expect((await endFirst.json()).error.message).toMatch(/end must be after the start/i);
   expect((await bad({ equipmentId: tableB.id, start: iso(-2, 10), end: iso(-2, 12), purpose: "Yesterday" })).status()).toBe(422);
   expect((await bad({ equipmentId: 99999, start: iso(21, 10), end: iso(21, 12), purpose: "Nothing" })).status()).toBe(404);
-  expect((await (await bad({ equipmentId: tableC.id, start: iso(21, 10), end: iso(21, 12), purpose: "Broken" })).json()).error.code).toBe("equipment_unavailable");
+  expect((await (await bad({ equipmentId: tableC.id, start: iso(21, 10), end: iso(21, 12), purpose: "Broken" })).json()).error.code).toBe(
+    "equipment_unavailable",
+  );
   expect((await bad({ equipmentId: tableB.id, start: "tomorrow", end: iso(21, 12), purpose: "Vague" })).status()).toBe(400);
   for (const c of [instructor, manager, tech]) await c.dispose();
 });
@@ -113,7 +121,12 @@ test("a technician records a rate calibration, the lab manager signs it off, aft
   // Table A: Table B keeps its past-due record for the demo check below.
   await techPage.getByLabel("Table").selectOption({ label: "Table A (east bench)" });
   await techPage.getByLabel("Rate meter used").selectOption({ label: "Optical tachometer T1" });
-  const readings = [[5, 5.012], [10, 10.031], [15, 15.052], [20, 20.069]];
+  const readings = [
+    [5, 5.012],
+    [10, 10.031],
+    [15, 15.052],
+    [20, 20.069],
+  ];
   for (const [i, [s, m]] of readings.entries()) {
     await techPage.getByLabel(`Set rate ${i + 1}`, { exact: true }).fill(String(s));
     await techPage.getByLabel(`Measured rate ${i + 1}`, { exact: true }).fill(String(m));
@@ -135,25 +148,64 @@ test("a technician records a rate calibration, the lab manager signs it off, aft
   await expect(techPage.getByText("Signed off: this record cannot change")).toBeVisible();
   const tech = await apiAs(baseURL!, people.tech);
   const before = await (await tech.get(`/api/v1/calibrations/${id}`)).json();
-  const put = await tech.put(`/api/v1/calibrations/${id}`, { data: { kind: "rate", equipmentId: before.equipmentId, meterId: before.meterId, performedOn: before.performedOn, readings: readings.map(([s]) => ({ setRpm: s, measuredRpm: s })) } });
+  const put = await tech.put(`/api/v1/calibrations/${id}`, {
+    data: {
+      kind: "rate",
+      equipmentId: before.equipmentId,
+      meterId: before.meterId,
+      performedOn: before.performedOn,
+      readings: readings.map(([s]) => ({ setRpm: s, measuredRpm: s })),
+    },
+  });
   expect(put.status()).toBe(409);
   expect((await put.json()).error.code).toBe("calibration_signed");
   expect(await (await tech.get(`/api/v1/calibrations/${id}`)).json()).toEqual(before);
 
   // Bad input: two readings, a zero rate, a due date before the calibration date, a text file as an attachment.
   const base = { kind: "rate", equipmentId: before.equipmentId, meterId: before.meterId, performedOn: before.performedOn };
-  const two = await tech.post("/api/v1/calibrations", { data: { ...base, readings: [{ setRpm: 5, measuredRpm: 5 }, { setRpm: 10, measuredRpm: 10 }] } });
+  const two = await tech.post("/api/v1/calibrations", {
+    data: {
+      ...base,
+      readings: [
+        { setRpm: 5, measuredRpm: 5 },
+        { setRpm: 10, measuredRpm: 10 },
+      ],
+    },
+  });
   expect(two.status()).toBe(400);
   expect((await two.json()).error.message).toMatch(/3 or more/);
-  expect((await tech.post("/api/v1/calibrations", { data: { ...base, readings: [{ setRpm: 0, measuredRpm: 0 }, { setRpm: 5, measuredRpm: 5 }, { setRpm: 10, measuredRpm: 10 }] } })).status()).toBe(400);
-  const early = await tech.post("/api/v1/calibrations", { data: { ...base, dueOn: "2000-01-01", readings: readings.map(([s, m]) => ({ setRpm: s, measuredRpm: m })) } });
+  expect(
+    (
+      await tech.post("/api/v1/calibrations", {
+        data: {
+          ...base,
+          readings: [
+            { setRpm: 0, measuredRpm: 0 },
+            { setRpm: 5, measuredRpm: 5 },
+            { setRpm: 10, measuredRpm: 10 },
+          ],
+        },
+      })
+    ).status(),
+  ).toBe(400);
+  const early = await tech.post("/api/v1/calibrations", {
+    data: { ...base, dueOn: "2000-01-01", readings: readings.map(([s, m]) => ({ setRpm: s, measuredRpm: m })) },
+  });
   expect(early.status()).toBe(400);
   expect((await early.json()).error.message).toMatch(/due date cannot be before/);
-  const draft = await (await tech.post("/api/v1/calibrations", { data: { ...base, readings: readings.map(([s, m]) => ({ setRpm: s, measuredRpm: m })) } })).json();
-  const notImage = await tech.post(`/api/v1/calibrations/${draft.id}/attachments`, { multipart: { file: { name: "certificate.pdf", mimeType: "application/pdf", buffer: Buffer.from("not a pdf at all") } } });
+  const draft = await (
+    await tech.post("/api/v1/calibrations", { data: { ...base, readings: readings.map(([s, m]) => ({ setRpm: s, measuredRpm: m })) } })
+  ).json();
+  const notImage = await tech.post(`/api/v1/calibrations/${draft.id}/attachments`, {
+    multipart: { file: { name: "certificate.pdf", mimeType: "application/pdf", buffer: Buffer.from("not a pdf at all") } },
+  });
   expect(notImage.status()).toBe(422);
   expect((await notImage.json()).error.code).toBe("unsupported_attachment");
-  const pdf = await tech.post(`/api/v1/calibrations/${draft.id}/attachments`, { multipart: { file: { name: "certificate.pdf", mimeType: "application/pdf", buffer: Buffer.from("%PDF-1.4\n1 0 obj\n<<>>\nendobj\ntrailer\n<<>>\n%%EOF\n") } } });
+  const pdf = await tech.post(`/api/v1/calibrations/${draft.id}/attachments`, {
+    multipart: {
+      file: { name: "certificate.pdf", mimeType: "application/pdf", buffer: Buffer.from("%PDF-1.4\n1 0 obj\n<<>>\nendobj\ntrailer\n<<>>\n%%EOF\n") },
+    },
+  });
   expect(pdf.status()).toBe(201);
   const download = await tech.get((await pdf.json()).url);
   expect(download.status()).toBe(200);

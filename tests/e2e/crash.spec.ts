@@ -75,16 +75,37 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
   fs.mkdirSync(path.join(tmp, "uploads"), { recursive: true });
   const databaseUrl = await freshDatabaseUrl(`crash_${port}`, tmp);
   const uploads = path.join(tmp, "uploads");
-  const env: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "production", TANKSIDE_FAKE_MAIL: "1", PORT: String(port), HOST: "127.0.0.1", DATABASE_URL: databaseUrl, UPLOADS_DIR: uploads, SESSION_SECRET: "crash-test-session-secret-0123456789", APP_URL: base, TANKSIDE_JOB_LEASE_S: "5" };
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    NODE_ENV: "production",
+    TANKSIDE_FAKE_MAIL: "1",
+    PORT: String(port),
+    HOST: "127.0.0.1",
+    DATABASE_URL: databaseUrl,
+    UPLOADS_DIR: uploads,
+    SESSION_SECRET: "crash-test-session-secret-0123456789",
+    APP_URL: base,
+    TANKSIDE_JOB_LEASE_S: "5",
+  };
   delete env.SMTP_URL;
 
   const made = spawnSync("npx", ["tsx", "tests/setup/crash-lab.ts", String(TRACK_FRAMES), String(BOOKINGS)], { cwd: root, env, encoding: "utf8" });
   expect(made.status, made.stderr).toBe(0);
-  const lab = JSON.parse(made.stdout.trim().split("\n").pop()!) as { techToken: string; managerToken: string; trackRunId: number; uploadRunId: number; bookingIds: number[] };
+  const lab = JSON.parse(made.stdout.trim().split("\n").pop()!) as {
+    techToken: string;
+    managerToken: string;
+    trackRunId: number;
+    uploadRunId: number;
+    bookingIds: number[];
+  };
   const tech = { Authorization: `Bearer ${lab.techToken}` };
   const manager = { Authorization: `Bearer ${lab.managerToken}` };
   const images = await Promise.all(
-    Array.from({ length: 300 }, (_, i) => sharp({ create: { width: 320, height: 240, channels: 3, background: { r: i % 256, g: Math.floor(i / 256) * 40, b: 90 } } }).png().toBuffer()),
+    Array.from({ length: 300 }, (_, i) =>
+      sharp({ create: { width: 320, height: 240, channels: 3, background: { r: i % 256, g: Math.floor(i / 256) * 40, b: 90 } } })
+        .png()
+        .toBuffer(),
+    ),
   );
 
   let first: Server | null = new Server(env);
@@ -105,7 +126,10 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
       for (let i = worker; i < images.length && !killed; i += 3) {
         const name = `frame_${String(i + 1).padStart(3, "0")}.png`;
         try {
-          const res = await request.post(`${base}/api/v1/runs/${lab.uploadRunId}/frames`, { headers: tech, multipart: { file: { name, mimeType: "image/png", buffer: images[i]! } } });
+          const res = await request.post(`${base}/api/v1/runs/${lab.uploadRunId}/frames`, {
+            headers: tech,
+            multipart: { file: { name, mimeType: "image/png", buffer: images[i]! } },
+          });
           if (res.status() === 201) acknowledged.frames.push({ id: (await res.json()).accepted[0].frameId, name });
           else if (!killed) refusedBeforeKill.push(`${name}: ${res.status()}`);
         } catch {
@@ -164,24 +188,34 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
     expect(removed).toBeGreaterThanOrEqual(1);
     expect(fs.existsSync(planted)).toBe(false);
 
-    const listed = (await (await request.get(`${base}/api/v1/runs/${lab.uploadRunId}/frames`, { headers: tech })).json()) as { frameCount: number; frames: { id: number; name: string }[] };
+    const listed = (await (await request.get(`${base}/api/v1/runs/${lab.uploadRunId}/frames`, { headers: tech })).json()) as {
+      frameCount: number;
+      frames: { id: number; name: string }[];
+    };
     const stored = new Map(listed.frames.map((f) => [f.id, f.name]));
     expect(acknowledged.frames.filter((f) => stored.get(f.id) !== f.name)).toEqual([]);
     expect(listed.frames.map((f) => f.name)).toEqual([...listed.frames.map((f) => f.name)].sort());
 
-    const approvedNow = await Promise.all(acknowledged.approvals.map(async (id) => (await (await request.get(`${base}/api/v1/bookings/${id}`, { headers: manager })).json()).state as string));
+    const approvedNow = await Promise.all(
+      acknowledged.approvals.map(async (id) => (await (await request.get(`${base}/api/v1/bookings/${id}`, { headers: manager })).json()).state as string),
+    );
     expect(approvedNow.filter((s) => s !== "approved")).toEqual([]);
 
     // The same job goes back in the queue, picks up where its stored detections end and finishes. On
     // SQLite at start; on PostgreSQL once the killed server's lease on it has run out (5 s here,
     // TANKSIDE_JOB_LEASE_S above; 30 s by default), since a running job there may belong to another live worker.
     if (onPostgres) {
-      await expect.poll(() => second!.output, { timeout: 120_000, intervals: [500] }).toMatch(new RegExp(`\\[tracking\\] (resuming 1 interrupted job\\(s\\)|taken back from a worker that stopped answering: job\\(s\\) ${jobId}\\b)`));
+      await expect
+        .poll(() => second!.output, { timeout: 120_000, intervals: [500] })
+        .toMatch(new RegExp(`\\[tracking\\] (resuming 1 interrupted job\\(s\\)|taken back from a worker that stopped answering: job\\(s\\) ${jobId}\\b)`));
     } else {
       expect(second.output).toContain("[tracking] resuming 1 interrupted job(s)");
     }
     await expect
-      .poll(async () => (await (await request.get(`${base}/api/v1/runs/${lab.trackRunId}/tracking`, { headers: tech })).json()).job, { timeout: 300_000, intervals: [500] })
+      .poll(async () => (await (await request.get(`${base}/api/v1/runs/${lab.trackRunId}/tracking`, { headers: tech })).json()).job, {
+        timeout: 300_000,
+        intervals: [500],
+      })
       .toMatchObject({ id: jobId, state: "done", framesDone: TRACK_FRAMES });
     const tracked = await (await request.get(`${base}/api/v1/runs/${lab.trackRunId}/tracking`, { headers: tech })).json();
     expect(tracked.tracks.length).toBeGreaterThan(0);
@@ -192,7 +226,9 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
     // waits for its 2-minute lease to run out, so allow for that).
     const approvalMailed = async () => {
       const inbox = (await (await request.get(`${base}/api/v1/mail`, { headers: manager })).json()) as { subject: string; text: string }[];
-      return acknowledged.approvals.filter((id) => !inbox.some((m) => m.subject.startsWith("Booking approved:") && new RegExp(`/bookings/${id}(\\D|$)`).test(m.text)));
+      return acknowledged.approvals.filter(
+        (id) => !inbox.some((m) => m.subject.startsWith("Booking approved:") && new RegExp(`/bookings/${id}(\\D|$)`).test(m.text)),
+      );
     };
     await expect.poll(approvalMailed, { timeout: 200_000, intervals: [1000] }).toEqual([]);
 
@@ -204,15 +240,28 @@ test("a server killed with SIGKILL mid-write restarts with every acknowledged wr
     expect(await integrityCheck(databaseUrl)).toEqual(["ok"]);
     const [job] = (await queryAll(databaseUrl, `SELECT attempts, state FROM tracking_jobs WHERE id = ${jobId}`)) as { attempts: number; state: string }[];
     expect(job).toEqual({ attempts: 2, state: "done" });
-    const rows = (await queryAll(databaseUrl, "SELECT run_id, stored_name, thumb_name FROM frames")) as { run_id: number; stored_name: string; thumb_name: string | null }[];
+    const rows = (await queryAll(databaseUrl, "SELECT run_id, stored_name, thumb_name FROM frames")) as {
+      run_id: number;
+      stored_name: string;
+      thumb_name: string | null;
+    }[];
     const named = new Set(rows.flatMap((r) => [`${r.run_id}/${r.stored_name}`, ...(r.thumb_name ? [`${r.run_id}/${r.thumb_name}`] : [])]));
     expect(runFiles(uploads).filter((f) => !named.has(f))).toEqual([]);
     expect([...named].filter((f) => !fs.existsSync(path.join(uploads, "runs", f)))).toEqual([]);
-    console.log(JSON.stringify({ crash: { framesAcknowledged: acknowledged.frames.length, framesStored: listed.frameCount, approvalsAcknowledged: acknowledged.approvals.length, trackingFramesDoneAtKill: framesDoneAtKill, orphanFilesRemoved: removed } }));
+    console.log(
+      JSON.stringify({
+        crash: {
+          framesAcknowledged: acknowledged.frames.length,
+          framesStored: listed.frameCount,
+          approvalsAcknowledged: acknowledged.approvals.length,
+          trackingFramesDoneAtKill: framesDoneAtKill,
+          orphanFilesRemoved: removed,
+        },
+      }),
+    );
     fs.rmSync(tmp, { recursive: true, force: true });
   } finally {
     first?.proc.kill("SIGKILL");
     second?.proc.kill("SIGKILL");
   }
 });
-

@@ -36,12 +36,15 @@ export async function waitForMail(baseURL: string, to: string, subjectIncludes: 
   try {
     let found: CapturedMessage | undefined;
     await expect
-      .poll(async () => {
-        const res = await manager.get(`/api/v1/mail?to=${encodeURIComponent(to)}`);
-        const list = (await res.json()) as CapturedMessage[];
-        found = list.find((m) => m.id > after && m.subject.includes(subjectIncludes));
-        return Boolean(found);
-      }, { timeout: 15_000 })
+      .poll(
+        async () => {
+          const res = await manager.get(`/api/v1/mail?to=${encodeURIComponent(to)}`);
+          const list = (await res.json()) as CapturedMessage[];
+          found = list.find((m) => m.id > after && m.subject.includes(subjectIncludes));
+          return Boolean(found);
+        },
+        { timeout: 15_000 },
+      )
       .toBe(true);
     return found!;
   } finally {

@@ -24,7 +24,17 @@ test.beforeAll(async ({ baseURL }) => {
   created = [];
   for (const [i, purpose] of [`${tag} inertial circles`, `${tag} dye spiral`].entries()) {
     const res = await tech.post("/api/v1/runs", {
-      data: { ...ids, setRateRpm: 8 + i, direction: "ccw", waterDepthCm: 10, waterTemperatureC: 20, cameraMode: "rotating", frameRateFps: 30, tracer: i ? "dye" : "float", purpose },
+      data: {
+        ...ids,
+        setRateRpm: 8 + i,
+        direction: "ccw",
+        waterDepthCm: 10,
+        waterTemperatureC: 20,
+        cameraMode: "rotating",
+        frameRateFps: 30,
+        tracer: i ? "dye" : "float",
+        purpose,
+      },
     });
     expect(res.status(), await res.text()).toBe(201);
     created.push((await res.json()) as ListedRun);
@@ -58,7 +68,11 @@ for (const email of [people.tech, people.instructor, people.manager]) {
     const file = await download;
     expect(file.suggestedFilename()).toBe(`${run.label}.json`);
     const exported = await page.request.get(`/api/v1/runs/${run.id}/export.json`);
-    expect(await exported.json()).toMatchObject({ format: "tankside-run-export", conditions: { setRateRpm: 9, tracer: "dye" }, run: { purpose: `${tag} dye spiral` } });
+    expect(await exported.json()).toMatchObject({
+      format: "tankside-run-export",
+      conditions: { setRateRpm: 9, tracer: "dye" },
+      run: { purpose: `${tag} dye spiral` },
+    });
   });
 }
 
@@ -135,7 +149,11 @@ test("a wrong or revoked token gets 401, and a tracks export of a run without tr
   const run = created[0]!;
   const edit = await anon.patch(`/api/v1/runs/${run.id}`, { headers: auth, data: { notes: "Checked the float before release." } });
   expect(edit.status()).toBe(200);
-  await page.getByRole("listitem").filter({ hasText: `${tag} script` }).getByRole("button", { name: "Revoke" }).click();
+  await page
+    .getByRole("listitem")
+    .filter({ hasText: `${tag} script` })
+    .getByRole("button", { name: "Revoke" })
+    .click();
   await expect(page.getByText("Token revoked")).toBeVisible();
   const after = await anon.get("/api/v1/runs", { headers: auth });
   expect(after.status()).toBe(401);

@@ -66,7 +66,9 @@ test("a technician logs a run, brings a frame stack, sets the view, tracks it an
   const instructor = await apiAs(new URL(page.url()).origin, people.instructor);
   const res = await instructor.post(`/api/v1/runs/${runId}/tracking`);
   expect(res.status()).toBe(403);
-  const up = await instructor.post(`/api/v1/runs/${runId}/frames`, { multipart: { file: { name: "x.png", mimeType: "image/png", buffer: fs.readFileSync(stack.files[0]!) } } });
+  const up = await instructor.post(`/api/v1/runs/${runId}/frames`, {
+    multipart: { file: { name: "x.png", mimeType: "image/png", buffer: fs.readFileSync(stack.files[0]!) } },
+  });
   expect(up.status()).toBe(403);
   const progress = await instructor.get(`/api/v1/runs/${runId}/tracking`);
   expect(progress.status()).toBe(200);
@@ -79,7 +81,19 @@ test("the tracking route explains why a run cannot be tracked yet", async ({ bas
   const equipment = (await (await tech.get("/api/v1/equipment")).json()) as { id: number; kind: string; status: string; name: string }[];
   const pick = (kind: string) => equipment.find((e) => e.kind === kind && e.status === "in_service")!.id;
   const created = await tech.post("/runs/new", {
-    form: { tableId: String(pick("table")), tankId: String(pick("tank")), cameraId: String(pick("camera")), setRateRpm: "10", direction: "ccw", waterDepthCm: "10", waterTemperatureC: "20", cameraMode: "rotating", frameRateFps: "30", tracer: "float", purpose: "No frames yet" },
+    form: {
+      tableId: String(pick("table")),
+      tankId: String(pick("tank")),
+      cameraId: String(pick("camera")),
+      setRateRpm: "10",
+      direction: "ccw",
+      waterDepthCm: "10",
+      waterTemperatureC: "20",
+      cameraMode: "rotating",
+      frameRateFps: "30",
+      tracer: "float",
+      purpose: "No frames yet",
+    },
     maxRedirects: 0,
   });
   expect(created.status()).toBe(302);

@@ -33,7 +33,10 @@ for (const kind of ["mp4-h264", "webm-vp8"] as VideoKind[]) {
     await expect(page.getByRole("heading", { name: "Frame stack (90)" })).toBeVisible({ timeout: 180_000 });
     await expect(page.getByTestId("upload-outcomes")).not.toContainText("refused");
 
-    const listed = (await (await page.request.get(`/api/v1/runs/${runId}/frames`)).json()) as { frameCount: number; frames: { position: number; timeS: number | null }[] };
+    const listed = (await (await page.request.get(`/api/v1/runs/${runId}/frames`)).json()) as {
+      frameCount: number;
+      frames: { position: number; timeS: number | null }[];
+    };
     expect(listed.frameCount).toBe(90);
     const times = listed.frames.map((f) => f.timeS);
     for (let i = 0; i < 90; i++) {
@@ -62,13 +65,33 @@ test("a frame time that is not a finite number of seconds from 0 up to 1e5 is re
   const equipment = (await (await tech.get("/api/v1/equipment")).json()) as { id: number; kind: string; status: string }[];
   const pick = (kind: string) => equipment.find((e) => e.kind === kind && e.status === "in_service")!.id;
   const created = await tech.post("/runs/new", {
-    form: { tableId: String(pick("table")), tankId: String(pick("tank")), cameraId: String(pick("camera")), setRateRpm: "15", direction: "ccw", waterDepthCm: "10", waterTemperatureC: "20", cameraMode: "rotating", frameRateFps: "30", tracer: "float", purpose: "Frame times checked" },
+    form: {
+      tableId: String(pick("table")),
+      tankId: String(pick("tank")),
+      cameraId: String(pick("camera")),
+      setRateRpm: "15",
+      direction: "ccw",
+      waterDepthCm: "10",
+      waterTemperatureC: "20",
+      cameraMode: "rotating",
+      frameRateFps: "30",
+      tracer: "float",
+      purpose: "Frame times checked",
+    },
     maxRedirects: 0,
   });
   expect(created.status()).toBe(302);
   const runId = Number(created.headers()["location"]!.split("/").pop());
-  const send = (timeS: string) => tech.post(`/api/v1/runs/${runId}/frames`, { multipart: { file: { name: "frame_1.png", mimeType: "image/png", buffer: png }, timeS } });
-  for (const [timeS, message] of [["-0.1", /before the start/], ["100000", /beyond 100000 s/], ["Infinity", /not a number of seconds/], ["NaN", /not a number of seconds/], ["1e999", /finite/], ["2 s", /not a number of seconds/]] as const) {
+  const send = (timeS: string) =>
+    tech.post(`/api/v1/runs/${runId}/frames`, { multipart: { file: { name: "frame_1.png", mimeType: "image/png", buffer: png }, timeS } });
+  for (const [timeS, message] of [
+    ["-0.1", /before the start/],
+    ["100000", /beyond 100000 s/],
+    ["Infinity", /not a number of seconds/],
+    ["NaN", /not a number of seconds/],
+    ["1e999", /finite/],
+    ["2 s", /not a number of seconds/],
+  ] as const) {
     const res = await send(timeS);
     expect(res.status(), `timeS=${timeS}`).toBe(400);
     const body = (await res.json()) as { error: { code: string; message: string } };

@@ -34,11 +34,15 @@ const spec: SyntheticRunSpec = {
   pxPerM: 700,
   tankRadiusPx,
   noiseSigma: 3,
-  tracers: [{ kind: "float", sigmaPx: 3, brightness: 120, path: { kind: "inertial-circle", centre: { x: 0.03, y: -0.02 }, radius: 0.08, phase: 0.4, drag: 0.02 } }],
+  tracers: [
+    { kind: "float", sigmaPx: 3, brightness: 120, path: { kind: "inertial-circle", centre: { x: 0.03, y: -0.02 }, radius: 0.08, phase: 0.4, drag: 0.02 } },
+  ],
 };
 const trackRun = await createRun(runInput(lab, { purpose: "Tracked while the server is killed" }), lab.technician);
 await renderRunFrames(spec, async (frame) => {
-  const jpeg = await sharp(Buffer.from(frame.data), { raw: { width: frame.width, height: frame.height, channels: frame.channels } }).jpeg({ quality: 90 }).toBuffer();
+  const jpeg = await sharp(Buffer.from(frame.data), { raw: { width: frame.width, height: frame.height, channels: frame.channels } })
+    .jpeg({ quality: 90 })
+    .toBuffer();
   await receiveFrameFile(trackRun, new File([new Uint8Array(jpeg)], `frame_${frame.index + 1}.jpg`), null);
 });
 await ViewSetup.create({

@@ -63,11 +63,13 @@ export function contractProblems(method: string, pathname: string, answer: Answe
   const where = `${method.toUpperCase()} ${template} → ${answer.status}`;
   if (!operation) {
     // A method the path does not have: 405 (or 404), after the route has asked who is calling (401, 403).
-    if (![401, 403, 404, 405].includes(answer.status)) return [`${where}: the document has no ${method.toUpperCase()} here, yet the answer is not 401, 403, 404 or 405`];
+    if (![401, 403, 404, 405].includes(answer.status))
+      return [`${where}: the document has no ${method.toUpperCase()} here, yet the answer is not 401, 403, 404 or 405`];
     return schemaProblems(where, validatorFor("/api/v1/me", "get", "401", "application/json"), answer.json);
   }
   const documented = operation.responses[String(answer.status)];
-  if (!documented) return [`${where}: status ${answer.status} is not documented for this operation (documented: ${Object.keys(operation.responses).join(", ")})`];
+  if (!documented)
+    return [`${where}: status ${answer.status} is not documented for this operation (documented: ${Object.keys(operation.responses).join(", ")})`];
   const types = Object.keys(documented.content ?? {});
   if (types.length === 0) return [];
   const isJson = (answer.contentType ?? "").includes("application/json");
@@ -76,7 +78,8 @@ export function contractProblems(method: string, pathname: string, answer: Answe
     return schemaProblems(where, validatorFor(template, m, String(answer.status), "application/json"), answer.json);
   }
   const given = (answer.contentType ?? "").split(";")[0]?.trim() ?? "";
-  if (!types.some((t) => t === given || t === "application/octet-stream")) return [`${where}: answered ${given || "no content type"}, documented as ${types.join(", ")}`];
+  if (!types.some((t) => t === given || t === "application/octet-stream"))
+    return [`${where}: answered ${given || "no content type"}, documented as ${types.join(", ")}`];
   return [];
 }
 

@@ -67,13 +67,32 @@ describe("the limits per path", () => {
   it("leave room for the largest real forms, filled to their maxima in 3-byte characters", () => {
     const wide = (n: number) => "水".repeat(n);
     const run = {
-      tableId: "1", tankId: "2", cameraId: "3", setRateRpm: "30.5", direction: "ccw", waterDepthCm: "12.5", waterTemperatureC: "20.1",
-      rateReachedAt: "2026-12-02T10:00:00.000Z", rateReachedAtLocal: "2026-12-02T10:00", cameraMode: "rotating", frameRateFps: "30",
-      tracer: "float", purpose: wide(300), notes: wide(5000), supersedesId: "17",
+      tableId: "1",
+      tankId: "2",
+      cameraId: "3",
+      setRateRpm: "30.5",
+      direction: "ccw",
+      waterDepthCm: "12.5",
+      waterTemperatureC: "20.1",
+      rateReachedAt: "2026-12-02T10:00:00.000Z",
+      rateReachedAtLocal: "2026-12-02T10:00",
+      cameraMode: "rotating",
+      frameRateFps: "30",
+      tracer: "float",
+      purpose: wide(300),
+      notes: wide(5000),
+      supersedesId: "17",
     };
     expect(runSchema.safeParse(run).success).toBe(true);
     const runBytes = new URLSearchParams(run).toString().length;
-    const calibration: Record<string, string> = { kind: "rate", equipmentId: "1", performedOn: "2026-12-01", dueOn: "2027-06-01", notes: wide(4000), meterId: "4" };
+    const calibration: Record<string, string> = {
+      kind: "rate",
+      equipmentId: "1",
+      performedOn: "2026-12-01",
+      dueOn: "2027-06-01",
+      notes: wide(4000),
+      meterId: "4",
+    };
     for (let i = 0; i < 8; i++) {
       calibration[`readings[${i}].setRpm`] = "120.125";
       calibration[`readings[${i}].measuredRpm`] = "119.987";
@@ -124,13 +143,29 @@ describe("refuseOversizedBodies", () => {
     const req = { method: "POST", path, get: (n: string) => h[n.toLowerCase()], read: () => reads++, on: () => reads++, socket: {} };
     const res = {
       headersSent: false,
-      setHeader(k: string, v: string) { out.headers[k.toLowerCase()] = v; },
-      status(c: number) { out.status = c; return res; },
-      type(t: string) { out.type = t; return res; },
-      json(b: unknown) { out.body = b; return res; },
-      send(b: unknown) { out.body = b; return res; },
+      setHeader(k: string, v: string) {
+        out.headers[k.toLowerCase()] = v;
+      },
+      status(c: number) {
+        out.status = c;
+        return res;
+      },
+      type(t: string) {
+        out.type = t;
+        return res;
+      },
+      json(b: unknown) {
+        out.body = b;
+        return res;
+      },
+      send(b: unknown) {
+        out.body = b;
+        return res;
+      },
     };
-    refuseOversizedBodies(req, res, () => { out.passed = true; });
+    refuseOversizedBodies(req, res, () => {
+      out.passed = true;
+    });
     return { out, reads };
   }
 
@@ -181,7 +216,10 @@ describe("an express server with the real body middleware", () => {
         return new Response("bad form", { status: 400 });
       }
     };
-    app.all("/{*splat}", handleWithLimitedBodies(handler, () => ({})));
+    app.all(
+      "/{*splat}",
+      handleWithLimitedBodies(handler, () => ({})),
+    );
     server = app.listen(0, "127.0.0.1");
     await new Promise((r) => server.once("listening", r));
     port = (server.address() as AddressInfo).port;

@@ -9,19 +9,44 @@ interface Fake {
   passed: boolean;
 }
 
-function run(mw: (req: unknown, res: unknown, next: () => void) => void, opts: { method?: string; path?: string; headers?: Record<string, string>; ip?: string }) {
+function run(
+  mw: (req: unknown, res: unknown, next: () => void) => void,
+  opts: { method?: string; path?: string; headers?: Record<string, string>; ip?: string },
+) {
   const headers = Object.fromEntries(Object.entries({ host: "lab.tankside.example", ...opts.headers }).map(([k, v]) => [k.toLowerCase(), v]));
   const out: Fake = { status: 200, headers: {}, body: undefined, passed: false };
-  const req = { method: opts.method ?? "POST", path: opts.path ?? "/runs/new", protocol: "http", ip: opts.ip, socket: { remoteAddress: "10.9.9.9" }, get: (n: string) => headers[n.toLowerCase()] };
+  const req = {
+    method: opts.method ?? "POST",
+    path: opts.path ?? "/runs/new",
+    protocol: "http",
+    ip: opts.ip,
+    socket: { remoteAddress: "10.9.9.9" },
+    get: (n: string) => headers[n.toLowerCase()],
+  };
   const res = {
     locals: { cspNonce: "n0nce" },
-    status(code: number) { out.status = code; return res; },
-    type() { return res; },
-    json(b: unknown) { out.body = b; return res; },
-    send(b: unknown) { out.body = b; return res; },
-    setHeader(k: string, v: string) { out.headers[k.toLowerCase()] = v; },
+    status(code: number) {
+      out.status = code;
+      return res;
+    },
+    type() {
+      return res;
+    },
+    json(b: unknown) {
+      out.body = b;
+      return res;
+    },
+    send(b: unknown) {
+      out.body = b;
+      return res;
+    },
+    setHeader(k: string, v: string) {
+      out.headers[k.toLowerCase()] = v;
+    },
   };
-  mw(req, res, () => { out.passed = true; });
+  mw(req, res, () => {
+    out.passed = true;
+  });
   return { out, req, res };
 }
 

@@ -10,7 +10,13 @@ let owner: User;
 
 beforeAll(async () => {
   await migrate();
-  owner = await User.create({ email: `tokens-${Date.now()}@tankside.example`, name: "Token Owner", role: "technician", passwordHash: null, passwordChangedAt: null });
+  owner = await User.create({
+    email: `tokens-${Date.now()}@tankside.example`,
+    name: "Token Owner",
+    role: "technician",
+    passwordHash: null,
+    passwordChangedAt: null,
+  });
 });
 
 /** What the API answers for this token: the user, or the thrown 401 as status and body. */

@@ -25,13 +25,19 @@ const revokedWhy: Record<ApiTokenRevokedReason, string> = {
  * holding the real secret learns that it expired or was revoked; anything else is simply "invalid".
  */
 export async function userFromBearerToken(header: string): Promise<User | BearerRefusal> {
-  const invalid: BearerRefusal = { refused: "invalid_token", message: "That API token is not valid. Check it was copied whole, or make a new one on your account page." };
+  const invalid: BearerRefusal = {
+    refused: "invalid_token",
+    message: "That API token is not valid. Check it was copied whole, or make a new one on your account page.",
+  };
   const match = /^Bearer\s+(\S+)$/i.exec(header.trim());
   if (!match?.[1]?.startsWith(PREFIX)) return invalid;
   const row = await ApiToken.findOne({ where: { tokenHash: hashToken(match[1]) } });
   if (!row) return invalid;
   if (row.revokedAt) {
-    return { refused: "token_revoked", message: `That API token was revoked because ${revokedWhy[row.revokedReason ?? "revoked"]}. Make a new one on your account page.` };
+    return {
+      refused: "token_revoked",
+      message: `That API token was revoked because ${revokedWhy[row.revokedReason ?? "revoked"]}. Make a new one on your account page.`,
+    };
   }
   const now = Date.now();
   if (row.expiresAt.getTime() <= now) {
@@ -53,16 +59,19 @@ export async function createApiToken(userId: number, label: string, expiresInDay
     throw new RangeError(`A token works for 1 to ${API_TOKEN_MAX_DAYS} days.`);
   }
   const token = PREFIX + newSecretToken(30);
-  const row = await ApiToken.create({
-    userId,
-    label,
-    tokenHash: hashToken(token),
-    tokenPrefix: token.slice(0, 10),
-    lastUsedAt: null,
-    revokedAt: null,
-    revokedReason: null,
-    expiresAt: new Date(Date.now() + expiresInDays * DAY_MS),
-  }, { transaction });
+  const row = await ApiToken.create(
+    {
+      userId,
+      label,
+      tokenHash: hashToken(token),
+      tokenPrefix: token.slice(0, 10),
+      lastUsedAt: null,
+      revokedAt: null,
+      revokedReason: null,
+      expiresAt: new Date(Date.now() + expiresInDays * DAY_MS),
+    },
+    { transaction },
+  );
   return { token, row };
 }
 
@@ -77,10 +86,7 @@ export async function issueApiToken(user: { id: number; email: string; name: str
 }
 
 export async function revokeApiToken(userId: number, tokenId: number): Promise<boolean> {
-  const [count] = await ApiToken.update(
-    { revokedAt: new Date(), revokedReason: "revoked" },
-    { where: { id: tokenId, userId, revokedAt: { [Op.is]: null } } },
-  );
+  const [count] = await ApiToken.update({ revokedAt: new Date(), revokedReason: "revoked" }, { where: { id: tokenId, userId, revokedAt: { [Op.is]: null } } });
   return count > 0;
 }
 
@@ -91,5 +97,11 @@ export async function revokeAllApiTokensOf(userId: number, reason: ApiTokenRevok
 }
 
 export function listApiTokens(userId: number) {
-  return ApiToken.findAll({ where: { userId }, order: [["createdAt", "DESC"], ["id", "DESC"]] });
+  return ApiToken.findAll({
+    where: { userId },
+    order: [
+      ["createdAt", "DESC"],
+      ["id", "DESC"],
+    ],
+  });
 }

@@ -16,13 +16,25 @@ beforeAll(async () => {
 
 async function person(name: string) {
   const stamp = Math.random().toString(36).slice(2, 8);
-  return User.create({ email: `${name.toLowerCase()}-${stamp}@tankside.example`, name, role: "technician", passwordHash: await hashPassword(OLD), passwordChangedAt: null });
+  return User.create({
+    email: `${name.toLowerCase()}-${stamp}@tankside.example`,
+    name,
+    role: "technician",
+    passwordHash: await hashPassword(OLD),
+    passwordChangedAt: null,
+  });
 }
 async function sessionOf(userId: number) {
   const s = await sessionStorage.getSession();
   s.set("userId", userId);
   await sessionStorage.commitSession(s);
-  return (await Session.findOne({ where: { userId }, order: [["createdAt", "DESC"], ["id", "DESC"]] }))!.id;
+  return (await Session.findOne({
+    where: { userId },
+    order: [
+      ["createdAt", "DESC"],
+      ["id", "DESC"],
+    ],
+  }))!.id;
 }
 async function linkFor(userId: number, purpose: "password_reset" | "invitation") {
   const token = newSecretToken();

@@ -60,7 +60,8 @@ function explain(result: ZxcvbnResult): string {
 export function passwordProblem(password: string, owner: PasswordOwner): string | null {
   const own = personalWords(owner);
   const result = zxcvbn().check(password, own);
-  const personal = "This password is built on your name, your e-mail address or the lab's name, which anyone would try first. Use words that have nothing to do with you or Tankside.";
+  const personal =
+    "This password is built on your name, your e-mail address or the lab's name, which anyone would try first. Use words that have nothing to do with you or Tankside.";
   const from = (names: string[]) => result.sequence.some((m) => "dictionaryName" in m && names.includes(String(m.dictionaryName)));
   if (result.score < MIN_SCORE && from(["famous"])) return "This is a well-known example passphrase, printed in many places, so it is among the first tried.";
   if (result.score < MIN_SCORE && from(["userInputs", "lab"])) return personal;

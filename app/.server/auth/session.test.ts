@@ -9,7 +9,15 @@ let userId: number;
 
 beforeAll(async () => {
   await migrate();
-  userId = (await User.create({ email: `sessions-${Date.now()}@tankside.example`, name: "Session Tester", role: "technician", passwordHash: null, passwordChangedAt: null })).id;
+  userId = (
+    await User.create({
+      email: `sessions-${Date.now()}@tankside.example`,
+      name: "Session Tester",
+      role: "technician",
+      passwordHash: null,
+      passwordChangedAt: null,
+    })
+  ).id;
 });
 
 beforeEach(async () => {
@@ -88,10 +96,12 @@ describe("session idle timeout and absolute lifetime (OWASP ASVS 4.0.3 V3.3.2)",
 function readSetCookie(header: string) {
   const [pair = "", ...attrs] = header.split(";").map((p) => p.trim());
   const eq = pair.indexOf("=");
-  const attributes = new Map(attrs.map((a) => {
-    const i = a.indexOf("=");
-    return i < 0 ? [a.toLowerCase(), ""] : [a.slice(0, i).toLowerCase(), a.slice(i + 1)];
-  }));
+  const attributes = new Map(
+    attrs.map((a) => {
+      const i = a.indexOf("=");
+      return i < 0 ? [a.toLowerCase(), ""] : [a.slice(0, i).toLowerCase(), a.slice(i + 1)];
+    }),
+  );
   return { name: pair.slice(0, eq), value: pair.slice(eq + 1), attributes };
 }
 

@@ -84,9 +84,7 @@ describe("npm run analyze", () => {
     expect(doc.tracks).toHaveLength(1);
     const points: { t: number; x: number; y: number }[] = doc.tracks[0].points;
     expect(points).toHaveLength(60);
-    const rms = Math.sqrt(
-      points.reduce((s, p, i) => s + (p.x - stack.truth[i]![0]!.x) ** 2 + (p.y - stack.truth[i]![0]!.y) ** 2, 0) / points.length,
-    );
+    const rms = Math.sqrt(points.reduce((s, p, i) => s + (p.x - stack.truth[i]![0]!.x) ** 2 + (p.y - stack.truth[i]![0]!.y) ** 2, 0) / points.length);
     expect(rms).toBeLessThanOrEqual(0.1);
     expect(points[10]!.t).toBeCloseTo(10 / 30, 6);
     expect(doc.quality.framesDetectedShare).toBe(1);

@@ -6,7 +6,8 @@ import { env } from "../env";
 afterAll(() => sequelize.close());
 
 async function sqliteSettings(transaction?: Transaction) {
-  const read = async (pragma: string) => Object.values((await sequelize.query<Record<string, unknown>>(`PRAGMA ${pragma}`, { type: QueryTypes.SELECT, transaction }))[0]!)[0];
+  const read = async (pragma: string) =>
+    Object.values((await sequelize.query<Record<string, unknown>>(`PRAGMA ${pragma}`, { type: QueryTypes.SELECT, transaction }))[0]!)[0];
   return {
     journal_mode: await read("journal_mode"),
     busy_timeout: await read("busy_timeout"),

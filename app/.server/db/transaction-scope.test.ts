@@ -99,6 +99,9 @@ describe("deadlocks (PostgreSQL)", () => {
     await Promise.all([cross(a, b, "x"), cross(b, a, "y")]);
     expect(attempts).toBe(3);
     // The one run again committed last, so both rows carry its labels.
-    expect([["x first", "x second"], ["y second", "y first"]]).toContainEqual(await labels());
+    expect([
+      ["x first", "x second"],
+      ["y second", "y first"],
+    ]).toContainEqual(await labels());
   });
 });

@@ -53,7 +53,8 @@ export function scopeTransactions(sequelize: Sequelize) {
   const query = (sequelize.query as QueryFn).bind(sequelize);
 
   const scopedTransaction: TransactionFn = async (optionsOrCallback, maybeCallback) => {
-    const [options, callback] = typeof optionsOrCallback === "function" ? [undefined, optionsOrCallback as (t: Transaction) => PromiseLike<unknown>] : [optionsOrCallback, maybeCallback];
+    const [options, callback] =
+      typeof optionsOrCallback === "function" ? [undefined, optionsOrCallback as (t: Transaction) => PromiseLike<unknown>] : [optionsOrCallback, maybeCallback];
     if (options?.transaction) return transaction(options, callback);
     refuseInsideCallback("A new transaction");
     if (!callback) return transaction(options);

@@ -55,12 +55,19 @@ export class WriteQueue {
   }
 }
 
-const READ_TYPES = new Set<string>([QueryTypes.SELECT, QueryTypes.SHOWTABLES, QueryTypes.SHOWINDEXES, QueryTypes.DESCRIBE, QueryTypes.FOREIGNKEYS, QueryTypes.VERSION]);
+const READ_TYPES = new Set<string>([
+  QueryTypes.SELECT,
+  QueryTypes.SHOWTABLES,
+  QueryTypes.SHOWINDEXES,
+  QueryTypes.DESCRIBE,
+  QueryTypes.FOREIGNKEYS,
+  QueryTypes.VERSION,
+]);
 
 /** Reads by their query type; raw SQL only if it plainly reads (SELECT, or a PRAGMA that sets nothing). */
 export function isRead(sql: unknown, type: string | undefined): boolean {
   if (type && READ_TYPES.has(type)) return true;
-  const text = typeof sql === "string" ? sql : typeof sql === "object" && sql && "query" in sql ? String((sql).query) : "";
+  const text = typeof sql === "string" ? sql : typeof sql === "object" && sql && "query" in sql ? String(sql.query) : "";
   return /^\s*SELECT\b/i.test(text) || (/^\s*PRAGMA\b/i.test(text) && !text.includes("="));
 }
 
@@ -73,7 +80,8 @@ export function queueWrites(sequelize: Sequelize, queue = new WriteQueue()): Wri
   const query = (sequelize.query as QueryFn).bind(sequelize);
 
   const queuedTransaction: TransactionFn = async (optionsOrCallback, maybeCallback) => {
-    const [options, autoCallback] = typeof optionsOrCallback === "function" ? [undefined, optionsOrCallback as (t: Transaction) => PromiseLike<unknown>] : [optionsOrCallback, maybeCallback];
+    const [options, autoCallback] =
+      typeof optionsOrCallback === "function" ? [undefined, optionsOrCallback as (t: Transaction) => PromiseLike<unknown>] : [optionsOrCallback, maybeCallback];
     // A savepoint inside a transaction runs on that transaction's connection, within its turn.
     if (options?.transaction) return transaction(options, autoCallback);
     const release = await queue.turn();

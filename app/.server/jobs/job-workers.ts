@@ -113,27 +113,19 @@ async function register(s: State, kind: WorkKind) {
     s.timers.push(every(sweepMs(), sweepTrackingJobs, "tracking sweep"));
   } else if (kind === "mail") {
     const sender = new OutboxSender({ owner: workerName });
-    const id = await boss.work<{ outboxId: number }>(
-      QUEUES.mail,
-      { batchSize: 5, pollingIntervalSeconds: POLL_SECONDS },
-      async (jobs) => {
-        for (const job of jobs) await deliverOutboxRow(job.data.outboxId, sender);
-      },
-    );
+    const id = await boss.work<{ outboxId: number }>(QUEUES.mail, { batchSize: 5, pollingIntervalSeconds: POLL_SECONDS }, async (jobs) => {
+      for (const job of jobs) await deliverOutboxRow(job.data.outboxId, sender);
+    });
     s.workerIds.set(kind, id);
     // Mail committed in this process is sent at once, not at the next poll.
     setEnqueueListener(() => boss.notifyWorker(id));
     await sweepOutbox();
     s.timers.push(every(MAIL_SWEEP_MS, () => sweepOutbox(), "outbox sweep"));
   } else {
-    const id = await boss.work(
-      QUEUES.reminders,
-      { batchSize: 1, pollingIntervalSeconds: 5 },
-      async () => {
-        const result = await runCalibrationReminders();
-        if (result.queued.length) console.log(`[reminders] calibration reminders queued: ${result.queued.length}`);
-      },
-    );
+    const id = await boss.work(QUEUES.reminders, { batchSize: 1, pollingIntervalSeconds: 5 }, async () => {
+      const result = await runCalibrationReminders();
+      if (result.queued.length) console.log(`[reminders] calibration reminders queued: ${result.queued.length}`);
+    });
     s.workerIds.set(kind, id);
     // Every hour on the hour (pg-boss's clock sends one job per slot, whichever worker sees it first), and once at start.
     await boss.schedule(QUEUES.reminders, "0 * * * *", {}, { singletonKey: "hourly" });

@@ -37,7 +37,8 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
     workers.push(w);
     return w;
   };
-  const newRun = async (purpose: string, frames: File[] = stack) => prepareRun(await createRun(lab.runInput({ setRateRpm: 15, purpose }), lab.tech), frames, lab.tech.id);
+  const newRun = async (purpose: string, frames: File[] = stack) =>
+    prepareRun(await createRun(lab.runInput({ setRateRpm: 15, purpose }), lab.tech), frames, lab.tech.id);
   const jobOf = (runId: number) => TrackingJob.findOne({ where: { runId }, order: [["id", "DESC"]] });
   const doneJob = (runId: number) => async () => {
     const job = await jobOf(runId);
@@ -104,10 +105,15 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
     const run = await newRun("worker killed mid-job");
     const job = await enqueueTracking(run, lab.tech.id);
     // Progress reaches the database the run page polls while the first worker tracks.
-    const seen = await waitFor("progress from the first worker", async () => {
-      const j = await jobOf(run.id);
-      return j && j.state === "running" && j.framesDone > 0 ? j : null;
-    }, 120_000, 20);
+    const seen = await waitFor(
+      "progress from the first worker",
+      async () => {
+        const j = await jobOf(run.id);
+        return j && j.state === "running" && j.framesDone > 0 ? j : null;
+      },
+      120_000,
+      20,
+    );
     expect(seen.framesDone).toBeLessThan(FRAMES);
     first.proc.kill("SIGKILL");
     expect((await first.exited).signal).toBe("SIGKILL");
@@ -126,7 +132,9 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
     const second = startWorker();
     await second.ready();
     const done = await waitFor("the job to be finished by the second worker", doneJob(run.id), 120_000);
-    console.log(`[measured] killed after frame ${stoppedAt} of ${FRAMES}; a new worker (4 s lease) finished the job ${((Date.now() - killedAt) / 1000).toFixed(1)} s after the kill`);
+    console.log(
+      `[measured] killed after frame ${stoppedAt} of ${FRAMES}; a new worker (4 s lease) finished the job ${((Date.now() - killedAt) / 1000).toFixed(1)} s after the kill`,
+    );
     expect(done.id).toBe(job.id);
     expect(done.attempts).toBe(2);
     expect(done.framesDone).toBe(FRAMES);
@@ -184,19 +192,36 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
     const meter = await Equipment.create({ kind: "rate_meter", name: "Shared queue tachometer", meterType: "tachometer" } as never);
     const day = (n: number) => toDayString(new Date(Date.now() + n * 86_400_000));
     const cal = await createCalibration(
-      { kind: "rate", equipmentId: lab.table.id, meterId: meter.id, performedOn: day(-170), dueOn: day(5), readings: [5, 10, 15, 20].map((r) => ({ setRpm: r, measuredRpm: r })) },
+      {
+        kind: "rate",
+        equipmentId: lab.table.id,
+        meterId: meter.id,
+        performedOn: day(-170),
+        dueOn: day(5),
+        readings: [5, 10, 15, 20].map((r) => ({ setRpm: r, measuredRpm: r })),
+      },
       lab.tech,
     );
     await signOffCalibration(cal.id, lab.manager);
     // Two passes, as the hourly slot and a worker's start would ring them.
     await ring(QUEUES.reminders, "test-pass-1", {});
-    const row = await waitFor("the reminder to be queued and sent", async () => {
-      const r = await OutboxMail.findOne({ where: { dedupeKey: calibrationReminderKey(cal.id) } });
-      return r?.state === "sent" ? r : null;
-    }, 60_000, 250);
+    const row = await waitFor(
+      "the reminder to be queued and sent",
+      async () => {
+        const r = await OutboxMail.findOne({ where: { dedupeKey: calibrationReminderKey(cal.id) } });
+        return r?.state === "sent" ? r : null;
+      },
+      60_000,
+      250,
+    );
     const second = (await ring(QUEUES.reminders, "test-pass-2", {}))!;
     const boss = await queueClient();
-    await waitFor("the second pass to be done", async () => (await boss.getJobById(QUEUES.reminders, second, { includeArchive: true }))?.state === "completed", 60_000, 250);
+    await waitFor(
+      "the second pass to be done",
+      async () => (await boss.getJobById(QUEUES.reminders, second, { includeArchive: true }))?.state === "completed",
+      60_000,
+      250,
+    );
     expect(await OutboxMail.count({ where: { dedupeKey: calibrationReminderKey(cal.id) } })).toBe(1);
     expect(received.get(row.subject)).toBe(1);
   }, 120_000);
@@ -208,10 +233,15 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
     const LONG = 360;
     const run = await newRun("worker stopped mid-job", await renderStack(LONG));
     const job = await enqueueTracking(run, lab.tech.id);
-    const seen = await waitFor("a worker to make progress", async () => {
-      const j = await jobOf(run.id);
-      return j && j.state === "running" && j.framesDone > 0 ? j : null;
-    }, 120_000, 20);
+    const seen = await waitFor(
+      "a worker to make progress",
+      async () => {
+        const j = await jobOf(run.id);
+        return j && j.state === "running" && j.framesDone > 0 ? j : null;
+      },
+      120_000,
+      20,
+    );
     expect(seen.framesDone).toBeLessThan(LONG / 2);
     const holder = seen.leaseOwner;
     const [leaving, staying] = second.output.includes(`as ${holder}`) ? [second, third] : [third, second];

@@ -56,7 +56,9 @@ export const centre = floatStackCentre;
 export async function renderStack(frames: number): Promise<File[]> {
   const files: File[] = [];
   await renderRunFrames(floatStackSpec(frames), async (f) => {
-    const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } }).jpeg({ quality: 92 }).toBuffer();
+    const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } })
+      .jpeg({ quality: 92 })
+      .toBuffer();
     files.push(new File([new Uint8Array(jpeg)], `frame_${String(f.index).padStart(4, "0")}.jpg`));
   });
   return files;
@@ -65,7 +67,19 @@ export async function renderStack(frames: number): Promise<File[]> {
 /** Stores the frames on the run and marks its view, so it is ready to track. */
 export async function prepareRun(run: Run, files: File[], userId: number) {
   for (const file of files) await receiveFrameFile(run, file, null);
-  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: centre.x, tankEdgeYPx: centre.y, tankEdgeRPx: 105, scalePxPerM: 600, scalePoints: null, mirrored: false, createdById: userId });
+  await ViewSetup.create({
+    runId: run.id,
+    cameraId: run.cameraId,
+    centreXPx: centre.x,
+    centreYPx: centre.y,
+    tankEdgeXPx: centre.x,
+    tankEdgeYPx: centre.y,
+    tankEdgeRPx: 105,
+    scalePxPerM: 600,
+    scalePoints: null,
+    mirrored: false,
+    createdById: userId,
+  });
   await run.reload();
   return run;
 }

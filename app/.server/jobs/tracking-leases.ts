@@ -68,7 +68,10 @@ export async function renewLease(jobId: number, owner: string): Promise<boolean>
 /** A stopping worker hands its job back at once, so another resumes it without waiting for the lease. */
 export async function handBack(jobId: number, owner: string) {
   await sequelize.transaction(async (transaction) => {
-    const [n] = await TrackingJob.update({ state: "queued", leaseOwner: null, leaseUntil: null }, { where: { id: jobId, state: "running", leaseOwner: owner }, transaction });
+    const [n] = await TrackingJob.update(
+      { state: "queued", leaseOwner: null, leaseUntil: null },
+      { where: { id: jobId, state: "running", leaseOwner: owner }, transaction },
+    );
     if (!n) return;
     await ringTracking(jobId, transaction);
     const job = await TrackingJob.findByPk(jobId, { attributes: ["resumeFromFrame"], transaction });

@@ -22,7 +22,9 @@ const spec = (frames: number, withTracer = true) => floatStackSpec(frames, { see
 async function runWithFrames(frames: number, withTracer = true) {
   const run = await createRun(lab.runInput({ setRateRpm: 15 }), lab.tech);
   await renderRunFrames(spec(frames, withTracer), async (f) => {
-    const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } }).jpeg({ quality: 92 }).toBuffer();
+    const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } })
+      .jpeg({ quality: 92 })
+      .toBuffer();
     await receiveFrameFile(run, new File([new Uint8Array(jpeg)], `frame_${f.index}.jpg`), null);
   });
   await run.reload();
@@ -30,7 +32,19 @@ async function runWithFrames(frames: number, withTracer = true) {
 }
 
 async function setUp(run: Run) {
-  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: centre.x, tankEdgeYPx: centre.y, tankEdgeRPx: 105, scalePxPerM: 600, scalePoints: null, mirrored: false, createdById: lab.tech.id });
+  await ViewSetup.create({
+    runId: run.id,
+    cameraId: run.cameraId,
+    centreXPx: centre.x,
+    centreYPx: centre.y,
+    tankEdgeXPx: centre.x,
+    tankEdgeYPx: centre.y,
+    tankEdgeRPx: 105,
+    scalePxPerM: 600,
+    scalePoints: null,
+    mirrored: false,
+    createdById: lab.tech.id,
+  });
 }
 
 describe("the tracking job queue", () => {
@@ -81,10 +95,22 @@ describe("the tracking job queue", () => {
     // A first full job gives the detections that an interrupted job would have stored for its first 20 frames.
     const first = await enqueueTracking(run, lab.tech.id);
     await whenTrackingIdle();
-    const interrupted = await TrackingJob.create({ runId: run.id, requestedById: lab.tech.id, state: "running", framesTotal: 60, framesDone: 20, resumeFromFrame: 20, error: null, startedAt: new Date(), finishedAt: null });
+    const interrupted = await TrackingJob.create({
+      runId: run.id,
+      requestedById: lab.tech.id,
+      state: "running",
+      framesTotal: 60,
+      framesDone: 20,
+      resumeFromFrame: 20,
+      error: null,
+      startedAt: new Date(),
+      finishedAt: null,
+    });
     const early = await Detection.findAll({ where: { jobId: first.id } });
     await Detection.bulkCreate(
-      early.filter((d) => d.frameIndex < 20).map((d) => ({ jobId: interrupted.id, frameIndex: d.frameIndex, timeS: d.timeS, xPx: d.xPx, yPx: d.yPx, areaPx: d.areaPx, roundness: d.roundness })),
+      early
+        .filter((d) => d.frameIndex < 20)
+        .map((d) => ({ jobId: interrupted.id, frameIndex: d.frameIndex, timeS: d.timeS, xPx: d.xPx, yPx: d.yPx, areaPx: d.areaPx, roundness: d.roundness })),
     );
     expect(await resumeInterruptedJobs()).toBe(1);
     await whenTrackingIdle();

@@ -66,7 +66,10 @@ async function enqueueShared(run: Run, userId: number, frames: number) {
     await Run.findByPk(run.id, { attributes: ["id"], transaction, lock: transaction.LOCK.UPDATE });
     const active = await TrackingJob.findOne({ where: { runId: run.id, state: { [Op.in]: ["queued", "running"] } }, transaction });
     if (active) throw alreadyActive();
-    const created = await TrackingJob.create({ runId: run.id, requestedById: userId, framesTotal: frames, error: null, startedAt: null, finishedAt: null }, { transaction });
+    const created = await TrackingJob.create(
+      { runId: run.id, requestedById: userId, framesTotal: frames, error: null, startedAt: null, finishedAt: null },
+      { transaction },
+    );
     await ringTracking(created.id, transaction);
     return created;
   });

@@ -57,7 +57,12 @@ async function frameStackOf(run: Run, scratch: ScratchDir) {
     try {
       return await store().localPath(runKey(run.id, f.storedName), scratch);
     } catch (err) {
-      if (err instanceof MissingObjectError) throw new JobError(`The file of frame ${i + 1} (${f.originalName}) is missing from storage. Bring the same frames again to put it back, then track again.`, 409, "frame_file_missing");
+      if (err instanceof MissingObjectError)
+        throw new JobError(
+          `The file of frame ${i + 1} (${f.originalName}) is missing from storage. Bring the same frames again to put it back, then track again.`,
+          409,
+          "frame_file_missing",
+        );
       throw err;
     }
   });
@@ -74,7 +79,10 @@ async function trackingSetupOf(run: Run): Promise<TrackingSetup> {
   return {
     tracer: run.tracer,
     centre: { x: setup.centreXPx, y: setup.centreYPx },
-    tankEdge: setup.tankEdgeRPx && setup.tankEdgeXPx !== null && setup.tankEdgeYPx !== null ? { cx: setup.tankEdgeXPx, cy: setup.tankEdgeYPx, r: setup.tankEdgeRPx } : null,
+    tankEdge:
+      setup.tankEdgeRPx && setup.tankEdgeXPx !== null && setup.tankEdgeYPx !== null
+        ? { cx: setup.tankEdgeXPx, cy: setup.tankEdgeYPx, r: setup.tankEdgeRPx }
+        : null,
     mirrored: setup.mirrored,
   };
 }
@@ -124,7 +132,14 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     if (prior.length) console.log(`[tracking] job ${job.id} (run ${run.id}) resumes at frame ${prior.length + 1} of ${stack.files.length}`);
     // What is tracked is recorded before tracking: a change meanwhile leaves these tracks out of date.
     const inputFingerprint = await trackingFingerprint(run);
-    const starting = { state: "running" as const, startedAt: job.startedAt ?? new Date(), attempts: job.attempts + 1, framesTotal: stack.files.length, error: null, inputFingerprint };
+    const starting = {
+      state: "running" as const,
+      startedAt: job.startedAt ?? new Date(),
+      attempts: job.attempts + 1,
+      framesTotal: stack.files.length,
+      error: null,
+      inputFingerprint,
+    };
     if (hold.fenced) {
       const [held] = await TrackingJob.update(starting, { where: mine });
       if (!held) throw new JobLost();
@@ -194,7 +209,13 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     if (flushError) throw flushError;
 
     const quality = new Map(result.quality.tracks.map((q) => [q.id, q]));
-    const finished = { state: "done" as const, framesDone: result.frames, resumeFromFrame: result.frames, finishedAt: new Date(), error: result.tracks.length ? null : "No track was long enough to keep." };
+    const finished = {
+      state: "done" as const,
+      framesDone: result.frames,
+      resumeFromFrame: result.frames,
+      finishedAt: new Date(),
+      error: result.tracks.length ? null : "No track was long enough to keep.",
+    };
     await sequelize.transaction(async (transaction) => {
       if (hold.fenced) {
         // The job row first: its lock orders this against a worker taking the job over.

@@ -61,7 +61,10 @@ export class OutboxSender {
     const candidates = await OutboxMail.findAll({
       attributes: ["id"],
       where: { state: "queued", nextAttemptAt: { [Op.lte]: now }, ...this.free(now) },
-      order: [["nextAttemptAt", "ASC"], ["id", "ASC"]],
+      order: [
+        ["nextAttemptAt", "ASC"],
+        ["id", "ASC"],
+      ],
       limit: 5,
     });
     for (const { id } of candidates) {
@@ -97,7 +100,9 @@ export class OutboxSender {
       const error = err instanceof Error ? err.message : String(err);
       const giveUp = row.attempts >= MAX_ATTEMPTS;
       const next = new Date(this.now().getTime() + retryDelayMs(row.attempts));
-      console.error(`[mail] attempt ${row.attempts} of "${row.subject}" to ${row.recipients} failed: ${error}${giveUp ? "; giving up" : `; next try ${next.toISOString()}`}`);
+      console.error(
+        `[mail] attempt ${row.attempts} of "${row.subject}" to ${row.recipients} failed: ${error}${giveUp ? "; giving up" : `; next try ${next.toISOString()}`}`,
+      );
       await OutboxMail.update(
         giveUp
           ? { state: "failed", lastError: error, leaseOwner: null, leaseUntil: null }
@@ -125,7 +130,7 @@ export class OutboxSender {
       do {
         this.again = false;
         for (let row = await this.claimNext(); row; row = await this.claimNext()) {
-          result[(await this.deliver(row))].push(row.id);
+          result[await this.deliver(row)].push(row.id);
         }
       } while (this.again);
       return result;

@@ -78,7 +78,9 @@ export async function enqueueMail(message: OutgoingMail, options: EnqueueOptions
   const after = usesJobQueue
     ? () =>
         void ringMail(created).then(wake, (err: unknown) => {
-          console.error(`[mail] "${message.subject}" waits for the outbox sweep: the queue was not reached (${err instanceof Error ? err.message : String(err)})`);
+          console.error(
+            `[mail] "${message.subject}" waits for the outbox sweep: the queue was not reached (${err instanceof Error ? err.message : String(err)})`,
+          );
         })
     : wake;
   if (transaction) transaction.afterCommit(after);

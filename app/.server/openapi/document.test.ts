@@ -17,7 +17,11 @@ type Op = {
   responses: Record<string, { content?: Record<string, { schema?: unknown }> }>;
 };
 type Schema = { additionalProperties?: unknown; properties: Record<string, unknown>; required: string[] };
-type Doc = { openapi: string; paths: Record<string, Record<string, Op>>; components: { schemas: Record<string, Schema>; securitySchemes: Record<string, unknown> } };
+type Doc = {
+  openapi: string;
+  paths: Record<string, Record<string, Op>>;
+  components: { schemas: Record<string, Schema>; securitySchemes: Record<string, unknown> };
+};
 const doc = buildOpenApiDocument() as unknown as Doc;
 const methods = ["get", "post", "patch", "put", "delete"] as const;
 
@@ -65,25 +69,69 @@ describe("the OpenAPI document and the routes hold together", () => {
   });
 
   it("lists every field a response schema has as required, and allows no other field", () => {
-    for (const name of ["Run", "RunDetail", "RunExport", "RunListItem", "Booking", "Calibration", "Equipment", "Person", "OutboxMail", "Error", "TrackingJob"]) {
+    for (const name of [
+      "Run",
+      "RunDetail",
+      "RunExport",
+      "RunListItem",
+      "Booking",
+      "Calibration",
+      "Equipment",
+      "Person",
+      "OutboxMail",
+      "Error",
+      "TrackingJob",
+    ]) {
       const schema = doc.components.schemas[name];
       if (!schema) throw new Error(`no schema ${name}`);
       expect(schema.additionalProperties, name).toBe(false);
       const optional = Object.keys(schema.properties).filter((k) => !schema.required.includes(k));
       // What may be left out: an unknown value (JSON Schema cannot require one), and the Error's own extras.
-      expect(optional.filter((k) => !["field", "issues", "scalePoints", "calibrationsApplied", "theoryCheckInput"].includes(k)), name).toEqual([]);
+      expect(
+        optional.filter((k) => !["field", "issues", "scalePoints", "calibrationsApplied", "theoryCheckInput"].includes(k)),
+        name,
+      ).toEqual([]);
     }
   });
 
   it("catches an answer with a field the document lacks, naming it", () => {
-    const run = { id: 1, label: "R-0001", state: "draft", verdict: null, tableId: 1, tankId: 2, cameraId: 3, setRateRpm: 10, direction: "ccw", waterDepthM: 0.12, waterTemperatureC: 20, rateReachedAt: null, cameraMode: "rotating", frameRateFps: 30, tracer: "float", purpose: "A run", notes: null, technicianId: 4, supersedesId: null, signedOffById: null, signedOffAt: null, frameCount: 0, createdAt: "2026-03-14T09:00:00.000Z", updatedAt: "2026-03-14T09:00:00.000Z" };
+    const run = {
+      id: 1,
+      label: "R-0001",
+      state: "draft",
+      verdict: null,
+      tableId: 1,
+      tankId: 2,
+      cameraId: 3,
+      setRateRpm: 10,
+      direction: "ccw",
+      waterDepthM: 0.12,
+      waterTemperatureC: 20,
+      rateReachedAt: null,
+      cameraMode: "rotating",
+      frameRateFps: 30,
+      tracer: "float",
+      purpose: "A run",
+      notes: null,
+      technicianId: 4,
+      supersedesId: null,
+      signedOffById: null,
+      signedOffAt: null,
+      frameCount: 0,
+      createdAt: "2026-03-14T09:00:00.000Z",
+      updatedAt: "2026-03-14T09:00:00.000Z",
+    };
     const answer = (json: unknown, status = 200) => ({ status, contentType: "application/json", json });
     expect(contractProblems("PATCH", "/api/v1/runs/1", answer(run))).toEqual([]);
-    expect(contractProblems("PATCH", "/api/v1/runs/1", answer({ ...run, secretNote: "x" }))).toEqual([expect.stringMatching(/PATCH \/api\/v1\/runs\/\{id\} → 200: \(body\) must NOT have additional properties \(secretNote\)/)]);
+    expect(contractProblems("PATCH", "/api/v1/runs/1", answer({ ...run, secretNote: "x" }))).toEqual([
+      expect.stringMatching(/PATCH \/api\/v1\/runs\/\{id\} → 200: \(body\) must NOT have additional properties \(secretNote\)/),
+    ]);
     const withoutPurpose = Object.fromEntries(Object.entries(run).filter(([key]) => key !== "purpose"));
     expect(contractProblems("PATCH", "/api/v1/runs/1", answer(withoutPurpose)).join()).toMatch(/must have required property 'purpose'/);
     expect(contractProblems("PATCH", "/api/v1/runs/1", answer({ error: { code: "x", message: "y" } }, 418)).join()).toMatch(/status 418 is not documented/);
-    expect(contractProblems("GET", "/api/v1/runs/1", answer({ error: { code: "not_found", message: "No.", detail: 1 } }, 404)).join()).toMatch(/additional properties \(detail\)/);
+    expect(contractProblems("GET", "/api/v1/runs/1", answer({ error: { code: "not_found", message: "No.", detail: 1 } }, 404)).join()).toMatch(
+      /additional properties \(detail\)/,
+    );
   });
 
   it("is OpenAPI 3.1 with bearer-token and cookie security", () => {
@@ -95,8 +143,14 @@ describe("the OpenAPI document and the routes hold together", () => {
   it("describes every API route in app/routes.ts, and nothing that is not routed", () => {
     const routed = [...apiRoutes().keys()].sort();
     const described = Object.keys(doc.paths).sort();
-    expect(described.filter((p) => !routed.includes(p)), "documented but not routed").toEqual([]);
-    expect(routed.filter((p) => !described.includes(p)), "routed but not documented").toEqual([]);
+    expect(
+      described.filter((p) => !routed.includes(p)),
+      "documented but not routed",
+    ).toEqual([]);
+    expect(
+      routed.filter((p) => !described.includes(p)),
+      "routed but not documented",
+    ).toEqual([]);
   });
 
   it("documents GET only where the module has a loader, other methods only where it has an action", async () => {

@@ -25,8 +25,17 @@ function packageVersion() {
 export function buildOpenApiDocument() {
   const registry = new OpenAPIRegistry();
   registry.register("Error", errorSchema);
-  registry.registerComponent("securitySchemes", "bearerToken", { type: "http", scheme: "bearer", description: "A personal API token, tks_… (shown once when made)." });
-  registry.registerComponent("securitySchemes", "sessionCookie", { type: "apiKey", in: "cookie", name: sessionCookie.name, description: "The signed-in browser session." });
+  registry.registerComponent("securitySchemes", "bearerToken", {
+    type: "http",
+    scheme: "bearer",
+    description: "A personal API token, tks_… (shown once when made).",
+  });
+  registry.registerComponent("securitySchemes", "sessionCookie", {
+    type: "apiKey",
+    in: "cookie",
+    name: sessionCookie.name,
+    description: "The signed-in browser session.",
+  });
   registerCorePaths(registry);
   registerRunPaths(registry);
   registerBookingPaths(registry);

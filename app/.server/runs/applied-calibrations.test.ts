@@ -38,7 +38,19 @@ function fastClockTrack(seconds = 6) {
 
 async function runWithTrack(setupPxPerM: number | null) {
   const run = await createRun(lab.runInput({ setRateRpm: SET_RPM, frameRateFps: NOMINAL_FPS }), lab.tech);
-  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: setupPxPerM, scalePoints: null, mirrored: false, createdById: lab.tech.id });
+  await ViewSetup.create({
+    runId: run.id,
+    cameraId: run.cameraId,
+    centreXPx: centre.x,
+    centreYPx: centre.y,
+    tankEdgeXPx: null,
+    tankEdgeYPx: null,
+    tankEdgeRPx: null,
+    scalePxPerM: setupPxPerM,
+    scalePoints: null,
+    mirrored: false,
+    createdById: lab.tech.id,
+  });
   // The job is recorded after the view setup, as the queue would: its tracks count as made from the present inputs.
   const job = await doneTrackingJob(run, lab.tech.id, 180);
   const points = fastClockTrack();
@@ -69,11 +81,28 @@ describe("the timing check and scale calibration frozen on a run are applied, or
 
   it("with a signed timing check (30 nominal, 30.6 true) and scale calibration in force, f is within its error of the truth and a 5 % scale difference is flagged", async () => {
     const timing = await createCalibration(
-      { kind: "timing", equipmentId: lab.camera.id, performedOn: yesterday(), nominalFrameRateFps: NOMINAL_FPS, frameIntervals: 612, frameIntervalsUncertainty: 0.5, referenceElapsedS: 20, referenceElapsedUncertaintyS: 0.005 } as never,
+      {
+        kind: "timing",
+        equipmentId: lab.camera.id,
+        performedOn: yesterday(),
+        nominalFrameRateFps: NOMINAL_FPS,
+        frameIntervals: 612,
+        frameIntervalsUncertainty: 0.5,
+        referenceElapsedS: 20,
+        referenceElapsedUncertaintyS: 0.005,
+      } as never,
       lab.tech,
     );
     const scale = await createCalibration(
-      { kind: "scale", equipmentId: lab.camera.id, performedOn: yesterday(), knownLengthMm: 500, knownLengthUncertaintyMm: 0.5, lengthPx: 400, lengthUncertaintyPx: 0.5 } as never,
+      {
+        kind: "scale",
+        equipmentId: lab.camera.id,
+        performedOn: yesterday(),
+        knownLengthMm: 500,
+        knownLengthUncertaintyMm: 0.5,
+        lengthPx: 400,
+        lengthUncertaintyPx: 0.5,
+      } as never,
       lab.tech,
     );
     await signOffCalibration(timing.id, lab.manager);

@@ -46,7 +46,12 @@ export async function rateInForce(run: Run): Promise<RateInForce> {
 export async function scaleCalibrationOfRun(run: Run) {
   const { id, record } = await frozenRecord(run, "scale", run.cameraId);
   if (id === null || !record || record.scalePxPerM === null) return null;
-  return { id, scalePxPerM: record.scalePxPerM, scaleUncertaintyPxPerM: record.scaleUncertaintyPxPerM, tolerancePct: record.tolerancePct ?? DEFAULT_SCALE_TOLERANCE_PCT };
+  return {
+    id,
+    scalePxPerM: record.scalePxPerM,
+    scaleUncertaintyPxPerM: record.scaleUncertaintyPxPerM,
+    tolerancePct: record.tolerancePct ?? DEFAULT_SCALE_TOLERANCE_PCT,
+  };
 }
 
 export interface CalibrationsForCheck {

@@ -14,7 +14,19 @@ beforeAll(async () => {
 /** A run with a view setup and a tracking job that has just finished, its check not made yet. */
 async function trackedUnchecked() {
   const run = await createRun(runInput(lab), lab.technician);
-  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: 640, centreYPx: 360, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: 1000, scalePoints: null, mirrored: false, createdById: lab.technician.id });
+  await ViewSetup.create({
+    runId: run.id,
+    cameraId: run.cameraId,
+    centreXPx: 640,
+    centreYPx: 360,
+    tankEdgeXPx: null,
+    tankEdgeYPx: null,
+    tankEdgeRPx: null,
+    scalePxPerM: 1000,
+    scalePoints: null,
+    mirrored: false,
+    createdById: lab.technician.id,
+  });
   const job = await doneTrackingJob(run, lab.technician.id, 10);
   await run.update({ state: "tracked" });
   return { run, job };

@@ -23,7 +23,10 @@ export interface CurrentCheck {
 }
 
 /** The newest check made for the run (highest id: ids rise with every check), current or not. */
-export async function latestCheck(runId: number, options: { transaction?: Transaction; attributes?: Extract<keyof TheoryCheck, string>[] } = {}): Promise<TheoryCheck | null> {
+export async function latestCheck(
+  runId: number,
+  options: { transaction?: Transaction; attributes?: Extract<keyof TheoryCheck, string>[] } = {},
+): Promise<TheoryCheck | null> {
   return TheoryCheck.findOne({ where: { runId }, order: [["id", "DESC"]], ...options });
 }
 

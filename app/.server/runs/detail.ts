@@ -16,7 +16,11 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
     Equipment.findByPk(run.tankId),
     Equipment.findByPk(run.cameraId),
     User.findByPk(run.technicianId, { attributes: ["id", "name", "email"] }),
-    Frame.findAll({ where: { runId: run.id }, attributes: ["id", "position", "originalName", "timeS", "storedName", "thumbName"], order: [["position", "ASC"]] }),
+    Frame.findAll({
+      where: { runId: run.id },
+      attributes: ["id", "position", "originalName", "timeS", "storedName", "thumbName"],
+      order: [["position", "ASC"]],
+    }),
     ViewSetup.findOne({ where: { runId: run.id } }),
     latestJob(run.id),
     Track.findAll({ where: { runId: run.id }, order: [["number", "ASC"]] }),

@@ -24,14 +24,15 @@ function csvNumber(v: number): CsvCell {
 export async function tracksCsv(runId: number): Promise<{ filename: string; csv: string; withMetres: boolean }> {
   const run = await Run.findByPk(runId);
   if (!run) throw new RunError("No such run.", 404, undefined, "not_found");
-  const tracks = await Track.findAll({ where: { runId }, order: [["number", "ASC"], ["id", "ASC"]] });
+  const tracks = await Track.findAll({
+    where: { runId },
+    order: [
+      ["number", "ASC"],
+      ["id", "ASC"],
+    ],
+  });
   if (!tracks.length) {
-    throw new RunError(
-      `${runLabel(run.id)} has no tracks yet: upload its frames, set up the view and run tracking first.`,
-      409,
-      undefined,
-      "no_tracks",
-    );
+    throw new RunError(`${runLabel(run.id)} has no tracks yet: upload its frames, set up the view and run tracking first.`, 409, undefined, "no_tracks");
   }
   const setup = await ViewSetup.findOne({ where: { runId } });
   const { check } = await currentCheck(run);

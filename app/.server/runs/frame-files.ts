@@ -21,6 +21,8 @@ export async function frameFileStatus(runId: number, frames: { id: number; store
     console.error(`[storage] ${err.message}`);
     return { missing: [], unavailable: true };
   }
-  const missing = frames.filter((f) => !present.has(runKey(runId, f.storedName)) || (f.thumbName !== null && !present.has(runKey(runId, f.thumbName)))).map((f) => f.id);
+  const missing = frames
+    .filter((f) => !present.has(runKey(runId, f.storedName)) || (f.thumbName !== null && !present.has(runKey(runId, f.thumbName))))
+    .map((f) => f.id);
   return { missing, unavailable: false };
 }

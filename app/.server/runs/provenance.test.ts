@@ -22,18 +22,39 @@ afterAll(async () => {
 const centre = { x: 320, y: 240 };
 const pxPerM = 800;
 const setupValues = (runId: number, cameraId: number, over: Record<string, unknown> = {}) => ({
-  runId, cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: pxPerM, scalePoints: null, mirrored: false, createdById: lab.tech.id, ...over,
+  runId,
+  cameraId,
+  centreXPx: centre.x,
+  centreYPx: centre.y,
+  tankEdgeXPx: null,
+  tankEdgeYPx: null,
+  tankEdgeRPx: null,
+  scalePxPerM: pxPerM,
+  scalePoints: null,
+  mirrored: false,
+  createdById: lab.tech.id,
+  ...over,
 });
 
 /** A run at 8 rpm set with a float on the inertial circle of a table truly at `trueRpm`, tracked and checked. */
 async function checkedRun(trueRpm: number) {
   const run = await createRun(lab.runInput({ setRateRpm: 8 }), lab.tech);
   await ViewSetup.create(setupValues(run.id, run.cameraId));
-  const job = await TrackingJob.create({ runId: run.id, requestedById: lab.tech.id, state: "done", framesTotal: 180, framesDone: 180, error: null, startedAt: new Date(), finishedAt: new Date(), inputFingerprint: await trackingFingerprint(run) });
+  const job = await TrackingJob.create({
+    runId: run.id,
+    requestedById: lab.tech.id,
+    state: "done",
+    framesTotal: 180,
+    framesDone: 180,
+    error: null,
+    startedAt: new Date(),
+    finishedAt: new Date(),
+    inputFingerprint: await trackingFingerprint(run),
+  });
   const f = 2 * rpmToRadPerS(trueRpm);
   const points = Array.from({ length: 180 }, (_, i) => {
     const t = i / 30;
-    return [t, centre.x + (0.02 + 0.07 * Math.cos(-f * t)) * pxPerM, centre.y - (0.07 * Math.sin(-f * t)) * pxPerM, i];
+    return [t, centre.x + (0.02 + 0.07 * Math.cos(-f * t)) * pxPerM, centre.y - 0.07 * Math.sin(-f * t) * pxPerM, i];
   });
   await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify(points), pointCount: points.length, detectedShare: 1, jitterPx: 0 });
   await run.update({ state: "tracked" });

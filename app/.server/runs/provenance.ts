@@ -103,7 +103,15 @@ export function changedInputs(before: unknown, after: CheckInputs): string[] {
 }
 
 async function longestTrack(runId: number, transaction?: Transaction) {
-  return Track.findOne({ where: { runId }, attributes: ["id", "pointCount", "jobId"], order: [["pointCount", "DESC"], ["id", "ASC"]], transaction });
+  return Track.findOne({
+    where: { runId },
+    attributes: ["id", "pointCount", "jobId"],
+    order: [
+      ["pointCount", "DESC"],
+      ["id", "ASC"],
+    ],
+    transaction,
+  });
 }
 
 /**
@@ -111,7 +119,11 @@ async function longestTrack(runId: number, transaction?: Transaction) {
  * that track was made from other frames or another view setup than the present ones: a fit of it
  * vouches for nothing.
  */
-export async function presentFingerprint(run: Run, track?: Pick<Track, "id" | "pointCount" | "jobId">, transaction?: Transaction): Promise<{ fingerprint: string | null; inputs: CheckInputs }> {
+export async function presentFingerprint(
+  run: Run,
+  track?: Pick<Track, "id" | "pointCount" | "jobId">,
+  transaction?: Transaction,
+): Promise<{ fingerprint: string | null; inputs: CheckInputs }> {
   const used = track ?? (await longestTrack(run.id, transaction));
   const inputs = await checkInputs(run, used, transaction);
   if (!used) return { fingerprint: null, inputs };

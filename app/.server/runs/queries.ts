@@ -73,8 +73,24 @@ export type RunListItem = RunListItemView;
 export type RunPage = z.infer<typeof runPageSchema>;
 
 const listAttributes = [
-  "id", "createdAt", "state", "verdict", "tableId", "tankId", "cameraId", "technicianId", "setRateRpm", "direction",
-  "waterDepthM", "waterTemperatureC", "cameraMode", "tracer", "frameCount", "purpose", "signedOffAt", "supersedesId",
+  "id",
+  "createdAt",
+  "state",
+  "verdict",
+  "tableId",
+  "tankId",
+  "cameraId",
+  "technicianId",
+  "setRateRpm",
+  "direction",
+  "waterDepthM",
+  "waterTemperatureC",
+  "cameraMode",
+  "tracer",
+  "frameCount",
+  "purpose",
+  "signedOffAt",
+  "supersedesId",
 ] as const;
 
 /** One page of runs for the table and GET /api/v1/runs; sorting, filtering and paging all happen in the database. */
@@ -82,7 +98,13 @@ export async function listRuns(filters: RunFilters): Promise<RunPage> {
   const where = runsWhere(filters);
   const dir = filters.dir === "asc" ? "ASC" : "DESC";
   // id breaks ties so a page never repeats or skips a run; every index ends in the rowid, so this stays an index walk.
-  const order: Order = filters.sort === "id" ? [["id", dir]] : [[sortColumns[filters.sort], dir], ["id", dir]];
+  const order: Order =
+    filters.sort === "id"
+      ? [["id", dir]]
+      : [
+          [sortColumns[filters.sort], dir],
+          ["id", dir],
+        ];
   const offset = (filters.page - 1) * filters.pageSize;
   const [total, rows] = await Promise.all([
     Run.count({ where }),

@@ -27,7 +27,10 @@ afterAll(async () => {
 const hours = (h: number) => new Date(Date.now() + h * 3_600_000);
 
 async function fieldProblem(promise: Promise<unknown>) {
-  const err = await promise.then(() => null, (e: unknown) => e);
+  const err = await promise.then(
+    () => null,
+    (e: unknown) => e,
+  );
   expect(err).toBeInstanceOf(RunValidationError);
   return (err as RunValidationError).problems;
 }
@@ -46,23 +49,47 @@ describe("the rate reached time", () => {
   it("is refused after the first frame arrived: a field message on the page (400) and 422 with the field through the API, keeping the stored time", async () => {
     const reached = hours(-2);
     const run = await createRun(runInput(lab, { rateReachedAt: reached }), lab.technician);
-    await Frame.create({ runId: run.id, position: 0, originalName: "f0.png", storedName: `none-${run.id}.png`, thumbName: null, sha256: String(run.id).padEnd(64, "a"), format: "png", widthPx: 1280, heightPx: 720, sizeBytes: 1, timeS: null });
+    await Frame.create({
+      runId: run.id,
+      position: 0,
+      originalName: "f0.png",
+      storedName: `none-${run.id}.png`,
+      thumbName: null,
+      sha256: String(run.id).padEnd(64, "a"),
+      format: "png",
+      widthPx: 1280,
+      heightPx: 720,
+      sizeBytes: 1,
+      timeS: null,
+    });
     const afterFrames = new Date(Date.now() + 20_000);
 
     const api = await callApi(
       apiRunAction,
-      new Request(`http://localhost/api/v1/runs/${run.id}`, { method: "PATCH", headers: { Authorization: `Bearer ${techToken}`, "Content-Type": "application/json" }, body: JSON.stringify({ rateReachedAt: afterFrames.toISOString() }) }),
+      new Request(`http://localhost/api/v1/runs/${run.id}`, {
+        method: "PATCH",
+        headers: { Authorization: `Bearer ${techToken}`, "Content-Type": "application/json" },
+        body: JSON.stringify({ rateReachedAt: afterFrames.toISOString() }),
+      }),
       { id: String(run.id) },
     );
     expect(api.status).toBe(422);
-    expect((await api.json()).error).toMatchObject({ code: "conditions_not_possible", field: "rateReachedAt", issues: [{ field: "rateReachedAt", message: expect.stringMatching(/after the first frame arrived/) }] });
+    expect((await api.json()).error).toMatchObject({
+      code: "conditions_not_possible",
+      field: "rateReachedAt",
+      issues: [{ field: "rateReachedAt", message: expect.stringMatching(/after the first frame arrived/) }],
+    });
 
     const session = await sessionStorage.getSession();
     session.set("userId", lab.technician.id);
     const cookie = (await sessionStorage.commitSession(session)).split(";")[0]!;
     const form = new URLSearchParams(Object.entries({ ...runInput(lab), rateReachedAt: afterFrames.toISOString() }).map(([k, v]) => [k, String(v)]));
     const page = (await editAction({
-      request: new Request(`http://localhost/runs/${run.id}/edit`, { method: "POST", headers: { Cookie: cookie, "Content-Type": "application/x-www-form-urlencoded" }, body: form }),
+      request: new Request(`http://localhost/runs/${run.id}/edit`, {
+        method: "POST",
+        headers: { Cookie: cookie, "Content-Type": "application/x-www-form-urlencoded" },
+        body: form,
+      }),
       params: { id: String(run.id) },
       context: {},
     } as never)) as unknown as { init: { status: number }; data: { error: Record<string, string[]> } };
@@ -74,14 +101,24 @@ describe("the rate reached time", () => {
   it("when corrected, re-freezes the calibrations for the run's time: a rate calibration wrongly past due under a future time is in force again, the history says so and the check is fitted with it", async () => {
     const meter = await Equipment.create({ kind: "rate_meter", name: "Rate-reached tachometer", meterType: "tachometer" } as never);
     const readings = [5, 10, 15, 20].map((s, i) => ({ setRpm: s, measuredRpm: s + (i % 2 ? 0.004 : -0.004) }));
-    const cal = await createCalibration({ kind: "rate", equipmentId: lab.tableA.id, meterId: meter.id, performedOn: toDayString(hours(-24)), readings } as never, lab.technician);
+    const cal = await createCalibration(
+      { kind: "rate", equipmentId: lab.tableA.id, meterId: meter.id, performedOn: toDayString(hours(-24)), readings } as never,
+      lab.technician,
+    );
     await signOffCalibration(cal.id, lab.manager);
     const { run } = await checkedRunFor(lab, lab.technician);
 
     // A time typed a year ahead, stored before such times were refused: the calibration falls due before it.
     const wrong = hours(24 * 400);
     const ids = [run.tableId, run.tankId, run.cameraId];
-    await run.update({ rateReachedAt: wrong, calibrationsInForce: JSON.stringify({ at: wrong.toISOString(), inForce: await calibrationsInForce(ids, wrong), pastDue: await calibrationsPastDueAt(ids, wrong) }) });
+    await run.update({
+      rateReachedAt: wrong,
+      calibrationsInForce: JSON.stringify({
+        at: wrong.toISOString(),
+        inForce: await calibrationsInForce(ids, wrong),
+        pastDue: await calibrationsPastDueAt(ids, wrong),
+      }),
+    });
     expect(await currentCheck(run.id)).toMatchObject({ status: "out_of_date", changed: ["rate reached time", "calibrations in force"] });
 
     // The table reached its rate after the calibration was signed off, so the calibration applies.

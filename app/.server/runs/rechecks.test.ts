@@ -31,7 +31,11 @@ async function managerCookie() {
 /** The settings page's form as a lab manager sends it, with the defaults but for the tolerance. */
 async function saveTolerance(pct: number) {
   const body = new URLSearchParams(Object.entries({ ...settingDefaults, checkTolerancePct: pct }).map(([k, v]) => [k, String(v)]));
-  const request = new Request("http://localhost/settings", { method: "POST", headers: { Cookie: await managerCookie(), "Content-Type": "application/x-www-form-urlencoded" }, body });
+  const request = new Request("http://localhost/settings", {
+    method: "POST",
+    headers: { Cookie: await managerCookie(), "Content-Type": "application/x-www-form-urlencoded" },
+    body,
+  });
   return settingsAction({ request, params: {}, context: {} } as never);
 }
 
@@ -98,7 +102,19 @@ describe("new frames", () => {
     try {
       // Three more frames arrive (the upload route calls inputsChanged after storing them).
       for (let i = 0; i < 3; i++) {
-        await Frame.create({ runId: run.id, position: i, originalName: `f${i}.png`, storedName: `missing-${run.id}-${i}.png`, thumbName: null, sha256: `${run.id}-${i}`.padEnd(64, "0"), format: "png", widthPx: 1280, heightPx: 720, sizeBytes: 1, timeS: null });
+        await Frame.create({
+          runId: run.id,
+          position: i,
+          originalName: `f${i}.png`,
+          storedName: `missing-${run.id}-${i}.png`,
+          thumbName: null,
+          sha256: `${run.id}-${i}`.padEnd(64, "0"),
+          format: "png",
+          widthPx: 1280,
+          heightPx: 720,
+          sizeBytes: 1,
+          timeS: null,
+        });
       }
       await inputsChanged(run.id, lab.technician.id, "track");
       expect(await currentCheck(run.id)).toMatchObject({ status: "out_of_date", changed: ["frames"] });

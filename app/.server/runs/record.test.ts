@@ -15,7 +15,11 @@ beforeAll(async () => {
 describe("sign-off", () => {
   it("refuses a run without a theory check and anyone but a lab manager, changing nothing", async () => {
     const run = await createRun(runInput(lab), lab.technician);
-    await expect(signOffRun(run.id, lab.manager)).rejects.toMatchObject({ status: 409, code: "not_checked", message: expect.stringMatching(/only a run with a theory check/) });
+    await expect(signOffRun(run.id, lab.manager)).rejects.toMatchObject({
+      status: 409,
+      code: "not_checked",
+      message: expect.stringMatching(/only a run with a theory check/),
+    });
     await run.update({ state: "checked" });
     await expect(signOffRun(run.id, lab.technician)).rejects.toMatchObject({ status: 403 });
     await run.reload();

@@ -61,10 +61,22 @@ const extraLabels: Record<string, string> = { created: "logged", theoryCheck: "t
 
 /** Every change to a run, oldest first, with ids turned into the names people know. */
 export async function getRunHistory(runId: number): Promise<RunHistoryEntry[]> {
-  const rows = await RunHistory.findAll({ where: { runId }, order: [["createdAt", "ASC"], ["id", "ASC"]] });
+  const rows = await RunHistory.findAll({
+    where: { runId },
+    order: [
+      ["createdAt", "ASC"],
+      ["id", "ASC"],
+    ],
+  });
   const userIds = [...new Set(rows.map((r) => r.userId).filter((id): id is number => id !== null))];
   const equipmentIds = [
-    ...new Set(rows.filter((r) => equipmentFields.has(r.field)).flatMap((r) => [r.oldValue, r.newValue]).filter(Boolean).map(Number)),
+    ...new Set(
+      rows
+        .filter((r) => equipmentFields.has(r.field))
+        .flatMap((r) => [r.oldValue, r.newValue])
+        .filter(Boolean)
+        .map(Number),
+    ),
   ];
   const [users, equipment] = await Promise.all([
     userIds.length ? User.findAll({ where: { id: userIds }, attributes: ["id", "name"] }) : [],
@@ -151,7 +163,10 @@ export function calibrationIdsInForce(run: Pick<Run, "calibrationsInForce">): nu
 }
 
 /** The run as GET /api/v1/runs/:id returns it, and the current check's row, which export.json reads the full result from. */
-export async function getRunDetailWithCheck(runId: number, opts: { current?: CurrentCheck } = {}): Promise<{ detail: RunDetailView; check: TheoryCheck | null } | null> {
+export async function getRunDetailWithCheck(
+  runId: number,
+  opts: { current?: CurrentCheck } = {},
+): Promise<{ detail: RunDetailView; check: TheoryCheck | null } | null> {
   const run = await Run.findByPk(runId);
   if (!run) return null;
   const calibrationIds = calibrationIdsInForce(run);
@@ -161,7 +176,13 @@ export async function getRunDetailWithCheck(runId: number, opts: { current?: Cur
     run.signedOffById ? User.findByPk(run.signedOffById, { attributes: ["id", "name"] }) : null,
     Frame.count({ where: { runId } }),
     ViewSetup.findOne({ where: { runId } }),
-    TrackingJob.findOne({ where: { runId }, order: [["createdAt", "DESC"], ["id", "DESC"]] }),
+    TrackingJob.findOne({
+      where: { runId },
+      order: [
+        ["createdAt", "DESC"],
+        ["id", "DESC"],
+      ],
+    }),
     Track.findAll({ where: { runId }, attributes: ["id", "number", "pointCount", "detectedShare", "jitterPx", "jobId"], order: [["number", "ASC"]] }),
     opts.current ?? currentCheck(run),
     calibrationIds.length ? Calibration.findAll({ where: { id: { [Op.in]: calibrationIds } } }) : [],
@@ -196,10 +217,19 @@ export async function getRunDetailWithCheck(runId: number, opts: { current?: Cur
     // Only a check made from the run's present inputs is shown; a stale one is named, not shown.
     latestTheoryCheck: check.check ? serializeTheoryCheck(check.check) : null,
     checkStatus: check.status,
-    checkOutOfDate: check.status === "out_of_date" ? { because: check.changed, recheckPending: recheckPending(run.id) || job?.state === "queued" || job?.state === "running", checkId: check.latest?.id ?? null } : null,
+    checkOutOfDate:
+      check.status === "out_of_date"
+        ? {
+            because: check.changed,
+            recheckPending: recheckPending(run.id) || job?.state === "queued" || job?.state === "running",
+            checkId: check.latest?.id ?? null,
+          }
+        : null,
     calibrationsInForce: {
       ids: calibrationIds,
-      recorded: (({ at, inForce, pastDue }) => ({ at, inForce: inForce.map((c) => ({ ...c })), pastDue: pastDue.map((c) => ({ ...c })) }))(calibrationSnapshot(run)),
+      recorded: (({ at, inForce, pastDue }) => ({ at, inForce: inForce.map((c) => ({ ...c })), pastDue: pastDue.map((c) => ({ ...c })) }))(
+        calibrationSnapshot(run),
+      ),
       records: calibrations.map((c) => ({
         id: c.id,
         kind: c.kind,
@@ -233,7 +263,9 @@ export async function getRunExport(runId: number): Promise<RunExportView | null>
   if (!found) return null;
   const { detail } = found;
   // The stored check is { result, input }: the input (setup, rates, t₀, settings, track) reproduces the result.
-  const stored = found.check ? (storedCheckResult(found.check) as { result?: { settings?: unknown; calibrationsApplied?: unknown }; input?: { settings?: unknown } } | null) : null;
+  const stored = found.check
+    ? (storedCheckResult(found.check) as { result?: { settings?: unknown; calibrationsApplied?: unknown }; input?: { settings?: unknown } } | null)
+    : null;
   const check = found.check ? { ...serializeTheoryCheck(found.check), result: stored } : null;
   return {
     format: "tankside-run-export",

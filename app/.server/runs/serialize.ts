@@ -70,7 +70,12 @@ export function serializeRunListItem(r: Run, name: { equipment: (id: number) => 
 }
 
 /** A link to another run: the one this corrects, or one that corrects it. */
-export const serializeRunLink = (r: Pick<Run, "id" | "state" | "createdAt">): RunLinkView => ({ id: r.id, label: runLabel(r.id), state: r.state, createdAt: r.createdAt.toISOString() });
+export const serializeRunLink = (r: Pick<Run, "id" | "state" | "createdAt">): RunLinkView => ({
+  id: r.id,
+  label: runLabel(r.id),
+  state: r.state,
+  createdAt: r.createdAt.toISOString(),
+});
 
 function parseJson(text: string | null): unknown {
   if (!text) return null;

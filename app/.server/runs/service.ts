@@ -108,12 +108,19 @@ const clockSkewMs = 60_000;
 async function assertRateReachedAtPossible(at: Date | undefined, runId?: number) {
   if (!at) return;
   if (at.getTime() > Date.now() + clockSkewMs) {
-    throw new RunValidationError([{ field: "rateReachedAt", message: "The rate reached time is in the future: give the time the table actually reached its rate." }]);
+    throw new RunValidationError([
+      { field: "rateReachedAt", message: "The rate reached time is in the future: give the time the table actually reached its rate." },
+    ]);
   }
   if (runId) {
     const first = await Frame.findOne({ where: { runId }, order: [["createdAt", "ASC"]], attributes: ["createdAt"] });
     if (first && at.getTime() > first.createdAt.getTime()) {
-      throw new RunValidationError([{ field: "rateReachedAt", message: `The rate reached time is after the first frame arrived (${first.createdAt.toISOString()}): the table reached its rate before it was filmed, so give that earlier time.` }]);
+      throw new RunValidationError([
+        {
+          field: "rateReachedAt",
+          message: `The rate reached time is after the first frame arrived (${first.createdAt.toISOString()}): the table reached its rate before it was filmed, so give that earlier time.`,
+        },
+      ]);
     }
   }
 }
@@ -143,7 +150,10 @@ export async function createRun(input: RunInput, user: CurrentUser) {
       },
       { transaction },
     );
-    await RunHistory.create({ runId: run.id, userId: user.id, field: "created", oldValue: null, newValue: input.supersedesId ? `correction of run ${input.supersedesId}` : "logged" }, { transaction });
+    await RunHistory.create(
+      { runId: run.id, userId: user.id, field: "created", oldValue: null, newValue: input.supersedesId ? `correction of run ${input.supersedesId}` : "logged" },
+      { transaction },
+    );
     return run;
   });
 }
@@ -162,7 +172,14 @@ export function assertCanChange(run: Run, user: CurrentUser) {
   }
 }
 
-const show = (v: unknown) => (v === null || v === undefined ? null : v instanceof Date ? v.toISOString() : typeof v === "object" ? JSON.stringify(v) : (v as string | number | boolean | bigint).toString());
+const show = (v: unknown) =>
+  v === null || v === undefined
+    ? null
+    : v instanceof Date
+      ? v.toISOString()
+      : typeof v === "object"
+        ? JSON.stringify(v)
+        : (v as string | number | boolean | bigint).toString();
 
 export async function updateRun(runId: number, input: RunInput, user: CurrentUser) {
   const run = await Run.findByPk(runId);
@@ -187,15 +204,21 @@ export async function updateRun(runId: number, input: RunInput, user: CurrentUse
     const refreeze = changed.some((k) => k === "rateReachedAt" || equipmentFields.has(k));
     // Without a rate reached time the run's time is when it was logged, as frozen then.
     const loggedAt = (!run.rateReachedAt && calibrationSnapshot(run).at) || run.createdAt.toISOString();
-    const snapshot = refreeze ? await freezeCalibrations([next.tableId, next.tankId, next.cameraId], next.rateReachedAt ?? new Date(loggedAt), transaction) : null;
+    const snapshot = refreeze
+      ? await freezeCalibrations([next.tableId, next.tankId, next.cameraId], next.rateReachedAt ?? new Date(loggedAt), transaction)
+      : null;
     snapshotChanged = snapshot !== null && snapshot !== run.calibrationsInForce;
     // The snapshot's time moves with the rate reached time; the history names only a change of which records apply.
     if (snapshot && snapshotSummary(snapshot) !== snapshotSummary(run.calibrationsInForce)) {
-      await RunHistory.create({ runId, userId: user.id, field: "calibrationsInForce", oldValue: snapshotSummary(run.calibrationsInForce), newValue: snapshotSummary(snapshot) }, { transaction });
+      await RunHistory.create(
+        { runId, userId: user.id, field: "calibrationsInForce", oldValue: snapshotSummary(run.calibrationsInForce), newValue: snapshotSummary(snapshot) },
+        { transaction },
+      );
     }
     redo = changed.some((k) => trackFields.has(k)) ? "track" : snapshotChanged || changed.some((k) => fitFields.has(k)) ? "fit" : null;
     // The verdict in the runs table belongs to the old inputs: it goes until the re-check sets it again.
-    if (changes.length) await run.update({ ...next, ...(snapshot ? { calibrationsInForce: snapshot } : {}), ...(redo ? { verdict: null } : {}) }, { transaction });
+    if (changes.length)
+      await run.update({ ...next, ...(snapshot ? { calibrationsInForce: snapshot } : {}), ...(redo ? { verdict: null } : {}) }, { transaction });
   });
   if (redo) await (await import("./rechecks")).inputsChanged(runId, user.id, redo);
   return run;

@@ -6,7 +6,22 @@ import { trackingFingerprint } from "./provenance";
 import type { CurrentUser } from "../auth/permissions";
 import type { Role } from "~/lib/roles";
 
-const blank = { maker: null, model: null, serialNumber: null, location: null, notes: null, diameterM: null, maxRateRpm: null, flatTable: null, rateTolerancePct: null, depthM: null, resolutionWidthPx: null, resolutionHeightPx: null, nominalFrameRateFps: null, meterType: null };
+const blank = {
+  maker: null,
+  model: null,
+  serialNumber: null,
+  location: null,
+  notes: null,
+  diameterM: null,
+  maxRateRpm: null,
+  flatTable: null,
+  rateTolerancePct: null,
+  depthM: null,
+  resolutionWidthPx: null,
+  resolutionHeightPx: null,
+  nominalFrameRateFps: null,
+  meterType: null,
+};
 
 /** A small invented lab for tests and the benchmark: two tables, two tanks, a camera and one person of each role. */
 export async function seedRunLab() {
@@ -19,7 +34,13 @@ export async function seedRunLab() {
   ]);
   if (!tableA || !tableB || !tank || !tank2 || !camera) throw new Error("bulkCreate returned fewer rows than it was given");
   const person = async (role: Role, name: string) => {
-    const u = await User.create({ email: `${role}.${Math.random().toString(36).slice(2, 8)}@tankside.example`, name, role, passwordHash: null, passwordChangedAt: null });
+    const u = await User.create({
+      email: `${role}.${Math.random().toString(36).slice(2, 8)}@tankside.example`,
+      name,
+      role,
+      passwordHash: null,
+      passwordChangedAt: null,
+    });
     return { id: u.id, email: u.email, name: u.name, role: u.role } satisfies CurrentUser;
   };
   const technician = await person("technician", "Ada Brightwater");
@@ -75,7 +96,19 @@ export async function checkedRunFor(lab: RunLab, user: CurrentUser, overrides: R
   const run = await createRun(runInput(lab, overrides), user);
   const centre = { x: 640, y: 360 };
   const pxPerM = 1000;
-  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: pxPerM, scalePoints: null, mirrored: false, createdById: user.id });
+  await ViewSetup.create({
+    runId: run.id,
+    cameraId: run.cameraId,
+    centreXPx: centre.x,
+    centreYPx: centre.y,
+    tankEdgeXPx: null,
+    tankEdgeYPx: null,
+    tankEdgeRPx: null,
+    scalePxPerM: pxPerM,
+    scalePoints: null,
+    mirrored: false,
+    createdById: user.id,
+  });
   const job = await doneTrackingJob(run, user.id, 180);
   const f = 2 * omegaFromTableRate(trueRpm ?? run.setRateRpm, run.direction);
   const points = Array.from({ length: 180 }, (_, i) => {

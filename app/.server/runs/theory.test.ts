@@ -33,7 +33,19 @@ function inertialTrack(trueRpm: number, seconds = 6, fps = 30) {
 
 async function runWithTrack(trueRpm: number) {
   const run = await createRun(lab.runInput({ setRateRpm: 10 }), lab.tech);
-  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: pxPerM, scalePoints: null, mirrored: false, createdById: lab.tech.id });
+  await ViewSetup.create({
+    runId: run.id,
+    cameraId: run.cameraId,
+    centreXPx: centre.x,
+    centreYPx: centre.y,
+    tankEdgeXPx: null,
+    tankEdgeYPx: null,
+    tankEdgeRPx: null,
+    scalePxPerM: pxPerM,
+    scalePoints: null,
+    mirrored: false,
+    createdById: lab.tech.id,
+  });
   const job = await doneTrackingJob(run, lab.tech.id, 180);
   const points = inertialTrack(trueRpm);
   await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify(points), pointCount: points.length, detectedShare: 1, jitterPx: 0 });

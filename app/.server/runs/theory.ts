@@ -18,7 +18,14 @@ export function parseTrackPoints(track: Track) {
 
 /** Builds the theory-check input for a run's longest track: the same function the CLI and the browser call. */
 export async function theoryInputFor(run: Run): Promise<{ input: TheoryCheckInput; track: Track } | null> {
-  const tracks = await Track.findAll({ where: { runId: run.id }, order: [["pointCount", "DESC"], ["id", "ASC"]], limit: 1 });
+  const tracks = await Track.findAll({
+    where: { runId: run.id },
+    order: [
+      ["pointCount", "DESC"],
+      ["id", "ASC"],
+    ],
+    limit: 1,
+  });
   const setup = await ViewSetup.findOne({ where: { runId: run.id } });
   if (!tracks.length || !setup) return null;
   const table = await Equipment.findByPk(run.tableId);

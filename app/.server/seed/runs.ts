@@ -34,14 +34,60 @@ const PX_PER_M = 700;
 
 /** The invented lab's runs; their frame stacks are rendered here, then tracked like any upload. */
 const demoRuns: DemoRun[] = [
-  { table: "Table A (east bench)", tank: "Acrylic tank 57", camera: "Overhead camera 1", rpm: 10, direction: "ccw", cameraMode: "rotating", tracer: "float", depthCm: 12, temperatureC: 20.5, purpose: "Inertial circles for the second-year demonstration", technician: "tech@tankside.example", daysAgo: 6, frames: 240 },
-  { table: "Table B (west bench)", tank: "Wide tank 90", camera: "Overhead camera 2", rpm: 6, direction: "cw", cameraMode: "lab", tracer: "dye", depthCm: 15, temperatureC: 19, purpose: "Dye patch filmed from the room, clockwise table", technician: "tech2@tankside.example", daysAgo: 3, frames: 240 },
-  { table: "Table A (east bench)", tank: "Acrylic tank 57", camera: "Overhead camera 1", rpm: 8, trueRpm: 8.6, direction: "ccw", cameraMode: "rotating", tracer: "float", depthCm: 10, temperatureC: 21, purpose: "Repeat at 8 rpm after the drive was serviced", notes: "The rate meter read a little high during spin-up.", technician: "tech@tankside.example", daysAgo: 1, frames: 240 },
+  {
+    table: "Table A (east bench)",
+    tank: "Acrylic tank 57",
+    camera: "Overhead camera 1",
+    rpm: 10,
+    direction: "ccw",
+    cameraMode: "rotating",
+    tracer: "float",
+    depthCm: 12,
+    temperatureC: 20.5,
+    purpose: "Inertial circles for the second-year demonstration",
+    technician: "tech@tankside.example",
+    daysAgo: 6,
+    frames: 240,
+  },
+  {
+    table: "Table B (west bench)",
+    tank: "Wide tank 90",
+    camera: "Overhead camera 2",
+    rpm: 6,
+    direction: "cw",
+    cameraMode: "lab",
+    tracer: "dye",
+    depthCm: 15,
+    temperatureC: 19,
+    purpose: "Dye patch filmed from the room, clockwise table",
+    technician: "tech2@tankside.example",
+    daysAgo: 3,
+    frames: 240,
+  },
+  {
+    table: "Table A (east bench)",
+    tank: "Acrylic tank 57",
+    camera: "Overhead camera 1",
+    rpm: 8,
+    trueRpm: 8.6,
+    direction: "ccw",
+    cameraMode: "rotating",
+    tracer: "float",
+    depthCm: 10,
+    temperatureC: 21,
+    purpose: "Repeat at 8 rpm after the drive was serviced",
+    notes: "The rate meter read a little high during spin-up.",
+    technician: "tech@tankside.example",
+    daysAgo: 1,
+    frames: 240,
+  },
 ];
 
 async function renderAndUpload(run: Run, spec: SyntheticRunSpec) {
   await renderRunFrames(spec, async (frame) => {
-    const jpeg = await sharp(Buffer.from(frame.data), { raw: { width: frame.width, height: frame.height, channels: frame.channels } }).jpeg({ quality: 90 }).toBuffer();
+    const jpeg = await sharp(Buffer.from(frame.data), { raw: { width: frame.width, height: frame.height, channels: frame.channels } })
+      .jpeg({ quality: 90 })
+      .toBuffer();
     const file = new File([new Uint8Array(jpeg)], `frame_${frame.index + 1}.jpg`, { type: "image/jpeg" });
     await receiveFrameFile(run, file, null);
   });
@@ -56,7 +102,21 @@ addDemoStep({
       const [table, tank, camera] = await Promise.all([byName(d.table), byName(d.tank), byName(d.camera)]);
       const reached = new Date(Date.now() - d.daysAgo * 86_400_000 - 3_600_000);
       const run = await createRun(
-        { tableId: table.id, tankId: tank.id, cameraId: camera.id, setRateRpm: d.rpm, direction: d.direction, waterDepthCm: d.depthCm, waterTemperatureC: d.temperatureC, rateReachedAt: reached, cameraMode: d.cameraMode, frameRateFps: FPS, tracer: d.tracer, purpose: d.purpose, notes: d.notes },
+        {
+          tableId: table.id,
+          tankId: tank.id,
+          cameraId: camera.id,
+          setRateRpm: d.rpm,
+          direction: d.direction,
+          waterDepthCm: d.depthCm,
+          waterTemperatureC: d.temperatureC,
+          rateReachedAt: reached,
+          cameraMode: d.cameraMode,
+          frameRateFps: FPS,
+          tracer: d.tracer,
+          purpose: d.purpose,
+          notes: d.notes,
+        },
         { id: user.id, email: user.email, name: user.name, role: user.role },
       );
       const when = new Date(reached.getTime() + 20 * 60_000);
@@ -81,8 +141,20 @@ addDemoStep({
         tankMarks: true,
         tracers: [
           d.tracer === "float"
-            ? { kind: "float", sigmaPx: 3, brightness: 120, path: { kind: "inertial-circle", centre: { x: 0.03, y: -0.02 }, radius: 0.08, phase: 0.4, drag: 0.02 } }
-            : { kind: "dye", sigmaAlongPx: 6, sigmaAcrossPx: 3.5, colour: [200, 40, 120], opacity: 0.85, path: { kind: "inertial-circle", centre: { x: -0.05, y: 0.04 }, radius: 0.11, phase: 1.2, drag: 0.01 } },
+            ? {
+                kind: "float",
+                sigmaPx: 3,
+                brightness: 120,
+                path: { kind: "inertial-circle", centre: { x: 0.03, y: -0.02 }, radius: 0.08, phase: 0.4, drag: 0.02 },
+              }
+            : {
+                kind: "dye",
+                sigmaAlongPx: 6,
+                sigmaAcrossPx: 3.5,
+                colour: [200, 40, 120],
+                opacity: 0.85,
+                path: { kind: "inertial-circle", centre: { x: -0.05, y: 0.04 }, radius: 0.11, phase: 1.2, drag: 0.01 },
+              },
         ],
       };
       await renderAndUpload(run, spec);
@@ -95,7 +167,10 @@ addDemoStep({
         tankEdgeYPx: centre.y,
         tankEdgeRPx: tankRadiusPx - 6,
         scalePxPerM: PX_PER_M,
-        scalePoints: JSON.stringify([{ x: centre.x - 70, y: centre.y + 150 }, { x: centre.x + 70, y: centre.y + 150 }]),
+        scalePoints: JSON.stringify([
+          { x: centre.x - 70, y: centre.y + 150 },
+          { x: centre.x + 70, y: centre.y + 150 },
+        ]),
         mirrored: false,
         createdById: user.id,
       });
@@ -108,7 +183,20 @@ addDemoStep({
     const tech = (await User.findOne({ where: { email: "tech2@tankside.example" } }))!;
     const [table, tank, camera] = await Promise.all([byName("Table B (west bench)"), byName("Acrylic tank 40"), byName("Overhead camera 2")]);
     await createRun(
-      { tableId: table.id, tankId: tank.id, cameraId: camera.id, setRateRpm: 12, direction: "ccw", waterDepthCm: 8, waterTemperatureC: 20, rateReachedAt: undefined, cameraMode: "rotating", frameRateFps: 60, tracer: "dye", purpose: "Ekman spin-up with dye streaks (to be filmed)" },
+      {
+        tableId: table.id,
+        tankId: tank.id,
+        cameraId: camera.id,
+        setRateRpm: 12,
+        direction: "ccw",
+        waterDepthCm: 8,
+        waterTemperatureC: 20,
+        rateReachedAt: undefined,
+        cameraMode: "rotating",
+        frameRateFps: 60,
+        tracer: "dye",
+        purpose: "Ekman spin-up with dye streaks (to be filmed)",
+      },
       { id: tech.id, email: tech.email, name: tech.name, role: tech.role },
     );
   },

@@ -38,7 +38,8 @@ export function calibrationKey(name: string) {
 export function assertKey(key: string) {
   const parts = key.split("/");
   // eslint-disable-next-line no-control-regex
-  if (parts.length < 2 || parts.some((p) => p === "" || p === "." || p === ".." || /[\\\x00-\x1f]/.test(p))) throw new Error(`bad object key ${JSON.stringify(key)}`);
+  if (parts.length < 2 || parts.some((p) => p === "" || p === "." || p === ".." || /[\\\x00-\x1f]/.test(p)))
+    throw new Error(`bad object key ${JSON.stringify(key)}`);
   return key;
 }
 

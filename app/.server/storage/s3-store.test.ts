@@ -94,8 +94,17 @@ describe("orphan cleanup in a bucket", () => {
     const kept = `runs/${run.id}/11111111-1111-4111-8111-111111111111.png`;
     const keptThumb = kept.replace(".png", ".thumb.webp");
     await Frame.create({
-      runId: run.id, position: 0, originalName: "f0.png", storedName: path.basename(kept), thumbName: path.basename(keptThumb),
-      sha256: "1".repeat(64), format: "png", widthPx: 4, heightPx: 4, sizeBytes: 1, timeS: 0,
+      runId: run.id,
+      position: 0,
+      originalName: "f0.png",
+      storedName: path.basename(kept),
+      thumbName: path.basename(keptThumb),
+      sha256: "1".repeat(64),
+      format: "png",
+      widthPx: 4,
+      heightPx: 4,
+      sizeBytes: 1,
+      timeS: 0,
     });
     const attachment = await CalibrationAttachment.findOne();
     const orphan = `runs/${run.id}/22222222-2222-4222-8222-222222222222.png`;
@@ -123,9 +132,17 @@ describe("storage settings", () => {
   it("keeps the local folder without S3_BUCKET and takes a bucket with it", () => {
     expect(storageSettings({}, "/srv/uploads")).toEqual({ kind: "local", root: "/srv/uploads" });
     expect(storageSettings({ S3_BUCKET: "lab-frames", S3_ENDPOINT: "http://127.0.0.1:9000", S3_FORCE_PATH_STYLE: "1" }, "/srv/uploads")).toEqual({
-      kind: "s3", bucket: "lab-frames", endpoint: "http://127.0.0.1:9000", region: "us-east-1", forcePathStyle: true,
+      kind: "s3",
+      bucket: "lab-frames",
+      endpoint: "http://127.0.0.1:9000",
+      region: "us-east-1",
+      forcePathStyle: true,
     });
-    expect(storageSettings({ S3_BUCKET: "lab-frames", AWS_REGION: "eu-west-1" }, "/srv/uploads")).toMatchObject({ region: "eu-west-1", endpoint: null, forcePathStyle: false });
+    expect(storageSettings({ S3_BUCKET: "lab-frames", AWS_REGION: "eu-west-1" }, "/srv/uploads")).toMatchObject({
+      region: "eu-west-1",
+      endpoint: null,
+      forcePathStyle: false,
+    });
   });
 
   it("names the setting that cannot be right, in one line", () => {

@@ -35,8 +35,28 @@ function said(err: unknown) {
   return text.length > 200 ? `${text.slice(0, 197)}...` : text;
 }
 
-const unreachableCodes = new Set(["ECONNREFUSED", "ENOTFOUND", "EAI_AGAIN", "ECONNRESET", "ETIMEDOUT", "EHOSTUNREACH", "ENETUNREACH", "EPIPE", "TimeoutError", "RequestTimeout"]);
-const credentialCodes = new Set(["InvalidAccessKeyId", "SignatureDoesNotMatch", "InvalidToken", "ExpiredToken", "TokenRefreshRequired", "AuthorizationHeaderMalformed", "InvalidClientTokenId", "UnrecognizedClientException"]);
+const unreachableCodes = new Set([
+  "ECONNREFUSED",
+  "ENOTFOUND",
+  "EAI_AGAIN",
+  "ECONNRESET",
+  "ETIMEDOUT",
+  "EHOSTUNREACH",
+  "ENETUNREACH",
+  "EPIPE",
+  "TimeoutError",
+  "RequestTimeout",
+]);
+const credentialCodes = new Set([
+  "InvalidAccessKeyId",
+  "SignatureDoesNotMatch",
+  "InvalidToken",
+  "ExpiredToken",
+  "TokenRefreshRequired",
+  "AuthorizationHeaderMalformed",
+  "InvalidClientTokenId",
+  "UnrecognizedClientException",
+]);
 
 export type S3Failure = "missing" | "no_bucket" | "credentials" | "no_credentials" | "denied" | "unreachable" | "other";
 
@@ -63,7 +83,9 @@ function printable(endpoint: string) {
 }
 
 export function describeS3(settings: S3Settings) {
-  return settings.endpoint ? `S3 bucket '${settings.bucket}' at S3_ENDPOINT ${printable(settings.endpoint)}` : `S3 bucket '${settings.bucket}' in AWS region ${settings.region}`;
+  return settings.endpoint
+    ? `S3 bucket '${settings.bucket}' at S3_ENDPOINT ${printable(settings.endpoint)}`
+    : `S3 bucket '${settings.bucket}' in AWS region ${settings.region}`;
 }
 
 function clientConfig(settings: S3Settings, forCheck: boolean): S3ClientConfig {
@@ -113,7 +135,9 @@ export class S3Store implements ObjectStore {
 
   async put(key: string, data: Buffer, contentType?: string) {
     try {
-      await this.client.send(new PutObjectCommand({ Bucket: this.settings.bucket, Key: assertKey(key), Body: data, ContentLength: data.length, ContentType: contentType }));
+      await this.client.send(
+        new PutObjectCommand({ Bucket: this.settings.bucket, Key: assertKey(key), Body: data, ContentLength: data.length, ContentType: contentType }),
+      );
     } catch (err) {
       this.fail("writing", key, err);
     }
@@ -123,7 +147,13 @@ export class S3Store implements ObjectStore {
     const { size } = await fsp.stat(file);
     try {
       await this.client.send(
-        new PutObjectCommand({ Bucket: this.settings.bucket, Key: assertKey(key), Body: fs.createReadStream(file), ContentLength: size, ContentType: contentType }),
+        new PutObjectCommand({
+          Bucket: this.settings.bucket,
+          Key: assertKey(key),
+          Body: fs.createReadStream(file),
+          ContentLength: size,
+          ContentType: contentType,
+        }),
       );
     } catch (err) {
       this.fail("writing", key, err);

@@ -27,7 +27,9 @@ export function storageSettings(vars: Vars, defaultRoot: string): StorageSetting
   // Bucket names are letters, digits, dots, hyphens (and, on some S3-compatible servers, underscores);
   // "s3://name" or "name/folder" is a common slip.
   if (!/^[A-Za-z0-9][A-Za-z0-9._-]{1,254}$/.test(bucket)) {
-    return { problem: `Tankside will not start: S3_BUCKET '${bucket}' is not a bucket name (letters, digits, dots and hyphens only; no "s3://" and no folder).` };
+    return {
+      problem: `Tankside will not start: S3_BUCKET '${bucket}' is not a bucket name (letters, digits, dots and hyphens only; no "s3://" and no folder).`,
+    };
   }
   const endpoint = vars.S3_ENDPOINT?.trim() || null;
   if (endpoint) {
@@ -43,7 +45,9 @@ export function storageSettings(vars: Vars, defaultRoot: string): StorageSetting
   }
   const pathStyle = (vars.S3_FORCE_PATH_STYLE ?? "").trim().toLowerCase();
   if (!["", "0", "1", "true", "false"].includes(pathStyle)) {
-    return { problem: `Tankside will not start: S3_FORCE_PATH_STYLE is '${vars.S3_FORCE_PATH_STYLE}'; set it to 1 (bucket in the path, as most S3-compatible servers want) or 0.` };
+    return {
+      problem: `Tankside will not start: S3_FORCE_PATH_STYLE is '${vars.S3_FORCE_PATH_STYLE}'; set it to 1 (bucket in the path, as most S3-compatible servers want) or 0.`,
+    };
   }
   const region = vars.S3_REGION?.trim() || vars.AWS_REGION?.trim() || "us-east-1";
   return { kind: "s3", bucket, endpoint, region, forcePathStyle: pathStyle === "1" || pathStyle === "true" };

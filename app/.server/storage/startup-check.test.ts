@@ -41,11 +41,15 @@ function bootWith(settings: Record<string, string>): Promise<{ code: number | nu
     SESSION_SECRET: "boot-check-session-secret-0123456789",
     ...settings,
   };
-  const child = spawn(process.execPath, ["--import", "tsx", "--input-type=module", "-e", "const { boot } = await import('./app/.server/boot.ts'); await boot(); process.exit(0);"], {
-    cwd: process.cwd(),
-    env,
-    stdio: ["ignore", "pipe", "pipe"],
-  });
+  const child = spawn(
+    process.execPath,
+    ["--import", "tsx", "--input-type=module", "-e", "const { boot } = await import('./app/.server/boot.ts'); await boot(); process.exit(0);"],
+    {
+      cwd: process.cwd(),
+      env,
+      stdio: ["ignore", "pipe", "pipe"],
+    },
+  );
   let stdout = "";
   let stderr = "";
   child.stdout.on("data", (d) => (stdout += d));
@@ -53,7 +57,8 @@ function bootWith(settings: Record<string, string>): Promise<{ code: number | nu
   return new Promise((resolve) => child.on("close", (code) => resolve({ code, stdout, stderr })));
 }
 
-const store = (over: Partial<ConstructorParameters<typeof S3Store>[0]> = {}) => new S3Store({ bucket, endpoint: s3.endpoint, region: "us-east-1", forcePathStyle: true, ...over });
+const store = (over: Partial<ConstructorParameters<typeof S3Store>[0]> = {}) =>
+  new S3Store({ bucket, endpoint: s3.endpoint, region: "us-east-1", forcePathStyle: true, ...over });
 
 describe("S3 settings checked at start", () => {
   it("passes a bucket that exists with good credentials", async () => {
@@ -70,7 +75,9 @@ describe("S3 settings checked at start", () => {
     );
     process.env.AWS_ACCESS_KEY_ID = "NOT-A-KEY";
     expect(await store().startupProblem()).toMatch(
-      new RegExp(`^Tankside will not start: S3 bucket '${bucket}' at S3_ENDPOINT ${s3.endpoint} refused the credentials \\(InvalidAccessKeyId: .+\\)\\. Check AWS_ACCESS_KEY_ID and AWS_SECRET_ACCESS_KEY\\.$`),
+      new RegExp(
+        `^Tankside will not start: S3 bucket '${bucket}' at S3_ENDPOINT ${s3.endpoint} refused the credentials \\(InvalidAccessKeyId: .+\\)\\. Check AWS_ACCESS_KEY_ID and AWS_SECRET_ACCESS_KEY\\.$`,
+      ),
     );
     process.env.AWS_ACCESS_KEY_ID = "S3RVER";
     const port = await closedPort();

@@ -54,7 +54,10 @@ export interface ObjectStore {
 }
 
 export class MissingObjectError extends Error {
-  constructor(readonly key: string, where: string) {
+  constructor(
+    readonly key: string,
+    where: string,
+  ) {
     super(`${key} is missing from ${where}`);
     this.name = "MissingObjectError";
   }

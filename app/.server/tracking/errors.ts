@@ -2,15 +2,7 @@
  * Why a tracking job stopped, in words a technician can act on. `code` lets the job queue tell
  * a failure (keep the reason, allow a retry) from a cancellation.
  */
-export type TrackingErrorCode =
-  | "no-frames"
-  | "bad-input"
-  | "bad-setup"
-  | "unreadable-frame"
-  | "frame-size"
-  | "tracer-not-found"
-  | "no-tracks"
-  | "cancelled";
+export type TrackingErrorCode = "no-frames" | "bad-input" | "bad-setup" | "unreadable-frame" | "frame-size" | "tracer-not-found" | "no-tracks" | "cancelled";
 
 export class TrackingError extends Error {
   readonly code: TrackingErrorCode;

@@ -37,7 +37,9 @@ function slowFloatStack(seed: number): SyntheticRunSpec {
     illuminationGradient: 0.12,
     glare: { x: centre.x + 90, y: centre.y - 80, radiusPx: 10, strength: 70 },
     tankMarks: true,
-    tracers: [{ kind: "float", sigmaPx: 3, brightness: 150, path: { kind: "inertial-circle", centre: { x: 0.03, y: -0.02 }, radius: 0.015, phase: 0.4 + seed } }],
+    tracers: [
+      { kind: "float", sigmaPx: 3, brightness: 150, path: { kind: "inertial-circle", centre: { x: 0.03, y: -0.02 }, radius: 0.015, phase: 0.4 + seed } },
+    ],
   };
 }
 

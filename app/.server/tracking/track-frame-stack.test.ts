@@ -146,12 +146,7 @@ describe("trackFrameStack on bad input: a clear reason, no hang", () => {
   }
 
   /** The empty stack's frames in a folder of their own, with one of them replaced. */
-  async function withFrame(
-    folder: string,
-    ext: string,
-    index: number,
-    write: (file: string) => Promise<void>,
-  ): Promise<string[]> {
+  async function withFrame(folder: string, ext: string, index: number, write: (file: string) => Promise<void>): Promise<string[]> {
     await mkdir(path.join(dir, folder), { recursive: true });
     const files: string[] = [];
     for (let i = 0; i < emptyStack.files.length; i++) {
@@ -178,7 +173,9 @@ describe("trackFrameStack on bad input: a clear reason, no hang", () => {
 
   it("a truncated JPEG", async () => {
     const files = await withFrame("truncated", ".jpg", 3, async (f) => {
-      const jpeg = await sharp(await readFile(emptyStack.files[3]!)).jpeg({ quality: 90 }).toBuffer();
+      const jpeg = await sharp(await readFile(emptyStack.files[3]!))
+        .jpeg({ quality: 90 })
+        .toBuffer();
       await writeFile(f, jpeg.subarray(0, Math.floor(jpeg.length / 2)));
     });
     const error = await failure(files);
@@ -194,7 +191,10 @@ describe("trackFrameStack on bad input: a clear reason, no hang", () => {
 
   it("a frame of another size", async () => {
     const files = await withFrame("other-size", ".png", 4, async (f) => {
-      await sharp(await readFile(emptyStack.files[4]!)).resize(160, 120).png().toFile(f);
+      await sharp(await readFile(emptyStack.files[4]!))
+        .resize(160, 120)
+        .png()
+        .toFile(f);
     });
     const error = await failure(files);
     expect(error.code).toBe("frame-size");
@@ -204,9 +204,7 @@ describe("trackFrameStack on bad input: a clear reason, no hang", () => {
   it.each(["float", "dye"] as const)("a %s tracer never found", async (tracer) => {
     const error = await failure(emptyStack.files, tracer);
     expect(error.code).toBe("tracer-not-found");
-    expect(error.message).toBe(
-      `The tracer was not found in any frame — check the tracer kind (${tracer}) and the tank edge.`,
-    );
+    expect(error.message).toBe(`The tracer was not found in any frame — check the tracer kind (${tracer}) and the tank edge.`);
   });
 
   it("a tank edge outside the frame", async () => {

@@ -8,13 +8,7 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import Piscina from "piscina";
-import {
-  backgroundSampleIndices,
-  fillFromSurroundings,
-  minimumFreeSamples,
-  tracerExclusions,
-  type ExclusionSet,
-} from "../../lib/tracking/background";
+import { backgroundSampleIndices, fillFromSurroundings, minimumFreeSamples, tracerExclusions, type ExclusionSet } from "../../lib/tracking/background";
 import { defaultLinking, linkDetections, type LinkingOptions } from "../../lib/tracking/link";
 import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../../lib/tracking/plan";
 import { trackingQuality } from "../../lib/tracking/quality";
@@ -114,14 +108,9 @@ function trackingPool(): TrackingPool {
   return pool;
 }
 
-function runTask(
-  workers: TrackingPool,
-  task: TrackTask,
-  transferList?: ArrayBuffer[],
-): Promise<TrackTaskResult> {
+function runTask(workers: TrackingPool, task: TrackTask, transferList?: ArrayBuffer[]): Promise<TrackTaskResult> {
   return Promise.race([workers.piscina.run(task, { transferList }), workers.failed]);
 }
-
 
 /** Stops the worker threads, so a server or a test can exit. The next job starts a new pool. */
 export async function closeTrackingPool(): Promise<void> {
@@ -177,13 +166,7 @@ function makePlan(setup: TrackingSetup, width: number, height: number): Detectio
  * split the pixels between them, and every frame's task then reads the same background without
  * a copy.
  */
-async function floatBackground(
-  files: string[],
-  plan: DetectionPlan,
-  key: string,
-  workers: TrackingPool,
-  signal: AbortSignal | undefined,
-): Promise<Uint8Array> {
+async function floatBackground(files: string[], plan: DetectionPlan, key: string, workers: TrackingPool, signal: AbortSignal | undefined): Promise<Uint8Array> {
   if (files.length < 3) {
     throw new TrackingError("bad-input", "Tracking a float needs at least 3 frames: the still background is their median.");
   }
@@ -226,9 +209,7 @@ async function floatBackground(
       // A copy of its own (slice of shared memory is not shared), handed over to the worker.
       const image = samples.slice(j * length, (j + 1) * length);
       try {
-        return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background: plain }, [
-          image.buffer,
-        ])) as Detection[];
+        return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background: plain }, [image.buffer])) as Detection[];
       } catch (error) {
         throw searchFailed(index, error);
       }
@@ -260,9 +241,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   const key = planKey(plan);
   const workers = trackingPool();
   const arrived = new Int32Array(new SharedArrayBuffer(4));
-  const warmUp = Promise.all(
-    Array.from({ length: threads }, () => runTask(workers, { kind: "warm-up", arrived, expected: threads })),
-  );
+  const warmUp = Promise.all(Array.from({ length: threads }, () => runTask(workers, { kind: "warm-up", arrived, expected: threads })));
   warmUp.catch(() => {});
   let background: Uint8Array | null;
   try {
@@ -291,9 +270,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
     if (failure || signal?.aborted) return;
     let detections: Detection[];
     try {
-      detections = (await runTask(workers, { kind: "detect", plan, planKey: key, image, background }, [
-        image.buffer as ArrayBuffer,
-      ])) as Detection[];
+      detections = (await runTask(workers, { kind: "detect", plan, planKey: key, image, background }, [image.buffer as ArrayBuffer])) as Detection[];
     } catch (error) {
       throw searchFailed(index, error);
     }
@@ -324,10 +301,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
     detections.push(byFrame.get(i) ?? { frameIndex: i, t: times[i]!, detections: [] });
   }
   if (!detections.some((f) => f.detections.length > 0)) {
-    throw new TrackingError(
-      "tracer-not-found",
-      `The tracer was not found in any frame — check the tracer kind (${setup.tracer}) and the tank edge.`,
-    );
+    throw new TrackingError("tracer-not-found", `The tracer was not found in any frame — check the tracer kind (${setup.tracer}) and the tank edge.`);
   }
   const linking: LinkingOptions = { maxStepPx: defaultStep(plan), ...defaultLinking, ...input.linking };
   const { tracks, shortTracksDropped } = linkDetections(detections, linking);

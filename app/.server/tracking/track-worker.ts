@@ -71,7 +71,7 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
     Atomics.add(task.arrived, 0, 1);
     Atomics.notify(task.arrived, 0);
     const deadline = Date.now() + warmUpWaitMs;
-    for (let seen = Atomics.load(task.arrived, 0); seen < task.expected && Date.now() < deadline; ) {
+    for (let seen = Atomics.load(task.arrived, 0); seen < task.expected && Date.now() < deadline;) {
       Atomics.wait(task.arrived, 0, seen, Math.max(1, deadline - Date.now()));
       seen = Atomics.load(task.arrived, 0);
     }

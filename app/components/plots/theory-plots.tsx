@@ -74,13 +74,13 @@ export function TheoryPlots({ result, setup }: PlotContext) {
     });
   }
   const rotDomain = squareDomain([...rot.map((p) => p.x), ...circle.map((p) => p.x)], [...rot.map((p) => p.y), ...circle.map((p) => p.y)]);
-  const labDomain = squareDomain(lab.map((p) => p.x), lab.map((p) => p.y));
+  const labDomain = squareDomain(
+    lab.map((p) => p.x),
+    lab.map((p) => p.y),
+  );
 
   const accel = thin(result.series.accelFit, 400);
-  const accelPoints = [
-    ...accel.map((p) => ({ x: p.v * k, y: p.coriolisX * k, c: "x" })),
-    ...accel.map((p) => ({ x: -p.u * k, y: p.coriolisY * k, c: "y" })),
-  ];
+  const accelPoints = [...accel.map((p) => ({ x: p.v * k, y: p.coriolisX * k, c: "x" })), ...accel.map((p) => ({ x: -p.u * k, y: p.coriolisY * k, c: "y" }))];
   const xs = accelPoints.map((p) => p.x).filter(Number.isFinite);
   const xr = xs.length ? [Math.min(...xs), Math.max(...xs)] : [0, 1];
   const line = (f: number | null) => (f === null ? [] : xr.map((x) => ({ x, y: f * x })));
@@ -90,54 +90,139 @@ export function TheoryPlots({ result, setup }: PlotContext) {
 
   return (
     <div className="grid gap-4 lg:grid-cols-2" data-testid="theory-plots">
-      <PlotFrame square title="Track in the rotating frame" caption={`Seen from above, x right and y up, ${unit}. The amber circle is the fitted inertial circle.`}>
+      <PlotFrame
+        square
+        title="Track in the rotating frame"
+        caption={`Seen from above, x right and y up, ${unit}. The amber circle is the fitted inertial circle.`}
+      >
         <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
-          <XAxis type="number" dataKey="x" domain={rotDomain.x} ticks={niceTicks(rotDomain.x)} tickFormatter={tick} allowDataOverflow label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }} />
-          <YAxis type="number" dataKey="y" domain={rotDomain.y} ticks={niceTicks(rotDomain.y)} tickFormatter={tick} allowDataOverflow label={{ value: `y (${unit})`, angle: -90, position: "insideLeft" }} />
+          <XAxis
+            type="number"
+            dataKey="x"
+            domain={rotDomain.x}
+            ticks={niceTicks(rotDomain.x)}
+            tickFormatter={tick}
+            allowDataOverflow
+            label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }}
+          />
+          <YAxis
+            type="number"
+            dataKey="y"
+            domain={rotDomain.y}
+            ticks={niceTicks(rotDomain.y)}
+            tickFormatter={tick}
+            allowDataOverflow
+            label={{ value: `y (${unit})`, angle: -90, position: "insideLeft" }}
+          />
           <ZAxis range={[12, 12]} />
           <Tooltip formatter={(v: unknown) => tick(Number(v))} />
           <Legend verticalAlign="top" />
           <Scatter name="tracer" data={rot} fill={colours.data} isAnimationActive={false} />
-          {circle.length ? <Scatter name="fitted circle" data={circle} line={{ stroke: colours.fit, strokeWidth: 2 }} shape={() => <g />} fill={colours.fit} isAnimationActive={false} /> : null}
+          {circle.length ? (
+            <Scatter
+              name="fitted circle"
+              data={circle}
+              line={{ stroke: colours.fit, strokeWidth: 2 }}
+              shape={() => <g />}
+              fill={colours.fit}
+              isAnimationActive={false}
+            />
+          ) : null}
         </ScatterChart>
       </PlotFrame>
       <PlotFrame square title="Track in the lab frame" caption={`As a camera standing in the room would see it, ${unit}.`}>
         <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
-          <XAxis type="number" dataKey="x" domain={labDomain.x} ticks={niceTicks(labDomain.x)} tickFormatter={tick} allowDataOverflow label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }} />
-          <YAxis type="number" dataKey="y" domain={labDomain.y} ticks={niceTicks(labDomain.y)} tickFormatter={tick} allowDataOverflow label={{ value: `y (${unit})`, angle: -90, position: "insideLeft" }} />
+          <XAxis
+            type="number"
+            dataKey="x"
+            domain={labDomain.x}
+            ticks={niceTicks(labDomain.x)}
+            tickFormatter={tick}
+            allowDataOverflow
+            label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }}
+          />
+          <YAxis
+            type="number"
+            dataKey="y"
+            domain={labDomain.y}
+            ticks={niceTicks(labDomain.y)}
+            tickFormatter={tick}
+            allowDataOverflow
+            label={{ value: `y (${unit})`, angle: -90, position: "insideLeft" }}
+          />
           <ZAxis range={[12, 12]} />
           <Legend verticalAlign="top" />
           <Scatter name="tracer (lab frame)" data={lab} fill={colours.second} isAnimationActive={false} />
         </ScatterChart>
       </PlotFrame>
-      <PlotFrame title="Coriolis acceleration against the rotated velocity" caption={`Points: (v, aₓ + r u) and (−u, a_y + r v). Their slope is f; amber is the fit, ink is 2Ω from the rate in force.`}>
+      <PlotFrame
+        title="Coriolis acceleration against the rotated velocity"
+        caption={`Points: (v, aₓ + r u) and (−u, a_y + r v). Their slope is f; amber is the fit, ink is 2Ω from the rate in force.`}
+      >
         <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 24 }}>
           <CartesianGrid stroke="#dde2e6" />
           <XAxis type="number" dataKey="x" tickFormatter={tick} label={{ value: `rotated velocity (${unit}/s)`, position: "insideBottom", offset: -16 }} />
-          <YAxis type="number" dataKey="y" tickFormatter={tick} label={{ value: `acceleration (${accelUnit})`, angle: -90, position: "insideLeft", offset: -8 }} />
+          <YAxis
+            type="number"
+            dataKey="y"
+            tickFormatter={tick}
+            label={{ value: `acceleration (${accelUnit})`, angle: -90, position: "insideLeft", offset: -8 }}
+          />
           <ZAxis range={[10, 10]} />
           <Legend verticalAlign="top" />
           <Scatter name="measured" data={accelPoints} fill={colours.data} isAnimationActive={false} />
-          <Scatter name={`fit, f = ${result.fMeasured === null ? "—" : tick(result.fMeasured)} 1/s`} data={line(result.fMeasured)} line={{ stroke: colours.fit, strokeWidth: 3 }} shape={() => <g />} fill={colours.fit} isAnimationActive={false} />
-          <Scatter name={`2Ω = ${result.fPredicted === null ? "—" : tick(result.fPredicted)} 1/s`} data={line(result.fPredicted)} line={{ stroke: colours.theory, strokeWidth: 2, strokeDasharray: "6 4" }} shape={() => <g />} fill={colours.theory} isAnimationActive={false} />
+          <Scatter
+            name={`fit, f = ${result.fMeasured === null ? "—" : tick(result.fMeasured)} 1/s`}
+            data={line(result.fMeasured)}
+            line={{ stroke: colours.fit, strokeWidth: 3 }}
+            shape={() => <g />}
+            fill={colours.fit}
+            isAnimationActive={false}
+          />
+          <Scatter
+            name={`2Ω = ${result.fPredicted === null ? "—" : tick(result.fPredicted)} 1/s`}
+            data={line(result.fPredicted)}
+            line={{ stroke: colours.theory, strokeWidth: 2, strokeDasharray: "6 4" }}
+            shape={() => <g />}
+            fill={colours.theory}
+            isAnimationActive={false}
+          />
         </ScatterChart>
       </PlotFrame>
-      <PlotFrame title="Direction of motion against time" caption="The velocity's angle, unwrapped, in radians. A straight line of slope −f means steady inertial turning.">
+      <PlotFrame
+        title="Direction of motion against time"
+        caption="The velocity's angle, unwrapped, in radians. A straight line of slope −f means steady inertial turning."
+      >
         <LineChart data={angle} margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
-          <XAxis type="number" dataKey="t" tickFormatter={tick} domain={["dataMin", "dataMax"]} label={{ value: "time (s)", position: "insideBottom", offset: -16 }} />
+          <XAxis
+            type="number"
+            dataKey="t"
+            tickFormatter={tick}
+            domain={["dataMin", "dataMax"]}
+            label={{ value: "time (s)", position: "insideBottom", offset: -16 }}
+          />
           <YAxis tickFormatter={tick} label={{ value: "angle (rad)", angle: -90, position: "insideLeft" }} />
           <Legend verticalAlign="top" />
           <Line name="measured" dataKey="angle" stroke={colours.data} dot={false} strokeWidth={2} isAnimationActive={false} />
           <Line name="straight fit" dataKey="fitted" stroke={colours.fit} dot={false} strokeDasharray="6 4" strokeWidth={2} isAnimationActive={false} />
         </LineChart>
       </PlotFrame>
-      <PlotFrame title="Residuals of the acceleration fit" caption={`Measured minus fitted acceleration, ${accelUnit}. Structure here means the model misses something.`}>
+      <PlotFrame
+        title="Residuals of the acceleration fit"
+        caption={`Measured minus fitted acceleration, ${accelUnit}. Structure here means the model misses something.`}
+      >
         <LineChart data={residuals} margin={{ top: 10, right: 16, bottom: 28, left: 24 }}>
           <CartesianGrid stroke="#dde2e6" />
-          <XAxis type="number" dataKey="t" tickFormatter={tick} domain={["dataMin", "dataMax"]} label={{ value: "time (s)", position: "insideBottom", offset: -16 }} />
+          <XAxis
+            type="number"
+            dataKey="t"
+            tickFormatter={tick}
+            domain={["dataMin", "dataMax"]}
+            label={{ value: "time (s)", position: "insideBottom", offset: -16 }}
+          />
           <YAxis tickFormatter={tick} label={{ value: `residual (${accelUnit})`, angle: -90, position: "insideLeft", offset: -8 }} />
           <Legend verticalAlign="top" />
           <Line name="x" dataKey="rx" stroke={colours.data} dot={false} isAnimationActive={false} />

@@ -5,11 +5,15 @@ export function RunExportLinks({ runId, hasTracks, showReport = true }: { runId:
   return (
     <div className="no-print flex flex-wrap gap-3">
       {hasTracks ? (
-        <ButtonA href={`/api/v1/runs/${runId}/tracks.csv`} download>Tracks (CSV)</ButtonA>
+        <ButtonA href={`/api/v1/runs/${runId}/tracks.csv`} download>
+          Tracks (CSV)
+        </ButtonA>
       ) : (
         <span className="inline-flex min-h-12 items-center text-muted">Tracks CSV: no tracks yet</span>
       )}
-      <ButtonA href={`/api/v1/runs/${runId}/export.json`} download>Run (JSON)</ButtonA>
+      <ButtonA href={`/api/v1/runs/${runId}/export.json`} download>
+        Run (JSON)
+      </ButtonA>
       {showReport ? <ButtonLink to={`/runs/${runId}/report`}>Printable report</ButtonLink> : null}
     </div>
   );

@@ -16,10 +16,18 @@ export function RunHistoryList({ entries, events = ["created"], testId = "run-hi
     <table className="w-full text-left" data-testid={testId}>
       <thead className="border-b-2 border-line-strong">
         <tr>
-          <th scope="col" className="py-2 pr-3">When</th>
-          <th scope="col" className="py-2 pr-3">Who</th>
-          <th scope="col" className="py-2 pr-3">What</th>
-          <th scope="col" className="py-2">Change</th>
+          <th scope="col" className="py-2 pr-3">
+            When
+          </th>
+          <th scope="col" className="py-2 pr-3">
+            Who
+          </th>
+          <th scope="col" className="py-2 pr-3">
+            What
+          </th>
+          <th scope="col" className="py-2">
+            Change
+          </th>
         </tr>
       </thead>
       <tbody className="divide-y divide-line">
@@ -29,7 +37,15 @@ export function RunHistoryList({ entries, events = ["created"], testId = "run-hi
             <td className="py-2 pr-3">{e.who?.name ?? "Tankside"}</td>
             <td className="py-2 pr-3">{e.fieldLabel}</td>
             <td className="py-2">
-              {events.includes(e.field) ? (e.newValue === null ? null : value(e.newValue)) : <>{value(e.oldValue)} <span aria-label="changed to">→</span> {value(e.newValue)}</>}
+              {events.includes(e.field) ? (
+                e.newValue === null ? null : (
+                  value(e.newValue)
+                )
+              ) : (
+                <>
+                  {value(e.oldValue)} <span aria-label="changed to">→</span> {value(e.newValue)}
+                </>
+              )}
             </td>
           </tr>
         ))}

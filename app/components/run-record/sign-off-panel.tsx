@@ -20,12 +20,14 @@ export function SignOffPanel({ runId, signOff, redirectTo = `/runs/${runId}` }: 
       {signOff.state === "signed_off" ? (
         <div className="flex flex-col gap-3">
           <p data-testid="signed-off">
-            <strong>Signed off</strong> by {signOff.signedOffBy?.name ?? "a lab manager"} on {time.dateTime(signOff.signedOffAt)}. The
-            run is read-only: its conditions, frames, tracks and theory check stay as they were signed.
+            <strong>Signed off</strong> by {signOff.signedOffBy?.name ?? "a lab manager"} on {time.dateTime(signOff.signedOffAt)}. The run is read-only: its
+            conditions, frames, tracks and theory check stay as they were signed.
           </p>
           {signOff.canCorrect ? (
             <div className="no-print">
-              <ButtonLink to={`/runs/new?supersedes=${runId}`} tone="primary">Log a correction</ButtonLink>
+              <ButtonLink to={`/runs/new?supersedes=${runId}`} tone="primary">
+                Log a correction
+              </ButtonLink>
               <p className="mt-1 text-sm text-muted">A correction is a new run linked to this one; both show the link.</p>
             </div>
           ) : null}
@@ -34,10 +36,12 @@ export function SignOffPanel({ runId, signOff, redirectTo = `/runs/${runId}` }: 
         <fetcher.Form method="post" action={`/runs/${runId}/sign-off`} className="no-print flex flex-col gap-3">
           <input type="hidden" name="redirectTo" value={redirectTo} />
           <label className="flex min-h-12 items-center gap-3">
-            <input type="checkbox" name="confirm" value="yes" required className="size-6" />
-            I have checked the conditions, frames, tracks and theory check of this run.
+            <input type="checkbox" name="confirm" value="yes" required className="size-6" />I have checked the conditions, frames, tracks and theory check of
+            this run.
           </label>
-          <Button type="submit" disabled={busy} className="self-start">{busy ? "Signing off…" : "Sign off this run"}</Button>
+          <Button type="submit" disabled={busy} className="self-start">
+            {busy ? "Signing off…" : "Sign off this run"}
+          </Button>
           {failed ? <Notice kind="error">{failed}</Notice> : null}
         </fetcher.Form>
       ) : (

@@ -15,7 +15,10 @@ export function SupersedesLinks({ supersedes, supersededBy }: { supersedes: RunL
           <ul>
             {supersededBy.map((r) => (
               <li key={r.id}>
-                <Link to={`/runs/${r.id}`} className="font-bold">{r.label}</Link> ({runStateLabels[r.state].toLowerCase()}, logged {time.date(r.createdAt)}) corrects this run.
+                <Link to={`/runs/${r.id}`} className="font-bold">
+                  {r.label}
+                </Link>{" "}
+                ({runStateLabels[r.state].toLowerCase()}, logged {time.date(r.createdAt)}) corrects this run.
               </li>
             ))}
           </ul>
@@ -23,7 +26,11 @@ export function SupersedesLinks({ supersedes, supersededBy }: { supersedes: RunL
       ) : null}
       {supersedes ? (
         <Notice kind="info" title="A correction">
-          This run corrects <Link to={`/runs/${supersedes.id}`} className="font-bold">{supersedes.label}</Link> (logged {time.date(supersedes.createdAt)}).
+          This run corrects{" "}
+          <Link to={`/runs/${supersedes.id}`} className="font-bold">
+            {supersedes.label}
+          </Link>{" "}
+          (logged {time.date(supersedes.createdAt)}).
         </Notice>
       ) : null}
     </div>

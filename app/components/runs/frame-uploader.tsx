@@ -145,8 +145,8 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
       >
         <p className="text-lg font-bold">Drop the frame stack here</p>
         <p className="text-muted">
-          JPEG, PNG, TIFF or WebP frames, a ZIP of them, or a video (cut here into its own frames, each keeping its time in the video). Stills are
-          ordered by name (frame_2 comes before frame_10) and spaced at {frameRate} frames/s.
+          JPEG, PNG, TIFF or WebP frames, a ZIP of them, or a video (cut here into its own frames, each keeping its time in the video). Stills are ordered by
+          name (frame_2 comes before frame_10) and spaced at {frameRate} frames/s.
         </p>
         <input
           ref={input}

@@ -32,7 +32,19 @@ const stateWords: Record<JobView["state"], string> = {
 };
 
 /** Starts, follows (by polling the tracking route) and cancels the run's tracking job. */
-export function TrackingPanel({ runId, initial, canChange, ready, readyReason }: { runId: number; initial: TrackingView; canChange: boolean; ready: boolean; readyReason: string | null }) {
+export function TrackingPanel({
+  runId,
+  initial,
+  canChange,
+  ready,
+  readyReason,
+}: {
+  runId: number;
+  initial: TrackingView;
+  canChange: boolean;
+  ready: boolean;
+  readyReason: string | null;
+}) {
   const poll = useFetcher<TrackingView>();
   const [controlError, setControlError] = useState<string | null>(null);
   const [sending, setSending] = useState(false);
@@ -83,13 +95,19 @@ export function TrackingPanel({ runId, initial, canChange, ready, readyReason }:
         <div className="flex flex-col gap-2">
           <p className="flex flex-wrap items-center gap-3">
             <span className="font-bold">Tracking job #{job.id}</span>
-            <Tag tone={job.state === "done" ? "agrees" : job.state === "failed" ? "disagrees" : job.state === "cancelled" ? "neutral" : "tank"}>{stateWords[job.state]}</Tag>
+            <Tag tone={job.state === "done" ? "agrees" : job.state === "failed" ? "disagrees" : job.state === "cancelled" ? "neutral" : "tank"}>
+              {stateWords[job.state]}
+            </Tag>
             <span className="text-muted" data-testid="tracking-progress">
               {job.framesDone} of {job.framesTotal} frames ({job.percent}%)
             </span>
           </p>
           {active ? <progress className="h-5 w-full" max={job.framesTotal || 1} value={job.framesDone} aria-label="Tracking progress" /> : null}
-          {job.state === "failed" && job.error ? <Notice kind="error" title="Tracking failed">{job.error}</Notice> : null}
+          {job.state === "failed" && job.error ? (
+            <Notice kind="error" title="Tracking failed">
+              {job.error}
+            </Notice>
+          ) : null}
           {job.state === "done" && job.error ? <Notice kind="caution">{job.error}</Notice> : null}
           {job.state === "done" && view.checkAwaited ? (
             <p className="text-muted" role="status">
@@ -104,11 +122,7 @@ export function TrackingPanel({ runId, initial, canChange, ready, readyReason }:
       {canChange ? (
         <div className="flex flex-wrap gap-3">
           {!active ? (
-            <Button
-              type="button"
-              disabled={!ready || sending}
-              onClick={() => void send("POST")}
-            >
+            <Button type="button" disabled={!ready || sending} onClick={() => void send("POST")}>
               {job?.state === "done" ? "Track again" : "Start tracking"}
             </Button>
           ) : (

@@ -45,7 +45,14 @@ function decoded(el: HTMLVideoElement): number | null {
 }
 
 /** One pass through the video at one playback rate; throws Gap when a frame was missed. */
-async function onePass(el: VideoWithFrames, video: File, rate: number, maxFrames: number, onProgress: (done: number) => void, signal?: AbortSignal): Promise<CutFrame[]> {
+async function onePass(
+  el: VideoWithFrames,
+  video: File,
+  rate: number,
+  maxFrames: number,
+  onProgress: (done: number) => void,
+  signal?: AbortSignal,
+): Promise<CutFrame[]> {
   const canvas = document.createElement("canvas");
   canvas.width = el.videoWidth;
   canvas.height = el.videoHeight;
@@ -66,7 +73,8 @@ async function onePass(el: VideoWithFrames, video: File, rate: number, maxFrames
     const watch = () => {
       window.clearTimeout(watchdog);
       watchdog = window.setTimeout(() => {
-        if (pending === 0) finish(new Error(`The video stopped giving frames after ${frames.length}; it may be damaged. Try another export of it, or a frame stack.`));
+        if (pending === 0)
+          finish(new Error(`The video stopped giving frames after ${frames.length}; it may be damaged. Try another export of it, or a frame stack.`));
       }, 15_000);
     };
     const countAtStart = decoded(el);
@@ -155,9 +163,15 @@ async function onePass(el: VideoWithFrames, video: File, rate: number, maxFrames
   });
 }
 
-export async function cutVideoIntoFrames(video: File, maxFrames: number, onProgress: (done: number, total: number) => void, signal?: AbortSignal): Promise<CutFrame[]> {
+export async function cutVideoIntoFrames(
+  video: File,
+  maxFrames: number,
+  onProgress: (done: number, total: number) => void,
+  signal?: AbortSignal,
+): Promise<CutFrame[]> {
   const el = document.createElement("video") as VideoWithFrames;
-  if (typeof el.requestVideoFrameCallback !== "function") throw new Error("This browser cannot cut videos frame by frame; use a current Chrome, Edge, Safari or Firefox, or bring a frame stack.");
+  if (typeof el.requestVideoFrameCallback !== "function")
+    throw new Error("This browser cannot cut videos frame by frame; use a current Chrome, Edge, Safari or Firefox, or bring a frame stack.");
   const url = URL.createObjectURL(video);
   el.muted = true;
   el.playsInline = true;
@@ -179,7 +193,9 @@ export async function cutVideoIntoFrames(video: File, maxFrames: number, onProgr
         lastGap = err.message;
       }
     }
-    throw new Error(`The browser kept missing frames of this video (${lastGap}), even at a tenth of its speed. Close other tabs and try again, or bring a frame stack.`);
+    throw new Error(
+      `The browser kept missing frames of this video (${lastGap}), even at a tenth of its speed. Close other tabs and try again, or bring a frame stack.`,
+    );
   } finally {
     URL.revokeObjectURL(url);
     el.removeAttribute("src");

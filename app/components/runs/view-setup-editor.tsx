@@ -20,7 +20,19 @@ const toolText: Record<Tool, string> = {
 };
 
 /** Marks the view on one frame with an SVG drawn over the image in its own pixel coordinates. */
-export function ViewSetupEditor({ imageUrl, width, height, initial, errors }: { imageUrl: string; width: number; height: number; initial: SetupValues; errors: Record<string, string[] | undefined> }) {
+export function ViewSetupEditor({
+  imageUrl,
+  width,
+  height,
+  initial,
+  errors,
+}: {
+  imageUrl: string;
+  width: number;
+  height: number;
+  initial: SetupValues;
+  errors: Record<string, string[] | undefined>;
+}) {
   const [v, setV] = useState<SetupValues>(initial);
   const [tool, setTool] = useState<Tool>(initial.centre ? "rim" : "centre");
   const [clicks, setClicks] = useState<Point[]>([]);
@@ -62,16 +74,39 @@ export function ViewSetupEditor({ imageUrl, width, height, initial, errors }: { 
       <div>
         <div className="mb-3 flex flex-wrap gap-2" role="toolbar" aria-label="What to mark">
           {(["centre", "rim", "scale"] as Tool[]).map((t) => (
-            <Button key={t} type="button" tone={tool === t ? "primary" : "plain"} aria-pressed={tool === t} onClick={() => { setTool(t); setClicks([]); }}>
+            <Button
+              key={t}
+              type="button"
+              tone={tool === t ? "primary" : "plain"}
+              aria-pressed={tool === t}
+              onClick={() => {
+                setTool(t);
+                setClicks([]);
+              }}
+            >
               {t === "centre" ? "Rotation centre" : t === "rim" ? "Tank edge (3 rim points)" : "Scale (2 points)"}
             </Button>
           ))}
         </div>
         <p className="mb-2 text-muted">{toolText[tool]}</p>
         <div className="relative w-full overflow-hidden rounded-card border-2 border-line-strong bg-ink" style={{ aspectRatio: `${width} / ${height}` }}>
-          <img src={imageUrl} alt="A frame of this run" className="absolute inset-0 h-full w-full" style={{ transform: v.mirrored ? "scaleX(-1)" : undefined }} draggable={false} />
-          <svg ref={svg} viewBox={`0 0 ${width} ${height}`} className="absolute inset-0 h-full w-full cursor-crosshair" onClick={onClick} data-testid="setup-overlay">
-            {v.edge ? <circle cx={v.edge.cx} cy={v.edge.cy} r={v.edge.r} fill="none" stroke="#3ee0cf" strokeWidth={mark / 2} strokeDasharray={`${mark * 2} ${mark}`} /> : null}
+          <img
+            src={imageUrl}
+            alt="A frame of this run"
+            className="absolute inset-0 h-full w-full"
+            style={{ transform: v.mirrored ? "scaleX(-1)" : undefined }}
+            draggable={false}
+          />
+          <svg
+            ref={svg}
+            viewBox={`0 0 ${width} ${height}`}
+            className="absolute inset-0 h-full w-full cursor-crosshair"
+            onClick={onClick}
+            data-testid="setup-overlay"
+          >
+            {v.edge ? (
+              <circle cx={v.edge.cx} cy={v.edge.cy} r={v.edge.r} fill="none" stroke="#3ee0cf" strokeWidth={mark / 2} strokeDasharray={`${mark * 2} ${mark}`} />
+            ) : null}
             {v.centre ? (
               <g stroke="#ffd23f" strokeWidth={mark / 2}>
                 <line x1={v.centre.x - mark * 3} y1={v.centre.y} x2={v.centre.x + mark * 3} y2={v.centre.y} />
@@ -82,25 +117,66 @@ export function ViewSetupEditor({ imageUrl, width, height, initial, errors }: { 
             {v.scalePoints ? (
               <g stroke="#ff6b9a" strokeWidth={mark / 2}>
                 <line x1={v.scalePoints[0].x} y1={v.scalePoints[0].y} x2={v.scalePoints[1].x} y2={v.scalePoints[1].y} />
-                {v.scalePoints.map((p, i) => <circle key={i} cx={p.x} cy={p.y} r={mark} fill="#ff6b9a" />)}
+                {v.scalePoints.map((p, i) => (
+                  <circle key={i} cx={p.x} cy={p.y} r={mark} fill="#ff6b9a" />
+                ))}
               </g>
             ) : null}
-            {clicks.map((p, i) => <circle key={i} cx={p.x} cy={p.y} r={mark} fill="#ffffff" stroke="#000" />)}
+            {clicks.map((p, i) => (
+              <circle key={i} cx={p.x} cy={p.y} r={mark} fill="#ffffff" stroke="#000" />
+            ))}
           </svg>
         </div>
-        <p className="mt-2 text-sm text-muted">Frame size {width} × {height} px. Marks are in the frame's own pixels.</p>
+        <p className="mt-2 text-sm text-muted">
+          Frame size {width} × {height} px. Marks are in the frame's own pixels.
+        </p>
       </div>
       <div className="flex flex-col gap-4">
         <fieldset className="grid grid-cols-2 gap-3">
           <legend className="mb-1 font-bold">Rotation centre (px)</legend>
-          <TextField label="Column" name="centreX" inputMode="decimal" value={num(v.centre?.x)} onChange={(e) => setV({ ...v, centre: { x: Number(e.target.value), y: v.centre?.y ?? 0 } })} error={errors.centreX} />
-          <TextField label="Row" name="centreY" inputMode="decimal" value={num(v.centre?.y)} onChange={(e) => setV({ ...v, centre: { x: v.centre?.x ?? 0, y: Number(e.target.value) } })} error={errors.centreY} />
+          <TextField
+            label="Column"
+            name="centreX"
+            inputMode="decimal"
+            value={num(v.centre?.x)}
+            onChange={(e) => setV({ ...v, centre: { x: Number(e.target.value), y: v.centre?.y ?? 0 } })}
+            error={errors.centreX}
+          />
+          <TextField
+            label="Row"
+            name="centreY"
+            inputMode="decimal"
+            value={num(v.centre?.y)}
+            onChange={(e) => setV({ ...v, centre: { x: v.centre?.x ?? 0, y: Number(e.target.value) } })}
+            error={errors.centreY}
+          />
         </fieldset>
         <fieldset className="grid grid-cols-3 gap-3">
           <legend className="mb-1 font-bold">Tank edge (px)</legend>
-          <TextField label="Column" name="edgeX" inputMode="decimal" value={num(v.edge?.cx)} onChange={(e) => setV({ ...v, edge: { cx: Number(e.target.value), cy: v.edge?.cy ?? 0, r: v.edge?.r ?? 0 } })} error={errors.edgeX} />
-          <TextField label="Row" name="edgeY" inputMode="decimal" value={num(v.edge?.cy)} onChange={(e) => setV({ ...v, edge: { cx: v.edge?.cx ?? 0, cy: Number(e.target.value), r: v.edge?.r ?? 0 } })} error={errors.edgeY} />
-          <TextField label="Radius" name="edgeR" inputMode="decimal" value={num(v.edge?.r)} onChange={(e) => setV({ ...v, edge: { cx: v.edge?.cx ?? 0, cy: v.edge?.cy ?? 0, r: Number(e.target.value) } })} error={errors.edgeR} />
+          <TextField
+            label="Column"
+            name="edgeX"
+            inputMode="decimal"
+            value={num(v.edge?.cx)}
+            onChange={(e) => setV({ ...v, edge: { cx: Number(e.target.value), cy: v.edge?.cy ?? 0, r: v.edge?.r ?? 0 } })}
+            error={errors.edgeX}
+          />
+          <TextField
+            label="Row"
+            name="edgeY"
+            inputMode="decimal"
+            value={num(v.edge?.cy)}
+            onChange={(e) => setV({ ...v, edge: { cx: v.edge?.cx ?? 0, cy: Number(e.target.value), r: v.edge?.r ?? 0 } })}
+            error={errors.edgeY}
+          />
+          <TextField
+            label="Radius"
+            name="edgeR"
+            inputMode="decimal"
+            value={num(v.edge?.r)}
+            onChange={(e) => setV({ ...v, edge: { cx: v.edge?.cx ?? 0, cy: v.edge?.cy ?? 0, r: Number(e.target.value) } })}
+            error={errors.edgeR}
+          />
         </fieldset>
         {v.edge ? (
           <Button type="button" tone="quiet" onClick={() => setV({ ...v, centre: { x: v.edge!.cx, y: v.edge!.cy } })}>
@@ -109,11 +185,21 @@ export function ViewSetupEditor({ imageUrl, width, height, initial, errors }: { 
         ) : null}
         <fieldset className="flex flex-col gap-3">
           <legend className="mb-1 font-bold">Scale</legend>
-          <TextField label="Known length between the two points" name="scaleLengthCm" unit="cm" inputMode="decimal" value={v.scaleLengthCm === null ? "" : String(v.scaleLengthCm)} onChange={(e) => setV({ ...v, scaleLengthCm: e.target.value === "" ? null : Number(e.target.value) })} error={errors.scaleLengthCm} />
+          <TextField
+            label="Known length between the two points"
+            name="scaleLengthCm"
+            unit="cm"
+            inputMode="decimal"
+            value={v.scaleLengthCm === null ? "" : String(v.scaleLengthCm)}
+            onChange={(e) => setV({ ...v, scaleLengthCm: e.target.value === "" ? null : Number(e.target.value) })}
+            error={errors.scaleLengthCm}
+          />
           <input type="hidden" name="scaleLengthPx" value={scalePx === null ? "" : String(scalePx)} />
           <input type="hidden" name="scalePoints" value={v.scalePoints ? JSON.stringify(v.scalePoints) : ""} />
           <p className="text-muted">
-            {pxPerM ? `${formatFixed(pxPerM / 100, 2)} px per cm (${formatFixed(pxPerM, 1)} px/m)` : "No scale: speeds and radii stay in pixels; f does not need one."}
+            {pxPerM
+              ? `${formatFixed(pxPerM / 100, 2)} px per cm (${formatFixed(pxPerM, 1)} px/m)`
+              : "No scale: speeds and radii stay in pixels; f does not need one."}
           </p>
         </fieldset>
         <label className="flex min-h-12 items-center gap-3 font-bold">

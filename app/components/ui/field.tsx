@@ -1,7 +1,6 @@
 import type { InputHTMLAttributes, ReactNode, SelectHTMLAttributes, TextareaHTMLAttributes } from "react";
 
-const control =
-  "block w-full min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-3 py-2 text-ink aria-[invalid=true]:border-disagrees-ink";
+const control = "block w-full min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-3 py-2 text-ink aria-[invalid=true]:border-disagrees-ink";
 
 interface FieldShell {
   label: ReactNode;
@@ -57,14 +56,7 @@ export function TextField({ label, name, hint, error, unit, ...input }: FieldShe
   );
 }
 
-export function SelectField({
-  label,
-  name,
-  hint,
-  error,
-  children,
-  ...select
-}: FieldShell & SelectHTMLAttributes<HTMLSelectElement>) {
+export function SelectField({ label, name, hint, error, children, ...select }: FieldShell & SelectHTMLAttributes<HTMLSelectElement>) {
   const message = errorText(error);
   return (
     <Shell label={label} name={name} hint={hint} error={error}>

@@ -14,7 +14,7 @@ describe("angles", () => {
   });
 
   it("gives the principal value of a turn in (−π, π]", () => {
-    expect(wrapAngle(3 * Math.PI / 2)).toBeCloseTo(-Math.PI / 2, 15);
+    expect(wrapAngle((3 * Math.PI) / 2)).toBeCloseTo(-Math.PI / 2, 15);
     expect(wrapAngle(-0.3 - 4 * Math.PI)).toBeCloseTo(-0.3, 12);
     expect(wrapAngle(0.25)).toBeCloseTo(0.25, 15);
   });

@@ -28,10 +28,16 @@ function checkOf(cameraMode: "rotating" | "lab", seed: number, extra: Partial<Th
 }
 
 const timing = (uncertaintyFps: number) =>
-  frameTimeCorrection({ calibrationId: 7, nominalFrameRateFps: NOMINAL_FPS, trueFrameRateFps: TRUE_FPS, trueFrameRateUncertaintyFps: uncertaintyFps }, NOMINAL_FPS).correction!;
+  frameTimeCorrection(
+    { calibrationId: 7, nominalFrameRateFps: NOMINAL_FPS, trueFrameRateFps: TRUE_FPS, trueFrameRateUncertaintyFps: uncertaintyFps },
+    NOMINAL_FPS,
+  ).correction!;
 
 describe("a timing check in force corrects the camera's frame times (analytic inertial circles, 0.3 px noise)", () => {
-  for (const [cameraMode, seed] of [["rotating", 41], ["lab", 42]] as const) {
+  for (const [cameraMode, seed] of [
+    ["rotating", 41],
+    ["lab", 42],
+  ] as const) {
     it(`${cameraMode === "lab" ? "lab-fixed" : "co-rotating"} camera 2 % fast: biased low (2 % co-rotating, 1 % lab-fixed) without the check, within its error of the truth with it`, () => {
       const truth = 2 * OMEGA;
       const raw = checkOf(cameraMode, seed);

@@ -268,10 +268,7 @@ describe("bad input: inconclusive with a reason, never a throw", () => {
 
   it("frames too far apart for the rate", () => {
     // 30 rpm table (inertial period 1 s) filmed at 8 fps.
-    expectInconclusive(
-      { ...base, omegaSet: Math.PI, points: inertialTrack({ omega: Math.PI, fps: 8, duration: 4 }) },
-      /frames per inertial period/,
-    );
+    expectInconclusive({ ...base, omegaSet: Math.PI, points: inertialTrack({ omega: Math.PI, fps: 8, duration: 4 }) }, /frames per inertial period/);
   });
 
   it("an uncertainty larger than the tolerance", () => {

@@ -13,16 +13,7 @@ import { formatFixed, formatNumber, formatWithError, percentRange } from "../num
 import { linearFit } from "./regression";
 import { correctFrameTimes, type AppliedCalibration, type FrameTimeCorrection } from "../calibrations-applied";
 import { unwrapAngles } from "./angles";
-import {
-  chooseWindow,
-  DEFAULT_POLY_ORDER,
-  MIN_FRAMES_PER_PERIOD,
-  minimumWindow,
-  oddWindow,
-  positionNoise,
-  smoothTrack,
-  typicalFrameInterval,
-} from "./savgol";
+import { chooseWindow, DEFAULT_POLY_ORDER, MIN_FRAMES_PER_PERIOD, minimumWindow, oddWindow, positionNoise, smoothTrack, typicalFrameInterval } from "./savgol";
 
 export type TheoryVerdict = "agrees" | "disagrees" | "inconclusive";
 export type OmegaSource = "set rate, uncalibrated" | "rate calibration";
@@ -149,7 +140,6 @@ export const MIN_PERIOD_FRACTION = 0.25;
 export const MAX_VELOCITY_NOISE_SHARE = 1 / 32;
 /** More than this fraction of unusable points means the track itself is in doubt. */
 const MAX_LEFT_OUT_FRACTION = 0.2;
-
 
 function pct(fraction: number, digits = 2): string {
   return `${formatNumber(100 * fraction, digits)}%`;
@@ -341,10 +331,7 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   const asked = input.settings?.window;
   if (asked !== undefined) {
     if (!isFiniteNumber(asked) || asked < minimumWindow(DEFAULT_POLY_ORDER)) {
-      return inconclusive(
-        `The window setting must be a number of frames of at least ${minimumWindow(DEFAULT_POLY_ORDER)}.`,
-        base,
-      );
+      return inconclusive(`The window setting must be a number of frames of at least ${minimumWindow(DEFAULT_POLY_ORDER)}.`, base);
     }
     window = oddWindow(asked);
   } else {
@@ -353,10 +340,7 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   const settings = { window, polyOrder: DEFAULT_POLY_ORDER, tolerance };
   const withSettings = { ...base, settings };
   if (points.length < 2 * window + 1) {
-    return inconclusive(
-      `Only ${points.length} usable points for a smoothing window of ${window} frames: at least ${2 * window + 1} are needed.`,
-      withSettings,
-    );
+    return inconclusive(`Only ${points.length} usable points for a smoothing window of ${window} frames: at least ${2 * window + 1} are needed.`, withSettings);
   }
 
   const samples = smoothTrack(rotating, { window, polyOrder: DEFAULT_POLY_ORDER, frameInterval });

@@ -27,8 +27,7 @@ describe("geometric circle fit", () => {
   it("improves on the algebraic (Kåsa) start, which is biased on this short arc", () => {
     const kasa = fitCircleAlgebraic(ggsPoints)!;
     const geo = fitCircle(ggsPoints)!;
-    const cost = (c: { cx: number; cy: number; radius: number }) =>
-      ggsPoints.reduce((s, p) => s + (Math.hypot(p.x - c.cx, p.y - c.cy) - c.radius) ** 2, 0);
+    const cost = (c: { cx: number; cy: number; radius: number }) => ggsPoints.reduce((s, p) => s + (Math.hypot(p.x - c.cx, p.y - c.cy) - c.radius) ** 2, 0);
     expect(cost(kasa)).toBeGreaterThan(geo.sumSquaredDistances * 1.05);
     expect(Math.abs(kasa.radius - geo.radius)).toBeGreaterThan(0.1);
   });
@@ -46,15 +45,19 @@ describe("geometric circle fit", () => {
   });
 
   it("returns no circle for collinear points or too few", () => {
-    expect(fitCircle([
-      { x: 0, y: 0 },
-      { x: 1, y: 1 },
-      { x: 2, y: 2 },
-      { x: 3, y: 3 },
-    ])).toBeNull();
-    expect(fitCircle([
-      { x: 0, y: 0 },
-      { x: 1, y: 1 },
-    ])).toBeNull();
+    expect(
+      fitCircle([
+        { x: 0, y: 0 },
+        { x: 1, y: 1 },
+        { x: 2, y: 2 },
+        { x: 3, y: 3 },
+      ]),
+    ).toBeNull();
+    expect(
+      fitCircle([
+        { x: 0, y: 0 },
+        { x: 1, y: 1 },
+      ]),
+    ).toBeNull();
   });
 });

@@ -1,11 +1,5 @@
 import { describe, expect, it } from "vitest";
-import {
-  deflectionSense,
-  fitCoriolis,
-  inertialPeriodFromAngle,
-  predictedRadius,
-  straightLaunchDeflection,
-} from "./coriolis-fit";
+import { deflectionSense, fitCoriolis, inertialPeriodFromAngle, predictedRadius, straightLaunchDeflection } from "./coriolis-fit";
 import { chooseWindow, smoothTrack } from "./savgol";
 import type { InertialTrackSpec } from "../../../tests/fixtures/inertial-tracks";
 import { inertialPosition } from "../../../tests/fixtures/inertial-tracks";
@@ -18,8 +12,7 @@ function rotatingPath(spec: InertialTrackSpec) {
 
 function fitPath(spec: InertialTrackSpec, options: { correctFilterGain?: boolean; window?: number } = {}) {
   const pts = rotatingPath(spec);
-  const window =
-    options.window ?? chooseWindow({ frameInterval: 1 / spec.fps, inertialPeriod: Math.PI / Math.abs(spec.omega), nPoints: pts.length });
+  const window = options.window ?? chooseWindow({ frameInterval: 1 / spec.fps, inertialPeriod: Math.PI / Math.abs(spec.omega), nPoints: pts.length });
   const samples = smoothTrack(pts, { window });
   const fit = fitCoriolis(samples, {
     centrifugal: spec.flatTable ? spec.omega ** 2 : 0,

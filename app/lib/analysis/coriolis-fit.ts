@@ -220,11 +220,7 @@ export function fitCoriolis(samples: readonly SmoothedSample[], options: Corioli
  * bias is already negligible, so no correction is made there. Gains of windows with gaps differ
  * a little; they are averaged with weight |w|².
  */
-function correctForFilterGain(
-  samples: readonly SmoothedSample[],
-  f: number,
-  drag: number,
-): { f: number; drag: number; varianceScale: number } | null {
+function correctForFilterGain(samples: readonly SmoothedSample[], f: number, drag: number): { f: number; drag: number; varianceScale: number } | null {
   const muRe = -drag;
   const muIm = -f;
   let lamRe = muRe;
@@ -315,9 +311,7 @@ export function turningRate(t: readonly number[], angles: readonly number[]): Tu
  * Inertial period from the velocity's direction: f > 0 turns the velocity clockwise, so
  * f = −(turning rate) and the period is 2π/|f|.
  */
-export function inertialPeriodFromAngle(
-  samples: readonly Pick<SmoothedSample, "t" | "u" | "v">[],
-): (TurningRate & { f: number }) | null {
+export function inertialPeriodFromAngle(samples: readonly Pick<SmoothedSample, "t" | "u" | "v">[]): (TurningRate & { f: number }) | null {
   const rate = turningRate(
     samples.map((s) => s.t),
     samples.map((s) => Math.atan2(s.v, s.u)),

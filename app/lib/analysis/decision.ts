@@ -9,7 +9,6 @@
 import type { TheoryVerdict } from "./check";
 import { formatNumber } from "../number-format";
 
-
 /** Two-sided 95 % normal quantile. */
 export const Z95 = 1.959963984540054;
 
@@ -61,4 +60,3 @@ export function decide(input: { d: number; s: number; tolerance: number; wrongSe
     advice: `The standard error would have to be ${formatNumber(factor, 3)}× smaller to decide: a track about ${formatNumber(lengthFactor, 3)}× longer at the same frame rate${framesText}, or tracking noise ${formatNumber(factor, 3)}× smaller, should do it.`,
   };
 }
-

@@ -75,13 +75,7 @@ export type CameraMode = "rotating" | "lab";
  * Image-pixel track to rotating-frame positions. A co-rotating camera already sees the rotating
  * frame; a lab-fixed one is de-rotated about the centre.
  */
-export function trackToRotatingFrame(
-  points: readonly TimedPoint[],
-  view: ViewGeometry,
-  cameraMode: CameraMode,
-  omega: number,
-  t0: number,
-): TimedPoint[] {
+export function trackToRotatingFrame(points: readonly TimedPoint[], view: ViewGeometry, cameraMode: CameraMode, omega: number, t0: number): TimedPoint[] {
   const table = points.map((p) => ({ t: p.t, ...imageToTable(p, view) }));
   return cameraMode === "lab" ? deRotate(table, omega, t0) : table;
 }

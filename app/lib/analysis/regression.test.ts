@@ -17,9 +17,7 @@ describe("linearFit", () => {
     expect(Math.abs(fit.r2 - norrisCertified.r2)).toBeLessThan(1e-13);
     // The largest residual is that of the published point (x 887.6, y 888.8) or another of Norris's;
     // recompute it from the certified line instead of trusting the fit itself.
-    const certifiedMax = Math.max(
-      ...norrisData.map(([yv, xv]) => Math.abs(yv - (norrisCertified.intercept + norrisCertified.slope * xv))),
-    );
+    const certifiedMax = Math.max(...norrisData.map(([yv, xv]) => Math.abs(yv - (norrisCertified.intercept + norrisCertified.slope * xv))));
     expect(fit.maxAbsResidual).toBeCloseTo(certifiedMax, 9);
   });
 

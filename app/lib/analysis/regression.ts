@@ -139,11 +139,7 @@ export function qrFactorise(design: readonly (readonly number[])[]): QrFactorisa
  * General linear least squares y ≈ Xβ with the usual (independent, equal-variance residual)
  * standard errors. Throws RangeError on a rank-deficient or non-finite design.
  */
-export function leastSquares(
-  design: readonly (readonly number[])[],
-  y: readonly number[],
-  options: LeastSquaresOptions = {},
-): LeastSquaresResult {
+export function leastSquares(design: readonly (readonly number[])[], y: readonly number[], options: LeastSquaresOptions = {}): LeastSquaresResult {
   if (y.length !== design.length) throw new RangeError("design and observations differ in length");
   if (!y.every(Number.isFinite)) throw new RangeError("the observations contain a value that is not a finite number");
   const qr = qrFactorise(design);

@@ -60,7 +60,10 @@ describe("smoothing a track on its own frame times", () => {
     const c2 = savitzkyGolayCoefficients(9, 4, 2);
     for (const s of samples) {
       const win = pts.slice(s.index - 4, s.index + 5);
-      expect(s.x).toBeCloseTo(win.reduce((a, p, k) => a + c0[k]! * p.x, 0), 12);
+      expect(s.x).toBeCloseTo(
+        win.reduce((a, p, k) => a + c0[k]! * p.x, 0),
+        12,
+      );
       expect(s.u).toBeCloseTo(win.reduce((a, p, k) => a + c1[k]! * p.x, 0) / dt, 9);
       expect(s.ay).toBeCloseTo(win.reduce((a, p, k) => a + c2[k]! * p.y, 0) / dt ** 2, 6);
     }

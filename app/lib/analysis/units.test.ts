@@ -1,13 +1,5 @@
 import { describe, expect, it } from "vitest";
-import {
-  coriolisAcceleration,
-  coriolisParameter,
-  EARTH_ROTATION_RATE,
-  ONE_TURN_PER_DAY,
-  radPerSToRpm,
-  rpmToRadPerS,
-  STANDARD_GRAVITY,
-} from "./units";
+import { coriolisAcceleration, coriolisParameter, EARTH_ROTATION_RATE, ONE_TURN_PER_DAY, radPerSToRpm, rpmToRadPerS, STANDARD_GRAVITY } from "./units";
 
 describe("rates", () => {
   it("converts rpm to rad/s as Ω = 2π·rpm/60 and back (common practice)", () => {

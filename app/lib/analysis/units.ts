@@ -50,11 +50,7 @@ export interface LocalVelocity {
  * Coriolis acceleration −2Ω×v in local east, north, up axes at latitude φ, where
  * Ω = |Ω|(0, cos φ, sin φ): a = 2|Ω|(v sin φ − w cos φ, −u sin φ, u cos φ).
  */
-export function coriolisAcceleration(
-  velocity: LocalVelocity,
-  latitudeDeg: number,
-  omega: number = EARTH_ROTATION_RATE,
-): LocalVelocity {
+export function coriolisAcceleration(velocity: LocalVelocity, latitudeDeg: number, omega: number = EARTH_ROTATION_RATE): LocalVelocity {
   const phi = degreesToRadians(latitudeDeg);
   const s = Math.sin(phi);
   const c = Math.cos(phi);

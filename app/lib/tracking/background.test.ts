@@ -35,7 +35,11 @@ function slowFloat(seed: number, noiseSigma: number, tracer = true): SyntheticRu
 }
 
 function detectionErrors(spec: SyntheticRunSpec, background: "plain" | "float-free") {
-  const plan = planDetection({ tracer: "float", centre: spec.centre, tankEdge: { cx: spec.centre.x, cy: spec.centre.y, r: 102 }, mirrored: false }, spec.width, spec.height);
+  const plan = planDetection(
+    { tracer: "float", centre: spec.centre, tankEdge: { cx: spec.centre.x, cy: spec.centre.y, r: 102 }, mirrored: false },
+    spec.width,
+    spec.height,
+  );
   const renderer = createSyntheticRenderer(spec);
   const frames = Array.from({ length: spec.frames }, (_, i) => renderer.frame(i));
   const crops = frames.map((f) => cropForPlan(f, plan).data);

@@ -49,11 +49,7 @@ export interface ExclusionSet {
  * blob (5 σ) has radius 1.5 spot widths and the glow stays above σ to 2.3, so the disc is twice
  * the blob's equivalent radius, plus a detection block and 3 px for the centroid's own error.
  */
-export function tracerExclusions(
-  perSample: readonly (readonly Detection[])[],
-  crop: { left: number; top: number },
-  shrink = 1,
-): BackgroundExclusion[] {
+export function tracerExclusions(perSample: readonly (readonly Detection[])[], crop: { left: number; top: number }, shrink = 1): BackgroundExclusion[] {
   const discs: BackgroundExclusion[] = [];
   perSample.forEach((detections, sample) => {
     for (const d of detections) {
@@ -108,14 +104,7 @@ export function minimumFreeSamples(samples: number): number {
  * covered by an exclusion disc at a pixel are left out there (where every sample is covered the
  * plain median stands); `used`, when given, receives how many samples each pixel's median took.
  */
-export function medianInto(
-  frames: readonly Uint8Array[],
-  out: Uint8Array,
-  from: number,
-  to: number,
-  exclusions?: ExclusionSet,
-  used?: Uint8Array,
-): void {
+export function medianInto(frames: readonly Uint8Array[], out: Uint8Array, from: number, to: number, exclusions?: ExclusionSet, used?: Uint8Array): void {
   const length = out.length;
   for (const frame of frames) {
     if (frame.length !== length) throw new Error("Background frames differ in size.");
@@ -183,12 +172,7 @@ export function medianInto(
  * exact for the smooth illumination of the water and far less noisy. Solved by successive
  * over-relaxation; the image edge is a mirror.
  */
-export function fillFromSurroundings(
-  background: Uint8Array,
-  used: Uint8Array,
-  width: number,
-  minUsed: number,
-): number {
+export function fillFromSurroundings(background: Uint8Array, used: Uint8Array, width: number, minUsed: number): number {
   const height = Math.floor(background.length / width);
   const unknown: number[] = [];
   for (let p = 0; p < width * height; p++) if (used[p]! < minUsed) unknown.push(p);

@@ -54,8 +54,7 @@ function detectStack(spec: SyntheticRunSpec, setup: Partial<TrackingSetup> & Pic
   const renderer = createSyntheticRenderer(spec);
   const frames = Array.from({ length: spec.frames }, (_, i) => renderer.frame(i));
   const crops = frames.map((f) => cropForPlan(f, plan));
-  const background =
-    plan.tracer === "float" ? medianBackground(backgroundSampleIndices(crops.length).map((i) => crops[i]!.data)) : null;
+  const background = plan.tracer === "float" ? medianBackground(backgroundSampleIndices(crops.length).map((i) => crops[i]!.data)) : null;
   const detector = createDetector(cv, plan);
   detectors.push(detector);
   return { perFrame: crops.map((c) => detector.detect(c, background)), truth: frames.map((f) => f.truth) };

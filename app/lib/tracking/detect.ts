@@ -63,13 +63,7 @@ export function cropForPlan(frame: FrameImage, plan: DetectionPlan): FrameImage 
 }
 
 /** Per row, the half-open column range inside the tank edge (pixel centres at `offset + i·step`). */
-function rowSpans(
-  rows: number,
-  cols: number,
-  step: number,
-  offset: number,
-  tank: DetectionPlan["tank"],
-): Int32Array {
+function rowSpans(rows: number, cols: number, step: number, offset: number, tank: DetectionPlan["tank"]): Int32Array {
   const spans = new Int32Array(rows * 2);
   for (let r = 0; r < rows; r++) {
     if (!tank) {
@@ -169,9 +163,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   function check(image: FrameImage, background: Uint8Array | null): void {
     if (disposed) throw new Error("This detector has been disposed.");
     if (image.width !== width || image.height !== height || image.channels !== plan.channels) {
-      throw new Error(
-        `Frame region is ${image.width}×${image.height}×${image.channels}, the plan expects ${width}×${height}×${plan.channels}.`,
-      );
+      throw new Error(`Frame region is ${image.width}×${image.height}×${image.channels}, the plan expects ${width}×${height}×${plan.channels}.`);
     }
     if (plan.tracer === "float" && (!background || background.length !== width * height)) {
       throw new Error("Floats are found against a background of the same region.");
@@ -388,13 +380,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   }
 
   /** Intensity-weighted centroid at full resolution around one blob. */
-  function centroid(
-    blob: Blob,
-    image: FrameImage,
-    background: Uint8Array | null,
-    offset: number,
-    sigma: number,
-  ): Detection | null {
+  function centroid(blob: Blob, image: FrameImage, background: Uint8Array | null, offset: number, sigma: number): Detection | null {
     const lab = labels.data;
     const img = image.data;
     const margin = k + 2;

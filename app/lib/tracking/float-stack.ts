@@ -20,6 +20,8 @@ export function floatStackSpec(frames: number, { seed = 11, withTracer = true }:
     pxPerM: 600,
     tankRadiusPx: 110,
     noiseSigma: 2,
-    tracers: withTracer ? [{ kind: "float", sigmaPx: 2.5, brightness: 120, path: { kind: "inertial-circle", centre: { x: 0.01, y: 0 }, radius: 0.06, phase: 0 } }] : [],
+    tracers: withTracer
+      ? [{ kind: "float", sigmaPx: 2.5, brightness: 120, path: { kind: "inertial-circle", centre: { x: 0.01, y: 0 }, radius: 0.06, phase: 0 } }]
+      : [],
   };
 }

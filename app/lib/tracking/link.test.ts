@@ -56,9 +56,7 @@ describe("linking detections into tracks", () => {
   });
 
   it("does not link a far jump: a new track starts there", () => {
-    const stack = frames(
-      ...Array.from({ length: 12 }, (_, i) => [i < 6 ? ([50 + 2 * i, 50] as const) : ([200 + 2 * i, 150] as const)]),
-    );
+    const stack = frames(...Array.from({ length: 12 }, (_, i) => [i < 6 ? ([50 + 2 * i, 50] as const) : ([200 + 2 * i, 150] as const)]));
     const { tracks } = linkDetections(stack, options);
     expect(tracks).toHaveLength(2);
     expect(tracks[0]!.points.every((p) => p.x < 100)).toBe(true);
@@ -95,11 +93,7 @@ describe("linking rendered floats", () => {
         { kind: "float", path: { kind: "line", from: { x: -70, y: 70 }, velocity: { x: 90, y: -90 } }, sigmaPx: 2.2, brightness: 110 },
       ],
     };
-    const plan = planDetection(
-      { tracer: "float", centre: spec.centre, tankEdge: { cx: 160, cy: 120, r: 106 }, mirrored: false },
-      spec.width,
-      spec.height,
-    );
+    const plan = planDetection({ tracer: "float", centre: spec.centre, tankEdge: { cx: 160, cy: 120, r: 106 }, mirrored: false }, spec.width, spec.height);
     const renderer = createSyntheticRenderer(spec);
     const frames = Array.from({ length: spec.frames }, (_, i) => renderer.frame(i));
     const crops = frames.map((f) => cropForPlan(f, plan));

@@ -51,11 +51,7 @@ function finite(value: number): boolean {
   return typeof value === "number" && Number.isFinite(value);
 }
 
-export function planDetection(
-  setup: TrackingSetup,
-  frameWidth: number,
-  frameHeight: number,
-): DetectionPlan {
+export function planDetection(setup: TrackingSetup, frameWidth: number, frameHeight: number): DetectionPlan {
   if (setup.tracer !== "float" && setup.tracer !== "dye") {
     throw new ViewSetupError(`The tracer kind must be "float" or "dye", not "${String(setup.tracer)}".`);
   }

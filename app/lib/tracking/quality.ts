@@ -87,12 +87,7 @@ export function trackJitter(points: readonly TrackPoint[]): number | null {
   return count > 0 ? Math.sqrt(sum / count) : null;
 }
 
-export function trackingQuality(
-  frameCount: number,
-  frames: readonly FrameDetections[],
-  tracks: readonly Track[],
-  shortTracksDropped: number,
-): TrackingQuality {
+export function trackingQuality(frameCount: number, frames: readonly FrameDetections[], tracks: readonly Track[], shortTracksDropped: number): TrackingQuality {
   const withDetection = frames.filter((f) => f.detections.length > 0).length;
   let sum = 0;
   let count = 0;

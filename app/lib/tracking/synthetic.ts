@@ -264,10 +264,7 @@ export function createSyntheticRenderer(spec: SyntheticRunSpec): SyntheticRender
 }
 
 /** Renders every frame in order, awaiting the caller (to encode or store it) before the next. */
-export async function renderRunFrames(
-  spec: SyntheticRunSpec,
-  onFrame: (frame: SyntheticFrame) => void | Promise<void>,
-): Promise<void> {
+export async function renderRunFrames(spec: SyntheticRunSpec, onFrame: (frame: SyntheticFrame) => void | Promise<void>): Promise<void> {
   const renderer = createSyntheticRenderer(spec);
   for (let i = 0; i < spec.frames; i++) await onFrame(renderer.frame(i));
 }

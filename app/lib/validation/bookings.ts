@@ -18,11 +18,19 @@ const purpose = z
 
 const plannedRateRpm = z.preprocess(
   blankToUndefined,
-  z.coerce.number({ error: "The planned rate must be a number." }).positive("The planned rate must be more than zero.").max(200, "A planned rate above 200 rpm is not plausible.").optional(),
+  z.coerce
+    .number({ error: "The planned rate must be a number." })
+    .positive("The planned rate must be more than zero.")
+    .max(200, "A planned rate above 200 rpm is not plausible.")
+    .optional(),
 );
 const plannedDepthCm = z.preprocess(
   blankToUndefined,
-  z.coerce.number({ error: "The planned depth must be a number." }).positive("The planned depth must be more than zero.").max(200, "A planned depth above 200 cm is not plausible.").optional(),
+  z.coerce
+    .number({ error: "The planned depth must be a number." })
+    .positive("The planned depth must be more than zero.")
+    .max(200, "A planned depth above 200 cm is not plausible.")
+    .optional(),
 );
 
 /** The request form: times are the lab's local time (datetime-local fields). */
@@ -48,8 +56,12 @@ export const bookingRequestSchema = z
 /** The API body: ISO 8601 times with a zone (Z or an offset), so no one guesses the time zone. */
 export const bookingApiSchema = z.strictObject({
   equipmentId: z.number({ error: "equipmentId must be a number." }).int("equipmentId must be a whole number.").positive("equipmentId must be positive."),
-  start: z.iso.datetime({ offset: true, error: "start must be an ISO 8601 time with a zone, e.g. 2026-03-14T09:00:00Z." }).refine(isPlausibleDateTime, `start must be a real time between ${FIRST_YEAR} and ${LAST_YEAR}.`),
-  end: z.iso.datetime({ offset: true, error: "end must be an ISO 8601 time with a zone, e.g. 2026-03-14T11:00:00Z." }).refine(isPlausibleDateTime, `end must be a real time between ${FIRST_YEAR} and ${LAST_YEAR}.`),
+  start: z.iso
+    .datetime({ offset: true, error: "start must be an ISO 8601 time with a zone, e.g. 2026-03-14T09:00:00Z." })
+    .refine(isPlausibleDateTime, `start must be a real time between ${FIRST_YEAR} and ${LAST_YEAR}.`),
+  end: z.iso
+    .datetime({ offset: true, error: "end must be an ISO 8601 time with a zone, e.g. 2026-03-14T11:00:00Z." })
+    .refine(isPlausibleDateTime, `end must be a real time between ${FIRST_YEAR} and ${LAST_YEAR}.`),
   purpose,
   plannedRateRpm: z.number().positive("plannedRateRpm must be more than zero.").max(200).optional(),
   plannedDepthCm: z.number().positive("plannedDepthCm must be more than zero.").max(200).optional(),
@@ -57,13 +69,29 @@ export const bookingApiSchema = z.strictObject({
 });
 
 export const declineSchema = z.strictObject({
-  reason: z.string({ error: "Give a reason for declining." }).trim().min(3, "Give a reason for declining (a few words).").max(500, "Keep the reason under 500 characters."),
+  reason: z
+    .string({ error: "Give a reason for declining." })
+    .trim()
+    .min(3, "Give a reason for declining (a few words).")
+    .max(500, "Keep the reason under 500 characters."),
 });
 
 export const bookingFilterSchema = z.object({
   equipmentId: z.preprocess(blankToUndefined, z.coerce.number().int().positive("equipmentId must be a positive whole number.").optional()),
   state: z.preprocess(blankToUndefined, z.enum(bookingStates, { error: `state must be one of ${bookingStates.join(", ")}.` }).optional()),
-  from: z.preprocess(blankToUndefined, z.string().refine((s) => !Number.isNaN(new Date(s).getTime()), "from must be a date or time (ISO 8601).").optional()),
-  to: z.preprocess(blankToUndefined, z.string().refine((s) => !Number.isNaN(new Date(s).getTime()), "to must be a date or time (ISO 8601).").optional()),
+  from: z.preprocess(
+    blankToUndefined,
+    z
+      .string()
+      .refine((s) => !Number.isNaN(new Date(s).getTime()), "from must be a date or time (ISO 8601).")
+      .optional(),
+  ),
+  to: z.preprocess(
+    blankToUndefined,
+    z
+      .string()
+      .refine((s) => !Number.isNaN(new Date(s).getTime()), "to must be a date or time (ISO 8601).")
+      .optional(),
+  ),
   mine: z.preprocess((v) => v === "1" || v === "true" || v === "on", z.boolean()).default(false),
 });

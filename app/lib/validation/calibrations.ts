@@ -14,25 +14,29 @@ const day = (what: string) =>
     .refine(isPlausibleDay, `That ${what} is not a real day between ${FIRST_YEAR} and ${LAST_YEAR}.`);
 
 const positive = (what: string, max: number, unit: string) =>
-  strictNumber(z.preprocess(
-    blankToUndefined,
-    z.coerce
-      .number({ error: `${what} must be a number.` })
-      .refine(Number.isFinite, `${what} must be a number.`)
-      .positive(`${what} must be more than zero.`)
-      .max(max, `${what} above ${max} ${unit} is not plausible here.`)
-      .optional(),
-  ));
+  strictNumber(
+    z.preprocess(
+      blankToUndefined,
+      z.coerce
+        .number({ error: `${what} must be a number.` })
+        .refine(Number.isFinite, `${what} must be a number.`)
+        .positive(`${what} must be more than zero.`)
+        .max(max, `${what} above ${max} ${unit} is not plausible here.`)
+        .optional(),
+    ),
+  );
 
 const nonNegative = (what: string, max: number, unit: string) =>
-  strictNumber(z.preprocess(
-    blankToUndefined,
-    z.coerce
-      .number({ error: `${what} must be a number.` })
-      .min(0, `${what} cannot be negative.`)
-      .max(max, `${what} above ${max} ${unit} is not plausible here.`)
-      .optional(),
-  ));
+  strictNumber(
+    z.preprocess(
+      blankToUndefined,
+      z.coerce
+        .number({ error: `${what} must be a number.` })
+        .min(0, `${what} cannot be negative.`)
+        .max(max, `${what} above ${max} ${unit} is not plausible here.`)
+        .optional(),
+    ),
+  );
 
 const reading = z.object({
   setRpm: strictNumber(z.coerce.number({ error: "Set rate must be a number." }).refine((v) => v > 0, "A set rate must be more than zero rpm.")),
@@ -59,7 +63,9 @@ const calibrationFields = z.object({
   performedOn: day("calibration date"),
   dueOn: z.preprocess(blankToUndefined, day("due date").optional()),
   notes: optionalText(4000),
-  meterId: strictNumber(z.preprocess(blankToUndefined, z.coerce.number({ error: "Choose the rate meter." }).int().positive("Choose the rate meter.").optional())),
+  meterId: strictNumber(
+    z.preprocess(blankToUndefined, z.coerce.number({ error: "Choose the rate meter." }).int().positive("Choose the rate meter.").optional()),
+  ),
   readings,
   knownLengthMm: positive("Known length", 10_000, "mm"),
   knownLengthUncertaintyMm: nonNegative("Uncertainty of the known length", 1_000, "mm"),

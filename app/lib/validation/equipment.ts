@@ -18,7 +18,11 @@ const optionalPositive = (what: string, max: number, unit: string) =>
 export const equipmentSchema = z
   .object({
     kind: z.enum(equipmentKinds, { error: "Choose what kind of equipment this is." }),
-    name: z.string({ error: "Give it a name people recognise on the bench." }).trim().min(1, "Give it a name people recognise on the bench.").max(120, "At most 120 characters."),
+    name: z
+      .string({ error: "Give it a name people recognise on the bench." })
+      .trim()
+      .min(1, "Give it a name people recognise on the bench.")
+      .max(120, "At most 120 characters."),
     status: z.enum(equipmentStatuses, { error: "Choose a status." }).default("in_service"),
     maker: optionalText(120),
     model: optionalText(120),

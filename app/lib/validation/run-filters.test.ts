@@ -9,16 +9,32 @@ describe("runs-table filters from the address", () => {
   });
 
   it("reads every filter, ignoring empty values and the router's own parameters", () => {
-    const r = parse("table=3&technician=7&state=checked&verdict=disagrees&from=2025-01-01&to=2025-01-31&q=%20dye%20&sort=setRateRpm&dir=asc&page=2&pageSize=50&notes=&index&_routes=x");
+    const r = parse(
+      "table=3&technician=7&state=checked&verdict=disagrees&from=2025-01-01&to=2025-01-31&q=%20dye%20&sort=setRateRpm&dir=asc&page=2&pageSize=50&notes=&index&_routes=x",
+    );
     expect(r).toEqual({
       ok: false,
       field: "notes",
       message: expect.stringContaining('Unknown filter "notes"'),
     });
-    const ok = parse("table=3&technician=7&state=checked&verdict=disagrees&from=2025-01-01&to=2025-01-31&q=%20dye%20&sort=setRateRpm&dir=asc&page=2&pageSize=50&index&_routes=x");
+    const ok = parse(
+      "table=3&technician=7&state=checked&verdict=disagrees&from=2025-01-01&to=2025-01-31&q=%20dye%20&sort=setRateRpm&dir=asc&page=2&pageSize=50&index&_routes=x",
+    );
     expect(ok).toEqual({
       ok: true,
-      filters: { table: 3, technician: 7, state: "checked", verdict: "disagrees", from: "2025-01-01", to: "2025-01-31", q: "dye", sort: "setRateRpm", dir: "asc", page: 2, pageSize: 50 },
+      filters: {
+        table: 3,
+        technician: 7,
+        state: "checked",
+        verdict: "disagrees",
+        from: "2025-01-01",
+        to: "2025-01-31",
+        q: "dye",
+        sort: "setRateRpm",
+        dir: "asc",
+        page: 2,
+        pageSize: 50,
+      },
     });
   });
 

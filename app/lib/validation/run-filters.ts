@@ -45,8 +45,13 @@ export const runFiltersSchema = z
       from: day("from"),
       to: day("to"),
       // Control characters match nothing a person typed; a NUL above all: Sequelize writes WHERE values into the SQL text, which SQLite ends at a NUL.
-      // eslint-disable-next-line no-control-regex -- matching control characters is the point of this pattern
-      q: z.string().trim().max(100, "Search text (q) is limited to 100 characters.").regex(/^[^\u0000-\u001f\u007f]*$/, "Search text (q) cannot contain control characters.").optional(),
+      q: z
+        .string()
+        .trim()
+        .max(100, "Search text (q) is limited to 100 characters.")
+        // eslint-disable-next-line no-control-regex -- matching control characters is the point of this pattern
+        .regex(/^[^\u0000-\u001f\u007f]*$/, "Search text (q) cannot contain control characters.")
+        .optional(),
       sort: z.enum(runSortFields, { error: `sort must be one of ${runSortFields.join(", ")}.` }).default("createdAt"),
       dir: z.enum(["asc", "desc"], { error: "dir must be asc or desc." }).default("desc"),
       page: z
@@ -61,7 +66,10 @@ export const runFiltersSchema = z
         .refine((n) => (pageSizes as readonly number[]).includes(n), `pageSize must be one of ${pageSizes.join(", ")}.`)
         .default(DEFAULT_PAGE_SIZE),
     },
-    { error: (issue) => (issue.code === "unrecognized_keys" ? `Unknown filter ${issue.keys.map((k) => `"${k}"`).join(", ")}. Known: ${runFilterKeys.join(", ")}.` : undefined) },
+    {
+      error: (issue) =>
+        issue.code === "unrecognized_keys" ? `Unknown filter ${issue.keys.map((k) => `"${k}"`).join(", ")}. Known: ${runFilterKeys.join(", ")}.` : undefined,
+    },
   )
   .refine((f) => !f.from || !f.to || f.from <= f.to, { message: "from must be on or before to.", path: ["from"] });
 

@@ -34,6 +34,10 @@ export const labSettingsSchema = z
   .superRefine((v, ctx) => {
     const shortest = Math.min(v.rateCalibrationIntervalDays, v.scaleCalibrationIntervalDays, v.timingCheckIntervalDays);
     if (v.calibrationReminderDays >= shortest) {
-      ctx.addIssue({ code: "custom", path: ["calibrationReminderDays"], message: `The reminder must come sooner than the shortest interval (${shortest} days), or it would go out the day a record is made.` });
+      ctx.addIssue({
+        code: "custom",
+        path: ["calibrationReminderDays"],
+        message: `The reminder must come sooner than the shortest interval (${shortest} days), or it would go out the day a record is made.`,
+      });
     }
   });

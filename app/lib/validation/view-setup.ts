@@ -11,7 +11,10 @@ export const viewSetupSchema = z
     edgeX: optionalPx("The tank edge's centre column"),
     edgeY: optionalPx("The tank edge's centre row"),
     edgeR: optionalPx("The tank edge's radius"),
-    scaleLengthCm: z.preprocess((v) => (v === "" || v === null ? undefined : v), z.coerce.number().positive("The known length must be more than 0 cm.").max(500, "A known length over 5 m will not fit in a tank.").optional()),
+    scaleLengthCm: z.preprocess(
+      (v) => (v === "" || v === null ? undefined : v),
+      z.coerce.number().positive("The known length must be more than 0 cm.").max(500, "A known length over 5 m will not fit in a tank.").optional(),
+    ),
     scaleLengthPx: optionalPx("The scale's length"),
     scalePoints: z.string().max(500).optional(),
     mirrored: z.preprocess((v) => v === "on" || v === "true", z.boolean()),
@@ -21,7 +24,8 @@ export const viewSetupSchema = z
     if (edge.some((e) => e !== undefined) && edge.some((e) => e === undefined)) {
       ctx.addIssue({ code: "custom", path: ["edgeR"], message: "Mark the tank edge with three rim points (or clear it)." });
     }
-    if (v.edgeR !== undefined && v.edgeR <= 5) ctx.addIssue({ code: "custom", path: ["edgeR"], message: "The tank edge is too small; mark three points on the rim." });
+    if (v.edgeR !== undefined && v.edgeR <= 5)
+      ctx.addIssue({ code: "custom", path: ["edgeR"], message: "The tank edge is too small; mark three points on the rim." });
     if ((v.scaleLengthCm === undefined) !== (v.scaleLengthPx === undefined)) {
       ctx.addIssue({ code: "custom", path: ["scaleLengthCm"], message: "For a scale, mark two points and give the length between them in cm." });
     }

@@ -12,7 +12,13 @@ beforeAll(async () => {
 
 async function signedInPerson(name: string) {
   const stamp = Math.random().toString(36).slice(2, 8);
-  const user = await User.create({ email: `${name.toLowerCase()}-${stamp}@tankside.example`, name, role: "technician", passwordHash: await hashPassword(PASSWORD), passwordChangedAt: null });
+  const user = await User.create({
+    email: `${name.toLowerCase()}-${stamp}@tankside.example`,
+    name,
+    role: "technician",
+    passwordHash: await hashPassword(PASSWORD),
+    passwordChangedAt: null,
+  });
   const s = await sessionStorage.getSession();
   s.set("userId", user.id);
   const cookie = (await sessionStorage.commitSession(s)).split(";")[0] ?? "";
@@ -30,7 +36,7 @@ async function post(cookie: string, fields: Record<string, string>): Promise<Out
   }
   return { status: 200, headers: new Headers(), body: result as Record<string, unknown> };
 }
-const fieldErrors = (o: Outcome) => ((o.body.result as { error?: Record<string, string[]> }).error ?? {});
+const fieldErrors = (o: Outcome) => (o.body.result as { error?: Record<string, string[]> }).error ?? {};
 const change = (current: string, password = "Moss grows on seven bridges") => ({ intent: "password", current, password, confirm: password });
 
 describe("account page: the current-password check is throttled like sign-in (OWASP ASVS 4.0.3 V2.2.1)", () => {
@@ -48,7 +54,9 @@ describe("account page: the current-password check is throttled like sign-in (OW
     expect(retryAfter).toBeLessThanOrEqual(900);
     expect(fieldErrors(blocked).current).toEqual(["Too many failed attempts. Wait 15 minutes and try again."]);
     // The route keeps that header on the way out (React Router drops action headers other than cookies by default).
-    expect(headers({ actionHeaders: blocked.headers, loaderHeaders: new Headers(), parentHeaders: new Headers(), errorHeaders: undefined }).get("Retry-After")).toBe(String(retryAfter));
+    expect(
+      headers({ actionHeaders: blocked.headers, loaderHeaders: new Headers(), parentHeaders: new Headers(), errorHeaders: undefined }).get("Retry-After"),
+    ).toBe(String(retryAfter));
     expect(await verifyPassword((await User.findByPk(user.id))!.passwordHash!, PASSWORD)).toBe(true);
   });
 

@@ -126,20 +126,31 @@ export default function Account({ loaderData }: Route.ComponentProps) {
           <Form method="post" className="flex flex-col gap-4" {...getFormProps(form)}>
             <input type="hidden" name="intent" value="password" />
             <TextField label="Current password" type="password" name={fields.current.name} error={fields.current.errors} autoComplete="current-password" />
-            <TextField label="New password" type="password" name={fields.password.name} error={fields.password.errors} autoComplete="new-password" hint="At least 12 characters, not a common password and not built on your name or e-mail; a short sentence works well." />
+            <TextField
+              label="New password"
+              type="password"
+              name={fields.password.name}
+              error={fields.password.errors}
+              autoComplete="new-password"
+              hint="At least 12 characters, not a common password and not built on your name or e-mail; a short sentence works well."
+            />
             <TextField label="New password again" type="password" name={fields.confirm.name} error={fields.confirm.errors} autoComplete="new-password" />
-            <Button type="submit" className="self-start">Change password</Button>
+            <Button type="submit" className="self-start">
+              Change password
+            </Button>
           </Form>
         </Card>
         <Card title="API tokens">
           <p className="text-muted">
-            For scripts that read runs or export tracks. A token acts with your role; send it as{" "}
-            <code className="font-mono">Authorization: Bearer …</code>. It is shown once.
+            For scripts that read runs or export tracks. A token acts with your role; send it as <code className="font-mono">Authorization: Bearer …</code>. It
+            is shown once.
           </p>
           {actionData && "newToken" in actionData && actionData.newToken ? (
             <div className="mt-3">
               <Notice kind="success" title="Copy this token now; it will not be shown again">
-                <code data-testid="new-token" className="block break-all font-mono">{actionData.newToken}</code>
+                <code data-testid="new-token" className="block break-all font-mono">
+                  {actionData.newToken}
+                </code>
               </Notice>
             </div>
           ) : null}
@@ -154,7 +165,16 @@ export default function Account({ loaderData }: Route.ComponentProps) {
               <TextField label="Token name" name="label" placeholder="e.g. term export script" maxLength={80} />
             </div>
             <div className="w-48">
-              <TextField label={`Works for (1–${API_TOKEN_MAX_DAYS})`} name="expiresInDays" type="number" min={1} max={API_TOKEN_MAX_DAYS} step={1} defaultValue={String(API_TOKEN_DEFAULT_DAYS)} unit="days" />
+              <TextField
+                label={`Works for (1–${API_TOKEN_MAX_DAYS})`}
+                name="expiresInDays"
+                type="number"
+                min={1}
+                max={API_TOKEN_MAX_DAYS}
+                step={1}
+                defaultValue={String(API_TOKEN_DEFAULT_DAYS)}
+                unit="days"
+              />
             </div>
             <Button type="submit">Create token</Button>
           </Form>
@@ -180,7 +200,9 @@ export default function Account({ loaderData }: Route.ComponentProps) {
                   <Form method="post">
                     <input type="hidden" name="intent" value="revoke-token" />
                     <input type="hidden" name="tokenId" value={t.id} />
-                    <Button tone="danger" type="submit">Revoke</Button>
+                    <Button tone="danger" type="submit">
+                      Revoke
+                    </Button>
                   </Form>
                 )}
               </li>

@@ -26,7 +26,13 @@ export async function action({ request, params }: Route.ActionArgs) {
     return await withMultipartUpload(request, limits, async ({ file }) => {
       if (!file) return apiError(400, "invalid_upload", "Send the file in a field named file.");
       const row = await addCalibrationAttachment(id, file, user);
-      const view: CalibrationAttachmentView = { id: row.id, originalName: row.originalName, contentType: row.contentType, sizeBytes: row.sizeBytes, url: `/api/v1/calibrations/${id}/attachments/${row.id}` };
+      const view: CalibrationAttachmentView = {
+        id: row.id,
+        originalName: row.originalName,
+        contentType: row.contentType,
+        sizeBytes: row.sizeBytes,
+        url: `/api/v1/calibrations/${id}/attachments/${row.id}`,
+      };
       return Response.json(view, { status: 201 });
     });
   } catch (err) {

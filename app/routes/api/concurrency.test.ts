@@ -40,7 +40,11 @@ async function call(fn: (args: never) => unknown, request: Request, params: Reco
 }
 
 const json = (method: string, path: string, token: string, body: unknown) =>
-  new Request(`http://localhost${path}`, { method, headers: { Authorization: `Bearer ${token}`, "Content-Type": "application/json" }, body: JSON.stringify(body) });
+  new Request(`http://localhost${path}`, {
+    method,
+    headers: { Authorization: `Bearer ${token}`, "Content-Type": "application/json" },
+    body: JSON.stringify(body),
+  });
 
 function upload(runId: number, token: string, name: string, data: Buffer) {
   const form = new FormData();
@@ -127,10 +131,15 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
     const bookings: Booking[] = [];
     for (let i = 0; i < 20; i++) {
       // Every request overlaps every other one: all start within the first of them.
-      const { booking } = await createBooking({ equipmentId: lab.tableA.id, start: hoursFromNow(48 + i / 60), end: hoursFromNow(50 + i / 60), purpose: `Overlap ${i}` }, lab.instructor);
+      const { booking } = await createBooking(
+        { equipmentId: lab.tableA.id, start: hoursFromNow(48 + i / 60), end: hoursFromNow(50 + i / 60), purpose: `Overlap ${i}` },
+        lab.instructor,
+      );
       bookings.push(booking);
     }
-    const responses = await Promise.all(bookings.map((b) => call(decisionAction, json("POST", `/api/v1/bookings/${b.id}/approve`, tokens.manager, {}), { id: String(b.id) })));
+    const responses = await Promise.all(
+      bookings.map((b) => call(decisionAction, json("POST", `/api/v1/bookings/${b.id}/approve`, tokens.manager, {}), { id: String(b.id) })),
+    );
     expect(tally(responses)).toEqual({ 200: 1, 409: 19 });
     expect(await serverErrors(responses)).toEqual([]);
     expect(await Booking.count({ where: { id: bookings.map((b) => b.id), state: "approved" } })).toBe(1);
@@ -139,7 +148,9 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
   it("10 single-frame uploads to one run at once are all stored", async () => {
     const run = await createRun(runInput(lab, { purpose: "Parallel frames" }), lab.technician);
     const images = await Promise.all(Array.from({ length: 10 }, (_, i) => png(1000 + i)));
-    const responses = await Promise.all(images.map((data, i) => call(framesAction, upload(run.id, tokens.tech, `frame_${i + 1}.png`, data), { runId: String(run.id) })));
+    const responses = await Promise.all(
+      images.map((data, i) => call(framesAction, upload(run.id, tokens.tech, `frame_${i + 1}.png`, data), { runId: String(run.id) })),
+    );
     expect(tally(responses)).toEqual({ 201: 10 });
     expect(await Frame.count({ where: { runId: run.id } })).toBe(10);
     const positions = (await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] })).map((f) => f.position);
@@ -150,11 +161,18 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
   it("10 ZIP uploads of 20 good frames each, at once, to ten runs: all 200 frames are stored", async () => {
     const runs = await runsOneByOne(10, (k) => `Zip run ${k}`);
     const zips = await Promise.all(
-      runs.map(async (_, k) => storedZip(await Promise.all(Array.from({ length: 20 }, async (_, i) => ({ name: `frame_${i + 1}.png`, data: await png(2000 + k * 20 + i) }))))),
+      runs.map(async (_, k) =>
+        storedZip(await Promise.all(Array.from({ length: 20 }, async (_, i) => ({ name: `frame_${i + 1}.png`, data: await png(2000 + k * 20 + i) })))),
+      ),
     );
-    const responses = await Promise.all(runs.map((run, k) => call(framesAction, upload(run.id, tokens.tech, `stack_${k}.zip`, zips[k]!), { runId: String(run.id) })));
+    const responses = await Promise.all(
+      runs.map((run, k) => call(framesAction, upload(run.id, tokens.tech, `stack_${k}.zip`, zips[k]!), { runId: String(run.id) })),
+    );
     const bodies = await Promise.all(responses.map((r) => r.clone().json()));
-    expect({ statuses: tally(responses), framesRefused: bodies.reduce((n, b) => n + (b.rejected?.length ?? 0), 0) }).toEqual({ statuses: { 201: 10 }, framesRefused: 0 });
+    expect({ statuses: tally(responses), framesRefused: bodies.reduce((n, b) => n + (b.rejected?.length ?? 0), 0) }).toEqual({
+      statuses: { 201: 10 },
+      framesRefused: 0,
+    });
     expect(await Frame.count({ where: { runId: runs.map((r) => r.id) } })).toBe(200);
   });
 
@@ -162,22 +180,59 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
     const runs = await runsOneByOne(5, (k) => `Mixed ${k}`);
     const cals: Calibration[] = [];
     for (let k = 0; k < 5; k++) {
-      cals.push(await createCalibration({ kind: "rate", equipmentId: lab.tableB.id, meterId: meter.id, performedOn: "2026-11-20", readings: [5, 10, 15, 20].map((s) => ({ setRpm: s, measuredRpm: s * 1.002 })) }, lab.technician));
+      cals.push(
+        await createCalibration(
+          {
+            kind: "rate",
+            equipmentId: lab.tableB.id,
+            meterId: meter.id,
+            performedOn: "2026-11-20",
+            readings: [5, 10, 15, 20].map((s) => ({ setRpm: s, measuredRpm: s * 1.002 })),
+          },
+          lab.technician,
+        ),
+      );
     }
     const requested: Booking[] = [];
     for (let k = 0; k < 10; k++) {
-      const { booking } = await createBooking({ equipmentId: lab.tableB.id, start: hoursFromNow(100 + 3 * k), end: hoursFromNow(101 + 3 * k), purpose: `Mixed ${k}` }, lab.instructor);
+      const { booking } = await createBooking(
+        { equipmentId: lab.tableB.id, start: hoursFromNow(100 + 3 * k), end: hoursFromNow(101 + 3 * k), purpose: `Mixed ${k}` },
+        lab.instructor,
+      );
       requested.push(booking);
     }
     const images = await Promise.all(Array.from({ length: 10 }, (_, i) => png(5000 + i)));
     const body = runInput(lab, { purpose: "Logged under load" });
     const kinds = [
       () => call(createRunAction, json("POST", "/api/v1/runs", tokens.tech, body)),
-      (k: number) => call(runAction, json("PATCH", `/api/v1/runs/${runs[k % 5]!.id}`, tokens.tech, { waterTemperatureC: 18 + k / 10, notes: `edit ${k}` }), { id: String(runs[k % 5]!.id) }),
-      (k: number) => call(bookingsAction, json("POST", "/api/v1/bookings", tokens.instructor, { equipmentId: lab.tableA.id, start: hoursFromNow(200 + 3 * k).toISOString(), end: hoursFromNow(201 + 3 * k).toISOString(), purpose: `Asked under load ${k}` })),
+      (k: number) =>
+        call(runAction, json("PATCH", `/api/v1/runs/${runs[k % 5]!.id}`, tokens.tech, { waterTemperatureC: 18 + k / 10, notes: `edit ${k}` }), {
+          id: String(runs[k % 5]!.id),
+        }),
+      (k: number) =>
+        call(
+          bookingsAction,
+          json("POST", "/api/v1/bookings", tokens.instructor, {
+            equipmentId: lab.tableA.id,
+            start: hoursFromNow(200 + 3 * k).toISOString(),
+            end: hoursFromNow(201 + 3 * k).toISOString(),
+            purpose: `Asked under load ${k}`,
+          }),
+        ),
       (k: number) => call(decisionAction, json("POST", `/api/v1/bookings/${requested[k]!.id}/approve`, tokens.manager, {}), { id: String(requested[k]!.id) }),
       (k: number) =>
-        call(calibrationAction, json("PUT", `/api/v1/calibrations/${cals[k % 5]!.id}`, tokens.tech, { kind: "rate", equipmentId: lab.tableB.id, meterId: meter.id, performedOn: "2026-11-21", notes: `edit ${k}`, readings: [5, 10, 15, 20].map((s) => ({ setRpm: s, measuredRpm: s * (1 + k / 1000) })) }), { id: String(cals[k % 5]!.id) }),
+        call(
+          calibrationAction,
+          json("PUT", `/api/v1/calibrations/${cals[k % 5]!.id}`, tokens.tech, {
+            kind: "rate",
+            equipmentId: lab.tableB.id,
+            meterId: meter.id,
+            performedOn: "2026-11-21",
+            notes: `edit ${k}`,
+            readings: [5, 10, 15, 20].map((s) => ({ setRpm: s, measuredRpm: s * (1 + k / 1000) })),
+          }),
+          { id: String(cals[k % 5]!.id) },
+        ),
       (k: number) => call(framesAction, upload(runs[k % 5]!.id, tokens.tech, `mixed_${k}.png`, images[k]!), { runId: String(runs[k % 5]!.id) }),
     ];
     // 50 requests, the six kinds interleaved (9 runs logged, 9 run edits, 8 of each other kind).
@@ -195,7 +250,10 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
 
   it("a frame of a ZIP that cannot be stored (the database fails) is the server's error, not a damaged entry", async () => {
     const run = (await runsOneByOne(1, () => "Zip with a failing store"))[0]!;
-    const archive = storedZip([{ name: "frame_1.png", data: await png(9001) }, { name: "frame_2.png", data: await png(9002) }]);
+    const archive = storedZip([
+      { name: "frame_1.png", data: await png(9001) },
+      { name: "frame_2.png", data: await png(9002) },
+    ]);
     const failing = vi.spyOn(Frame, "create").mockRejectedValueOnce(new Error("disk I/O error"));
     try {
       const response = await call(framesAction, upload(run.id, tokens.tech, "stack.zip", archive), { runId: String(run.id) });

@@ -13,6 +13,13 @@ export async function loader({ request }: Route.LoaderArgs) {
   const rows = await CapturedMail.findAll({ order: [["id", "DESC"]], limit: 200 });
   const list = rows
     .filter((m) => !to || m.envelopeTo.toLowerCase().split(", ").includes(to.toLowerCase()))
-    .map((m): CapturedMailView => ({ id: m.id, from: m.envelopeFrom, to: m.envelopeTo.split(", "), subject: m.subject, text: m.textBody, receivedAt: m.receivedAt.toISOString() }));
+    .map((m): CapturedMailView => ({
+      id: m.id,
+      from: m.envelopeFrom,
+      to: m.envelopeTo.split(", "),
+      subject: m.subject,
+      text: m.textBody,
+      receivedAt: m.receivedAt.toISOString(),
+    }));
   return Response.json(list);
 }

@@ -50,7 +50,10 @@ export async function action({ request, params }: Route.ActionArgs) {
       try {
         const result = await receiveFrameFile(run, file, time.timeS);
         if (result.accepted.length === 0 && result.rejected.length > 0) {
-          const refused: FrameUploadRefusedView = { error: { code: "no_frames_accepted", message: result.rejected[0]?.message ?? "No frame was accepted." }, ...result };
+          const refused: FrameUploadRefusedView = {
+            error: { code: "no_frames_accepted", message: result.rejected[0]?.message ?? "No frame was accepted." },
+            ...result,
+          };
           return Response.json(refused, { status: 422 });
         }
         const allDuplicates = result.accepted.length > 0 && result.accepted.every((a) => a.duplicate);

@@ -51,10 +51,18 @@ describe("POST /api/v1/runs/:id/sign-off", () => {
       expect(patched.status).toBe(200);
       const refused = await signOff(run.id, managerToken);
       expect(refused.status).toBe(409);
-      expect((await refused.json()).error).toMatchObject({ code: "check_out_of_date", message: expect.stringMatching(/out of date \(changed since: set rate\)/) });
+      expect((await refused.json()).error).toMatchObject({
+        code: "check_out_of_date",
+        message: expect.stringMatching(/out of date \(changed since: set rate\)/),
+      });
 
       const detail = await (await call(runLoader, req("GET", `/api/v1/runs/${run.id}`, techToken), run.id)).json();
-      expect(detail).toMatchObject({ verdict: null, latestTheoryCheck: null, checkStatus: "out_of_date", checkOutOfDate: { because: ["set rate"], recheckPending: true, checkId: check.id } });
+      expect(detail).toMatchObject({
+        verdict: null,
+        latestTheoryCheck: null,
+        checkStatus: "out_of_date",
+        checkOutOfDate: { because: ["set rate"], recheckPending: true, checkId: check.id },
+      });
       const exported = await (await call(exportLoader, req("GET", `/api/v1/runs/${run.id}/export.json`, techToken), run.id)).json();
       expect(exported).toMatchObject({ run: { verdict: null, checkStatus: "out_of_date" }, theoryCheck: null, theoryCheckInput: null });
     } finally {

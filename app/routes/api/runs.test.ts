@@ -18,12 +18,27 @@ let managerToken: string;
 
 /** Every answer is checked against the OpenAPI document on the way (see tests/support/api-contract.ts). */
 const call = callApi;
-const get = (path: string, token: string | null) =>
-  new Request(`http://localhost${path}`, { headers: token ? { Authorization: `Bearer ${token}` } : {} });
+const get = (path: string, token: string | null) => new Request(`http://localhost${path}`, { headers: token ? { Authorization: `Bearer ${token}` } : {} });
 const send = (method: string, path: string, token: string, body: unknown) =>
-  new Request(`http://localhost${path}`, { method, headers: { Authorization: `Bearer ${token}`, "Content-Type": "application/json" }, body: JSON.stringify(body) });
+  new Request(`http://localhost${path}`, {
+    method,
+    headers: { Authorization: `Bearer ${token}`, "Content-Type": "application/json" },
+    body: JSON.stringify(body),
+  });
 
-const setupRow = (run: Run) => ({ runId: run.id, cameraId: lab.camera.id, centreXPx: 640, centreYPx: 360, tankEdgeXPx: null, tankEdgeYPx: null, tankEdgeRPx: null, scalePxPerM: 1000, scalePoints: null, mirrored: false, createdById: lab.technician.id });
+const setupRow = (run: Run) => ({
+  runId: run.id,
+  cameraId: lab.camera.id,
+  centreXPx: 640,
+  centreYPx: 360,
+  tankEdgeXPx: null,
+  tankEdgeYPx: null,
+  tankEdgeRPx: null,
+  scalePxPerM: 1000,
+  scalePoints: null,
+  mirrored: false,
+  createdById: lab.technician.id,
+});
 
 /**
  * A checked run with one track and a stored check of known figures. The check carries the
@@ -34,12 +49,36 @@ async function checkedRun(overrides: Record<string, unknown> = {}, opts: { point
   if (opts.calibrationsInForce) await run.update({ calibrationsInForce: JSON.stringify(opts.calibrationsInForce) });
   if (opts.withSetup !== false) await ViewSetup.create(setupRow(run));
   const job = await doneTrackingJob(run, lab.technician.id);
-  const points = opts.points ?? [[0, 700, 300, 0], [0.5, 650, 250, 15]];
-  const track = await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify(points), pointCount: points.length, detectedShare: 1, jitterPx: 0.2 });
+  const points = opts.points ?? [
+    [0, 700, 300, 0],
+    [0.5, 650, 250, 15],
+  ];
+  const track = await Track.create({
+    runId: run.id,
+    jobId: job.id,
+    number: 1,
+    points: JSON.stringify(points),
+    pointCount: points.length,
+    detectedShare: 1,
+    jitterPx: 0.2,
+  });
   await run.update({ state: "checked", verdict: "agrees" });
   const { fingerprint } = await presentFingerprint(run, track);
   if (!fingerprint) throw new Error("the fixture's track is not from the run's present inputs");
-  await TheoryCheck.create({ runId: run.id, trackId: track.id, verdict: "agrees", fMeasuredPerS: 2.1, fPredictedPerS: 2.09, result: JSON.stringify({ result: { omega: 1.05, settings: { window: 9, polyOrder: 2, tolerance: 0.03 } }, input: { omegaSet: 1.047, cameraMode: overrides.cameraMode ?? "rotating", settings: { tolerance: 0.03 } } }), codeVersion: "test", createdById: lab.technician.id, inputFingerprint: fingerprint });
+  await TheoryCheck.create({
+    runId: run.id,
+    trackId: track.id,
+    verdict: "agrees",
+    fMeasuredPerS: 2.1,
+    fPredictedPerS: 2.09,
+    result: JSON.stringify({
+      result: { omega: 1.05, settings: { window: 9, polyOrder: 2, tolerance: 0.03 } },
+      input: { omegaSet: 1.047, cameraMode: overrides.cameraMode ?? "rotating", settings: { tolerance: 0.03 } },
+    }),
+    codeVersion: "test",
+    createdById: lab.technician.id,
+    inputFingerprint: fingerprint,
+  });
   return { run, job, track };
 }
 
@@ -60,7 +99,14 @@ beforeAll(async () => {
       }),
       i % 3 ? lab.technician : lab.technician2,
     );
-    await Run.update({ createdAt: new Date(Date.UTC(2025, 0, 1 + i, 10)), state: i % 5 === 0 ? "checked" : "draft", verdict: i % 5 === 0 ? (i % 10 ? "disagrees" : "agrees") : null }, { where: { id: run.id }, silent: true });
+    await Run.update(
+      {
+        createdAt: new Date(Date.UTC(2025, 0, 1 + i, 10)),
+        state: i % 5 === 0 ? "checked" : "draft",
+        verdict: i % 5 === 0 ? (i % 10 ? "disagrees" : "agrees") : null,
+      },
+      { where: { id: run.id }, silent: true },
+    );
   }
 });
 
@@ -79,7 +125,11 @@ describe("GET /api/v1/runs", () => {
   });
 
   it("combines filters: table, technician, state, verdict, date range and text", async () => {
-    const q = async (s: string) => (await (await call(listLoader, get(`/api/v1/runs?${s}`, instructorToken))).json()) as { total: number; items: { id: number; purpose: string; verdict: string | null; table: { id: number } }[] };
+    const q = async (s: string) =>
+      (await (await call(listLoader, get(`/api/v1/runs?${s}`, instructorToken))).json()) as {
+        total: number;
+        items: { id: number; purpose: string; verdict: string | null; table: { id: number } }[];
+      };
     expect((await q(`table=${lab.tableB.id}`)).total).toBe(15);
     expect((await q(`technician=${lab.technician2.id}`)).total).toBe(10);
     expect((await q("state=checked")).total).toBe(6);
@@ -217,7 +267,16 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
   });
 
   it("writes pixel columns always, and rotating-frame metres once the view setup has a scale", async () => {
-    const { run, track } = await checkedRun({}, { withSetup: false, points: [[0, 700, 300, 0], [0.5, 650, 250, 15]] });
+    const { run, track } = await checkedRun(
+      {},
+      {
+        withSetup: false,
+        points: [
+          [0, 700, 300, 0],
+          [0.5, 650, 250, 15],
+        ],
+      },
+    );
     const csv = async () => {
       const res = await call(csvLoader, get(`/api/v1/runs/${run.id}/tracks.csv`, techToken), { id: String(run.id) });
       expect(res.status).toBe(200);
@@ -237,7 +296,15 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
 
   it("de-rotates a lab-fixed camera's positions by −Ω(t − t₀) with the checked rate", async () => {
     // Ω = 1.05 rad/s from the stored check; after 0.5 s the frame has turned 0.525 rad.
-    const { run } = await checkedRun({ cameraMode: "lab" }, { points: [[0, 740, 360, 0], [0.5, 740, 360, 15]] });
+    const { run } = await checkedRun(
+      { cameraMode: "lab" },
+      {
+        points: [
+          [0, 740, 360, 0],
+          [0.5, 740, 360, 15],
+        ],
+      },
+    );
     const text = await (await call(csvLoader, get(`/api/v1/runs/${run.id}/tracks.csv`, techToken), { id: String(run.id) })).text();
     const [, , , , xm, ym] = text.trim().split("\r\n")[2]!.split(",").map(Number);
     expect(xm).toBeCloseTo(0.1 * Math.cos(-0.525), 8);
@@ -245,7 +312,15 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
   });
 
   it("exports the run with conditions, equipment, calibration ids, settings, result and code version", async () => {
-    const { run } = await checkedRun({}, { calibrationsInForce: [{ id: 41, kind: "rate" }, { id: 42, kind: "scale" }] });
+    const { run } = await checkedRun(
+      {},
+      {
+        calibrationsInForce: [
+          { id: 41, kind: "rate" },
+          { id: 42, kind: "scale" },
+        ],
+      },
+    );
     const res = await call(exportLoader, get(`/api/v1/runs/${run.id}/export.json`, instructorToken), { id: String(run.id) });
     expect(res.status).toBe(200);
     const body = await res.json();

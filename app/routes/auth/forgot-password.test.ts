@@ -29,7 +29,9 @@ async function ask(email: string) {
   const result = (await action({ request, params: {}, context: {} } as never)) as unknown;
   await passwordResetsSettled();
   const wrapped = result as { type?: string; data?: unknown; init?: { status?: number } | null };
-  return wrapped?.type === "DataWithResponseInit" ? { status: wrapped.init?.status ?? 200, body: JSON.stringify(wrapped.data) } : { status: 200, body: JSON.stringify(result) };
+  return wrapped?.type === "DataWithResponseInit"
+    ? { status: wrapped.init?.status ?? 200, body: JSON.stringify(wrapped.data) }
+    : { status: 200, body: JSON.stringify(result) };
 }
 
 describe("forgot password (OWASP ASVS 4.0.3 V2.5.7: no account enumeration)", () => {

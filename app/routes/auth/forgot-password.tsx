@@ -30,8 +30,8 @@ export default function ForgotPassword({ actionData }: Route.ComponentProps) {
     <div className="mx-auto max-w-xl rounded-card border border-line bg-sheet p-8">
       <h1>Forgot your password?</h1>
       <p className="mt-2 text-muted">
-        Give the e-mail address of your Tankside account. If it has one, a link to choose a new password goes there; it works
-        once and for {formatDuration(RESET_MINUTES * 60)}.
+        Give the e-mail address of your Tankside account. If it has one, a link to choose a new password goes there; it works once and for{" "}
+        {formatDuration(RESET_MINUTES * 60)}.
       </p>
       {actionData?.sent ? (
         <div className="mt-4">
@@ -41,7 +41,15 @@ export default function ForgotPassword({ actionData }: Route.ComponentProps) {
         </div>
       ) : null}
       <Form method="post" className="mt-4 flex flex-col gap-4" {...getFormProps(form)}>
-        <TextField label="E-mail" type="email" name={fields.email.name} key={fields.email.key} defaultValue={fields.email.initialValue} error={fields.email.errors} autoComplete="username" />
+        <TextField
+          label="E-mail"
+          type="email"
+          name={fields.email.name}
+          key={fields.email.key}
+          defaultValue={fields.email.initialValue}
+          error={fields.email.errors}
+          autoComplete="username"
+        />
         <Button type="submit">Send the reset link</Button>
         <a href="/sign-in">Back to sign-in</a>
       </Form>

@@ -10,9 +10,22 @@ beforeAll(async () => {
 
 async function resetLink() {
   const stamp = Math.random().toString(36).slice(2, 8);
-  const user = await User.create({ email: `kai.moreno-${stamp}@tankside.example`, name: "Kai Moreno", role: "technician", passwordHash: null, passwordChangedAt: null });
+  const user = await User.create({
+    email: `kai.moreno-${stamp}@tankside.example`,
+    name: "Kai Moreno",
+    role: "technician",
+    passwordHash: null,
+    passwordChangedAt: null,
+  });
   const token = newSecretToken();
-  await AuthToken.create({ userId: user.id, purpose: "password_reset", tokenHash: hashToken(token), expiresAt: new Date(Date.now() + 3600_000), usedAt: null, createdById: null });
+  await AuthToken.create({
+    userId: user.id,
+    purpose: "password_reset",
+    tokenHash: hashToken(token),
+    expiresAt: new Date(Date.now() + 3600_000),
+    usedAt: null,
+    createdById: null,
+  });
   return { user, token };
 }
 async function choose(token: string, password: string) {

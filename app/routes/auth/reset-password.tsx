@@ -55,9 +55,7 @@ export default function ChoosePassword({ loaderData, actionData }: Route.Compone
     return (
       <div className="mx-auto max-w-xl rounded-card border border-line bg-sheet p-8">
         <h1>This link no longer works</h1>
-        <p className="mt-3">
-          It has expired or has already been used. {welcome ? "Ask the lab manager to send the invitation again." : ""}
-        </p>
+        <p className="mt-3">It has expired or has already been used. {welcome ? "Ask the lab manager to send the invitation again." : ""}</p>
         {!welcome ? (
           <p className="mt-3">
             <a href="/forgot-password">Ask for a new reset link</a>
@@ -69,7 +67,9 @@ export default function ChoosePassword({ loaderData, actionData }: Route.Compone
   return (
     <div className="mx-auto max-w-xl rounded-card border border-line bg-sheet p-8">
       <h1>{welcome ? `Welcome, ${loaderData.name}` : "Choose a new password"}</h1>
-      <p className="mt-2 text-muted">For the account {loaderData.email}. At least 12 characters, not a common password and not built on your name or e-mail; a short sentence works well.</p>
+      <p className="mt-2 text-muted">
+        For the account {loaderData.email}. At least 12 characters, not a common password and not built on your name or e-mail; a short sentence works well.
+      </p>
       <Form method="post" className="mt-4 flex flex-col gap-4" {...getFormProps(form)}>
         <FormProblem errors={form.errors} />
         <TextField label="New password" type="password" name={fields.password.name} error={fields.password.errors} autoComplete="new-password" />
@@ -83,4 +83,3 @@ export default function ChoosePassword({ loaderData, actionData }: Route.Compone
 export function shouldRevalidate() {
   return false;
 }
-

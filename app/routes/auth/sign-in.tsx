@@ -27,9 +27,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   if (await getCurrentUser(request).catch(() => null)) throw redirect(redirectTo);
   return {
     redirectTo,
-    demo: env.demo
-      ? { password: "tankside-demo", people: ["manager@tankside.example", "tech@tankside.example", "instructor@tankside.example"] }
-      : null,
+    demo: env.demo ? { password: "tankside-demo", people: ["manager@tankside.example", "tech@tankside.example", "instructor@tankside.example"] } : null,
   };
 }
 
@@ -75,8 +73,7 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
         <TanksideMark size={56} />
         <h1 className="mt-4 text-white">Tankside</h1>
         <p className="mt-3 text-lg text-tank-100">
-          The run log of the rotating-table lab: log each run, bring its frames, track the tracer and check the deflection
-          against f&nbsp;=&nbsp;2Ω.
+          The run log of the rotating-table lab: log each run, bring its frames, track the tracer and check the deflection against f&nbsp;=&nbsp;2Ω.
         </p>
       </section>
       <section className="rounded-card border border-line bg-sheet p-8">
@@ -93,13 +90,7 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
             key={fields.email.key}
             defaultValue={fields.email.initialValue}
           />
-          <TextField
-            label="Password"
-            error={fields.password.errors}
-            autoComplete="current-password"
-            type="password"
-            name={fields.password.name}
-          />
+          <TextField label="Password" error={fields.password.errors} autoComplete="current-password" type="password" name={fields.password.name} />
           <Button type="submit" disabled={navigation.state === "submitting"}>
             {navigation.state === "submitting" ? "Signing in…" : "Sign in"}
           </Button>

@@ -55,7 +55,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 export default function BookingDetail({ loaderData, actionData }: Route.ComponentProps) {
   const time = useLabTime();
   const { booking: b, user } = loaderData;
-  const outcome = (actionData ?? {});
+  const outcome = actionData ?? {};
   const isManager = user.role === "lab_manager";
   const open = b.state === "requested" || b.state === "approved";
   const canCancel = open && (isManager || b.requesterId === user.id) && new Date(b.end).getTime() > loaderData.now;
@@ -67,7 +67,10 @@ export default function BookingDetail({ loaderData, actionData }: Route.Componen
     ["Requested by", `${b.requesterName}, ${time.dateTime(b.createdAt)}`],
     ["Planned rate", b.plannedRateRpm === null ? null : `${b.plannedRateRpm} rpm`],
     ["Planned depth", b.plannedDepthCm === null ? null : `${b.plannedDepthCm} cm`],
-    ["Spin-up lead time", b.spinUpLeadMinutes === null ? null : `${formatDuration(b.spinUpLeadMinutes * 60)}, included before the slot the requester asked for`],
+    [
+      "Spin-up lead time",
+      b.spinUpLeadMinutes === null ? null : `${formatDuration(b.spinUpLeadMinutes * 60)}, included before the slot the requester asked for`,
+    ],
     ["Decided", b.decidedAt ? `${b.decidedByName}, ${time.dateTime(b.decidedAt)}` : null],
     ["Reason for declining", b.declineReason],
     ["Cancelled", b.cancelledAt ? time.dateTime(b.cancelledAt) : null],
@@ -92,12 +95,14 @@ export default function BookingDetail({ loaderData, actionData }: Route.Componen
       <div className="grid gap-6 lg:grid-cols-2">
         <Card title="The booking">
           <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
-            {rows.filter(([, v]) => v).map(([k, v]) => (
-              <div key={k} className="contents">
-                <dt className="font-bold">{k}</dt>
-                <dd>{v}</dd>
-              </div>
-            ))}
+            {rows
+              .filter(([, v]) => v)
+              .map(([k, v]) => (
+                <div key={k} className="contents">
+                  <dt className="font-bold">{k}</dt>
+                  <dd>{v}</dd>
+                </div>
+              ))}
           </dl>
         </Card>
         {(isManager && b.state === "requested") || canCancel ? (
@@ -106,17 +111,29 @@ export default function BookingDetail({ loaderData, actionData }: Route.Componen
               {isManager && b.state === "requested" ? (
                 <>
                   <Form method="post">
-                    <Button type="submit" name="intent" value="approve">Approve booking</Button>
+                    <Button type="submit" name="intent" value="approve">
+                      Approve booking
+                    </Button>
                   </Form>
                   <Form method="post" className="flex flex-col gap-3">
-                    <TextField label="Reason for declining" name="reason" error={outcome.reasonError} maxLength={500} hint="The requester reads this in the e-mail." />
-                    <Button tone="danger" type="submit" name="intent" value="decline">Decline booking</Button>
+                    <TextField
+                      label="Reason for declining"
+                      name="reason"
+                      error={outcome.reasonError}
+                      maxLength={500}
+                      hint="The requester reads this in the e-mail."
+                    />
+                    <Button tone="danger" type="submit" name="intent" value="decline">
+                      Decline booking
+                    </Button>
                   </Form>
                 </>
               ) : null}
               {canCancel ? (
                 <Form method="post">
-                  <Button tone="quiet" type="submit" name="intent" value="cancel">Cancel booking</Button>
+                  <Button tone="quiet" type="submit" name="intent" value="cancel">
+                    Cancel booking
+                  </Button>
                 </Form>
               ) : null}
             </div>

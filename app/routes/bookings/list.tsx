@@ -40,7 +40,6 @@ export const links: Route.LinksFunction = () => [
   { rel: "stylesheet", href: weekStyles },
 ];
 
-
 /** "2026-12-03" plus n calendar days. */
 function addDays(day: string, n: number) {
   const [y, m, d] = day.split("-").map(Number) as [number, number, number];
@@ -69,7 +68,11 @@ export async function loader({ request }: Route.LoaderArgs) {
   const weekItemId = Number(url.searchParams.get("item")) || bookable.find((i) => i.kind === "table")?.id || bookable[0]?.id || 0;
   const weekParam = url.searchParams.get("week");
   // The week runs Monday 00:00 to Monday 00:00 on the lab's clock.
-  const weekStart = mondayOf(weekParam && /^\d{4}-\d{2}-\d{2}$/.test(weekParam) && !Number.isNaN(Date.parse(`${weekParam}T12:00:00Z`)) ? weekParam : zonedDay(new Date(), settings.timeZone));
+  const weekStart = mondayOf(
+    weekParam && /^\d{4}-\d{2}-\d{2}$/.test(weekParam) && !Number.isNaN(Date.parse(`${weekParam}T12:00:00Z`))
+      ? weekParam
+      : zonedDay(new Date(), settings.timeZone),
+  );
   const weekFrom = fromZonedInput(`${weekStart}T00:00`, settings.timeZone)!;
   const weekTo = fromZonedInput(`${addDays(weekStart, 7)}T00:00`, settings.timeZone)!;
   const weekRows = weekItemId
@@ -106,14 +109,29 @@ export async function action({ request }: Route.ActionArgs) {
       const time = timeFormat(await getLabTimeZone());
       try {
         const { booking, mail } = await createBooking(
-          { equipmentId: v.equipmentId, start: fromZonedInput(v.start, time.zone) ?? new Date(Number.NaN), end: fromZonedInput(v.end, time.zone) ?? new Date(Number.NaN), purpose: v.purpose, plannedRateRpm: v.plannedRateRpm, plannedDepthM: v.plannedDepthCm === undefined ? undefined : v.plannedDepthCm / 100, addSpinUpLead: v.addSpinUpLead },
+          {
+            equipmentId: v.equipmentId,
+            start: fromZonedInput(v.start, time.zone) ?? new Date(Number.NaN),
+            end: fromZonedInput(v.end, time.zone) ?? new Date(Number.NaN),
+            purpose: v.purpose,
+            plannedRateRpm: v.plannedRateRpm,
+            plannedDepthM: v.plannedDepthCm === undefined ? undefined : v.plannedDepthCm / 100,
+            addSpinUpLead: v.addSpinUpLead,
+          },
           user,
         );
-        return data<Outcome>({ request: submission.reply({ resetForm: true }), notice: `Booking #${booking.id} requested for ${time.range(booking.startAt, booking.endAt)}. The lab managers have been told.`, ...mailNote(mail, "the lab managers") });
+        return data<Outcome>({
+          request: submission.reply({ resetForm: true }),
+          notice: `Booking #${booking.id} requested for ${time.range(booking.startAt, booking.endAt)}. The lab managers have been told.`,
+          ...mailNote(mail, "the lab managers"),
+        });
       } catch (err) {
         if (err instanceof BookingError) {
           const field = err.field && ["equipmentId", "start", "end", "addSpinUpLead"].includes(err.field) ? err.field : null;
-          return data<Outcome>({ request: submission.reply(field ? { fieldErrors: { [field]: [err.message] } } : { formErrors: [err.message] }) }, { status: err.status });
+          return data<Outcome>(
+            { request: submission.reply(field ? { fieldErrors: { [field]: [err.message] } } : { formErrors: [err.message] }) },
+            { status: err.status },
+          );
         }
         throw err;
       }
@@ -154,7 +172,7 @@ function StateTag({ state }: { state: BookingState }) {
 
 export default function Bookings({ loaderData, actionData }: Route.ComponentProps) {
   const time = useLabTime();
-  const outcome = (actionData ?? {});
+  const outcome = actionData ?? {};
   const { user, items, bookings, week } = loaderData;
   const isManager = user.role === "lab_manager";
   const bookable = items.filter((i) => i.status === "in_service");
@@ -186,7 +204,9 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
         {outcome.problem ? <Notice kind="error">{outcome.problem}</Notice> : null}
         {outcome.feedUrl ? (
           <Notice kind="info" title="Calendar feed address">
-            <code className="break-all" data-testid="feed-url">{outcome.feedUrl}</code>
+            <code className="break-all" data-testid="feed-url">
+              {outcome.feedUrl}
+            </code>
           </Notice>
         ) : null}
       </div>
@@ -196,7 +216,14 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
           <Form method="post" className="flex flex-col gap-4" {...getFormProps(form)}>
             <input type="hidden" name="intent" value="request" />
             <FormProblem errors={form.errors} />
-            <SelectField label="Equipment" name={fields.equipmentId.name} key={fields.equipmentId.key} defaultValue={chosen} error={fields.equipmentId.errors} onChange={(e) => setChosen(e.target.value)}>
+            <SelectField
+              label="Equipment"
+              name={fields.equipmentId.name}
+              key={fields.equipmentId.key}
+              defaultValue={chosen}
+              error={fields.equipmentId.errors}
+              onChange={(e) => setChosen(e.target.value)}
+            >
               <option value="">Choose…</option>
               {bookable.map((i) => (
                 <option key={i.id} value={i.id}>
@@ -204,14 +231,56 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                 </option>
               ))}
             </SelectField>
-            <TextField label="Start" type="datetime-local" name={fields.start.name} key={fields.start.key} defaultValue={fields.start.initialValue} error={fields.start.errors} hint={`Lab time (${time.zone}).`} onChange={(e) => setStart(e.target.value)} />
-            <TextField label="End" type="datetime-local" name={fields.end.name} key={fields.end.key} defaultValue={fields.end.initialValue} error={fields.end.errors} />
-            <TextAreaField label="Purpose" name={fields.purpose.name} key={fields.purpose.key} defaultValue={fields.purpose.initialValue} error={fields.purpose.errors} maxLength={300} placeholder="e.g. Second-year lab, inertial circles" />
+            <TextField
+              label="Start"
+              type="datetime-local"
+              name={fields.start.name}
+              key={fields.start.key}
+              defaultValue={fields.start.initialValue}
+              error={fields.start.errors}
+              hint={`Lab time (${time.zone}).`}
+              onChange={(e) => setStart(e.target.value)}
+            />
+            <TextField
+              label="End"
+              type="datetime-local"
+              name={fields.end.name}
+              key={fields.end.key}
+              defaultValue={fields.end.initialValue}
+              error={fields.end.errors}
+            />
+            <TextAreaField
+              label="Purpose"
+              name={fields.purpose.name}
+              key={fields.purpose.key}
+              defaultValue={fields.purpose.initialValue}
+              error={fields.purpose.errors}
+              maxLength={300}
+              placeholder="e.g. Second-year lab, inertial circles"
+            />
             {chosenItem?.kind === "table" ? (
               <>
                 <p className="text-sm text-muted">For a run, give the planned rate and depth: Tankside works out how long the water needs to spin up.</p>
-                <TextField label="Planned rate" name={fields.plannedRateRpm.name} key={fields.plannedRateRpm.key} defaultValue={fields.plannedRateRpm.initialValue as string | undefined} error={fields.plannedRateRpm.errors} unit="rpm" inputMode="decimal" onChange={(e) => setRate(e.target.value)} />
-                <TextField label="Planned water depth" name={fields.plannedDepthCm.name} key={fields.plannedDepthCm.key} defaultValue={fields.plannedDepthCm.initialValue as string | undefined} error={fields.plannedDepthCm.errors} unit="cm" inputMode="decimal" onChange={(e) => setDepth(e.target.value)} />
+                <TextField
+                  label="Planned rate"
+                  name={fields.plannedRateRpm.name}
+                  key={fields.plannedRateRpm.key}
+                  defaultValue={fields.plannedRateRpm.initialValue as string | undefined}
+                  error={fields.plannedRateRpm.errors}
+                  unit="rpm"
+                  inputMode="decimal"
+                  onChange={(e) => setRate(e.target.value)}
+                />
+                <TextField
+                  label="Planned water depth"
+                  name={fields.plannedDepthCm.name}
+                  key={fields.plannedDepthCm.key}
+                  defaultValue={fields.plannedDepthCm.initialValue as string | undefined}
+                  error={fields.plannedDepthCm.errors}
+                  unit="cm"
+                  inputMode="decimal"
+                  onChange={(e) => setDepth(e.target.value)}
+                />
                 {leadS !== null ? (
                   <div data-testid="spin-up-proposal">
                     <Notice kind="info" title="Spin-up lead time">
@@ -224,11 +293,17 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                   <input type="checkbox" name={fields.addSpinUpLead.name} className="h-6 w-6" defaultChecked={fields.addSpinUpLead.initialValue === "on"} />
                   Start earlier by the spin-up lead time
                 </label>
-                {fields.addSpinUpLead.errors ? <p className="text-sm font-bold text-disagrees-ink" role="alert">{fields.addSpinUpLead.errors[0]}</p> : null}
+                {fields.addSpinUpLead.errors ? (
+                  <p className="text-sm font-bold text-disagrees-ink" role="alert">
+                    {fields.addSpinUpLead.errors[0]}
+                  </p>
+                ) : null}
                 <Notice kind="caution">{tableBookingCaution}</Notice>
               </>
             ) : null}
-            <Button type="submit" disabled={navigation.state === "submitting"}>Request booking</Button>
+            <Button type="submit" disabled={navigation.state === "submitting"}>
+              Request booking
+            </Button>
           </Form>
         </Card>
 
@@ -236,13 +311,19 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
           <Form method="get" className="mb-4 flex flex-wrap items-end gap-3" preventScrollReset>
             <div className="min-w-64 flex-1">
               <SelectField label="Item" name="item" defaultValue={String(week.itemId || "")}>
-                {items.filter((i) => i.status !== "retired").map((i) => (
-                  <option key={i.id} value={i.id}>{i.name}</option>
-                ))}
+                {items
+                  .filter((i) => i.status !== "retired")
+                  .map((i) => (
+                    <option key={i.id} value={i.id}>
+                      {i.name}
+                    </option>
+                  ))}
               </SelectField>
             </div>
             <input type="hidden" name="week" value={week.start} />
-            <Button tone="plain" type="submit">Show</Button>
+            <Button tone="plain" type="submit">
+              Show
+            </Button>
           </Form>
           {week.itemId ? <BookingWeek bookings={week.bookings} week={week.start} itemId={week.itemId} /> : <p>No equipment to show.</p>}
           <p className="mt-2 text-sm text-muted">Solid: approved. Hatched outline: requested, not yet decided. Select a booking to open it.</p>
@@ -254,13 +335,17 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
           <SelectField label="Equipment" name="equipmentId" defaultValue={loaderData.filter.equipmentId ?? ""}>
             <option value="">Any</option>
             {items.map((i) => (
-              <option key={i.id} value={i.id}>{i.name}</option>
+              <option key={i.id} value={i.id}>
+                {i.name}
+              </option>
             ))}
           </SelectField>
           <SelectField label="State" name="state" defaultValue={loaderData.filter.state ?? ""}>
             <option value="">Any</option>
             {bookingStates.map((s) => (
-              <option key={s} value={s}>{bookingStateLabels[s]}</option>
+              <option key={s} value={s}>
+                {bookingStateLabels[s]}
+              </option>
             ))}
           </SelectField>
           <TextField label="From" type="date" name="from" defaultValue={loaderData.filter.from ?? ""} hint="Default: a week ago" />
@@ -269,7 +354,9 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
             <label className="flex min-h-12 items-center gap-2 font-bold">
               <input type="checkbox" name="mine" value="1" defaultChecked={loaderData.filter.mine === "1"} className="h-6 w-6" /> Only mine
             </label>
-            <Button tone="plain" type="submit">Filter</Button>
+            <Button tone="plain" type="submit">
+              Filter
+            </Button>
           </div>
         </Form>
         {loaderData.filterProblem ? <Notice kind="error">{loaderData.filterProblem}</Notice> : null}
@@ -295,7 +382,9 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                   return (
                     <tr key={b.id} className="border-b border-line align-top" data-testid={`booking-${b.id}`}>
                       <td className="py-3 pr-3">
-                        <Link to={`/bookings/${b.id}`} className="font-bold">#{b.id}</Link>
+                        <Link to={`/bookings/${b.id}`} className="font-bold">
+                          #{b.id}
+                        </Link>
                         <p className="text-sm text-muted">{b.requesterName}</p>
                       </td>
                       <td className="py-3 pr-3">{b.equipmentName}</td>
@@ -314,23 +403,43 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                             <>
                               <Form method="post">
                                 <input type="hidden" name="bookingId" value={b.id} />
-                                <Button type="submit" name="intent" value="approve">Approve</Button>
+                                <Button type="submit" name="intent" value="approve">
+                                  Approve
+                                </Button>
                               </Form>
                               <Form method="post" className="flex flex-wrap items-center gap-2">
                                 <input type="hidden" name="bookingId" value={b.id} />
-                                <label className="sr-only" htmlFor={`reason-${b.id}`}>Reason for declining booking #{b.id}</label>
-                                <input id={`reason-${b.id}`} name="reason" required minLength={3} maxLength={500} placeholder="Reason" className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-3" />
-                                <Button tone="danger" type="submit" name="intent" value="decline">Decline</Button>
+                                <label className="sr-only" htmlFor={`reason-${b.id}`}>
+                                  Reason for declining booking #{b.id}
+                                </label>
+                                <input
+                                  id={`reason-${b.id}`}
+                                  name="reason"
+                                  required
+                                  minLength={3}
+                                  maxLength={500}
+                                  placeholder="Reason"
+                                  className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-3"
+                                />
+                                <Button tone="danger" type="submit" name="intent" value="decline">
+                                  Decline
+                                </Button>
                               </Form>
                             </>
                           ) : null}
                           {canCancel ? (
                             <Form method="post">
                               <input type="hidden" name="bookingId" value={b.id} />
-                              <Button tone="quiet" type="submit" name="intent" value="cancel">Cancel booking</Button>
+                              <Button tone="quiet" type="submit" name="intent" value="cancel">
+                                Cancel booking
+                              </Button>
                             </Form>
                           ) : null}
-                          {b.state === "approved" ? <ButtonA tone="quiet" href={`/api/v1/bookings/${b.id}/ics`}>.ics</ButtonA> : null}
+                          {b.state === "approved" ? (
+                            <ButtonA tone="quiet" href={`/api/v1/bookings/${b.id}/ics`}>
+                              .ics
+                            </ButtonA>
+                          ) : null}
                         </div>
                       </td>
                     </tr>
@@ -344,7 +453,8 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
 
       <Card title="Your approved bookings in your calendar" className="mt-6">
         <p className="mb-3">
-          Calendar apps cannot sign in, so your feed has its own secret address. Anyone with the address sees your approved bookings; make a new one to shut the old one out.
+          Calendar apps cannot sign in, so your feed has its own secret address. Anyone with the address sees your approved bookings; make a new one to shut the
+          old one out.
         </p>
         {loaderData.feed ? (
           <p className="mb-3 text-sm text-muted">
@@ -354,11 +464,15 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
         ) : null}
         <div className="flex flex-wrap gap-3">
           <Form method="post">
-            <Button tone="plain" type="submit" name="intent" value="feed">{loaderData.feed ? "Make a new feed address" : "Make my feed address"}</Button>
+            <Button tone="plain" type="submit" name="intent" value="feed">
+              {loaderData.feed ? "Make a new feed address" : "Make my feed address"}
+            </Button>
           </Form>
           {loaderData.feed ? (
             <Form method="post">
-              <Button tone="danger" type="submit" name="intent" value="feed-revoke">Stop the feed</Button>
+              <Button tone="danger" type="submit" name="intent" value="feed-revoke">
+                Stop the feed
+              </Button>
             </Form>
           ) : null}
         </div>

@@ -18,7 +18,9 @@ import { StandingTag, calibrationResult } from "~/components/calibration-facts";
 import { CalibrationUploader } from "~/components/calibration-uploader";
 import { formText } from "~/lib/form-text";
 
-export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data ? `${calibrationKindLabels[data.record.kind]} #${data.record.id}` : "Calibration"} · Tankside` }];
+export const meta: Route.MetaFunction = ({ data }) => [
+  { title: `${data ? `${calibrationKindLabels[data.record.kind]} #${data.record.id}` : "Calibration"} · Tankside` },
+];
 export const links: Route.LinksFunction = () => [
   { rel: "stylesheet", href: uppyCore },
   { rel: "stylesheet", href: uppyDashboard },
@@ -59,7 +61,13 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
   const signed = Boolean(r.signedOffAt);
   const line =
     r.kind === "rate" && r.slope !== null
-      ? { slope: r.slope, intercept: r.interceptRpm!, slopeStdError: r.slopeStdError!, interceptStdError: r.interceptStdErrorRpm!, slopeInterceptCovariance: r.slopeInterceptCovarianceRpm! }
+      ? {
+          slope: r.slope,
+          intercept: r.interceptRpm!,
+          slopeStdError: r.slopeStdError!,
+          interceptStdError: r.interceptStdErrorRpm!,
+          slopeInterceptCovariance: r.slopeInterceptCovarianceRpm!,
+        }
       : null;
   const rows: [string, string | null][] = [
     ["Item", r.equipmentName],
@@ -78,10 +86,14 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
         actions={
           <>
             {!signed && loaderData.canRecord ? <ButtonLink to={`/calibrations/${r.id}/edit`}>Edit</ButtonLink> : null}
-            {signed && loaderData.canRecord ? <ButtonLink to={`/calibrations/new?equipmentId=${r.equipmentId}&kind=${r.kind}`}>Record a new one</ButtonLink> : null}
+            {signed && loaderData.canRecord ? (
+              <ButtonLink to={`/calibrations/new?equipmentId=${r.equipmentId}&kind=${r.kind}`}>Record a new one</ButtonLink>
+            ) : null}
             {!signed && loaderData.canSign ? (
               <Form method="post">
-                <Button type="submit" name="intent" value="sign-off">Sign off</Button>
+                <Button type="submit" name="intent" value="sign-off">
+                  Sign off
+                </Button>
               </Form>
             ) : null}
           </>
@@ -90,20 +102,38 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
       <div className="mb-4 flex flex-col gap-3">
         {outcome.notice ? <Notice kind="success">{outcome.notice}</Notice> : null}
         {outcome.problem ? <Notice kind="error">{outcome.problem}</Notice> : null}
-        {r.standing === "past_due" ? <Notice kind="error" title="Past due">This record is no longer in force. Runs made with {r.equipmentName} are flagged until a new record is signed off.</Notice> : null}
-        {r.standing === "superseded" ? <Notice kind="info" title="Superseded">A later signed record of this kind for {r.equipmentName} is the one that counts.</Notice> : null}
-        {!signed ? <Notice kind="caution" title="Awaiting sign-off">Not in force until a lab manager signs it off.</Notice> : null}
-        {r.kind === "rate" && r.passed === false ? <Notice kind="error" title="Fails the tolerance">At least one reading is more than {r.tolerancePct} % off its set rate. Check the drive before relying on the rate.</Notice> : null}
+        {r.standing === "past_due" ? (
+          <Notice kind="error" title="Past due">
+            This record is no longer in force. Runs made with {r.equipmentName} are flagged until a new record is signed off.
+          </Notice>
+        ) : null}
+        {r.standing === "superseded" ? (
+          <Notice kind="info" title="Superseded">
+            A later signed record of this kind for {r.equipmentName} is the one that counts.
+          </Notice>
+        ) : null}
+        {!signed ? (
+          <Notice kind="caution" title="Awaiting sign-off">
+            Not in force until a lab manager signs it off.
+          </Notice>
+        ) : null}
+        {r.kind === "rate" && r.passed === false ? (
+          <Notice kind="error" title="Fails the tolerance">
+            At least one reading is more than {r.tolerancePct} % off its set rate. Check the drive before relying on the rate.
+          </Notice>
+        ) : null}
       </div>
       <div className="grid gap-6 lg:grid-cols-2">
         <Card title="The record">
           <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
-            {rows.filter(([, v]) => v).map(([k, v]) => (
-              <div key={k} className="contents">
-                <dt className="font-bold">{k}</dt>
-                <dd>{v}</dd>
-              </div>
-            ))}
+            {rows
+              .filter(([, v]) => v)
+              .map(([k, v]) => (
+                <div key={k} className="contents">
+                  <dt className="font-bold">{k}</dt>
+                  <dd>{v}</dd>
+                </div>
+              ))}
           </dl>
           {r.notes ? <p className="mt-4 whitespace-pre-wrap">{r.notes}</p> : null}
         </Card>
@@ -125,7 +155,10 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
                     <tr key={i} className="border-b border-line">
                       <td className="py-1 pr-3 font-mono">{x.setRpm}</td>
                       <td className="py-1 pr-3 font-mono">{x.measuredRpm}</td>
-                      <td className={`py-1 pr-3 font-mono ${Math.abs(pct) > (r.tolerancePct ?? 1) ? "font-bold text-disagrees-ink" : ""}`}>{pct >= 0 ? "+" : ""}{formatNumber(pct, 3)} %</td>
+                      <td className={`py-1 pr-3 font-mono ${Math.abs(pct) > (r.tolerancePct ?? 1) ? "font-bold text-disagrees-ink" : ""}`}>
+                        {pct >= 0 ? "+" : ""}
+                        {formatNumber(pct, 3)} %
+                      </td>
                       <td className="py-1 font-mono">{formatNumber(x.measuredRpm - (line.slope * x.setRpm + line.intercept), 3)}</td>
                     </tr>
                   );
@@ -134,15 +167,21 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
             </table>
             <dl className="mt-4 grid grid-cols-[auto_1fr] gap-x-6 gap-y-1 text-sm">
               <dt className="font-bold">Slope a</dt>
-              <dd className="font-mono">{formatNumber(line.slope, 6)} ± {formatNumber(line.slopeStdError, 2)}</dd>
+              <dd className="font-mono">
+                {formatNumber(line.slope, 6)} ± {formatNumber(line.slopeStdError, 2)}
+              </dd>
               <dt className="font-bold">Intercept b</dt>
-              <dd className="font-mono">{formatNumber(line.intercept, 4)} ± {formatNumber(line.interceptStdError, 2)} rpm</dd>
+              <dd className="font-mono">
+                {formatNumber(line.intercept, 4)} ± {formatNumber(line.interceptStdError, 2)} rpm
+              </dd>
               <dt className="font-bold">Residual SD</dt>
               <dd className="font-mono">{formatNumber(r.residualSdRpm, 3)} rpm</dd>
               <dt className="font-bold">Largest residual</dt>
               <dd className="font-mono">{formatNumber(r.maxResidualRpm, 3)} rpm</dd>
               <dt className="font-bold">Largest deviation</dt>
-              <dd className="font-mono">{formatNumber(r.maxDeviationRpm, 3)} rpm ({formatNumber(r.maxDeviationPct, 3)} %)</dd>
+              <dd className="font-mono">
+                {formatNumber(r.maxDeviationRpm, 3)} rpm ({formatNumber(r.maxDeviationPct, 3)} %)
+              </dd>
               <dt className="font-bold">True rate at 10 rpm set</dt>
               <dd className="font-mono">
                 {(() => {
@@ -158,14 +197,23 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
             <ul className="mb-4 flex flex-col gap-2">
               {r.attachments.map((a) => (
                 <li key={a.id}>
-                  <a href={a.url} target="_blank" rel="noreferrer">{a.originalName}</a> <span className="text-sm text-muted">({a.contentType}, {Math.ceil(a.sizeBytes / 1024)} kB)</span>
+                  <a href={a.url} target="_blank" rel="noreferrer">
+                    {a.originalName}
+                  </a>{" "}
+                  <span className="text-sm text-muted">
+                    ({a.contentType}, {Math.ceil(a.sizeBytes / 1024)} kB)
+                  </span>
                 </li>
               ))}
             </ul>
           ) : (
             <p className="mb-4 text-muted">None attached.</p>
           )}
-          {!signed && loaderData.canRecord ? <CalibrationUploader calibrationId={r.id} /> : signed ? <p className="text-sm text-muted">Signed records take no new attachments.</p> : null}
+          {!signed && loaderData.canRecord ? (
+            <CalibrationUploader calibrationId={r.id} />
+          ) : signed ? (
+            <p className="text-sm text-muted">Signed records take no new attachments.</p>
+          ) : null}
         </Card>
         <Card title="History">
           <RunHistoryList entries={loaderData.history} events={["created", "attachment", "signedOff"]} testId="calibration-history" />

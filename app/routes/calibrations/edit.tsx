@@ -15,7 +15,9 @@ import { Card, PageHeader } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
 import { Notice, FormProblem } from "~/components/ui/notice";
 
-export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.record ? `Edit calibration #${data.record.id}` : "Record a calibration"} · Tankside` }];
+export const meta: Route.MetaFunction = ({ data }) => [
+  { title: `${data?.record ? `Edit calibration #${data.record.id}` : "Record a calibration"} · Tankside` },
+];
 
 const ROWS = 8;
 
@@ -32,7 +34,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   }
   return {
     record,
-    items: items.filter((i) => i.status !== "retired").map((i) => ({ id: i.id, name: i.name, kind: i.kind, nominalFrameRateFps: i.nominalFrameRateFps, rateTolerancePct: i.rateTolerancePct })),
+    items: items
+      .filter((i) => i.status !== "retired")
+      .map((i) => ({ id: i.id, name: i.name, kind: i.kind, nominalFrameRateFps: i.nominalFrameRateFps, rateTolerancePct: i.rateTolerancePct })),
     intervals: { rate: intervalDaysFor("rate", settings), scale: intervalDaysFor("scale", settings), timing: intervalDaysFor("timing", settings) },
     preset: { equipmentId: url.searchParams.get("equipmentId") ?? "", kind: url.searchParams.get("kind") ?? "" },
     today: toDayString(new Date(), settings.timeZone),
@@ -49,7 +53,10 @@ export async function action({ request, params }: Route.ActionArgs) {
     return redirect(`/calibrations/${cal.id}`);
   } catch (err) {
     if (err instanceof CalibrationError) {
-      const reply = err.field && err.field in submission.value ? submission.reply({ fieldErrors: { [err.field]: [err.message] } }) : submission.reply({ formErrors: [err.message] });
+      const reply =
+        err.field && err.field in submission.value
+          ? submission.reply({ fieldErrors: { [err.field]: [err.message] } })
+          : submission.reply({ formErrors: [err.message] });
       return data(reply, { status: err.status });
     }
     throw err;
@@ -80,7 +87,8 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
           // Conform types this field as text because the schema preprocesses it; the rows are read back by name.
           readings: (record.readings ?? []).map((r) => ({ setRpm: String(r.setRpm), measuredRpm: String(r.measuredRpm) })) as unknown as string,
           knownLengthMm: record.knownLengthM === null ? undefined : String(Number((record.knownLengthM * 1000).toPrecision(8))),
-          knownLengthUncertaintyMm: record.knownLengthUncertaintyM === null ? undefined : String(Number((record.knownLengthUncertaintyM * 1000).toPrecision(8))),
+          knownLengthUncertaintyMm:
+            record.knownLengthUncertaintyM === null ? undefined : String(Number((record.knownLengthUncertaintyM * 1000).toPrecision(8))),
           lengthPx: record.lengthPx === null ? undefined : String(record.lengthPx),
           lengthUncertaintyPx: record.lengthUncertaintyPx === null ? undefined : String(record.lengthUncertaintyPx),
           nominalFrameRateFps: record.nominalFrameRateFps === null ? undefined : String(record.nominalFrameRateFps),
@@ -116,7 +124,9 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
           A signed record is kept exactly as it was signed. Record a new calibration to supersede it.
         </Notice>
         <div className="mt-4 flex gap-3">
-          <ButtonLink to={`/calibrations/new?equipmentId=${record.equipmentId}&kind=${record.kind}`} tone="primary">Record a new calibration</ButtonLink>
+          <ButtonLink to={`/calibrations/new?equipmentId=${record.equipmentId}&kind=${record.kind}`} tone="primary">
+            Record a new calibration
+          </ButtonLink>
           <ButtonLink to={`/calibrations/${record.id}`}>Back to the record</ButtonLink>
         </div>
       </div>
@@ -125,43 +135,79 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
 
   return (
     <div>
-      <PageHeader title={record ? `Edit calibration #${record.id}` : "Record a calibration"} subtitle="A lab manager signs the record off; after that it never changes." />
+      <PageHeader
+        title={record ? `Edit calibration #${record.id}` : "Record a calibration"}
+        subtitle="A lab manager signs the record off; after that it never changes."
+      />
       <Card>
         <Form method="post" className="grid gap-5 md:grid-cols-2" {...getFormProps(form)}>
           <FormProblem errors={form.errors} className="md:col-span-2" />
-          <SelectField label="Kind" name={fields.kind.name} defaultValue={kind} error={fields.kind.errors} disabled={Boolean(record)} onChange={(e) => setKind(e.target.value as CalibrationKind)}>
+          <SelectField
+            label="Kind"
+            name={fields.kind.name}
+            defaultValue={kind}
+            error={fields.kind.errors}
+            disabled={Boolean(record)}
+            onChange={(e) => setKind(e.target.value as CalibrationKind)}
+          >
             {calibrationKinds.map((k) => (
-              <option key={k} value={k}>{calibrationKindLabels[k]}</option>
+              <option key={k} value={k}>
+                {calibrationKindLabels[k]}
+              </option>
             ))}
           </SelectField>
           {record ? <input type="hidden" name={fields.kind.name} value={record.kind} /> : null}
-          <SelectField label={kind === "rate" ? "Table" : "Camera"} name={fields.equipmentId.name} key={`${fields.equipmentId.key}-${kind}`} defaultValue={fields.equipmentId.initialValue as string | undefined} error={fields.equipmentId.errors} disabled={Boolean(record)}>
+          <SelectField
+            label={kind === "rate" ? "Table" : "Camera"}
+            name={fields.equipmentId.name}
+            key={`${fields.equipmentId.key}-${kind}`}
+            defaultValue={fields.equipmentId.initialValue as string | undefined}
+            error={fields.equipmentId.errors}
+            disabled={Boolean(record)}
+          >
             <option value="">Choose…</option>
             {candidates.map((i) => (
-              <option key={i.id} value={i.id}>{i.name}</option>
+              <option key={i.id} value={i.id}>
+                {i.name}
+              </option>
             ))}
           </SelectField>
           {record ? <input type="hidden" name={fields.equipmentId.name} value={record.equipmentId} /> : null}
           {text("performedOn", "Calibration date", { type: "date", max: loaderData.today })}
-          {text("dueOn", "Due date", { type: "date", hint: `Leave empty for the lab's interval: ${loaderData.intervals[kind]} days after the calibration date.` })}
+          {text("dueOn", "Due date", {
+            type: "date",
+            hint: `Leave empty for the lab's interval: ${loaderData.intervals[kind]} days after the calibration date.`,
+          })}
 
           {kind === "rate" ? (
             <>
               <div className="md:col-span-2">
-                <SelectField label="Rate meter used" name={fields.meterId.name} key={fields.meterId.key} defaultValue={fields.meterId.initialValue as string | undefined} error={fields.meterId.errors}>
+                <SelectField
+                  label="Rate meter used"
+                  name={fields.meterId.name}
+                  key={fields.meterId.key}
+                  defaultValue={fields.meterId.initialValue as string | undefined}
+                  error={fields.meterId.errors}
+                >
                   <option value="">Choose…</option>
                   {meters.map((m) => (
-                    <option key={m.id} value={m.id}>{m.name}</option>
+                    <option key={m.id} value={m.id}>
+                      {m.name}
+                    </option>
                   ))}
                 </SelectField>
               </div>
               <fieldset className="md:col-span-2">
                 <legend className="font-bold">Readings</legend>
                 <p className="mb-2 text-sm text-muted">
-                  At {MIN_RATE_READINGS} or more set rates across the range you use; leave spare rows empty. Tankside fits measured = a·set + b and
-                  checks every reading against the table's tolerance.
+                  At {MIN_RATE_READINGS} or more set rates across the range you use; leave spare rows empty. Tankside fits measured = a·set + b and checks every
+                  reading against the table's tolerance.
                 </p>
-                {fields.readings.errors ? <p className="mb-2 text-sm font-bold text-disagrees-ink" role="alert">{fields.readings.errors[0]}</p> : null}
+                {fields.readings.errors ? (
+                  <p className="mb-2 text-sm font-bold text-disagrees-ink" role="alert">
+                    {fields.readings.errors[0]}
+                  </p>
+                ) : null}
                 <table className="text-left">
                   <thead>
                     <tr>
@@ -177,11 +223,27 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
                         <tr key={i} className="align-top">
                           <td className="py-1 pr-3">{i + 1}</td>
                           <td className="py-1 pr-3">
-                            <input aria-label={`Set rate ${i + 1}`} name={`readings[${i}].setRpm`} defaultValue={rows[i]?.setRpm ?? ""} inputMode="decimal" className="min-h-12 w-32 rounded-lg border-2 border-line-strong bg-sheet px-3" />
+                            <input
+                              aria-label={`Set rate ${i + 1}`}
+                              name={`readings[${i}].setRpm`}
+                              defaultValue={rows[i]?.setRpm ?? ""}
+                              inputMode="decimal"
+                              className="min-h-12 w-32 rounded-lg border-2 border-line-strong bg-sheet px-3"
+                            />
                           </td>
                           <td className="py-1">
-                            <input aria-label={`Measured rate ${i + 1}`} name={`readings[${i}].measuredRpm`} defaultValue={rows[i]?.measuredRpm ?? ""} inputMode="decimal" className="min-h-12 w-32 rounded-lg border-2 border-line-strong bg-sheet px-3" />
-                            {rowError ? <p className="text-sm font-bold text-disagrees-ink" role="alert">{rowError}</p> : null}
+                            <input
+                              aria-label={`Measured rate ${i + 1}`}
+                              name={`readings[${i}].measuredRpm`}
+                              defaultValue={rows[i]?.measuredRpm ?? ""}
+                              inputMode="decimal"
+                              className="min-h-12 w-32 rounded-lg border-2 border-line-strong bg-sheet px-3"
+                            />
+                            {rowError ? (
+                              <p className="text-sm font-bold text-disagrees-ink" role="alert">
+                                {rowError}
+                              </p>
+                            ) : null}
                           </td>
                         </tr>
                       );
@@ -194,7 +256,11 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
 
           {kind === "scale" ? (
             <>
-              {text("knownLengthMm", "Known length", { unit: "mm", inputMode: "decimal", hint: "A ruler or target lying on the tank floor or the water surface you film." })}
+              {text("knownLengthMm", "Known length", {
+                unit: "mm",
+                inputMode: "decimal",
+                hint: "A ruler or target lying on the tank floor or the water surface you film.",
+              })}
               {text("knownLengthUncertaintyMm", "Its uncertainty", { unit: "mm", inputMode: "decimal" })}
               {text("lengthPx", "Its length in the image", { unit: "px", inputMode: "decimal" })}
               {text("lengthUncertaintyPx", "Uncertainty in the image", { unit: "px", inputMode: "decimal" })}
@@ -204,7 +270,10 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
           {kind === "timing" ? (
             <>
               {text("nominalFrameRateFps", "Nominal frame rate", { unit: "frames/s", inputMode: "decimal" })}
-              {text("frameIntervals", "Frame intervals counted", { inputMode: "numeric", hint: "Between two readings of a clock or rate meter filmed in view." })}
+              {text("frameIntervals", "Frame intervals counted", {
+                inputMode: "numeric",
+                hint: "Between two readings of a clock or rate meter filmed in view.",
+              })}
               {text("frameIntervalsUncertainty", "Uncertainty of the count", { unit: "intervals", inputMode: "decimal" })}
               {text("referenceElapsedS", "Elapsed time by the reference", { unit: "s", inputMode: "decimal" })}
               {text("referenceElapsedUncertaintyS", "Uncertainty of the elapsed time", { unit: "s", inputMode: "decimal" })}
@@ -212,7 +281,13 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
           ) : null}
 
           <div className="md:col-span-2">
-            <TextAreaField label="Notes" name={fields.notes.name} defaultValue={fields.notes.initialValue as string | undefined} error={fields.notes.errors} hint="Conditions, method, anything the next person should know." />
+            <TextAreaField
+              label="Notes"
+              name={fields.notes.name}
+              defaultValue={fields.notes.initialValue as string | undefined}
+              error={fields.notes.errors}
+              hint="Conditions, method, anything the next person should know."
+            />
           </div>
           <div className="md:col-span-2 flex gap-3">
             <Button type="submit">{record ? "Save changes" : "Save the record"}</Button>

@@ -28,14 +28,27 @@ export default function Calibrations({ loaderData }: Route.ComponentProps) {
   const { due, records } = loaderData;
   return (
     <div>
-      <PageHeader title="Calibrations" subtitle="Every record, with what is due or past due first." actions={loaderData.canRecord ? <ButtonLink to="/calibrations/new" tone="primary">Record a calibration</ButtonLink> : null} />
+      <PageHeader
+        title="Calibrations"
+        subtitle="Every record, with what is due or past due first."
+        actions={
+          loaderData.canRecord ? (
+            <ButtonLink to="/calibrations/new" tone="primary">
+              Record a calibration
+            </ButtonLink>
+          ) : null
+        }
+      />
       {due.length ? (
         <div className="mb-6">
           <Notice kind={due.some((d) => d.pastDue) ? "error" : "caution"} title={`${due.length} due within ${loaderData.reminderDays} days or past due`}>
             <ul className="list-disc pl-5">
               {due.map((d) => (
                 <li key={d.id}>
-                  <Link to={`/calibrations/${d.id}`}>{calibrationKindLabels[d.kind]} of {d.equipmentName}</Link>: {d.pastDue ? `past due since ${time.date(d.dueAt)}` : `due ${time.date(d.dueAt)}`}
+                  <Link to={`/calibrations/${d.id}`}>
+                    {calibrationKindLabels[d.kind]} of {d.equipmentName}
+                  </Link>
+                  : {d.pastDue ? `past due since ${time.date(d.dueAt)}` : `due ${time.date(d.dueAt)}`}
                 </li>
               ))}
             </ul>
@@ -58,12 +71,23 @@ export default function Calibrations({ loaderData }: Route.ComponentProps) {
             <tbody>
               {records.map((r) => (
                 <tr key={r.id} className="border-b border-line align-top" data-testid={`calibration-${r.id}`}>
-                  <td className="py-3 pr-3"><Link to={`/calibrations/${r.id}`} className="font-bold">{calibrationKindLabels[r.kind]} #{r.id}</Link></td>
-                  <td className="py-3 pr-3"><Link to={`/equipment/${r.equipmentId}`}>{r.equipmentName}</Link></td>
-                  <td className="py-3 pr-3">{time.date(r.performedAt)}<p className="text-sm text-muted">{r.performedByName}</p></td>
+                  <td className="py-3 pr-3">
+                    <Link to={`/calibrations/${r.id}`} className="font-bold">
+                      {calibrationKindLabels[r.kind]} #{r.id}
+                    </Link>
+                  </td>
+                  <td className="py-3 pr-3">
+                    <Link to={`/equipment/${r.equipmentId}`}>{r.equipmentName}</Link>
+                  </td>
+                  <td className="py-3 pr-3">
+                    {time.date(r.performedAt)}
+                    <p className="text-sm text-muted">{r.performedByName}</p>
+                  </td>
                   <td className="py-3 pr-3">{time.date(r.dueAt)}</td>
                   <td className="py-3 pr-3 text-sm">{calibrationResult(r)}</td>
-                  <td className="py-3"><StandingTag standing={r.standing} /></td>
+                  <td className="py-3">
+                    <StandingTag standing={r.standing} />
+                  </td>
                 </tr>
               ))}
             </tbody>

@@ -18,7 +18,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   if (!item) throw notFound(request, "That piece of equipment");
   const [calibrations, bookings] = await Promise.all([
     equipmentCalibrationSummary(item.id, item.kind),
-    listBookings({ equipmentId: item.id, from: new Date(), limit: 20 }).then((rows) => serializeBookings(rows.filter((b) => b.state === "approved" || b.state === "requested"))),
+    listBookings({ equipmentId: item.id, from: new Date(), limit: 20 }).then((rows) =>
+      serializeBookings(rows.filter((b) => b.state === "approved" || b.state === "requested")),
+    ),
   ]);
   return { canEdit: user.role === "lab_manager", canRecord: user.role !== "instructor", item: serializeEquipment(item), calibrations, bookings };
 }
@@ -55,7 +57,12 @@ export default function EquipmentDetail({ loaderData }: Route.ComponentProps) {
           </dl>
           {item.notes ? <p className="mt-4 whitespace-pre-wrap">{item.notes}</p> : null}
         </Card>
-        <EquipmentCalibrations itemId={item.id} kinds={loaderData.calibrations.kinds} records={loaderData.calibrations.records} canRecord={loaderData.canRecord} />
+        <EquipmentCalibrations
+          itemId={item.id}
+          kinds={loaderData.calibrations.kinds}
+          records={loaderData.calibrations.records}
+          canRecord={loaderData.canRecord}
+        />
         {item.status !== "retired" ? <EquipmentBookings itemId={item.id} isTable={item.kind === "table"} bookings={loaderData.bookings} /> : null}
       </div>
     </div>

@@ -76,7 +76,7 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
         }
       : { kind: "table", status: "in_service" },
   });
-  const [kind, setKind] = useState<EquipmentKind>((item?.kind ?? "table"));
+  const [kind, setKind] = useState<EquipmentKind>(item?.kind ?? "table");
   const text = (name: keyof typeof fields, label: string, extra: Record<string, unknown> = {}) => {
     const f = fields[name];
     return <TextField label={label} name={f.name} key={f.key} defaultValue={f.initialValue as string | undefined} error={f.errors} {...extra} />;
@@ -87,25 +87,46 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
       <Card>
         <Form method="post" className="grid gap-5 md:grid-cols-2" {...getFormProps(form)}>
           <FormProblem errors={form.errors} className="md:col-span-2" />
-          <SelectField label="Kind" name={fields.kind.name} defaultValue={kind} error={fields.kind.errors} disabled={Boolean(item)} onChange={(e) => setKind(e.target.value as EquipmentKind)}>
+          <SelectField
+            label="Kind"
+            name={fields.kind.name}
+            defaultValue={kind}
+            error={fields.kind.errors}
+            disabled={Boolean(item)}
+            onChange={(e) => setKind(e.target.value as EquipmentKind)}
+          >
             {equipmentKinds.map((k) => (
-              <option key={k} value={k}>{kindLabels[k]}</option>
+              <option key={k} value={k}>
+                {kindLabels[k]}
+              </option>
             ))}
           </SelectField>
           {item ? <input type="hidden" name={fields.kind.name} value={item.kind} /> : null}
           {text("name", "Name", { maxLength: 120, placeholder: "e.g. Table B (west bench)" })}
           <SelectField label="Status" name={fields.status.name} defaultValue={fields.status.initialValue} error={fields.status.errors}>
             {equipmentStatuses.map((s) => (
-              <option key={s} value={s}>{statusLabels[s]}</option>
+              <option key={s} value={s}>
+                {statusLabels[s]}
+              </option>
             ))}
           </SelectField>
           {text("location", "Location")}
           {text("maker", "Maker")}
           {text("model", "Model")}
           {text("serialNumber", "Serial number")}
-          {kind === "table" || kind === "tank" ? text("diameterCm", kind === "tank" ? "Inner diameter" : "Diameter", { unit: "cm", inputMode: "decimal" }) : null}
-          {kind === "table" ? text("maxRateRpm", "Maximum rate", { unit: "rpm", inputMode: "decimal", hint: "From the maker's documentation; runs above it are refused." }) : null}
-          {kind === "table" ? text("rateTolerancePct", "Rate calibration tolerance", { unit: "%", inputMode: "decimal", hint: "A rate calibration passes when every reading is within this share of the set rate (default 1 %)." }) : null}
+          {kind === "table" || kind === "tank"
+            ? text("diameterCm", kind === "tank" ? "Inner diameter" : "Diameter", { unit: "cm", inputMode: "decimal" })
+            : null}
+          {kind === "table"
+            ? text("maxRateRpm", "Maximum rate", { unit: "rpm", inputMode: "decimal", hint: "From the maker's documentation; runs above it are refused." })
+            : null}
+          {kind === "table"
+            ? text("rateTolerancePct", "Rate calibration tolerance", {
+                unit: "%",
+                inputMode: "decimal",
+                hint: "A rate calibration passes when every reading is within this share of the set rate (default 1 %).",
+              })
+            : null}
           {kind === "table" ? (
             <label className="flex min-h-12 items-center gap-3 font-bold">
               <input type="checkbox" name={fields.flatTable.name} defaultChecked={fields.flatTable.initialValue === "on"} className="h-6 w-6" />
@@ -116,11 +137,23 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
           {kind === "camera" ? text("resolutionWidthPx", "Image width", { unit: "px", inputMode: "numeric" }) : null}
           {kind === "camera" ? text("resolutionHeightPx", "Image height", { unit: "px", inputMode: "numeric" }) : null}
           {kind === "camera" ? text("nominalFrameRateFps", "Nominal frame rate", { unit: "frames/s", inputMode: "decimal" }) : null}
-          {kind === "camera" ? text("scaleTolerancePct", "Scale tolerance", { unit: "%", inputMode: "decimal", hint: "A run whose view setup scale differs from the scale calibration in force by more than this share is flagged (default 1 %)." }) : null}
+          {kind === "camera"
+            ? text("scaleTolerancePct", "Scale tolerance", {
+                unit: "%",
+                inputMode: "decimal",
+                hint: "A run whose view setup scale differs from the scale calibration in force by more than this share is flagged (default 1 %).",
+              })
+            : null}
           {kind === "rate_meter" ? (
-            <SelectField label="Type" name={fields.meterType.name} defaultValue={typeof fields.meterType.initialValue === "string" ? fields.meterType.initialValue : "tachometer"}>
+            <SelectField
+              label="Type"
+              name={fields.meterType.name}
+              defaultValue={typeof fields.meterType.initialValue === "string" ? fields.meterType.initialValue : "tachometer"}
+            >
               {meterTypes.map((m) => (
-                <option key={m} value={m}>{m}</option>
+                <option key={m} value={m}>
+                  {m}
+                </option>
               ))}
             </SelectField>
           ) : null}

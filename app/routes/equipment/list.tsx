@@ -21,7 +21,13 @@ export default function EquipmentList({ loaderData }: Route.ComponentProps) {
       <PageHeader
         title="Equipment"
         subtitle="Tables, tanks, cameras and rate meters. Only items in service can be used for a run or booked."
-        actions={loaderData.canEdit ? <ButtonLink to="/equipment/new" tone="primary">Add equipment</ButtonLink> : null}
+        actions={
+          loaderData.canEdit ? (
+            <ButtonLink to="/equipment/new" tone="primary">
+              Add equipment
+            </ButtonLink>
+          ) : null
+        }
       />
       <div className="grid gap-6 md:grid-cols-2">
         {equipmentKinds.map((kind) => {

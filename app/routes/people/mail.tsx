@@ -18,7 +18,14 @@ export async function loader({ request }: Route.LoaderArgs) {
   return {
     outbox,
     maxAttempts: MAX_ATTEMPTS,
-    captured: rows.map((m) => ({ id: m.id, to: m.envelopeTo, from: m.envelopeFrom, subject: m.subject, text: m.textBody, receivedAt: m.receivedAt.toISOString() })),
+    captured: rows.map((m) => ({
+      id: m.id,
+      to: m.envelopeTo,
+      from: m.envelopeFrom,
+      subject: m.subject,
+      text: m.textBody,
+      receivedAt: m.receivedAt.toISOString(),
+    })),
   };
 }
 
@@ -40,8 +47,8 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
       />
       <Card title="Outbox" className="mb-6">
         <p className="mb-3 text-sm text-muted">
-          A failed attempt is tried again after 1 minute, then after twice the wait each time up to an hour; after {maxAttempts} failed attempts the
-          message is marked failed. Message texts are not kept here: they may hold someone's single-use link.
+          A failed attempt is tried again after 1 minute, then after twice the wait each time up to an hour; after {maxAttempts} failed attempts the message is
+          marked failed. Message texts are not kept here: they may hold someone's single-use link.
         </p>
         {outbox.length === 0 ? (
           <Notice>Nothing queued or sent yet.</Notice>
@@ -68,7 +75,9 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
                     </td>
                     <td className="py-3 text-sm">
                       {m.state === "sent" && m.sentAt ? `${time.dateTime(m.sentAt)}` : null}
-                      {m.state === "queued" && m.nextAttemptAt ? `${m.attempts ? `${m.attempts} failed; next ` : ""}try ${time.dateTime(m.nextAttemptAt)}` : null}
+                      {m.state === "queued" && m.nextAttemptAt
+                        ? `${m.attempts ? `${m.attempts} failed; next ` : ""}try ${time.dateTime(m.nextAttemptAt)}`
+                        : null}
                       {m.state === "failed" ? `gave up after ${m.attempts} attempts` : null}
                       {m.lastError && m.state !== "sent" ? <p className="text-muted break-words">{m.lastError}</p> : null}
                     </td>

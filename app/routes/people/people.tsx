@@ -101,13 +101,19 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
                     <Form method="post" className="flex items-center gap-2">
                       <input type="hidden" name="intent" value="role" />
                       <input type="hidden" name="userId" value={p.id} />
-                      <label className="sr-only" htmlFor={`role-${p.id}`}>Role of {p.name}</label>
+                      <label className="sr-only" htmlFor={`role-${p.id}`}>
+                        Role of {p.name}
+                      </label>
                       <select id={`role-${p.id}`} name="role" defaultValue={p.role} className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-2">
                         {roles.map((r) => (
-                          <option key={r} value={r}>{roleLabels[r]}</option>
+                          <option key={r} value={r}>
+                            {roleLabels[r]}
+                          </option>
                         ))}
                       </select>
-                      <Button tone="plain" type="submit">Set</Button>
+                      <Button tone="plain" type="submit">
+                        Set
+                      </Button>
                     </Form>
                   </td>
                   <td className="py-3 pr-3">
@@ -126,7 +132,9 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
                       {p.invited && p.active ? (
                         <Form method="post">
                           <input type="hidden" name="userId" value={p.id} />
-                          <Button tone="quiet" type="submit" name="intent" value="resend">Send invitation again</Button>
+                          <Button tone="quiet" type="submit" name="intent" value="resend">
+                            Send invitation again
+                          </Button>
                         </Form>
                       ) : null}
                     </div>
@@ -139,11 +147,33 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
         <Card title="Invite someone">
           <Form method="post" className="flex flex-col gap-4" {...getFormProps(form)}>
             <input type="hidden" name="intent" value="invite" />
-            <TextField label="Name" name={fields.name.name} key={fields.name.key} defaultValue={fields.name.initialValue} error={fields.name.errors} maxLength={120} />
-            <TextField label="E-mail" type="email" name={fields.email.name} key={fields.email.key} defaultValue={fields.email.initialValue} error={fields.email.errors} />
-            <SelectField label="Role" name={fields.role.name} key={fields.role.key} defaultValue={fields.role.initialValue ?? "technician"} error={fields.role.errors}>
+            <TextField
+              label="Name"
+              name={fields.name.name}
+              key={fields.name.key}
+              defaultValue={fields.name.initialValue}
+              error={fields.name.errors}
+              maxLength={120}
+            />
+            <TextField
+              label="E-mail"
+              type="email"
+              name={fields.email.name}
+              key={fields.email.key}
+              defaultValue={fields.email.initialValue}
+              error={fields.email.errors}
+            />
+            <SelectField
+              label="Role"
+              name={fields.role.name}
+              key={fields.role.key}
+              defaultValue={fields.role.initialValue ?? "technician"}
+              error={fields.role.errors}
+            >
               {roles.map((r) => (
-                <option key={r} value={r}>{roleLabels[r]}</option>
+                <option key={r} value={r}>
+                  {roleLabels[r]}
+                </option>
               ))}
             </SelectField>
             <Button type="submit">Send invitation</Button>

@@ -65,17 +65,38 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 type Choice = { value: string; label: string };
-function Choices({ name, legend, choices, defaultValue, error, onChange }: { name: string; legend: string; choices: Choice[]; defaultValue?: string; error?: string[]; onChange?: (v: string) => void }) {
+function Choices({
+  name,
+  legend,
+  choices,
+  defaultValue,
+  error,
+  onChange,
+}: {
+  name: string;
+  legend: string;
+  choices: Choice[];
+  defaultValue?: string;
+  error?: string[];
+  onChange?: (v: string) => void;
+}) {
   return (
     <fieldset className="flex flex-col gap-2">
       <legend className="mb-1 font-bold">{legend}</legend>
       {choices.map((c) => (
-        <label key={c.value} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border-2 border-line px-3 has-[:checked]:border-tank-600 has-[:checked]:bg-tank-50">
+        <label
+          key={c.value}
+          className="flex min-h-12 cursor-pointer items-center gap-3 rounded-lg border-2 border-line px-3 has-[:checked]:border-tank-600 has-[:checked]:bg-tank-50"
+        >
           <input type="radio" name={name} value={c.value} defaultChecked={defaultValue === c.value} className="h-5 w-5" onChange={() => onChange?.(c.value)} />
           {c.label}
         </label>
       ))}
-      {error?.length ? <p className="text-sm font-bold text-disagrees-ink" role="alert">{error[0]}</p> : null}
+      {error?.length ? (
+        <p className="text-sm font-bold text-disagrees-ink" role="alert">
+          {error[0]}
+        </p>
+      ) : null}
     </fieldset>
   );
 }
@@ -123,26 +144,87 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
           <Form method="post" className="grid gap-5 md:grid-cols-2" {...getFormProps(form)}>
             <FormProblem errors={form.errors} className="md:col-span-2" />
             {template ? <input type="hidden" name="supersedesId" value={template.id} /> : null}
-            <SelectField label="Table" name="tableId" defaultValue={live.tableId} error={fields.tableId.errors} onChange={(e) => setLive({ ...live, tableId: e.target.value })}>
+            <SelectField
+              label="Table"
+              name="tableId"
+              defaultValue={live.tableId}
+              error={fields.tableId.errors}
+              onChange={(e) => setLive({ ...live, tableId: e.target.value })}
+            >
               {tables.map((t) => (
-                <option key={t.id} value={t.id}>{t.name} (up to {t.maxRateRpm} rpm)</option>
+                <option key={t.id} value={t.id}>
+                  {t.name} (up to {t.maxRateRpm} rpm)
+                </option>
               ))}
             </SelectField>
-            <SelectField label="Tank" name="tankId" defaultValue={live.tankId} error={fields.tankId.errors} onChange={(e) => setLive({ ...live, tankId: e.target.value })}>
+            <SelectField
+              label="Tank"
+              name="tankId"
+              defaultValue={live.tankId}
+              error={fields.tankId.errors}
+              onChange={(e) => setLive({ ...live, tankId: e.target.value })}
+            >
               {tanks.map((t) => (
-                <option key={t.id} value={t.id}>{t.name} ({(t.diameterM ?? 0) * 100} cm × {(t.depthM ?? 0) * 100} cm)</option>
+                <option key={t.id} value={t.id}>
+                  {t.name} ({(t.diameterM ?? 0) * 100} cm × {(t.depthM ?? 0) * 100} cm)
+                </option>
               ))}
             </SelectField>
             <SelectField label="Camera" name="cameraId" defaultValue={String(source?.cameraId ?? cameras[0]?.id ?? "")} error={fields.cameraId.errors}>
               {cameras.map((c) => (
-                <option key={c.id} value={c.id}>{c.name} ({c.resolutionWidthPx}×{c.resolutionHeightPx}, {c.nominalFrameRateFps} frames/s)</option>
+                <option key={c.id} value={c.id}>
+                  {c.name} ({c.resolutionWidthPx}×{c.resolutionHeightPx}, {c.nominalFrameRateFps} frames/s)
+                </option>
               ))}
             </SelectField>
-            <TextField label="Set rate" name="setRateRpm" unit="rpm" inputMode="decimal" defaultValue={live.rpm} error={fields.setRateRpm.errors} onChange={(e) => setLive({ ...live, rpm: e.target.value })} />
-            <Choices name="direction" legend="Direction" defaultValue={live.direction} error={fields.direction.errors} onChange={(v) => setLive({ ...live, direction: v as "ccw" | "cw" })} choices={[{ value: "ccw", label: directionLabels.ccw }, { value: "cw", label: directionLabels.cw }]} />
-            <Choices name="cameraMode" legend="Camera position" defaultValue={source?.cameraMode ?? "rotating"} error={fields.cameraMode.errors} choices={[{ value: "rotating", label: cameraModeLabels.rotating }, { value: "lab", label: cameraModeLabels.lab }]} />
-            <TextField label="Water depth (at rest)" name="waterDepthCm" unit="cm" inputMode="decimal" defaultValue={live.depthCm} error={fields.waterDepthCm.errors} onChange={(e) => setLive({ ...live, depthCm: e.target.value })} />
-            <TextField label="Water temperature" name="waterTemperatureC" unit="°C" inputMode="decimal" defaultValue={live.temperatureC} error={fields.waterTemperatureC.errors} onChange={(e) => setLive({ ...live, temperatureC: e.target.value })} />
+            <TextField
+              label="Set rate"
+              name="setRateRpm"
+              unit="rpm"
+              inputMode="decimal"
+              defaultValue={live.rpm}
+              error={fields.setRateRpm.errors}
+              onChange={(e) => setLive({ ...live, rpm: e.target.value })}
+            />
+            <Choices
+              name="direction"
+              legend="Direction"
+              defaultValue={live.direction}
+              error={fields.direction.errors}
+              onChange={(v) => setLive({ ...live, direction: v as "ccw" | "cw" })}
+              choices={[
+                { value: "ccw", label: directionLabels.ccw },
+                { value: "cw", label: directionLabels.cw },
+              ]}
+            />
+            <Choices
+              name="cameraMode"
+              legend="Camera position"
+              defaultValue={source?.cameraMode ?? "rotating"}
+              error={fields.cameraMode.errors}
+              choices={[
+                { value: "rotating", label: cameraModeLabels.rotating },
+                { value: "lab", label: cameraModeLabels.lab },
+              ]}
+            />
+            <TextField
+              label="Water depth (at rest)"
+              name="waterDepthCm"
+              unit="cm"
+              inputMode="decimal"
+              defaultValue={live.depthCm}
+              error={fields.waterDepthCm.errors}
+              onChange={(e) => setLive({ ...live, depthCm: e.target.value })}
+            />
+            <TextField
+              label="Water temperature"
+              name="waterTemperatureC"
+              unit="°C"
+              inputMode="decimal"
+              defaultValue={live.temperatureC}
+              error={fields.waterTemperatureC.errors}
+              onChange={(e) => setLive({ ...live, temperatureC: e.target.value })}
+            />
             <div className="flex flex-col gap-1">
               <TextField
                 label="Table reached its rate at"
@@ -159,16 +241,41 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
               />
               <input type="hidden" name="rateReachedAt" value={reachedIso} />
             </div>
-            <TextField label="Frame rate" name="frameRateFps" unit="frames/s" inputMode="decimal" defaultValue={String(source?.frameRateFps ?? cameras[0]?.nominalFrameRateFps ?? "")} error={fields.frameRateFps.errors} />
-            <Choices name="tracer" legend="Tracer" defaultValue={source?.tracer ?? "float"} error={fields.tracer.errors} choices={[{ value: "float", label: `${tracerLabels.float} (bright spot on the surface)` }, { value: "dye", label: `${tracerLabels.dye} (coloured patch)` }]} />
+            <TextField
+              label="Frame rate"
+              name="frameRateFps"
+              unit="frames/s"
+              inputMode="decimal"
+              defaultValue={String(source?.frameRateFps ?? cameras[0]?.nominalFrameRateFps ?? "")}
+              error={fields.frameRateFps.errors}
+            />
+            <Choices
+              name="tracer"
+              legend="Tracer"
+              defaultValue={source?.tracer ?? "float"}
+              error={fields.tracer.errors}
+              choices={[
+                { value: "float", label: `${tracerLabels.float} (bright spot on the surface)` },
+                { value: "dye", label: `${tracerLabels.dye} (coloured patch)` },
+              ]}
+            />
             <div className="md:col-span-2">
-              <TextField label="Purpose" name="purpose" maxLength={300} defaultValue={source?.purpose ?? ""} error={fields.purpose.errors} placeholder="e.g. Inertial circles demonstration for the second-year class" />
+              <TextField
+                label="Purpose"
+                name="purpose"
+                maxLength={300}
+                defaultValue={source?.purpose ?? ""}
+                error={fields.purpose.errors}
+                placeholder="e.g. Inertial circles demonstration for the second-year class"
+              />
             </div>
             <div className="md:col-span-2">
               <TextAreaField label="Notes" name="notes" defaultValue={source?.notes ?? ""} error={fields.notes.errors} />
             </div>
             <div className="md:col-span-2">
-              <Button type="submit" disabled={navigation.state === "submitting"}>{run ? "Save changes" : "Log the run"}</Button>
+              <Button type="submit" disabled={navigation.state === "submitting"}>
+                {run ? "Save changes" : "Log the run"}
+              </Button>
             </div>
           </Form>
         </Card>

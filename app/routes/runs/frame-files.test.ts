@@ -25,7 +25,10 @@ async function signedIn(url: string, userId: number) {
   session.set("userId", userId);
   return new Request(`http://localhost${url}`, { headers: { Cookie: (await sessionStorage.commitSession(session)).split(";")[0]! } });
 }
-const png = (shade: number) => sharp({ create: { width: 40, height: 30, channels: 3, background: { r: shade, g: 30, b: 60 } } }).png().toBuffer();
+const png = (shade: number) =>
+  sharp({ create: { width: 40, height: 30, channels: 3, background: { r: shade, g: 30, b: 60 } } })
+    .png()
+    .toBuffer();
 
 describe("frame files missing from storage", () => {
   it("give a 404 that names the frame or its thumbnail, and the run page counts them", async () => {
@@ -38,7 +41,11 @@ describe("frame files missing from storage", () => {
 
     const call = async (frame: Frame, query = "") => {
       try {
-        return (await frameImageLoader({ request: await signedIn(`/runs/${run.id}/frames/${frame.id}/image${query}`, lab.tech.id), params: { id: String(run.id), frameId: String(frame.id) }, context: {} } as never));
+        return await frameImageLoader({
+          request: await signedIn(`/runs/${run.id}/frames/${frame.id}/image${query}`, lab.tech.id),
+          params: { id: String(run.id), frameId: String(frame.id) },
+          context: {},
+        } as never);
       } catch (thrown) {
         if (thrown instanceof Response) return thrown;
         throw thrown;
@@ -46,7 +53,9 @@ describe("frame files missing from storage", () => {
     };
     const gone = await call(first);
     expect(gone.status).toBe(404);
-    expect(await gone.json()).toEqual({ error: { code: "file_missing", message: "The file of frame 1 (frame_1.png) is missing from storage. Bring the same frame again to put it back." } });
+    expect(await gone.json()).toEqual({
+      error: { code: "file_missing", message: "The file of frame 1 (frame_1.png) is missing from storage. Bring the same frame again to put it back." },
+    });
     const goneThumb = await call(second, "?size=thumb");
     expect(goneThumb.status).toBe(404);
     expect(((await goneThumb.json()) as { error: { message: string } }).error.message).toBe(
@@ -71,7 +80,11 @@ describe("frame files missing from storage", () => {
     expect(after.frameFiles.missing).toBe(0);
     expect(after.frames).toHaveLength(3);
     expect((await call(first)).status).toBe(200);
-    const setupAfter = await setupLoader({ request: await signedIn(`/runs/${run.id}/setup`, lab.tech.id), params: { id: String(run.id) }, context: {} } as never);
+    const setupAfter = await setupLoader({
+      request: await signedIn(`/runs/${run.id}/setup`, lab.tech.id),
+      params: { id: String(run.id) },
+      context: {},
+    } as never);
     expect(setupAfter.imageMissing).toBe(false);
   });
 });

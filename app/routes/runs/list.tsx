@@ -121,7 +121,10 @@ const columns = col.columns([
   col.accessor("tracer", { header: labelOf.tracer, enableSorting: false, cell: (info) => tracerLabels[info.getValue()] }),
   col.accessor("frameCount", { header: labelOf.frameCount }),
   col.accessor("state", { header: labelOf.state, cell: (info) => <RunStateTag state={info.getValue()} /> }),
-  col.accessor("verdict", { header: labelOf.verdict, cell: (info) => <VerdictTag verdict={info.getValue()} outOfDate={info.row.original.state === "checked"} /> }),
+  col.accessor("verdict", {
+    header: labelOf.verdict,
+    cell: (info) => <VerdictTag verdict={info.getValue()} outOfDate={info.row.original.state === "checked"} />,
+  }),
   col.accessor("purpose", {
     header: labelOf.purpose,
     enableSorting: false,
@@ -153,11 +156,9 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
     void loadRows(`/runs/rows${location.search}`);
   }, [location.search, loadRows]);
 
-  const result: PageResult = (rows.data) ?? loaderData.result;
+  const result: PageResult = rows.data ?? loaderData.result;
   const parsed = parseRunFilters(searchParams);
-  const filters: RunFilters = parsed.ok
-    ? parsed.filters
-    : { sort: "createdAt", dir: "desc", page: 1, pageSize: DEFAULT_PAGE_SIZE };
+  const filters: RunFilters = parsed.ok ? parsed.filters : { sort: "createdAt", dir: "desc", page: 1, pageSize: DEFAULT_PAGE_SIZE };
   const [hidden, setHidden] = useState<string[]>(loaderData.columns.hidden);
 
   const go = (next: Partial<RunFilters>) => {
@@ -227,26 +228,44 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
       <PageHeader
         title="Runs"
         subtitle="Every run the lab has logged. Filter, sort and page here; the address is a link to this exact view."
-        actions={loaderData.canLog ? <ButtonLink to="/runs/new" tone="primary">Log a run</ButtonLink> : null}
+        actions={
+          loaderData.canLog ? (
+            <ButtonLink to="/runs/new" tone="primary">
+              Log a run
+            </ButtonLink>
+          ) : null
+        }
       />
 
-      <form key={location.search} onSubmit={onFilter} onChange={submitOnChange} className="no-print mb-4 grid gap-4 rounded-card border border-line bg-sheet p-4 md:grid-cols-4" aria-label="Filter runs">
+      <form
+        key={location.search}
+        onSubmit={onFilter}
+        onChange={submitOnChange}
+        className="no-print mb-4 grid gap-4 rounded-card border border-line bg-sheet p-4 md:grid-cols-4"
+        aria-label="Filter runs"
+      >
         <SelectField label="Table" name="table" defaultValue={filters.table ?? ""}>
           <option value="">Any table</option>
           {loaderData.options.tables.map((t) => (
-            <option key={t.id} value={t.id}>{t.name}</option>
+            <option key={t.id} value={t.id}>
+              {t.name}
+            </option>
           ))}
         </SelectField>
         <SelectField label="Technician" name="technician" defaultValue={filters.technician ?? ""}>
           <option value="">Anyone</option>
           {loaderData.options.technicians.map((u) => (
-            <option key={u.id} value={u.id}>{u.name}</option>
+            <option key={u.id} value={u.id}>
+              {u.name}
+            </option>
           ))}
         </SelectField>
         <SelectField label="State" name="state" defaultValue={filters.state ?? ""}>
           <option value="">Any state</option>
           {runStates.map((s) => (
-            <option key={s} value={s}>{runStateLabels[s]}</option>
+            <option key={s} value={s}>
+              {runStateLabels[s]}
+            </option>
           ))}
         </SelectField>
         <SelectField label="Verdict" name="verdict" defaultValue={filters.verdict ?? ""}>
@@ -263,19 +282,26 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
         </div>
         <div className="flex flex-wrap items-end gap-3 md:col-span-4">
           <Button type="submit">Search</Button>
-          {hasFilters ? <ButtonLink to="/runs" tone="quiet">Clear filters</ButtonLink> : null}
+          {hasFilters ? (
+            <ButtonLink to="/runs" tone="quiet">
+              Clear filters
+            </ButtonLink>
+          ) : null}
           <details className="relative">
             <summary className="inline-flex min-h-12 cursor-pointer items-center rounded-lg border-2 border-line-strong px-5 font-bold">Columns</summary>
             <fieldset className="absolute z-10 mt-2 grid w-72 gap-1 rounded-card border border-line bg-sheet p-3 shadow-lg">
               <legend className="sr-only">Columns to show</legend>
-              {table.getAllLeafColumns().filter((c) => c.getCanHide()).map((c) => (
-                <label key={c.id} className="flex min-h-12 items-center gap-3">
-                  <input type="checkbox" className="size-5" checked={c.getIsVisible()} onChange={c.getToggleVisibilityHandler()} />
-                  {labelOf[c.id]}
-                </label>
-              ))}
+              {table
+                .getAllLeafColumns()
+                .filter((c) => c.getCanHide())
+                .map((c) => (
+                  <label key={c.id} className="flex min-h-12 items-center gap-3">
+                    <input type="checkbox" className="size-5" checked={c.getIsVisible()} onChange={c.getToggleVisibilityHandler()} />
+                    {labelOf[c.id]}
+                  </label>
+                ))}
               <p className="text-sm text-muted" role="status">
-                {saveColumns.state !== "idle" ? "Saving…" : saveColumns.data?.message ?? "Kept for you on every device."}
+                {saveColumns.state !== "idle" ? "Saving…" : (saveColumns.data?.message ?? "Kept for you on every device.")}
               </p>
             </fieldset>
           </details>
@@ -285,14 +311,20 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
       {result.error ? (
         <Notice kind="error" title="These filters cannot be used">
           <p>{result.error.message}</p>
-          <p className="mt-2"><Link to="/runs">Show all runs</Link></p>
+          <p className="mt-2">
+            <Link to="/runs">Show all runs</Link>
+          </p>
         </Notice>
       ) : null}
 
       {page ? (
         <>
           <p className="mb-2 text-muted" role="status" aria-live="polite">
-            {loading ? "Loading…" : page.total === 0 ? "No runs match." : `${page.total} run${page.total === 1 ? "" : "s"} · page ${page.page} of ${page.pageCount}`}
+            {loading
+              ? "Loading…"
+              : page.total === 0
+                ? "No runs match."
+                : `${page.total} run${page.total === 1 ? "" : "s"} · page ${page.page} of ${page.pageCount}`}
           </p>
           <div className={`overflow-x-auto rounded-card border border-line bg-sheet ${loading ? "opacity-60" : ""}`} aria-busy={loading}>
             <table className="w-full text-left">
@@ -302,9 +334,18 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
                     {group.headers.map((header) => {
                       const sorted = header.column.getIsSorted();
                       return (
-                        <th key={header.id} scope="col" className="px-3 py-2 align-bottom" aria-sort={sorted === "asc" ? "ascending" : sorted === "desc" ? "descending" : undefined}>
+                        <th
+                          key={header.id}
+                          scope="col"
+                          className="px-3 py-2 align-bottom"
+                          aria-sort={sorted === "asc" ? "ascending" : sorted === "desc" ? "descending" : undefined}
+                        >
                           {header.column.getCanSort() && sortable.has(header.column.id) ? (
-                            <button type="button" onClick={header.column.getToggleSortingHandler()} className="inline-flex min-h-12 items-center gap-1 font-bold text-tank-700 hover:underline">
+                            <button
+                              type="button"
+                              onClick={header.column.getToggleSortingHandler()}
+                              className="inline-flex min-h-12 items-center gap-1 font-bold text-tank-700 hover:underline"
+                            >
                               <table.FlexRender header={header} />
                               <span aria-hidden="true">{sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}</span>
                               <span className="sr-only">{sorted ? `sorted ${sorted === "asc" ? "ascending" : "descending"}` : "sort"}</span>
@@ -337,15 +378,23 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
             <Button type="button" tone="plain" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>
               ← Previous page
             </Button>
-            <span>Page {page.page} of {page.pageCount}</span>
+            <span>
+              Page {page.page} of {page.pageCount}
+            </span>
             <Button type="button" tone="plain" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>
               Next page →
             </Button>
             <label className="ml-auto flex items-center gap-2">
               Runs per page
-              <select className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-3" value={filters.pageSize} onChange={(e) => table.setPageSize(Number(e.target.value))}>
+              <select
+                className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-3"
+                value={filters.pageSize}
+                onChange={(e) => table.setPageSize(Number(e.target.value))}
+              >
                 {pageSizes.map((n) => (
-                  <option key={n} value={n}>{n}</option>
+                  <option key={n} value={n}>
+                    {n}
+                  </option>
                 ))}
               </select>
             </label>

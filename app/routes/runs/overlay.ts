@@ -17,7 +17,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     png = await trackOverlay(run.id, job.id);
   } catch (err) {
     if (err instanceof MissingObjectError) {
-      return apiError(404, "file_missing", "The file of the frame the tracks are drawn on is missing from storage. Bring the same frames again to put it back.");
+      return apiError(
+        404,
+        "file_missing",
+        "The file of the frame the tracks are drawn on is missing from storage. Bring the same frames again to put it back.",
+      );
     }
     if (err instanceof StorageUnavailableError) return storageUnavailable(err);
     throw err;

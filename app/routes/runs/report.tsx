@@ -31,15 +31,24 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const [found, signOff, history] = await Promise.all([getRunDetailWithCheck(runId, { current }), getSignOffView(model, user, current), getRunHistory(runId)]);
   if (!found) throw data("That run does not exist.", { status: 404 });
   const run = found.detail;
-  const check = run.latestTheoryCheck && found.check ? { ...run.latestTheoryCheck, result: storedCheckResult(found.check) as { result?: TheoryCheckResult } | null } : null;
+  const check =
+    run.latestTheoryCheck && found.check ? { ...run.latestTheoryCheck, result: storedCheckResult(found.check) as { result?: TheoryCheckResult } | null } : null;
   // The report needs the check's figures, not its plotted series: keep the page light.
   const stored = check?.result?.result;
   const result = stored ? { ...stored, series: undefined } : null;
   const setup = run.viewSetup;
   // Plots draw with the scale the check used (the scale calibration's when the view setup has none).
   const usedPxPerM = (check?.result as { input?: { setup?: { pxPerM?: number | null } } } | null)?.input?.setup?.pxPerM;
-  const plots = stored && setup ? { result: stored, setup: { centre: setup.centrePx, pxPerM: usedPxPerM ?? setup.scalePxPerM, mirrored: setup.mirrored } } : null;
-  return { run: { ...run, latestTheoryCheck: check ? { ...check, result } : null }, plots, usedPxPerM: usedPxPerM ?? null, signOff, history, printedAt: new Date().toISOString() };
+  const plots =
+    stored && setup ? { result: stored, setup: { centre: setup.centrePx, pxPerM: usedPxPerM ?? setup.scalePxPerM, mirrored: setup.mirrored } } : null;
+  return {
+    run: { ...run, latestTheoryCheck: check ? { ...check, result } : null },
+    plots,
+    usedPxPerM: usedPxPerM ?? null,
+    signOff,
+    history,
+    printedAt: new Date().toISOString(),
+  };
 }
 
 function Row({ label, children }: { label: string; children: ReactNode }) {
@@ -63,7 +72,9 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
   return (
     <article className="mx-auto max-w-4xl bg-sheet p-6 print:max-w-none print:p-0">
       <div className="no-print mb-4 flex flex-wrap gap-3">
-        <Button type="button" onClick={() => window.print()}>Print this report</Button>
+        <Button type="button" onClick={() => window.print()}>
+          Print this report
+        </Button>
         <RunExportLinks runId={run.id} hasTracks={run.tracks.count > 0} showReport={false} />
       </div>
 
@@ -80,7 +91,9 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
       <section className="mt-4">
         <h2 className="text-xl">Verdict</h2>
         {run.checkOutOfDate ? (
-          <p className="mt-2 font-bold">The theory check is out of date (changed since: {run.checkOutOfDate.because.join(", ")}); no verdict until a new check is made.</p>
+          <p className="mt-2 font-bold">
+            The theory check is out of date (changed since: {run.checkOutOfDate.because.join(", ")}); no verdict until a new check is made.
+          </p>
         ) : null}
         <div className="mt-2 flex flex-wrap items-center gap-3 text-lg">
           <VerdictTag verdict={check?.verdict ?? null} />
@@ -91,12 +104,20 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
       <section className="mt-4">
         <h2 className="text-xl">Conditions</h2>
         <dl className="mt-2">
-          <Row label="Set rate">{formatNumber(c.setRateRpm)} rpm, {directionLabels[c.direction].toLowerCase()}</Row>
-          <Row label="Water">{formatNumber(c.waterDepthM * 100)} cm deep at {formatNumber(c.waterTemperatureC, 3)} °C</Row>
+          <Row label="Set rate">
+            {formatNumber(c.setRateRpm)} rpm, {directionLabels[c.direction].toLowerCase()}
+          </Row>
+          <Row label="Water">
+            {formatNumber(c.waterDepthM * 100)} cm deep at {formatNumber(c.waterTemperatureC, 3)} °C
+          </Row>
           <Row label="Rate reached at">{time.dateTime(c.rateReachedAt)}</Row>
-          <Row label="Camera">{cameraModeLabels[c.cameraMode]}, {formatNumber(c.frameRateFps)} frames/s</Row>
+          <Row label="Camera">
+            {cameraModeLabels[c.cameraMode]}, {formatNumber(c.frameRateFps)} frames/s
+          </Row>
           <Row label="Tracer">{tracerLabels[c.tracer]}</Row>
-          <Row label="Logged">{time.dateTime(run.createdAt)} by {run.technician?.name ?? "—"}</Row>
+          <Row label="Logged">
+            {time.dateTime(run.createdAt)} by {run.technician?.name ?? "—"}
+          </Row>
           {run.notes ? <Row label="Notes">{run.notes}</Row> : null}
         </dl>
       </section>
@@ -121,7 +142,9 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
               </ul>
             )}
           </Row>
-          <Row label="Frames">{run.frames.count} {run.frames.widthPx ? `(${run.frames.widthPx} × ${run.frames.heightPx} px)` : ""}</Row>
+          <Row label="Frames">
+            {run.frames.count} {run.frames.widthPx ? `(${run.frames.widthPx} × ${run.frames.heightPx} px)` : ""}
+          </Row>
           <Row label="Scale">
             {run.viewSetup?.scalePxPerM
               ? `${formatNumber(run.viewSetup.scalePxPerM)} px/m`
@@ -138,19 +161,31 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
         {r ? (
           <dl className="mt-2">
             <Row label="f measured">{pm(r.fMeasured, r.fStdError, "s⁻¹")}</Row>
-            <Row label="f = 2Ω predicted">{pm(r.fPredicted, r.fPredictedStdError, "s⁻¹")} ({r.omegaSource})</Row>
+            <Row label="f = 2Ω predicted">
+              {pm(r.fPredicted, r.fPredictedStdError, "s⁻¹")} ({r.omegaSource})
+            </Row>
             <Row label="Ratio measured / predicted">{formatNumber(r.ratio)}</Row>
             <Row label="Deflection">{r.deflection ? `to the ${r.deflection}` : "—"}</Row>
             <Row label="Linear drag">{pm(r.drag, r.dragStdError, "s⁻¹")}</Row>
             <Row label="Inertial circle">
-              {r.circle ? `${r.circle.radiusM !== null ? `${formatNumber(r.circle.radiusM * 100)} cm` : `${formatNumber(r.circle.radiusPx)} px`} radius, period ${formatNumber(r.circle.period)} s` : "—"}
+              {r.circle
+                ? `${r.circle.radiusM !== null ? `${formatNumber(r.circle.radiusM * 100)} cm` : `${formatNumber(r.circle.radiusPx)} px`} radius, period ${formatNumber(r.circle.period)} s`
+                : "—"}
             </Row>
             <Row label="Calibrations in this check">
               <CalibrationsAppliedList entries={r.calibrationsApplied} />
             </Row>
-            <Row label="Points used">{r.nPoints} ({r.nLeftOut} left out)</Row>
-            {r.settings ? <Row label="Settings">tolerance {formatNumber(r.settings.tolerance * 100)} %, window {r.settings.window ?? "—"} frames, order {r.settings.polyOrder}</Row> : null}
-            <Row label="Checked">{time.dateTime(check?.createdAt)} · code {check?.codeVersion}</Row>
+            <Row label="Points used">
+              {r.nPoints} ({r.nLeftOut} left out)
+            </Row>
+            {r.settings ? (
+              <Row label="Settings">
+                tolerance {formatNumber(r.settings.tolerance * 100)} %, window {r.settings.window ?? "—"} frames, order {r.settings.polyOrder}
+              </Row>
+            ) : null}
+            <Row label="Checked">
+              {time.dateTime(check?.createdAt)} · code {check?.codeVersion}
+            </Row>
           </dl>
         ) : (
           <p className="mt-2 text-muted">No theory check yet.</p>
@@ -170,7 +205,9 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
         <div className="hidden print:block">
           <h2 className="text-xl">Sign-off</h2>
           {signOff.state === "signed_off" ? (
-            <p className="mt-2">Signed off by <strong>{signOff.signedOffBy?.name}</strong> on {time.dateTime(signOff.signedOffAt)}.</p>
+            <p className="mt-2">
+              Signed off by <strong>{signOff.signedOffBy?.name}</strong> on {time.dateTime(signOff.signedOffAt)}.
+            </p>
           ) : (
             <>
               <p className="mt-2">Not signed off.</p>

@@ -70,29 +70,51 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         actions={
           <>
             {canChange ? <ButtonLink to={`/runs/${run.id}/edit`}>Edit conditions</ButtonLink> : null}
-            {canChange && d.frames.length ? <ButtonLink to={`/runs/${run.id}/setup`}>{d.setup ? "Change the view setup" : "Set up the view"}</ButtonLink> : null}
+            {canChange && d.frames.length ? (
+              <ButtonLink to={`/runs/${run.id}/setup`}>{d.setup ? "Change the view setup" : "Set up the view"}</ButtonLink>
+            ) : null}
           </>
         }
       />
       <SupersedesLinks supersedes={d.record.links.supersedes} supersededBy={d.record.links.supersededBy} />
       {d.checkOutOfDate ? (
         <Notice kind="caution" title="The theory check is out of date">
-          Changed since the last check: {d.checkOutOfDate.because.join(", ")}. Its verdict is withdrawn and the run cannot be signed off until a new check is made.{" "}
-          {d.checkOutOfDate.recheckPending ? "Tankside is checking the run again now; reload to see the new verdict." : "Track the run again to get a check made from it as it is now."}
+          Changed since the last check: {d.checkOutOfDate.because.join(", ")}. Its verdict is withdrawn and the run cannot be signed off until a new check is
+          made.{" "}
+          {d.checkOutOfDate.recheckPending
+            ? "Tankside is checking the run again now; reload to see the new verdict."
+            : "Track the run again to get a check made from it as it is now."}
         </Notice>
       ) : null}
-      {run.state === "signed_off" ? <Notice kind="info" title="Signed off: this run is read-only">A correction is logged as a new run linked to this one.</Notice> : null}
+      {run.state === "signed_off" ? (
+        <Notice kind="info" title="Signed off: this run is read-only">
+          A correction is logged as a new run linked to this one.
+        </Notice>
+      ) : null}
       {flaggedCalibrations(d.check?.result.calibrationsApplied).map((c) => (
-        <Notice key={`flag-${c.kind}-${c.calibrationId}`} kind="caution" title={`The ${calibrationKindLabels[c.kind].toLowerCase()} in force disagrees with this run's view setup`}>
+        <Notice
+          key={`flag-${c.kind}-${c.calibrationId}`}
+          kind="caution"
+          title={`The ${calibrationKindLabels[c.kind].toLowerCase()} in force disagrees with this run's view setup`}
+        >
           {c.text}
         </Notice>
       ))}
       {d.calibrations.pastDue.map((c) => {
         const item = [d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId);
         return (
-          <Notice key={c.id} kind="caution" title={`The ${calibrationKindLabels[c.kind].toLowerCase()} of ${item?.name ?? "an item"} was past due when this run was logged`}>
+          <Notice
+            key={c.id}
+            kind="caution"
+            title={`The ${calibrationKindLabels[c.kind].toLowerCase()} of ${item?.name ?? "an item"} was past due when this run was logged`}
+          >
             It fell due {time.dateTime(c.dueAt)}; the theory check used {c.kind === "rate" ? "the set rate, uncalibrated" : "no calibration of this kind"}.
-            {roleCan(d.user.role, "read_calibrations") ? <> <Link to={`/calibrations/${c.id}`}>See the record</Link>.</> : null}
+            {roleCan(d.user.role, "read_calibrations") ? (
+              <>
+                {" "}
+                <Link to={`/calibrations/${c.id}`}>See the record</Link>.
+              </>
+            ) : null}
           </Notice>
         );
       })}
@@ -102,19 +124,40 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
           <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
             <Fact label="Table">{d.table ? <Link to={`/equipment/${d.table.id}`}>{d.table.name}</Link> : "—"}</Fact>
             <Fact label="Tank">{d.tank ? <Link to={`/equipment/${d.tank.id}`}>{d.tank.name}</Link> : "—"}</Fact>
-            <Fact label="Camera">{d.camera ? <Link to={`/equipment/${d.camera.id}`}>{d.camera.name}</Link> : "—"} · {cameraModeLabels[run.cameraMode]}</Fact>
-            <Fact label="Set rate">{formatNumber(run.setRateRpm, 4)} rpm, {directionLabels[run.direction].toLowerCase()}</Fact>
-            <Fact label="Water">{formatNumber(run.waterDepthM * 100, 4)} cm deep at {formatNumber(run.waterTemperatureC, 3)} °C</Fact>
+            <Fact label="Camera">
+              {d.camera ? <Link to={`/equipment/${d.camera.id}`}>{d.camera.name}</Link> : "—"} · {cameraModeLabels[run.cameraMode]}
+            </Fact>
+            <Fact label="Set rate">
+              {formatNumber(run.setRateRpm, 4)} rpm, {directionLabels[run.direction].toLowerCase()}
+            </Fact>
+            <Fact label="Water">
+              {formatNumber(run.waterDepthM * 100, 4)} cm deep at {formatNumber(run.waterTemperatureC, 3)} °C
+            </Fact>
             <Fact label="Rate reached at">{time.dateTime(run.rateReachedAt)}</Fact>
-            <Fact label="Frames">{d.frames.length ? `${d.frames.length} at ${formatNumber(run.frameRateFps, 4)} frames/s, ${run.frameWidthPx} × ${run.frameHeightPx} px` : `none yet (${formatNumber(run.frameRateFps, 4)} frames/s planned)`}</Fact>
+            <Fact label="Frames">
+              {d.frames.length
+                ? `${d.frames.length} at ${formatNumber(run.frameRateFps, 4)} frames/s, ${run.frameWidthPx} × ${run.frameHeightPx} px`
+                : `none yet (${formatNumber(run.frameRateFps, 4)} frames/s planned)`}
+            </Fact>
             <Fact label="Tracer">{tracerLabels[run.tracer]}</Fact>
-            {run.notes ? <Fact label="Notes"><span className="whitespace-pre-wrap">{run.notes}</span></Fact> : null}
+            {run.notes ? (
+              <Fact label="Notes">
+                <span className="whitespace-pre-wrap">{run.notes}</span>
+              </Fact>
+            ) : null}
             <Fact label="Calibrations in force">
               {d.calibrations.inForce.length ? (
                 <ul>
                   {d.calibrations.inForce.map((c) => (
                     <li key={c.id}>
-                      {roleCan(d.user.role, "read_calibrations") ? <Link to={`/calibrations/${c.id}`}>{calibrationKindLabels[c.kind]} #{c.id}</Link> : `${calibrationKindLabels[c.kind]} #${c.id}`} of {[d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId)?.name ?? "?"}, due {time.dateTime(c.dueAt)}
+                      {roleCan(d.user.role, "read_calibrations") ? (
+                        <Link to={`/calibrations/${c.id}`}>
+                          {calibrationKindLabels[c.kind]} #{c.id}
+                        </Link>
+                      ) : (
+                        `${calibrationKindLabels[c.kind]} #${c.id}`
+                      )}{" "}
+                      of {[d.table, d.tank, d.camera].find((e) => e?.id === c.equipmentId)?.name ?? "?"}, due {time.dateTime(c.dueAt)}
                     </li>
                   ))}
                 </ul>
@@ -169,7 +212,14 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
                   </span>
                 ) : (
                   <a href={`/runs/${run.id}/frames/${f.id}/image`} title={`${f.name}${f.timeS !== null ? ` at ${formatFixed(f.timeS, 3)} s` : ""}`}>
-                    <img src={`/runs/${run.id}/frames/${f.id}/image?size=thumb`} loading="lazy" width={120} height={68} alt={`Frame ${f.position + 1}: ${f.name}`} className="h-[68px] w-[120px] rounded border border-line object-cover" />
+                    <img
+                      src={`/runs/${run.id}/frames/${f.id}/image?size=thumb`}
+                      loading="lazy"
+                      width={120}
+                      height={68}
+                      alt={`Frame ${f.position + 1}: ${f.name}`}
+                      className="h-[68px] w-[120px] rounded border border-line object-cover"
+                    />
                   </a>
                 )}
               </li>
@@ -189,7 +239,9 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         <Card title="View setup">
           {d.setup ? (
             <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
-              <Fact label="Rotation centre">{formatNumber(d.setup.centre.x, 5)}, {formatNumber(d.setup.centre.y, 5)} px</Fact>
+              <Fact label="Rotation centre">
+                {formatNumber(d.setup.centre.x, 5)}, {formatNumber(d.setup.centre.y, 5)} px
+              </Fact>
               <Fact label="Tank edge">{d.setup.edge ? `circle of radius ${formatNumber(d.setup.edge.r, 4)} px` : "whole frame searched"}</Fact>
               <Fact label="Scale">
                 {d.setup.pxPerM
@@ -205,14 +257,24 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
           )}
         </Card>
         <Card title="Tracking">
-          <TrackingPanel runId={run.id} initial={{ job: d.job, checkAwaited: d.checkAwaited, tracks: d.tracks }} canChange={canChange} ready={!readyReason} readyReason={readyReason} />
+          <TrackingPanel
+            runId={run.id}
+            initial={{ job: d.job, checkAwaited: d.checkAwaited, tracks: d.tracks }}
+            canChange={canChange}
+            ready={!readyReason}
+            readyReason={readyReason}
+          />
         </Card>
       </div>
 
       {d.job?.state === "done" && d.tracks.length ? (
         <Card title={`Tracks (${d.tracks.length})`}>
           <div className="grid gap-6 xl:grid-cols-[1.4fr_1fr]">
-            <img src={`/runs/${run.id}/overlay.png?job=${d.job.id}`} alt="The middle frame with the tracks drawn over it" className="w-full rounded border border-line" />
+            <img
+              src={`/runs/${run.id}/overlay.png?job=${d.job.id}`}
+              alt="The middle frame with the tracks drawn over it"
+              className="w-full rounded border border-line"
+            />
             <table className="w-full self-start text-left">
               <thead>
                 <tr className="border-b-2 border-line">
@@ -226,7 +288,10 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
               <tbody>
                 {d.tracks.map((t) => (
                   <tr key={t.id} className={`border-b border-line ${t.id === longest?.id ? "font-bold" : ""}`}>
-                    <td className="py-2">#{t.number}{t.id === longest?.id ? " (checked)" : ""}</td>
+                    <td className="py-2">
+                      #{t.number}
+                      {t.id === longest?.id ? " (checked)" : ""}
+                    </td>
                     <td className="py-2">{t.points}</td>
                     <td className="py-2">{formatNumber(t.duration, 3)} s</td>
                     <td className="py-2">{t.detectedShare === null ? "—" : `${formatNumber(t.detectedShare * 100, 3)} %`}</td>

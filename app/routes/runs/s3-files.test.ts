@@ -63,7 +63,11 @@ afterAll(async () => {
 });
 
 /** Calls a route function as React Router does; anything thrown that is not a Response or data() is the server's 500. */
-async function call(fn: (args: never) => unknown, request: Request, params: Record<string, string> = {}): Promise<{ status: number; response: Response | null; data: unknown }> {
+async function call(
+  fn: (args: never) => unknown,
+  request: Request,
+  params: Record<string, string> = {},
+): Promise<{ status: number; response: Response | null; data: unknown }> {
   let answer: unknown;
   try {
     answer = await fn({ request, params, context: {} } as never);
@@ -85,7 +89,8 @@ async function cookieFor(userId: number) {
   return (await sessionStorage.commitSession(session)).split(";")[0]!;
 }
 const page = async (url: string, userId?: number) => new Request(`http://localhost${url}`, { headers: userId ? { Cookie: await cookieFor(userId) } : {} });
-const bearer = (url: string, token: string, init: RequestInit = {}) => new Request(`http://localhost${url}`, { ...init, headers: { Authorization: `Bearer ${token}`, ...(init.headers ?? {}) } });
+const bearer = (url: string, token: string, init: RequestInit = {}) =>
+  new Request(`http://localhost${url}`, { ...init, headers: { Authorization: `Bearer ${token}`, ...(init.headers ?? {}) } });
 
 function uploadFrame(runId: number, name: string, data: Buffer) {
   const form = new FormData();
@@ -99,8 +104,15 @@ async function bucketKeys(prefix: string) {
 }
 const bytesOf = async (r: Response) => Buffer.from(await r.arrayBuffer());
 const localRunDir = (runId: number) => path.join(env.uploadsDir, "runs", String(runId));
-const exists = (p: string) => fs.stat(p).then(() => true, () => false);
-const png = (shade: number) => sharp({ create: { width: 64, height: 48, channels: 3, background: { r: shade, g: 90, b: 120 } } }).png().toBuffer();
+const exists = (p: string) =>
+  fs.stat(p).then(
+    () => true,
+    () => false,
+  );
+const png = (shade: number) =>
+  sharp({ create: { width: 64, height: 48, channels: 3, background: { r: shade, g: 90, b: 120 } } })
+    .png()
+    .toBuffer();
 
 describe("frames in an S3 bucket", () => {
   it("are uploaded through the API into the bucket, not the local folder, and read back through the frame route", async () => {
@@ -113,19 +125,28 @@ describe("frames in an S3 bucket", () => {
     expect(await bucketKeys(`runs/${run.id}/`)).toEqual([`runs/${run.id}/${frame.storedName}`, `runs/${run.id}/${frame.thumbName}`].sort());
     expect(await exists(localRunDir(run.id))).toBe(false);
 
-    const image = await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image`, lab.instructor.id), { id: String(run.id), frameId: String(frame.id) });
+    const image = await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image`, lab.instructor.id), {
+      id: String(run.id),
+      frameId: String(frame.id),
+    });
     expect(image.status).toBe(200);
     expect(image.response!.headers.get("Content-Type")).toBe("image/png");
     expect(image.response!.headers.get("Content-Length")).toBe(String(sent.length));
     expect((await bytesOf(image.response!)).equals(sent)).toBe(true);
 
-    const thumb = await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image?size=thumb`, lab.tech.id), { id: String(run.id), frameId: String(frame.id) });
+    const thumb = await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image?size=thumb`, lab.tech.id), {
+      id: String(run.id),
+      frameId: String(frame.id),
+    });
     expect(thumb.status).toBe(200);
     expect(thumb.response!.headers.get("Content-Type")).toBe("image/webp");
     expect(await sharp(await bytesOf(thumb.response!)).metadata()).toMatchObject({ format: "webp", width: 64, height: 48 });
 
     // HEAD only looks the object up.
-    const headRequest = new Request(`http://localhost/runs/${run.id}/frames/${frame.id}/image`, { method: "HEAD", headers: { Cookie: (await page("/", lab.tech.id)).headers.get("Cookie")! } });
+    const headRequest = new Request(`http://localhost/runs/${run.id}/frames/${frame.id}/image`, {
+      method: "HEAD",
+      headers: { Cookie: (await page("/", lab.tech.id)).headers.get("Cookie")! },
+    });
     const head = await call(frameImageLoader, headRequest, { id: String(run.id), frameId: String(frame.id) });
     expect(head.status).toBe(200);
     expect(head.response!.headers.get("Content-Length")).toBe(String(sent.length));
@@ -146,13 +167,23 @@ describe("frames in an S3 bucket", () => {
     const frame = (await Frame.findOne({ where: { runId: run.id, position: 0 } }))!;
     await admin.send(new DeleteObjectCommand({ Bucket: bucket, Key: `runs/${run.id}/${frame.storedName}` }));
 
-    const image = await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image`, lab.tech.id), { id: String(run.id), frameId: String(frame.id) });
+    const image = await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image`, lab.tech.id), {
+      id: String(run.id),
+      frameId: String(frame.id),
+    });
     expect(image.status).toBe(404);
     expect(await image.response!.json()).toEqual({
       error: { code: "file_missing", message: "The file of frame 1 (frame_1.png) is missing from storage. Bring the same frame again to put it back." },
     });
     // Its thumbnail is still there and still served.
-    expect((await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image?size=thumb`, lab.tech.id), { id: String(run.id), frameId: String(frame.id) })).status).toBe(200);
+    expect(
+      (
+        await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image?size=thumb`, lab.tech.id), {
+          id: String(run.id),
+          frameId: String(frame.id),
+        })
+      ).status,
+    ).toBe(200);
 
     const loaded = await call(runPageLoader, await page(`/runs/${run.id}`, lab.tech.id), { id: String(run.id) });
     expect(loaded.status).toBe(200);
@@ -167,10 +198,15 @@ describe("frames in an S3 bucket", () => {
     const again = await call(framesAction, uploadFrame(run.id, "frame_1.png", first), { runId: String(run.id) });
     expect(again.status).toBe(200);
     expect((await again.response!.json()).accepted).toEqual([{ name: "frame_1.png", frameId: frame.id, position: 0, duplicate: true, restored: true }]);
-    const back = await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image`, lab.tech.id), { id: String(run.id), frameId: String(frame.id) });
+    const back = await call(frameImageLoader, await page(`/runs/${run.id}/frames/${frame.id}/image`, lab.tech.id), {
+      id: String(run.id),
+      frameId: String(frame.id),
+    });
     expect(back.status).toBe(200);
     expect((await bytesOf(back.response!)).equals(first)).toBe(true);
-    const reloaded = (await call(runPageLoader, await page(`/runs/${run.id}`, lab.tech.id), { id: String(run.id) })).data as Awaited<ReturnType<typeof runPageLoader>>;
+    const reloaded = (await call(runPageLoader, await page(`/runs/${run.id}`, lab.tech.id), { id: String(run.id) })).data as Awaited<
+      ReturnType<typeof runPageLoader>
+    >;
     expect(reloaded.frameFiles.missing).toBe(0);
   });
 });
@@ -179,18 +215,42 @@ const W = 320;
 const H = 240;
 const centre = { x: 160.3, y: 119.6 };
 const spec = (frames: number): SyntheticRunSpec => ({
-  width: W, height: H, frames, fps: 30, seed: 11, camera: "rotating", omega: rpmToRadPerS(15), centre, pxPerM: 600, tankRadiusPx: 110, noiseSigma: 2,
+  width: W,
+  height: H,
+  frames,
+  fps: 30,
+  seed: 11,
+  camera: "rotating",
+  omega: rpmToRadPerS(15),
+  centre,
+  pxPerM: 600,
+  tankRadiusPx: 110,
+  noiseSigma: 2,
   tracers: [{ kind: "float", sigmaPx: 2.5, brightness: 120, path: { kind: "inertial-circle", centre: { x: 0.01, y: 0 }, radius: 0.06, phase: 0 } }],
 });
 
 async function trackableRun(frames: number) {
   const run = await createRun(lab.runInput({ setRateRpm: 15 }), lab.tech);
   await renderRunFrames(spec(frames), async (f) => {
-    const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } }).jpeg({ quality: 92 }).toBuffer();
+    const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } })
+      .jpeg({ quality: 92 })
+      .toBuffer();
     await receiveFrameFile(run, new File([new Uint8Array(jpeg)], `frame_${f.index}.jpg`), null);
   });
-  await ViewSetup.create({ runId: run.id, cameraId: run.cameraId, centreXPx: centre.x, centreYPx: centre.y, tankEdgeXPx: centre.x, tankEdgeYPx: centre.y, tankEdgeRPx: 105, scalePxPerM: 600, scalePoints: null, mirrored: false, createdById: lab.tech.id });
-  return (await run.reload());
+  await ViewSetup.create({
+    runId: run.id,
+    cameraId: run.cameraId,
+    centreXPx: centre.x,
+    centreYPx: centre.y,
+    tankEdgeXPx: centre.x,
+    tankEdgeYPx: centre.y,
+    tankEdgeRPx: 105,
+    scalePxPerM: 600,
+    scalePoints: null,
+    mirrored: false,
+    createdById: lab.tech.id,
+  });
+  return await run.reload();
 }
 
 async function scratchFoldersOf(job: TrackingJob) {
@@ -239,13 +299,21 @@ describe("calibration attachments in a bucket", () => {
   it("are stored in the bucket and read back through the API by those who may read calibrations; a missing file is a 404", async () => {
     const meter = await Equipment.create({ kind: "rate_meter", name: "S3 test tachometer", meterType: "tachometer" } as never);
     const cal = await createCalibration(
-      { kind: "rate", equipmentId: lab.table.id, meterId: meter.id, performedOn: new Date().toISOString().slice(0, 10), readings: [5, 10, 15].map((s) => ({ setRpm: s, measuredRpm: s })) },
+      {
+        kind: "rate",
+        equipmentId: lab.table.id,
+        meterId: meter.id,
+        performedOn: new Date().toISOString().slice(0, 10),
+        readings: [5, 10, 15].map((s) => ({ setRpm: s, measuredRpm: s })),
+      },
       lab.tech,
     );
     const pdf = Buffer.from("%PDF-1.4\n1 0 obj << >> endobj\ntrailer << >>\n%%EOF\n");
     const form = new FormData();
     form.set("file", new File([new Uint8Array(pdf)], "certificate.pdf"));
-    const up = await call(attachAction, bearer(`/api/v1/calibrations/${cal.id}/attachments`, techToken, { method: "POST", body: form }), { id: String(cal.id) });
+    const up = await call(attachAction, bearer(`/api/v1/calibrations/${cal.id}/attachments`, techToken, { method: "POST", body: form }), {
+      id: String(cal.id),
+    });
     expect(up.status).toBe(201);
     const row = (await CalibrationAttachment.findOne({ where: { calibrationId: cal.id } }))!;
     expect(await bucketKeys("calibrations/")).toContain(`calibrations/${row.storedName}`);

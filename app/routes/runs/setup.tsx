@@ -110,7 +110,11 @@ export default function Setup({ loaderData, actionData }: Route.ComponentProps) 
   const errors = (actionData?.errors ?? {}) as Record<string, string[] | undefined>;
   return (
     <div>
-      <PageHeader title={`View setup · ${runLabel(runId)}`} subtitle="Mark the rotation centre, the tank edge and the scale on the first frame." actions={<ButtonLink to={`/runs/${runId}`}>Back to the run</ButtonLink>} />
+      <PageHeader
+        title={`View setup · ${runLabel(runId)}`}
+        subtitle="Mark the rotation centre, the tank edge and the scale on the first frame."
+        actions={<ButtonLink to={`/runs/${runId}`}>Back to the run</ButtonLink>}
+      />
       {imageMissing ? (
         <div className="mb-4">
           <Notice kind="error" title="The first frame's file is missing from storage">
@@ -120,13 +124,19 @@ export default function Setup({ loaderData, actionData }: Route.ComponentProps) 
       ) : null}
       {reusedFrom ? (
         <div className="mb-4">
-          <Notice kind="info" title={`Started from the last setup of this camera (${runLabel(reusedFrom)})`}>Check the marks still sit where they should before saving.</Notice>
+          <Notice kind="info" title={`Started from the last setup of this camera (${runLabel(reusedFrom)})`}>
+            Check the marks still sit where they should before saving.
+          </Notice>
         </div>
       ) : null}
       {scaleCalibration ? (
         <div className="mb-4">
-          <Notice kind="info" title={`Scale calibration #${scaleCalibration.id} is in force for this camera: ${formatNumber(scaleCalibration.scalePxPerM / 100, 5)} px per cm`}>
-            Leave the scale unmarked and the theory check uses it. A scale you mark here is kept, and flagged on the run when it differs from the calibration by more than {formatNumber(scaleCalibration.tolerancePct, 3)} %.
+          <Notice
+            kind="info"
+            title={`Scale calibration #${scaleCalibration.id} is in force for this camera: ${formatNumber(scaleCalibration.scalePxPerM / 100, 5)} px per cm`}
+          >
+            Leave the scale unmarked and the theory check uses it. A scale you mark here is kept, and flagged on the run when it differs from the calibration by
+            more than {formatNumber(scaleCalibration.tolerancePct, 3)} %.
           </Notice>
         </div>
       ) : null}

@@ -10,7 +10,13 @@ let cookie = "";
 
 beforeAll(async () => {
   await migrate();
-  const user = await User.create({ email: "settings-manager@tankside.example", name: "Sol Settings", role: "lab_manager", passwordHash: null, passwordChangedAt: null });
+  const user = await User.create({
+    email: "settings-manager@tankside.example",
+    name: "Sol Settings",
+    role: "lab_manager",
+    passwordHash: null,
+    passwordChangedAt: null,
+  });
   const s = await sessionStorage.getSession();
   s.set("userId", user.id);
   cookie = (await sessionStorage.commitSession(s)).split(";")[0] ?? "";
@@ -40,7 +46,7 @@ describe("the lab's time zone setting", () => {
     expect(saved.status).toBe(200);
     expect(saved.body.saved).toBe(true);
     expect(await getLabTimeZone()).toBe("Europe/Berlin");
-    const page = (await loader({ request: new Request("http://localhost/settings", { headers: { Cookie: cookie } }), params: {}, context: {} } as never));
+    const page = await loader({ request: new Request("http://localhost/settings", { headers: { Cookie: cookie } }), params: {}, context: {} } as never);
     expect(page.settings.timeZone).toBe("Europe/Berlin");
     expect(page.settings.timeZoneIsServerDefault).toBe(false);
     expect(page.timeZones).toContain("America/New_York");

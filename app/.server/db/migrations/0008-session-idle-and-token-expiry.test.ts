@@ -9,9 +9,13 @@ describe("migration 0008 on a database already in use", () => {
     // Rows as they were before 0008, written through the query interface so each database gets its own booleans and dates.
     const qi = sequelize.getQueryInterface();
     const then = new Date("2026-12-01T10:00:00.000Z");
-    await qi.bulkInsert("users", [{ id: 900, email: "old@tankside.example", name: "Old", role: "technician", password_hash: null, active: true, created_at: then, updated_at: then }]);
+    await qi.bulkInsert("users", [
+      { id: 900, email: "old@tankside.example", name: "Old", role: "technician", password_hash: null, active: true, created_at: then, updated_at: then },
+    ]);
     await qi.bulkInsert("api_tokens", [{ user_id: 900, label: "old script", token_hash: "hash", token_prefix: "tks_old", created_at: then, updated_at: then }]);
-    await qi.bulkInsert("sessions", [{ id: "old-session", user_id: 900, data: "{}", expires_at: new Date("2026-12-10T10:00:00.000Z"), created_at: then, updated_at: then }]);
+    await qi.bulkInsert("sessions", [
+      { id: "old-session", user_id: 900, data: "{}", expires_at: new Date("2026-12-10T10:00:00.000Z"), created_at: then, updated_at: then },
+    ]);
 
     const before = Date.now();
     await migrator.up();

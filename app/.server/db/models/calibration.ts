@@ -1,10 +1,4 @@
-import {
-  DataTypes,
-  Model,
-  type CreationOptional,
-  type InferAttributes,
-  type InferCreationAttributes,
-} from "sequelize";
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes } from "sequelize";
 import { sequelize } from "../connection";
 import type { CalibrationKind } from "~/lib/calibrations";
 
@@ -99,10 +93,7 @@ Calibration.init(
   { sequelize, tableName: "calibrations", underscored: true },
 );
 
-export class CalibrationAttachment extends Model<
-  InferAttributes<CalibrationAttachment>,
-  InferCreationAttributes<CalibrationAttachment>
-> {
+export class CalibrationAttachment extends Model<InferAttributes<CalibrationAttachment>, InferCreationAttributes<CalibrationAttachment>> {
   declare id: CreationOptional<number>;
   declare calibrationId: number;
   declare originalName: string;

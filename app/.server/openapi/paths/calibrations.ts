@@ -11,7 +11,8 @@ const tags = ["Calibrations"];
 function whoMay(capability: Capability) {
   const allowed = capabilityRoles[capability] as readonly Role[];
   const names = allowed.map((r) => roleLabels[r].toLowerCase());
-  const text = allowed.length === roles.length ? "every role" : names.length > 1 ? `${names.slice(0, -1).join(", ")} or ${names.at(-1)}` : (names[0] ?? "nobody");
+  const text =
+    allowed.length === roles.length ? "every role" : names.length > 1 ? `${names.slice(0, -1).join(", ")} or ${names.at(-1)}` : (names[0] ?? "nobody");
   return { "x-roles": [...allowed], description: `Open to ${text}.`, forbidden: error(`Not for your role: only ${text} (forbidden).`) };
 }
 
@@ -46,7 +47,14 @@ export function registerCalibrationPaths(registry: OpenAPIRegistry) {
     summary: "Record a calibration; it waits for a lab manager's sign-off",
     ...strip(record),
     request: body,
-    responses: { 201: json(calibrationSchema, "Recorded"), 400: badBody(), 403: record.forbidden, 404: error("Unknown equipment or meter (not_found)."), 415: notJson, 422: refusedNow },
+    responses: {
+      201: json(calibrationSchema, "Recorded"),
+      400: badBody(),
+      403: record.forbidden,
+      404: error("Unknown equipment or meter (not_found)."),
+      415: notJson,
+      422: refusedNow,
+    },
   });
   operation(registry, {
     method: "get",
@@ -101,7 +109,10 @@ export function registerCalibrationPaths(registry: OpenAPIRegistry) {
     ...strip(record),
     request: {
       params: ids("id"),
-      body: { required: true, content: { "multipart/form-data": { schema: z.strictObject({ file: z.string().openapi({ format: "binary", description: "The photo or PDF." }) }) } } },
+      body: {
+        required: true,
+        content: { "multipart/form-data": { schema: z.strictObject({ file: z.string().openapi({ format: "binary", description: "The photo or PDF." }) }) } },
+      },
     },
     responses: {
       201: json(calibrationAttachmentSchema, "Stored"),

@@ -9,7 +9,13 @@ const forbidden = error("Your role does not allow this (forbidden).");
 
 /** Who is asking, the people and mail (lab manager), the equipment register, and this document. */
 export function registerCorePaths(registry: OpenAPIRegistry) {
-  operation(registry, { method: "get", path: "/api/v1/me", operationId: "getMe", summary: "Who the token or session belongs to", responses: { 200: json(meSchema, "The person") } });
+  operation(registry, {
+    method: "get",
+    path: "/api/v1/me",
+    operationId: "getMe",
+    summary: "Who the token or session belongs to",
+    responses: { 200: json(meSchema, "The person") },
+  });
   operation(registry, {
     method: "get",
     path: "/api/v1/users",
@@ -23,7 +29,11 @@ export function registerCorePaths(registry: OpenAPIRegistry) {
     operationId: "listCapturedMail",
     summary: "Captured mail of the fake mail server (lab manager; demo and test only)",
     request: { query: z.strictObject({ to: z.string().optional().openapi({ description: "Only mail to this address (case-insensitive)." }) }) },
-    responses: { 200: json(z.array(capturedMailSchema), "Newest first, at most 200"), 403: forbidden, 404: error("Mail goes through a real relay here: nothing is captured (not_found).") },
+    responses: {
+      200: json(z.array(capturedMailSchema), "Newest first, at most 200"),
+      403: forbidden,
+      404: error("Mail goes through a real relay here: nothing is captured (not_found)."),
+    },
   });
   operation(registry, {
     method: "get",

@@ -17,10 +17,14 @@ export const file = (type: string, description: string, example?: string): Respo
 });
 
 /** The answers every signed-in operation can give without its own words. */
-export const notSignedIn = error("Not signed in (unauthenticated), or the API token is wrong (invalid_token), expired (token_expired) or revoked (token_revoked).");
+export const notSignedIn = error(
+  "Not signed in (unauthenticated), or the API token is wrong (invalid_token), expired (token_expired) or revoked (token_revoked).",
+);
 export const notJson = error("The body is not sent as application/json (unsupported_media_type).");
 export const badBody = (what = "") =>
-  error(`invalid_json: the body is not JSON; invalid_input: it fails the request schema (error.issues names every field in error, unknown fields included)${what ? `; ${what}` : ""}.`);
+  error(
+    `invalid_json: the body is not JSON; invalid_input: it fails the request schema (error.issues names every field in error, unknown fields included)${what ? `; ${what}` : ""}.`,
+  );
 
 /** Path parameters as the routes parse them (parseId): a positive whole number up to 2³¹ − 1, else 404. */
 export const ids = (...names: string[]) => z.strictObject(Object.fromEntries(names.map((n) => [n, z.number().int().min(1).max(MAX_ID)])));

@@ -44,7 +44,10 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
     summary: "Runs, filtered, sorted and paged by the server",
     description: "The same query as the runs table's address: copy a filtered view's search parameters here.",
     request: { query: routeSchema(runFiltersSchema) },
-    responses: { 200: json(runPageSchema, "One page"), 400: error("Unknown filter or sort field, malformed date, page out of range (invalid_filter, with field).") },
+    responses: {
+      200: json(runPageSchema, "One page"),
+      400: error("Unknown filter or sort field, malformed date, page out of range (invalid_filter, with field)."),
+    },
   });
   operation(registry, {
     method: "post",
@@ -79,7 +82,15 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
     summary: "Change some of a run's conditions (its technician or a lab manager)",
     description: "The fields are merged over the stored run and checked as a whole; every change is kept in the run's history.",
     request: { params: ids("id"), body: { required: true, content: { "application/json": { schema: patch, example: runPatchExample } } } },
-    responses: { 200: json(runSchema, "The run after the change"), 400: badBody(), 403: writers, 404: noRun, 409: error(`${signedOff}.`), 415: notJson, 422: notPossible },
+    responses: {
+      200: json(runSchema, "The run after the change"),
+      400: badBody(),
+      403: writers,
+      404: noRun,
+      409: error(`${signedOff}.`),
+      415: notJson,
+      422: notPossible,
+    },
   });
   operation(registry, {
     method: "get",
@@ -158,7 +169,10 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
       409: error(`${signedOff}.`),
       413: error("Too large, or a ZIP with too many entries."),
       415: error("Not multipart/form-data (unsupported_media_type)."),
-      422: json(z.union([frameUploadRefusedSchema, errorSchema]), "No frame was accepted (no_frames_accepted, with what happened to each file), or a damaged image or ZIP."),
+      422: json(
+        z.union([frameUploadRefusedSchema, errorSchema]),
+        "No frame was accepted (no_frames_accepted, with what happened to each file), or a damaged image or ZIP.",
+      ),
       503: error("The file store cannot be reached (storage_unavailable)."),
     },
   });
@@ -178,7 +192,12 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
     tags,
     summary: "Start tracking (technician, lab manager)",
     request: { params: ids("runId") },
-    responses: { 202: json(trackingJobAnswerSchema, "The queued job"), 403: writers, 404: noRun, 409: error("Already running (job_active), no frames or no view setup, or signed off.") },
+    responses: {
+      202: json(trackingJobAnswerSchema, "The queued job"),
+      403: writers,
+      404: noRun,
+      409: error("Already running (job_active), no frames or no view setup, or signed off."),
+    },
   });
   operation(registry, {
     method: "delete",

@@ -16,7 +16,8 @@ export const errorSchema = z
   .strictObject({
     error: z.strictObject({
       code: z.string().openapi({
-        description: "Stable and machine-readable: invalid_input, invalid_json, unsupported_media_type, unauthenticated, invalid_token, forbidden, not_found, run_signed_off, booking_conflict…",
+        description:
+          "Stable and machine-readable: invalid_input, invalid_json, unsupported_media_type, unauthenticated, invalid_token, forbidden, not_found, run_signed_off, booking_conflict…",
       }),
       message: z.string().min(1).openapi({ description: "A sentence for a person." }),
       field: z.string().optional().openapi({ description: "The body or query field the answer is about." }),
@@ -32,5 +33,7 @@ export const namedSchema = z.strictObject({ id: z.number().int(), name: z.string
 /** Whether the e-mail a change caused was queued in the outbox (with the change itself), or nobody was there to tell. */
 export const mailReportSchema = z
   .union([z.strictObject({ queued: z.literal(true), outboxId: z.number().int() }), z.strictObject({ queued: z.literal(false) })])
-  .openapi("MailReport", { description: "The e-mail this change caused: queued in the outbox (its delivery is listed at /api/v1/mail/outbox), or nobody to tell." });
+  .openapi("MailReport", {
+    description: "The e-mail this change caused: queued in the outbox (its delivery is listed at /api/v1/mail/outbox), or nobody to tell.",
+  });
 export type MailReport = z.infer<typeof mailReportSchema>;

@@ -45,14 +45,18 @@ export const runExportSchema = z
     viewSetup: viewSetupSchema.nullable(),
     calibrationIdsInForce: z.array(z.number().int()),
     calibrationsInForce: z.array(calibrationRecordAtRunSchema),
-    calibrationsApplied: z.unknown().openapi({ description: "What the latest check did with each calibration, in words; null for a check made before this was recorded." }),
+    calibrationsApplied: z
+      .unknown()
+      .openapi({ description: "What the latest check did with each calibration, in words; null for a check made before this was recorded." }),
     tracks: z.strictObject({ count: z.number().int(), items: z.array(trackSummarySchema) }),
     trackingJob: trackingJobSchema.nullable(),
     settings: z
       .strictObject({ used: z.unknown(), requested: z.unknown() })
       .nullable()
       .openapi({ description: "used: the smoothing window, order and tolerance the check applied; requested: what was asked for." }),
-    theoryCheckInput: z.unknown().openapi({ description: "The check's inputs: view setup, set and calibrated rate, camera mode, t₀, settings, track points; null without a current check." }),
+    theoryCheckInput: z.unknown().openapi({
+      description: "The check's inputs: view setup, set and calibrated rate, camera mode, t₀, settings, track points; null without a current check.",
+    }),
     theoryCheck: z
       .strictObject({ ...theoryCheckSummarySchema.shape, result: z.unknown().openapi({ description: "The stored check: { result, input }." }) })
       .nullable()

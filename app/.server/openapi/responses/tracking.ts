@@ -22,8 +22,18 @@ export const trackingSchema = z
     runId: z.number().int(),
     runState: z.enum(runStates),
     job: trackingJobSchema.nullable(),
-    checkAwaited: z.boolean().openapi({ description: "The job is done and the theory check that follows it has not been made yet; poll again for the verdict." }),
-    tracks: z.array(z.strictObject({ id: z.number().int(), number: z.number().int(), points: z.number().int(), detectedShare: z.number().nullable(), jitterPx: z.number().nullable() })),
+    checkAwaited: z
+      .boolean()
+      .openapi({ description: "The job is done and the theory check that follows it has not been made yet; poll again for the verdict." }),
+    tracks: z.array(
+      z.strictObject({
+        id: z.number().int(),
+        number: z.number().int(),
+        points: z.number().int(),
+        detectedShare: z.number().nullable(),
+        jitterPx: z.number().nullable(),
+      }),
+    ),
   })
   .openapi("Tracking");
 
@@ -35,7 +45,14 @@ export const frameStackSchema = z
     width: z.number().int().nullable(),
     height: z.number().int().nullable(),
     frames: z.array(
-      z.strictObject({ id: z.number().int(), position: z.number().int(), name: z.string(), timeS: z.number().nullable(), format: z.string(), sizeBytes: z.number().int() }),
+      z.strictObject({
+        id: z.number().int(),
+        position: z.number().int(),
+        name: z.string(),
+        timeS: z.number().nullable(),
+        format: z.string(),
+        sizeBytes: z.number().int(),
+      }),
     ),
   })
   .openapi("FrameStack");

@@ -9,8 +9,9 @@ export default defineConfig({
   workers: 1,
   fullyParallel: false,
   retries: 0,
-  timeout: 60_000,
-  expect: { timeout: 10_000 },
+  // Generous, because npm test runs the browser tests beside Vitest on a 2-core machine.
+  timeout: 120_000,
+  expect: { timeout: 20_000 },
   reporter: process.env.CI ? [["list"]] : [["list"]],
   use: {
     baseURL: `http://127.0.0.1:${port}`,
@@ -33,7 +34,7 @@ export default defineConfig({
   webServer: {
     command: `node tests/setup/e2e-server.mjs`,
     url: `http://127.0.0.1:${port}/sign-in`,
-    timeout: 240_000,
+    timeout: 480_000, // seeding renders and tracks the demo runs; slower beside Vitest
     reuseExistingServer: false,
     stdout: "pipe",
     stderr: "pipe",

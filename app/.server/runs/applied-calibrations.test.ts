@@ -1,10 +1,10 @@
 import { beforeAll, describe, expect, it } from "vitest";
-import { Track, ViewSetup } from "../db";
+import { Track } from "../db";
 import { smallLab } from "../test-support";
 import { createRun } from "./service";
 import { checkRun, storedCheck } from "./theory";
 import { currentCheck } from "./current-check";
-import { doneTrackingJob } from "./testing";
+import { doneTrackingJob, plainViewSetup } from "./testing";
 import { getRunExport } from "./record";
 import { tracksCsv } from "./exports";
 import { createCalibration, signOffCalibration, toDayString } from "../calibrations";
@@ -38,19 +38,7 @@ function fastClockTrack(seconds = 6) {
 
 async function runWithTrack(setupPxPerM: number | null) {
   const run = await createRun(lab.runInput({ setRateRpm: SET_RPM, frameRateFps: NOMINAL_FPS }), lab.tech);
-  await ViewSetup.create({
-    runId: run.id,
-    cameraId: run.cameraId,
-    centreXPx: centre.x,
-    centreYPx: centre.y,
-    tankEdgeXPx: null,
-    tankEdgeYPx: null,
-    tankEdgeRPx: null,
-    scalePxPerM: setupPxPerM,
-    scalePoints: null,
-    mirrored: false,
-    createdById: lab.tech.id,
-  });
+  await plainViewSetup(run, lab.tech.id, { centre, pxPerM: setupPxPerM });
   // The job is recorded after the view setup, as the queue would: its tracks count as made from the present inputs.
   const job = await doneTrackingJob(run, lab.tech.id, 180);
   const points = fastClockTrack();

@@ -1,9 +1,9 @@
 import { beforeAll, describe, expect, it } from "vitest";
-import { migrate, TrackingJob, ViewSetup } from "../db";
+import { migrate, TrackingJob } from "../db";
 import { createRun } from "./service";
 import { checkRun } from "./theory";
 import { checkAwaited } from "./current-check";
-import { checkedRunFor, doneTrackingJob, runInput, seedRunLab, type RunLab } from "./testing";
+import { checkedRunFor, doneTrackingJob, plainViewSetup, runInput, seedRunLab, type RunLab } from "./testing";
 
 let lab: RunLab;
 beforeAll(async () => {
@@ -14,19 +14,7 @@ beforeAll(async () => {
 /** A run with a view setup and a tracking job that has just finished, its check not made yet. */
 async function trackedUnchecked() {
   const run = await createRun(runInput(lab), lab.technician);
-  await ViewSetup.create({
-    runId: run.id,
-    cameraId: run.cameraId,
-    centreXPx: 640,
-    centreYPx: 360,
-    tankEdgeXPx: null,
-    tankEdgeYPx: null,
-    tankEdgeRPx: null,
-    scalePxPerM: 1000,
-    scalePoints: null,
-    mirrored: false,
-    createdById: lab.technician.id,
-  });
+  await plainViewSetup(run, lab.technician.id);
   const job = await doneTrackingJob(run, lab.technician.id, 10);
   await run.update({ state: "tracked" });
   return { run, job };

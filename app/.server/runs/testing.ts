@@ -70,6 +70,26 @@ export function runInput(lab: RunLab, overrides: Record<string, unknown> = {}) {
 }
 
 /**
+ * A saved view setup for a run: the rotation centre, a scale and no tank edge, as a technician
+ * would mark it. Create it before the tracking job, so the job's tracks count as made from it.
+ */
+export async function plainViewSetup(run: Run, createdById: number, { centre = { x: 640, y: 360 }, pxPerM = 1000 as number | null } = {}) {
+  return ViewSetup.create({
+    runId: run.id,
+    cameraId: run.cameraId,
+    centreXPx: centre.x,
+    centreYPx: centre.y,
+    tankEdgeXPx: null,
+    tankEdgeYPx: null,
+    tankEdgeRPx: null,
+    scalePxPerM: pxPerM,
+    scalePoints: null,
+    mirrored: false,
+    createdById,
+  });
+}
+
+/**
  * A finished tracking job for the run as it is now (frames, view setup, tracer, frame rate), as the
  * queue records it: tracks made under it count as made from the run's present inputs. Create the
  * view setup and frames first.
@@ -96,19 +116,7 @@ export async function checkedRunFor(lab: RunLab, user: CurrentUser, overrides: R
   const run = await createRun(runInput(lab, overrides), user);
   const centre = { x: 640, y: 360 };
   const pxPerM = 1000;
-  await ViewSetup.create({
-    runId: run.id,
-    cameraId: run.cameraId,
-    centreXPx: centre.x,
-    centreYPx: centre.y,
-    tankEdgeXPx: null,
-    tankEdgeYPx: null,
-    tankEdgeRPx: null,
-    scalePxPerM: pxPerM,
-    scalePoints: null,
-    mirrored: false,
-    createdById: user.id,
-  });
+  await plainViewSetup(run, user.id, { centre, pxPerM });
   const job = await doneTrackingJob(run, user.id, 180);
   const f = 2 * omegaFromTableRate(trueRpm ?? run.setRateRpm, run.direction);
   const points = Array.from({ length: 180 }, (_, i) => {

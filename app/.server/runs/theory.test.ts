@@ -1,10 +1,10 @@
 import { beforeAll, describe, expect, it } from "vitest";
-import { Equipment, Run, Track, ViewSetup } from "../db";
+import { Equipment, Run, Track } from "../db";
 import { smallLab } from "../test-support";
 import { createRun } from "./service";
 import { checkRun, rateInForce, storedCheck } from "./theory";
 import { currentCheck } from "./current-check";
-import { doneTrackingJob } from "./testing";
+import { doneTrackingJob, plainViewSetup } from "./testing";
 import { createCalibration, signOffCalibration, toDayString } from "../calibrations";
 import { rpmToRadPerS } from "~/lib/analysis/units";
 
@@ -33,19 +33,7 @@ function inertialTrack(trueRpm: number, seconds = 6, fps = 30) {
 
 async function runWithTrack(trueRpm: number) {
   const run = await createRun(lab.runInput({ setRateRpm: 10 }), lab.tech);
-  await ViewSetup.create({
-    runId: run.id,
-    cameraId: run.cameraId,
-    centreXPx: centre.x,
-    centreYPx: centre.y,
-    tankEdgeXPx: null,
-    tankEdgeYPx: null,
-    tankEdgeRPx: null,
-    scalePxPerM: pxPerM,
-    scalePoints: null,
-    mirrored: false,
-    createdById: lab.tech.id,
-  });
+  await plainViewSetup(run, lab.tech.id, { centre, pxPerM });
   const job = await doneTrackingJob(run, lab.tech.id, 180);
   const points = inertialTrack(trueRpm);
   await Track.create({ runId: run.id, jobId: job.id, number: 1, points: JSON.stringify(points), pointCount: points.length, detectedShare: 1, jitterPx: 0 });

@@ -73,7 +73,11 @@ export function runInput(lab: RunLab, overrides: Record<string, unknown> = {}) {
  * A saved view setup for a run: the rotation centre, a scale and no tank edge, as a technician
  * would mark it. Create it before the tracking job, so the job's tracks count as made from it.
  */
-export async function plainViewSetup(run: Run, createdById: number, { centre = { x: 640, y: 360 }, pxPerM = 1000 as number | null } = {}) {
+export async function plainViewSetup(
+  run: Run,
+  createdById: number,
+  { centre = { x: 640, y: 360 }, pxPerM = 1000 }: { centre?: { x: number; y: number }; pxPerM?: number | null } = {},
+) {
   return ViewSetup.create({
     runId: run.id,
     cameraId: run.cameraId,

@@ -64,10 +64,9 @@ export async function renderStack(frames: number): Promise<File[]> {
   return files;
 }
 
-/** Stores the frames on the run and marks its view, so it is ready to track. */
-export async function prepareRun(run: Run, files: File[], userId: number) {
-  for (const file of files) await receiveFrameFile(run, file, null);
-  await ViewSetup.create({
+/** The view setup of the rendered float stack (lib/tracking/float-stack.ts): its centre, tank edge and scale. */
+export function floatStackViewSetup(run: Run, userId: number) {
+  return ViewSetup.create({
     runId: run.id,
     cameraId: run.cameraId,
     centreXPx: centre.x,
@@ -80,6 +79,12 @@ export async function prepareRun(run: Run, files: File[], userId: number) {
     mirrored: false,
     createdById: userId,
   });
+}
+
+/** Stores the frames on the run and marks its view, so it is ready to track. */
+export async function prepareRun(run: Run, files: File[], userId: number) {
+  for (const file of files) await receiveFrameFile(run, file, null);
+  await floatStackViewSetup(run, userId);
   await run.reload();
   return run;
 }

@@ -1,12 +1,13 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import sharp from "sharp";
-import { Detection, Run, TheoryCheck, Track, TrackingJob, ViewSetup, isSqlite } from "../db";
+import { Detection, Run, TheoryCheck, Track, TrackingJob, isSqlite } from "../db";
 import { smallLab } from "../test-support";
+import { floatStackViewSetup } from "./testing";
 import { createRun } from "../runs/service";
 import { receiveFrameFile } from "../uploads/frames";
 import { cancelTracking, enqueueTracking, JobError, resumeInterruptedJobs, stopTrackingQueue, whenTrackingIdle } from "./tracking-queue";
 import { renderRunFrames } from "~/lib/tracking/synthetic";
-import { floatStackCentre, floatStackSpec } from "~/lib/tracking/float-stack";
+import { floatStackSpec } from "~/lib/tracking/float-stack";
 
 let lab: Awaited<ReturnType<typeof smallLab>>;
 beforeAll(async () => {
@@ -16,7 +17,6 @@ afterAll(async () => {
   await stopTrackingQueue();
 });
 
-const centre = floatStackCentre;
 const spec = (frames: number, withTracer = true) => floatStackSpec(frames, { seed: 7, withTracer });
 
 async function runWithFrames(frames: number, withTracer = true) {
@@ -32,19 +32,7 @@ async function runWithFrames(frames: number, withTracer = true) {
 }
 
 async function setUp(run: Run) {
-  await ViewSetup.create({
-    runId: run.id,
-    cameraId: run.cameraId,
-    centreXPx: centre.x,
-    centreYPx: centre.y,
-    tankEdgeXPx: centre.x,
-    tankEdgeYPx: centre.y,
-    tankEdgeRPx: 105,
-    scalePxPerM: 600,
-    scalePoints: null,
-    mirrored: false,
-    createdById: lab.tech.id,
-  });
+  await floatStackViewSetup(run, lab.tech.id);
 }
 
 describe("the tracking job queue", () => {

@@ -7,9 +7,10 @@ import { createElement } from "react";
 import { renderToString } from "react-dom/server";
 import { createRoutesStub } from "react-router";
 import { DeleteObjectCommand, ListObjectsV2Command, S3Client } from "@aws-sdk/client-s3";
-import { CalibrationAttachment, Equipment, Frame, TrackingJob, ViewSetup } from "~/.server/db";
+import { CalibrationAttachment, Equipment, Frame, TrackingJob } from "~/.server/db";
 import { env } from "~/.server/env";
 import { smallLab } from "~/.server/test-support";
+import { floatStackViewSetup } from "~/.server/jobs/testing";
 import { createRun } from "~/.server/runs/service";
 import { createCalibration } from "~/.server/calibrations";
 import { createApiToken } from "~/.server/auth/api-tokens";
@@ -17,8 +18,8 @@ import { sessionStorage } from "~/.server/auth/session";
 import { receiveFrameFile } from "~/.server/uploads/frames";
 import { enqueueTracking, stopTrackingQueue, whenTrackingIdle } from "~/.server/jobs/tracking-queue";
 import { resetStore, store } from "~/.server/storage";
-import { renderRunFrames, type SyntheticRunSpec } from "~/lib/tracking/synthetic";
-import { rpmToRadPerS } from "~/lib/analysis/units";
+import { renderRunFrames } from "~/lib/tracking/synthetic";
+import { floatStackSpec } from "~/lib/tracking/float-stack";
 import { createBucket, s3Env, s3SettingNames, startFakeS3, type FakeS3 } from "../../../tests/setup/fake-s3";
 import { action as framesAction } from "../api/run-frames";
 import { action as attachAction } from "../api/calibration-attachments";
@@ -211,45 +212,18 @@ describe("frames in an S3 bucket", () => {
   });
 });
 
-const W = 320;
-const H = 240;
-const centre = { x: 160.3, y: 119.6 };
-const spec = (frames: number): SyntheticRunSpec => ({
-  width: W,
-  height: H,
-  frames,
-  fps: 30,
-  seed: 11,
-  camera: "rotating",
-  omega: rpmToRadPerS(15),
-  centre,
-  pxPerM: 600,
-  tankRadiusPx: 110,
-  noiseSigma: 2,
-  tracers: [{ kind: "float", sigmaPx: 2.5, brightness: 120, path: { kind: "inertial-circle", centre: { x: 0.01, y: 0 }, radius: 0.06, phase: 0 } }],
-});
+// The rendered float stack the queue tests track (lib/tracking/float-stack.ts).
+const { width: W, height: H } = floatStackSpec(1);
 
 async function trackableRun(frames: number) {
   const run = await createRun(lab.runInput({ setRateRpm: 15 }), lab.tech);
-  await renderRunFrames(spec(frames), async (f) => {
+  await renderRunFrames(floatStackSpec(frames), async (f) => {
     const jpeg = await sharp(Buffer.from(f.data), { raw: { width: f.width, height: f.height, channels: 3 } })
       .jpeg({ quality: 92 })
       .toBuffer();
     await receiveFrameFile(run, new File([new Uint8Array(jpeg)], `frame_${f.index}.jpg`), null);
   });
-  await ViewSetup.create({
-    runId: run.id,
-    cameraId: run.cameraId,
-    centreXPx: centre.x,
-    centreYPx: centre.y,
-    tankEdgeXPx: centre.x,
-    tankEdgeYPx: centre.y,
-    tankEdgeRPx: 105,
-    scalePxPerM: 600,
-    scalePoints: null,
-    mirrored: false,
-    createdById: lab.tech.id,
-  });
+  await floatStackViewSetup(run, lab.tech.id);
   return await run.reload();
 }
 

@@ -45,13 +45,23 @@ function pgRun(cmd, args, opts = {}) {
   return r;
 }
 
-function running() {
-  return fs.existsSync(path.join(data, "postmaster.pid"));
+// Whether a server is really running on the folder: `pg_ctl status` checks the process named in
+// postmaster.pid, so a pid file left behind by a killed run (machine stopped, job killed) does not
+// count as a running cluster.
+function running(bin) {
+  if (!fs.existsSync(path.join(data, "postmaster.pid"))) return false;
+  const args = ["status", "-D", data];
+  const cmd = path.join(bin, "pg_ctl");
+  const r = asRoot ? spawnSync("runuser", ["-u", "postgres", "--", cmd, ...args]) : spawnSync(cmd, args);
+  return r.status === 0;
 }
 
 function start() {
   const bin = binDir();
-  if (running()) return url;
+  if (running(bin)) return url;
+  // Anything left in the folder is from a run that was killed before it could stop: the cluster is
+  // throw-away, so start from an empty folder rather than trust a half-written one.
+  fs.rmSync(dir, { recursive: true, force: true });
   fs.mkdirSync(dir, { recursive: true });
   if (asRoot) spawnSync("chown", ["-R", "postgres:postgres", dir]);
   if (!fs.existsSync(path.join(data, "PG_VERSION"))) {
@@ -71,7 +81,8 @@ function start() {
 }
 
 function stop() {
-  if (running()) pgRun(path.join(binDir(), "pg_ctl"), ["-D", data, "-m", "fast", "-w", "stop"]);
+  const bin = binDir();
+  if (running(bin)) pgRun(path.join(bin, "pg_ctl"), ["-D", data, "-m", "fast", "-w", "stop"]);
   fs.rmSync(dir, { recursive: true, force: true });
 }
 

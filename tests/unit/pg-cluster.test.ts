@@ -8,7 +8,8 @@ import { describe, expect, it } from "vitest";
 // The throw-away PostgreSQL cluster of `npm test` (scripts/pg-cluster.mjs) must start even when a
 // killed run left its folder behind with a postmaster.pid naming a process that is gone: trusting
 // that file once made the whole PostgreSQL pass fail with ECONNREFUSED.
-const hasPostgres = fs.existsSync("/usr/lib/postgresql") && fs.readdirSync("/usr/lib/postgresql").some((v) => fs.existsSync(`/usr/lib/postgresql/${v}/bin/initdb`));
+const hasPostgres =
+  fs.existsSync("/usr/lib/postgresql") && fs.readdirSync("/usr/lib/postgresql").some((v) => fs.existsSync(`/usr/lib/postgresql/${v}/bin/initdb`));
 const port = 54391; // apart from the suite's own cluster (54329) and the helpers' ports
 const dir = path.join(os.tmpdir(), `tankside-pg-${port}`);
 const cluster = (verb: string) =>

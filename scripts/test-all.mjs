@@ -1,20 +1,26 @@
 #!/usr/bin/env node
-// The whole test suite, on both databases: typecheck, lint, format check and one production build,
-// then Vitest and the browser tests on SQLite, then the same on a throw-away PostgreSQL cluster
-// (scripts/pg-cluster.mjs), then two web servers and two workers sharing that database and a fake
-// S3 bucket (scripts/two-process.ts).
+// The whole test suite, on both databases: typecheck, lint and format check, one production build,
+// Vitest and the browser tests on SQLite and on a throw-away PostgreSQL cluster
+// (scripts/pg-cluster.mjs), and two web servers and two workers sharing that database and a fake S3
+// bucket (scripts/two-process.ts).
 //   node scripts/test-all.mjs                 both databases (what `npm test` and .ci/run do)
 //   node scripts/test-all.mjs --only sqlite   SQLite only
 //   node scripts/test-all.mjs --only pg       PostgreSQL only (`npm run test:pg`)
 // TEST_DATABASE_URL=postgres://… uses that server instead of starting a cluster (it must let the
 // user create databases). Prints how long each step took.
 //
-// Vitest and the browser tests of one database run side by side: they share nothing (Vitest makes
-// a database per file, the browser tests' server its own), the browser tests spend most of their
-// time waiting on one server and one browser, and the two together take about the time of the
-// longer one instead of the sum (Decision 46). Their lines are prefixed with the step's tag.
+// Two lanes run side by side after the checks (Decision 52): the server-side lane (Vitest on
+// SQLite, Vitest on PostgreSQL, then the two-process test) and the browser lane (build, browser
+// tests on SQLite, then on PostgreSQL). They share nothing but the PostgreSQL cluster (each Vitest
+// file makes its own database, the browser tests' server its own, the two-process test its own),
+// and the browser lane spends much of its time waiting on one server and one browser. Their lines
+// are prefixed with the step's tag.
+//
+// Test files that never touch a database (listed in scripts/database-free-tests.mjs, and checked to
+// stay so by tests/unit/database-free.test.ts) run in the SQLite pass only.
 import { spawn, spawnSync } from "node:child_process";
 import path from "node:path";
+import { databaseFreeTests } from "./database-free-tests.mjs";
 
 const root = path.resolve(import.meta.dirname, "..");
 const onlyAt = process.argv.indexOf("--only");
@@ -26,12 +32,7 @@ if (only && only !== "sqlite" && only !== "pg") {
 const external = process.env.TEST_DATABASE_URL && /^postgres(ql)?:\/\//.test(process.env.TEST_DATABASE_URL) ? process.env.TEST_DATABASE_URL : null;
 const timings = [];
 const started = Date.now();
-
-class StepFailed extends Error {
-  constructor(name, exit) {
-    super(`${name} (exit ${exit})`);
-  }
-}
+const failures = [];
 
 function stepEnv(env) {
   const base = { ...process.env };
@@ -39,43 +40,61 @@ function stepEnv(env) {
   return { ...base, ...env };
 }
 
-/** One step, its output straight through. */
-function step(name, cmd, args, env = {}) {
-  const t0 = Date.now();
-  console.log(`\n[test] ── ${name} ──`);
-  const r = spawnSync(cmd, args, { cwd: root, stdio: "inherit", env: stepEnv(env) });
-  timings.push([name, (Date.now() - t0) / 1000]);
-  if (r.status !== 0) throw new StepFailed(name, r.status ?? r.signal);
+/** One step, each line of its output prefixed with its tag; resolves to true when it passed. */
+function run({ name, tag, cmd, args, env = {} }) {
+  return new Promise((resolve) => {
+    const t0 = Date.now();
+    console.log(`[test] ── ${name} ── started`);
+    const child = spawn(cmd, args, { cwd: root, stdio: ["ignore", "pipe", "pipe"], env: stepEnv({ FORCE_COLOR: "0", ...env }) });
+    for (const stream of [child.stdout, child.stderr]) {
+      let rest = "";
+      stream.on("data", (chunk) => {
+        const lines = (rest + chunk.toString()).split("\n");
+        rest = lines.pop();
+        for (const line of lines) process.stdout.write(`[${tag}] ${line}\n`);
+      });
+      stream.on("end", () => rest && process.stdout.write(`[${tag}] ${rest}\n`));
+    }
+    child.on("close", (code, signal) => {
+      const seconds = (Date.now() - t0) / 1000;
+      timings.push([name, seconds]);
+      const exit = code ?? signal;
+      console.log(`[test] ── ${name} ── ${exit === 0 ? "passed" : `FAILED (exit ${exit})`} after ${seconds.toFixed(1)} s`);
+      if (exit !== 0) failures.push(`${name} (exit ${exit})`);
+      resolve(exit === 0);
+    });
+  });
 }
 
-/** Several steps at once, each line of their output prefixed with the step's tag; fails if any fails. */
-async function together(steps) {
-  console.log(`\n[test] ── ${steps.map((s) => s.name).join(" ‖ ")} ──`);
-  const results = await Promise.all(
-    steps.map(
-      ({ name, tag, cmd, args, env = {} }) =>
-        new Promise((resolve) => {
-          const t0 = Date.now();
-          const child = spawn(cmd, args, { cwd: root, stdio: ["ignore", "pipe", "pipe"], env: stepEnv({ FORCE_COLOR: "0", ...env }) });
-          for (const stream of [child.stdout, child.stderr]) {
-            let rest = "";
-            stream.on("data", (chunk) => {
-              const lines = (rest + chunk.toString()).split("\n");
-              rest = lines.pop();
-              for (const line of lines) process.stdout.write(`[${tag}] ${line}\n`);
-            });
-            stream.on("end", () => rest && process.stdout.write(`[${tag}] ${rest}\n`));
-          }
-          child.on("close", (code, signal) => {
-            timings.push([name, (Date.now() - t0) / 1000]);
-            resolve({ name, exit: code ?? signal });
-          });
-        }),
-    ),
-  );
-  const failed = results.filter((r) => r.exit !== 0);
-  if (failed.length) throw new StepFailed(failed.map((f) => f.name).join(", "), failed.map((f) => f.exit).join(", "));
+/** Steps one after another; a failed step ends its lane (the other lane goes on). */
+async function lane(steps) {
+  for (const s of steps) {
+    const env = typeof s.env === "function" ? await s.env() : s.env;
+    if (env === null) return; // its prerequisite failed (reported there)
+    if (!(await run({ ...s, env }))) return;
+  }
 }
+
+// The PostgreSQL cluster, started once when the first step needs it, stopped at the end.
+let cluster = null;
+function postgresUrl() {
+  cluster ??= (async () => {
+    if (external) return external;
+    const r = spawnSync("node", ["scripts/pg-cluster.mjs", "start"], { cwd: root, encoding: "utf8", stdio: ["ignore", "pipe", "inherit"] });
+    if (r.status !== 0) {
+      failures.push("PostgreSQL could not be started: install Debian's postgresql package (.ci/run does), or set TEST_DATABASE_URL to a server of your own");
+      return null;
+    }
+    const url = r.stdout.trim().split("\n").pop();
+    console.log(`[test] PostgreSQL test cluster on ${url}`);
+    return url;
+  })();
+  return cluster;
+}
+const onPostgres = async () => {
+  const url = await postgresUrl();
+  return url ? { TEST_DATABASE_URL: url } : null;
+};
 
 function report() {
   console.log("\n[test] step                                  seconds");
@@ -83,48 +102,54 @@ function report() {
   console.log(`[test] ${"wall clock".padEnd(38)} ${((Date.now() - started) / 1000).toFixed(1).padStart(7)}`);
 }
 
-try {
-  step("typecheck", "npm", ["run", "--silent", "typecheck"]);
-  // The typecheck made the route types that ESLint's type-aware rules read.
-  await together([
-    { name: "lint", tag: "lint", cmd: "npx", args: ["eslint", "."] },
-    { name: "format check", tag: "format", cmd: "npx", args: ["prettier", "--check", "."] },
-  ]);
-  step("build", "npx", ["react-router", "build"]);
+const sqlite = only !== "pg";
+const postgres = only !== "sqlite";
+const excludeDatabaseFree = databaseFreeTests.flatMap((glob) => ["--exclude", glob]);
 
-  if (only !== "pg") {
-    await together([
-      { name: "Vitest on SQLite", tag: "sqlite:vitest", cmd: "npx", args: ["vitest", "run"] },
-      { name: "browser tests on SQLite", tag: "sqlite:browser", cmd: "npx", args: ["playwright", "test"] },
-    ]);
-  }
-
-  if (only !== "sqlite") {
-    let url = external;
-    if (!url) {
-      const cluster = spawnSync("node", ["scripts/pg-cluster.mjs", "start"], { cwd: root, encoding: "utf8", stdio: ["ignore", "pipe", "inherit"] });
-      if (cluster.status !== 0) {
-        console.error(
-          "[test] PostgreSQL could not be started for the second pass: install Debian's postgresql package (.ci/run does), or set TEST_DATABASE_URL to a server of your own.",
-        );
-        process.exit(1);
-      }
-      url = cluster.stdout.trim().split("\n").pop();
-    }
-    try {
-      await together([
-        { name: "Vitest on PostgreSQL", tag: "pg:vitest", cmd: "npx", args: ["vitest", "run"], env: { TEST_DATABASE_URL: url } },
-        { name: "browser tests on PostgreSQL", tag: "pg:browser", cmd: "npx", args: ["playwright", "test"], env: { TEST_DATABASE_URL: url } },
-      ]);
-      // Two web servers and two workers on one PostgreSQL database and a fake S3 bucket, then one SQLite server.
-      step("two processes, PostgreSQL + S3", "npx", ["tsx", "scripts/two-process.ts"], { TEST_DATABASE_URL: url });
-    } finally {
-      if (!external) spawnSync("node", ["scripts/pg-cluster.mjs", "stop"], { cwd: root, stdio: "inherit" });
-    }
-  }
-} catch (err) {
-  report();
-  console.error(`[test] FAILED: ${err instanceof StepFailed ? err.message : err}`);
+// Route types first: tsc and ESLint's type-aware rules both read them.
+const typegen = spawnSync("npx", ["react-router", "typegen"], { cwd: root, stdio: "inherit", env: stepEnv({}) });
+if (typegen.status !== 0) {
+  console.error("[test] FAILED: react-router typegen");
   process.exit(1);
 }
+await Promise.all([
+  run({ name: "typecheck", tag: "tsc", cmd: "npx", args: ["tsc"] }),
+  run({ name: "lint", tag: "lint", cmd: "npx", args: ["eslint", "."] }),
+  run({ name: "format check", tag: "format", cmd: "npx", args: ["prettier", "--check", "."] }),
+]);
+
+if (!failures.length) {
+  const serverLane = [];
+  if (sqlite) serverLane.push({ name: "Vitest on SQLite", tag: "sqlite:vitest", cmd: "npx", args: ["vitest", "run"] });
+  if (postgres) {
+    serverLane.push({ name: "Vitest on PostgreSQL", tag: "pg:vitest", cmd: "npx", args: ["vitest", "run", ...excludeDatabaseFree], env: onPostgres });
+  }
+  const browserLane = [{ name: "build", tag: "build", cmd: "npx", args: ["react-router", "build"] }];
+  if (sqlite) browserLane.push({ name: "browser tests on SQLite", tag: "sqlite:browser", cmd: "npx", args: ["playwright", "test"] });
+  if (postgres) browserLane.push({ name: "browser tests on PostgreSQL", tag: "pg:browser", cmd: "npx", args: ["playwright", "test"], env: onPostgres });
+
+  // The two-process test needs the build: it runs once the server lane is done and the build is made.
+  let built;
+  const buildDone = new Promise((resolve) => (built = resolve));
+  const browserDone = (async () => {
+    const [build, ...rest] = browserLane;
+    const ok = await run(build);
+    built(ok);
+    if (ok) await lane(rest);
+  })();
+  const serverDone = (async () => {
+    await lane(serverLane);
+    if (postgres && (await buildDone)) {
+      // Two web servers and two workers on one PostgreSQL database and a fake S3 bucket, then one SQLite server.
+      await lane([{ name: "two processes, PostgreSQL + S3", tag: "two-process", cmd: "npx", args: ["tsx", "scripts/two-process.ts"], env: onPostgres }]);
+    }
+  })();
+  await Promise.all([browserDone, serverDone]);
+  if (cluster && !external && (await cluster)) spawnSync("node", ["scripts/pg-cluster.mjs", "stop"], { cwd: root, stdio: "inherit" });
+}
+
 report();
+if (failures.length) {
+  console.error(`[test] FAILED: ${failures.join(", ")}`);
+  process.exit(1);
+}

@@ -1,0 +1,18 @@
+// Test files that never open a database: `npm test` runs them in the SQLite pass only, since the
+// PostgreSQL pass would repeat them unchanged (scripts/test-all.mjs). tests/unit/database-free.test.ts
+// follows every import of every file matched here (and of the programs they start, `children`) and
+// fails if one reaches the database module, so a test that starts using the database cannot stay
+// on this list by mistake.
+export const databaseFree = [
+  // The pure library: no server module at all (DEVELOPERS.md, layout).
+  { glob: "app/lib/**", why: "the pure library" },
+  // Tracking and the theory check on rendered stacks: frames on disk, the tracking pool, no run rows.
+  { glob: "app/.server/tracking/**", why: "tracking on frame stacks written to a temporary folder" },
+  { glob: "app/.server/cli/**", why: "the command-line analysis of a frame folder", children: ["app/.server/cli/analyze.ts"] },
+  // It starts servers with SQLite files of their own whatever the pass, so a second pass repeats it.
+  { glob: "app/.server/storage/startup-check.test.ts", why: "start-up refusals, on SQLite files of its own" },
+  { glob: "tests/unit/pg-cluster.test.ts", why: "the test cluster script (skips itself on PostgreSQL)" },
+  { glob: "tests/unit/server-guards.test.ts", why: "the HTTP guards of server.mjs" },
+];
+
+export const databaseFreeTests = databaseFree.map((d) => d.glob);

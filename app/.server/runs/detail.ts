@@ -18,7 +18,7 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
     User.findByPk(run.technicianId, { attributes: ["id", "name", "email"] }),
     Frame.findAll({
       where: { runId: run.id },
-      attributes: ["id", "position", "originalName", "timeS", "storedName", "thumbName"],
+      attributes: ["id", "runId", "fileRunId", "position", "originalName", "timeS", "storedName", "thumbName"],
       order: [["position", "ASC"]],
     }),
     ViewSetup.findOne({ where: { runId: run.id } }),
@@ -27,7 +27,7 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
     current ?? currentCheck(run),
   ]);
   const active = job?.state === "queued" || job?.state === "running";
-  const files = await frameFileStatus(run.id, frames);
+  const files = await frameFileStatus(frames);
   const missing = new Set(files.missing);
   const snapshot = calibrationSnapshot(run);
   return {

@@ -14,6 +14,7 @@ import { whenRechecksIdle } from "./rechecks";
 import { loader as frameImageLoader } from "~/routes/runs/frame-image";
 import { sessionStorage } from "../auth/session";
 import { action as apiRunsAction } from "~/routes/api/runs";
+import { action as runFormAction, loader as runFormLoader } from "~/routes/runs/edit";
 import { callApi } from "../../../tests/support/api-contract";
 
 /**
@@ -206,6 +207,48 @@ describe("a correction that carries the work over", () => {
     await expect(createRun(lab.runInput({ setRateRpm: 15, supersedesId: original.id, rateReachedAt: tooLate }), lab.tech)).rejects.toBeInstanceOf(
       RunValidationError,
     );
+  });
+
+  it("through the form: says what comes over, leaves the frames out when ticked, and refuses an open run with the reason", async () => {
+    const original = await signedOffRun();
+    const cookie = await cookieOf(lab.tech.id);
+    const shown = (await runFormLoader({
+      request: new Request(`http://localhost/runs/new?supersedes=${original.id}`, { headers: { Cookie: cookie } }),
+      params: {},
+      context: {},
+    } as never)) as { carryOver: { frames: number; viewSetup: boolean; rateReachedAt: string | null } };
+    expect(shown.carryOver).toEqual({ frames: FRAMES, viewSetup: true, rateReachedAt: reachedAt.toISOString() });
+
+    const send = async (fields: Record<string, string>) => {
+      const { rateReachedAt: _none, notes: _empty, ...input } = lab.runInput({ setRateRpm: 15 });
+      const body = new URLSearchParams(Object.entries({ ...input, ...fields }).map(([k, v]) => [k, String(v)]));
+      const request = new Request("http://localhost/runs/new", {
+        method: "POST",
+        headers: { Cookie: cookie, "Content-Type": "application/x-www-form-urlencoded" },
+        body,
+      });
+      try {
+        return await runFormAction({ request, params: {}, context: {} } as never);
+      } catch (thrown) {
+        return thrown;
+      }
+    };
+    const made = (await send({ supersedesId: String(original.id), leaveFramesOut: "on" })) as Response;
+    expect(made.status).toBe(302);
+    const newId = Number(/\/runs\/(\d+)$/.exec(made.headers.get("Location") ?? "")?.[1]);
+    expect(await Frame.count({ where: { runId: newId } })).toBe(0);
+    expect(await ViewSetup.count({ where: { runId: newId } })).toBe(1);
+
+    const open = await createRun(lab.runInput(), lab.tech);
+    const refused = (await send({ supersedesId: String(open.id) })) as { init: { status: number }; data: { error: Record<string, string[]> } };
+    expect(refused.init.status).toBe(409);
+    expect(refused.data.error[""]?.[0]).toMatch(/is not signed off: change it instead/);
+    const notShown = (await runFormLoader({
+      request: new Request(`http://localhost/runs/new?supersedes=${open.id}`, { headers: { Cookie: cookie } }),
+      params: {},
+      context: {},
+    } as never).catch((thrown: unknown) => thrown)) as { init: { status: number } };
+    expect(notShown.init.status).toBe(409);
   });
 
   it("through the API: a correction comes back in state frames_in, and the refusals are the documented answers", async () => {

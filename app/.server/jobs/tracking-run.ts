@@ -1,6 +1,6 @@
 import { Op, type WhereOptions } from "sequelize";
 import { Detection, Frame, Run, Track, TrackingJob, ViewSetup, sequelize } from "../db";
-import { mapLimit, MissingObjectError, runKey, ScratchDir, store } from "../storage";
+import { frameKey, mapLimit, MissingObjectError, ScratchDir, store } from "../storage";
 import { trackFrameStack } from "../tracking/track-frame-stack";
 import { isTrackingCancelled } from "../tracking/errors";
 import { setRunState } from "../runs/service";
@@ -55,7 +55,7 @@ async function frameStackOf(run: Run, scratch: ScratchDir) {
   const allTimed = frames.every((f) => f.timeS !== null && Number.isFinite(f.timeS));
   const files = await mapLimit(frames, 4, async (f, i) => {
     try {
-      return await store().localPath(runKey(run.id, f.storedName), scratch);
+      return await store().localPath(frameKey(f), scratch);
     } catch (err) {
       if (err instanceof MissingObjectError)
         throw new JobError(

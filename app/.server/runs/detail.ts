@@ -8,6 +8,13 @@ import type { CurrentUser } from "../auth/permissions";
 import { calibrationSnapshot, canChangeRun } from "./service";
 import { frameFileStatus } from "./frame-files";
 import { serializeRun } from "./serialize";
+import { runLabel } from "~/lib/runs";
+
+function sharedFilesOf(frames: { fileRunId: number | null }[]) {
+  const counts = new Map<number, number>();
+  for (const f of frames) if (f.fileRunId !== null) counts.set(f.fileRunId, (counts.get(f.fileRunId) ?? 0) + 1);
+  return [...counts].map(([runId, count]) => ({ runId, label: runLabel(runId), count }));
+}
 
 /** Everything the run page shows, as plain data; the check is the current one only (see currentCheck). */
 export async function runPageData(run: Run, user: CurrentUser, current?: CurrentCheck) {
@@ -18,7 +25,7 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
     User.findByPk(run.technicianId, { attributes: ["id", "name", "email"] }),
     Frame.findAll({
       where: { runId: run.id },
-      attributes: ["id", "position", "originalName", "timeS", "storedName", "thumbName"],
+      attributes: ["id", "runId", "fileRunId", "position", "originalName", "timeS", "storedName", "thumbName"],
       order: [["position", "ASC"]],
     }),
     ViewSetup.findOne({ where: { runId: run.id } }),
@@ -27,7 +34,7 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
     current ?? currentCheck(run),
   ]);
   const active = job?.state === "queued" || job?.state === "running";
-  const files = await frameFileStatus(run.id, frames);
+  const files = await frameFileStatus(frames);
   const missing = new Set(files.missing);
   const snapshot = calibrationSnapshot(run);
   return {
@@ -46,6 +53,8 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
     technician: technician ? { id: technician.id, name: technician.name } : null,
     calibrations: snapshot,
     frames: frames.map((f) => ({ id: f.id, position: f.position, name: f.originalName, timeS: f.timeS, missing: missing.has(f.id) })),
+    /** Runs whose stored files this run's frames share (a correction's frames are the corrected run's files), with how many. */
+    sharedFiles: sharedFilesOf(frames),
     /** How many frames have lost their stored file, and whether the store could be asked at all. */
     frameFiles: { missing: files.missing.length, unavailable: files.unavailable },
     setup: setup

@@ -1,4 +1,4 @@
-import { runKey, runPrefix, store, StorageUnavailableError } from "../storage";
+import { frameFileRunId, frameKey, frameThumbKey, runPrefix, store, StorageUnavailableError, type FrameFileRef } from "../storage";
 
 export interface FrameFileStatus {
   /** Ids of frames whose image or thumbnail is not in storage. */
@@ -8,21 +8,27 @@ export interface FrameFileStatus {
 }
 
 /**
- * Which of a run's frames have lost their files: one listing of the run's folder (or prefix in
- * the bucket), compared with the names the frame rows give.
+ * Which of a run's frames have lost their files: one listing of each folder (or prefix in the
+ * bucket) that holds them — the run's own, and for a correction the folder of the run whose files
+ * it shares — compared with the keys the frame rows give.
  */
-export async function frameFileStatus(runId: number, frames: { id: number; storedName: string; thumbName: string | null }[]): Promise<FrameFileStatus> {
+export async function frameFileStatus(frames: (FrameFileRef & { id: number })[]): Promise<FrameFileStatus> {
   if (!frames.length) return { missing: [], unavailable: false };
+  const folders = [...new Set(frames.map(frameFileRunId))];
   let present: Set<string>;
   try {
-    present = new Set((await store().list(runPrefix(runId))).map((o) => o.key));
+    const listings = await Promise.all(folders.map((id) => store().list(runPrefix(id))));
+    present = new Set(listings.flat().map((o) => o.key));
   } catch (err) {
     if (!(err instanceof StorageUnavailableError)) throw err;
     console.error(`[storage] ${err.message}`);
     return { missing: [], unavailable: true };
   }
   const missing = frames
-    .filter((f) => !present.has(runKey(runId, f.storedName)) || (f.thumbName !== null && !present.has(runKey(runId, f.thumbName))))
+    .filter((f) => {
+      const thumb = frameThumbKey(f);
+      return !present.has(frameKey(f)) || (thumb !== null && !present.has(thumb));
+    })
     .map((f) => f.id);
   return { missing, unavailable: false };
 }

@@ -1,6 +1,6 @@
 import sharp from "sharp";
 import { Frame, Track } from "../db";
-import { MissingObjectError, runKey, store } from "../storage";
+import { frameKey, MissingObjectError, runKey, store } from "../storage";
 import { parseTrackPoints } from "./theory";
 
 const palette = ["#ffd23f", "#3ee0cf", "#ff6b9a", "#9be564", "#c3a6ff", "#ff9f40"];
@@ -36,9 +36,9 @@ export async function trackOverlay(runId: number, jobId: number): Promise<Buffer
     })
     .join("\n");
   const svg = Buffer.from(`<svg xmlns="http://www.w3.org/2000/svg" width="${w}" height="${h}" viewBox="0 0 ${w} ${h}">${paths}</svg>`);
-  const frameKey = runKey(runId, frame.storedName);
-  const image = await store().get(frameKey);
-  if (!image) throw new MissingObjectError(frameKey, store().where);
+  const imageKey = frameKey(frame);
+  const image = await store().get(imageKey);
+  if (!image) throw new MissingObjectError(imageKey, store().where);
   const png = await sharp(image)
     .composite([{ input: svg, top: 0, left: 0 }])
     .resize({ width: Math.min(w, 1280), withoutEnlargement: true })

@@ -58,7 +58,8 @@ describe("history and corrections", () => {
   });
 
   it("links a correction and the run it corrects both ways", async () => {
-    const original = await createRun(runInput(lab), lab.technician);
+    const { run: original } = await checkedRunFor(lab, lab.technician);
+    await signOffRun(original.id, lab.manager);
     const correction = await createRun(runInput(lab, { supersedesId: original.id, purpose: "Corrected depth" }), lab.technician);
     const fromOriginal = await getSupersedesLinks(original);
     const fromCorrection = await getSupersedesLinks(correction);

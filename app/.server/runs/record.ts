@@ -57,7 +57,13 @@ export async function signOffRun(runId: number, user: CurrentUser) {
 export type RunHistoryEntry = RunHistoryEntryView;
 
 const equipmentFields = new Set(["tableId", "tankId", "cameraId"]);
-const extraLabels: Record<string, string> = { created: "logged", theoryCheck: "theory check", calibrationsInForce: "calibrations in force" };
+const extraLabels: Record<string, string> = {
+  created: "logged",
+  theoryCheck: "theory check",
+  calibrationsInForce: "calibrations in force",
+  frames: "frames",
+  viewSetup: "view setup",
+};
 
 /** Every change to a run, oldest first, with ids turned into the names people know. */
 export async function getRunHistory(runId: number): Promise<RunHistoryEntry[]> {

@@ -125,20 +125,28 @@ async function assertRateReachedAtPossible(at: Date | undefined, runId?: number)
   }
 }
 
+/**
+ * Logs a run. A correction (`supersedesId`, a signed-off run) starts with that run's frames (shared,
+ * unless `leaveFramesOut`), its view setup and, when none is given, its rate reached time, and is
+ * tracked at once when it has frames and a view setup (the check follows tracking).
+ */
 export async function createRun(input: RunInput, user: CurrentUser) {
-  await assertRateReachedAtPossible(input.rateReachedAt);
+  // A correction with the frames carried over has them from the start: its rate reached time comes before them too.
+  await assertRateReachedAtPossible(input.rateReachedAt, input.leaveFramesOut ? undefined : input.supersedesId);
   const { problems } = await checkEquipment(input);
+  if (input.leaveFramesOut && !input.supersedesId) {
+    problems.push({ field: "leaveFramesOut", message: "Leaving the frames out applies only to a correction: a new run starts without frames anyway." });
+  }
   if (problems.length) throw new RunValidationError(problems);
-  return sequelize.transaction(async (transaction) => {
-    if (input.supersedesId) {
-      const old = await Run.findByPk(input.supersedesId, { transaction });
-      if (!old) throw new RunError("The run this corrects does not exist.", 404, "supersedesId", "not_found");
-    }
-    const at = input.rateReachedAt ?? new Date();
+  const correction = input.supersedesId ? await import("./correction") : null;
+  const created = await sequelize.transaction(async (transaction) => {
+    const old = correction && input.supersedesId ? await correction.lockCorrected(input.supersedesId, transaction) : null;
+    const rateReachedAt = input.rateReachedAt ?? old?.rateReachedAt ?? undefined;
+    const at = rateReachedAt ?? new Date();
     const calibrations = await freezeCalibrations([input.tableId, input.tankId, input.cameraId], at, transaction);
     const run = await Run.create(
       {
-        ...columns(input),
+        ...columns({ ...input, rateReachedAt }),
         technicianId: user.id,
         supersedesId: input.supersedesId ?? null,
         signedOffById: null,
@@ -154,8 +162,16 @@ export async function createRun(input: RunInput, user: CurrentUser) {
       { runId: run.id, userId: user.id, field: "created", oldValue: null, newValue: input.supersedesId ? `correction of run ${input.supersedesId}` : "logged" },
       { transaction },
     );
-    return run;
+    const carried = old && correction ? await correction.carryOver(old, run, { frames: !input.leaveFramesOut, userId: user.id }, transaction) : null;
+    return { run, carried };
   });
+  const { run, carried } = created;
+  if (carried && carried.frames >= 3 && carried.viewSetup) {
+    // Nothing to upload or mark: track the correction now; the theory check follows the tracks as for any run.
+    const { enqueueTracking } = await import("../jobs/tracking-queue");
+    await enqueueTracking(run, user.id).catch((err) => console.error(`[runs] tracking of correction ${run.id} not queued:`, err));
+  }
+  return run;
 }
 
 export function canChangeRun(run: Run, user: CurrentUser) {

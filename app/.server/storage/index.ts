@@ -9,7 +9,7 @@ export { S3Store, describeS3 } from "./s3";
 export { ScratchDir } from "./scratch";
 export { storageSettings } from "./settings";
 export { MissingObjectError, StorageUnavailableError, type ObjectInfo, type ObjectStore, type OpenedObject } from "./types";
-export { calibrationKey, generatedName, runKey, runPrefix } from "./keys";
+export { calibrationKey, frameFileRunId, frameKey, frameThumbKey, generatedName, runKey, runPrefix, type FrameFileRef } from "./keys";
 
 let current: ObjectStore | null = null;
 

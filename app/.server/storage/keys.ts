@@ -22,6 +22,29 @@ export function runKey(runId: number, name: string) {
   return `runs/${runId}/${checkedName(name)}`;
 }
 
+/** What names a frame's file: its run, the run whose folder holds the file when another (a correction's shared frame), and the names. */
+export interface FrameFileRef {
+  runId: number;
+  fileRunId?: number | null;
+  storedName: string;
+  thumbName?: string | null;
+}
+
+/** The run whose folder holds the frame's file: its own, or the run it shares the file with. */
+export function frameFileRunId(frame: FrameFileRef) {
+  return frame.fileRunId ?? frame.runId;
+}
+
+/** The frame's own key: every reader of a frame file asks here, never runKey(frame.runId, …). */
+export function frameKey(frame: FrameFileRef) {
+  return runKey(frameFileRunId(frame), frame.storedName);
+}
+
+/** The key of the frame's thumbnail, or null for a frame without one. */
+export function frameThumbKey(frame: FrameFileRef) {
+  return frame.thumbName ? runKey(frameFileRunId(frame), frame.thumbName) : null;
+}
+
 export function runPrefix(runId: number) {
   return `runs/${runId}/`;
 }

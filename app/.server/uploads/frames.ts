@@ -5,7 +5,7 @@ import yauzl from "yauzl";
 import { orderBy } from "natural-orderby";
 import { Frame, Run, locking, sequelize } from "../db";
 import { uploadLimits } from "~/lib/upload-limits";
-import { generatedName, runKey, store } from "../storage";
+import { frameKey, frameThumbKey, generatedName, runKey, store } from "../storage";
 import { discardStaged, readHead, stageBytes, UploadError, type StagedFile } from "./staging";
 import { setRunState } from "../runs/service";
 import { formatFixed } from "~/lib/number-format";
@@ -79,7 +79,8 @@ function cleanName(name: string) {
   return base.slice(0, 255) || "frame";
 }
 
-async function renumber(runId: number, transaction: import("sequelize").Transaction) {
+/** Positions 0…N−1 in the stack's order, after frames came or went; returns how many there are. */
+export async function renumber(runId: number, transaction: import("sequelize").Transaction) {
   const frames = await Frame.findAll({ where: { runId }, attributes: ["id", "originalName", "timeS", "position"], transaction });
   // Frames cut from a video carry their time: order by it. Stacks from files go by natural name order (frame_2 before frame_10).
   const ordered = orderBy(frames, [(f) => (f.timeS ?? Number.POSITIVE_INFINITY), (f) => f.originalName], ["asc", "asc"]);
@@ -155,8 +156,9 @@ async function addFrame(run: Run, originalName: string, source: Buffer | StagedF
  */
 async function restoreMissing(frame: Frame, data: Buffer, thumb: Buffer): Promise<{ restored?: true }> {
   const objects = store();
-  const key = runKey(frame.runId, frame.storedName);
-  const thumbKey = frame.thumbName ? runKey(frame.runId, frame.thumbName) : null;
+  // Under the frame's own key: a correction's shared frame is put back where both runs read it.
+  const key = frameKey(frame);
+  const thumbKey = frameThumbKey(frame);
   const [main, small] = await Promise.all([objects.head(key), thumbKey ? objects.head(thumbKey) : null]);
   let restored = false;
   if (!main) {

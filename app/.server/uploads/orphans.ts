@@ -1,5 +1,6 @@
 import fs from "node:fs/promises";
 import path from "node:path";
+import { Op } from "sequelize";
 import { CalibrationAttachment, Frame } from "../db";
 import { env } from "../env";
 import { store, type ObjectInfo, type ObjectStore } from "../storage";
@@ -41,7 +42,11 @@ export async function removeOrphanUploads(now: Date = new Date(), objects: Objec
     byRun.set(runId, [...(byRun.get(runId) ?? []), { name: m[2]!, info: o }]);
   }
   for (const [runId, files] of byRun) {
-    const frames = await Frame.findAll({ where: { runId }, attributes: ["storedName", "thumbName"] });
+    // The files in a run's folder are named by its own frames and by the frames of corrections that share them.
+    const frames = await Frame.findAll({
+      where: { [Op.or]: [{ fileRunId: runId }, { runId, fileRunId: null }] },
+      attributes: ["storedName", "thumbName"],
+    });
     const known = new Set(frames.flatMap((f) => [f.storedName, f.thumbName].filter((n): n is string => Boolean(n))));
     for (const file of files) if (!known.has(file.name)) await removeIfOld(file.info);
   }

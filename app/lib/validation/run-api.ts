@@ -7,4 +7,4 @@ import { runSchema } from "./run";
 export const runApiCreateSchema = runSchema.strict();
 
 /** PATCH: any of the same fields; the server merges them over the run as stored and checks the whole again. */
-export const runApiPatchSchema = runSchema.partial().omit({ supersedesId: true }).strict();
+export const runApiPatchSchema = runSchema.partial().omit({ supersedesId: true, leaveFramesOut: true }).strict();

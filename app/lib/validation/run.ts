@@ -38,6 +38,13 @@ export const runSchema = z.object({
     .max(300, "Keep the purpose under 300 characters."),
   notes: z.preprocess((v) => (v === "" ? undefined : v), z.string().max(5000, "Keep notes under 5000 characters.").optional()),
   supersedesId: strictNumber(z.preprocess((v) => (v === "" || v === null ? undefined : v), z.coerce.number().int().positive().optional())),
+  /** A correction only: start without the corrected run's frames (new ones will be uploaded). The form's checkbox sends "on". */
+  leaveFramesOut: z
+    .preprocess((v) => (v === "on" ? true : v === "" || v === null ? undefined : v), z.boolean({ error: "Say true or false." }).optional())
+    .meta({
+      description:
+        "A correction only (with supersedesId): true starts it without the corrected run's frames, to upload new ones. Left out or false, it shares them (no upload).",
+    }),
 });
 
 export type RunInput = z.infer<typeof runSchema>;
@@ -58,4 +65,5 @@ export const runFieldLabels: Record<string, string> = {
   purpose: "purpose",
   notes: "notes",
   state: "state",
+  leaveFramesOut: "frames left out",
 };

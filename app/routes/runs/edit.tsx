@@ -8,6 +8,7 @@ import { requireRole } from "~/.server/auth/permissions";
 import { listEquipment, serializeEquipment } from "~/.server/equipment";
 import { createRun, RunError, RunValidationError, updateRun } from "~/.server/runs/service";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
+import { carryOverSummary, type CarryOverSummary } from "~/.server/runs/correction";
 import { getLabSettings } from "~/.server/settings";
 import { useLabTime } from "~/components/lab-time";
 import { fromZonedInput, toZonedInput } from "~/lib/time-format";
@@ -29,15 +30,20 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const url = new URL(request.url);
   let run = null;
   let template = null;
+  let carryOver = null;
   if (params.id) {
     const found = await loadRun(request, params.id);
     requireChangeable(request, found, user);
     run = found.get({ plain: true });
   } else if (url.searchParams.get("supersedes")) {
     const old = await loadRun(request, url.searchParams.get("supersedes") ?? undefined);
+    if (old.state !== "signed_off") {
+      throw data(`${runLabel(old.id)} is not signed off: change it instead of logging a correction (a correction follows a signed-off run).`, { status: 409 });
+    }
     template = old.get({ plain: true });
+    carryOver = await carryOverSummary(old);
   }
-  return { equipment, run, template, spinUpTimesToWait: settings.spinUpTimesToWait };
+  return { equipment, run, template, carryOver, spinUpTimesToWait: settings.spinUpTimesToWait };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -101,9 +107,45 @@ function Choices({
   );
 }
 
+/** What a correction starts with, said before it is logged, and the choice to bring new frames instead. */
+function CarriedOver({ from, summary, leaveOutError }: { from: string; summary: CarryOverSummary; leaveOutError?: string[] }) {
+  const time = useLabTime();
+  return (
+    <section aria-labelledby="carried-over-title" className="rounded-lg border-2 border-line p-4" data-testid="carried-over">
+      <h2 id="carried-over-title" className="mb-2 font-bold">
+        Carried over from {from}
+      </h2>
+      <ul className="mb-3 list-disc pl-5">
+        <li>
+          Frames: {summary.frames}
+          {summary.frames ? ` (stored once, shared with ${from}; no upload needed)` : " (it has none)"}
+        </li>
+        <li>View setup: {summary.viewSetup ? "the same centre, tank edge and scale" : `none (${from} has no view setup)`}</li>
+        <li>Rate reached at: {summary.rateReachedAt ? time.dateTime(summary.rateReachedAt) : "not given"} (the field below; change it if it was wrong)</li>
+      </ul>
+      <p className="mb-3 text-sm">
+        {summary.frames >= 3 && summary.viewSetup
+          ? "The new run is tracked and checked as soon as it is logged. Each of these can be changed on the new run afterwards."
+          : "Each of these can be changed on the new run afterwards."}
+      </p>
+      {summary.frames ? (
+        <label className="flex min-h-12 items-center gap-3 font-bold">
+          <input type="checkbox" name="leaveFramesOut" className="h-6 w-6" />
+          Leave the frames out: I will upload new ones
+        </label>
+      ) : null}
+      {leaveOutError?.length ? (
+        <p className="text-sm font-bold text-disagrees-ink" role="alert">
+          {leaveOutError[0]}
+        </p>
+      ) : null}
+    </section>
+  );
+}
+
 export default function RunForm({ loaderData, actionData }: Route.ComponentProps) {
   const time = useLabTime();
-  const { equipment, run, template } = loaderData;
+  const { equipment, run, template, carryOver } = loaderData;
   const source = run ?? template;
   const navigation = useNavigation();
   const [form, fields] = useForm({
@@ -122,9 +164,9 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
     direction: source?.direction ?? "ccw",
     depthCm: source ? String(Number((source.waterDepthM * 100).toPrecision(6))) : "",
     temperatureC: String(source?.waterTemperatureC ?? ""),
-    rateReachedAt: run ? toZonedInput(run.rateReachedAt, time.zone) : "",
+    rateReachedAt: source ? toZonedInput(source.rateReachedAt, time.zone) : "",
   });
-  const [reachedIso, setReachedIso] = useState(run?.rateReachedAt ? new Date(run.rateReachedAt).toISOString() : "");
+  const [reachedIso, setReachedIso] = useState(source?.rateReachedAt ? new Date(source.rateReachedAt).toISOString() : "");
   const table = tables.find((t) => String(t.id) === live.tableId) ?? null;
   const tank = tanks.find((t) => String(t.id) === live.tankId) ?? null;
   const title = run ? `Edit ${runLabel(run.id)}` : template ? `Log a correction of ${runLabel(template.id)}` : "Log a run";
@@ -144,6 +186,11 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
           <Form method="post" className="grid gap-5 md:grid-cols-2" {...getFormProps(form)}>
             <FormProblem errors={form.errors} className="md:col-span-2" />
             {template ? <input type="hidden" name="supersedesId" value={template.id} /> : null}
+            {template && carryOver ? (
+              <div className="md:col-span-2">
+                <CarriedOver from={runLabel(template.id)} summary={carryOver} leaveOutError={fields.leaveFramesOut.errors} />
+              </div>
+            ) : null}
             <SelectField
               label="Table"
               name="tableId"

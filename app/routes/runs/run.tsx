@@ -199,6 +199,11 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
             </Notice>
           </div>
         ) : null}
+        {d.sharedFiles.length ? (
+          <p className="mb-2 text-sm" data-testid="shared-frames">
+            {d.sharedFiles.map((s) => `${s.count} of these frames are the files of ${s.label}, stored once and shared with it.`).join(" ")}
+          </p>
+        ) : null}
         {d.frames.length ? (
           <ol className="flex gap-2 overflow-x-auto pb-2" aria-label="Frames" data-testid="filmstrip">
             {d.frames.map((f) => (

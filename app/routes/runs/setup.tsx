@@ -14,7 +14,7 @@ import { Button, ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { ViewSetupEditor, type SetupValues } from "~/components/runs/view-setup-editor";
-import { runKey, store, StorageUnavailableError } from "~/.server/storage";
+import { frameKey, store, StorageUnavailableError } from "~/.server/storage";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `View setup ${data ? runLabel(data.runId) : ""} · Tankside` }];
 
@@ -57,7 +57,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const scaleCalibration = await scaleCalibrationOfRun(run);
   // The marks are made on this frame's picture: say so plainly when its file is gone from storage.
   const imageMissing = await store()
-    .head(runKey(run.id, frame!.storedName))
+    .head(frameKey(frame!))
     .then((o) => o === null)
     .catch((err) => {
       if (err instanceof StorageUnavailableError) return false;

@@ -4,6 +4,8 @@ import { sequelize } from "../connection";
 export class Frame extends Model<InferAttributes<Frame>, InferCreationAttributes<Frame>> {
   declare id: CreationOptional<number>;
   declare runId: number;
+  /** The run whose folder holds the file, when it is not this run (a correction shares the frames of the run it corrects). */
+  declare fileRunId: CreationOptional<number | null>;
   declare position: number;
   declare originalName: string;
   declare storedName: string;
@@ -20,6 +22,7 @@ Frame.init(
   {
     id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
     runId: { type: DataTypes.INTEGER, allowNull: false },
+    fileRunId: { type: DataTypes.INTEGER, allowNull: true },
     position: { type: DataTypes.INTEGER, allowNull: false },
     originalName: { type: DataTypes.STRING(255), allowNull: false },
     storedName: { type: DataTypes.STRING(100), allowNull: false },

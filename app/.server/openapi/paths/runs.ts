@@ -55,14 +55,19 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
     operationId: "createRun",
     tags,
     summary: "Log a run (technician, lab manager)",
+    description:
+      "With supersedesId the run is a correction of that signed-off run. It starts with the corrected run's frames (the same stored files, shared, nothing to upload; leaveFramesOut: true starts without them), a copy of its view setup, and its rate reached time when the body gives none; each can be changed on the new run afterwards. A correction that starts with at least 3 frames and a view setup is queued for tracking at once (its frames state), and its theory check follows the tracks: GET /api/v1/runs/{id}/tracking shows the job.",
     request: { body: { required: true, content: { "application/json": { schema: create, example: runCreateExample } } } },
     responses: {
-      201: json(runSchema, "The run as logged, in state draft"),
+      201: json(runSchema, "The run as logged: in state draft, or frames_in for a correction that starts with frames"),
       400: badBody(),
       403: writers,
       404: error("The run it corrects does not exist (not_found, field supersedesId)."),
+      409: error("not_signed_off: supersedesId names a run that is not signed off; change that run instead (field supersedesId)."),
       415: notJson,
-      422: notPossible,
+      422: error(
+        "conditions_not_possible: the body is well-formed but the lab's register refuses it (above the table's rated rate, deeper than the tank, a rate-reached time in the future or after the first frame, leaveFramesOut without supersedesId); error.issues names the fields.",
+      ),
     },
   });
   operation(registry, {

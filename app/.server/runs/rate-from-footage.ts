@@ -4,8 +4,12 @@
  * the setting and the measurement, so a change of either makes the check out of date.
  */
 import type { Transaction } from "sequelize";
-import { TrackingJob } from "../db";
-import { DEFAULT_RATE_SOURCE, type MeasuredRate, type RateSource } from "~/lib/analysis/rate-choice";
+import { Track, TrackingJob, type Run } from "../db";
+import { getLabSettings } from "../settings";
+import { rateInForce } from "./applied-calibrations";
+import { chooseRate, DEFAULT_RATE_SOURCE, type MeasuredRate, type RateSource } from "~/lib/analysis/rate-choice";
+import { runOmega } from "~/lib/analysis/run-omega";
+import { radPerSToRpm } from "~/lib/analysis/units";
 
 export interface FootageRate {
   measured: MeasuredRate | null;
@@ -42,3 +46,43 @@ export function rateInputs(setting: RateSource, measured: MeasuredRate | null) {
     measured: measured ? { omega: measured.omega, stdError: measured.stdError, method: measured.method, nPoints: measured.nPoints } : null,
   };
 }
+
+/**
+ * The run page's view of the table's rate: set, calibrated and measured from the footage, with
+ * what the lab's setting would use now and any disagreement. Read from the longest track's job,
+ * the one the check fits.
+ */
+export async function tableRateSummary(run: Run) {
+  const track = await Track.findOne({
+    where: { runId: run.id },
+    attributes: ["id", "jobId"],
+    order: [
+      ["pointCount", "DESC"],
+      ["id", "ASC"],
+    ],
+  });
+  const job = track ? null : await TrackingJob.findOne({ where: { runId: run.id, state: "done" }, order: [["id", "DESC"]], attributes: ["id"] });
+  const [footage, calibrated, settings] = await Promise.all([footageRateOfJob(track?.jobId ?? job?.id), rateInForce(run), getLabSettings()]);
+  const choice = chooseRate({ omegaSet: runOmega(run), omegaCalibrated: calibrated ?? undefined, measured: footage.measured, use: settings.rateSource });
+  return {
+    setRpm: run.setRateRpm,
+    calibrated: calibrated
+      ? { rpm: Math.abs(radPerSToRpm(calibrated.value)), stdErrorRpm: Math.abs(radPerSToRpm(calibrated.stdError)), calibrationId: calibrated.calibrationId }
+      : null,
+    measured: footage.measured
+      ? {
+          rpm: Math.abs(radPerSToRpm(footage.measured.omega)),
+          stdErrorRpm: Math.abs(radPerSToRpm(footage.measured.stdError)),
+          method: footage.measured.method,
+          frames: footage.measured.nPoints,
+          sameSense: Math.sign(footage.measured.omega) === Math.sign(runOmega(run)),
+        }
+      : null,
+    note: footage.note,
+    setting: settings.rateSource,
+    used: choice.used,
+    why: choice.why,
+    disagreement: choice.disagreement,
+  };
+}
+export type TableRateSummary = Awaited<ReturnType<typeof tableRateSummary>>;

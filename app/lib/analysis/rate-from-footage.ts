@@ -10,6 +10,30 @@ import { unwrapAngles } from "./angles";
 
 const isFiniteNumber = (v: unknown): v is number => typeof v === "number" && Number.isFinite(v);
 
+/**
+ * An angle's rate: the straight-line slope against time, with a standard error that allows for
+ * errors correlated from frame to frame (a mark crossing the same compression blocks, slow
+ * lighting changes): the lag-1 autocorrelation r₁ of the residuals gives an effective number of
+ * points n(1 − r₁)/(1 + r₁), and the slope's variance is scaled by (n − 2)/(n_eff − 2)
+ * (Santer et al. 2000, J. Geophys. Res. 105, 7337, eq. 6). Null when the errors are so
+ * correlated that fewer than 3 effective points remain.
+ */
+export function rateFit(times: readonly number[], angles: readonly number[]): { slope: number; stdError: number; lag1: number } | null {
+  const fit = linearFit(times, angles);
+  const residuals = times.map((t, i) => angles[i]! - (fit.intercept + fit.slope * t));
+  let num = 0;
+  let den = 0;
+  for (let i = 0; i < residuals.length; i++) {
+    den += residuals[i]! ** 2;
+    if (i > 0) num += residuals[i]! * residuals[i - 1]!;
+  }
+  const lag1 = den > 0 ? num / den : 0;
+  const n = residuals.length;
+  const nEff = lag1 > 0 ? (n * (1 - lag1)) / (1 + lag1) : n;
+  if (!(nEff > 3)) return null;
+  return { slope: fit.slope, stdError: fit.slopeSE * Math.sqrt((n - 2) / (nEff - 2)), lag1 };
+}
+
 export interface OmegaFromMark {
   /** rad/s, signed (counterclockwise seen from above positive) */
   omega: number | null;
@@ -53,11 +77,12 @@ export function measureOmegaFromMark(
     if (Math.abs(turns) < 0.05) {
       return none(`The mark turns only ${formatNumber(Math.abs(turns) * 360, 2)}° over the track: too little to measure the rate.`, pts.length, turns);
     }
-    const fit = linearFit(
+    const fit = rateFit(
       pts.map((p) => p.t),
       angles,
     );
-    return { omega: fit.slope, stdError: fit.slopeSE, turns, nPoints: pts.length, reason: null };
+    if (!fit) return none("The mark's positions wander together from frame to frame too much to give the rate an honest error.", pts.length, turns);
+    return { omega: fit.slope, stdError: fit.stdError, turns, nPoints: pts.length, reason: null };
   } catch (error) {
     return none(`The rate could not be measured (${error instanceof Error ? error.message : String(error)}).`);
   }

@@ -129,11 +129,17 @@ export function createMarkFollower(options: MarkFollowerOptions): MarkFollower {
       }
       if (!(best >= minCorrelation) || bi <= 0 || bj <= 0 || bi >= w - 1 || bj >= w - 1) return;
       const at = (i: number, j: number) => scores[j * w + i]!;
-      const dx = parabolicPeak(at(bi - 1, bj), best, at(bi + 1, bj));
-      const dy = parabolicPeak(at(bi, bj - 1), best, at(bi, bj + 1));
-      const point = { t, x: cx - search + bi + dx, y: cy - search + bj + dy, correlation: best };
-      const step = angleOf(point) - lastAngle;
-      unwrapped += Math.atan2(Math.sin(step), Math.cos(step));
+      let x = cx - search + bi + parabolicPeak(at(bi - 1, bj), best, at(bi + 1, bj));
+      let y = cy - search + bj + parabolicPeak(at(bi, bj - 1), best, at(bi, bj + 1));
+      // A parabola through whole-pixel samples leans toward the pixel grid; a second one through
+      // samples a quarter pixel either side of the first estimate (bilinear) takes most of that out.
+      const step = 0.25;
+      const middle = correlationAt(image, x, y, turned);
+      x += step * parabolicPeak(correlationAt(image, x - step, y, turned), middle, correlationAt(image, x + step, y, turned));
+      y += step * parabolicPeak(correlationAt(image, x, y - step, turned), middle, correlationAt(image, x, y + step, turned));
+      const point = { t, x, y, correlation: best };
+      const turnStep = angleOf(point) - lastAngle;
+      unwrapped += Math.atan2(Math.sin(turnStep), Math.cos(turnStep));
       found.push(point);
     },
     points: () => found.slice(),

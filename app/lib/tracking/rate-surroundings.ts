@@ -6,8 +6,7 @@
  * frame's at trial turns near the prediction (normalised cross-correlation, parabolic sub-bin
  * peak), and the turn against time is fitted by a straight line.
  */
-import { linearFit } from "../analysis/regression";
-import type { OmegaFromMark } from "../analysis/rate-from-footage";
+import { rateFit, type OmegaFromMark } from "../analysis/rate-from-footage";
 import { formatNumber } from "../number-format";
 import { parabolicPeak, sampleBilinear, type GreyImage } from "./grey-image";
 
@@ -152,11 +151,12 @@ export function createSurroundingsFollower(options: SurroundingsOptions): Surrou
       const span = found[found.length - 1]!.angle - found[0]!.angle;
       if (Math.abs(span) < 0.05)
         return none(`The surroundings turn only ${formatNumber((Math.abs(span) * 180) / Math.PI, 2)}° over the frames: too little to measure the rate.`);
-      const fit = linearFit(
+      const fit = rateFit(
         found.map((p) => p.t),
         found.map((p) => p.angle),
       );
-      return { omega: fit.slope, stdError: fit.slopeSE, turns: span / (2 * Math.PI), nPoints: found.length, reason: null };
+      if (!fit) return none("The surroundings' turn wanders from frame to frame too much to give the rate an honest error.");
+      return { omega: fit.slope, stdError: fit.stdError, turns: span / (2 * Math.PI), nPoints: found.length, reason: null };
     },
   };
 }

@@ -1,12 +1,24 @@
 import { randomUUID } from "node:crypto";
 import type { Transaction } from "sequelize";
 import { LabSetting } from "./db";
-import { LAB_ID_SETTING, TIME_ZONE_SETTING, settingDefaults, settingLimits, timeZoneError, type LabSettings, type SettingKey } from "~/lib/settings";
+import {
+  DEFAULT_RATE_SOURCE,
+  LAB_ID_SETTING,
+  RATE_SOURCE_SETTING,
+  RATE_SOURCES,
+  TIME_ZONE_SETTING,
+  settingDefaults,
+  settingLimits,
+  timeZoneError,
+  type LabSettings,
+  type RateSource,
+  type SettingKey,
+} from "~/lib/settings";
 import { isTimeZone, systemTimeZone } from "~/lib/time-format";
 
 export async function getLabSettings(transaction?: Transaction): Promise<LabSettings> {
   const rows = await LabSetting.findAll({ transaction });
-  const settings: LabSettings = { ...settingDefaults, timeZone: systemTimeZone(), timeZoneIsServerDefault: true };
+  const settings: LabSettings = { ...settingDefaults, timeZone: systemTimeZone(), timeZoneIsServerDefault: true, rateSource: DEFAULT_RATE_SOURCE };
   for (const row of rows) {
     if (row.key in settingDefaults) {
       const value = Number(row.value);
@@ -14,6 +26,8 @@ export async function getLabSettings(transaction?: Transaction): Promise<LabSett
     } else if (row.key === TIME_ZONE_SETTING && isTimeZone(row.value)) {
       settings.timeZone = row.value;
       settings.timeZoneIsServerDefault = false;
+    } else if (row.key === RATE_SOURCE_SETTING && (RATE_SOURCES as readonly string[]).includes(row.value)) {
+      settings.rateSource = row.value as RateSource;
     }
   }
   return settings;
@@ -32,6 +46,13 @@ export async function setLabSetting(key: SettingKey, value: number) {
   }
   // The key is the primary key: INSERT … ON CONFLICT (key) DO UPDATE, so two saves at once leave one row.
   await LabSetting.upsert({ key, value: String(value) });
+}
+
+/** Which rate the theory check uses when the footage gave one too; the default removes the row. */
+export async function setLabRateSource(value: RateSource) {
+  if (!RATE_SOURCES.includes(value)) throw new RangeError(`"${String(value)}" is not a rate the check can use: choose ${RATE_SOURCES.join(" or ")}.`);
+  if (value === DEFAULT_RATE_SOURCE) await LabSetting.destroy({ where: { key: RATE_SOURCE_SETTING } });
+  else await LabSetting.upsert({ key: RATE_SOURCE_SETTING, value });
 }
 
 /** Sets the lab's time zone (an IANA name or UTC); an empty name goes back to the server's zone. */

@@ -5,6 +5,9 @@
  */
 export const SESSION_ABSOLUTE_HOURS = 12;
 
+export { DEFAULT_RATE_SOURCE, RATE_SOURCES, type RateSource } from "./analysis/rate-choice";
+import type { RateSource } from "./analysis/rate-choice";
+
 /** The lab's own rules, kept as settings a lab manager changes; the values here are the defaults. */
 export const settingDefaults = {
   /** Verdict tolerance: |f measured − f predicted| within this share of |f predicted| agrees. */
@@ -26,6 +29,8 @@ export type NumberSettings = { -readonly [K in keyof typeof settingDefaults]: nu
 export type SettingKey = keyof NumberSettings;
 
 export type LabSettings = NumberSettings & {
+  /** Which rate the theory check uses when the footage gave one too (lib/analysis/rate-choice). */
+  rateSource: RateSource;
   /** The IANA time zone every page, e-mail and printout shows times in. */
   timeZone: string;
   /** True while no zone is set and the server's own is used. */
@@ -35,6 +40,12 @@ export type LabSettings = NumberSettings & {
 /** The row keys of the settings that are not numbers. */
 export const TIME_ZONE_SETTING = "timeZone";
 export const LAB_ID_SETTING = "labId";
+export const RATE_SOURCE_SETTING = "rateSource";
+
+export const rateSourceLabels: Record<RateSource, string> = {
+  calibrated: "The rate calibration in force (the set rate without one)",
+  footage: "The rate measured from the footage, when the frames gave one",
+};
 
 export function timeZoneError(name: string) {
   return `"${name}" is not a time zone Tankside knows. Give an IANA name such as Europe/Berlin or America/New_York, or UTC; leave it empty to use the server's zone.`;

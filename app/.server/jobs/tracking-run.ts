@@ -2,10 +2,12 @@ import { Op, type WhereOptions } from "sequelize";
 import { Detection, Frame, Run, Track, TrackingJob, ViewSetup, sequelize } from "../db";
 import { frameKey, mapLimit, MissingObjectError, ScratchDir, store } from "../storage";
 import { trackFrameStack } from "../tracking/track-frame-stack";
-import { isTrackingCancelled } from "../tracking/errors";
+import { isTrackingCancelled, TrackingError } from "../tracking/errors";
 import { setRunState } from "../runs/service";
 import { checkRun } from "../runs/theory";
 import { trackingFingerprint } from "../runs/provenance";
+import { measureRateFromFrames } from "../tracking/rate-pass";
+import { runOmega } from "~/lib/analysis/run-omega";
 import type { FrameDetections, TrackingSetup } from "~/lib/tracking/types";
 
 /**
@@ -208,8 +210,24 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     await flush();
     if (flushError) throw flushError;
 
+    // The table's rate read from the same frames: a light pass of its own, after the tracer's.
+    const viewSetup = await ViewSetup.findOne({ where: { runId: run.id }, attributes: ["rateMarkXPx", "rateMarkYPx"] });
+    const measuredRate = await measureRateFromFrames({
+      files: stack.files,
+      times: stack.times,
+      cameraMode: run.cameraMode,
+      centre: setup.centre,
+      mirrored: setup.mirrored,
+      tankEdge: setup.tankEdge,
+      rateMark: viewSetup?.rateMarkXPx != null && viewSetup.rateMarkYPx != null ? { x: viewSetup.rateMarkXPx, y: viewSetup.rateMarkYPx } : null,
+      omegaSet: runOmega(run),
+      signal: controller.signal,
+    });
+    if (controller.signal.aborted) throw flushError ?? new TrackingError("cancelled", "The tracking job was cancelled.");
+
     const quality = new Map(result.quality.tracks.map((q) => [q.id, q]));
     const finished = {
+      ...measuredRate,
       state: "done" as const,
       framesDone: result.frames,
       resumeFromFrame: result.frames,

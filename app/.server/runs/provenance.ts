@@ -3,6 +3,7 @@ import type { Transaction } from "sequelize";
 import { Equipment, Frame, type Run, type TheoryCheck, Track, TrackingJob, ViewSetup } from "../db";
 import { getLabSettings } from "../settings";
 import { calibrationSnapshot } from "./service";
+import { footageRateOfJob, rateInputs } from "./rate-from-footage";
 
 /**
  * What a theory check is computed from: the inputs written as canonical JSON (keys sorted) and
@@ -36,6 +37,8 @@ export async function trackingInputs(run: Run, transaction?: Transaction) {
           tankEdge: [setup.tankEdgeXPx, setup.tankEdgeYPx, setup.tankEdgeRPx],
           scalePxPerM: setup.scalePxPerM,
           mirrored: setup.mirrored,
+          // Only when marked, so setups without one keep the fingerprints they had.
+          ...(setup.rateMarkXPx !== null && setup.rateMarkYPx !== null ? { rateMark: [setup.rateMarkXPx, setup.rateMarkYPx] } : {}),
         }
       : null,
     tracer: run.tracer,
@@ -54,7 +57,12 @@ export async function trackingFingerprint(run: Run, transaction?: Transaction) {
  * already covered) and the lab's tolerance.
  */
 export async function checkInputs(run: Run, track: Pick<Track, "id" | "pointCount" | "jobId"> | null, transaction?: Transaction) {
-  const [settings, table] = await Promise.all([getLabSettings(transaction), Equipment.findByPk(run.tableId, { attributes: ["id", "flatTable"], transaction })]);
+  const [settings, table, footage] = await Promise.all([
+    getLabSettings(transaction),
+    Equipment.findByPk(run.tableId, { attributes: ["id", "flatTable"], transaction }),
+    footageRateOfJob(track?.jobId, transaction),
+  ]);
+  const rate = rateInputs(settings.rateSource, footage.measured);
   return {
     conditions: {
       setRateRpm: run.setRateRpm,
@@ -68,6 +76,7 @@ export async function checkInputs(run: Run, track: Pick<Track, "id" | "pointCoun
     settings: { checkTolerancePct: settings.checkTolerancePct },
     tracking: await trackingInputs(run, transaction),
     track: track ? { id: track.id, pointCount: track.pointCount, jobId: track.jobId } : null,
+    ...(rate ? { rate } : {}),
   };
 }
 export type CheckInputs = Awaited<ReturnType<typeof checkInputs>>;
@@ -82,6 +91,8 @@ const inputWords: [path: string, words: string][] = [
   ["conditions.flatTable", "table's flatness"],
   ["calibrations", "calibrations in force"],
   ["settings.checkTolerancePct", "verdict tolerance"],
+  ["rate.setting", "rate used (lab setting)"],
+  ["rate.measured", "rate measured from the footage"],
   ["tracking.frames", "frames"],
   ["tracking.viewSetup", "view setup"],
   ["tracking.tracer", "tracer"],

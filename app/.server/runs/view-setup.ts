@@ -1,7 +1,10 @@
 import { Run, ViewSetup, locking, sequelize } from "../db";
 import { inputsChanged } from "./rechecks";
 
-export type ViewSetupValues = Omit<ViewSetup["_creationAttributes"], "id" | "createdAt" | "updatedAt">;
+type SetupRow = ViewSetup["_creationAttributes"];
+/** The mark on the table (migration 0013) may be left out: an existing setup then keeps its own. */
+export type ViewSetupValues = Omit<SetupRow, "id" | "createdAt" | "updatedAt" | "rateMarkXPx" | "rateMarkYPx"> &
+  Partial<Pick<SetupRow, "rateMarkXPx" | "rateMarkYPx">>;
 
 /**
  * Saves the run's view setup (one per run, a unique index); a changed setup makes the check out of

@@ -10,14 +10,18 @@ export interface SetupValues {
   scalePoints: [Point, Point] | null;
   scaleLengthCm: number | null;
   mirrored: boolean;
+  /** A mark on the turntable, for reading the table's rate from the frames (lab-fixed camera). */
+  rateMark: Point | null;
 }
 
-type Tool = "centre" | "rim" | "scale";
+type Tool = "centre" | "rim" | "scale" | "mark";
 const toolText: Record<Tool, string> = {
   centre: "Click the rotation centre (the table's axis).",
   rim: "Click three points on the tank's inner rim; the circle through them is the region searched.",
   scale: "Click the two ends of a known length (a ruler or marks on the tank floor).",
+  mark: "Click a small, distinct mark on the turntable away from the centre (a lab-fixed camera only): the table's rate is read from how it turns.",
 };
+const toolLabel: Record<Tool, string> = { centre: "Rotation centre", rim: "Tank edge (3 rim points)", scale: "Scale (2 points)", mark: "Mark on the table" };
 
 /** Marks the view on one frame with an SVG drawn over the image in its own pixel coordinates. */
 export function ViewSetupEditor({
@@ -46,8 +50,8 @@ export function ViewSetupEditor({
 
   function onClick(e: MouseEvent<SVGSVGElement>) {
     const p = toImage(e);
-    if (tool === "centre") {
-      setV({ ...v, centre: p });
+    if (tool === "centre" || tool === "mark") {
+      setV(tool === "centre" ? { ...v, centre: p } : { ...v, rateMark: p });
       return;
     }
     const next = [...clicks, p];
@@ -73,7 +77,7 @@ export function ViewSetupEditor({
     <div className="grid gap-6 xl:grid-cols-[2fr_1fr]">
       <div>
         <div className="mb-3 flex flex-wrap gap-2" role="toolbar" aria-label="What to mark">
-          {(["centre", "rim", "scale"] as Tool[]).map((t) => (
+          {(["centre", "rim", "scale", "mark"] as Tool[]).map((t) => (
             <Button
               key={t}
               type="button"
@@ -84,7 +88,7 @@ export function ViewSetupEditor({
                 setClicks([]);
               }}
             >
-              {t === "centre" ? "Rotation centre" : t === "rim" ? "Tank edge (3 rim points)" : "Scale (2 points)"}
+              {toolLabel[t]}
             </Button>
           ))}
         </div>
@@ -121,6 +125,17 @@ export function ViewSetupEditor({
                   <circle key={i} cx={p.x} cy={p.y} r={mark} fill="#ff6b9a" />
                 ))}
               </g>
+            ) : null}
+            {v.rateMark ? (
+              <rect
+                x={v.rateMark.x - mark * 2}
+                y={v.rateMark.y - mark * 2}
+                width={mark * 4}
+                height={mark * 4}
+                fill="none"
+                stroke="#9bff6b"
+                strokeWidth={mark / 2}
+              />
             ) : null}
             {clicks.map((p, i) => (
               <circle key={i} cx={p.x} cy={p.y} r={mark} fill="#ffffff" stroke="#000" />
@@ -202,6 +217,33 @@ export function ViewSetupEditor({
               : "No scale: speeds and radii stay in pixels; f does not need one."}
           </p>
         </fieldset>
+        <fieldset className="grid grid-cols-2 gap-3">
+          <legend className="mb-1 font-bold">Mark on the table (px, optional)</legend>
+          <TextField
+            label="Column"
+            name="rateMarkX"
+            inputMode="decimal"
+            value={num(v.rateMark?.x)}
+            onChange={(e) => setV({ ...v, rateMark: e.target.value === "" ? null : { x: Number(e.target.value), y: v.rateMark?.y ?? 0 } })}
+            error={errors.rateMarkX}
+          />
+          <TextField
+            label="Row"
+            name="rateMarkY"
+            inputMode="decimal"
+            value={num(v.rateMark?.y)}
+            onChange={(e) => setV({ ...v, rateMark: e.target.value === "" ? null : { x: v.rateMark?.x ?? 0, y: Number(e.target.value) } })}
+            error={errors.rateMarkY}
+          />
+          <p className="col-span-2 text-sm text-muted">
+            With a lab-fixed camera the table&apos;s rate is read from this mark; a co-rotating camera reads it from the room beyond the tank edge instead.
+          </p>
+        </fieldset>
+        {v.rateMark ? (
+          <Button type="button" tone="quiet" onClick={() => setV({ ...v, rateMark: null })}>
+            Clear the mark on the table
+          </Button>
+        ) : null}
         <label className="flex min-h-12 items-center gap-3 font-bold">
           <input type="checkbox" name="mirrored" className="h-6 w-6" checked={v.mirrored} onChange={(e) => setV({ ...v, mirrored: e.target.checked })} />
           The image is mirrored (camera under the table, or a mirror in the light path)

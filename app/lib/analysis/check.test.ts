@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { measureOmegaFromMark, runTheoryCheck } from "./check";
+import { runTheoryCheck } from "./check";
 import type { TheoryCheckInput } from "./check";
 import { rotatingFrameToImage } from "./frames";
 import { omegaFromTableRate } from "./run-omega";
@@ -285,33 +285,5 @@ describe("bad input: inconclusive with a reason, never a throw", () => {
     expect(runTheoryCheck({ ...base, points: garbage }).verdict).toBe("inconclusive");
     expect(runTheoryCheck({ ...base, setup: null as unknown as TheoryCheckInput["setup"] }).verdict).toBe("inconclusive");
     expect(runTheoryCheck({ ...base, cameraMode: "ceiling" as unknown as "lab" }).verdict).toBe("inconclusive");
-  });
-});
-
-describe("Ω measured from a mark on the table (lab-fixed camera)", () => {
-  const centre = { x: 640, y: 360 };
-  const mark = (omega: number, mirrored: boolean, noise: number) => {
-    const normal = gaussian(seededRandom(5));
-    return Array.from({ length: 240 }, (_, i) => {
-      const t = 4 + i / 30;
-      const a = 0.3 + omega * (t - 4);
-      const x = 250 * Math.cos(a);
-      return { t, x: centre.x + (mirrored ? -x : x) + noise * normal(), y: centre.y - 250 * Math.sin(a) + noise * normal() };
-    });
-  };
-
-  it("reads the signed rate from the unwrapped angle about the centre", () => {
-    const ccw = measureOmegaFromMark(mark(1.047, false, 0.3), centre);
-    expect(ccw.omega!).toBeCloseTo(1.047, 3);
-    expect(ccw.stdError!).toBeLessThan(1e-3);
-    expect(ccw.turns).toBeCloseTo((1.047 * 239) / 30 / (2 * Math.PI), 2);
-    expect(measureOmegaFromMark(mark(-2.5, false, 0.3), centre).omega!).toBeCloseTo(-2.5, 3);
-    expect(measureOmegaFromMark(mark(1.047, true, 0.3), centre, { mirrored: true }).omega!).toBeCloseTo(1.047, 3);
-  });
-
-  it("gives no rate, with a reason, from too little", () => {
-    expect(measureOmegaFromMark(mark(1, false, 0).slice(0, 3), centre).reason).toMatch(/at least 5/);
-    expect(measureOmegaFromMark(mark(0.001, false, 0), centre).reason).toMatch(/too little/);
-    expect(measureOmegaFromMark(mark(1, false, 0), { x: Number.NaN, y: 0 }).omega).toBeNull();
   });
 });

@@ -68,6 +68,13 @@ export interface SyntheticRunSpec {
   water?: Rgb;
   /** Dark marks on the tank bottom that turn with the table. */
   tankMarks?: boolean;
+  /** A light mark on the turntable's top outside the tank (turns with the table): for reading the rate from the footage. */
+  tableMark?: { radiusPx: number; angle: number; sizePx: number } | null;
+  /**
+   * The room beyond the turntable, fixed in the lab: from this radius (px) outward the frame shows
+   * lab-fixed features, which a co-rotating camera sees turn at −Ω. Null: the table fills the frame.
+   */
+  surroundingsFromPx?: number | null;
 }
 
 export interface SyntheticFrame {
@@ -137,6 +144,29 @@ export function tracerPosition(spec: SyntheticRunSpec, tracer: SyntheticTracer, 
   return tableToView(spec, pathPosition(tracer.path, spec.omega, t), t);
 }
 
+/**
+ * Brightness of the lab-fixed surroundings by direction (radians, counterclockwise from x seen
+ * from above): a few smooth features of different widths, like doors, shelves and lamps.
+ */
+export function surroundingsPattern(seed: number): (angle: number) => number {
+  const random = seededRandom(seed ^ 0x0f00d);
+  const terms = Array.from({ length: 12 }, (_, i) => ({ k: 2 + i * 3 + Math.floor(random() * 3), phase: 2 * Math.PI * random(), a: 0.5 + random() }));
+  const size = 8192;
+  const table = new Float32Array(size + 1);
+  for (let i = 0; i <= size; i++) {
+    const a = (2 * Math.PI * i) / size;
+    let v = 0;
+    for (const term of terms) v += term.a * Math.sin(term.k * a + term.phase);
+    table[i] = 130 + 14 * v;
+  }
+  return (angle) => {
+    const u = ((((angle / (2 * Math.PI)) % 1) + 1) % 1) * size;
+    const i = Math.floor(u);
+    const f = u - i;
+    return table[i]! * (1 - f) + table[i + 1]! * f;
+  };
+}
+
 export interface SyntheticRenderer {
   frame(index: number): SyntheticFrame;
 }
@@ -190,6 +220,60 @@ export function createSyntheticRenderer(spec: SyntheticRunSpec): SyntheticRender
   };
   if (spec.tankMarks !== false && !marksTurn) drawMarks(scene, 0);
 
+  // The table's own mark: a light disc on the table top outside the rim, with a dark dot off its
+  // centre so that its turning shows.
+  const tableMark = spec.tableMark ?? null;
+  const tableMarkAt = tableMark
+    ? { x: (tableMark.radiusPx / spec.pxPerM) * Math.cos(tableMark.angle), y: (tableMark.radiusPx / spec.pxPerM) * Math.sin(tableMark.angle) }
+    : null;
+  const drawTableMark = (target: Float32Array, t: number) => {
+    if (!tableMark || !tableMarkAt) return;
+    const at = tableToView(spec, tableMarkAt, t);
+    const dotOffset = tableToView(
+      spec,
+      { x: tableMarkAt.x * (1 + (0.4 * tableMark.sizePx) / tableMark.radiusPx), y: tableMarkAt.y * (1 + (0.4 * tableMark.sizePx) / tableMark.radiusPx) },
+      t,
+    );
+    const r = tableMark.sizePx;
+    stamp(at.x, at.y, r + 2, (p, dx, dy) => {
+      const cover = Math.min(1, Math.max(0, r + 0.5 - Math.hypot(dx, dy)));
+      for (let c = 0; c < 3; c++) target[p + c]! += (235 - target[p + c]!) * cover;
+    });
+    stamp(dotOffset.x, dotOffset.y, r / 3 + 2, (p, dx, dy) => {
+      const cover = Math.min(1, Math.max(0, r / 3 + 0.5 - Math.hypot(dx, dy)));
+      for (let c = 0; c < 3; c++) target[p + c]! += (markColour[c]! - target[p + c]!) * cover;
+    });
+  };
+  if (!marksTurn) drawTableMark(scene, 0);
+
+  // The room beyond the table, fixed in the lab: its pixels and their directions, drawn per frame
+  // for a co-rotating camera (it turns past at −Ω) and once for a lab-fixed one.
+  const roomFrom = spec.surroundingsFromPx ?? null;
+  const room = roomFrom === null ? null : { pattern: surroundingsPattern(seed), pixels: [] as number[], angles: [] as number[] };
+  if (room && roomFrom !== null) {
+    for (let row = 0; row < h; row++) {
+      for (let col = 0; col < w; col++) {
+        if (Math.hypot(col - spec.centre.x, row - spec.centre.y) < roomFrom) continue;
+        const dx = col - spec.centre.x;
+        room.pixels.push((row * w + col) * 3);
+        room.angles.push(Math.atan2(-(row - spec.centre.y), spec.mirrored ? -dx : dx));
+      }
+    }
+  }
+  const drawRoom = (target: Float32Array, t: number) => {
+    if (!room) return;
+    // A lab-fixed direction φ is seen at φ − Ωt by a co-rotating camera; the pixel at φ shows φ + Ωt.
+    const turn = spec.camera === "rotating" ? spec.omega * t : 0;
+    for (let i = 0; i < room.pixels.length; i++) {
+      const v = room.pattern(room.angles[i]! + turn);
+      const p = room.pixels[i]!;
+      target[p] = v;
+      target[p + 1] = v * 0.97;
+      target[p + 2] = v * 0.92;
+    }
+  };
+  if (spec.camera === "lab") drawRoom(scene, 0);
+
   const light = new Float32Array(w * h);
   const glare = new Float32Array(w * h);
   for (let row = 0; row < h; row++) {
@@ -210,6 +294,8 @@ export function createSyntheticRenderer(spec: SyntheticRunSpec): SyntheticRender
       const t = index / spec.fps;
       work.set(scene);
       if (spec.tankMarks !== false && marksTurn) drawMarks(work, t);
+      if (marksTurn) drawTableMark(work, t);
+      if (spec.camera === "rotating") drawRoom(work, t);
       const truth: { x: number; y: number }[] = [];
       for (const tracer of spec.tracers) {
         const at = tracerPosition(spec, tracer, t);

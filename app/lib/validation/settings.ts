@@ -24,6 +24,8 @@ export const labSettingsSchema = z
     timingCheckIntervalDays: field("timingCheckIntervalDays"),
     calibrationReminderDays: field("calibrationReminderDays"),
     sessionIdleHours: field("sessionIdleHours"),
+    // Left out (an older form or script): the lab's choice stays as it is.
+    rateSource: z.enum(["calibrated", "footage"], { error: "Choose which rate the theory check uses." }).optional(),
     // Empty (or left out) means the server's own zone.
     timeZone: z
       .string()

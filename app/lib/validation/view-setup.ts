@@ -18,6 +18,8 @@ export const viewSetupSchema = z
     scaleLengthPx: optionalPx("The scale's length"),
     scalePoints: z.string().max(500).optional(),
     mirrored: z.preprocess((v) => v === "on" || v === "true", z.boolean()),
+    rateMarkX: optionalPx("The table mark's column"),
+    rateMarkY: optionalPx("The table mark's row"),
   })
   .superRefine((v, ctx) => {
     const edge = [v.edgeX, v.edgeY, v.edgeR];
@@ -26,6 +28,9 @@ export const viewSetupSchema = z
     }
     if (v.edgeR !== undefined && v.edgeR <= 5)
       ctx.addIssue({ code: "custom", path: ["edgeR"], message: "The tank edge is too small; mark three points on the rim." });
+    if ((v.rateMarkX === undefined) !== (v.rateMarkY === undefined)) {
+      ctx.addIssue({ code: "custom", path: ["rateMarkX"], message: "Give both the column and the row of the mark on the table (or clear it)." });
+    }
     if ((v.scaleLengthCm === undefined) !== (v.scaleLengthPx === undefined)) {
       ctx.addIssue({ code: "custom", path: ["scaleLengthCm"], message: "For a scale, mark two points and give the length between them in cm." });
     }

@@ -14,6 +14,8 @@ import { RunConditionsPanel } from "~/components/run-conditions-panel";
 import { FrameUploader } from "~/components/runs/frame-uploader";
 import { TrackingPanel } from "~/components/runs/tracking-panel";
 import { TheoryCheckPanel } from "~/components/runs/theory-check-panel";
+import { TableRatePanel } from "~/components/runs/table-rate-panel";
+import { tableRateSummary } from "~/.server/runs/rate-from-footage";
 import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
 import { SupersedesLinks } from "~/components/run-record/supersedes-links";
 import { SignOffPanel } from "~/components/run-record/sign-off-panel";
@@ -31,8 +33,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const run = await loadRun(request, params.id);
   const current = await currentCheck(run);
-  const [page, settings, record] = await Promise.all([runPageData(run, user, current), getLabSettings(), getRunRecordParts(run, user, current)]);
-  return { ...page, record, user, spinUpTimesToWait: settings.spinUpTimesToWait };
+  const [page, settings, record, tableRate] = await Promise.all([
+    runPageData(run, user, current),
+    getLabSettings(),
+    getRunRecordParts(run, user, current),
+    tableRateSummary(run),
+  ]);
+  return { ...page, record, user, spinUpTimesToWait: settings.spinUpTimesToWait, tableRate };
 }
 
 function Fact({ label, children }: { label: string; children: React.ReactNode }) {
@@ -306,6 +313,12 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
               </tbody>
             </table>
           </div>
+        </Card>
+      ) : null}
+
+      {d.job?.state === "done" || d.check ? (
+        <Card title="The table's rate">
+          <TableRatePanel rate={d.tableRate} checkRate={d.check?.rate ?? null} />
         </Card>
       ) : null}
 

@@ -32,6 +32,7 @@ function toValues(s: ViewSetup): SetupValues {
     scalePoints,
     scaleLengthCm: scalePx && s.scalePxPerM ? Math.round((scalePx / s.scalePxPerM) * 100 * 1000) / 1000 : null,
     mirrored: s.mirrored,
+    rateMark: s.rateMarkXPx !== null && s.rateMarkYPx !== null ? { x: s.rateMarkXPx, y: s.rateMarkYPx } : null,
   };
 }
 
@@ -68,7 +69,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     scaleCalibration,
     runId: run.id,
     frame: { id: frame!.id, width: frame!.widthPx, height: frame!.heightPx },
-    initial: start ? toValues(start) : { centre: null, edge: null, scalePoints: null, scaleLengthCm: null, mirrored: false },
+    initial: start ? toValues(start) : { centre: null, edge: null, scalePoints: null, scaleLengthCm: null, mirrored: false, rateMark: null },
     reusedFrom: previous ? previous.runId : null,
   };
 }
@@ -87,6 +88,9 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (v.edgeX !== undefined && v.edgeY !== undefined && (v.edgeX < 0 || v.edgeX > w || v.edgeY < 0 || v.edgeY > h)) {
     errors.edgeX = [`The tank edge's centre must lie inside the ${w} × ${h} px frame.`];
   }
+  if (v.rateMarkX !== undefined && v.rateMarkY !== undefined && (v.rateMarkX < 0 || v.rateMarkX > w || v.rateMarkY < 0 || v.rateMarkY > h)) {
+    errors.rateMarkX = [`The mark on the table must lie inside the ${w} × ${h} px frame.`];
+  }
   if (Object.keys(errors).length) return data({ errors }, { status: 400 });
   const values = {
     runId: run.id,
@@ -99,6 +103,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     scalePxPerM: v.scaleLengthPx && v.scaleLengthCm ? v.scaleLengthPx / (v.scaleLengthCm / 100) : null,
     scalePoints: v.scalePoints || null,
     mirrored: v.mirrored,
+    rateMarkXPx: v.rateMarkX ?? null,
+    rateMarkYPx: v.rateMarkY ?? null,
     createdById: user.id,
   };
   await saveViewSetup(run, values, user.id);
@@ -112,7 +118,7 @@ export default function Setup({ loaderData, actionData }: Route.ComponentProps) 
     <div>
       <PageHeader
         title={`View setup · ${runLabel(runId)}`}
-        subtitle="Mark the rotation centre, the tank edge and the scale on the first frame."
+        subtitle="Mark the rotation centre, the tank edge, the scale and, with a lab-fixed camera, a mark on the table on the first frame."
         actions={<ButtonLink to={`/runs/${runId}`}>Back to the run</ButtonLink>}
       />
       {imageMissing ? (

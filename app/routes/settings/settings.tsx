@@ -4,10 +4,10 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/settings";
 import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
-import { getLabSettings, setLabSetting, setLabTimeZone } from "~/.server/settings";
+import { getLabSettings, setLabRateSource, setLabSetting, setLabTimeZone } from "~/.server/settings";
 import { refitUnsignedRuns } from "~/.server/runs/rechecks";
 import { labSettingsSchema } from "~/lib/validation/settings";
-import { settingDefaults, settingLimits, type SettingKey } from "~/lib/settings";
+import { RATE_SOURCES, rateSourceLabels, settingDefaults, settingLimits, type SettingKey } from "~/lib/settings";
 import { systemTimeZone, timeFormat, timeZoneNames } from "~/lib/time-format";
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
@@ -28,11 +28,13 @@ export async function action({ request }: Route.ActionArgs) {
   if (submission.status !== "success") return data({ result: submission.reply(), saved: false }, { status: 400 });
   const before = await getLabSettings();
   // Every value is checked before any is written, so a bad entry changes nothing.
-  const { timeZone, ...numbers } = submission.value;
+  const { timeZone, rateSource, ...numbers } = submission.value;
   for (const [key, value] of Object.entries(numbers) as [SettingKey, number][]) await setLabSetting(key, value);
   await setLabTimeZone(timeZone);
-  // The tolerance decides verdicts: every unsigned run with a check is fitted again under the new one.
-  if ((await getLabSettings()).checkTolerancePct !== before.checkTolerancePct) await refitUnsignedRuns(user.id);
+  if (rateSource) await setLabRateSource(rateSource);
+  // The tolerance and the rate used decide verdicts: every unsigned run with a check is fitted again under the new ones.
+  const after = await getLabSettings();
+  if (after.checkTolerancePct !== before.checkTolerancePct || after.rateSource !== before.rateSource) await refitUnsignedRuns(user.id);
   return { result: submission.reply(), saved: true };
 }
 
@@ -64,6 +66,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
     defaultValue: {
       ...Object.fromEntries(Object.keys(settingDefaults).map((k) => [k, String(loaderData.settings[k as SettingKey])])),
       timeZone: loaderData.settings.timeZoneIsServerDefault ? "" : loaderData.settings.timeZone,
+      rateSource: loaderData.settings.rateSource,
     },
   });
   const zone = fields.timeZone;
@@ -99,6 +102,27 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
             </div>
           </Card>
         ))}
+        <Card title="The table's rate">
+          <fieldset>
+            <legend className="mb-4 text-muted">
+              The theory check predicts f from the table&apos;s rate. When the frames also give the rate (a mark on the table, or the room turning past a
+              co-rotating camera), which one does the verdict use? Both are shown on every run either way, and a disagreement is flagged.
+            </legend>
+            <div className="flex flex-col gap-2">
+              {RATE_SOURCES.map((source) => (
+                <label key={source} className="flex items-center gap-2">
+                  <input type="radio" name={fields.rateSource.name} value={source} defaultChecked={fields.rateSource.initialValue === source} />
+                  {rateSourceLabels[source]}
+                </label>
+              ))}
+            </div>
+            {fields.rateSource.errors ? (
+              <p className="mt-2 text-sm font-bold text-disagrees-ink" role="alert">
+                {fields.rateSource.errors.join(" ")}
+              </p>
+            ) : null}
+          </fieldset>
+        </Card>
         <Card title="Time zone">
           <p className="mb-4 text-muted">
             Pages, e-mails and printouts show times on the lab&apos;s clock, with the zone named. Calendar files and the API keep UTC.

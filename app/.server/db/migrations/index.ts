@@ -11,6 +11,7 @@ import * as m0009 from "./0009-calibration-history";
 import * as m0010 from "./0010-camera-scale-tolerance";
 import * as m0011 from "./0011-tracking-job-leases";
 import * as m0012 from "./0012-lab-identity";
+import * as m0013 from "./0013-rate-from-footage";
 import * as m0014 from "./0014-shared-frame-files";
 
 export interface Migration {
@@ -33,5 +34,6 @@ export const migrations: Migration[] = [
   { name: "0010-camera-scale-tolerance", ...m0010 },
   { name: "0011-tracking-job-leases", ...m0011 },
   { name: "0012-lab-identity", ...m0012 },
+  { name: "0013-rate-from-footage", ...m0013 },
   { name: "0014-shared-frame-files", ...m0014 },
 ];

@@ -50,6 +50,9 @@ export class ViewSetup extends Model<InferAttributes<ViewSetup>, InferCreationAt
   declare scalePxPerM: number | null;
   declare scalePoints: string | null;
   declare mirrored: boolean;
+  /** A mark on the turntable on the first frame, image px: the rate is read from it (lab-fixed camera). */
+  declare rateMarkXPx: CreationOptional<number | null>;
+  declare rateMarkYPx: CreationOptional<number | null>;
   declare createdById: number;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -67,6 +70,8 @@ ViewSetup.init(
     scalePxPerM: { type: DataTypes.DOUBLE, allowNull: true, field: "scale_px_per_m" },
     scalePoints: { type: DataTypes.TEXT, allowNull: true },
     mirrored: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+    rateMarkXPx: { type: DataTypes.DOUBLE, allowNull: true, field: "rate_mark_x_px" },
+    rateMarkYPx: { type: DataTypes.DOUBLE, allowNull: true, field: "rate_mark_y_px" },
     createdById: { type: DataTypes.INTEGER, allowNull: false },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
@@ -93,6 +98,14 @@ export class TrackingJob extends Model<InferAttributes<TrackingJob>, InferCreati
   /** PostgreSQL: the worker holding the job, and until when without a heartbeat. */
   declare leaseOwner: CreationOptional<string | null>;
   declare leaseUntil: CreationOptional<Date | null>;
+  /** The table's rate read from the frames (migration 0013): signed rad/s and its standard error. */
+  declare measuredOmega: CreationOptional<number | null>;
+  declare measuredOmegaSe: CreationOptional<number | null>;
+  /** "table mark" or "surroundings" */
+  declare measuredOmegaMethod: CreationOptional<string | null>;
+  declare measuredOmegaPoints: CreationOptional<number | null>;
+  /** Why no rate was read, in words. */
+  declare measuredOmegaNote: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -112,6 +125,11 @@ TrackingJob.init(
     inputFingerprint: { type: DataTypes.STRING(64), allowNull: true },
     leaseOwner: { type: DataTypes.STRING(80), allowNull: true },
     leaseUntil: { type: DataTypes.DATE, allowNull: true },
+    measuredOmega: { type: DataTypes.DOUBLE, allowNull: true },
+    measuredOmegaSe: { type: DataTypes.DOUBLE, allowNull: true },
+    measuredOmegaMethod: { type: DataTypes.STRING(20), allowNull: true },
+    measuredOmegaPoints: { type: DataTypes.INTEGER, allowNull: true },
+    measuredOmegaNote: { type: DataTypes.TEXT, allowNull: true },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,
   },

@@ -7,7 +7,8 @@ export const databaseFree = [
   // The pure library: no server module at all (DEVELOPERS.md, layout).
   { glob: "app/lib/**", why: "the pure library" },
   // Tracking and the theory check on rendered stacks: frames on disk, the tracking pool, no run rows.
-  { glob: "app/.server/tracking/**", why: "tracking on frame stacks written to a temporary folder" },
+  { glob: "app/.server/tracking/track-frame-stack.test.ts", why: "tracking on frame stacks written to a temporary folder" },
+  { glob: "app/.server/tracking/theory-on-rendered-stacks.test.ts", why: "tracking and the check on rendered stacks in a temporary folder" },
   { glob: "app/.server/cli/**", why: "the command-line analysis of a frame folder", children: ["app/.server/cli/analyze.ts"] },
   // It starts servers with SQLite files of their own whatever the pass, so a second pass repeats it.
   { glob: "app/.server/storage/startup-check.test.ts", why: "start-up refusals, on SQLite files of its own" },

@@ -8,14 +8,7 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import Piscina from "piscina";
-import {
-  backgroundSampleIndices,
-  dyeExclusionReach,
-  fillChannelsFromSurroundings,
-  minimumFreeSamples,
-  tracerExclusions,
-  type ExclusionSet,
-} from "../../lib/tracking/background";
+import { backgroundSampleIndices, fillChannelsFromSurroundings, minimumFreeSamples, tracerExclusions, type ExclusionSet } from "../../lib/tracking/background";
 import { defaultLinking, linkDetections, type LinkingOptions } from "../../lib/tracking/link";
 import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../../lib/tracking/plan";
 import { trackingQuality } from "../../lib/tracking/quality";
@@ -171,10 +164,9 @@ function makePlan(setup: TrackingSetup, width: number, height: number): Detectio
  * and results live in shared memory: the workers split the pixels between them, and every
  * frame's task then reads the same background without a copy.
  *
- * Float: the median of frames sampled over the stack, the float found in each sample against
- * it, then the median again with discs around the finds left out. Dye (RGB, each channel's
- * median): the patch found in each sample by colour, discs around it left out of a first median,
- * then the patch measured against that median and its ellipse left out of the second.
+ * The median of frames sampled over the stack (each channel's for dye), the tracer found in each
+ * sample against it, then the median again with a disc around each float, or the ellipse each
+ * dye patch covers, left out.
  */
 async function stillBackground(files: string[], plan: DetectionPlan, key: string, workers: TrackingPool, signal: AbortSignal | undefined): Promise<Uint8Array> {
   if (files.length < 3) {
@@ -217,7 +209,7 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
     if (used) fillChannelsFromSurroundings(out, used, plan.crop.width, channels, minimumFreeSamples(indices.length));
     return out;
   };
-  const findIn = (background: Uint8Array | null): Promise<Detection[][]> =>
+  const findIn = (background: Uint8Array): Promise<Detection[][]> =>
     Promise.all(
       indices.map(async (index, j) => {
         // A copy of its own (slice of shared memory is not shared), handed over to the worker.
@@ -229,17 +221,10 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
         }
       }),
     );
-  let first: Uint8Array;
-  if (plan.tracer === "float") {
-    first = await median();
-  } else {
-    const discs = tracerExclusions(await findIn(null), plan.crop, plan.shrink, dyeExclusionReach);
-    if (signal?.aborted) throw cancelled();
-    first = await median(discs.length > 0 ? { width: plan.crop.width, discs } : undefined);
-  }
+  const plain = await median();
   if (signal?.aborted) throw cancelled();
-  const discs = tracerExclusions(await findIn(first), plan.crop, plan.shrink);
-  if (discs.length === 0) return first;
+  const discs = tracerExclusions(await findIn(plain), plan.crop, plan.shrink);
+  if (discs.length === 0) return plain;
   if (signal?.aborted) throw cancelled();
   return median({ width: plan.crop.width, discs });
 }

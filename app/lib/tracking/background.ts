@@ -12,7 +12,9 @@
  * the sampled frames against the plain median, a disc around each find is left out of that
  * sample, and the median is taken again over what remains. Rim, glare, illumination and tank
  * marks that do not move stay in it; a float that sits on one pixel for more than half the
- * sampled frames is still taken for background there (and missed in those frames).
+ * sampled frames is still taken for background there (and missed in those frames). A dye stack
+ * gets the same treatment in colour (each channel's median), with the ellipse of each measured
+ * patch left out instead of a disc.
  */
 import type { Detection } from "./types";
 
@@ -48,13 +50,6 @@ export interface ExclusionSet {
   discs: readonly BackgroundExclusion[];
 }
 
-/** Exclusion disc radius in blob equivalent radii: a float's round glow (below). */
-export const floatExclusionReach = 2;
-/**
- * A dye patch is elongated (3:1 and more), so its long half-axis is √3 or more equivalent radii,
- * and its faint edge reaches about twice as far again as the thresholded blob.
- */
-export const dyeExclusionReach = 4;
 /** A measured dye patch is left out to 3.5 standard deviations, where it is below 0.3 % of its peak. */
 export const patchExclusionSigmas = 3.5;
 
@@ -64,12 +59,7 @@ export const patchExclusionSigmas = 3.5;
  * blob (5 σ) has radius 1.5 spot widths and the glow stays above σ to 2.3, so the disc is twice
  * the blob's equivalent radius, plus a detection block and 3 px for the centroid's own error.
  */
-export function tracerExclusions(
-  perSample: readonly (readonly Detection[])[],
-  crop: { left: number; top: number },
-  shrink = 1,
-  reach = floatExclusionReach,
-): BackgroundExclusion[] {
+export function tracerExclusions(perSample: readonly (readonly Detection[])[], crop: { left: number; top: number }, shrink = 1): BackgroundExclusion[] {
   const discs: BackgroundExclusion[] = [];
   perSample.forEach((detections, sample) => {
     for (const d of detections) {
@@ -82,7 +72,7 @@ export function tracerExclusions(
         continue;
       }
       const radius = Math.sqrt(Math.max(0, d.area) / Math.PI);
-      discs.push({ sample, x, y, r: reach * radius + shrink + 3 });
+      discs.push({ sample, x, y, r: 2 * radius + shrink + 3 });
     }
   });
   return discs;
@@ -123,42 +113,34 @@ export function floatBackground(
 }
 
 /**
- * The background of a dye stack, interleaved RGB like its frames, the dye left out. The patch is
- * first found in each sampled frame by colour alone (`detectByColour`), generous discs around
- * the finds are left out of a first per-channel median; then it is measured against that median
- * (`detectPatch`, which gives its shape) and the ellipse it covers is left out of the second.
- * Pixels with too few free samples are filled in from their surroundings, channel by channel.
+ * The background of a dye stack, interleaved RGB like its frames, the dye left out, the way a
+ * float's is built: each channel's plain median, the patch measured in each sampled frame against
+ * it (`detect`, which gives the patch's shape), then the median again without the ellipse each
+ * patch covers. Pixels with too few free samples are filled in from their surroundings, channel
+ * by channel.
  */
 export function dyeBackground(
   frames: readonly Uint8Array[],
   width: number,
-  detectByColour: (frame: Uint8Array) => readonly Detection[],
-  detectPatch: (frame: Uint8Array, background: Uint8Array) => readonly Detection[],
+  detect: (frame: Uint8Array, background: Uint8Array) => readonly Detection[],
   crop: { left: number; top: number } = { left: 0, top: 0 },
   shrink = 1,
 ): Uint8Array {
   if (frames.length === 0) throw new Error("A background needs at least one frame.");
-  const median = (discs: BackgroundExclusion[]): Uint8Array => {
-    const out = new Uint8Array(frames[0]!.length);
-    const used = new Uint8Array(out.length / 3);
-    medianInto(frames, out, 0, used.length, { width, discs }, used, 3);
-    if (discs.length > 0) fillChannelsFromSurroundings(out, used, width, 3, minimumFreeSamples(frames.length));
-    return out;
-  };
-  const first = median(
-    tracerExclusions(
-      frames.map((f) => detectByColour(f)),
-      crop,
-      shrink,
-      dyeExclusionReach,
-    ),
-  );
-  const patches = tracerExclusions(
-    frames.map((f) => detectPatch(f, first)),
+  const pixels = frames[0]!.length / 3;
+  const plain = new Uint8Array(frames[0]!.length);
+  medianInto(frames, plain, 0, pixels, undefined, undefined, 3);
+  const discs = tracerExclusions(
+    frames.map((f) => detect(f, plain)),
     crop,
     shrink,
   );
-  return patches.length > 0 ? median(patches) : first;
+  if (discs.length === 0) return plain;
+  const out = new Uint8Array(plain.length);
+  const used = new Uint8Array(pixels);
+  medianInto(frames, out, 0, pixels, { width, discs }, used, 3);
+  fillChannelsFromSurroundings(out, used, width, 3, minimumFreeSamples(frames.length));
+  return out;
 }
 
 /** fillFromSurroundings for each channel of an interleaved image. */

@@ -433,7 +433,8 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
       check(image, background);
       const bg = plan.tracer === "float" ? background : null;
       const dyeBackground = plan.tracer === "dye" ? background : null;
-      const { median, sigma } = noise(image, bg);
+      // Dye measured against a background has noise figures of its own (dye-centre.ts).
+      const { median, sigma } = dyeBackground ? { median: 0, sigma: 0 } : noise(image, bg);
       const regions = threshold(image, bg, median, sigma);
       if (regions.length === 0) return [];
       const detections: Detection[] = [];

@@ -132,7 +132,6 @@ function dyeErrors(seeds: number[], tracer: SyntheticTracer, overrides: Partial<
     const background = dyeBackground(
       backgroundSampleIndices(crops.length).map((i) => crops[i]!.data),
       plan.crop.width,
-      (f) => find.detect(image(f), null),
       (f, b) => find.detect(image(f), b),
       plan.crop,
       plan.shrink,

@@ -1,8 +1,11 @@
 /**
- * Tracking speed and memory on a 600-frame 1280×720 JPEG stack with a float on an inertial
- * circle. The stack is rendered once into node_modules/.cache (a separate process, so its memory
- * does not count) and reused. Prints details on stderr and, as the last line of stdout, one JSON
- * object: frames, width, height, framesPerSecond, decodeOnlyFramesPerSecond, peakRssMB.
+ * Tracking speed and memory on a 600-frame 1280×720 JPEG stack: by default a float on an
+ * inertial circle; with `--tracer dye` an elongated low-contrast dye patch (3:1, contrast 0.6,
+ * noise σ 7) carried round by the table under a lab-fixed camera. The stack is rendered once into
+ * node_modules/.cache (a separate process, so its memory does not count) and reused. Prints
+ * details on stderr and, as the last line of stdout, one JSON object: frames, width, height,
+ * framesPerSecond, decodeOnlyFramesPerSecond, peakRssMB, and (added later) tracer, cpuMsPerFrame
+ * and rmsErrorPx (the longest track against the rendered truth).
  */
 import { spawnSync } from "node:child_process";
 import { createHash } from "node:crypto";
@@ -19,8 +22,12 @@ import type { Track, TrackingSetup } from "../app/lib/tracking/types";
 import { writeSyntheticStack } from "../tests/fixtures/tracking/write-stack";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
+const tracerArg = process.argv.indexOf("--tracer");
+const tracerName = tracerArg >= 0 ? process.argv[tracerArg + 1] : "float";
+if (tracerName !== "float" && tracerName !== "dye") throw new Error(`--tracer is float or dye, not ${String(tracerName)}.`);
+const tracer: "float" | "dye" = tracerName;
 const omega = (2 * Math.PI * 10) / 60;
-const spec: SyntheticRunSpec = {
+const floatSpec: SyntheticRunSpec = {
   width: 1280,
   height: 720,
   frames: 600,
@@ -43,8 +50,27 @@ const spec: SyntheticRunSpec = {
     },
   ],
 };
+const dyeSpec: SyntheticRunSpec = {
+  ...floatSpec,
+  camera: "lab",
+  noiseSigma: 7,
+  tracers: [
+    {
+      kind: "dye",
+      path: { kind: "still", at: { x: -0.15, y: 0.08 } },
+      sigmaAlongPx: 9,
+      sigmaAcrossPx: 3,
+      colour: [200, 30, 60],
+      opacity: 0.6,
+      spreadPerS: 0.02,
+      stretchPerS: 0.01,
+      turnRadPerS: 0.1,
+    },
+  ],
+};
+const spec = tracer === "dye" ? dyeSpec : floatSpec;
 const setup: TrackingSetup = {
-  tracer: "float",
+  tracer,
   centre: spec.centre,
   tankEdge: { cx: 640, cy: 360, r: 335 },
   mirrored: false,
@@ -55,7 +81,7 @@ const stackKey = createHash("sha256")
   .update(readFileSync(path.join(root, "app/lib/tracking/synthetic.ts")))
   .digest("hex")
   .slice(0, 12);
-const cacheDir = path.join(root, `node_modules/.cache/tankside-bench/float-600-1280x720-${stackKey}`);
+const cacheDir = path.join(root, `node_modules/.cache/tankside-bench/${tracer}-600-1280x720-${stackKey}`);
 const doneMarker = path.join(cacheDir, "complete.json");
 
 function log(message: string): void {
@@ -64,17 +90,22 @@ function log(message: string): void {
 
 async function render(): Promise<void> {
   // Stacks of an older renderer or spec are of no further use.
-  await rm(path.dirname(cacheDir), { recursive: true, force: true });
+  const parent = path.dirname(cacheDir);
+  if (existsSync(parent)) {
+    for (const name of await readdir(parent)) {
+      if (name.startsWith(`${tracer}-`) || !/^(float|dye)-/.test(name)) await rm(path.join(parent, name), { recursive: true, force: true });
+    }
+  }
   await mkdir(cacheDir, { recursive: true });
-  await writeSyntheticStack(cacheDir, spec, { format: "jpeg", quality: 90 });
-  await writeFile(doneMarker, JSON.stringify({ frames: spec.frames }));
+  const stack = await writeSyntheticStack(cacheDir, spec, { format: "jpeg", quality: 90 });
+  await writeFile(doneMarker, JSON.stringify({ frames: spec.frames, truth: stack.truth.map((t) => t[0]) }));
 }
 
 async function frameFiles(): Promise<string[]> {
   if (!existsSync(doneMarker)) {
     log(`rendering ${spec.frames} frames into ${path.relative(root, cacheDir)} (once) …`);
     const started = performance.now();
-    const child = spawnSync(process.execPath, [...process.execArgv, fileURLToPath(import.meta.url), "--render"], {
+    const child = spawnSync(process.execPath, [...process.execArgv, fileURLToPath(import.meta.url), "--render", "--tracer", tracer], {
       stdio: ["ignore", "inherit", "inherit"],
     });
     if (child.status !== 0) throw new Error("Rendering the benchmark stack failed.");
@@ -144,11 +175,22 @@ async function main(): Promise<void> {
   const peakRssMB = Math.max(sampledPeak, kernelPeak) / (1024 * 1024);
 
   const longest = result.tracks.reduce((a: Track, b: Track) => (b.points.length > a.points.length ? b : a));
+  const truth = (JSON.parse(readFileSync(doneMarker, "utf8")) as { truth?: { x: number; y: number }[] }).truth ?? [];
+  let squares = 0;
+  let counted = 0;
+  for (const p of longest.points) {
+    const at = truth[p.frameIndex];
+    if (!at) continue;
+    squares += (p.x - at.x) ** 2 + (p.y - at.y) ** 2;
+    counted++;
+  }
+  const rmsErrorPx = counted > 0 ? Math.sqrt(squares / counted) : null;
   log(
     `tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${os.availableParallelism()} workers, block ${result.search.shrink} px), ` +
       `${cpuMsPerFrame.toFixed(1)} ms CPU a frame, load average ${os.loadavg()[0]!.toFixed(1)}, ` +
       `${result.tracks.length} track(s), longest ${longest.points.length} points, ` +
-      `frames detected ${(result.quality.framesDetectedShare * 100).toFixed(1)} %, jitter ${result.quality.jitterPx?.toFixed(3)} px`,
+      `frames detected ${(result.quality.framesDetectedShare * 100).toFixed(1)} %, jitter ${result.quality.jitterPx?.toFixed(3)} px, ` +
+      `RMS error ${rmsErrorPx?.toFixed(3)} px`,
   );
   process.stdout.write(
     `${JSON.stringify({
@@ -158,6 +200,9 @@ async function main(): Promise<void> {
       framesPerSecond: Number(fps.toFixed(1)),
       decodeOnlyFramesPerSecond: Number(decodeFps.toFixed(1)),
       peakRssMB: Number(peakRssMB.toFixed(1)),
+      tracer,
+      cpuMsPerFrame: Number(cpuMsPerFrame.toFixed(1)),
+      rmsErrorPx: rmsErrorPx === null ? null : Number(rmsErrorPx.toFixed(3)),
     })}\n`,
   );
 }

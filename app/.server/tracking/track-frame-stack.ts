@@ -8,7 +8,7 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import Piscina from "piscina";
-import { backgroundSampleIndices, fillFromSurroundings, minimumFreeSamples, tracerExclusions, type ExclusionSet } from "../../lib/tracking/background";
+import { backgroundSampleIndices, fillChannelsFromSurroundings, minimumFreeSamples, tracerExclusions, type ExclusionSet } from "../../lib/tracking/background";
 import { defaultLinking, linkDetections, type LinkingOptions } from "../../lib/tracking/link";
 import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../../lib/tracking/plan";
 import { trackingQuality } from "../../lib/tracking/quality";
@@ -160,18 +160,22 @@ function makePlan(setup: TrackingSetup, width: number, height: number): Detectio
 }
 
 /**
- * The still background of a float stack (lib/tracking/background.ts): the median of frames
- * sampled over the stack, the float found in each sample against it, then the median again
- * with discs around the finds left out. Samples and results live in shared memory: the workers
- * split the pixels between them, and every frame's task then reads the same background without
- * a copy.
+ * The still background of a stack (lib/tracking/background.ts), the tracer left out of it. Samples
+ * and results live in shared memory: the workers split the pixels between them, and every
+ * frame's task then reads the same background without a copy.
+ *
+ * The median of frames sampled over the stack (each channel's for dye), the tracer found in each
+ * sample against it, then the median again with a disc around each float, or the ellipse each
+ * dye patch covers, left out.
  */
-async function floatBackground(files: string[], plan: DetectionPlan, key: string, workers: TrackingPool, signal: AbortSignal | undefined): Promise<Uint8Array> {
+async function stillBackground(files: string[], plan: DetectionPlan, key: string, workers: TrackingPool, signal: AbortSignal | undefined): Promise<Uint8Array> {
   if (files.length < 3) {
     throw new TrackingError("bad-input", "Tracking a float needs at least 3 frames: the still background is their median.");
   }
+  const channels = plan.channels;
   const indices = backgroundSampleIndices(files.length);
-  const length = plan.crop.width * plan.crop.height;
+  const pixels = plan.crop.width * plan.crop.height;
+  const length = pixels * channels;
   const samples = new Uint8Array(new SharedArrayBuffer(indices.length * length));
   let next = 0;
   await Promise.all(
@@ -183,9 +187,10 @@ async function floatBackground(files: string[], plan: DetectionPlan, key: string
       }
     }),
   );
-  const median = async (exclusions?: ExclusionSet, used?: Uint8Array): Promise<Uint8Array> => {
+  const median = async (exclusions?: ExclusionSet): Promise<Uint8Array> => {
     const out = new Uint8Array(new SharedArrayBuffer(length));
-    const strip = Math.ceil(length / threads);
+    const used = exclusions ? new Uint8Array(new SharedArrayBuffer(pixels)) : undefined;
+    const strip = Math.ceil(pixels / threads);
     await Promise.all(
       Array.from({ length: threads }, (_, w) =>
         runTask(workers, {
@@ -193,35 +198,35 @@ async function floatBackground(files: string[], plan: DetectionPlan, key: string
           samples,
           count: indices.length,
           out,
-          from: Math.min(length, w * strip),
-          to: Math.min(length, (w + 1) * strip),
+          from: Math.min(pixels, w * strip),
+          to: Math.min(pixels, (w + 1) * strip),
           exclusions,
           used,
+          channels,
         }),
       ),
     );
+    if (used) fillChannelsFromSurroundings(out, used, plan.crop.width, channels, minimumFreeSamples(indices.length));
     return out;
   };
+  const findIn = (background: Uint8Array): Promise<Detection[][]> =>
+    Promise.all(
+      indices.map(async (index, j) => {
+        // A copy of its own (slice of shared memory is not shared), handed over to the worker.
+        const image = samples.slice(j * length, (j + 1) * length);
+        try {
+          return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background }, [image.buffer])) as Detection[];
+        } catch (error) {
+          throw searchFailed(index, error);
+        }
+      }),
+    );
   const plain = await median();
   if (signal?.aborted) throw cancelled();
-  const found = await Promise.all(
-    indices.map(async (index, j) => {
-      // A copy of its own (slice of shared memory is not shared), handed over to the worker.
-      const image = samples.slice(j * length, (j + 1) * length);
-      try {
-        return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background: plain }, [image.buffer])) as Detection[];
-      } catch (error) {
-        throw searchFailed(index, error);
-      }
-    }),
-  );
-  const discs = tracerExclusions(found, plan.crop, plan.shrink);
+  const discs = tracerExclusions(await findIn(plain), plan.crop, plan.shrink);
   if (discs.length === 0) return plain;
   if (signal?.aborted) throw cancelled();
-  const used = new Uint8Array(new SharedArrayBuffer(length));
-  const background = await median({ width: plan.crop.width, discs }, used);
-  fillFromSurroundings(background, used, plan.crop.width, minimumFreeSamples(indices.length));
-  return background;
+  return median({ width: plan.crop.width, discs });
 }
 
 function defaultStep(plan: DetectionPlan): number {
@@ -245,7 +250,8 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   warmUp.catch(() => {});
   let background: Uint8Array | null;
   try {
-    background = plan.tracer === "float" ? await floatBackground(files, plan, key, workers, signal) : null;
+    // Dye without enough frames for a median is found by its colour alone.
+    background = plan.tracer === "dye" && files.length < 3 ? null : await stillBackground(files, plan, key, workers, signal);
   } finally {
     await warmUp;
   }

@@ -29,6 +29,8 @@ export type TrackTask =
       exclusions?: ExclusionSet;
       /** Shared, receives how many samples each pixel's median took. */
       used?: Uint8Array;
+      /** Interleaved channels per pixel (3 for dye); `from` and `to` count pixels. */
+      channels?: number;
     }
   | {
       /** Each worker counts itself in and waits for the others, so that every worker is started. */
@@ -80,7 +82,7 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   if (task.kind === "background") {
     const length = task.out.length;
     const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));
-    medianInto(frames, task.out, task.from, task.to, task.exclusions, task.used);
+    medianInto(frames, task.out, task.from, task.to, task.exclusions, task.used, task.channels ?? 1);
     return null;
   }
   const { plan } = task;

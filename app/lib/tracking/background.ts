@@ -12,7 +12,9 @@
  * the sampled frames against the plain median, a disc around each find is left out of that
  * sample, and the median is taken again over what remains. Rim, glare, illumination and tank
  * marks that do not move stay in it; a float that sits on one pixel for more than half the
- * sampled frames is still taken for background there (and missed in those frames).
+ * sampled frames is still taken for background there (and missed in those frames). A dye stack
+ * gets the same treatment in colour (each channel's median), with the ellipse of each measured
+ * patch left out instead of a disc.
  */
 import type { Detection } from "./types";
 
@@ -29,12 +31,17 @@ export function backgroundSampleIndices(frameCount: number, maxSamples = default
   return [...indices].sort((a, b) => a - b);
 }
 
-/** A disc of one sampled frame (index into the samples) left out of the median, crop px. */
+/**
+ * A region of one sampled frame (index into the samples) left out of the median, crop px: a disc
+ * of radius `r`, or, with `shape` (second moments, px²), the ellipse within `r` standard
+ * deviations of the centre.
+ */
 export interface BackgroundExclusion {
   sample: number;
   x: number;
   y: number;
   r: number;
+  shape?: { xx: number; xy: number; yy: number };
 }
 
 /** The frames' shared width, needed to place exclusion discs on pixel indices. */
@@ -42,6 +49,9 @@ export interface ExclusionSet {
   width: number;
   discs: readonly BackgroundExclusion[];
 }
+
+/** A measured dye patch is left out to 3.5 standard deviations, where it is below 0.3 % of its peak. */
+export const patchExclusionSigmas = 3.5;
 
 /**
  * Discs to leave out around the tracers found in each sampled frame. A float's Gaussian glow
@@ -53,8 +63,16 @@ export function tracerExclusions(perSample: readonly (readonly Detection[])[], c
   const discs: BackgroundExclusion[] = [];
   perSample.forEach((detections, sample) => {
     for (const d of detections) {
+      const x = d.x - crop.left;
+      const y = d.y - crop.top;
+      if (d.spread) {
+        // A measured patch: its ellipse, widened by a block and 2 px each way for its own error.
+        const margin = (shrink + 2) ** 2;
+        discs.push({ sample, x, y, r: patchExclusionSigmas, shape: { xx: d.spread.xx + margin, xy: d.spread.xy, yy: d.spread.yy + margin } });
+        continue;
+      }
       const radius = Math.sqrt(Math.max(0, d.area) / Math.PI);
-      discs.push({ sample, x: d.x - crop.left, y: d.y - crop.top, r: 2 * radius + shrink + 3 });
+      discs.push({ sample, x, y, r: 2 * radius + shrink + 3 });
     }
   });
   return discs;
@@ -94,6 +112,52 @@ export function floatBackground(
   return out;
 }
 
+/**
+ * The background of a dye stack, interleaved RGB like its frames, the dye left out, the way a
+ * float's is built: each channel's plain median, the patch measured in each sampled frame against
+ * it (`detect`, which gives the patch's shape), then the median again without the ellipse each
+ * patch covers. Pixels with too few free samples are filled in from their surroundings, channel
+ * by channel.
+ */
+export function dyeBackground(
+  frames: readonly Uint8Array[],
+  width: number,
+  detect: (frame: Uint8Array, background: Uint8Array) => readonly Detection[],
+  crop: { left: number; top: number } = { left: 0, top: 0 },
+  shrink = 1,
+): Uint8Array {
+  if (frames.length === 0) throw new Error("A background needs at least one frame.");
+  const pixels = frames[0]!.length / 3;
+  const plain = new Uint8Array(frames[0]!.length);
+  medianInto(frames, plain, 0, pixels, undefined, undefined, 3);
+  const discs = tracerExclusions(
+    frames.map((f) => detect(f, plain)),
+    crop,
+    shrink,
+  );
+  if (discs.length === 0) return plain;
+  const out = new Uint8Array(plain.length);
+  const used = new Uint8Array(pixels);
+  medianInto(frames, out, 0, pixels, { width, discs }, used, 3);
+  fillChannelsFromSurroundings(out, used, width, 3, minimumFreeSamples(frames.length));
+  return out;
+}
+
+/** fillFromSurroundings for each channel of an interleaved image. */
+export function fillChannelsFromSurroundings(background: Uint8Array, used: Uint8Array, width: number, channels: number, minUsed: number): number {
+  if (channels === 1) return fillFromSurroundings(background, used, width, minUsed);
+  const pixels = used.length;
+  const plane = new Uint8Array(pixels);
+  let filled = 0;
+  for (let c = 0; c < channels; c++) {
+    for (let p = 0; p < pixels; p++) plane[p] = background[p * channels + c]!;
+    filled = fillFromSurroundings(plane, used, width, minUsed);
+    if (filled === 0) return 0;
+    for (let p = 0; p < pixels; p++) background[p * channels + c] = plane[p]!;
+  }
+  return filled;
+}
+
 /** Fewest float-free samples whose median is trusted; fewer, and the background is filled in. */
 export function minimumFreeSamples(samples: number): number {
   return Math.max(3, Math.ceil(samples / 3));
@@ -103,12 +167,23 @@ export function minimumFreeSamples(samples: number): number {
  * The median for pixels [from, to) only, so several workers can share one background. Samples
  * covered by an exclusion disc at a pixel are left out there (where every sample is covered the
  * plain median stands); `used`, when given, receives how many samples each pixel's median took.
+ * Frames of several interleaved channels (RGB for dye) take each channel's median on its own;
+ * `from`, `to` and `used` count pixels.
  */
-export function medianInto(frames: readonly Uint8Array[], out: Uint8Array, from: number, to: number, exclusions?: ExclusionSet, used?: Uint8Array): void {
+export function medianInto(
+  frames: readonly Uint8Array[],
+  out: Uint8Array,
+  from: number,
+  to: number,
+  exclusions?: ExclusionSet,
+  used?: Uint8Array,
+  channels = 1,
+): void {
   const length = out.length;
   for (const frame of frames) {
     if (frame.length !== length) throw new Error("Background frames differ in size.");
   }
+  if (!(Number.isInteger(channels) && channels >= 1) || length % channels !== 0) throw new Error("Background frames do not hold whole pixels.");
   const n = frames.length;
   if (n > 255) throw new Error("A background takes at most 255 frames.");
   const values = new Uint8Array(n);
@@ -132,12 +207,31 @@ export function medianInto(frames: readonly Uint8Array[], out: Uint8Array, from:
         spanTo.length = 0;
         for (const d of discs) {
           const dy = r - d.y;
-          const half2 = d.r * d.r - dy * dy;
-          if (half2 < 0) continue;
-          const half = Math.sqrt(half2);
+          let from: number;
+          let to: number;
+          if (d.shape) {
+            // (dx, dy) S⁻¹ (dx, dy)ᵀ ≤ r², solved for dx on this row.
+            const { xx, xy, yy } = d.shape;
+            const det = xx * yy - xy * xy;
+            if (!(det > 0)) continue;
+            const a = yy / det;
+            const b = (-xy / det) * dy;
+            const c = (xx / det) * dy * dy - d.r * d.r;
+            const disc = b * b - a * c;
+            if (disc < 0) continue;
+            const root = Math.sqrt(disc);
+            from = d.x + (-b - root) / a;
+            to = d.x + (-b + root) / a;
+          } else {
+            const half2 = d.r * d.r - dy * dy;
+            if (half2 < 0) continue;
+            const half = Math.sqrt(half2);
+            from = d.x - half;
+            to = d.x + half;
+          }
           spanSample.push(d.sample);
-          spanFrom.push(d.x - half);
-          spanTo.push(d.x + half);
+          spanFrom.push(from);
+          spanTo.push(to);
         }
       }
       if (spanSample.length > 0) {
@@ -152,13 +246,17 @@ export function medianInto(frames: readonly Uint8Array[], out: Uint8Array, from:
         }
       }
     }
+    const skip = covered > 0 && covered < n;
     let count = 0;
-    if (covered > 0 && covered < n) {
-      for (let j = 0; j < n; j++) if (!left[j]) insert(values, count++, frames[j]![p]!);
-    } else {
-      for (let j = 0; j < n; j++) insert(values, count++, frames[j]![p]!);
+    for (let c = 0, q = p * channels; c < channels; c++, q++) {
+      count = 0;
+      if (skip) {
+        for (let j = 0; j < n; j++) if (!left[j]) insert(values, count++, frames[j]![q]!);
+      } else {
+        for (let j = 0; j < n; j++) insert(values, count++, frames[j]![q]!);
+      }
+      out[q] = middle(values, count);
     }
-    out[p] = middle(values, count);
     if (used) used[p] = covered >= n ? 0 : count;
   }
 }

@@ -5,10 +5,13 @@
  * range. Either way a detection image (blocks of `plan.shrink` px averaged) is thresholded,
  * cleaned with an opening and a closing, and split into blobs; blobs are kept by area and
  * roundness. The centroid of each blob is then weighted by the un-thresholded signal (difference
- * or saturation) at full resolution, less a noise floor, which keeps it sub-pixel.
+ * or saturation) at full resolution, less a noise floor, which keeps it sub-pixel. A dye blob
+ * given the stack's colour background is instead measured over the whole patch (dye-centre.ts).
  */
 import type { CvRect, OpenCv } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
+import { createDyeCentre } from "./dye-centre";
+import { robustStats } from "./robust-stats";
 import type { Detection } from "./types";
 
 export interface FrameImage {
@@ -20,7 +23,11 @@ export interface FrameImage {
 }
 
 export interface Detector {
-  /** `image` is the plan's crop with the plan's channels; `background` is needed for floats. */
+  /**
+   * `image` is the plan's crop with the plan's channels; `background` the stack's still scene of
+   * the same crop and channels: needed for floats; for dye it moves the centre from the colour
+   * threshold's blob to the whole patch (dye-centre.ts).
+   */
   detect(image: FrameImage, background: Uint8Array | null): Detection[];
   /** Frees the OpenCV matrices: wasm memory is not garbage-collected. */
   dispose(): void;
@@ -31,7 +38,6 @@ const detectSigmas = 5;
 const weightSigmas = 3;
 /** Lowest contrast (grey levels) that counts, for nearly noiseless frames. */
 const minContrast = 5;
-const minSigma = 0.5;
 const noiseStride = 4;
 const maxBlobs = 254;
 const tileSize = 32;
@@ -87,36 +93,6 @@ function rowSpans(rows: number, cols: number, step: number, offset: number, tank
   return spans;
 }
 
-/** Median and MAD-based sigma of a histogram whose bin i holds the value i − shift. */
-function robustStats(hist: Uint32Array, shift: number): { median: number; sigma: number } {
-  let total = 0;
-  for (let i = 0; i < hist.length; i++) total += hist[i]!;
-  if (total === 0) return { median: 0, sigma: minSigma };
-  const half = total / 2;
-  let acc = 0;
-  let medianBin = 0;
-  for (let i = 0; i < hist.length; i++) {
-    acc += hist[i]!;
-    if (acc >= half) {
-      medianBin = i;
-      break;
-    }
-  }
-  // The MAD from the same histogram: widen a window about the median until it holds half the
-  // samples, taking each integer value as spread over ±0.5 so the estimate is not whole levels.
-  let inside = hist[medianBin]!;
-  let previous = 0;
-  let radius = 0;
-  while (inside < half && radius < hist.length) {
-    radius++;
-    previous = inside;
-    if (medianBin - radius >= 0) inside += hist[medianBin - radius]!;
-    if (medianBin + radius < hist.length) inside += hist[medianBin + radius]!;
-  }
-  const mad = radius === 0 ? (0.5 * half) / inside : radius - 0.5 + (half - previous) / Math.max(1, inside - previous);
-  return { median: medianBin - shift, sigma: Math.max(minSigma, 1.4826 * mad) };
-}
-
 /** OpenCV's 8-bit HSV: hue 0–180, saturation and value 0–255. */
 function hsv(r: number, g: number, b: number, out: Float64Array): void {
   const v = Math.max(r, g, b);
@@ -158,6 +134,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   const tilesY = Math.ceil(sh / tileSize);
   const tileHits = new Uint8Array(tilesX * tilesY);
   const { hueMin, hueMax, satMin, valMin } = plan.dyeColour;
+  const dyeCentre = plan.tracer === "dye" ? createDyeCentre(width, height, fullSpans) : null;
   let disposed = false;
 
   function check(image: FrameImage, background: Uint8Array | null): void {
@@ -167,6 +144,9 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     }
     if (plan.tracer === "float" && (!background || background.length !== width * height)) {
       throw new Error("Floats are found against a background of the same region.");
+    }
+    if (plan.tracer === "dye" && background && background.length !== width * height * 3) {
+      throw new Error("A dye background must be the colour image of the same region.");
     }
   }
 
@@ -427,16 +407,39 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     };
   }
 
+  /** A dye blob's centre from the whole patch against the background (dye-centre.ts). */
+  function patchCentre(blob: Blob, image: FrameImage, background: Uint8Array): Detection | null {
+    if (!dyeCentre) return null;
+    const margin = k + 2;
+    const found = dyeCentre(image, background, {
+      col0: blob.rect.x * k - margin,
+      row0: blob.rect.y * k - margin,
+      col1: (blob.rect.x + blob.rect.width) * k + margin,
+      row1: (blob.rect.y + blob.rect.height) * k + margin,
+    });
+    if (!found || !(found.x >= 0 && found.x <= width - 1 && found.y >= 0 && found.y <= height - 1)) return null;
+    return {
+      x: plan.crop.left + found.x,
+      y: plan.crop.top + found.y,
+      area: blob.pixels,
+      roundness: blob.roundness,
+      intensity: Math.min(255, Math.max(0, Math.round(found.peak))),
+      spread: found.spread,
+    };
+  }
+
   return {
     detect(image, background) {
       check(image, background);
       const bg = plan.tracer === "float" ? background : null;
-      const { median, sigma } = noise(image, bg);
+      const dyeBackground = plan.tracer === "dye" ? background : null;
+      // Dye measured against a background has noise figures of its own (dye-centre.ts).
+      const { median, sigma } = dyeBackground ? { median: 0, sigma: 0 } : noise(image, bg);
       const regions = threshold(image, bg, median, sigma);
       if (regions.length === 0) return [];
       const detections: Detection[] = [];
       for (const blob of blobs(regions)) {
-        const d = centroid(blob, image, bg, median, sigma);
+        const d = dyeBackground ? patchCentre(blob, image, dyeBackground) : centroid(blob, image, bg, median, sigma);
         if (d) detections.push(d);
       }
       detections.sort((a, b) => b.intensity * b.area - a.intensity * a.area);

@@ -39,8 +39,14 @@ export type SyntheticTracer =
       sigmaAlongPx: number;
       sigmaAcrossPx: number;
       colour: Rgb;
-      /** Peak share of dye colour over the water, 0–1. */
+      /** Peak share of dye colour over the water, 0–1 (the patch's contrast). */
       opacity: number;
+      /** Slow change of shape: both widths grow by this fraction per second (the patch spreads). */
+      spreadPerS?: number;
+      /** The width along the long axis grows by this further fraction per second (it stretches). */
+      stretchPerS?: number;
+      /** The long axis turns by this much per second, rad, on top of following the motion. */
+      turnRadPerS?: number;
     };
 
 export interface SyntheticRunSpec {
@@ -85,7 +91,11 @@ export interface SyntheticFrame {
   height: number;
   channels: 3;
   data: Uint8Array;
-  /** True centre of each tracer, image px, in the order of `spec.tracers`. */
+  /**
+   * True centre of each tracer, image px, in the order of `spec.tracers`: a float's spot centre;
+   * a dye patch's centre weighted by its dye share over the rendered pixels (the light, noise and
+   * 8-bit rounding are not part of it).
+   */
   truth: { x: number; y: number }[];
 }
 
@@ -299,21 +309,29 @@ export function createSyntheticRenderer(spec: SyntheticRunSpec): SyntheticRender
       const truth: { x: number; y: number }[] = [];
       for (const tracer of spec.tracers) {
         const at = tracerPosition(spec, tracer, t);
-        truth.push(at);
         if (tracer.kind === "dye") {
           const ahead = tracerPosition(spec, tracer, t + 1e-3);
-          const heading = Math.atan2(ahead.y - at.y, ahead.x - at.x);
+          const heading = Math.atan2(ahead.y - at.y, ahead.x - at.x) + (tracer.turnRadPerS ?? 0) * t;
           const ca = Math.cos(heading);
           const sa = Math.sin(heading);
-          const sAlong = tracer.sigmaAlongPx;
-          const sAcross = tracer.sigmaAcrossPx;
+          const spread = 1 + (tracer.spreadPerS ?? 0) * t;
+          const sAlong = tracer.sigmaAlongPx * spread * (1 + (tracer.stretchPerS ?? 0) * t);
+          const sAcross = tracer.sigmaAcrossPx * spread;
+          let share = 0;
+          let shareX = 0;
+          let shareY = 0;
           stamp(at.x, at.y, 4 * Math.max(sAlong, sAcross), (p, dx, dy) => {
             const u = dx * ca + dy * sa;
             const v = -dx * sa + dy * ca;
             const alpha = tracer.opacity * Math.exp(-0.5 * ((u / sAlong) ** 2 + (v / sAcross) ** 2));
+            share += alpha;
+            shareX += alpha * dx;
+            shareY += alpha * dy;
             for (let c = 0; c < 3; c++) work[p + c]! += (tracer.colour[c]! - work[p + c]!) * alpha;
           });
+          truth.push(share > 0 ? { x: at.x + shareX / share, y: at.y + shareY / share } : at);
         } else {
+          truth.push(at);
           const s2 = 2 * tracer.sigmaPx * tracer.sigmaPx;
           stamp(at.x, at.y, 5 * tracer.sigmaPx, (p, dx, dy) => {
             const add = tracer.brightness * Math.exp(-(dx * dx + dy * dy) / s2);

@@ -17,8 +17,13 @@ export interface Detection {
   area: number;
   /** 4πA/P² of the blob outline: 1 for a disc, lower for elongated or ragged blobs. */
   roundness: number;
-  /** Peak contrast of the blob, 0–255: difference from the background for a float, saturation for dye. */
+  /**
+   * Peak contrast of the blob, 0–255: difference from the background for a float, saturation for
+   * dye found by colour alone, the difference along the dye's colour for dye against a background.
+   */
   intensity: number;
+  /** Second moments of a dye patch measured against a background, px² (not stored). */
+  spread?: { xx: number; xy: number; yy: number };
 }
 
 export interface FrameDetections {

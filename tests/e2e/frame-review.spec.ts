@@ -59,6 +59,12 @@ test("a technician nudges the view setup's marks with the keys, steps through th
   const viewport = page.getByTestId("setup-viewport");
   // Zoomed, the frame is four times the box's width and scrolls inside it.
   expect(await viewport.evaluate((el) => el.scrollWidth / el.clientWidth)).toBeGreaterThan(3.5);
+  // The chosen mark is brought into the middle of the zoomed view, not left off-screen.
+  const markBox = (await page.getByTestId("selected-mark").boundingBox())!;
+  const viewBox = (await viewport.boundingBox())!;
+  const middle = { x: markBox.x + markBox.width / 2 - viewBox.x, y: markBox.y + markBox.height / 2 - viewBox.y };
+  expect(Math.abs(middle.x - viewBox.width / 2)).toBeLessThan(viewBox.width / 4);
+  expect(Math.abs(middle.y - viewBox.height / 2)).toBeLessThan(viewBox.height / 4);
   await viewport.focus();
   await page.keyboard.press("ArrowRight");
   await page.keyboard.press("Shift+ArrowDown");
@@ -108,7 +114,8 @@ test("a technician nudges the view setup's marks with the keys, steps through th
   await page.getByRole("button", { name: "Yes, remove frame 3" }).click();
   await expect(page.getByTestId("removal-outcome")).toContainText("Removed 1 frame; 59 left. The run is being tracked again");
   await expect(page.getByRole("heading", { name: "Frame stack (59)" })).toBeVisible();
-  await expect(position).toContainText("Frame 3 of 59 · 0.067 s · frame_4.png");
+  // Frame 4 keeps its time: the removed frame leaves a gap of one frame interval.
+  await expect(position).toContainText("Frame 3 of 59 · 0.100 s · frame_4.png");
 
   // The check is made again from the 59 frames left: its point count changes and a verdict is shown again.
   await expect(async () => {

@@ -71,6 +71,9 @@ describe("removing frames from a run", () => {
         [2, "frame_4.png"],
         [3, "frame_5.png"],
       ]);
+      // Stills without their own times keep the time they had (position / frame rate): the gap stays a gap.
+      const times = (await Frame.findAll({ where: { runId: run.id }, order: [["position", "ASC"]] })).map((f) => f.timeS);
+      expect(times).toEqual([0, 1 / 30, 3 / 30, 4 / 30]);
       // Its image and thumbnail are gone; the other frames' files are all still there.
       expect(await inStore(run.id, third.storedName)).toBe(false);
       expect(await inStore(run.id, third.thumbName!)).toBe(false);

@@ -42,7 +42,7 @@ export async function removeFrames(runId: number, user: CurrentUser, selection: 
     if (await activeJob(run.id, transaction)) throw trackingBusy();
     const frames = await Frame.findAll({
       where: { runId: run.id },
-      attributes: ["id", "position", "originalName", "storedName", "thumbName"],
+      attributes: ["id", "position", "originalName", "storedName", "thumbName", "timeS"],
       order: [["position", "ASC"]],
       transaction,
     });
@@ -63,10 +63,15 @@ export async function removeFrames(runId: number, user: CurrentUser, selection: 
     const gone = frames.slice(from, to + 1);
     const kept = frames.filter((f) => f.position < from || f.position > to);
     await Frame.destroy({ where: { id: { [Op.in]: gone.map((f) => f.id) } }, transaction });
+    // Stills without times of their own are spaced by the frame rate from their position: each
+    // keeps the time it had, so a removed frame leaves a gap in time instead of pulling every later
+    // frame one frame interval earlier.
+    const timed = frames.every((f) => f.timeS !== null && Number.isFinite(f.timeS));
     // The frames after the gap move up: positions stay 0 … N − 1 in the order they had.
     for (let i = 0; i < kept.length; i++) {
       const f = kept[i]!;
-      if (f.position !== i) await Frame.update({ position: i }, { where: { id: f.id }, transaction });
+      const values = { ...(f.position !== i ? { position: i } : {}), ...(timed ? {} : { timeS: f.position / run.frameRateFps }) };
+      if (Object.keys(values).length) await Frame.update(values, { where: { id: f.id }, transaction });
     }
     const which = kept.length === 0 ? "the whole stack" : gone.length === 1 ? `frame ${from + 1} (${gone[0]!.originalName})` : `frames ${from + 1}–${to + 1}`;
     await RunHistory.create(

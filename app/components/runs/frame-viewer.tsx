@@ -149,7 +149,7 @@ export function FrameViewer({
 
       <div className="flex flex-wrap items-center gap-2">
         <Button type="button" tone="plain" onClick={() => go(0)} disabled={index === 0} aria-label="First frame">
-          ⏮
+          First
         </Button>
         <Button type="button" tone="plain" onClick={() => go(index - 1)} disabled={index === 0} aria-label="Previous frame">
           ◀
@@ -158,7 +158,7 @@ export function FrameViewer({
           ▶
         </Button>
         <Button type="button" tone="plain" onClick={() => go(count - 1)} disabled={index === count - 1} aria-label="Last frame">
-          ⏭
+          Last
         </Button>
         <label className="flex min-w-48 flex-1 items-center gap-3">
           <span className="font-bold">Frame</span>

@@ -1,4 +1,4 @@
-import { useRef, useState, type KeyboardEvent, type MouseEvent } from "react";
+import { useLayoutEffect, useRef, useState, type KeyboardEvent, type MouseEvent } from "react";
 import { circleThroughThreePoints, distance, type Point } from "~/lib/geometry";
 import { Button } from "~/components/ui/button";
 import { TextField } from "~/components/ui/field";
@@ -43,17 +43,23 @@ export function ViewSetupEditor({
   const selectedMark = setupMarks.find((m) => m.id === selected && m.at(v));
   const selectedAt = selectedMark?.at(v) ?? null;
 
-  /** Scrolls the zoomed frame so p is in view (centred when `centre`), after the next paint has the new size. */
+  // Where the zoomed frame should scroll once the next render has laid it out at its new size.
+  const pendingView = useRef<{ p: Point; centre: boolean } | null>(null);
+  useLayoutEffect(() => {
+    const want = pendingView.current;
+    const box = viewport.current;
+    pendingView.current = null;
+    if (!want || !box) return;
+    const x = (want.p.x / width) * box.scrollWidth;
+    const y = (want.p.y / height) * box.scrollHeight;
+    const margin = 24;
+    if (want.centre || x < box.scrollLeft + margin || x > box.scrollLeft + box.clientWidth - margin) box.scrollLeft = x - box.clientWidth / 2;
+    if (want.centre || y < box.scrollTop + margin || y > box.scrollTop + box.clientHeight - margin) box.scrollTop = y - box.clientHeight / 2;
+  });
+
+  /** Scrolls the zoomed frame so p is in view (centred when `centre`) after the render this change causes. */
   function bringIntoView(p: Point | null, centre: boolean) {
-    requestAnimationFrame(() => {
-      const box = viewport.current;
-      if (!box || !p) return;
-      const x = (p.x / width) * box.scrollWidth;
-      const y = (p.y / height) * box.scrollHeight;
-      const margin = 24;
-      if (centre || x < box.scrollLeft + margin || x > box.scrollLeft + box.clientWidth - margin) box.scrollLeft = x - box.clientWidth / 2;
-      if (centre || y < box.scrollTop + margin || y > box.scrollTop + box.clientHeight - margin) box.scrollTop = y - box.clientHeight / 2;
-    });
+    pendingView.current = p ? { p, centre } : null;
   }
 
   function zoomTo(next: number) {

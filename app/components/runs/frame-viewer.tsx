@@ -90,7 +90,11 @@ export function FrameViewer({
       <p aria-live="polite" className="font-bold" data-testid="frame-position">
         Frame {index + 1} of {count} · {formatFixed(time, 3)} s · {frame.name} · {status}
       </p>
-      <div className="relative w-full overflow-hidden rounded-card border-2 border-line-strong bg-ink" style={{ aspectRatio: `${width} / ${height}` }}>
+      {/* At most about two thirds of the window's height, so the controls stay in sight below the frame. */}
+      <div
+        className="relative mx-auto overflow-hidden rounded-card border-2 border-line-strong bg-ink"
+        style={{ aspectRatio: `${width} / ${height}`, width: `min(100%, calc(65vh * ${width / height}))` }}
+      >
         {frame.missing ? (
           <p className="absolute inset-0 flex items-center justify-center p-4 text-center text-white">The file of this frame is missing from storage.</p>
         ) : (

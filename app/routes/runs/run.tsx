@@ -242,7 +242,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         ) : null}
       </Card>
 
-      {d.frames.length && run.frameWidthPx && run.frameHeightPx ? (
+      {d.frames.length > 0 && run.frameWidthPx && run.frameHeightPx ? (
         <Card title="Frame review">
           <FrameViewer
             runId={run.id}

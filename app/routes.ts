@@ -40,6 +40,7 @@ export default [
     route(":id/setup", "routes/runs/setup.tsx"),
     route(":id/frames/:frameId/image", "routes/runs/frame-image.ts"),
     route(":id/overlay.png", "routes/runs/overlay.ts"),
+    route(":id/frames/remove", "routes/runs/frames-remove.ts"),
   ]),
 
   ...prefix("api/v1", [

@@ -57,6 +57,7 @@ export const policy: Record<string, Partial<Record<Method, Access>>> = {
   "routes/runs/setup": { GET: labStaff, POST: labStaff },
   "routes/runs/frame-image": { GET: signedIn },
   "routes/runs/overlay": { GET: signedIn },
+  "routes/runs/frames-remove": { POST: labStaff },
   "routes/not-found": { GET: "public" },
 
   // API
@@ -71,7 +72,7 @@ export const policy: Record<string, Partial<Record<Method, Access>>> = {
   "routes/api/run-tracks-csv": { GET: signedIn },
   "routes/api/run-export": { GET: signedIn },
   "routes/api/openapi": { GET: "public" },
-  "routes/api/run-frames": { GET: signedIn, POST: labStaff },
+  "routes/api/run-frames": { GET: signedIn, POST: labStaff, DELETE: labStaff },
   "routes/api/run-tracking": { GET: signedIn, POST: labStaff, DELETE: labStaff },
   "routes/api/bookings": { GET: signedIn, POST: signedIn },
   "routes/api/booking-item": { GET: signedIn },

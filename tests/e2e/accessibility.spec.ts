@@ -203,6 +203,15 @@ for (const [role, email] of [
       }
       if (allStates) await expectAccessible(page, `a run without frames as ${role}`, goto(page, `/runs/${Number(unfilmed?.id)}`));
       const [firstChecked] = byVerdict.values();
+      if (allStates) {
+        // The frame viewer's removal, chosen as a range and waiting for its confirmation.
+        await expectAccessible(page, `a run's frame removal awaiting confirmation as ${role}`, async () => {
+          await goto(page, `/runs/${firstChecked}`)();
+          await page.getByRole("radio", { name: "A range of frames" }).check();
+          await page.getByRole("button", { name: /^Remove frame/ }).click();
+          await expect(page.getByTestId("removal-confirmation")).toBeVisible();
+        });
+      }
       await expectAccessible(page, `a run's printable report as ${role}`, goto(page, `/runs/${firstChecked}/report`));
     });
 

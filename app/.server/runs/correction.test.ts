@@ -6,6 +6,7 @@ import { enqueueTracking, stopTrackingQueue, whenTrackingIdle } from "../jobs/tr
 import { createApiToken } from "../auth/api-tokens";
 import { frameKey, frameThumbKey, runPrefix, store } from "../storage";
 import { removeFrames } from "../uploads/frame-removal";
+import { removeFrameSelection } from "./frame-removal";
 import { ORPHAN_MIN_AGE_MS, removeOrphanUploads } from "../uploads/orphans";
 import { createRun, RunError, RunValidationError } from "./service";
 import { signOffRun } from "./record";
@@ -173,6 +174,21 @@ describe("a correction that carries the work over", () => {
     );
     await removeFrames(second.id, "all", lab.manager);
     expect(await keysUnder(original.id)).toEqual([]);
+  });
+
+  it("the frame viewer's removal from a correction keeps the files the corrected run still names", async () => {
+    const original = await signedOffRun();
+    const originalKeys = await keysUnder(original.id);
+    const correction = await createRun(lab.runInput({ setRateRpm: 15, supersedesId: original.id }), lab.tech);
+    await whenTrackingIdle();
+    const result = await removeFrameSelection(correction.id, lab.tech, { from: 0, to: 2 }, { frameCount: FRAMES });
+    expect([result.removed.length, result.frameCount]).toEqual([3, FRAMES - 3]);
+    await whenRechecksIdle();
+    await whenTrackingIdle();
+    expect(await keysUnder(original.id)).toEqual(originalKeys);
+    const theirs = await Frame.findAll({ where: { runId: original.id } });
+    expect(theirs).toHaveLength(FRAMES);
+    expect((await frameFileStatus(theirs)).missing).toEqual([]);
   });
 
   it("leaves the frames out when asked: the view setup and rate reached time still come over, nothing is tracked", async () => {

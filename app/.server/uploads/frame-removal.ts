@@ -22,7 +22,43 @@ function rowsNaming(frame: Frame, transaction: Transaction) {
 }
 
 /**
- * The one way frames leave a run: some of them (`frameIds`) or the whole stack ("all"). The rows go,
+ * Locks the rows of the runs whose folders hold these frames' files (other than runId, already
+ * locked by the caller), by id: logging a correction takes the same locks in the same order, so it
+ * never copies a reference to a file being removed.
+ */
+export async function lockFileOwners(runId: number, frames: Frame[], transaction: Transaction) {
+  const owners = [...new Set(frames.map(frameFileRunId))].filter((id) => id !== runId).sort((a, b) => a - b);
+  for (const id of owners) await Run.findByPk(id, { attributes: ["id"], ...locking(transaction) });
+}
+
+/** Of frames whose rows were just removed (in this transaction), those whose files no frame row of any run names any more. */
+export async function filesNoLongerNamed(frames: Frame[], transaction: Transaction): Promise<Frame[]> {
+  const unnamed: Frame[] = [];
+  for (const f of frames) if ((await rowsNaming(f, transaction)) === 0) unnamed.push(f);
+  return unnamed;
+}
+
+/** Removes the image and thumbnail of each frame from storage (after the commit); one that fails is left for the orphan sweep. */
+export async function deleteFrameFiles(frames: Frame[]): Promise<number> {
+  let filesRemoved = 0;
+  const objects = store();
+  for (const f of frames) {
+    for (const key of [frameKey(f), frameThumbKey(f)]) {
+      if (!key) continue;
+      try {
+        await objects.delete(key);
+        filesRemoved++;
+      } catch (err) {
+        console.error(`[frames] ${key} not removed (the orphan sweep will):`, err);
+      }
+    }
+  }
+  return filesRemoved;
+}
+
+/**
+ * Frames leave a run here, or through the frame viewer's removal (runs/frame-removal.ts), which
+ * shares this module's locking and file rule: some of them (`frameIds`) or the whole stack ("all"). The rows go,
  * the rest are numbered 0…N−1 again, and a file is removed from storage only when no frame row of
  * any run names it any more: a correction shares the files of the run it corrects (Decision 53),
  * so removing the correction's frames, or the original's, leaves the other's frames whole.
@@ -47,8 +83,7 @@ export async function removeFrames(runId: number, frameIds: number[] | "all", us
       const strangers = wanted.filter((id) => !found.has(id));
       throw new RunError(`No frame ${strangers.join(", ")} in this run; nothing was removed.`, 404, "frameIds", "not_found");
     }
-    const owners = [...new Set(frames.map(frameFileRunId))].filter((id) => id !== runId).sort((a, b) => a - b);
-    for (const id of owners) await Run.findByPk(id, { attributes: ["id"], ...locking(transaction) });
+    await lockFileOwners(runId, frames, transaction);
 
     if (frames.length) await Frame.destroy({ where: { id: frames.map((f) => f.id) }, transaction });
     const frameCount = await renumber(runId, transaction);
@@ -64,24 +99,10 @@ export async function removeFrames(runId: number, frameIds: number[] | "all", us
       await setRunState(run, "draft", user?.id ?? null, transaction);
       await run.update({ verdict: null }, { transaction });
     }
-    const unnamed: Frame[] = [];
-    for (const f of frames) if ((await rowsNaming(f, transaction)) === 0) unnamed.push(f);
-    return { removed: frames.length, frameCount, unnamed };
+    return { removed: frames.length, frameCount, unnamed: await filesNoLongerNamed(frames, transaction) };
   });
 
-  let filesRemoved = 0;
-  const objects = store();
-  for (const f of outcome.unnamed) {
-    for (const key of [frameKey(f), frameThumbKey(f)]) {
-      if (!key) continue;
-      try {
-        await objects.delete(key);
-        filesRemoved++;
-      } catch (err) {
-        console.error(`[frames] ${key} not removed (the orphan sweep will):`, err);
-      }
-    }
-  }
+  const filesRemoved = await deleteFrameFiles(outcome.unnamed);
   // The tracks were made from the frames as they were: track again, and the check follows.
   if (outcome.removed && outcome.frameCount) await inputsChanged(runId, user?.id ?? null, "track");
   return { removed: outcome.removed, filesRemoved, frameCount: outcome.frameCount };

@@ -1,18 +1,14 @@
-import { useRef, useState, type MouseEvent } from "react";
+import { useLayoutEffect, useRef, useState, type KeyboardEvent, type MouseEvent } from "react";
 import { circleThroughThreePoints, distance, type Point } from "~/lib/geometry";
 import { Button } from "~/components/ui/button";
 import { TextField } from "~/components/ui/field";
 import { formatFixed } from "~/lib/number-format";
+import { nudge, setupMarks, type SetupValues } from "~/lib/setup-marks";
 
-export interface SetupValues {
-  centre: Point | null;
-  edge: { cx: number; cy: number; r: number } | null;
-  scalePoints: [Point, Point] | null;
-  scaleLengthCm: number | null;
-  mirrored: boolean;
-  /** A mark on the turntable, for reading the table's rate from the frames (lab-fixed camera). */
-  rateMark: Point | null;
-}
+export type { SetupValues };
+
+/** How far the frame can be enlarged: at 8× a 1280 px frame on a 315 px phone shows about 2 image px per screen px. */
+const maxZoom = 8;
 
 type Tool = "centre" | "rim" | "scale" | "mark";
 const toolText: Record<Tool, string> = {
@@ -40,8 +36,63 @@ export function ViewSetupEditor({
   const [v, setV] = useState<SetupValues>(initial);
   const [tool, setTool] = useState<Tool>(initial.centre ? "rim" : "centre");
   const [clicks, setClicks] = useState<Point[]>([]);
+  const [selected, setSelected] = useState<string>(initial.centre ? "centre" : "");
+  const [zoom, setZoom] = useState<number>(1);
   const svg = useRef<SVGSVGElement>(null);
-  const mark = Math.max(4, Math.round(Math.min(width, height) / 120));
+  const viewport = useRef<HTMLDivElement>(null);
+  // Marks keep their size on screen at every zoom, so a zoomed view is as precise as it looks.
+  const mark = Math.max(4, Math.round(Math.min(width, height) / 120)) / zoom;
+  const selectedMark = setupMarks.find((m) => m.id === selected && m.at(v));
+  const selectedAt = selectedMark?.at(v) ?? null;
+
+  // Where the zoomed frame should scroll once the next render has laid it out at its new size.
+  const pendingView = useRef<{ p: Point; centre: boolean } | null>(null);
+  useLayoutEffect(() => {
+    const want = pendingView.current;
+    const box = viewport.current;
+    pendingView.current = null;
+    if (!want || !box) return;
+    const x = (want.p.x / width) * box.scrollWidth;
+    const y = (want.p.y / height) * box.scrollHeight;
+    const margin = 24;
+    if (want.centre || x < box.scrollLeft + margin || x > box.scrollLeft + box.clientWidth - margin) box.scrollLeft = x - box.clientWidth / 2;
+    if (want.centre || y < box.scrollTop + margin || y > box.scrollTop + box.clientHeight - margin) box.scrollTop = y - box.clientHeight / 2;
+  });
+
+  /** Scrolls the zoomed frame so p is in view (centred when `centre`) after the render this change causes. */
+  function bringIntoView(p: Point | null, centre: boolean) {
+    pendingView.current = p ? { p, centre } : null;
+  }
+
+  function zoomTo(next: number) {
+    const z = Math.min(maxZoom, Math.max(1, next));
+    if (z === zoom) return;
+    const box = viewport.current;
+    // Keep the selected mark in the middle, else the middle of what is shown now.
+    const middle = box
+      ? { x: ((box.scrollLeft + box.clientWidth / 2) / box.scrollWidth) * width, y: ((box.scrollTop + box.clientHeight / 2) / box.scrollHeight) * height }
+      : null;
+    setZoom(z);
+    bringIntoView(selectedAt ?? middle, true);
+  }
+
+  function onKeyDown(e: KeyboardEvent<HTMLDivElement>) {
+    if (e.key === "+" || e.key === "=") {
+      e.preventDefault();
+      zoomTo(zoom * 2);
+      return;
+    }
+    if (e.key === "-" || e.key === "_") {
+      e.preventDefault();
+      zoomTo(zoom / 2);
+      return;
+    }
+    if (!selectedMark || !e.key.startsWith("Arrow") || e.altKey || e.ctrlKey || e.metaKey) return;
+    e.preventDefault();
+    const next = nudge(v, selectedMark, e.key, e.shiftKey, { width, height });
+    setV(next);
+    bringIntoView(selectedMark.at(next), false);
+  }
 
   function toImage(e: MouseEvent<SVGSVGElement>): Point {
     const box = svg.current!.getBoundingClientRect();
@@ -50,20 +101,30 @@ export function ViewSetupEditor({
 
   function onClick(e: MouseEvent<SVGSVGElement>) {
     const p = toImage(e);
-    if (tool === "centre" || tool === "mark") {
-      setV(tool === "centre" ? { ...v, centre: p } : { ...v, rateMark: p });
+    if (tool === "centre") {
+      setV({ ...v, centre: p });
+      setSelected("centre");
+      return;
+    }
+    if (tool === "mark") {
+      setV({ ...v, rateMark: p });
+      setSelected("rate-mark");
       return;
     }
     const next = [...clicks, p];
     if (tool === "rim" && next.length === 3) {
       const c = circleThroughThreePoints(next[0]!, next[1]!, next[2]!);
       setClicks([]);
-      if (c) setV({ ...v, edge: c, centre: v.centre ?? { x: c.cx, y: c.cy } });
+      if (c) {
+        setV({ ...v, edge: c, centre: v.centre ?? { x: c.cx, y: c.cy } });
+        setSelected("edge");
+      }
       return;
     }
     if (tool === "scale" && next.length === 2) {
       setClicks([]);
       setV({ ...v, scalePoints: [next[0]!, next[1]!] });
+      setSelected("scale-2");
       return;
     }
     setClicks(next);
@@ -93,58 +154,137 @@ export function ViewSetupEditor({
           ))}
         </div>
         <p className="mb-2 text-muted">{toolText[tool]}</p>
-        <div className="relative w-full overflow-hidden rounded-card border-2 border-line-strong bg-ink" style={{ aspectRatio: `${width} / ${height}` }}>
-          <img
-            src={imageUrl}
-            alt="A frame of this run"
-            className="absolute inset-0 h-full w-full"
-            style={{ transform: v.mirrored ? "scaleX(-1)" : undefined }}
-            draggable={false}
-          />
-          <svg
-            ref={svg}
-            viewBox={`0 0 ${width} ${height}`}
-            className="absolute inset-0 h-full w-full cursor-crosshair"
-            onClick={onClick}
-            data-testid="setup-overlay"
-          >
-            {v.edge ? (
-              <circle cx={v.edge.cx} cy={v.edge.cy} r={v.edge.r} fill="none" stroke="#3ee0cf" strokeWidth={mark / 2} strokeDasharray={`${mark * 2} ${mark}`} />
-            ) : null}
-            {v.centre ? (
-              <g stroke="#ffd23f" strokeWidth={mark / 2}>
-                <line x1={v.centre.x - mark * 3} y1={v.centre.y} x2={v.centre.x + mark * 3} y2={v.centre.y} />
-                <line x1={v.centre.x} y1={v.centre.y - mark * 3} x2={v.centre.x} y2={v.centre.y + mark * 3} />
-                <circle cx={v.centre.x} cy={v.centre.y} r={mark * 1.5} fill="none" />
-              </g>
-            ) : null}
-            {v.scalePoints ? (
-              <g stroke="#ff6b9a" strokeWidth={mark / 2}>
-                <line x1={v.scalePoints[0].x} y1={v.scalePoints[0].y} x2={v.scalePoints[1].x} y2={v.scalePoints[1].y} />
-                {v.scalePoints.map((p, i) => (
-                  <circle key={i} cx={p.x} cy={p.y} r={mark} fill="#ff6b9a" />
-                ))}
-              </g>
-            ) : null}
-            {v.rateMark ? (
-              <rect
-                x={v.rateMark.x - mark * 2}
-                y={v.rateMark.y - mark * 2}
-                width={mark * 4}
-                height={mark * 4}
-                fill="none"
-                stroke="#9bff6b"
-                strokeWidth={mark / 2}
-              />
-            ) : null}
-            {clicks.map((p, i) => (
-              <circle key={i} cx={p.x} cy={p.y} r={mark} fill="#ffffff" stroke="#000" />
-            ))}
-          </svg>
+        <div className="mb-2 flex flex-wrap items-center gap-2">
+          <Button type="button" tone="plain" onClick={() => zoomTo(zoom / 2)} disabled={zoom <= 1}>
+            Zoom out
+          </Button>
+          <Button type="button" tone="plain" onClick={() => zoomTo(zoom * 2)} disabled={zoom >= maxZoom}>
+            Zoom in
+          </Button>
+          <span aria-live="polite" className="font-bold" data-testid="setup-zoom">
+            {zoom}×
+          </span>
+          <span className="text-sm text-muted">{zoom > 1 ? "Scroll or swipe the frame to move around it." : null}</span>
+        </div>
+        {/* eslint-disable-next-line jsx-a11y/no-noninteractive-element-interactions -- the frame takes the arrow keys while it has focus */}
+        <div
+          ref={viewport}
+          role="group"
+          aria-label="Frame to mark"
+          aria-describedby="setup-keys"
+          aria-keyshortcuts="ArrowLeft ArrowRight ArrowUp ArrowDown Shift+ArrowLeft Shift+ArrowRight Shift+ArrowUp Shift+ArrowDown + -"
+          // eslint-disable-next-line jsx-a11y/no-noninteractive-tabindex -- the frame takes focus so the arrow keys can nudge a mark and the zoomed view can be scrolled
+          tabIndex={0}
+          onKeyDown={onKeyDown}
+          className="relative w-full touch-pan-x touch-pan-y overflow-auto overscroll-contain rounded-card border-2 border-line-strong bg-ink focus-visible:outline-4 focus-visible:outline-offset-2 focus-visible:outline-tank-600"
+          style={{ aspectRatio: `${width} / ${height}` }}
+          data-testid="setup-viewport"
+        >
+          <div className="relative" style={{ width: `${zoom * 100}%`, aspectRatio: `${width} / ${height}` }}>
+            <img
+              src={imageUrl}
+              alt="A frame of this run"
+              className="absolute inset-0 h-full w-full"
+              style={{ transform: v.mirrored ? "scaleX(-1)" : undefined, imageRendering: zoom >= 4 ? "pixelated" : undefined }}
+              draggable={false}
+            />
+            <svg
+              ref={svg}
+              viewBox={`0 0 ${width} ${height}`}
+              className="absolute inset-0 h-full w-full cursor-crosshair"
+              onClick={onClick}
+              data-testid="setup-overlay"
+            >
+              {v.edge ? (
+                <circle
+                  cx={v.edge.cx}
+                  cy={v.edge.cy}
+                  r={v.edge.r}
+                  fill="none"
+                  stroke="#3ee0cf"
+                  strokeWidth={mark / 2}
+                  strokeDasharray={`${mark * 2} ${mark}`}
+                />
+              ) : null}
+              {v.centre ? (
+                <g stroke="#ffd23f" strokeWidth={mark / 2}>
+                  <line x1={v.centre.x - mark * 3} y1={v.centre.y} x2={v.centre.x + mark * 3} y2={v.centre.y} />
+                  <line x1={v.centre.x} y1={v.centre.y - mark * 3} x2={v.centre.x} y2={v.centre.y + mark * 3} />
+                  <circle cx={v.centre.x} cy={v.centre.y} r={mark * 1.5} fill="none" />
+                </g>
+              ) : null}
+              {v.scalePoints ? (
+                <g stroke="#ff6b9a" strokeWidth={mark / 2}>
+                  <line x1={v.scalePoints[0].x} y1={v.scalePoints[0].y} x2={v.scalePoints[1].x} y2={v.scalePoints[1].y} />
+                  {v.scalePoints.map((p, i) => (
+                    <circle key={i} cx={p.x} cy={p.y} r={mark} fill="#ff6b9a" />
+                  ))}
+                </g>
+              ) : null}
+              {v.rateMark ? (
+                <rect
+                  x={v.rateMark.x - mark * 2}
+                  y={v.rateMark.y - mark * 2}
+                  width={mark * 4}
+                  height={mark * 4}
+                  fill="none"
+                  stroke="#9bff6b"
+                  strokeWidth={mark / 2}
+                />
+              ) : null}
+              {selectedAt ? (
+                <rect
+                  x={selectedAt.x - mark * 4}
+                  y={selectedAt.y - mark * 4}
+                  width={mark * 8}
+                  height={mark * 8}
+                  fill="none"
+                  stroke="#ffffff"
+                  strokeWidth={mark / 3}
+                  strokeDasharray={`${mark} ${mark / 2}`}
+                  data-testid="selected-mark"
+                />
+              ) : null}
+              {clicks.map((p, i) => (
+                <circle key={i} cx={p.x} cy={p.y} r={mark} fill="#ffffff" stroke="#000" />
+              ))}
+            </svg>
+          </div>
         </div>
         <p className="mt-2 text-sm text-muted">
           Frame size {width} × {height} px. Marks are in the frame's own pixels.
         </p>
+        <fieldset className="mt-3 flex flex-col gap-1">
+          <legend className="mb-1 font-bold">Mark moved by the arrow keys</legend>
+          {setupMarks.map((m) => {
+            const at = m.at(v);
+            return (
+              <label key={m.id} className={`flex min-h-12 items-center gap-3 ${at ? "" : "text-muted"}`}>
+                <input
+                  type="radio"
+                  name="nudgeMark"
+                  value={m.id}
+                  checked={selected === m.id && at !== null}
+                  disabled={!at}
+                  onChange={() => {
+                    setSelected(m.id);
+                    bringIntoView(at, false);
+                  }}
+                  className="size-6"
+                />
+                <span>
+                  {m.label}
+                  <span className="text-muted" data-testid={`mark-${m.id}`}>
+                    {at ? ` at ${formatFixed(at.x, 1)}, ${formatFixed(at.y, 1)} px` : " (not placed yet)"}
+                  </span>
+                </span>
+              </label>
+            );
+          })}
+          <p id="setup-keys" className="text-sm text-muted">
+            Choose a mark, then click the frame (or move to it with Tab) and use the arrow keys: 1 px a press, 10 px with Shift; + and − zoom.
+          </p>
+        </fieldset>
       </div>
       <div className="flex flex-col gap-4">
         <fieldset className="grid grid-cols-2 gap-3">

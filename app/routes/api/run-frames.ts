@@ -1,6 +1,6 @@
 import type { Route } from "./+types/run-frames";
 import { requireRole, requireUser } from "~/.server/auth/permissions";
-import { apiError } from "~/.server/http";
+import { apiError, readJson } from "~/.server/http";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { receiveFrameFile, UploadError } from "~/.server/uploads/frames";
 import { withMultipartUpload } from "~/.server/uploads/staging";
@@ -10,7 +10,11 @@ import { Frame } from "~/.server/db";
 import { inputsChanged } from "~/.server/runs/rechecks";
 import { uploadLimits } from "~/lib/upload-limits";
 import { parseFrameTime } from "~/lib/video-frames";
-import type { FrameStackView, FrameUploadRefusedView } from "~/.server/openapi/responses/tracking";
+import type { FrameRemovalView, FrameStackView, FrameUploadRefusedView } from "~/.server/openapi/responses/tracking";
+import { removeFrameSelection } from "~/.server/runs/frame-removal";
+import { runErrorResponse } from "~/.server/runs/api";
+import { invalidInput } from "~/.server/api-responses";
+import { frameRemovalSchema, selectionOf } from "~/lib/validation/frame-removal";
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   await requireUser(request);
@@ -25,9 +29,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return Response.json(stack);
 }
 
-/** One file per request (Uppy sends each file on its own): an image, or a ZIP of images. */
+/**
+ * POST: one file per request (Uppy sends each file on its own), an image or a ZIP of images.
+ * DELETE: removes one frame, a range or the whole stack before sign-off (see runs/frame-removal).
+ */
 export async function action({ request, params }: Route.ActionArgs) {
-  if (request.method !== "POST") return apiError(405, "method_not_allowed", "Send frames with POST.");
+  if (request.method === "DELETE") return remove(request, params.runId);
+  if (request.method !== "POST") return apiError(405, "method_not_allowed", "Send frames with POST, or remove them with DELETE.");
   const user = await requireRole(request, "technician", "lab_manager");
   const run = await loadRun(request, params.runId);
   requireChangeable(request, run, user);
@@ -69,5 +77,19 @@ export async function action({ request, params }: Route.ActionArgs) {
     if (err instanceof UploadError) return apiError(err.status, err.code, err.message);
     if (err instanceof StorageUnavailableError) return storageUnavailable(err);
     throw err;
+  }
+}
+
+async function remove(request: Request, runId: string) {
+  const user = await requireRole(request, "technician", "lab_manager");
+  const run = await loadRun(request, runId);
+  requireChangeable(request, run, user);
+  const body = frameRemovalSchema.safeParse(await readJson(request));
+  if (!body.success) return invalidInput(body.error);
+  try {
+    const result: FrameRemovalView = await removeFrameSelection(run.id, user, selectionOf(body.data), { frameCount: body.data.frameCount });
+    return Response.json(result);
+  } catch (err) {
+    return runErrorResponse(err);
   }
 }

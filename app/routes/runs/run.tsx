@@ -16,6 +16,8 @@ import { TrackingPanel } from "~/components/runs/tracking-panel";
 import { TheoryCheckPanel } from "~/components/runs/theory-check-panel";
 import { TableRatePanel } from "~/components/runs/table-rate-panel";
 import { tableRateSummary } from "~/.server/runs/rate-from-footage";
+import { FrameViewer } from "~/components/runs/frame-viewer";
+import { frameReviewData } from "~/.server/runs/frame-review";
 import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
 import { SupersedesLinks } from "~/components/run-record/supersedes-links";
 import { SignOffPanel } from "~/components/run-record/sign-off-panel";
@@ -33,13 +35,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const run = await loadRun(request, params.id);
   const current = await currentCheck(run);
-  const [page, settings, record, tableRate] = await Promise.all([
+  const [page, settings, record, tableRate, review] = await Promise.all([
     runPageData(run, user, current),
     getLabSettings(),
     getRunRecordParts(run, user, current),
     tableRateSummary(run),
+    frameReviewData(run),
   ]);
-  return { ...page, record, user, spinUpTimesToWait: settings.spinUpTimesToWait, tableRate };
+  return { ...page, record, review, user, spinUpTimesToWait: settings.spinUpTimesToWait, tableRate };
 }
 
 function Fact({ label, children }: { label: string; children: React.ReactNode }) {
@@ -246,6 +249,22 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
           </div>
         ) : null}
       </Card>
+
+      {d.frames.length > 0 && run.frameWidthPx && run.frameHeightPx ? (
+        <Card title="Frame review">
+          <FrameViewer
+            runId={run.id}
+            width={run.frameWidthPx}
+            height={run.frameHeightPx}
+            frameRateFps={run.frameRateFps}
+            frames={d.frames}
+            setup={d.setup}
+            tracks={d.review.tracks}
+            tracksOutOfDate={d.review.tracksOutOfDate}
+            canChange={canChange}
+          />
+        </Card>
+      ) : null}
 
       <div id="tracking" className="grid gap-6 xl:grid-cols-2">
         <Card title="View setup">

@@ -4,9 +4,17 @@ import { badBody, error, file, ids, json, notJson, operation, routeSchema } from
 import { runDetailSchema, runPageSchema, runSchema } from "../responses/runs";
 import { runExportSchema } from "../responses/run-export";
 import { errorSchema } from "../responses/common";
-import { frameStackSchema, frameUploadRefusedSchema, frameUploadSchema, trackingJobAnswerSchema, trackingSchema } from "../responses/tracking";
+import {
+  frameRemovalSchema as frameRemovalAnswer,
+  frameStackSchema,
+  frameUploadRefusedSchema,
+  frameUploadSchema,
+  trackingJobAnswerSchema,
+  trackingSchema,
+} from "../responses/tracking";
 import { runApiCreateSchema, runApiPatchSchema } from "~/lib/validation/run-api";
 import { runFiltersSchema } from "~/lib/validation/run-filters";
+import { frameRemovalSchema } from "~/lib/validation/frame-removal";
 
 const tags = ["Runs"];
 const noRun = error("No such run (not_found).");
@@ -179,6 +187,30 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
         "No frame was accepted (no_frames_accepted, with what happened to each file), or a damaged image or ZIP.",
       ),
       503: error("The file store cannot be reached (storage_unavailable)."),
+    },
+  });
+  const removal = registry.register("FrameRemovalRequest", routeSchema(frameRemovalSchema));
+  operation(registry, {
+    method: "delete",
+    path: "/api/v1/runs/{runId}/frames",
+    operationId: "removeFrames",
+    tags,
+    summary: "Remove one frame, a range or the whole stack before sign-off (the run's technician, lab manager)",
+    description:
+      "Positions are 0-based as GET …/frames gives them, both ends included; { all: true } removes the whole stack. Send frameCount (the number of frames you saw) to be refused with stack_changed instead of removing other frames when the stack has changed since. The frames after the gap move up; their files are removed from storage; the tracks and the theory check go out of date and a tracked run is tracked again, which makes a new check. The view setup, the conditions and earlier checks stay.",
+    request: {
+      params: ids("runId"),
+      body: { required: true, content: { "application/json": { schema: removal, example: { from: 11, to: 11, frameCount: 90 } } } },
+    },
+    responses: {
+      200: json(frameRemovalAnswer, "The frames removed and the count left"),
+      400: badBody("out_of_range: a position past the end of the stack (field to)"),
+      403: writers,
+      404: noRun,
+      409: error(
+        `${signedOff}; job_active: tracking is working on the frames now; stack_changed: the stack no longer has frameCount frames; no_frames: there is nothing to remove.`,
+      ),
+      415: notJson,
     },
   });
   operation(registry, {

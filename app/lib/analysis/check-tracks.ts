@@ -25,6 +25,9 @@ export interface TrackCheck extends Omit<TheoryCheckResult, "series"> {
   flagged: boolean;
 }
 
+/** A per-track check as stored; a check made before every track was checked named its track by database id only. */
+export type StoredTrackCheck = Omit<TrackCheck, "trackNumber"> & { trackNumber: number | null };
+
 export interface TrackCombination {
   /** tracks combined */
   n: number;

@@ -63,7 +63,7 @@ async function checkedRun(overrides: Record<string, unknown> = {}, opts: { point
     jitterPx: 0.2,
   });
   await run.update({ state: "checked", verdict: "agrees" });
-  const { fingerprint } = await presentFingerprint(run, track);
+  const { fingerprint } = await presentFingerprint(run, [track]);
   if (!fingerprint) throw new Error("the fixture's track is not from the run's present inputs");
   await TheoryCheck.create({
     runId: run.id,

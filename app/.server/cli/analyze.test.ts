@@ -94,6 +94,10 @@ describe("npm run analyze", () => {
     expect(doc.check.fMeasured).toBeGreaterThan(2 * omega * 0.97);
     expect(doc.check.fMeasured).toBeLessThan(2 * omega * 1.03);
     expect(doc.check.circle.radiusM).toBeCloseTo(0.045, 3);
+    // One float: one per-track check, the same as the combined one.
+    expect(doc.checks).toHaveLength(1);
+    expect(doc.checks[0]).toMatchObject({ trackId: doc.tracks[0].id, fMeasured: doc.check.fMeasured, verdict: "agrees", combined: true, flagged: false });
+    expect(doc.check.combination).toMatchObject({ n: 1, of: 1, scale: 1, consistent: true });
   });
 
   it.each([

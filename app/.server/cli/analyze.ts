@@ -7,7 +7,8 @@
 import { readdir, stat } from "node:fs/promises";
 import path from "node:path";
 import { compare } from "natural-orderby";
-import { runTheoryCheck } from "../../lib/analysis/check";
+import type { TheoryCheckResult } from "../../lib/analysis/check";
+import { checkTracks } from "../../lib/analysis/check-tracks";
 import { omegaFromTableRate } from "../../lib/analysis/run-omega";
 import type { Track, TrackingSetup } from "../../lib/tracking/types";
 import { TrackingError } from "../tracking/errors";
@@ -31,17 +32,9 @@ function omegaSet(args: AnalyzeArguments): number {
   return omegaFromTableRate(args.rpm, args.direction);
 }
 
-/** The theory check on the longest track: the one place where tracking output meets the physics. */
-function theoryCheck(args: AnalyzeArguments, tracks: Track[]) {
-  const longest = tracks.reduce((a, b) => (b.points.length > a.points.length ? b : a));
-  const result = runTheoryCheck({
-    points: longest.points.map(({ t, x, y }) => ({ t, x, y })),
-    setup: { centre: args.centre, pxPerM: args.pxPerCm === null ? null : args.pxPerCm * 100, mirrored: args.mirrored },
-    omegaSet: omegaSet(args),
-    cameraMode: args.camera,
-  });
+/** The check's figures the JSON carries, for the combined check and for each track. */
+function checkFigures(result: TheoryCheckResult | Omit<TheoryCheckResult, "series">) {
   return {
-    trackId: longest.id,
     omega: result.omega,
     fPredicted: result.fPredicted,
     fMeasured: result.fMeasured,
@@ -60,6 +53,42 @@ function theoryCheck(args: AnalyzeArguments, tracks: Track[]) {
   };
 }
 
+/** The theory check on every track, combined (lib/analysis/check-tracks): the one place where tracking output meets the physics. */
+function theoryCheck(args: AnalyzeArguments, tracks: Track[]) {
+  const checked = checkTracks(
+    tracks.map((track) => ({
+      number: track.id,
+      input: {
+        points: track.points.map(({ t, x, y }) => ({ t, x, y })),
+        setup: { centre: args.centre, pxPerM: args.pxPerCm === null ? null : args.pxPerCm * 100, mirrored: args.mirrored },
+        omegaSet: omegaSet(args),
+        cameraMode: args.camera,
+      },
+    })),
+    args.tracer === "dye" ? "dye patch" : "float",
+  );
+  if (!checked) return { check: null, checks: [] };
+  const c = checked.combination;
+  return {
+    check: {
+      trackId: c?.representativeTrack ?? null,
+      ...checkFigures(checked.check),
+      combination: c && {
+        n: c.n,
+        of: c.of,
+        chi2: c.chi2,
+        dof: c.dof,
+        birgeRatio: c.birgeRatio,
+        pValue: c.pValue,
+        scale: c.scale,
+        consistent: c.consistent,
+        words: c.words,
+      },
+    },
+    checks: checked.checks.map((t) => ({ trackId: t.trackNumber, ...checkFigures(t), combined: t.combined, pull: t.pull, flagged: t.flagged })),
+  };
+}
+
 const round = (value: number, digits: number) => Number(value.toFixed(digits));
 
 function outputDocument(args: AnalyzeArguments, setup: TrackingSetup, result: TrackFrameStackResult) {
@@ -75,7 +104,8 @@ function outputDocument(args: AnalyzeArguments, setup: TrackingSetup, result: Tr
     setup: { ...setup, pxPerM: args.pxPerCm === null ? null : args.pxPerCm * 100 },
     cameraMode: args.camera,
     omegaSet: omegaSet(args),
-    check: theoryCheck(args, result.tracks),
+    // check: the combined verdict; checks: each track's own, by the track's id above.
+    ...theoryCheck(args, result.tracks),
   };
 }
 

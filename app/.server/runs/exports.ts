@@ -14,7 +14,8 @@ function csvNumber(v: number): CsvCell {
 }
 
 /**
- * The run's tracks as CSV, one row a point: track_id, t_s (the camera's time, as tracked), x_px,
+ * The run's tracks as CSV, one row a point: track (its number in the run, as the run page, report
+ * and API show it), t_s (the camera's time, as tracked), x_px,
  * y_px, and x_m, y_m in the rotating frame when the view setup has a scale (else the scale
  * calibration's, when the current check used it). A lab-fixed camera's positions are de-rotated by
  * −Ω(t − t₀), Ω the rate the current theory check used (else the set rate: an out-of-date check's
@@ -56,14 +57,14 @@ export async function tracksCsv(runId: number): Promise<{ filename: string; csv:
   const pxPerM = setup?.scalePxPerM || checkPxPerM;
   const view: ViewGeometry | null = setup && pxPerM ? { centre: { x: setup.centreXPx, y: setup.centreYPx }, pxPerM, mirrored: setup.mirrored } : null;
 
-  const columns = view ? ["track_id", "t_s", "x_px", "y_px", "x_m", "y_m"] : ["track_id", "t_s", "x_px", "y_px"];
+  const columns = view ? ["track", "t_s", "x_px", "y_px", "x_m", "y_m"] : ["track", "t_s", "x_px", "y_px"];
   const rows: CsvCell[][] = [];
   for (const track of tracks) {
     const points = parseTrackPoints(track);
     const timed = timeFactor === 1 ? points : correctFrameTimes(points, timeFactor);
     const rotating = view && timed.length ? trackToRotatingFrame(timed, view, run.cameraMode, omega, timed[0]!.t) : null;
     points.forEach((p, i) => {
-      const cells: CsvCell[] = [track.id, csvNumber(p.t), csvNumber(p.x), csvNumber(p.y)];
+      const cells: CsvCell[] = [track.number, csvNumber(p.t), csvNumber(p.x), csvNumber(p.y)];
       if (rotating) {
         const r = rotating[i];
         cells.push(r ? csvNumber(r.x) : null, r ? csvNumber(r.y) : null);

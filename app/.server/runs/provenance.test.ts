@@ -121,18 +121,18 @@ describe("a theory check is current only while its inputs are", () => {
     await whenRechecksIdle();
   });
 
-  it("stores exactly what the check was computed from: conditions, frozen calibrations, tolerance, frames, view setup and the track", async () => {
+  it("stores exactly what the check was computed from: conditions, frozen calibrations, tolerance, frames, view setup and every track", async () => {
     const run = await checkedRun(8);
     const { check } = await currentCheck(run.id);
     const stored = JSON.parse(check!.result).provenance;
     const track = await Track.findOne({ where: { runId: run.id } });
-    expect(stored.inputs).toEqual(JSON.parse(JSON.stringify(await checkInputs(run, track))));
+    expect(stored.inputs).toEqual(JSON.parse(JSON.stringify(await checkInputs(run, [track!]))));
     expect(stored.inputs).toMatchObject({
       conditions: { setRateRpm: 8, direction: "ccw", cameraMode: "rotating", tableId: run.tableId, flatTable: false },
       calibrations: JSON.parse(run.calibrationsInForce!),
       settings: { checkTolerancePct: 3 },
       tracking: { viewSetup: { centre: [centre.x, centre.y], scalePxPerM: pxPerM, mirrored: false }, tracer: "float", frameRateFps: 30, frames: { count: 0 } },
-      track: { id: track!.id, pointCount: 180 },
+      tracks: [{ id: track!.id, number: 1, pointCount: 180, jobId: track!.jobId }],
     });
     expect(check!.inputFingerprint).toBe(stored.fingerprint);
   });

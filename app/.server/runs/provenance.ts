@@ -56,11 +56,14 @@ export async function trackingFingerprint(run: Run, transaction?: Transaction) {
  * whole frozen calibration snapshot (so a calibration of any kind the fit comes to apply is
  * already covered) and the lab's tolerance.
  */
-export async function checkInputs(run: Run, track: Pick<Track, "id" | "pointCount" | "jobId"> | null, transaction?: Transaction) {
+export type TrackKey = Pick<Track, "id" | "number" | "pointCount" | "jobId">;
+
+export async function checkInputs(run: Run, tracks: readonly TrackKey[], transaction?: Transaction) {
   const [settings, table, footage] = await Promise.all([
     getLabSettings(transaction),
     Equipment.findByPk(run.tableId, { attributes: ["id", "flatTable"], transaction }),
-    footageRateOfJob(track?.jobId, transaction),
+    // Every track of a run comes from one tracking job, whose pass also read the rate from the footage.
+    footageRateOfJob(tracks[0]?.jobId, transaction),
   ]);
   const rate = rateInputs(settings.rateSource, footage.measured);
   return {
@@ -75,7 +78,8 @@ export async function checkInputs(run: Run, track: Pick<Track, "id" | "pointCoun
     calibrations: calibrationSnapshot(run),
     settings: { checkTolerancePct: settings.checkTolerancePct },
     tracking: await trackingInputs(run, transaction),
-    track: track ? { id: track.id, pointCount: track.pointCount, jobId: track.jobId } : null,
+    // Every track is fitted, so every track is an input: by id, number, length and the job that made it.
+    tracks: tracks.map((t) => ({ id: t.id, number: t.number, pointCount: t.pointCount, jobId: t.jobId })),
     ...(rate ? { rate } : {}),
   };
 }
@@ -98,7 +102,7 @@ const inputWords: [path: string, words: string][] = [
   ["tracking.tracer", "tracer"],
   ["tracking.frameRateFps", "frame rate"],
   ["tracking.cameraId", "camera"],
-  ["track", "track"],
+  ["tracks", "tracks"],
 ];
 
 function at(value: unknown, path: string): unknown {
@@ -108,17 +112,18 @@ function at(value: unknown, path: string): unknown {
 /** Which inputs differ between two sets, in words ("set rate", "view setup"); all of them when the old set is unknown. */
 export function changedInputs(before: unknown, after: CheckInputs): string[] {
   if (!before || typeof before !== "object") return ["inputs not recorded with the earlier check"];
-  // The track follows from the tracking inputs: name it only when nothing upstream of it changed.
+  // The tracks follow from the tracking inputs: name them only when nothing upstream of them changed.
   const changed = inputWords.filter(([path]) => canonical(at(before, path)) !== canonical(at(after, path))).map(([, w]) => w);
-  return changed.length > 1 ? changed.filter((w) => w !== "track") : changed;
+  return changed.length > 1 ? changed.filter((w) => w !== "tracks") : changed;
 }
 
-async function longestTrack(runId: number, transaction?: Transaction) {
-  return Track.findOne({
+/** The run's tracks in their numbering order (see runTracks in ./theory): what a check fits. */
+export async function trackKeys(runId: number, transaction?: Transaction): Promise<TrackKey[]> {
+  return Track.findAll({
     where: { runId },
-    attributes: ["id", "pointCount", "jobId"],
+    attributes: ["id", "number", "pointCount", "jobId"],
     order: [
-      ["pointCount", "DESC"],
+      ["number", "ASC"],
       ["id", "ASC"],
     ],
     transaction,
@@ -126,20 +131,22 @@ async function longestTrack(runId: number, transaction?: Transaction) {
 }
 
 /**
- * The fingerprint a check of `track` (the longest, by default) made now would carry, or null when
- * that track was made from other frames or another view setup than the present ones: a fit of it
- * vouches for nothing.
+ * The fingerprint a check of `tracks` (all the run's, by default) made now would carry, or null when
+ * there are none or any of them was made from other frames or another view setup than the present
+ * ones: a fit of it vouches for nothing.
  */
 export async function presentFingerprint(
   run: Run,
-  track?: Pick<Track, "id" | "pointCount" | "jobId">,
+  tracks?: readonly TrackKey[],
   transaction?: Transaction,
 ): Promise<{ fingerprint: string | null; inputs: CheckInputs }> {
-  const used = track ?? (await longestTrack(run.id, transaction));
+  const used = tracks ?? (await trackKeys(run.id, transaction));
   const inputs = await checkInputs(run, used, transaction);
-  if (!used) return { fingerprint: null, inputs };
-  const job = await TrackingJob.findByPk(used.jobId, { attributes: ["id", "inputFingerprint"], transaction });
-  const tracksArePresent = job?.inputFingerprint === sha256(inputs.tracking);
+  if (!used.length) return { fingerprint: null, inputs };
+  const jobIds = [...new Set(used.map((t) => t.jobId))];
+  const jobs = await TrackingJob.findAll({ where: { id: jobIds }, attributes: ["id", "inputFingerprint"], transaction });
+  const tracking = sha256(inputs.tracking);
+  const tracksArePresent = jobs.length === jobIds.length && jobs.every((job) => job.inputFingerprint === tracking);
   return { fingerprint: tracksArePresent ? sha256(inputs) : null, inputs };
 }
 

@@ -9,6 +9,8 @@ import type { RunLinkView, RunListItemView, RunView, TheoryCheckView } from "../
 import type { z } from "zod";
 import type { trackSummarySchema, viewSetupSchema } from "../openapi/responses/runs";
 import { runLabel } from "~/lib/runs";
+import type { TheoryCheckResult } from "~/lib/analysis/check";
+import type { StoredTrackCheck, TrackCombination } from "~/lib/analysis/check-tracks";
 
 const iso = (d: Date | null) => d?.toISOString() ?? null;
 
@@ -100,13 +102,62 @@ export function serializeViewSetup(s: ViewSetup | null): z.infer<typeof viewSetu
   };
 }
 
+const num = (v: unknown): number | null => (typeof v === "number" && Number.isFinite(v) ? v : null);
+
+type StoredJson = {
+  result?: Partial<TheoryCheckResult>;
+  checks?: Partial<StoredTrackCheck>[];
+  combination?: TrackCombination | null;
+  input?: { trackNumber?: number | null };
+};
+
+function serializeTrackCheck(t: Partial<StoredTrackCheck>, fallback: { verdict: TheoryCheck["verdict"]; fMeasuredPerS: number | null }) {
+  return {
+    trackNumber: num(t.trackNumber),
+    verdict: t.verdict ?? fallback.verdict,
+    fMeasuredPerS: num(t.fMeasured) ?? (t.fMeasured === undefined ? fallback.fMeasuredPerS : null),
+    fStdErrorPerS: num(t.fStdError),
+    dragPerS: num(t.drag),
+    dragStdErrorPerS: num(t.dragStdError),
+    nPoints: num(t.nPoints) ?? 0,
+    combined: t.combined ?? t.fMeasured !== null,
+    pull: num(t.pull),
+    flagged: t.flagged === true,
+    reason: typeof t.reason === "string" ? t.reason : "",
+  };
+}
+
+/** A check as the API answers it: the combined verdict, each track's own check and how they were combined. */
 export function serializeTheoryCheck(c: TheoryCheck): TheoryCheckView {
+  const stored = (parseJson(c.result) ?? {}) as StoredJson;
+  const fallback = { verdict: c.verdict, fMeasuredPerS: c.fMeasuredPerS };
+  // A check stored before every track was checked holds one track's result: that is its only per-track check.
+  const checks = stored.checks ?? [{ ...stored.result, trackNumber: stored.input?.trackNumber ?? null }];
+  const k = stored.combination;
   return {
     id: c.id,
     trackId: c.trackId,
+    trackNumber: k?.representativeTrack ?? stored.input?.trackNumber ?? null,
     verdict: c.verdict,
     fMeasuredPerS: c.fMeasuredPerS,
     fPredictedPerS: c.fPredictedPerS,
+    checks: checks.map((t) => serializeTrackCheck(t, fallback)),
+    combination: k
+      ? {
+          n: k.n,
+          of: k.of,
+          representativeTrack: k.representativeTrack,
+          fMeanPerS: k.fMean,
+          stdErrorPerS: k.stdError,
+          chi2: k.chi2,
+          dof: k.dof,
+          birgeRatio: k.birgeRatio,
+          pValue: k.pValue,
+          scale: k.scale,
+          consistent: k.consistent,
+          words: k.words,
+        }
+      : null,
     codeVersion: c.codeVersion,
     createdAt: c.createdAt.toISOString(),
   };

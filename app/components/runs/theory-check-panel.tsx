@@ -19,6 +19,51 @@ function Figure({ label, value, unit, sub }: { label: string; value: string; uni
   );
 }
 
+/** Every track's own check, and what combining them says: one row a track, by its number in the run. */
+export function TrackChecksTable({ check }: { check: Pick<StoredCheckView, "checks" | "combination"> }) {
+  const k = check.combination;
+  return (
+    <div data-testid="track-checks">
+      <h3 className="font-bold">Each track</h3>
+      {k ? <p className="mt-1">{k.words}</p> : null}
+      <table className="mt-2 w-full text-left">
+        <thead>
+          <tr className="border-b-2 border-line">
+            <th className="py-1">Track</th>
+            <th className="py-1">f (1/s)</th>
+            <th className="py-1">Drag (1/s)</th>
+            <th className="py-1">Points</th>
+            <th className="py-1">Pull</th>
+            <th className="py-1">Verdict alone</th>
+          </tr>
+        </thead>
+        <tbody>
+          {check.checks.map((t, i) => (
+            <tr key={t.trackNumber ?? `old-${i}`} className={`border-b border-line ${t.flagged ? "font-bold" : ""}`}>
+              <td className="py-1">{t.trackNumber ?? "—"}</td>
+              <td className="py-1 font-mono">{t.fMeasured === null ? "—" : `${formatNumber(t.fMeasured, 4)} ± ${formatNumber(t.fStdError, 2)}`}</td>
+              <td className="py-1 font-mono">{t.drag === null ? "—" : `${formatNumber(t.drag, 3)} ± ${formatNumber(t.dragStdError, 2)}`}</td>
+              <td className="py-1">{t.nPoints}</td>
+              <td className="py-1">
+                {t.pull === null ? "—" : formatNumber(t.pull, 2)}
+                {t.flagged ? " — disagrees with the others" : ""}
+              </td>
+              <td className="py-1">{t.combined ? verdictWords[t.verdict] : `left out: ${t.reason}`}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+      {k && k.n > 1 ? (
+        <p className="mt-1 text-sm text-muted">
+          Combined: f = {formatNumber(k.fMean, 4)} ± {formatNumber(k.stdError * k.scale, 2)} 1/s (weighted by 1/error²); χ² = {formatNumber(k.chi2, 3)} for{" "}
+          {k.dof} degrees of freedom, Birge ratio {formatNumber(k.birgeRatio, 3)}
+          {k.scale > 1 ? `, so the error is widened ×${formatNumber(k.scale, 2)}` : ""}.
+        </p>
+      ) : null}
+    </div>
+  );
+}
+
 /** The theory check as a technician reads it: the verdict and its reason first, then the numbers, then the plots. */
 export function TheoryCheckPanel({
   check,
@@ -92,13 +137,17 @@ export function TheoryCheckPanel({
           sub={`${r.nLeftOut} left out · window ${r.settings.window ?? "—"} frames, order ${r.settings.polyOrder}`}
         />
       </div>
+      <TrackChecksTable check={check} />
       <div>
         <h3 className="font-bold">Calibrations in this check</h3>
         <CalibrationsAppliedList entries={r.calibrationsApplied} />
       </div>
       <p className="text-sm text-muted">
-        Checked {time.dateTime(check.createdAt)} with Tankside {check.codeVersion}, on track #{check.input.trackId} ({check.input.pointCount} points), camera{" "}
-        {check.input.cameraMode === "lab" ? "lab-fixed (de-rotated by −Ω(t − t₀))" : "co-rotating"}
+        Checked {time.dateTime(check.createdAt)} with Tankside {check.codeVersion},{" "}
+        {check.combination && check.combination.n > 1
+          ? `on ${check.combination.n} tracks combined (plots, drag and circle from track ${check.combination.representativeTrack}, ${check.input.pointCount} points)`
+          : `on track ${check.input.trackNumber ?? "—"} (${check.input.pointCount} points)`}
+        , camera {check.input.cameraMode === "lab" ? "lab-fixed (de-rotated by −Ω(t − t₀))" : "co-rotating"}
         {check.input.flatTable ? ", flat table (centrifugal term included)" : ""}.
       </p>
       <TheoryPlots result={r} setup={setup} key={printable ? "print" : "screen"} />

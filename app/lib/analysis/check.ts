@@ -6,127 +6,26 @@
 import { mean } from "simple-statistics";
 import { fitCircle } from "./circle-fit";
 import { fitCoriolis, inertialPeriodFromAngle, predictedRadius, turningRate } from "./coriolis-fit";
-import type { CameraMode, TimedPoint, ViewGeometry } from "./frames";
+import type { TimedPoint, ViewGeometry } from "./frames";
 import { imageToTable, reRotate, rotatingFrameToImage, trackToRotatingFrame } from "./frames";
-import { DECISION_RULE, decide, Z95 } from "./decision";
-import { formatFixed, formatNumber, formatWithError, percentRange } from "../number-format";
-import { correctFrameTimes, type AppliedCalibration, type FrameTimeCorrection } from "../calibrations-applied";
+import { formatFixed, formatNumber } from "../number-format";
+import { correctFrameTimes } from "../calibrations-applied";
 import { chooseWindow, DEFAULT_POLY_ORDER, MIN_FRAMES_PER_PERIOD, minimumWindow, oddWindow, positionNoise, smoothTrack, typicalFrameInterval } from "./savgol";
+import {
+  DEFAULT_TOLERANCE,
+  emptyResult,
+  isFiniteNumber,
+  type AccelerationFitPoint,
+  type OmegaSource,
+  type TheoryCheckCircle,
+  type TheoryCheckInput,
+  type TheoryCheckResult,
+} from "./check-result";
+import { judgeF, pct } from "./check-verdict";
 
-export type TheoryVerdict = "agrees" | "disagrees" | "inconclusive";
-export type OmegaSource = "set rate, uncalibrated" | "rate calibration";
+export type { AccelerationFitPoint, OmegaSource, TheoryCheckCircle, TheoryCheckInput, TheoryCheckResult, TheoryVerdict } from "./check-result";
+export { DEFAULT_TOLERANCE };
 
-export interface TheoryCheckInput {
-  /** Track in image px, t in s. Points without a finite time or position are left out. */
-  points: readonly { t: number; x: number; y: number }[];
-  setup: ViewGeometry;
-  /** Set rate, signed rad/s (counterclockwise seen from above positive). */
-  omegaSet: number;
-  /** The table's rate calibration in force, when there is one: the true rate at this set rate. */
-  omegaCalibrated?: { value: number; stdError: number; calibrationId?: number | string };
-  cameraMode: CameraMode;
-  /** s; time at which the lab and rotating frames coincide (default: the track's first time). */
-  t0?: number;
-  /** A flat (not paraboloidal) table: add the centrifugal term Ω²r to the model. */
-  flatTable?: boolean;
-  /**
-   * The timing check in force: every point's time (and t₀) is multiplied by factor before
-   * anything else, and relStdError·|f| joins f measured's standard error in quadrature.
-   */
-  frameTimes?: FrameTimeCorrection;
-  /** What was done with each calibration in force, in words; carried into the result unchanged. */
-  calibrationsApplied?: AppliedCalibration[];
-  settings?: {
-    /** Fraction of |f predicted| within which the measurement agrees (default 0.03). */
-    tolerance?: number;
-    /** Smoothing window in frames (odd); chosen from the frame rate and the rate when absent. */
-    window?: number;
-  };
-}
-
-export interface TheoryCheckCircle {
-  /** Circle centre in image px, as seen at t₀. */
-  cx: number;
-  cy: number;
-  radiusPx: number;
-  /** null without a scale */
-  radiusM: number | null;
-  /** s, one revolution about the fitted centre */
-  period: number | null;
-  rmsResidualPx: number;
-}
-
-export interface AccelerationFitPoint {
-  t: number;
-  /** rotating-frame velocity (m/s, or px/s without a scale) */
-  u: number;
-  v: number;
-  /** The Coriolis part of the acceleration, a + r·(u, v) (less Ω²r on a flat table): plotted
-   * against the rotated velocity (v, −u) its slope is f. */
-  coriolisX: number;
-  coriolisY: number;
-  /** measured acceleration less the centrifugal term */
-  ax: number;
-  ay: number;
-  axFitted: number;
-  ayFitted: number;
-  /** what f predicted (with the fitted drag) gives */
-  axPredicted: number;
-  ayPredicted: number;
-}
-
-export interface TheoryCheckResult {
-  /** rad/s, signed: the rate in force */
-  omega: number | null;
-  omegaSource: OmegaSource;
-  calibrationId: number | string | null;
-  /** s⁻¹, signed, 2Ω */
-  fPredicted: number | null;
-  fPredictedStdError: number | null;
-  /** s⁻¹, signed */
-  fMeasured: number | null;
-  /** the fit's standard error and the timing check's, in quadrature */
-  fStdError: number | null;
-  /** s⁻¹, the timing check's part of fStdError; null without a timing correction */
-  fStdErrorTiming: number | null;
-  /** the factor frame times were multiplied by; null when none was applied */
-  frameTimeFactor: number | null;
-  /** the calibrations frozen on the run and what the check did with each */
-  calibrationsApplied: AppliedCalibration[];
-  /** s⁻¹ */
-  drag: number | null;
-  dragStdError: number | null;
-  /** fMeasured / fPredicted */
-  ratio: number | null;
-  deflection: "right" | "left" | null;
-  verdict: TheoryVerdict;
-  reason: string;
-  circle: TheoryCheckCircle | null;
-  /** s, 2π/|turning rate of the velocity| */
-  periodFromAngle: number | null;
-  /** m, mean speed / |f predicted|; null without a scale */
-  predictedRadiusM: number | null;
-  /** points used */
-  nPoints: number;
-  /** points left out for want of a finite time or position, or for a repeated time */
-  nLeftOut: number;
-  /** unit of the series' lengths */
-  lengthUnit: "m" | "px";
-  settings: { window: number | null; polyOrder: number; tolerance: number };
-  /** 95 % interval of (f measured − f predicted)/f predicted; null when nothing was measured */
-  interval95: { low: number; high: number } | null;
-  /** the decision rule in words */
-  decisionRule: string;
-  series: {
-    rotating: TimedPoint[];
-    lab: TimedPoint[];
-    accelFit: AccelerationFitPoint[];
-    angle: { t: number; angle: number; fitted: number }[];
-    residuals: { t: number; rx: number; ry: number }[];
-  };
-}
-
-export const DEFAULT_TOLERANCE = 0.03;
 /** Shortest track worth judging, as a fraction of the inertial period. */
 export const MIN_PERIOD_FRACTION = 0.25;
 /**
@@ -138,12 +37,6 @@ export const MIN_PERIOD_FRACTION = 0.25;
 export const MAX_VELOCITY_NOISE_SHARE = 1 / 32;
 /** More than this fraction of unusable points means the track itself is in doubt. */
 const MAX_LEFT_OUT_FRACTION = 0.2;
-
-function pct(fraction: number, digits = 2): string {
-  return `${formatNumber(100 * fraction, digits)}%`;
-}
-
-const isFiniteNumber = (v: unknown): v is number => typeof v === "number" && Number.isFinite(v);
 
 /** Spread of points along and across their main direction (principal axes). */
 function principalSpread(points: readonly { x: number; y: number }[]): { major: number; minor: number } {
@@ -174,43 +67,6 @@ export function runTheoryCheck(input: TheoryCheckInput): TheoryCheckResult {
     const message = error instanceof Error ? error.message : String(error);
     return emptyResult(input, `The check could not be computed (${message}).`);
   }
-}
-
-function emptyResult(input: TheoryCheckInput, reason: string, partial: Partial<TheoryCheckResult> = {}): TheoryCheckResult {
-  const tolerance = input?.settings?.tolerance;
-  return {
-    omega: null,
-    omegaSource: input?.omegaCalibrated ? "rate calibration" : "set rate, uncalibrated",
-    calibrationId: input?.omegaCalibrated?.calibrationId ?? null,
-    fPredicted: null,
-    fPredictedStdError: null,
-    fMeasured: null,
-    fStdError: null,
-    fStdErrorTiming: null,
-    frameTimeFactor: null,
-    calibrationsApplied: Array.isArray(input?.calibrationsApplied) ? input.calibrationsApplied : [],
-    drag: null,
-    dragStdError: null,
-    ratio: null,
-    deflection: null,
-    verdict: "inconclusive",
-    reason,
-    circle: null,
-    periodFromAngle: null,
-    predictedRadiusM: null,
-    nPoints: 0,
-    nLeftOut: 0,
-    lengthUnit: input?.setup?.pxPerM === null || input?.setup?.pxPerM === undefined ? "px" : "m",
-    settings: {
-      window: null,
-      polyOrder: DEFAULT_POLY_ORDER,
-      tolerance: isFiniteNumber(tolerance) ? tolerance : DEFAULT_TOLERANCE,
-    },
-    interval95: null,
-    decisionRule: DECISION_RULE,
-    series: { rotating: [], lab: [], accelFit: [], angle: [], residuals: [] },
-    ...partial,
-  };
 }
 
 function check(input: TheoryCheckInput): TheoryCheckResult {
@@ -443,12 +299,6 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
   };
 
   // The verdict.
-  const combinedSE = Math.sqrt(fStdError ** 2 + fPredictedStdError ** 2);
-  const diff = fMeasured - fPredicted;
-  const rateWords = omegaSource === "rate calibration" ? "the rate calibration in force" : "the set rate (uncalibrated)";
-  const decimals = Math.min(12, Math.max(0, 1 - Math.floor(Math.log10(fStdError))));
-  const predictedText = fPredictedStdError > 0 ? formatWithError(fPredicted, fPredictedStdError) : formatFixed(fPredicted, decimals);
-  const numbers = `f measured ${formatWithError(fMeasured, fStdError)} s⁻¹, f predicted ${predictedText} s⁻¹ from ${rateWords}`;
   const notes: string[] = [];
   if (nLeftOut > 0) notes.push(`${nLeftOut} point${nLeftOut === 1 ? " was" : "s were"} left out for a missing or repeated frame time or position.`);
   if (isFiniteNumber(fit.dragStdError) && fit.drag < -2 * fit.dragStdError) {
@@ -459,29 +309,16 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
       `Frame times were multiplied by ${formatFixed(timeFactor, 5)} from the timing check in force${timing.calibrationId !== null && timing.calibrationId !== undefined ? ` (#${timing.calibrationId})` : ""}; its uncertainty is part of f measured's standard error.`,
     );
   }
-  const withNotes = (text: string) => [text, ...notes].join(" ");
-
-  const expectedSense = fPredicted > 0 ? "right" : "left";
-  const measuredSense = fMeasured > 0 ? "right" : "left";
-  const decision = decide({
-    d: diff / fPredicted,
-    s: combinedSE / Math.abs(fPredicted),
+  const judged = judgeF({
+    fMeasured,
+    fStdError,
+    fPredicted,
+    fPredictedStdError,
+    omegaSource,
     tolerance,
-    wrongSense: measuredSense !== expectedSense && Math.abs(fMeasured) > Z95 * fStdError,
+    cameraMode: input.cameraMode,
     nPoints: points.length,
     periods: duration / inertialPeriod,
   });
-  const interval95 = { low: decision.low, high: decision.high };
-  let reason: string;
-  const span = `the 95% interval of the difference (f measured − f predicted)/f predicted is ${percentRange(decision.low, decision.high)}`;
-  if (decision.verdict === "disagrees" && measuredSense !== expectedSense) {
-    reason = `${numbers}: the tracer is deflected to the ${measuredSense} of its motion, but a ${omega > 0 ? "counterclockwise" : "clockwise"} table deflects it to the ${expectedSense}. Check the view setup's mirror setting (a camera under the table or a mirrored image flips the sense) and the direction logged for the run.`;
-  } else if (decision.verdict === "agrees") {
-    reason = `${numbers}: they differ by ${pct(Math.abs(diff) / Math.abs(fPredicted))}, and ${span}, wholly within the ${pct(tolerance)} tolerance. The deflection is to the ${measuredSense} of the motion, as expected.`;
-  } else if (decision.verdict === "disagrees") {
-    reason = `${numbers}: they differ by ${pct(Math.abs(diff) / Math.abs(fPredicted))}, and ${span}, wholly outside the ${pct(tolerance)} tolerance. Check the rate in force${omegaSource === "set rate, uncalibrated" ? " (no rate calibration is in force)" : ""}, the frame times, ${input.cameraMode === "lab" ? "the rotation centre, " : ""}and that the tracer moved freely.`;
-  } else {
-    reason = `${numbers}: ${span}, which straddles the ${pct(tolerance)} tolerance, so the track cannot confirm or refute the theory (the uncertainty is ${pct(combinedSE / Math.abs(fPredicted))} of f). ${decision.advice}`;
-  }
-  return { ...measured, verdict: decision.verdict, reason: withNotes(reason), interval95, decisionRule: DECISION_RULE };
+  return { ...measured, ...judged, reason: [judged.reason, ...notes].join(" ") };
 }

@@ -6,7 +6,7 @@
  * outside ±τ, so a truth inside ±τ is called disagreeing at most 2.5 % of the time; otherwise
  * "inconclusive", with how much smaller s would have to be to decide.
  */
-import type { TheoryVerdict } from "./check";
+import type { TheoryVerdict } from "./check-result";
 import { formatNumber } from "../number-format";
 
 /** Two-sided 95 % normal quantile. */
@@ -33,7 +33,16 @@ export interface Decision {
 }
 
 /** The decision rule on the relative difference d with its combined standard error s. */
-export function decide(input: { d: number; s: number; tolerance: number; wrongSense?: boolean; nPoints?: number; periods?: number }): Decision {
+export function decide(input: {
+  d: number;
+  s: number;
+  tolerance: number;
+  wrongSense?: boolean;
+  nPoints?: number;
+  periods?: number;
+  /** several tracks combined: the advice speaks of each track, without a frame count */
+  tracks?: number;
+}): Decision {
   const { d, s, tolerance } = input;
   const low = d - Z95 * s;
   const high = d + Z95 * s;
@@ -51,12 +60,14 @@ export function decide(input: { d: number; s: number; tolerance: number; wrongSe
   const periods = input.periods ?? Number.NaN;
   const p = periods < 1 ? LENGTH_EXPONENT_SHORT : LENGTH_EXPONENT_LONG;
   const lengthFactor = factor ** (1 / p);
-  const n = input.nPoints;
+  const several = (input.tracks ?? 1) > 1;
+  const n = several ? undefined : input.nPoints;
   const framesText = n !== undefined ? ` (about ${Math.ceil(n * lengthFactor)} frames instead of ${n})` : "";
+  const longer = several ? `tracks each about ${formatNumber(lengthFactor, 3)}× longer` : `a track about ${formatNumber(lengthFactor, 3)}× longer`;
   return {
     verdict: "inconclusive",
     low,
     high,
-    advice: `The standard error would have to be ${formatNumber(factor, 3)}× smaller to decide: a track about ${formatNumber(lengthFactor, 3)}× longer at the same frame rate${framesText}, or tracking noise ${formatNumber(factor, 3)}× smaller, should do it.`,
+    advice: `The standard error would have to be ${formatNumber(factor, 3)}× smaller to decide: ${longer} at the same frame rate${framesText}, or tracking noise ${formatNumber(factor, 3)}× smaller, should do it.`,
   };
 }

@@ -63,7 +63,7 @@ async function checkedRun(overrides: Record<string, unknown> = {}, opts: { point
     jitterPx: 0.2,
   });
   await run.update({ state: "checked", verdict: "agrees" });
-  const { fingerprint } = await presentFingerprint(run, track);
+  const { fingerprint } = await presentFingerprint(run, [track]);
   if (!fingerprint) throw new Error("the fixture's track is not from the run's present inputs");
   await TheoryCheck.create({
     runId: run.id,
@@ -233,6 +233,9 @@ describe("GET and PATCH /api/v1/runs/:id", () => {
       checkStatus: "current",
       checkOutOfDate: null,
     });
+    // A check stored before every track was checked: its one result is its only per-track check, and nothing was combined.
+    expect(body.latestTheoryCheck.checks).toEqual([expect.objectContaining({ trackNumber: null, verdict: "agrees", fMeasuredPerS: 2.1, flagged: false })]);
+    expect(body.latestTheoryCheck.combination).toBeNull();
     expect(body.history[0]).toMatchObject({ field: "created", who: { name: "Ada Brightwater" } });
     expect((await call(runLoader, get("/api/v1/runs/999999", techToken), { id: "999999" })).status).toBe(404);
   });
@@ -283,12 +286,14 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
       expect(res.headers.get("Content-Type")).toMatch(/^text\/csv/);
       return (await res.text()).trim().split("\r\n");
     };
-    expect(await csv()).toEqual(["track_id,t_s,x_px,y_px", `${track.id},0,700,300`, `${track.id},0.5,650,250`]);
+    // The track's number in the run (1), not its database id.
+    expect(track.id).not.toBe(track.number);
+    expect(await csv()).toEqual(["track,t_s,x_px,y_px", "1,0,700,300", "1,0.5,650,250"]);
 
     // Co-rotating camera, centre (640, 360), 1000 px/m: x = (col − 640)/1000, y = −(row − 360)/1000.
     await ViewSetup.create(setupRow(run));
     const lines = await csv();
-    expect(lines[0]).toBe("track_id,t_s,x_px,y_px,x_m,y_m");
+    expect(lines[0]).toBe("track,t_s,x_px,y_px,x_m,y_m");
     const [, , , , xm, ym] = lines[2]!.split(",").map(Number);
     expect(xm).toBeCloseTo(0.01, 9);
     expect(ym).toBeCloseTo(0.11, 9);

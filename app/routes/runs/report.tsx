@@ -5,6 +5,8 @@ import { parseId } from "~/.server/http";
 import { requireUser } from "~/.server/auth/permissions";
 import { getRunDetailWithCheck, getSignOffView, getRunHistory } from "~/.server/runs/record";
 import { storedCheckResult } from "~/.server/runs/serialize";
+import { storedCheck } from "~/.server/runs/theory";
+import { TrackChecksTable } from "~/components/runs/theory-check-panel";
 import { Run } from "~/.server/db";
 import { currentCheck } from "~/.server/runs/current-check";
 import type { TheoryCheckResult } from "~/lib/analysis/check";
@@ -41,8 +43,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const usedPxPerM = (check?.result as { input?: { setup?: { pxPerM?: number | null } } } | null)?.input?.setup?.pxPerM;
   const plots =
     stored && setup ? { result: stored, setup: { centre: setup.centrePx, pxPerM: usedPxPerM ?? setup.scalePxPerM, mirrored: setup.mirrored } } : null;
+  // Every track's own check and how they were combined (a check from before this holds its one track).
+  const tracks = check && found.check ? (({ checks, combination }) => ({ checks, combination }))(storedCheck(found.check)) : null;
   return {
     run: { ...run, latestTheoryCheck: check ? { ...check, result } : null },
+    trackChecks: tracks,
     plots,
     usedPxPerM: usedPxPerM ?? null,
     signOff,
@@ -190,6 +195,11 @@ export default function RunReport({ loaderData }: Route.ComponentProps) {
         ) : (
           <p className="mt-2 text-muted">No theory check yet.</p>
         )}
+        {loaderData.trackChecks ? (
+          <div className="mt-4">
+            <TrackChecksTable check={loaderData.trackChecks} />
+          </div>
+        ) : null}
         {loaderData.plots ? (
           <div className="mt-4 print-break">
             <TheoryPlots result={loaderData.plots.result} setup={loaderData.plots.setup} />

@@ -319,10 +319,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
               <tbody>
                 {d.tracks.map((t) => (
                   <tr key={t.id} className={`border-b border-line ${t.id === longest?.id ? "font-bold" : ""}`}>
-                    <td className="py-2">
-                      #{t.number}
-                      {t.id === longest?.id ? " (checked)" : ""}
-                    </td>
+                    <td className="py-2">{t.number}</td>
                     <td className="py-2">{t.points}</td>
                     <td className="py-2">{formatNumber(t.duration, 3)} s</td>
                     <td className="py-2">{t.detectedShare === null ? "—" : `${formatNumber(t.detectedShare * 100, 3)} %`}</td>

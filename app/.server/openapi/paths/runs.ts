@@ -112,10 +112,10 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
     tags,
     summary: "The run's tracks as CSV",
     description:
-      "One row a point: track_id, t_s, x_px, y_px, and x_m, y_m in the rotating frame (origin on the axis, y up, seen from above) when the view setup has a scale.",
+      "One row a point: track (the track's number in the run, as tracks.items[].number), t_s, x_px, y_px, and x_m, y_m in the rotating frame (origin on the axis, y up, seen from above) when the view setup has a scale.",
     request: { params: ids("id") },
     responses: {
-      200: file("text/csv", "CSV", "track_id,t_s,x_px,y_px,x_m,y_m\r\n12,0,640.5,360.25,0.0412,-0.0107\r\n"),
+      200: file("text/csv", "CSV", "track,t_s,x_px,y_px,x_m,y_m\r\n1,0,640.5,360.25,0.0412,-0.0107\r\n"),
       404: noRun,
       409: error("The run has no tracks yet (no_tracks)."),
     },

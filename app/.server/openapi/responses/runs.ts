@@ -122,13 +122,57 @@ export const trackSummarySchema = z.strictObject({
   jitterPx: z.number().nullable(),
 });
 
+const trackNumber = z
+  .number()
+  .int()
+  .nullable()
+  .openapi({ description: "The track's number in its run (as tracks.items[].number); null in a check made before tracks were numbered in it." });
+
+export const trackCheckSchema = z
+  .strictObject({
+    trackNumber,
+    verdict: z.enum(verdicts),
+    fMeasuredPerS: z.number().nullable(),
+    fStdErrorPerS: z.number().nullable(),
+    dragPerS: z.number().nullable(),
+    dragStdErrorPerS: z.number().nullable(),
+    nPoints: z.number().int(),
+    combined: z.boolean().openapi({ description: "Whether its f went into the combined estimate (a track too short or too noisy to fit does not)." }),
+    pull: z.number().nullable().openapi({ description: "(f − f combined)/its standard error; null when left out or alone." }),
+    flagged: z.boolean().openapi({ description: "It disagrees with the other tracks beyond its error." }),
+    reason: z.string(),
+  })
+  .openapi("TrackCheck");
+
+export const trackCombinationSchema = z
+  .strictObject({
+    n: z.number().int().openapi({ description: "Tracks combined." }),
+    of: z.number().int().openapi({ description: "Tracks checked." }),
+    representativeTrack: z.number().int().openapi({ description: "The track whose plots, circle and drag the combined check carries." }),
+    fMeanPerS: z.number().openapi({ description: "Inverse-variance weighted mean of the combined tracks' f." }),
+    stdErrorPerS: z.number().openapi({ description: "Its standard error from the fits, before widening." }),
+    chi2: z.number(),
+    dof: z.number().int(),
+    birgeRatio: z.number().nullable().openapi({ description: "√(χ²/(n − 1)); null for one track." }),
+    pValue: z.number().nullable(),
+    scale: z.number().openapi({ description: "What the standard error was multiplied by: the Birge ratio when above 1, else 1." }),
+    consistent: z.boolean(),
+    words: z.string(),
+  })
+  .openapi("TrackCombination");
+
 export const theoryCheckSummarySchema = z
   .strictObject({
     id: z.number().int(),
     trackId: z.number().int().nullable(),
+    trackNumber,
     verdict: z.enum(verdicts),
     fMeasuredPerS: z.number().nullable(),
     fPredictedPerS: z.number().nullable(),
+    checks: z.array(trackCheckSchema).openapi({ description: "Every track's own check; the verdict above is the combined one." }),
+    combination: trackCombinationSchema
+      .nullable()
+      .openapi({ description: "How the tracks were combined; null when none could be fitted, or for a check made before every track was checked." }),
     codeVersion: z.string(),
     createdAt: isoTime(),
   })

@@ -4,7 +4,7 @@ import { sessionStorage } from "../auth/session";
 import { setLabSetting } from "../settings";
 import { stopTrackingQueue, whenTrackingIdle } from "../jobs/tracking-queue";
 import { currentCheck } from "./current-check";
-import { holdRechecks, inputsChanged, recheckUnfingerprinted, whenRechecksIdle } from "./rechecks";
+import { holdRechecks, inputsChanged, recheckSingleTrackChecks, recheckUnfingerprinted, whenRechecksIdle } from "./rechecks";
 import { getRunDetail, getRunExport, signOffRun } from "./record";
 import { listRuns } from "./queries";
 import { checkedRunFor, runInput, seedRunLab, type RunLab } from "./testing";
@@ -160,5 +160,31 @@ describe("checks made before fingerprints were kept", () => {
     expect((await currentCheck(moved.run.id)).status).toBe("out_of_date");
     expect((await Run.findByPk(moved.run.id))!.verdict).toBeNull();
     expect(await Track.count({ where: { runId: moved.run.id } })).toBe(1);
+  });
+});
+
+describe("checks made when only the longest track was fitted", () => {
+  it("are fitted again over every track at start on unsigned runs; a signed-off run keeps its signed check", async () => {
+    const open = await checkedRunFor(lab, lab.technician, {}, 10);
+    const signed = await checkedRunFor(lab, lab.technician, {}, 10);
+    await signOffRun(signed.run.id, lab.manager);
+    // As such a check was stored: one track's result, no per-track checks, a fingerprint over that one track.
+    for (const c of [open.check, signed.check]) {
+      const stored = JSON.parse(c.result) as Record<string, unknown>;
+      delete stored.checks;
+      delete stored.combination;
+      await c.update({ result: JSON.stringify(stored), inputFingerprint: "fingerprint-over-the-longest-track-only" });
+    }
+    expect((await currentCheck(open.run.id)).status).toBe("out_of_date");
+
+    expect(await recheckSingleTrackChecks()).toBe(1);
+    await whenRechecksIdle();
+    const refit = await currentCheck(open.run.id);
+    expect(refit.status).toBe("current");
+    expect(refit.check!.id).toBeGreaterThan(open.check.id);
+    expect((JSON.parse(refit.check!.result) as { checks?: unknown[] }).checks?.length).toBeGreaterThan(0);
+    expect(await currentCheck(signed.run.id)).toMatchObject({ status: "current", check: { id: signed.check.id } });
+    // Once fitted over every track, nothing is left to redo.
+    expect(await recheckSingleTrackChecks()).toBe(0);
   });
 });

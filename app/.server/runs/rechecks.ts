@@ -113,11 +113,38 @@ export async function recheckUnfingerprinted() {
   return count;
 }
 
+/**
+ * Checks made when only the longest track was fitted (their stored result has no per-track
+ * `checks`) were fingerprinted over that one track, so every unsigned one reads as out of date
+ * once every track is an input. At start each unsigned run whose latest check is such a check is
+ * fitted again over all its tracks; signed-off runs keep their signed check, which still reads
+ * (its one track is its only per-track check).
+ */
+export async function recheckSingleTrackChecks() {
+  const checked = await TheoryCheck.findAll({ attributes: ["runId"], group: ["runId"] });
+  const ids = checked.map((c) => c.runId);
+  if (!ids.length) return 0;
+  const runs = await Run.findAll({ where: { id: { [Op.in]: ids }, state: { [Op.ne]: "signed_off" } }, attributes: ["id"] });
+  let count = 0;
+  for (const { id } of runs) {
+    const latest = await latestCheck(id, { attributes: ["id", "result", "inputFingerprint"] });
+    // Checks with no fingerprint at all are recheckUnfingerprinted's.
+    if (!latest || latest.inputFingerprint === null) continue;
+    if ((JSON.parse(latest.result) as { checks?: unknown }).checks) continue;
+    await Run.update({ verdict: null }, { where: { id } });
+    scheduleRecheck(id, null, "fit");
+    count++;
+  }
+  return count;
+}
+
 onBoot({
   name: "legacy-rechecks",
   start: async () => {
     const count = await recheckUnfingerprinted();
     if (count) console.log(`[runs] re-checking ${count} run(s) whose check predates input fingerprints`);
+    const single = await recheckSingleTrackChecks();
+    if (single) console.log(`[runs] re-checking ${single} run(s) whose check fitted one track only`);
   },
 });
 

@@ -84,11 +84,9 @@ export const frameRemovalSchema = z
       z.strictObject({ id: z.number().int(), position: z.number().int().openapi({ description: "Its position before the removal." }), name: z.string() }),
     ),
     frameCount: z.number().int().openapi({ description: "Frames left; they are numbered 0 … frameCount − 1 again, in the order they had." }),
-    retracking: z
-      .boolean()
-      .openapi({
-        description: "Tracking was queued again (the run had been tracked, and a view setup and at least 3 frames remain); it ends in a new theory check.",
-      }),
+    retracking: z.boolean().openapi({
+      description: "Tracking was queued again (the run had been tracked, and a view setup and at least 3 frames remain); it ends in a new theory check.",
+    }),
   })
   .openapi("FrameRemoval");
 export type FrameRemovalView = z.infer<typeof frameRemovalSchema>;

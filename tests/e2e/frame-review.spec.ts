@@ -94,7 +94,7 @@ test("a technician nudges the view setup's marks with the keys, steps through th
   await page.keyboard.press("ArrowRight");
   await page.keyboard.press("ArrowRight");
   await expect(position).toContainText("Frame 3 of 60");
-  await expect(position).toContainText("tracer found (track #1)");
+  await expect(position).toContainText("tracer found (track 1)");
   await expect(page.getByTestId("frame-overlay").getByTestId("overlay-point")).toHaveCount(1);
   await expect(page.getByTestId("overlay-rim")).toHaveCount(1);
   await page.keyboard.press("End");

@@ -72,7 +72,7 @@ export function FrameViewer({
       ? "tracks out of date (made from another stack)"
       : "not tracked yet"
     : here.length
-      ? `tracer found (track ${here.map((n) => `#${n}`).join(", ")})`
+      ? `tracer found (${here.length === 1 ? "track" : "tracks"} ${here.join(", ")})`
       : "tracer not found";
 
   return (

@@ -1,4 +1,5 @@
 import type { RunHistoryEntry } from "~/.server/runs/record";
+import { ScrollRegion } from "~/components/ui/scroll-region";
 import { useLabTime } from "~/components/lab-time";
 
 function value(v: string | null) {
@@ -13,43 +14,46 @@ export function RunHistoryList({ entries, events = ["created"], testId = "run-hi
   const time = useLabTime();
   if (!entries.length) return <p className="text-muted">No changes recorded.</p>;
   return (
-    <table className="w-full text-left" data-testid={testId}>
-      <thead className="border-b-2 border-line-strong">
-        <tr>
-          <th scope="col" className="py-2 pr-3">
-            When
-          </th>
-          <th scope="col" className="py-2 pr-3">
-            Who
-          </th>
-          <th scope="col" className="py-2 pr-3">
-            What
-          </th>
-          <th scope="col" className="py-2">
-            Change
-          </th>
-        </tr>
-      </thead>
-      <tbody className="divide-y divide-line">
-        {entries.map((e) => (
-          <tr key={e.id}>
-            <td className="py-2 pr-3 whitespace-nowrap">{time.dateTime(e.at)}</td>
-            <td className="py-2 pr-3">{e.who?.name ?? "Tankside"}</td>
-            <td className="py-2 pr-3">{e.fieldLabel}</td>
-            <td className="py-2">
-              {events.includes(e.field) ? (
-                e.newValue === null ? null : (
-                  value(e.newValue)
-                )
-              ) : (
-                <>
-                  {value(e.oldValue)} <span aria-label="changed to">→</span> {value(e.newValue)}
-                </>
-              )}
-            </td>
+    // A long change scrolls inside its card on a phone instead of widening the page.
+    <ScrollRegion label="History">
+      <table className="w-full text-left" data-testid={testId}>
+        <thead className="border-b-2 border-line-strong">
+          <tr>
+            <th scope="col" className="py-2 pr-3">
+              When
+            </th>
+            <th scope="col" className="py-2 pr-3">
+              Who
+            </th>
+            <th scope="col" className="py-2 pr-3">
+              What
+            </th>
+            <th scope="col" className="py-2">
+              Change
+            </th>
           </tr>
-        ))}
-      </tbody>
-    </table>
+        </thead>
+        <tbody className="divide-y divide-line">
+          {entries.map((e) => (
+            <tr key={e.id}>
+              <td className="py-2 pr-3 whitespace-nowrap">{time.dateTime(e.at)}</td>
+              <td className="py-2 pr-3">{e.who?.name ?? "Tankside"}</td>
+              <td className="py-2 pr-3">{e.fieldLabel}</td>
+              <td className="py-2">
+                {events.includes(e.field) ? (
+                  e.newValue === null ? null : (
+                    value(e.newValue)
+                  )
+                ) : (
+                  <>
+                    {value(e.oldValue)} <span aria-label="changed to">→</span> {value(e.newValue)}
+                  </>
+                )}
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </ScrollRegion>
   );
 }

@@ -344,7 +344,7 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         </Card>
       ) : null}
 
-      <div className="grid gap-6 xl:grid-cols-2">
+      <div className="grid grid-cols-1 gap-6 xl:grid-cols-2">
         <Card>
           <SignOffPanel runId={run.id} signOff={d.record.signOff} />
         </Card>

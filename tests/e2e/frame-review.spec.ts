@@ -1,6 +1,6 @@
 import fs from "node:fs";
 import { expect, test } from "@playwright/test";
-import { apiAs, people, signIn } from "./helpers";
+import { apiAs, people, signIn, logRunThroughForm } from "./helpers";
 import { renderStackToDir } from "../fixtures/render-stack";
 
 test("a technician nudges the view setup's marks with the keys, steps through the frames with the keyboard, removes one, and the check is made again", async ({
@@ -10,26 +10,7 @@ test("a technician nudges the view setup's marks with the keys, steps through th
   test.setTimeout(300_000);
   const stack = await renderStackToDir({ frames: 60, rpm: 15 });
   const tech = await apiAs(baseURL!, people.tech);
-  const equipment = (await (await tech.get("/api/v1/equipment")).json()) as { id: number; kind: string; status: string }[];
-  const pick = (kind: string) => equipment.find((e) => e.kind === kind && e.status === "in_service")!.id;
-  const created = await tech.post("/runs/new", {
-    form: {
-      tableId: String(pick("table")),
-      tankId: String(pick("tank")),
-      cameraId: String(pick("camera")),
-      setRateRpm: "15",
-      direction: "ccw",
-      waterDepthCm: "10",
-      waterTemperatureC: "20",
-      cameraMode: "rotating",
-      frameRateFps: "30",
-      tracer: "float",
-      purpose: "Frame review in the browser",
-    },
-    maxRedirects: 0,
-  });
-  expect(created.status()).toBe(302);
-  const runId = Number(created.headers()["location"]!.split("/").pop());
+  const runId = await logRunThroughForm(tech, { setRateRpm: "15", purpose: "Frame review in the browser" });
   for (const file of stack.files) {
     const up = await tech.post(`/api/v1/runs/${runId}/frames`, {
       multipart: { file: { name: file.split("/").pop()!, mimeType: "image/png", buffer: fs.readFileSync(file) } },

@@ -23,6 +23,33 @@ export async function apiAs(baseURL: string, email: string, password = DEMO_PASS
   return ctx;
 }
 
+/**
+ * Logs a run through the new-run form (as the page posts it) on the demo lab's first in-service
+ * table, tank and camera: a float at 10 cm and 20 °C, a co-rotating camera at 30 frames/s, turning
+ * counterclockwise; `setRateRpm` and `purpose` say what the test is about. Returns the run's id.
+ */
+export async function logRunThroughForm(api: APIRequestContext, fields: { setRateRpm: string; purpose: string }): Promise<number> {
+  const equipment = (await (await api.get("/api/v1/equipment")).json()) as { id: number; kind: string; status: string }[];
+  const pick = (kind: string) => equipment.find((e) => e.kind === kind && e.status === "in_service")!.id;
+  const created = await api.post("/runs/new", {
+    form: {
+      tableId: String(pick("table")),
+      tankId: String(pick("tank")),
+      cameraId: String(pick("camera")),
+      direction: "ccw",
+      waterDepthCm: "10",
+      waterTemperatureC: "20",
+      cameraMode: "rotating",
+      frameRateFps: "30",
+      tracer: "float",
+      ...fields,
+    },
+    maxRedirects: 0,
+  });
+  expect(created.status()).toBe(302);
+  return Number(created.headers()["location"]!.split("/").pop());
+}
+
 export interface CapturedMessage {
   id: number;
   to: string[];

@@ -1,7 +1,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import { expect, test } from "@playwright/test";
-import { apiAs, people, signIn } from "./helpers";
+import { apiAs, people, signIn, logRunThroughForm } from "./helpers";
 import { renderStackToDir } from "../fixtures/render-stack";
 
 test("a technician logs a run, brings a frame stack, sets the view, tracks it and reads the verdict", async ({ page }) => {
@@ -78,26 +78,7 @@ test("a technician logs a run, brings a frame stack, sets the view, tracks it an
 
 test("the tracking route explains why a run cannot be tracked yet", async ({ baseURL }) => {
   const tech = await apiAs(baseURL!, people.tech);
-  const equipment = (await (await tech.get("/api/v1/equipment")).json()) as { id: number; kind: string; status: string; name: string }[];
-  const pick = (kind: string) => equipment.find((e) => e.kind === kind && e.status === "in_service")!.id;
-  const created = await tech.post("/runs/new", {
-    form: {
-      tableId: String(pick("table")),
-      tankId: String(pick("tank")),
-      cameraId: String(pick("camera")),
-      setRateRpm: "10",
-      direction: "ccw",
-      waterDepthCm: "10",
-      waterTemperatureC: "20",
-      cameraMode: "rotating",
-      frameRateFps: "30",
-      tracer: "float",
-      purpose: "No frames yet",
-    },
-    maxRedirects: 0,
-  });
-  expect(created.status()).toBe(302);
-  const runId = Number(created.headers()["location"]!.split("/").pop());
+  const runId = await logRunThroughForm(tech, { setRateRpm: "10", purpose: "No frames yet" });
   const start = await tech.post(`/api/v1/runs/${runId}/tracking`);
   expect(start.status()).toBe(409);
   expect((await start.json()).error).toMatchObject({ code: "no_frames", message: expect.stringContaining("no frames yet") });

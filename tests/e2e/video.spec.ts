@@ -1,7 +1,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import { expect, test, type Page } from "@playwright/test";
-import { apiAs, people, signIn } from "./helpers";
+import { apiAs, people, signIn, logRunThroughForm } from "./helpers";
 import { renderVideo, type VideoKind } from "../fixtures/render-video";
 import { renderStackToDir } from "../fixtures/render-stack";
 
@@ -62,26 +62,7 @@ test("a frame time that is not a finite number of seconds from 0 up to 1e5 is re
   const stack = await renderStackToDir({ frames: 1, rpm: 15 });
   const png = fs.readFileSync(stack.files[0]!);
   const tech = await apiAs(baseURL!, people.tech);
-  const equipment = (await (await tech.get("/api/v1/equipment")).json()) as { id: number; kind: string; status: string }[];
-  const pick = (kind: string) => equipment.find((e) => e.kind === kind && e.status === "in_service")!.id;
-  const created = await tech.post("/runs/new", {
-    form: {
-      tableId: String(pick("table")),
-      tankId: String(pick("tank")),
-      cameraId: String(pick("camera")),
-      setRateRpm: "15",
-      direction: "ccw",
-      waterDepthCm: "10",
-      waterTemperatureC: "20",
-      cameraMode: "rotating",
-      frameRateFps: "30",
-      tracer: "float",
-      purpose: "Frame times checked",
-    },
-    maxRedirects: 0,
-  });
-  expect(created.status()).toBe(302);
-  const runId = Number(created.headers()["location"]!.split("/").pop());
+  const runId = await logRunThroughForm(tech, { setRateRpm: "15", purpose: "Frame times checked" });
   const send = (timeS: string) =>
     tech.post(`/api/v1/runs/${runId}/frames`, { multipart: { file: { name: "frame_1.png", mimeType: "image/png", buffer: png }, timeS } });
   for (const [timeS, message] of [

@@ -19,9 +19,21 @@ const widths = [
   { name: "phone", width: 390, height: 844 },
 ] as const;
 
-/** One line per failing node: what to fix, where, and the rule's own explanation. */
+/**
+ * One line per failing node: what to fix, where, and the rule's own explanation.
+ *
+ * Legacy mode runs axe.run in the page itself instead of gathering partial results and finishing
+ * them in a new blank page, which @axe-core/playwright otherwise opens for every analysis; it only
+ * gives up testing cross-origin frames, and Tankside's pages have none. Only violations are read, so
+ * only violations are collected in full (`resultTypes`): the same rules run on the same nodes. Both
+ * halved the time of an analysis here (/runs: 4.1–5.3 s to 2.0–2.5 s on the loaded 2-core machine).
+ */
 async function seriousViolations(page: Page, widthName: string): Promise<string[]> {
-  const results = await new AxeBuilder({ page }).withTags(wcagTags).analyze();
+  const results = await new AxeBuilder({ page })
+    .withTags(wcagTags)
+    .setLegacyMode(true)
+    .options({ resultTypes: ["violations"] })
+    .analyze();
   const lines: string[] = [];
   for (const v of results.violations) {
     if (!v.impact || !failingImpacts.has(v.impact)) continue;

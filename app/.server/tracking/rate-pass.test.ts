@@ -93,6 +93,23 @@ describe("the table's rate from JPEG frames, by the rate pass", () => {
     expect(Math.abs(r.measuredOmega! - omegaSet)).toBeGreaterThan(10 * r.measuredOmegaSe!);
   });
 
+  it("stops at the first frame when the view shows no surroundings, without reading the others", async () => {
+    const written = await writeSyntheticStack(path.join(dir, "filled"), stack("rotating", 1), { format: "jpeg", quality: 90 });
+    // The second file does not exist: reading it would end in "could not be read", not the view's reason.
+    const r = await measureRateFromFrames({
+      files: [...written.files, path.join(dir, "filled", "never-written.jpg")],
+      times: [...written.times, 1],
+      cameraMode: "rotating",
+      centre,
+      mirrored: false,
+      tankEdge: { cx: centre.x, cy: centre.y, r: 118 },
+      rateMark: null,
+      omegaSet,
+    });
+    expect(r.measuredOmegaMethod).toBe("surroundings");
+    expect(r.measuredOmegaNote).toMatch(/tank fills the frame/);
+  });
+
   it("says why when the view allows no reading", async () => {
     const base = { files: [], times: [], centre, mirrored: false, omegaSet };
     expect((await measureRateFromFrames({ ...base, cameraMode: "lab", tankEdge: null, rateMark: null })).measuredOmegaNote).toMatch(/No mark on the table/);

@@ -59,7 +59,7 @@ export function beyondTankEdge(centre: { x: number; y: number }, edge: TankEdge)
 
 export async function measureRateFromFrames(input: RatePassInput): Promise<MeasuredRateColumns> {
   if (!Number.isFinite(input.omegaSet) || input.omegaSet === 0) return noRate("The set rate is zero or missing: there is no turning to read.");
-  let follower: { add(t: number, image: GreyImage): void; result(): OmegaFromMark };
+  let follower: { add(t: number, image: GreyImage): void; gaveUp?: () => string | null; result(): OmegaFromMark };
   let method: RateMethod;
   if (input.cameraMode === "lab") {
     if (!input.rateMark) return noRate("No mark on the table was marked in the view setup, so the rate was not read from the frames.");
@@ -80,6 +80,8 @@ export async function measureRateFromFrames(input: RatePassInput): Promise<Measu
     for (let i = 0; i < input.files.length; i += step) {
       if (input.signal?.aborted) return noRate("The reading of the rate was stopped.", method);
       follower.add(input.times[i]!, await grey(input.files[i]!));
+      // A view with no surroundings to follow says so at the first frame: the rest need not be read.
+      if (follower.gaveUp?.()) break;
     }
   } catch (error) {
     return noRate(`The frames could not be read for the rate (${error instanceof Error ? error.message : String(error)}).`, method);

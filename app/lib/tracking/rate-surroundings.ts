@@ -25,6 +25,8 @@ export interface SurroundingsFollower {
   add(t: number, image: GreyImage): void;
   /** Turn of the surroundings since the first frame, rad, as seen (positive: the table turned counterclockwise). */
   turns(): { t: number; angle: number; correlation: number }[];
+  /** Why no later frame can help (the view shows no surroundings), once the first frame told; else null. */
+  gaveUp(): string | null;
   result(): OmegaFromMark;
 }
 
@@ -144,6 +146,7 @@ export function createSurroundingsFollower(options: SurroundingsOptions): Surrou
       found.push({ t, angle: (centreBin - reach + bestAt + offset) * binWidth, correlation: best });
     },
     turns: () => found.slice(),
+    gaveUp: () => problem,
     result() {
       const none = (reason: string): OmegaFromMark => ({ omega: null, stdError: null, turns: 0, nPoints: found.length, reason });
       if (problem) return none(problem);

@@ -14,6 +14,11 @@ export const databaseFree = [
   { glob: "app/.server/storage/startup-check.test.ts", why: "start-up refusals, on SQLite files of its own" },
   { glob: "tests/unit/pg-cluster.test.ts", why: "the test cluster script (skips itself on PostgreSQL)" },
   { glob: "tests/unit/server-guards.test.ts", why: "the HTTP guards of server.mjs" },
+  {
+    glob: "tests/unit/demo-start.test.ts",
+    why: "npm run demo until the server would start: its secret, the build check, signals",
+    children: ["scripts/demo.mjs"],
+  },
   { glob: "tests/unit/compressed-answers.test.ts", why: "long answers through the compression middleware, on a server of its own" },
 ];
 

@@ -3,7 +3,6 @@
 // that; apart from server.mjs so it can be tested without a server (OWASP ASVS 4.0.3 V12.1.1,
 // RFC 9110 §15.5.14 "413 Content Too Large").
 import { createRequestHandler as createReactRouterHandler } from "react-router";
-import { writeReadableStreamToWritable } from "@react-router/node";
 
 const KiB = 1024;
 const MiB = 1024 * KiB;
@@ -196,10 +195,62 @@ async function sendWebResponse(res, response) {
   if (response.headers.get("Content-Type")?.match(/text\/event-stream/i)) res.flushHeaders();
   if (!response.body) return void res.end();
   try {
-    await writeReadableStreamToWritable(response.body, res);
+    await writeBody(response.body, res);
   } catch (err) {
     if (res.destroyed || res.writableEnded) return;
     throw err;
+  }
+}
+
+/**
+ * Writes a web body to the response, flushing each chunk (streamed pages arrive as they render) and
+ * waiting for 'drain' when the response's buffer is full. It keeps ONE 'drain' listener for the whole
+ * response: the compression middleware passes `res.on("drain")` to its zlib stream but not
+ * `res.off`, so a writer that adds and removes a listener per wait (as @react-router/node's does)
+ * leaves one behind at every wait, and a long compressed answer passed Node's limit of ten
+ * (MaxListenersExceededWarning).
+ */
+export async function writeBody(body, res) {
+  const reader = body.getReader();
+  let wake = () => {};
+  let failClosed = () => {};
+  const closedError = () => new Error("The response closed before its body was written.");
+  // Settles only when the client leaves, so a read that waits on a quiet stream does not wait forever.
+  const whenClosed = new Promise((_, reject) => (failClosed = () => reject(closedError())));
+  whenClosed.catch(() => {});
+  const onDrain = () => wake();
+  const onClose = () => {
+    failClosed();
+    wake();
+  };
+  res.on("drain", onDrain);
+  res.on("close", onClose);
+  try {
+    for (;;) {
+      if (res.destroyed) throw closedError();
+      const { done, value } = await Promise.race([reader.read(), whenClosed]);
+      if (done) {
+        res.end();
+        return;
+      }
+      if (res.destroyed) throw closedError();
+      const canContinue = res.write(value);
+      if (typeof res.flush === "function") res.flush();
+      if (!canContinue) await Promise.race([new Promise((resolve) => (wake = resolve)), whenClosed]);
+      wake = () => {};
+    }
+  } catch (err) {
+    reader.cancel(err).catch(() => {});
+    if (!res.destroyed) res.destroy(err);
+    throw err;
+  } finally {
+    res.off("drain", onDrain);
+    res.off("close", onClose);
+    try {
+      reader.releaseLock();
+    } catch {
+      // A read still pending after cancel keeps the lock; the stream is finished with either way.
+    }
   }
 }
 

@@ -1,5 +1,6 @@
 // Tankside's HTTP server: security headers and the same-origin check in front of React Router.
 import crypto from "node:crypto";
+import http from "node:http";
 import express from "express";
 import compression from "compression";
 import { loadContext, noStore, sameOriginOnly, servedMethodsOnly, strictTransport } from "./server-guards.mjs";
@@ -91,9 +92,23 @@ app.all(
   }),
 );
 
-const server = app.listen(port, host, () => {
-  console.log(`[tankside] serving on http://${host === "0.0.0.0" ? "localhost" : host}:${port}`);
-});
+const address = `http://${host === "0.0.0.0" ? "localhost" : host}:${port}`;
+let server;
+if (process.env.TANKSIDE_SOCKET_FROM_PARENT === "1" && process.send) {
+  // `npm run demo` has been answering on the port ("getting ready") while this process started: it
+  // hands over its listening socket, so no connection is refused between the two.
+  server = http.createServer(app);
+  process.on("message", (message, handle) => {
+    if (message?.tankside !== "socket" || !handle) return;
+    server.listen(handle, () => {
+      console.log(`[tankside] serving on ${address}`);
+      process.send?.({ tankside: "listening" });
+    });
+  });
+  process.send({ tankside: "ready" });
+} else {
+  server = app.listen(port, host, () => console.log(`[tankside] serving on ${address}`));
+}
 
 let stopping = false;
 async function stop(signal) {

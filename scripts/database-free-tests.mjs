@@ -8,12 +8,19 @@ export const databaseFree = [
   { glob: "app/lib/**", why: "the pure library" },
   // Tracking and the theory check on rendered stacks: frames on disk, the tracking pool, no run rows.
   { glob: "app/.server/tracking/track-frame-stack.test.ts", why: "tracking on frame stacks written to a temporary folder" },
+  { glob: "app/.server/tracking/worker-bundle.test.ts", why: "tracking threads on a stack in a temporary folder, and the processes they leave" },
   { glob: "app/.server/tracking/theory-on-rendered-stacks.test.ts", why: "tracking and the check on rendered stacks in a temporary folder" },
   { glob: "app/.server/cli/**", why: "the command-line analysis of a frame folder", children: ["app/.server/cli/analyze.ts"] },
   // It starts servers with SQLite files of their own whatever the pass, so a second pass repeats it.
   { glob: "app/.server/storage/startup-check.test.ts", why: "start-up refusals, on SQLite files of its own" },
   { glob: "tests/unit/pg-cluster.test.ts", why: "the test cluster script (skips itself on PostgreSQL)" },
   { glob: "tests/unit/server-guards.test.ts", why: "the HTTP guards of server.mjs" },
+  {
+    glob: "tests/unit/demo-start.test.ts",
+    why: "npm run demo until the server would start: its secret, the build check, signals",
+    children: ["scripts/demo.mjs"],
+  },
+  { glob: "tests/unit/compressed-answers.test.ts", why: "long answers through the compression middleware, on a server of its own" },
 ];
 
 export const databaseFreeTests = databaseFree.map((d) => d.glob);

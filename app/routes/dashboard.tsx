@@ -2,6 +2,8 @@ import { Link } from "react-router";
 import type { Route } from "./+types/dashboard";
 import { requireUser } from "~/.server/auth/permissions";
 import { getDashboard } from "~/.server/dashboard";
+import { demoPreparation } from "~/.server/demo-lab";
+import { DemoPreparation } from "~/components/demo-preparation";
 import type { RunListItem } from "~/.server/runs/queries";
 import { ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
@@ -15,7 +17,7 @@ export const meta: Route.MetaFunction = () => [{ title: "Today · Tankside" }];
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
-  return { user, dashboard: await getDashboard(user) };
+  return { user, dashboard: await getDashboard(user), demo: demoPreparation() };
 }
 
 function RunLines({ items, empty }: { items: RunListItem[]; empty: string }) {
@@ -74,7 +76,7 @@ function QueueCard({
 
 export default function Dashboard({ loaderData }: Route.ComponentProps) {
   const time = useLabTime();
-  const { user, dashboard: d } = loaderData;
+  const { user, dashboard: d, demo } = loaderData;
   const logsRuns = user.role !== "instructor";
   return (
     <div>
@@ -93,6 +95,7 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
           </>
         }
       />
+      <DemoPreparation progress={demo} />
 
       <div className="grid gap-6 lg:grid-cols-2">
         <Card

@@ -35,6 +35,7 @@ const scatter = [0.006, -0.009, 0.004, 0.008, -0.007];
 
 addDemoStep({
   name: "calibrations and bookings",
+  order: 2,
   async run() {
     const user = (email: string) => find("user", email);
     const [manager, tech, tech2, instructor, instructor2] = await Promise.all([

@@ -92,6 +92,7 @@ export const demoEquipment: Row[] = [
 
 addDemoStep({
   name: "equipment",
+  order: 1,
   async run() {
     for (const row of demoEquipment) await Equipment.create(row);
   },

@@ -15,6 +15,7 @@ import { trackingQuality } from "../../lib/tracking/quality";
 import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup } from "../../lib/tracking/types";
 import { decodeFrame, readFrameSize } from "./decode-frame";
 import { TrackingError } from "./errors";
+import { bundledWorker } from "./worker-bundle";
 import type { TrackTask, TrackTaskResult } from "./track-worker";
 
 export interface TrackFrameStackInput {
@@ -59,10 +60,11 @@ interface TrackingPool {
 let pool: TrackingPool | null = null;
 
 /**
- * The worker runs from its TypeScript source through tsx, so it imports the same library code as
- * the routes and the command line. A bundled server has no copy beside it: fall back to the
- * source tree under the working directory. The name sits in a variable so that the bundler does
- * not take `new URL(…, import.meta.url)` for an asset and copy the file away from its imports.
+ * The worker is bundled from its TypeScript source at the first job (worker-bundle.ts), so it runs
+ * the same library code as the routes and the command line. A bundled server has no copy beside
+ * it: fall back to the source tree under the working directory. The name sits in a variable so
+ * that the bundler does not take `new URL(…, import.meta.url)` for an asset and copy the file away
+ * from its imports.
  */
 const workerName = "track-worker.ts";
 
@@ -74,19 +76,13 @@ function workerFile(): string {
   throw new Error(`The tracking worker was not found at ${beside} or ${inSource}.`);
 }
 
-function tsxLoader(): string {
-  try {
-    return import.meta.resolve("tsx");
-  } catch {
-    return "tsx";
-  }
-}
-
-function trackingPool(): TrackingPool {
+async function trackingPool(): Promise<TrackingPool> {
+  if (pool) return pool;
+  const filename = await bundledWorker(workerFile());
+  // Another job may have made the pool while the bundle was being made.
   if (pool) return pool;
   const piscina = new Piscina<TrackTask, TrackTaskResult>({
-    filename: workerFile(),
-    execArgv: ["--import", tsxLoader()],
+    filename,
     minThreads: 0,
     maxThreads: threads,
     // Idle workers give back their OpenCV heaps after a while; a new job pays ~0.5 s to reload.
@@ -104,8 +100,9 @@ function trackingPool(): TrackingPool {
     reject(new Error(`The tracking workers stopped: ${reason}`));
     piscina.destroy().catch(() => {});
   });
-  pool = { piscina, failed };
-  return pool;
+  const made: TrackingPool = { piscina, failed };
+  pool = made;
+  return made;
 }
 
 function runTask(workers: TrackingPool, task: TrackTask, transferList?: ArrayBuffer[]): Promise<TrackTaskResult> {
@@ -244,7 +241,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   const { width, height } = await readFrameSize(files[0]!, 0);
   const plan = makePlan(setup, width, height);
   const key = planKey(plan);
-  const workers = trackingPool();
+  const workers = await trackingPool();
   const arrived = new Int32Array(new SharedArrayBuffer(4));
   const warmUp = Promise.all(Array.from({ length: threads }, () => runTask(workers, { kind: "warm-up", arrived, expected: threads })));
   warmUp.catch(() => {});

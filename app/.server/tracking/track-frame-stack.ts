@@ -187,7 +187,7 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
       }
     }),
   );
-  const median = async (exclusions?: ExclusionSet): Promise<Uint8Array> => {
+  const median = async (exclusions?: ExclusionSet, plain?: Uint8Array): Promise<Uint8Array> => {
     const out = new Uint8Array(new SharedArrayBuffer(length));
     const used = exclusions ? new Uint8Array(new SharedArrayBuffer(pixels)) : undefined;
     const strip = Math.ceil(pixels / threads);
@@ -203,6 +203,7 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
           exclusions,
           used,
           channels,
+          plain,
         }),
       ),
     );
@@ -226,7 +227,7 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
   const discs = tracerExclusions(await findIn(plain), plan.crop, plan.shrink);
   if (discs.length === 0) return plain;
   if (signal?.aborted) throw cancelled();
-  return median({ width: plan.crop.width, discs });
+  return median({ width: plan.crop.width, discs }, plain);
 }
 
 function defaultStep(plan: DetectionPlan): number {

@@ -31,6 +31,8 @@ export type TrackTask =
       used?: Uint8Array;
       /** Interleaved channels per pixel (3 for dye); `from` and `to` count pixels. */
       channels?: number;
+      /** The plain median, already taken: pixels no disc covers copy it. */
+      plain?: Uint8Array;
     }
   | {
       /** Each worker counts itself in and waits for the others, so that every worker is started. */
@@ -82,7 +84,7 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   if (task.kind === "background") {
     const length = task.out.length;
     const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));
-    medianInto(frames, task.out, task.from, task.to, task.exclusions, task.used, task.channels ?? 1);
+    medianInto(frames, task.out, task.from, task.to, task.exclusions, task.used, task.channels ?? 1, task.plain);
     return null;
   }
   const { plan } = task;

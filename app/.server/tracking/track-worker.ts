@@ -7,6 +7,7 @@ import { medianInto, type ExclusionSet } from "../../lib/tracking/background";
 import { createDetector, type Detector } from "../../lib/tracking/detect";
 import type { OpenCv } from "../../lib/tracking/opencv-types";
 import type { DetectionPlan } from "../../lib/tracking/plan";
+import type { SearchWindow } from "../../lib/tracking/threshold";
 import type { Detection } from "../../lib/tracking/types";
 
 export type TrackTask =
@@ -16,6 +17,8 @@ export type TrackTask =
       planKey: string;
       image: Uint8Array;
       background: Uint8Array | null;
+      /** Where to search first (search-windows.ts); the whole frame when absent. */
+      windows?: SearchWindow[] | null;
     }
   | {
       /** Median of the sampled frames for pixels [from, to), written into the shared `out`. */
@@ -91,5 +94,6 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   return detectorFor(task.planKey, plan).detect(
     { data: task.image, width: plan.crop.width, height: plan.crop.height, channels: plan.channels },
     task.background,
+    task.windows ?? undefined,
   );
 }

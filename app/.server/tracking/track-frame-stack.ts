@@ -12,6 +12,8 @@ import { backgroundSampleIndices, fillChannelsFromSurroundings, minimumFreeSampl
 import { defaultLinking, linkDetections, type LinkingOptions } from "../../lib/tracking/link";
 import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../../lib/tracking/plan";
 import { trackingQuality } from "../../lib/tracking/quality";
+import { lastWholeFrame, searchedWhole, searchWindows } from "../../lib/tracking/search-windows";
+import type { SearchWindow } from "../../lib/tracking/threshold";
 import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup } from "../../lib/tracking/types";
 import { decodeFrame, readFrameSize } from "./decode-frame";
 import { TrackingError } from "./errors";
@@ -49,6 +51,11 @@ export interface TrackFrameStackResult {
 const threads = Math.max(1, os.availableParallelism());
 /** Frames decoded or being searched at once: enough to keep every worker busy while sharp decodes. */
 const inFlightLimit = threads * 3;
+/**
+ * A frame's search windows come from the frames this far before it (search-windows.ts): as many
+ * as are in flight at once, so they are nearly always done by the time it is decoded.
+ */
+const windowLag = inFlightLimit;
 const progressIntervalMs = 200;
 
 interface TrackingPool {
@@ -107,6 +114,21 @@ async function trackingPool(): Promise<TrackingPool> {
 
 function runTask(workers: TrackingPool, task: TrackTask, transferList?: ArrayBuffer[]): Promise<TrackTaskResult> {
   return Promise.race([workers.piscina.run(task, { transferList }), workers.failed]);
+}
+
+/** Every worker of the pool started (each counts itself in and waits for the others). */
+async function startWorkers(workers: TrackingPool): Promise<void> {
+  const arrived = new Int32Array(new SharedArrayBuffer(4));
+  await Promise.all(Array.from({ length: threads }, () => runTask(workers, { kind: "warm-up", arrived, expected: threads })));
+}
+
+/**
+ * Starts the tracking workers ahead of a job: loading one (its bundle, OpenCV) costs about 0.8 s of
+ * processor time, which a job would otherwise spend before its first frame. Kept for the pool's
+ * idle time (a minute).
+ */
+export async function warmTrackingPool(): Promise<void> {
+  await startWorkers(await trackingPool());
 }
 
 /** Stops the worker threads, so a server or a test can exit. The next job starts a new pool. */
@@ -184,7 +206,7 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
       }
     }),
   );
-  const median = async (exclusions?: ExclusionSet): Promise<Uint8Array> => {
+  const median = async (exclusions?: ExclusionSet, plain?: Uint8Array): Promise<Uint8Array> => {
     const out = new Uint8Array(new SharedArrayBuffer(length));
     const used = exclusions ? new Uint8Array(new SharedArrayBuffer(pixels)) : undefined;
     const strip = Math.ceil(pixels / threads);
@@ -200,6 +222,7 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
           exclusions,
           used,
           channels,
+          plain,
         }),
       ),
     );
@@ -223,7 +246,7 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
   const discs = tracerExclusions(await findIn(plain), plan.crop, plan.shrink);
   if (discs.length === 0) return plain;
   if (signal?.aborted) throw cancelled();
-  return median({ width: plan.crop.width, discs });
+  return median({ width: plan.crop.width, discs }, plain);
 }
 
 function defaultStep(plan: DetectionPlan): number {
@@ -242,8 +265,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   const plan = makePlan(setup, width, height);
   const key = planKey(plan);
   const workers = await trackingPool();
-  const arrived = new Int32Array(new SharedArrayBuffer(4));
-  const warmUp = Promise.all(Array.from({ length: threads }, () => runTask(workers, { kind: "warm-up", arrived, expected: threads })));
+  const warmUp = startWorkers(workers);
   warmUp.catch(() => {});
   let background: Uint8Array | null;
   try {
@@ -268,12 +290,28 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   };
 
   let failure: unknown = null;
+  const linkGate = input.linking?.maxStepPx ?? defaultStep(plan);
+  /** Settles when a frame searched in this pass is done (or has failed). */
+  const searched = new Map<number, Promise<void>>();
+  const found = async (index: number): Promise<readonly Detection[] | null> => {
+    if (index < 0) return null;
+    await searched.get(index);
+    return byFrame.get(index)?.detections ?? null;
+  };
+  const windowsFor = async (index: number): Promise<SearchWindow[] | null> => {
+    if (searchedWhole(index)) return null;
+    const first = index - windowLag;
+    const [latest, before, earlier, lastWhole] = await Promise.all([found(first), found(first - 1), found(first - 2), found(lastWholeFrame(first))]);
+    return searchWindows({ recent: [latest, before, earlier], lastWhole, lag: windowLag, maxStepPx: linkGate });
+  };
   const searchFrame = async (index: number): Promise<void> => {
     const image = await decodeFrame(files[index]!, index, plan);
     if (failure || signal?.aborted) return;
+    const windows = await windowsFor(index);
+    if (failure || signal?.aborted) return;
     let detections: Detection[];
     try {
-      detections = (await runTask(workers, { kind: "detect", plan, planKey: key, image, background }, [image.buffer as ArrayBuffer])) as Detection[];
+      detections = (await runTask(workers, { kind: "detect", plan, planKey: key, image, background, windows }, [image.buffer as ArrayBuffer])) as Detection[];
     } catch (error) {
       throw searchFailed(index, error);
     }
@@ -292,6 +330,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
       })
       .finally(() => inFlight.delete(task));
     inFlight.add(task);
+    searched.set(index, task);
     while (inFlight.size >= inFlightLimit) await Promise.race(inFlight);
   }
   await Promise.all(inFlight);

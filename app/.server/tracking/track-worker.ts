@@ -7,6 +7,7 @@ import { medianInto, type ExclusionSet } from "../../lib/tracking/background";
 import { createDetector, type Detector } from "../../lib/tracking/detect";
 import type { OpenCv } from "../../lib/tracking/opencv-types";
 import type { DetectionPlan } from "../../lib/tracking/plan";
+import type { SearchWindow } from "../../lib/tracking/threshold";
 import type { Detection } from "../../lib/tracking/types";
 
 export type TrackTask =
@@ -16,6 +17,8 @@ export type TrackTask =
       planKey: string;
       image: Uint8Array;
       background: Uint8Array | null;
+      /** Where to search first (search-windows.ts); the whole frame when absent. */
+      windows?: SearchWindow[] | null;
     }
   | {
       /** Median of the sampled frames for pixels [from, to), written into the shared `out`. */
@@ -31,6 +34,8 @@ export type TrackTask =
       used?: Uint8Array;
       /** Interleaved channels per pixel (3 for dye); `from` and `to` count pixels. */
       channels?: number;
+      /** The plain median, already taken: pixels no disc covers copy it. */
+      plain?: Uint8Array;
     }
   | {
       /** Each worker counts itself in and waits for the others, so that every worker is started. */
@@ -82,12 +87,13 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   if (task.kind === "background") {
     const length = task.out.length;
     const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));
-    medianInto(frames, task.out, task.from, task.to, task.exclusions, task.used, task.channels ?? 1);
+    medianInto(frames, task.out, task.from, task.to, task.exclusions, task.used, task.channels ?? 1, task.plain);
     return null;
   }
   const { plan } = task;
   return detectorFor(task.planKey, plan).detect(
     { data: task.image, width: plan.crop.width, height: plan.crop.height, channels: plan.channels },
     task.background,
+    task.windows ?? undefined,
   );
 }

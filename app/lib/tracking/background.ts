@@ -107,7 +107,7 @@ export function floatBackground(
   if (discs.length === 0) return plain;
   const out = new Uint8Array(plain.length);
   const used = new Uint8Array(plain.length);
-  medianInto(frames, out, 0, out.length, { width, discs }, used);
+  medianInto(frames, out, 0, out.length, { width, discs }, used, 1, plain);
   fillFromSurroundings(out, used, width, minimumFreeSamples(frames.length));
   return out;
 }
@@ -138,7 +138,7 @@ export function dyeBackground(
   if (discs.length === 0) return plain;
   const out = new Uint8Array(plain.length);
   const used = new Uint8Array(pixels);
-  medianInto(frames, out, 0, pixels, { width, discs }, used, 3);
+  medianInto(frames, out, 0, pixels, { width, discs }, used, 3, plain);
   fillChannelsFromSurroundings(out, used, width, 3, minimumFreeSamples(frames.length));
   return out;
 }
@@ -168,7 +168,13 @@ export function minimumFreeSamples(samples: number): number {
  * covered by an exclusion disc at a pixel are left out there (where every sample is covered the
  * plain median stands); `used`, when given, receives how many samples each pixel's median took.
  * Frames of several interleaved channels (RGB for dye) take each channel's median on its own;
- * `from`, `to` and `used` count pixels.
+ * `from`, `to` and `used` count pixels. `plain`, when given, is the plain median of the same
+ * frames, already taken: a pixel no disc covers copies it instead of taking it again, so the
+ * second median of a background costs only the pixels near the tracer.
+ *
+ * Each median is read off a count of the values (bytes, so at most 256 bins, and only those
+ * between the pixel's lowest and highest value are visited), which on 21 samples takes less
+ * than half the time of sorting them.
  */
 export function medianInto(
   frames: readonly Uint8Array[],
@@ -178,15 +184,17 @@ export function medianInto(
   exclusions?: ExclusionSet,
   used?: Uint8Array,
   channels = 1,
+  plain?: Uint8Array,
 ): void {
   const length = out.length;
+  if (plain && plain.length !== length) throw new Error("The plain median differs in size from the background.");
   for (const frame of frames) {
     if (frame.length !== length) throw new Error("Background frames differ in size.");
   }
   if (!(Number.isInteger(channels) && channels >= 1) || length % channels !== 0) throw new Error("Background frames do not hold whole pixels.");
   const n = frames.length;
   if (n > 255) throw new Error("A background takes at most 255 frames.");
-  const values = new Uint8Array(n);
+  const counts = new Uint8Array(256);
   const discs = exclusions?.discs ?? [];
   const width = exclusions?.width ?? 0;
   if (discs.length > 0 && !(Number.isInteger(width) && width > 0)) throw new Error("Exclusions need the frames' width.");
@@ -247,15 +255,27 @@ export function medianInto(
       }
     }
     const skip = covered > 0 && covered < n;
+    if (plain && !skip) {
+      // Every sample counts here, as in the plain median.
+      for (let c = 0, q = p * channels; c < channels; c++, q++) out[q] = plain[q]!;
+      if (used) used[p] = covered >= n ? 0 : n;
+      continue;
+    }
     let count = 0;
     for (let c = 0, q = p * channels; c < channels; c++, q++) {
       count = 0;
-      if (skip) {
-        for (let j = 0; j < n; j++) if (!left[j]) insert(values, count++, frames[j]![q]!);
-      } else {
-        for (let j = 0; j < n; j++) insert(values, count++, frames[j]![q]!);
+      let lowest = 255;
+      let highest = 0;
+      for (let j = 0; j < n; j++) {
+        if (skip && left[j]) continue;
+        const v = frames[j]![q]!;
+        counts[v]!++;
+        if (v < lowest) lowest = v;
+        if (v > highest) highest = v;
+        count++;
       }
-      out[q] = middle(values, count);
+      out[q] = countedMiddle(counts, lowest, highest, count);
+      counts.fill(0, lowest, highest + 1);
     }
     if (used) used[p] = covered >= n ? 0 : count;
   }
@@ -336,18 +356,19 @@ export function fillFromSurroundings(background: Uint8Array, used: Uint8Array, w
   }
 }
 
-/** Median of the first `count` sorted values; an even count takes the mean of the middle two, rounded. */
-function middle(values: Uint8Array, count: number): number {
+/**
+ * The median of `count` values held as counts per value, all between `lowest` and `highest`; an
+ * even count takes the mean of the middle two, rounded.
+ */
+function countedMiddle(counts: Uint8Array, lowest: number, highest: number, count: number): number {
   const half = count >> 1;
-  return count % 2 === 1 ? values[half]! : (values[half - 1]! + values[half]! + 1) >> 1;
-}
-
-/** Insertion sort step: n is at most a few dozen and mostly the values are nearly equal. */
-function insert(values: Uint8Array, j: number, v: number): void {
-  let k = j - 1;
-  while (k >= 0 && values[k]! > v) {
-    values[k + 1] = values[k]!;
-    k--;
+  // The values at sorted positions half − 1 and half (0-based).
+  let below = -1;
+  let seen = 0;
+  for (let v = lowest; v <= highest; v++) {
+    seen += counts[v]!;
+    if (below < 0 && seen > half - 1) below = v;
+    if (seen > half) return count % 2 === 1 ? v : (below + v + 1) >> 1;
   }
-  values[k + 1] = v;
+  return highest;
 }

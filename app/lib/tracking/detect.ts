@@ -2,16 +2,18 @@
  * Finding the tracer in one frame.
  *
  * Float: difference from the median background (bright float on darker water). Dye: HSV colour
- * range. Either way a detection image (blocks of `plan.shrink` px averaged) is thresholded,
+ * range. Either way a detection image (blocks of `plan.shrink` px averaged) is thresholded (threshold.ts),
  * cleaned with an opening and a closing, and split into blobs; blobs are kept by area and
  * roundness. The centroid of each blob is then weighted by the un-thresholded signal (difference
  * or saturation) at full resolution, less a noise floor, which keeps it sub-pixel. A dye blob
  * given the stack's colour background is instead measured over the whole patch (dye-centre.ts).
  */
+import { createDyeCentre } from "./dye-centre";
+import { hsv, hueInRange } from "./hsv";
 import type { CvRect, OpenCv } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
-import { createDyeCentre } from "./dye-centre";
 import { robustStats } from "./robust-stats";
+import { createThreshold, type SearchWindow } from "./threshold";
 import type { Detection } from "./types";
 
 export interface FrameImage {
@@ -27,8 +29,14 @@ export interface Detector {
    * `image` is the plan's crop with the plan's channels; `background` the stack's still scene of
    * the same crop and channels: needed for floats; for dye it moves the centre from the colour
    * threshold's blob to the whole patch (dye-centre.ts).
+   *
+   * With `windows` (where the tracers are expected, search-windows.ts) only those parts of the
+   * frame are searched at first; what is found there is exactly what the whole search finds
+   * there (threshold.ts). If a window holds no find, or a find lies too near a window's edge,
+   * the whole frame is searched after all, so a window can make the search cheaper but never
+   * change what it finds in the windows.
    */
-  detect(image: FrameImage, background: Uint8Array | null): Detection[];
+  detect(image: FrameImage, background: Uint8Array | null, windows?: readonly SearchWindow[]): Detection[];
   /** Frees the OpenCV matrices: wasm memory is not garbage-collected. */
   dispose(): void;
 }
@@ -36,11 +44,8 @@ export interface Detector {
 /** Thresholds in noise units: detection well clear of noise, centroid weights just above it. */
 const detectSigmas = 5;
 const weightSigmas = 3;
-/** Lowest contrast (grey levels) that counts, for nearly noiseless frames. */
-const minContrast = 5;
 const noiseStride = 4;
 const maxBlobs = 254;
-const tileSize = 32;
 const maxDetections = 50;
 
 /** The decoder's crop and channel choice, for a frame already in memory (tests, demo seeding). */
@@ -93,27 +98,6 @@ function rowSpans(rows: number, cols: number, step: number, offset: number, tank
   return spans;
 }
 
-/** OpenCV's 8-bit HSV: hue 0–180, saturation and value 0–255. */
-function hsv(r: number, g: number, b: number, out: Float64Array): void {
-  const v = Math.max(r, g, b);
-  const m = Math.min(r, g, b);
-  const d = v - m;
-  out[2] = v;
-  out[1] = v === 0 ? 0 : (255 * d) / v;
-  let h = 0;
-  if (d > 0) {
-    if (v === r) h = (60 * (g - b)) / d;
-    else if (v === g) h = 120 + (60 * (b - r)) / d;
-    else h = 240 + (60 * (r - g)) / d;
-    if (h < 0) h += 360;
-  }
-  out[0] = h / 2;
-}
-
-function hueInRange(h: number, hueMin: number, hueMax: number): boolean {
-  return hueMin <= hueMax ? h >= hueMin && h <= hueMax : h >= hueMin || h <= hueMax;
-}
-
 export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   const { smallWidth: sw, smallHeight: sh, shrink: k } = plan;
   const width = plan.crop.width;
@@ -129,10 +113,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   const hist = new Uint32Array(511);
   const colour = new Float64Array(3);
   const block = k * k;
-  const blockSums = new Float64Array(sw * 3);
-  const tilesX = Math.ceil(sw / tileSize);
-  const tilesY = Math.ceil(sh / tileSize);
-  const tileHits = new Uint8Array(tilesX * tilesY);
+  const threshold = createThreshold(plan, smallSpans, detectSigmas);
   const { hueMin, hueMax, satMin, valMin } = plan.dyeColour;
   const dyeCentre = plan.tracer === "dye" ? createDyeCentre(width, height, fullSpans) : null;
   let disposed = false;
@@ -168,120 +149,6 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
       }
     }
     return robustStats(hist, background ? 255 : 0);
-  }
-
-  /**
-   * Fills the mask and returns the regions worth cleaning: groups of touching tiles holding at
-   * least two neighbouring pixels above the threshold. Stray noise pixels set no tile, so the
-   * OpenCV work stays near the tracer however large the tank is.
-   */
-  function threshold(image: FrameImage, background: Uint8Array | null, offset: number, sigma: number): CvRect[] {
-    const m = mask.data;
-    const img = image.data;
-    m.fill(0);
-    tileHits.fill(0);
-    let any = false;
-    let previous = -2;
-    const mark = (sx: number, sy: number) => {
-      const at = sy * sw + sx;
-      m[at] = 255;
-      if (previous === at - 1) {
-        tileHits[((sy / tileSize) | 0) * tilesX + ((sx / tileSize) | 0)] = 1;
-        any = true;
-      }
-      previous = at;
-    };
-    if (background) {
-      // Compared as block sums, so no division per pixel.
-      const level = (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block;
-      for (let sy = 0; sy < sh; sy++) {
-        const a = smallSpans[2 * sy]!;
-        const b = smallSpans[2 * sy + 1]!;
-        if (a >= b) continue;
-        if (k === 1) {
-          const base = sy * width;
-          for (let p = base + a, end = base + b; p < end; p++) {
-            if (img[p]! - background[p]! > level) mark(p - base, sy);
-          }
-          continue;
-        }
-        blockSums.fill(0, a, b);
-        for (let ky = 0; ky < k; ky++) {
-          const base = (sy * k + ky) * width;
-          for (let col = a * k, end = b * k; col < end; col++) {
-            blockSums[(col / k) | 0]! += img[base + col]! - background[base + col]!;
-          }
-        }
-        for (let sx = a; sx < b; sx++) if (blockSums[sx]! > level) mark(sx, sy);
-      }
-    } else {
-      for (let sy = 0; sy < sh; sy++) {
-        const a = smallSpans[2 * sy]!;
-        const b = smallSpans[2 * sy + 1]!;
-        if (a >= b) continue;
-        blockSums.fill(0, 3 * a, 3 * b);
-        for (let ky = 0; ky < k; ky++) {
-          const base = (sy * k + ky) * width * 3;
-          for (let col = a * k, end = b * k; col < end; col++) {
-            const p = base + 3 * col;
-            const q = 3 * ((col / k) | 0);
-            blockSums[q]! += img[p]!;
-            blockSums[q + 1]! += img[p + 1]!;
-            blockSums[q + 2]! += img[p + 2]!;
-          }
-        }
-        for (let sx = a; sx < b; sx++) {
-          const r = blockSums[3 * sx]! / block;
-          const g = blockSums[3 * sx + 1]! / block;
-          const bl = blockSums[3 * sx + 2]! / block;
-          const v = Math.max(r, g, bl);
-          // Value and saturation reject the water before any hue is worked out.
-          if (v < valMin || (255 * (v - Math.min(r, g, bl))) / v < satMin) continue;
-          hsv(r, g, bl, colour);
-          if (hueInRange(colour[0]!, hueMin, hueMax)) mark(sx, sy);
-        }
-      }
-    }
-    if (!any) return [];
-    const regions: CvRect[] = [];
-    const seen = new Uint8Array(tileHits.length);
-    for (let start = 0; start < tileHits.length; start++) {
-      if (!tileHits[start] || seen[start]) continue;
-      let tx0 = tilesX;
-      let ty0 = tilesY;
-      let tx1 = -1;
-      let ty1 = -1;
-      const queue = [start];
-      seen[start] = 1;
-      while (queue.length > 0) {
-        const t = queue.pop() as number;
-        const tx = t % tilesX;
-        const ty = (t / tilesX) | 0;
-        tx0 = Math.min(tx0, tx);
-        tx1 = Math.max(tx1, tx);
-        ty0 = Math.min(ty0, ty);
-        ty1 = Math.max(ty1, ty);
-        for (let dy = -1; dy <= 1; dy++) {
-          for (let dx = -1; dx <= 1; dx++) {
-            const nx = tx + dx;
-            const ny = ty + dy;
-            if (nx < 0 || ny < 0 || nx >= tilesX || ny >= tilesY) continue;
-            const n = ny * tilesX + nx;
-            if (tileHits[n] && !seen[n]) {
-              seen[n] = 1;
-              queue.push(n);
-            }
-          }
-        }
-      }
-      // Two pixels past the tiles catch the tips of a blob whose body set them.
-      const x = Math.max(0, tx0 * tileSize - 2);
-      const y = Math.max(0, ty0 * tileSize - 2);
-      const right = Math.min(sw, (tx1 + 1) * tileSize + 2);
-      const bottom = Math.min(sh, (ty1 + 1) * tileSize + 2);
-      regions.push({ x, y, width: right - x, height: bottom - y });
-    }
-    return regions;
   }
 
   interface Blob {
@@ -429,22 +296,32 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   }
 
   return {
-    detect(image, background) {
+    detect(image, background, windows) {
       check(image, background);
       const bg = plan.tracer === "float" ? background : null;
       const dyeBackground = plan.tracer === "dye" ? background : null;
       // Dye measured against a background has noise figures of its own (dye-centre.ts).
       const { median, sigma } = dyeBackground ? { median: 0, sigma: 0 } : noise(image, bg);
-      const regions = threshold(image, bg, median, sigma);
-      if (regions.length === 0) return [];
-      const detections: Detection[] = [];
-      for (const blob of blobs(regions)) {
-        const d = dyeBackground ? patchCentre(blob, image, dyeBackground) : centroid(blob, image, bg, median, sigma);
-        if (d) detections.push(d);
+      const measure = (regions: CvRect[]): Detection[] => {
+        const detections: Detection[] = [];
+        if (regions.length === 0) return detections;
+        for (const blob of blobs(regions)) {
+          const d = dyeBackground ? patchCentre(blob, image, dyeBackground) : centroid(blob, image, bg, median, sigma);
+          if (d) detections.push(d);
+        }
+        detections.sort((a, b) => b.intensity * b.area - a.intensity * a.area);
+        detections.length = Math.min(detections.length, maxDetections);
+        return detections;
+      };
+      if (windows && windows.length > 0) {
+        const regions = threshold.run(mask.data, image, bg, median, sigma, threshold.windowTiles(windows));
+        if (regions) {
+          const found = measure(regions);
+          const held = (w: SearchWindow) => found.some((d) => Math.abs(d.x - w.x) <= w.reach && Math.abs(d.y - w.y) <= w.reach);
+          if (windows.every(held)) return found;
+        }
       }
-      detections.sort((a, b) => b.intensity * b.area - a.intensity * a.area);
-      detections.length = Math.min(detections.length, maxDetections);
-      return detections;
+      return measure(threshold.run(mask.data, image, bg, median, sigma) ?? []);
     },
     dispose() {
       if (disposed) return;

@@ -154,9 +154,18 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       let wyy = 0;
       peak = 0;
       for (let row = r0; row <= r1; row++) {
-        const a = Math.max(c0, spans[2 * row]!);
-        const b = Math.min(c1 + 1, spans[2 * row + 1]!);
+        let a = Math.max(c0, spans[2 * row]!);
+        let b = Math.min(c1 + 1, spans[2 * row + 1]!);
         const dy = row - y;
+        if (inverse) {
+          // Only the columns of this row inside the window's ellipse (a pixel's margin each side:
+          // the test below decides), rather than the whole box around a tilted patch.
+          const half = inverse[1] * inverse[1] * dy * dy - inverse[0] * (inverse[2] * dy * dy - windowSigmas * windowSigmas);
+          if (!(half >= 0)) continue;
+          const root = Math.sqrt(half);
+          a = Math.max(a, Math.floor(x + (-inverse[1] * dy - root) / inverse[0]) - 1);
+          b = Math.min(b, Math.ceil(x + (-inverse[1] * dy + root) / inverse[0]) + 2);
+        }
         for (let col = a; col < b; col++) {
           const dx = col - x;
           let weight: number;

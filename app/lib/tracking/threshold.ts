@@ -1,0 +1,256 @@
+/**
+ * The detection image's threshold (detect.ts): the tracer's pixels marked in a mask, grouped into
+ * regions of touching tiles that the OpenCV cleaning then works on.
+ *
+ * Floats: the difference from the background above a noise threshold, compared as block sums so
+ * that no pixel needs a division. Dye: the block's colour inside the plan's HSV range, value and
+ * saturation checked before any hue is worked out.
+ *
+ * The search may be held to windows around where the tracers are expected (search-windows.ts),
+ * in whole tiles. What it finds there is then exactly what the whole search would find there, as
+ * long as no tile holding a find lies within two tiles of the windows' edge: such a tile and its
+ * neighbours were searched in full, so its group of tiles, the region around it (two pixels past
+ * the tiles) and the pixel beyond that which the 3 × 3 cleaning reads are the same either way.
+ * Otherwise the windows are not trusted and the caller searches the whole frame.
+ */
+import { hsv, hueInRange } from "./hsv";
+import type { CvRect } from "./opencv-types";
+import type { DetectionPlan } from "./plan";
+
+/** Side of the tiles that group the thresholded pixels, detection-image px. */
+export const tileSize = 32;
+const tileShift = 5;
+/** Lowest contrast (grey levels) that counts, for nearly noiseless frames. */
+const minContrast = 5;
+
+/** A square of the frame to search: centre and half-side, full-frame px. */
+export interface SearchWindow {
+  x: number;
+  y: number;
+  reach: number;
+}
+
+export interface ThresholdImage {
+  data: Uint8Array;
+}
+
+export interface Threshold {
+  /**
+   * Fills `mask` (the detection image, zeroed first) and returns the regions worth cleaning:
+   * groups of touching tiles holding at least two neighbouring pixels above the threshold. Stray
+   * noise pixels set no tile, so the OpenCV work stays near the tracer however large the tank
+   * is. With `tiles` (from `windowTiles`) only those tiles are searched, and null comes back if
+   * a find lies too close to their edge to be sure of it.
+   */
+  run(mask: Uint8Array, image: ThresholdImage, background: Uint8Array | null, offset: number, sigma: number, tiles?: Uint8Array): CvRect[] | null;
+  /** The tiles covering the windows (1 = search). */
+  windowTiles(windows: readonly SearchWindow[]): Uint8Array;
+}
+
+/**
+ * `smallSpans` holds, per detection-image row, the half-open column range inside the tank edge;
+ * `detectSigmas` the threshold in noise units.
+ */
+export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, detectSigmas: number): Threshold {
+  const { smallWidth: sw, smallHeight: sh, shrink: k } = plan;
+  const width = plan.crop.width;
+  const block = k * k;
+  const tilesX = Math.ceil(sw / tileSize);
+  const tilesY = Math.ceil(sh / tileSize);
+  const tileHits = new Uint8Array(tilesX * tilesY);
+  const seen = new Uint8Array(tilesX * tilesY);
+  const blockSums = new Float64Array(sw * 3);
+  const colour = new Float64Array(3);
+  const { hueMin, hueMax, satMin, valMin } = plan.dyeColour;
+  /** Column ranges of one tile row to search, [from, to) pairs in detection-image px. */
+  const runs = new Int32Array(tilesX + 1);
+
+  /** The search columns of tile row `ty`, as pairs in `runs`; returns how many pairs. */
+  function columnRuns(ty: number, tiles: Uint8Array | undefined): number {
+    if (!tiles) {
+      runs[0] = 0;
+      runs[1] = sw;
+      return 1;
+    }
+    let count = 0;
+    const row = ty * tilesX;
+    for (let tx = 0; tx < tilesX; tx++) {
+      if (!tiles[row + tx]) continue;
+      const start = tx;
+      while (tx + 1 < tilesX && tiles[row + tx + 1]) tx++;
+      runs[2 * count] = start * tileSize;
+      runs[2 * count + 1] = Math.min(sw, (tx + 1) * tileSize);
+      count++;
+    }
+    return count;
+  }
+
+  /** Whether every tile within two of `t` (in the grid) is searched. */
+  function deepInside(t: number, tiles: Uint8Array): boolean {
+    const tx = t % tilesX;
+    const ty = (t / tilesX) | 0;
+    for (let ny = Math.max(0, ty - 2); ny <= Math.min(tilesY - 1, ty + 2); ny++) {
+      for (let nx = Math.max(0, tx - 2); nx <= Math.min(tilesX - 1, tx + 2); nx++) {
+        if (!tiles[ny * tilesX + nx]) return false;
+      }
+    }
+    return true;
+  }
+
+  function run(mask: Uint8Array, image: ThresholdImage, background: Uint8Array | null, offset: number, sigma: number, tiles?: Uint8Array): CvRect[] | null {
+    const m = mask;
+    const img = image.data;
+    m.fill(0);
+    tileHits.fill(0);
+    let any = false;
+    // A tile is set by two neighbouring marked pixels in a row: `previous` is the last one marked.
+    let previous = -2;
+    const level = background ? (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block : 0;
+    for (let sy = 0; sy < sh; sy++) {
+      const a = smallSpans[2 * sy]!;
+      const b = smallSpans[2 * sy + 1]!;
+      if (a >= b) continue;
+      const tileRow = (sy >> tileShift) * tilesX;
+      const rowAt = sy * sw;
+      const pairs = columnRuns(sy >> tileShift, tiles);
+      for (let r = 0; r < pairs; r++) {
+        const c0 = Math.max(a, runs[2 * r]!);
+        const c1 = Math.min(b, runs[2 * r + 1]!);
+        if (c0 >= c1) continue;
+        if (background && k === 1) {
+          // Full resolution: the detection image is the crop itself (sw = width).
+          for (let p = rowAt + c0, end = rowAt + c1; p < end; p++) {
+            if (img[p]! - background[p]! > level) {
+              m[p] = 255;
+              if (previous === p - 1) {
+                tileHits[tileRow + ((p - rowAt) >> tileShift)] = 1;
+                any = true;
+              }
+              previous = p;
+            }
+          }
+          continue;
+        }
+        if (background) {
+          blockSums.fill(0, c0, c1);
+          for (let ky = 0; ky < k; ky++) {
+            const base = (sy * k + ky) * width;
+            for (let sx = c0; sx < c1; sx++) {
+              let sum = 0;
+              for (let p = base + sx * k, end = p + k; p < end; p++) sum += img[p]! - background[p]!;
+              blockSums[sx]! += sum;
+            }
+          }
+          for (let sx = c0; sx < c1; sx++) {
+            if (blockSums[sx]! > level) {
+              const at = rowAt + sx;
+              m[at] = 255;
+              if (previous === at - 1) {
+                tileHits[tileRow + (sx >> tileShift)] = 1;
+                any = true;
+              }
+              previous = at;
+            }
+          }
+          continue;
+        }
+        for (let sx = c0; sx < c1; sx++) {
+          let r: number;
+          let g: number;
+          let bl: number;
+          if (k === 1) {
+            const p = 3 * (rowAt + sx);
+            r = img[p]!;
+            g = img[p + 1]!;
+            bl = img[p + 2]!;
+          } else {
+            r = 0;
+            g = 0;
+            bl = 0;
+            for (let ky = 0; ky < k; ky++) {
+              for (let p = 3 * ((sy * k + ky) * width + sx * k), end = p + 3 * k; p < end; p += 3) {
+                r += img[p]!;
+                g += img[p + 1]!;
+                bl += img[p + 2]!;
+              }
+            }
+            r /= block;
+            g /= block;
+            bl /= block;
+          }
+          const v = r > g ? (r > bl ? r : bl) : g > bl ? g : bl;
+          // Value and saturation reject the water before any hue is worked out.
+          if (v < valMin) continue;
+          const least = r < g ? (r < bl ? r : bl) : g < bl ? g : bl;
+          if ((255 * (v - least)) / v < satMin) continue;
+          hsv(r, g, bl, colour);
+          if (!hueInRange(colour[0]!, hueMin, hueMax)) continue;
+          const at = rowAt + sx;
+          m[at] = 255;
+          if (previous === at - 1) {
+            tileHits[tileRow + (sx >> tileShift)] = 1;
+            any = true;
+          }
+          previous = at;
+        }
+      }
+    }
+    if (!any) return [];
+    const regions: CvRect[] = [];
+    seen.fill(0);
+    for (let start = 0; start < tileHits.length; start++) {
+      if (!tileHits[start] || seen[start]) continue;
+      let tx0 = tilesX;
+      let ty0 = tilesY;
+      let tx1 = -1;
+      let ty1 = -1;
+      const queue = [start];
+      seen[start] = 1;
+      while (queue.length > 0) {
+        const t = queue.pop() as number;
+        if (tiles && !deepInside(t, tiles)) return null;
+        const tx = t % tilesX;
+        const ty = (t / tilesX) | 0;
+        tx0 = Math.min(tx0, tx);
+        tx1 = Math.max(tx1, tx);
+        ty0 = Math.min(ty0, ty);
+        ty1 = Math.max(ty1, ty);
+        for (let dy = -1; dy <= 1; dy++) {
+          for (let dx = -1; dx <= 1; dx++) {
+            const nx = tx + dx;
+            const ny = ty + dy;
+            if (nx < 0 || ny < 0 || nx >= tilesX || ny >= tilesY) continue;
+            const n = ny * tilesX + nx;
+            if (tileHits[n] && !seen[n]) {
+              seen[n] = 1;
+              queue.push(n);
+            }
+          }
+        }
+      }
+      // Two pixels past the tiles catch the tips of a blob whose body set them.
+      const x = Math.max(0, tx0 * tileSize - 2);
+      const y = Math.max(0, ty0 * tileSize - 2);
+      const right = Math.min(sw, (tx1 + 1) * tileSize + 2);
+      const bottom = Math.min(sh, (ty1 + 1) * tileSize + 2);
+      regions.push({ x, y, width: right - x, height: bottom - y });
+    }
+    return regions;
+  }
+
+  function windowTiles(windows: readonly SearchWindow[]): Uint8Array {
+    const tiles = new Uint8Array(tilesX * tilesY);
+    const span = tileSize * k;
+    for (const w of windows) {
+      // The window in crop px, then in tiles, with the two tiles of margin the check needs.
+      const tx0 = Math.max(0, Math.floor((w.x - plan.crop.left - w.reach) / span) - 2);
+      const tx1 = Math.min(tilesX - 1, Math.floor((w.x - plan.crop.left + w.reach) / span) + 2);
+      const ty0 = Math.max(0, Math.floor((w.y - plan.crop.top - w.reach) / span) - 2);
+      const ty1 = Math.min(tilesY - 1, Math.floor((w.y - plan.crop.top + w.reach) / span) + 2);
+      for (let ty = ty0; ty <= ty1; ty++) tiles.fill(1, ty * tilesX + tx0, ty * tilesX + tx1 + 1);
+    }
+    return tiles;
+  }
+
+  return { run, windowTiles };
+}

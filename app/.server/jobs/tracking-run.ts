@@ -8,6 +8,9 @@ import { checkRun } from "../runs/theory";
 import { trackingFingerprint } from "../runs/provenance";
 import { measureRateFromFrames } from "../tracking/rate-pass";
 import { runOmega } from "~/lib/analysis/run-omega";
+import { settleFrameStream } from "./frame-stream";
+import { trackingSetupFrom } from "./tracking-setup";
+import { stackBasis, streamedFrames } from "./streamed-detections";
 import type { FrameDetections, TrackingSetup } from "~/lib/tracking/types";
 
 /**
@@ -70,6 +73,7 @@ async function frameStackOf(run: Run, scratch: ScratchDir) {
   });
   return {
     files,
+    shas: frames.map((f) => f.sha256),
     // Frames cut from a video keep their own times; a numbered stack is spaced by the frame rate.
     times: frames.map((f, i) => (allTimed ? (f.timeS as number) : i / run.frameRateFps)),
   };
@@ -78,15 +82,7 @@ async function frameStackOf(run: Run, scratch: ScratchDir) {
 async function trackingSetupOf(run: Run): Promise<TrackingSetup> {
   const setup = await ViewSetup.findOne({ where: { runId: run.id } });
   if (!setup) throw new JobError("The view setup was removed.");
-  return {
-    tracer: run.tracer,
-    centre: { x: setup.centreXPx, y: setup.centreYPx },
-    tankEdge:
-      setup.tankEdgeRPx && setup.tankEdgeXPx !== null && setup.tankEdgeYPx !== null
-        ? { cx: setup.tankEdgeXPx, cy: setup.tankEdgeYPx, r: setup.tankEdgeRPx }
-        : null,
-    mirrored: setup.mirrored,
-  };
+  return trackingSetupFrom(run, setup);
 }
 
 async function priorDetections(job: TrackingJob): Promise<FrameDetections[]> {
@@ -102,6 +98,23 @@ async function priorDetections(job: TrackingJob): Promise<FrameDetections[]> {
     f.t = r.timeS;
     f.detections.push({ x: r.xPx, y: r.yPx, area: r.areaPx ?? 0, roundness: r.roundness ?? 1, intensity: 0 });
   }
+  return frames;
+}
+
+/** The streamed detections (frame-stream.ts) of the stack's frames from `from` on, after this process's stream of the run has settled. */
+async function streamedOf(run: Run, stack: { shas: string[]; times: number[] }, setup: TrackingSetup, from: number): Promise<FrameDetections[]> {
+  await settleFrameStream(run.id);
+  if (!run.frameWidthPx || !run.frameHeightPx) return [];
+  let basis: string | null;
+  try {
+    basis = stackBasis(setup, { width: run.frameWidthPx, height: run.frameHeightPx }, stack.shas);
+  } catch {
+    // A setup the plan refuses: the search says why, in its own words.
+    return [];
+  }
+  if (!basis) return [];
+  const frames = (await streamedFrames(run.id, basis, stack.shas, stack.times)).filter((f) => f.frameIndex >= from);
+  if (frames.length) console.log(`[tracking] run ${run.id}: ${frames.length} of ${stack.shas.length} frames were searched as they arrived`);
   return frames;
 }
 
@@ -132,6 +145,8 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     const prior = await priorDetections(job);
     for (const f of prior) if (!Number.isFinite(f.t)) f.t = stack.times[f.frameIndex]!;
     if (prior.length) console.log(`[tracking] job ${job.id} (run ${run.id}) resumes at frame ${prior.length + 1} of ${stack.files.length}`);
+    // Frames searched as they arrived, on the very basis this stack gives: not searched again.
+    const streamed = await streamedOf(run, stack, setup, prior.length);
     // What is tracked is recorded before tracking: a change meanwhile leaves these tracks out of date.
     const inputFingerprint = await trackingFingerprint(run);
     const starting = {
@@ -152,7 +167,7 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     const done = new Set<number>(prior.map((p) => p.frameIndex));
     let watermark = prior.length;
     let pending: FrameDetections[] = [];
-    let framesDone = prior.length;
+    let framesDone = prior.length + streamed.length;
     let lastFlush = Date.now();
     let flushing: Promise<unknown> = Promise.resolve();
     const write = async (batch: FrameDetections[], count: number, mark: number) => {
@@ -192,7 +207,7 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
       setup,
       signal: controller.signal,
       startAt: prior.length,
-      priorDetections: prior,
+      priorDetections: [...prior, ...streamed],
       onFrameDetections: (fd) => {
         pending.push(fd);
         done.add(fd.frameIndex);

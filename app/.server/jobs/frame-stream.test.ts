@@ -25,6 +25,9 @@ let lab: Awaited<ReturnType<typeof smallLab>>;
 let token: string;
 let stack: File[];
 let scratchTracks: Awaited<ReturnType<typeof tracksOf>>;
+let scratchRate: Record<string, unknown>;
+const rateColumns = (job: TrackingJob | null) =>
+  job && { omega: job.measuredOmega, se: job.measuredOmegaSe, method: job.measuredOmegaMethod, points: job.measuredOmegaPoints, note: job.measuredOmegaNote };
 
 beforeAll(async () => {
   lab = await smallLab();
@@ -37,6 +40,7 @@ beforeAll(async () => {
   await enqueueTracking(run, lab.tech.id);
   await whenTrackingIdle();
   scratchTracks = await tracksOf(run.id);
+  scratchRate = rateColumns(await TrackingJob.findOne({ where: { runId: run.id } }))!;
 }, 120_000);
 
 afterAll(async () => {
@@ -111,6 +115,9 @@ describe("tracking while the frames arrive", () => {
     expect(searchedAsTheyArrived(log, run)).toBe(FRAMES);
     expect(await TheoryCheck.count({ where: { runId: run.id } })).toBe(1);
     expect(await tracksOf(run.id)).toEqual(scratchTracks);
+    // The table's rate was read as the frames came, and is what the job's own pass reads.
+    expect(log.mock.calls.some((c) => String(c[0]) === `[tracking] run ${run.id}: the rate read as the frames arrived is used`)).toBe(true);
+    expect(rateColumns(job)).toEqual(scratchRate);
     log.mockRestore();
   }, 120_000);
 

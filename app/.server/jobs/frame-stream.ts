@@ -1,7 +1,7 @@
 /**
  * Tracking while the frames arrive (Decision 59). A client that declares each frame's number in
  * the finished stack and the stack's length (app/lib/frame-stream.ts) gets its frames searched as
- * they land: once the frames the still background is made of are in, the background is built
+ * they land, and the table's rate read from them in stack order (rate-stream.ts): once the frames the still background is made of are in, the background is built
  * and every frame of the run is searched against it, each new one as its upload is accepted. The
  * detections are stored by the frame's content and the search's basis (streamed-detections.ts);
  * the tracking job, started by the upload that brings the stack to its declared length (or by
@@ -18,7 +18,8 @@ import { backgroundSampleIndices } from "~/lib/tracking/background";
 import type { FrameStreamDeclaration } from "~/lib/frame-stream";
 import type { Detection } from "~/lib/tracking/types";
 import { saveStreamed, streamBasis, streamedShas } from "./streamed-detections";
-import { trackingSetupFrom } from "./tracking-setup";
+import { rateSettingsFrom, trackingSetupFrom } from "./tracking-setup";
+import { startRateStream, type RateStream, type StreamedRate } from "./rate-stream";
 
 /** Frames being decoded or searched at once for one run: the pool's threads, each with one waiting. */
 const inFlightLimit = Math.max(1, os.availableParallelism()) * 2;
@@ -49,6 +50,8 @@ class RunStream {
   private drained: (() => void)[] = [];
   private readonly scratch: ScratchDir;
   readonly controller = new AbortController();
+  /** The table's rate read in stack order as the frames come (rate-stream.ts), when the view allows one. */
+  private readonly rate: Promise<RateStream | null>;
   /** Frames searched by this stream (for the log and the tests). */
   searched = 0;
 
@@ -57,11 +60,19 @@ class RunStream {
     readonly expected: number,
   ) {
     this.scratch = new ScratchDir(`frame-stream-${runId}`);
+    this.rate = this.startRate().catch(() => null);
     this.touch();
+  }
+
+  private async startRate(): Promise<RateStream | null> {
+    const [run, setup] = await Promise.all([Run.findByPk(this.runId), ViewSetup.findOne({ where: { runId: this.runId } })]);
+    if (!run || !setup) return null;
+    return startRateStream(rateSettingsFrom(run, setup), this.expected, run.frameRateFps, this.scratch, this.controller.signal);
   }
 
   land(frame: LandedFrame, frameNumber: number) {
     this.touch();
+    void this.rate.then((rate) => rate?.offer(frameNumber - 1, frame));
     this.numbered.set(frameNumber - 1, frame);
     if (!this.prepared) {
       const sampled = backgroundSampleIndices(this.expected);
@@ -168,16 +179,13 @@ class RunStream {
       });
   }
 
-  /** Resolves when every frame that has landed is searched and stored (or given up). */
-  async settle() {
+  /** Resolves when every frame that has landed is searched and stored (or given up), with the rate as read so far. */
+  async settle(): Promise<StreamedRate | null> {
     await this.prepared;
-    if (this.active === 0 && this.waiting.length === 0) {
-      this.flushNow();
-      await this.flushing;
-      return;
-    }
-    await new Promise<void>((resolve) => this.drained.push(resolve));
+    if (this.active > 0 || this.waiting.length > 0) await new Promise<void>((resolve) => this.drained.push(resolve));
+    this.flushNow();
     await this.flushing;
+    return (await this.rate)?.finish() ?? null;
   }
 
   private touch() {
@@ -227,12 +235,12 @@ export function frameLanded(runId: number, frame: LandedFrame, declared: FrameSt
  * finish what it has started and store it, then end the stream (frames after this are the job's).
  * Returns how many frames the stream searched.
  */
-export async function settleFrameStream(runId: number): Promise<number> {
+export async function settleFrameStream(runId: number): Promise<{ searched: number; rate: StreamedRate | null }> {
   const stream = streams.get(runId);
-  if (!stream) return 0;
-  await stream.settle();
+  if (!stream) return { searched: 0, rate: null };
+  const rate = await stream.settle();
   await closeStream(runId);
-  return stream.searched;
+  return { searched: stream.searched, rate };
 }
 
 /** Ends every stream (a stop); what was stored stays for the jobs. */

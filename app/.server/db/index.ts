@@ -10,7 +10,7 @@ export { LabSetting } from "./models/lab-setting";
 export { ApiToken } from "./models/api-token";
 export { Equipment } from "./models/equipment";
 export { Run } from "./models/run";
-export { Frame, ViewSetup, TrackingJob, Track, Detection, TheoryCheck, RunHistory } from "./models/tracking";
+export { Frame, ViewSetup, TrackingJob, Track, Detection, StreamedDetection, TheoryCheck, RunHistory } from "./models/tracking";
 export { Calibration, CalibrationAttachment, CalibrationHistory } from "./models/calibration";
 export { Booking, CalendarFeed } from "./models/booking";
 export { UserPreference } from "./models/user-preference";

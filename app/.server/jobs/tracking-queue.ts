@@ -3,6 +3,7 @@ import { Frame, Run, TrackingJob, ViewSetup, sequelize } from "../db";
 import { onBoot } from "../boot";
 import { env } from "../env";
 import { closeTrackingPool } from "../tracking/track-frame-stack";
+import { stopFrameStreams } from "./frame-stream";
 import { usesJobQueue } from "./boss";
 import { JobError, runTrackingJob } from "./tracking-run";
 import { ringTracking, sweepTrackingJobs } from "./tracking-leases";
@@ -149,6 +150,7 @@ export async function stopTrackingQueue() {
   for (const c of running.values()) c.abort();
   await pumping?.catch(() => undefined);
   if (usesJobQueue) await stopWorkers();
+  await stopFrameStreams();
   await closeTrackingPool();
 }
 

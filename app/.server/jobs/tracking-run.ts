@@ -7,7 +7,10 @@ import { setRunState } from "../runs/service";
 import { checkRun } from "../runs/theory";
 import { trackingFingerprint } from "../runs/provenance";
 import { measureRateFromFrames } from "../tracking/rate-pass";
-import { runOmega } from "~/lib/analysis/run-omega";
+import { settleFrameStream } from "./frame-stream";
+import { rateSettingsFrom, trackingSetupFrom } from "./tracking-setup";
+import { streamedRateFits, type StreamedRate } from "./rate-stream";
+import { stackBasis, streamedFrames } from "./streamed-detections";
 import type { FrameDetections, TrackingSetup } from "~/lib/tracking/types";
 
 /**
@@ -70,6 +73,7 @@ async function frameStackOf(run: Run, scratch: ScratchDir) {
   });
   return {
     files,
+    shas: frames.map((f) => f.sha256),
     // Frames cut from a video keep their own times; a numbered stack is spaced by the frame rate.
     times: frames.map((f, i) => (allTimed ? (f.timeS as number) : i / run.frameRateFps)),
   };
@@ -78,15 +82,7 @@ async function frameStackOf(run: Run, scratch: ScratchDir) {
 async function trackingSetupOf(run: Run): Promise<TrackingSetup> {
   const setup = await ViewSetup.findOne({ where: { runId: run.id } });
   if (!setup) throw new JobError("The view setup was removed.");
-  return {
-    tracer: run.tracer,
-    centre: { x: setup.centreXPx, y: setup.centreYPx },
-    tankEdge:
-      setup.tankEdgeRPx && setup.tankEdgeXPx !== null && setup.tankEdgeYPx !== null
-        ? { cx: setup.tankEdgeXPx, cy: setup.tankEdgeYPx, r: setup.tankEdgeRPx }
-        : null,
-    mirrored: setup.mirrored,
-  };
+  return trackingSetupFrom(run, setup);
 }
 
 async function priorDetections(job: TrackingJob): Promise<FrameDetections[]> {
@@ -103,6 +99,46 @@ async function priorDetections(job: TrackingJob): Promise<FrameDetections[]> {
     f.detections.push({ x: r.xPx, y: r.yPx, area: r.areaPx ?? 0, roundness: r.roundness ?? 1, intensity: 0 });
   }
   return frames;
+}
+
+/**
+ * What was done as the frames arrived (frame-stream.ts), once this process's stream of the run has
+ * settled: the detections of the stack's frames from `from` on that were searched on the very
+ * basis this stack gives, and the rate as read then (checked against the stack before use).
+ */
+async function streamedOf(
+  run: Run,
+  stack: { shas: string[]; times: number[] },
+  setup: TrackingSetup,
+  from: number,
+): Promise<{ frames: FrameDetections[]; rate: StreamedRate | null }> {
+  const { rate } = await settleFrameStream(run.id);
+  if (!run.frameWidthPx || !run.frameHeightPx) return { frames: [], rate };
+  let basis: string | null;
+  try {
+    basis = stackBasis(setup, { width: run.frameWidthPx, height: run.frameHeightPx }, stack.shas);
+  } catch {
+    // A setup the plan refuses: the search says why, in its own words.
+    return { frames: [], rate };
+  }
+  if (!basis) return { frames: [], rate };
+  const frames = (await streamedFrames(run.id, basis, stack.shas, stack.times)).filter((f) => f.frameIndex >= from);
+  if (frames.length) console.log(`[tracking] run ${run.id}: ${frames.length} of ${stack.shas.length} frames were searched as they arrived`);
+  return { frames, rate };
+}
+
+/** Seconds spent in each step of a job, for its last log line. */
+class PhaseClock {
+  private last = performance.now();
+  private readonly steps: string[] = [];
+  mark(step: string) {
+    const now = performance.now();
+    this.steps.push(`${step} ${((now - this.last) / 1000).toFixed(2)} s`);
+    this.last = now;
+  }
+  summary() {
+    return this.steps.join(", ");
+  }
 }
 
 const round = (v: number) => Math.round(v * 1000) / 1000;
@@ -132,6 +168,10 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     const prior = await priorDetections(job);
     for (const f of prior) if (!Number.isFinite(f.t)) f.t = stack.times[f.frameIndex]!;
     if (prior.length) console.log(`[tracking] job ${job.id} (run ${run.id}) resumes at frame ${prior.length + 1} of ${stack.files.length}`);
+    // Frames searched as they arrived, on the very basis this stack gives: not searched again.
+    const phases = new PhaseClock();
+    const streamed = await streamedOf(run, stack, setup, prior.length);
+    phases.mark("stream settled");
     // What is tracked is recorded before tracking: a change meanwhile leaves these tracks out of date.
     const inputFingerprint = await trackingFingerprint(run);
     const starting = {
@@ -152,7 +192,7 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     const done = new Set<number>(prior.map((p) => p.frameIndex));
     let watermark = prior.length;
     let pending: FrameDetections[] = [];
-    let framesDone = prior.length;
+    let framesDone = prior.length + streamed.frames.length;
     let lastFlush = Date.now();
     let flushing: Promise<unknown> = Promise.resolve();
     const write = async (batch: FrameDetections[], count: number, mark: number) => {
@@ -192,7 +232,7 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
       setup,
       signal: controller.signal,
       startAt: prior.length,
-      priorDetections: prior,
+      priorDetections: [...prior, ...streamed.frames],
       onFrameDetections: (fd) => {
         pending.push(fd);
         done.add(fd.frameIndex);
@@ -211,20 +251,22 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     if (flushError) throw flushError;
 
     // The table's rate read from the same frames: a light pass of its own, after the tracer's.
-    const viewSetup = await ViewSetup.findOne({ where: { runId: run.id }, attributes: ["rateMarkXPx", "rateMarkYPx"] });
-    const measuredRate = await measureRateFromFrames({
-      files: stack.files,
-      times: stack.times,
-      cameraMode: run.cameraMode,
-      centre: setup.centre,
-      mirrored: setup.mirrored,
-      tankEdge: setup.tankEdge,
-      rateMark: viewSetup?.rateMarkXPx != null && viewSetup.rateMarkYPx != null ? { x: viewSetup.rateMarkXPx, y: viewSetup.rateMarkYPx } : null,
-      omegaSet: runOmega(run),
-      signal: controller.signal,
-    });
+    phases.mark("search and linking");
+    const viewSetup = await ViewSetup.findOne({ where: { runId: run.id } });
+    if (!viewSetup) throw new JobError("The view setup was removed.");
+    const rateSettings = rateSettingsFrom(run, viewSetup);
+    // Read while the frames arrived, from exactly the frames and settings this pass would use: taken as it is.
+    const rateFromStream = streamed.rate && streamedRateFits(streamed.rate, rateSettings, stack.shas, stack.times) ? streamed.rate : null;
+    if (streamed.rate)
+      console.log(
+        `[tracking] run ${run.id}: the rate read as the frames arrived ${rateFromStream ? "is used" : "is not this stack's; the frames are read again"}`,
+      );
+    const measuredRate = rateFromStream
+      ? rateFromStream.columns
+      : await measureRateFromFrames({ ...rateSettings, files: stack.files, times: stack.times, signal: controller.signal });
     if (controller.signal.aborted) throw flushError ?? new TrackingError("cancelled", "The tracking job was cancelled.");
 
+    phases.mark("rate");
     const quality = new Map(result.quality.tracks.map((q) => [q.id, q]));
     const finished = {
       ...measuredRate,
@@ -264,7 +306,10 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
       scheduleRecheck(run.id, job.requestedById, "track");
       return;
     }
+    phases.mark("tracks stored");
     await checkRun(run.id, job.requestedById).catch((err) => console.error(`[tracking] theory check of run ${run.id} failed:`, err));
+    phases.mark("check");
+    console.log(`[tracking] job ${job.id} (run ${run.id}) done: ${phases.summary()}`);
   } catch (err) {
     await job.reload();
     if (job.state === "cancelled") return;

@@ -15,7 +15,7 @@ import { trackingQuality } from "../../lib/tracking/quality";
 import { lastWholeFrame, searchedWhole, searchWindows } from "../../lib/tracking/search-windows";
 import type { SearchWindow } from "../../lib/tracking/threshold";
 import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup } from "../../lib/tracking/types";
-import { decodeFrame, readFrameSize } from "./decode-frame";
+import { decodeFrame, readFrameSize, type FrameSize } from "./decode-frame";
 import { TrackingError } from "./errors";
 import { bundledWorker } from "./worker-bundle";
 import type { TrackTask, TrackTaskResult } from "./track-worker";
@@ -254,14 +254,25 @@ function defaultStep(plan: DetectionPlan): number {
   return Math.max(10, 0.1 * size);
 }
 
-export async function trackFrameStack(input: TrackFrameStackInput): Promise<TrackFrameStackResult> {
-  validate(input);
-  const { files, times, setup, signal } = input;
-  const total = files.length;
-  const startAt = input.startAt ?? 0;
-  if (signal?.aborted) throw cancelled();
+/**
+ * What searching frames of one stack needs, made once: the plan, the worker pool and the still
+ * background of the stack's sampled frames. `files` is the stack in order; only the frames
+ * `backgroundSampleIndices(files.length)` names are read (the streaming tracker passes the
+ * stack's length with just those filled in, app/.server/jobs/frame-stream.ts).
+ */
+export interface StackSearch {
+  plan: DetectionPlan;
+  width: number;
+  height: number;
+  /**
+   * The tracer in one frame of the stack (decoded from `file`, searched against the background):
+   * in `windows` when they settle to some (search-windows.ts), else over the whole frame.
+   */
+  detect(file: string, index: number, windows?: Promise<SearchWindow[] | null>): Promise<Detection[]>;
+}
 
-  const { width, height } = await readFrameSize(files[0]!, 0);
+export async function prepareStackSearch(files: string[], setup: TrackingSetup, size: FrameSize, signal?: AbortSignal): Promise<StackSearch> {
+  const { width, height } = size;
   const plan = makePlan(setup, width, height);
   const key = planKey(plan);
   const workers = await trackingPool();
@@ -274,12 +285,47 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   } finally {
     await warmUp;
   }
+  return {
+    plan,
+    width,
+    height,
+    async detect(file: string, index: number, windows?: Promise<SearchWindow[] | null>) {
+      // Decoded while the earlier frames that place the windows are still being searched.
+      const image = await decodeFrame(file, index, plan);
+      const inWindows = (await windows) ?? null;
+      if (signal?.aborted) throw cancelled();
+      try {
+        return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background, windows: inWindows }, [
+          image.buffer as ArrayBuffer,
+        ])) as Detection[];
+      } catch (error) {
+        throw searchFailed(index, error);
+      }
+    },
+  };
+}
+
+export async function trackFrameStack(input: TrackFrameStackInput): Promise<TrackFrameStackResult> {
+  validate(input);
+  const { files, times, setup, signal } = input;
+  const total = files.length;
+  const startAt = input.startAt ?? 0;
+  if (signal?.aborted) throw cancelled();
 
   const byFrame = new Map<number, FrameDetections>();
   for (const prior of input.priorDetections ?? []) {
-    if (prior.frameIndex < startAt) byFrame.set(prior.frameIndex, prior);
+    // Frames before `startAt` (a resumed job) and any other frame already searched (streamed as it arrived).
+    if (prior.frameIndex < total) byFrame.set(prior.frameIndex, prior);
   }
-  let done = startAt;
+  const toSearch: number[] = [];
+  for (let index = startAt; index < total; index++) if (!byFrame.has(index)) toSearch.push(index);
+  const size = await readFrameSize(files[0]!, 0);
+  // Every frame already searched: no background, no workers, straight to linking.
+  const search = toSearch.length ? await prepareStackSearch(files, setup, size, signal) : null;
+  const plan = search?.plan ?? makePlan(setup, size.width, size.height);
+  const { width, height } = size;
+
+  let done = total - toSearch.length;
   let lastProgress = 0;
   const progress = (force: boolean) => {
     const now = Date.now();
@@ -305,16 +351,8 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
     return searchWindows({ recent: [latest, before, earlier], lastWhole, lag: windowLag, maxStepPx: linkGate });
   };
   const searchFrame = async (index: number): Promise<void> => {
-    const image = await decodeFrame(files[index]!, index, plan);
+    const detections = await search!.detect(files[index]!, index, windowsFor(index));
     if (failure || signal?.aborted) return;
-    const windows = await windowsFor(index);
-    if (failure || signal?.aborted) return;
-    let detections: Detection[];
-    try {
-      detections = (await runTask(workers, { kind: "detect", plan, planKey: key, image, background, windows }, [image.buffer as ArrayBuffer])) as Detection[];
-    } catch (error) {
-      throw searchFailed(index, error);
-    }
     const frame: FrameDetections = { frameIndex: index, t: times[index]!, detections };
     byFrame.set(index, frame);
     done++;
@@ -323,7 +361,8 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   };
 
   const inFlight = new Set<Promise<void>>();
-  for (let index = startAt; index < total && !failure && !signal?.aborted; index++) {
+  for (const index of toSearch) {
+    if (failure || signal?.aborted) break;
     const task: Promise<void> = searchFrame(index)
       .catch((error: unknown) => {
         failure ??= error;

@@ -82,8 +82,11 @@ function cleanName(name: string) {
 /** Positions 0…N−1 in the stack's order, after frames came or went; returns how many there are. */
 export async function renumber(runId: number, transaction: import("sequelize").Transaction) {
   const frames = await Frame.findAll({ where: { runId }, attributes: ["id", "originalName", "timeS", "position"], transaction });
-  // Frames cut from a video carry their time: order by it. Stacks from files go by natural name order (frame_2 before frame_10).
-  const ordered = orderBy(frames, [(f) => (f.timeS ?? Number.POSITIVE_INFINITY), (f) => f.originalName], ["asc", "asc"]);
+  // Frames cut from a video carry their time: order by it. Stacks from files go by natural name order (frame_2 before frame_10),
+  // and so does a stack with any still without a time: the times a removal wrote on the others (Decision 56) must not put a
+  // still uploaded afterwards behind them all, as when a frame is replaced while a stack streams in (Decision 61).
+  const allTimed = frames.every((f) => f.timeS !== null && Number.isFinite(f.timeS));
+  const ordered = allTimed ? orderBy(frames, [(f) => f.timeS, (f) => f.originalName], ["asc", "asc"]) : orderBy(frames, [(f) => f.originalName], ["asc"]);
   for (let i = 0; i < ordered.length; i++) {
     if (ordered[i]!.position !== i) await Frame.update({ position: i }, { where: { id: ordered[i]!.id }, transaction });
   }

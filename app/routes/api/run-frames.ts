@@ -10,6 +10,8 @@ import { Frame } from "~/.server/db";
 import { inputsChanged } from "~/.server/runs/rechecks";
 import { uploadLimits } from "~/lib/upload-limits";
 import { parseFrameTime } from "~/lib/video-frames";
+import { parseFrameStream } from "~/lib/frame-stream";
+import { streamedUpload } from "~/.server/jobs/stream-upload";
 import type { FrameRemovalView, FrameStackView, FrameUploadRefusedView } from "~/.server/openapi/responses/tracking";
 import { removeFrameSelection } from "~/.server/runs/frame-removal";
 import { runErrorResponse } from "~/.server/runs/api";
@@ -55,6 +57,9 @@ export async function action({ request, params }: Route.ActionArgs) {
       // A frame cut from a video carries its own time; stills without one are spaced by the frame rate.
       const time = parseFrameTime(fields.timeS ?? null);
       if (!time.ok) return apiError(400, "invalid_time", time.message);
+      // A client streaming a stack says where this frame belongs and how many will come (Decision 61).
+      const stream = parseFrameStream(fields.frameNumber ?? null, fields.expectedFrames ?? null);
+      if (!stream.ok) return apiError(400, "invalid_stream", stream.message);
       try {
         const result = await receiveFrameFile(run, file, time.timeS);
         if (result.accepted.length === 0 && result.rejected.length > 0) {
@@ -67,6 +72,7 @@ export async function action({ request, params }: Route.ActionArgs) {
         const allDuplicates = result.accepted.length > 0 && result.accepted.every((a) => a.duplicate);
         // New frames make a checked run's tracks and check out of date: track again.
         if (!allDuplicates && result.accepted.length) await inputsChanged(run.id, user.id, "track");
+        await streamedUpload(run, result, stream.declared, user.id);
         return Response.json(result, { status: allDuplicates ? 200 : 201 });
       } catch (err) {
         if (err instanceof UploadError) return apiError(err.status, err.code, `${file.name}: ${err.message}`);

@@ -187,6 +187,28 @@ Detection.init(
   { sequelize, tableName: "detections", underscored: true, timestamps: false },
 );
 
+/** The tracer found in one frame as it arrived (migration 0016; app/.server/jobs/frame-stream.ts). */
+export class StreamedDetection extends Model<InferAttributes<StreamedDetection>, InferCreationAttributes<StreamedDetection>> {
+  declare id: CreationOptional<number>;
+  declare runId: number;
+  declare sha256: string;
+  declare basis: string;
+  /** JSON array of the detector's detections in the frame. */
+  declare detections: string;
+  declare createdAt: CreationOptional<Date>;
+}
+StreamedDetection.init(
+  {
+    id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+    runId: { type: DataTypes.INTEGER, allowNull: false },
+    sha256: { type: DataTypes.STRING(64), allowNull: false },
+    basis: { type: DataTypes.STRING(64), allowNull: false },
+    detections: { type: DataTypes.TEXT, allowNull: false },
+    createdAt: DataTypes.DATE,
+  },
+  { sequelize, tableName: "streamed_detections", underscored: true, updatedAt: false },
+);
+
 export class TheoryCheck extends Model<InferAttributes<TheoryCheck>, InferCreationAttributes<TheoryCheck>> {
   declare id: CreationOptional<number>;
   declare runId: number;

@@ -15,6 +15,7 @@ import {
 import { runApiCreateSchema, runApiPatchSchema } from "~/lib/validation/run-api";
 import { runFiltersSchema } from "~/lib/validation/run-filters";
 import { frameRemovalSchema } from "~/lib/validation/frame-removal";
+import { uploadLimits } from "~/lib/upload-limits";
 
 const tags = ["Runs"];
 const noRun = error("No such run (not_found).");
@@ -168,6 +169,18 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
             schema: z.strictObject({
               file: z.string().openapi({ format: "binary", description: "JPEG, PNG, TIFF or WebP image, or a ZIP of them; checked by content." }),
               timeS: z.number().min(0).optional().openapi({ description: "The frame's own time in s, for a frame cut from a video." }),
+              frameNumber: z
+                .int()
+                .min(1)
+                .optional()
+                .openapi({
+                  description:
+                    "With expectedFrames: this frame's 1-based place in the finished stack (by time, else by file name). The frame is then searched for the tracer as it lands.",
+                }),
+              expectedFrames: z.int().min(3).max(uploadLimits.maxFramesPerRun).optional().openapi({
+                description:
+                  "With frameNumber: how many frames the finished stack will have. The upload that brings the stack to this count starts tracking when the run has a view setup. Send the frames the still background is made of first (the frames at 0-based places round(i·(N−1)/20), i = 0…20, for N ≥ 21) so the others can be searched as they land.",
+              }),
             }),
           },
         },
@@ -176,7 +189,9 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
     responses: {
       200: json(frameUploadSchema, "Every file was already in the stack"),
       201: json(frameUploadSchema, "Accepted and rejected files"),
-      400: error("No file field (missing_file), a bad timeS (invalid_time), or unreadable multipart (invalid_multipart)."),
+      400: error(
+        "No file field (missing_file), a bad timeS (invalid_time), a bad or half frameNumber/expectedFrames pair (invalid_stream), or unreadable multipart (invalid_multipart).",
+      ),
       403: writers,
       404: noRun,
       409: error(`${signedOff}.`),

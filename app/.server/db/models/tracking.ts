@@ -187,7 +187,7 @@ Detection.init(
   { sequelize, tableName: "detections", underscored: true, timestamps: false },
 );
 
-/** The tracer found in one frame as it arrived (migration 0016; app/.server/jobs/frame-stream.ts). */
+/** The tracer found in one frame as it arrived (migration 0015; app/.server/jobs/frame-stream.ts). */
 export class StreamedDetection extends Model<InferAttributes<StreamedDetection>, InferCreationAttributes<StreamedDetection>> {
   declare id: CreationOptional<number>;
   declare runId: number;

@@ -33,6 +33,7 @@ import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
 import { Notice, FormProblem } from "~/components/ui/notice";
 import { formText } from "~/lib/form-text";
+import { numberOrNull } from "~/lib/number-input";
 
 export const meta: Route.MetaFunction = () => [{ title: "Bookings · Tankside" }];
 export const links: Route.LinksFunction = () => [
@@ -191,7 +192,9 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
   const [depth, setDepth] = useState("");
   const [start, setStart] = useState(String(fields.start.initialValue ?? ""));
   const chosenItem = items.find((i) => String(i.id) === chosen);
-  const leadS = Number(rate) > 0 && Number(depth) > 0 ? spinUpLeadS(Number(depth) / 100, Number(rate), loaderData.spinUpTimesToWait) : null;
+  const rateRpm = numberOrNull(rate) ?? 0;
+  const depthCm = numberOrNull(depth) ?? 0;
+  const leadS = rateRpm > 0 && depthCm > 0 ? spinUpLeadS(depthCm / 100, rateRpm, loaderData.spinUpTimesToWait) : null;
   const startAt = start ? fromZonedInput(start, time.zone) : null;
   const proposedStart = leadS !== null && startAt ? new Date(Math.floor((startAt.getTime() - leadS * 1000) / 60_000) * 60_000) : null;
   const weekItem = items.find((i) => i.id === week.itemId);

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { settingLimits, timeZoneError, type SettingKey } from "../settings";
+import { SIGN_OFF_RULES, settingLimits, timeZoneError, type SettingKey } from "../settings";
 import { isTimeZone } from "../time-format";
 import { evenWithFieldErrors, strictNumber } from "./fields";
 
@@ -35,6 +35,8 @@ export const labSettingsSchema = z
     sessionIdleHours: field("sessionIdleHours"),
     // Left out (an older form or script): the lab's choice stays as it is.
     rateSource: z.enum(["calibrated", "footage"], { error: "Choose which rate the theory check uses." }).optional(),
+    // Left out: the lab's rule stays as it is.
+    signOffRule: z.enum(SIGN_OFF_RULES, { error: "Choose who may sign off a calibration." }).optional(),
     // Empty (or left out) means the server's own zone.
     timeZone: z
       .string()

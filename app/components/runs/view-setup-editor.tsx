@@ -335,14 +335,20 @@ export function ViewSetupEditor({
         </fieldset>
         <fieldset className="grid grid-cols-3 gap-3">
           <legend className="mb-1 font-bold">Tank edge (px)</legend>
-          <TextField label="Column" {...numberField("edgeX", v.edge?.cx, (n) => (n === null || !v.edge ? null : { ...v, edge: { ...v.edge, cx: n } }))} />
-          <TextField label="Row" {...numberField("edgeY", v.edge?.cy, (n) => (n === null || !v.edge ? null : { ...v, edge: { ...v.edge, cy: n } }))} />
+          <TextField
+            label="Column"
+            {...numberField("edgeX", v.edge?.cx, (n) => (n === null ? null : { ...v, edge: { cx: n, cy: v.edge?.cy ?? 0, r: v.edge?.r ?? 0 } }))}
+          />
+          <TextField
+            label="Row"
+            {...numberField("edgeY", v.edge?.cy, (n) => (n === null ? null : { ...v, edge: { cx: v.edge?.cx ?? 0, cy: n, r: v.edge?.r ?? 0 } }))}
+          />
           <TextField
             label="Radius"
             {...numberField(
               "edgeR",
               v.edge?.r,
-              (n) => (n === null || !v.edge ? null : { ...v, edge: { ...v.edge, r: n } }),
+              (n) => (n === null ? null : { ...v, edge: { cx: v.edge?.cx ?? 0, cy: v.edge?.cy ?? 0, r: n } }),
               positive("The tank edge's radius", "px"),
             )}
           />
@@ -368,7 +374,7 @@ export function ViewSetupEditor({
           />
           <input type="hidden" name="scaleLengthPx" value={scalePx === null ? "" : String(scalePx)} />
           <input type="hidden" name="scalePoints" value={v.scalePoints ? JSON.stringify(v.scalePoints) : ""} />
-          <p className="text-muted">
+          <p className="text-muted" data-testid="scale-readout">
             {pxPerM
               ? `${formatFixed(pxPerM / 100, 2)} px per cm (${formatFixed(pxPerM, 1)} px/m)`
               : "No scale: speeds and radii stay in pixels; f does not need one."}

@@ -22,6 +22,7 @@ export const calibrationFieldLabels: Record<string, string> = {
   referenceElapsedS: "elapsed time by the reference (s)",
   referenceElapsedUncertaintyS: "uncertainty of the elapsed time (s)",
   attachment: "file attached",
+  attachmentRemoved: "file removed",
   signedOff: "signed off",
 };
 

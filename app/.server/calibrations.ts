@@ -192,20 +192,34 @@ export async function updateCalibration(id: number, input: CalibrationInput, edi
   });
 }
 
-/** A lab manager's sign-off: once, and from then on the record never changes. */
+/** Why this person may not sign this record off under the lab's rule, or null when they may. */
+export function secondPersonRefusal(cal: Pick<Calibration, "performedById">, signer: Pick<CurrentUser, "id">, signOffBySecondPerson: boolean): string | null {
+  if (!signOffBySecondPerson || cal.performedById !== signer.id) return null;
+  return "You performed this calibration, and the lab requires a second person to sign it off: another lab manager must check and sign it.";
+}
+
+/**
+ * A lab manager's sign-off: once, and from then on the record never changes. Under the lab's
+ * second-person rule (on by default) the signer is not the person who performed the record.
+ * The record is read with its row lock, so the checks and the write see the same row.
+ */
 export async function signOffCalibration(id: number, manager: Pick<CurrentUser, "id" | "role">) {
   if (manager.role !== "lab_manager") throw new CalibrationError(403, "forbidden", "Only a lab manager signs calibrations off.");
   const now = new Date();
   return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+    const found = await Calibration.findByPk(id, locking(t));
+    if (!found) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
+    if (found.signedOffAt) throw new CalibrationError(409, "calibration_signed", "This record was already signed off.");
+    const refusal = secondPersonRefusal(found, manager, (await getLabSettings(t)).signOffBySecondPerson);
+    if (refusal) throw new CalibrationError(403, "second_person_required", refusal);
     const [count] = await Calibration.update(
       { signedOffById: manager.id, signedOffAt: now },
       { where: { id, signedOffAt: { [Op.is]: null } }, transaction: t },
     );
-    const cal = await Calibration.findByPk(id, { transaction: t });
-    if (!cal) throw new CalibrationError(404, "not_found", "That calibration record does not exist.");
     if (count === 0) throw new CalibrationError(409, "calibration_signed", "This record was already signed off.");
     await noteCalibrationChange(t, id, manager.id, "signedOff", null, null);
-    return cal;
+    await found.reload({ transaction: t });
+    return found;
   });
 }
 

@@ -6,6 +6,7 @@ import {
   LAB_ID_SETTING,
   RATE_SOURCE_SETTING,
   RATE_SOURCES,
+  SIGN_OFF_SETTING,
   TIME_ZONE_SETTING,
   settingDefaults,
   settingLimits,
@@ -13,12 +14,19 @@ import {
   type LabSettings,
   type RateSource,
   type SettingKey,
+  type SignOffRule,
 } from "~/lib/settings";
 import { isTimeZone, systemTimeZone } from "~/lib/time-format";
 
 export async function getLabSettings(transaction?: Transaction): Promise<LabSettings> {
   const rows = await LabSetting.findAll({ transaction });
-  const settings: LabSettings = { ...settingDefaults, timeZone: systemTimeZone(), timeZoneIsServerDefault: true, rateSource: DEFAULT_RATE_SOURCE };
+  const settings: LabSettings = {
+    ...settingDefaults,
+    timeZone: systemTimeZone(),
+    timeZoneIsServerDefault: true,
+    rateSource: DEFAULT_RATE_SOURCE,
+    signOffBySecondPerson: true,
+  };
   for (const row of rows) {
     if (row.key in settingDefaults) {
       const value = Number(row.value);
@@ -28,6 +36,9 @@ export async function getLabSettings(transaction?: Transaction): Promise<LabSett
       settings.timeZoneIsServerDefault = false;
     } else if (row.key === RATE_SOURCE_SETTING && (RATE_SOURCES as readonly string[]).includes(row.value)) {
       settings.rateSource = row.value as RateSource;
+    } else if (row.key === SIGN_OFF_SETTING) {
+      // Only the word that turns it off does: a damaged row keeps the safer rule.
+      settings.signOffBySecondPerson = row.value !== "anyone";
     }
   }
   return settings;
@@ -53,6 +64,13 @@ export async function setLabRateSource(value: RateSource) {
   if (!RATE_SOURCES.includes(value)) throw new RangeError(`"${String(value)}" is not a rate the check can use: choose ${RATE_SOURCES.join(" or ")}.`);
   if (value === DEFAULT_RATE_SOURCE) await LabSetting.destroy({ where: { key: RATE_SOURCE_SETTING } });
   else await LabSetting.upsert({ key: RATE_SOURCE_SETTING, value });
+}
+
+/** Whether a calibration needs a second person to sign it off; the default (a second person) removes the row. */
+export async function setSignOffRule(rule: SignOffRule) {
+  if (rule === "second_person") await LabSetting.destroy({ where: { key: SIGN_OFF_SETTING } });
+  else if (rule === "anyone") await LabSetting.upsert({ key: SIGN_OFF_SETTING, value: rule });
+  else throw new RangeError(`"${String(rule)}" is not a sign-off rule: choose second_person or anyone.`);
 }
 
 /** Sets the lab's time zone (an IANA name or UTC); an empty name goes back to the server's zone. */

@@ -24,7 +24,10 @@ export function CalibrationUploader({ calibrationId }: { calibrationId: number }
   const [problems, setProblems] = useState<string[]>([]);
   useEffect(() => {
     const onError = (file: { name?: string } | undefined, error: { message?: string }, response?: { body?: UploadBody }) => {
-      setProblems((p) => [...p, `${file?.name ?? "A file"}: ${response?.body?.error?.message ?? error?.message ?? "refused"}`]);
+      const message = response?.body?.error?.message ?? error?.message ?? "refused";
+      const name = file?.name ?? "A file";
+      // The server's message may name the file already; it is said once.
+      setProblems((p) => [...p, message.includes(name) ? message : `${name}: ${message}`]);
     };
     // The revalidation reports its own failures through the route; nothing here waits for it.
     const onComplete = () => void revalidator.revalidate();

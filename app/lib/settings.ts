@@ -35,12 +35,22 @@ export type LabSettings = NumberSettings & {
   timeZone: string;
   /** True while no zone is set and the server's own is used. */
   timeZoneIsServerDefault: boolean;
+  /** A calibration is signed off by someone other than the person who performed it (on unless the lab turns it off). */
+  signOffBySecondPerson: boolean;
 };
 
 /** The row keys of the settings that are not numbers. */
 export const TIME_ZONE_SETTING = "timeZone";
 export const LAB_ID_SETTING = "labId";
 export const RATE_SOURCE_SETTING = "rateSource";
+/** The row that turns the second-person rule for calibration sign-off off ("anyone"); no row means it is on. */
+export const SIGN_OFF_SETTING = "calibrationSignOff";
+export const SIGN_OFF_RULES = ["second_person", "anyone"] as const;
+export type SignOffRule = (typeof SIGN_OFF_RULES)[number];
+export const signOffRuleLabels: Record<SignOffRule, string> = {
+  second_person: "By a second person: a lab manager may not sign off a calibration they performed themselves",
+  anyone: "By any lab manager, including the one who performed it",
+};
 
 export const rateSourceLabels: Record<RateSource, string> = {
   calibrated: "The rate calibration in force (the set rate without one)",

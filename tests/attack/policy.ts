@@ -44,7 +44,8 @@ export const policy: Record<string, Partial<Record<Method, Access>>> = {
   // Instructors read calibration records (they book the equipment they calibrate); only lab staff write them.
   "routes/calibrations/list": { GET: signedIn },
   "calibration-new": { GET: labStaff, POST: labStaff },
-  "routes/calibrations/detail": { GET: signedIn, POST: managers },
+  // Posts sign off (lab managers, checked per intent) or remove an attachment (the record's people).
+  "routes/calibrations/detail": { GET: signedIn, POST: labStaff },
   "calibration-edit": { GET: labStaff, POST: labStaff },
   "routes/settings/settings": { GET: managers, POST: managers },
   "routes/runs/list": { GET: signedIn, POST: signedIn },
@@ -87,7 +88,7 @@ export const policy: Record<string, Partial<Record<Method, Access>>> = {
   "routes/api/run-sign-off": { POST: managers },
   "routes/api/calibration-sign-off": { POST: managers },
   "routes/api/calibration-attachments": { POST: labStaff },
-  "routes/api/calibration-attachment": { GET: signedIn },
+  "routes/api/calibration-attachment": { GET: signedIn, DELETE: labStaff },
   "routes/api/not-found": { GET: "public", POST: "public", PUT: "public", PATCH: "public", DELETE: "public" },
 };
 

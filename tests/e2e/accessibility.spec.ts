@@ -248,6 +248,16 @@ for (const [role, email] of [
       for (const kind of some(new Set(calibrations.map((c) => String(c.kind))))) {
         await expectAccessible(page, `a ${kind} calibration as ${role}`, goto(page, `/calibrations/${Number(calibrations.find((c) => c.kind === kind)?.id)}`));
       }
+      // A record waiting for sign-off, with the sign-off's question open (only a lab manager, who did not perform it, sees it).
+      const me = (await (await page.request.get("/api/v1/me")).json()) as { id: number };
+      const waiting = calibrations.find((c) => c.signedOffAt === null && c.performedById !== me.id);
+      if (allStates && waiting) {
+        await expectAccessible(page, `a calibration's sign-off awaiting confirmation as ${role}`, async () => {
+          await page.goto(`/calibrations/${Number(waiting.id)}`);
+          await page.getByRole("button", { name: "Sign off" }).click();
+          await expect(page.getByTestId("sign-off-confirmation")).toBeVisible();
+        });
+      }
     });
 
     test("a booking", async () => {

@@ -140,6 +140,7 @@ test("a technician records a rate calibration, the lab manager signs it off, aft
   await signIn(managerPage, people.manager);
   await managerPage.goto(`/calibrations/${id}`);
   await managerPage.getByRole("button", { name: "Sign off" }).click();
+  await managerPage.getByRole("button", { name: "Yes, sign it off" }).click();
   await expect(managerPage.getByText(/Signed off\. From now on/)).toBeVisible();
   await expect(managerPage.getByText("In force").first()).toBeVisible();
 

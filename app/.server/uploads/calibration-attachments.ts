@@ -83,6 +83,28 @@ async function storeAttachment(calibrationId: number, file: StagedFile, uploader
   }
 }
 
+/**
+ * Takes a wrong photo or certificate off a record that is not signed off: the same people as
+ * attaching (its performer or a lab manager), under the record's lock so a sign-off lands wholly
+ * before (and the removal is refused, 409) or after. The row and its history line go in one
+ * transaction; the stored file is deleted after the commit, and a failure to delete it is only
+ * logged (the start-up sweep removes files no row names).
+ */
+export async function removeCalibrationAttachment(calibrationId: number, attachmentId: number, remover: Pick<CurrentUser, "id" | "role">) {
+  const removed = await sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, async (t) => {
+    await assertCalibrationEditable(calibrationId, remover, t);
+    const row = await CalibrationAttachment.findOne({ where: { id: attachmentId, calibrationId }, transaction: t });
+    if (!row) throw new CalibrationError(404, "not_found", "That attachment is not on this record (removed already?).");
+    await row.destroy({ transaction: t });
+    await noteCalibrationChange(t, calibrationId, remover.id, "attachmentRemoved", null, row.originalName);
+    return { name: row.originalName, key: calibrationKey(row.storedName) };
+  });
+  await store()
+    .delete(removed.key)
+    .catch((err: unknown) => console.error(`calibration ${calibrationId}: the file of removed attachment "${removed.name}" could not be deleted`, err));
+  return removed;
+}
+
 /** An attachment's row and the key of its stored file, or null when there is no such row. */
 export async function findCalibrationAttachment(calibrationId: number, attachmentId: number): Promise<{ row: CalibrationAttachment; key: string } | null> {
   const row = await CalibrationAttachment.findOne({ where: { id: attachmentId, calibrationId } });

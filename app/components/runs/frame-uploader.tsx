@@ -5,10 +5,32 @@ import { useRevalidator } from "react-router";
 import { cutVideoIntoFrames } from "./video-frames";
 import { uploadLimits, acceptedFrameTypes } from "~/lib/upload-limits";
 import { Button } from "~/components/ui/button";
+import { formatFixed } from "~/lib/number-format";
 
 /** A frame cut from a video carries its own time in s; a still carries none. */
 type Meta = { timeS: string; displayName?: string };
-type Outcome = { id: string; name: string; state: "waiting" | "sent" | "duplicate" | "rejected"; message?: string };
+type Outcome = { id: string; name: string; state: "waiting" | "sent" | "duplicate" | "rejected"; message?: string; frames?: number; bytes: number };
+
+/** A refusal names its file once: the server's own message often starts with the name already. */
+export function outcomeLine(name: string, message: string | undefined) {
+  if (!message) return name;
+  return message.includes(name) ? message : `${name}: ${message}`;
+}
+
+/** "12.3 MB" for the progress line; bytes in decimal megabytes, as file browsers show them. */
+const megabytes = (bytes: number) => `${formatFixed(bytes / 1e6, 1)} MB`;
+
+/**
+ * Refused here, before a byte is sent, when the file is over what the server takes (it checks
+ * again): an image over the frame limit, a ZIP over the ZIP limit. By name only to pick the limit;
+ * the server judges the content.
+ */
+export function tooLargeToSend(file: { name: string; size: number }): string | null {
+  const zip = /\.zip$/i.test(file.name);
+  const limit = zip ? uploadLimits.maxZipBytes : uploadLimits.maxFrameBytes;
+  if (file.size <= limit) return null;
+  return `${file.name} is ${megabytes(file.size)}; ${zip ? "a ZIP" : "one frame"} may be at most ${limit / 1024 / 1024} MB. Not sent.`;
+}
 
 interface ResponseBody {
   accepted?: { name: string; duplicate: boolean }[];
@@ -51,6 +73,7 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
   const [busy, setBusy] = useState(false);
   const [cutting, setCutting] = useState<{ name: string; done: number; total: number } | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
+  const [sentBytes, setSentBytes] = useState<Record<string, number>>({});
   const [over, setOver] = useState(false);
   const input = useRef<HTMLInputElement>(null);
 
@@ -64,6 +87,7 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
       const dup = accepted.length > 0 && accepted.every((a) => a.duplicate);
       update(file.id, {
         state: dup ? "duplicate" : "sent",
+        frames: accepted.filter((a) => !a.duplicate).length,
         message: dup
           ? "Already in the stack; ignored."
           : rejected.length
@@ -82,10 +106,16 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
       uppy.clear();
       void revalidator.revalidate();
     };
+    // Bytes sent so far, per file: a ZIP of hundreds of frames is one long request.
+    const onProgress = (file: { id: string } | undefined, progress: { bytesUploaded: number }) => {
+      if (file) setSentBytes((m) => ({ ...m, [file.id]: progress.bytesUploaded }));
+    };
+    uppy.on("upload-progress", onProgress);
     uppy.on("upload-success", onSuccess);
     uppy.on("upload-error", onError);
     uppy.on("complete", onComplete);
     return () => {
+      uppy.off("upload-progress", onProgress);
       uppy.off("upload-success", onSuccess);
       uppy.off("upload-error", onError);
       uppy.off("complete", onComplete);
@@ -107,14 +137,24 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
           setCutting(null);
           for (const f of frames) {
             const id = uppy.addFile({ name: f.file.name, type: "image/jpeg", data: f.file, meta: { timeS: String(f.timeS) } });
-            queued.push({ id, name: f.file.name, state: "waiting" });
+            queued.push({ id, name: f.file.name, state: "waiting", bytes: f.file.size });
           }
         } else {
+          const refusal = tooLargeToSend(file);
+          if (refusal) {
+            queued.push({ id: `refused-${file.name}-${Date.now()}`, name: file.name, state: "rejected", message: refusal, bytes: 0 });
+            continue;
+          }
           const id = uppy.addFile({ name: file.name, type: file.type || "application/octet-stream", data: file, meta: { timeS: "" } });
-          queued.push({ id, name: file.name, state: "waiting" });
+          queued.push({ id, name: file.name, state: "waiting", bytes: file.size });
         }
       }
       setOutcomes((list) => [...queued, ...list].slice(0, 500));
+      setSentBytes({});
+      if (uppy.getFiles().length === 0) {
+        setBusy(false);
+        return;
+      }
       await uppy.upload();
     } catch (err) {
       setCutting(null);
@@ -123,9 +163,12 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
     }
   }
 
-  const sent = outcomes.filter((o) => o.state === "sent").length;
+  const framesTaken = outcomes.reduce((n, o) => n + (o.state === "sent" ? (o.frames ?? 1) : 0), 0);
   const rejected = outcomes.filter((o) => o.state === "rejected");
-  const waiting = outcomes.filter((o) => o.state === "waiting").length;
+  const waitingFiles = outcomes.filter((o) => o.state === "waiting");
+  const waiting = waitingFiles.length;
+  const bytesTotal = waitingFiles.reduce((n, o) => n + o.bytes, 0);
+  const bytesSent = waitingFiles.reduce((n, o) => n + Math.min(o.bytes, sentBytes[o.id] ?? 0), 0);
 
   return (
     <div className="flex flex-col gap-3">
@@ -175,18 +218,18 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
       ) : null}
       {outcomes.length ? (
         <div aria-live="polite">
-          <p className="font-bold">
-            {waiting ? `Sending ${waiting} file(s)… ` : ""}
-            {sent} sent
-            {rejected.length ? `, ${rejected.length} refused` : ""}
+          <p className="font-bold" data-testid="upload-summary">
+            {waiting ? `Sending ${waiting} file(s): ${megabytes(bytesSent)} of ${megabytes(bytesTotal)}… ` : ""}
+            {framesTaken} {framesTaken === 1 ? "frame" : "frames"} taken
+            {rejected.length ? `, ${rejected.length} ${rejected.length === 1 ? "file" : "files"} refused` : ""}
           </p>
-          {busy ? <progress className="h-4 w-full" max={outcomes.length} value={outcomes.length - waiting} /> : null}
+          {busy && waiting ? <progress className="h-4 w-full" aria-label="Bytes sent" max={bytesTotal || 1} value={bytesSent} /> : null}
           <ul className="mt-2 flex max-h-64 flex-col gap-1 overflow-auto" data-testid="upload-outcomes">
             {outcomes
               .filter((o) => o.state !== "sent" || o.message)
               .map((o) => (
                 <li key={o.id} className={o.state === "rejected" ? "font-bold text-disagrees-ink" : "text-muted"}>
-                  {o.name}: {o.state === "waiting" ? "waiting" : o.message}
+                  {o.state === "waiting" ? `${o.name}: waiting` : outcomeLine(o.name, o.message)}
                 </li>
               ))}
           </ul>

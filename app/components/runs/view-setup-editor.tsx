@@ -1,9 +1,10 @@
-import { useLayoutEffect, useRef, useState, type KeyboardEvent, type MouseEvent } from "react";
+import { useLayoutEffect, useRef, useState, type ChangeEvent, type KeyboardEvent, type MouseEvent } from "react";
 import { circleThroughThreePoints, distance, type Point } from "~/lib/geometry";
 import { Button } from "~/components/ui/button";
 import { TextField } from "~/components/ui/field";
 import { formatFixed } from "~/lib/number-format";
 import { nudge, setupMarks, type SetupValues } from "~/lib/setup-marks";
+import { NOT_A_NUMBER, readNumber } from "~/lib/number-input";
 
 export type { SetupValues };
 
@@ -38,6 +39,9 @@ export function ViewSetupEditor({
   const [clicks, setClicks] = useState<Point[]>([]);
   const [selected, setSelected] = useState<string>(initial.centre ? "centre" : "");
   const [zoom, setZoom] = useState<number>(1);
+  // What the person is typing in a number field, kept as typed ("12.", "12,5") until it is left;
+  // the marks follow every value that reads as a number, and nothing else (no NaN, no 0).
+  const [drafts, setDrafts] = useState<Record<string, string>>({});
   const svg = useRef<SVGSVGElement>(null);
   const viewport = useRef<HTMLDivElement>(null);
   // Marks keep their size on screen at every zoom, so a zoomed view is as precise as it looks.
@@ -91,6 +95,7 @@ export function ViewSetupEditor({
     e.preventDefault();
     const next = nudge(v, selectedMark, e.key, e.shiftKey, { width, height });
     setV(next);
+    setDrafts({});
     bringIntoView(selectedMark.at(next), false);
   }
 
@@ -101,6 +106,7 @@ export function ViewSetupEditor({
 
   function onClick(e: MouseEvent<SVGSVGElement>) {
     const p = toImage(e);
+    setDrafts({});
     if (tool === "centre") {
       setV({ ...v, centre: p });
       setSelected("centre");
@@ -131,8 +137,43 @@ export function ViewSetupEditor({
   }
 
   const scalePx = v.scalePoints ? distance(v.scalePoints[0], v.scalePoints[1]) : null;
-  const pxPerM = scalePx && v.scaleLengthCm ? scalePx / (v.scaleLengthCm / 100) : null;
+  const pxPerM = scalePx && v.scaleLengthCm && v.scaleLengthCm > 0 ? scalePx / (v.scaleLengthCm / 100) : null;
   const num = (n: number | undefined | null) => (n === null || n === undefined ? "" : String(Math.round(n * 100) / 100));
+
+  /**
+   * A number field of the setup: shows the draft while typed, moves the mark for each value that
+   * reads as a number and passes `rule` (null when blank), and says at once what is wrong.
+   */
+  function numberField(name: string, shown: number | null | undefined, apply: (n: number | null) => SetupValues | null, rule?: (n: number) => string | null) {
+    const draft = drafts[name];
+    const text = draft ?? num(shown);
+    const reading = readNumber(text);
+    const live = reading.kind === "invalid" ? NOT_A_NUMBER : reading.kind === "number" && rule ? rule(reading.value) : null;
+    return {
+      name,
+      inputMode: "decimal" as const,
+      value: text,
+      error: draft !== undefined ? (live ? [live] : undefined) : errors[name],
+      onChange: (e: ChangeEvent<HTMLInputElement>) => {
+        const typed = e.target.value;
+        setDrafts((d) => ({ ...d, [name]: typed }));
+        const r = readNumber(typed);
+        if (r.kind === "invalid" || (r.kind === "number" && rule?.(r.value))) return;
+        const next = apply(r.kind === "number" ? r.value : null);
+        if (next) setV(next);
+      },
+      // A finished entry is shown as the number it was read as; a refused one stays, with its message.
+      onBlur: () => {
+        if (!live)
+          setDrafts((d) => {
+            const rest = { ...d };
+            delete rest[name];
+            return rest;
+          });
+      },
+    };
+  }
+  const positive = (what: string, unit: string) => (n: number) => (n > 0 ? null : `${what} must be more than 0 ${unit}.`);
 
   return (
     <div className="grid gap-6 xl:grid-cols-[2fr_1fr]">
@@ -195,7 +236,7 @@ export function ViewSetupEditor({
               onClick={onClick}
               data-testid="setup-overlay"
             >
-              {v.edge ? (
+              {v.edge && v.edge.r > 0 ? (
                 <circle
                   cx={v.edge.cx}
                   cy={v.edge.cy}
@@ -289,52 +330,38 @@ export function ViewSetupEditor({
       <div className="flex flex-col gap-4">
         <fieldset className="grid grid-cols-2 gap-3">
           <legend className="mb-1 font-bold">Rotation centre (px)</legend>
-          <TextField
-            label="Column"
-            name="centreX"
-            inputMode="decimal"
-            value={num(v.centre?.x)}
-            onChange={(e) => setV({ ...v, centre: { x: Number(e.target.value), y: v.centre?.y ?? 0 } })}
-            error={errors.centreX}
-          />
-          <TextField
-            label="Row"
-            name="centreY"
-            inputMode="decimal"
-            value={num(v.centre?.y)}
-            onChange={(e) => setV({ ...v, centre: { x: v.centre?.x ?? 0, y: Number(e.target.value) } })}
-            error={errors.centreY}
-          />
+          <TextField label="Column" {...numberField("centreX", v.centre?.x, (n) => (n === null ? null : { ...v, centre: { x: n, y: v.centre?.y ?? 0 } }))} />
+          <TextField label="Row" {...numberField("centreY", v.centre?.y, (n) => (n === null ? null : { ...v, centre: { x: v.centre?.x ?? 0, y: n } }))} />
         </fieldset>
         <fieldset className="grid grid-cols-3 gap-3">
           <legend className="mb-1 font-bold">Tank edge (px)</legend>
           <TextField
             label="Column"
-            name="edgeX"
-            inputMode="decimal"
-            value={num(v.edge?.cx)}
-            onChange={(e) => setV({ ...v, edge: { cx: Number(e.target.value), cy: v.edge?.cy ?? 0, r: v.edge?.r ?? 0 } })}
-            error={errors.edgeX}
+            {...numberField("edgeX", v.edge?.cx, (n) => (n === null ? null : { ...v, edge: { cx: n, cy: v.edge?.cy ?? 0, r: v.edge?.r ?? 0 } }))}
           />
           <TextField
             label="Row"
-            name="edgeY"
-            inputMode="decimal"
-            value={num(v.edge?.cy)}
-            onChange={(e) => setV({ ...v, edge: { cx: v.edge?.cx ?? 0, cy: Number(e.target.value), r: v.edge?.r ?? 0 } })}
-            error={errors.edgeY}
+            {...numberField("edgeY", v.edge?.cy, (n) => (n === null ? null : { ...v, edge: { cx: v.edge?.cx ?? 0, cy: n, r: v.edge?.r ?? 0 } }))}
           />
           <TextField
             label="Radius"
-            name="edgeR"
-            inputMode="decimal"
-            value={num(v.edge?.r)}
-            onChange={(e) => setV({ ...v, edge: { cx: v.edge?.cx ?? 0, cy: v.edge?.cy ?? 0, r: Number(e.target.value) } })}
-            error={errors.edgeR}
+            {...numberField(
+              "edgeR",
+              v.edge?.r,
+              (n) => (n === null ? null : { ...v, edge: { cx: v.edge?.cx ?? 0, cy: v.edge?.cy ?? 0, r: n } }),
+              positive("The tank edge's radius", "px"),
+            )}
           />
         </fieldset>
         {v.edge ? (
-          <Button type="button" tone="quiet" onClick={() => setV({ ...v, centre: { x: v.edge!.cx, y: v.edge!.cy } })}>
+          <Button
+            type="button"
+            tone="quiet"
+            onClick={() => {
+              setV({ ...v, centre: { x: v.edge!.cx, y: v.edge!.cy } });
+              setDrafts({});
+            }}
+          >
             Use the tank's centre as the rotation centre
           </Button>
         ) : null}
@@ -342,16 +369,12 @@ export function ViewSetupEditor({
           <legend className="mb-1 font-bold">Scale</legend>
           <TextField
             label="Known length between the two points"
-            name="scaleLengthCm"
             unit="cm"
-            inputMode="decimal"
-            value={v.scaleLengthCm === null ? "" : String(v.scaleLengthCm)}
-            onChange={(e) => setV({ ...v, scaleLengthCm: e.target.value === "" ? null : Number(e.target.value) })}
-            error={errors.scaleLengthCm}
+            {...numberField("scaleLengthCm", v.scaleLengthCm, (n) => ({ ...v, scaleLengthCm: n }), positive("The known length", "cm"))}
           />
           <input type="hidden" name="scaleLengthPx" value={scalePx === null ? "" : String(scalePx)} />
           <input type="hidden" name="scalePoints" value={v.scalePoints ? JSON.stringify(v.scalePoints) : ""} />
-          <p className="text-muted">
+          <p className="text-muted" data-testid="scale-readout">
             {pxPerM
               ? `${formatFixed(pxPerM / 100, 2)} px per cm (${formatFixed(pxPerM, 1)} px/m)`
               : "No scale: speeds and radii stay in pixels; f does not need one."}
@@ -361,26 +384,25 @@ export function ViewSetupEditor({
           <legend className="mb-1 font-bold">Mark on the table (px, optional)</legend>
           <TextField
             label="Column"
-            name="rateMarkX"
-            inputMode="decimal"
-            value={num(v.rateMark?.x)}
-            onChange={(e) => setV({ ...v, rateMark: e.target.value === "" ? null : { x: Number(e.target.value), y: v.rateMark?.y ?? 0 } })}
-            error={errors.rateMarkX}
+            {...numberField("rateMarkX", v.rateMark?.x, (n) => ({ ...v, rateMark: n === null ? null : { x: n, y: v.rateMark?.y ?? 0 } }))}
           />
           <TextField
             label="Row"
-            name="rateMarkY"
-            inputMode="decimal"
-            value={num(v.rateMark?.y)}
-            onChange={(e) => setV({ ...v, rateMark: e.target.value === "" ? null : { x: v.rateMark?.x ?? 0, y: Number(e.target.value) } })}
-            error={errors.rateMarkY}
+            {...numberField("rateMarkY", v.rateMark?.y, (n) => ({ ...v, rateMark: n === null ? null : { x: v.rateMark?.x ?? 0, y: n } }))}
           />
           <p className="col-span-2 text-sm text-muted">
             With a lab-fixed camera the table&apos;s rate is read from this mark; a co-rotating camera reads it from the room beyond the tank edge instead.
           </p>
         </fieldset>
         {v.rateMark ? (
-          <Button type="button" tone="quiet" onClick={() => setV({ ...v, rateMark: null })}>
+          <Button
+            type="button"
+            tone="quiet"
+            onClick={() => {
+              setV({ ...v, rateMark: null });
+              setDrafts({});
+            }}
+          >
             Clear the mark on the table
           </Button>
         ) : null}

@@ -15,6 +15,12 @@ function errorText(error: FieldShell["error"]) {
   return Array.isArray(error) ? error[0] : error;
 }
 
+/** The ids that describe a control: its hint (kept when there is an error too) and its error. */
+function describedBy(name: string, hint: ReactNode, message: string | null | undefined) {
+  const ids = [hint ? `${name}-hint` : null, message ? `${name}-error` : null].filter(Boolean);
+  return ids.length ? ids.join(" ") : undefined;
+}
+
 function Shell({ label, name, hint, error, children }: FieldShell & { children: ReactNode }) {
   const message = errorText(error);
   return (
@@ -23,7 +29,7 @@ function Shell({ label, name, hint, error, children }: FieldShell & { children: 
         {label}
       </label>
       {children}
-      {hint && !message ? (
+      {hint ? (
         <p id={`${name}-hint`} className="text-sm text-muted">
           {hint}
         </p>
@@ -46,7 +52,7 @@ export function TextField({ label, name, hint, error, unit, ...input }: FieldShe
           id={name}
           name={name}
           aria-invalid={message ? true : undefined}
-          aria-describedby={message ? `${name}-error` : hint ? `${name}-hint` : undefined}
+          aria-describedby={describedBy(name, hint, message)}
           className={control}
           {...input}
         />
@@ -60,7 +66,14 @@ export function SelectField({ label, name, hint, error, children, ...select }: F
   const message = errorText(error);
   return (
     <Shell label={label} name={name} hint={hint} error={error}>
-      <select id={name} name={name} aria-invalid={message ? true : undefined} className={control} {...select}>
+      <select
+        id={name}
+        name={name}
+        aria-invalid={message ? true : undefined}
+        aria-describedby={describedBy(name, hint, message)}
+        className={control}
+        {...select}
+      >
         {children}
       </select>
     </Shell>
@@ -71,7 +84,14 @@ export function TextAreaField({ label, name, hint, error, ...area }: FieldShell 
   const message = errorText(error);
   return (
     <Shell label={label} name={name} hint={hint} error={error}>
-      <textarea id={name} name={name} aria-invalid={message ? true : undefined} className={`${control} min-h-24`} {...area} />
+      <textarea
+        id={name}
+        name={name}
+        aria-invalid={message ? true : undefined}
+        aria-describedby={describedBy(name, hint, message)}
+        className={`${control} min-h-24`}
+        {...area}
+      />
     </Shell>
   );
 }

@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { bookingStates } from "../bookings";
-import { FIRST_YEAR, isPlausibleDateTime, LAST_YEAR } from "./fields";
+import { evenWithFieldErrors, FIRST_YEAR, isPlausibleDateTime, LAST_YEAR, strictNumber } from "./fields";
 
 const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
@@ -16,21 +16,25 @@ const purpose = z
   .min(3, "Say what the booking is for (a few words).")
   .max(300, "Keep the purpose under 300 characters.");
 
-const plannedRateRpm = z.preprocess(
-  blankToUndefined,
-  z.coerce
-    .number({ error: "The planned rate must be a number." })
-    .positive("The planned rate must be more than zero.")
-    .max(200, "A planned rate above 200 rpm is not plausible.")
-    .optional(),
+const plannedRateRpm = strictNumber(
+  z.preprocess(
+    blankToUndefined,
+    z.coerce
+      .number({ error: "The planned rate must be a number." })
+      .positive("The planned rate must be more than zero.")
+      .max(200, "A planned rate above 200 rpm is not plausible.")
+      .optional(),
+  ),
 );
-const plannedDepthCm = z.preprocess(
-  blankToUndefined,
-  z.coerce
-    .number({ error: "The planned depth must be a number." })
-    .positive("The planned depth must be more than zero.")
-    .max(200, "A planned depth above 200 cm is not plausible.")
-    .optional(),
+const plannedDepthCm = strictNumber(
+  z.preprocess(
+    blankToUndefined,
+    z.coerce
+      .number({ error: "The planned depth must be a number." })
+      .positive("The planned depth must be more than zero.")
+      .max(200, "A planned depth above 200 cm is not plausible.")
+      .optional(),
+  ),
 );
 
 /** The request form: times are the lab's local time (datetime-local fields). */
@@ -51,7 +55,7 @@ export const bookingRequestSchema = z
     if (v.addSpinUpLead && (v.plannedRateRpm === undefined || v.plannedDepthCm === undefined)) {
       ctx.addIssue({ code: "custom", path: ["addSpinUpLead"], message: "Give the planned rate and depth to add the spin-up lead time." });
     }
-  });
+  }, evenWithFieldErrors);
 
 /** The API body: ISO 8601 times with a zone (Z or an offset), so no one guesses the time zone. */
 export const bookingApiSchema = z.strictObject({

@@ -1,6 +1,6 @@
 import { z } from "zod";
 import { calibrationKinds, MIN_RATE_READINGS } from "../calibrations";
-import { FIRST_YEAR, isPlausibleDay, LAST_YEAR, strictNumber } from "./fields";
+import { evenWithFieldErrors, FIRST_YEAR, isPlausibleDay, LAST_YEAR, strictNumber } from "./fields";
 
 const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
@@ -82,15 +82,16 @@ function kindNeeds(v: z.infer<typeof calibrationFields>, ctx: z.RefinementCtx) {
   const need = (field: keyof typeof v, message: string) => {
     if (v[field] === undefined) ctx.addIssue({ code: "custom", path: [field], message });
   };
-  if (v.dueOn && v.dueOn < v.performedOn) {
+  if (typeof v.dueOn === "string" && typeof v.performedOn === "string" && v.dueOn < v.performedOn) {
     ctx.addIssue({ code: "custom", path: ["dueOn"], message: "The due date cannot be before the calibration date." });
   }
   if (v.kind === "rate") {
     need("meterId", "Choose the rate meter the readings were taken with.");
-    const n = v.readings?.length ?? 0;
+    const readings = Array.isArray(v.readings) ? v.readings : [];
+    const n = readings.length;
     if (n < MIN_RATE_READINGS) {
       ctx.addIssue({ code: "custom", path: ["readings"], message: `Enter readings at ${MIN_RATE_READINGS} or more set rates (${n} entered).` });
-    } else if (new Set(v.readings!.map((r) => r.setRpm)).size < 2) {
+    } else if (new Set(readings.map((r) => r.setRpm)).size < 2) {
       ctx.addIssue({ code: "custom", path: ["readings"], message: "Use at least two different set rates, or no line can be fitted." });
     }
   }
@@ -109,9 +110,9 @@ function kindNeeds(v: z.infer<typeof calibrationFields>, ctx: z.RefinementCtx) {
   }
 }
 
-export const calibrationSchema = calibrationFields.superRefine(kindNeeds);
+export const calibrationSchema = calibrationFields.superRefine(kindNeeds, evenWithFieldErrors);
 /** The API's body: the same fields, refusing ones it does not know so a misspelt field is an error, not dropped. */
-export const calibrationApiSchema = calibrationFields.strict().superRefine(kindNeeds);
+export const calibrationApiSchema = calibrationFields.strict().superRefine(kindNeeds, evenWithFieldErrors);
 
 export type CalibrationInput = z.infer<typeof calibrationSchema>;
 

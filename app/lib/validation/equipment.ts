@@ -1,17 +1,20 @@
 import { z } from "zod";
 import { equipmentKinds, equipmentStatuses, meterTypes } from "../equipment";
+import { evenWithFieldErrors, strictNumber } from "./fields";
 
 const optionalText = (max: number) =>
   z.preprocess((v) => (typeof v === "string" && v.trim() === "" ? undefined : v), z.string().trim().max(max, `At most ${max} characters.`).optional());
 
 const optionalPositive = (what: string, max: number, unit: string) =>
-  z.preprocess(
-    (v) => (v === "" || v === null ? undefined : v),
-    z.coerce
-      .number({ error: `${what} must be a number.` })
-      .positive(`${what} must be more than zero.`)
-      .max(max, `${what} above ${max} ${unit} is not plausible for a teaching lab.`)
-      .optional(),
+  strictNumber(
+    z.preprocess(
+      (v) => (v === "" || v === null ? undefined : v),
+      z.coerce
+        .number({ error: `${what} must be a number.` })
+        .positive(`${what} must be more than zero.`)
+        .max(max, `${what} above ${max} ${unit} is not plausible for a teaching lab.`)
+        .optional(),
+    ),
   );
 
 /** One form for every kind; the refinement below asks for what each kind needs. Lengths in cm on the form. */
@@ -57,7 +60,7 @@ export const equipmentSchema = z
       need("resolutionHeightPx", "A camera needs its image height.");
       need("nominalFrameRateFps", "A camera needs its nominal frame rate.");
     }
-  });
+  }, evenWithFieldErrors);
 
 export type EquipmentInput = z.infer<typeof equipmentSchema>;
 

@@ -1,21 +1,29 @@
 import { z } from "zod";
-
-/** Plain decimal text as a form sends it: "12", "-0.5", "1e-3". Not "0x10", "Infinity" or " ". */
-const decimal = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+import { NOT_A_NUMBER, readNumber } from "../number-input";
 
 /**
- * What a number field may arrive as: a number (JSON) or decimal text (a form). Blank stays blank for
- * the field's own "required"/"optional" handling; booleans, arrays, objects and other text become
- * NaN, which the number schema refuses with the field's message, instead of `true` turning into 1.
+ * What a number field may arrive as: a number (JSON) or what a person typed (see lib/number-input:
+ * a point or a decimal comma). Blank stays blank for the field's own "required"/"optional"
+ * handling; text that is not a number, booleans, arrays and objects are refused with NOT_A_NUMBER
+ * on the field itself (instead of `true` turning into 1, or "ten" reading as a missing value).
  */
-export function numberInput(v: unknown): unknown {
-  if (v === undefined || v === null || typeof v === "number") return v;
-  if (typeof v === "string") return v.trim() === "" || decimal.test(v.trim()) ? v : NaN;
+export function numberInput(v: unknown, ctx?: z.RefinementCtx): unknown {
+  const reading = readNumber(v);
+  if (reading.kind === "number") return reading.value;
+  if (reading.kind === "blank") return typeof v === "string" ? "" : v;
+  ctx?.addIssue({ code: "custom", message: NOT_A_NUMBER, input: v });
   return NaN;
 }
 
-/** Wraps a (coercing) number schema so it takes numbers and decimal text only; see numberInput. */
-export const strictNumber = <T extends z.ZodType>(schema: T) => z.preprocess(numberInput, schema);
+/** Wraps a number schema so it takes numbers and typed decimal text only; see numberInput. */
+export const strictNumber = <T extends z.ZodType>(schema: T) => z.preprocess((v, ctx) => numberInput(v, ctx), schema);
+
+/**
+ * A form's cross-field checks run even when a field already failed, so the person sees every
+ * problem at once, each on its field, instead of one after another (zod skips them by default).
+ * The checks must read the fields they use as possibly not parsed (a failed field keeps its input).
+ */
+export const evenWithFieldErrors = { when: (payload: { value: unknown }) => typeof payload.value === "object" && payload.value !== null };
 
 /** The years Tankside's records live in: a date outside them is a typing slip, not a lab event. */
 export const FIRST_YEAR = 2000;

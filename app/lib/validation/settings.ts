@@ -1,17 +1,26 @@
 import { z } from "zod";
-import { settingLimits, timeZoneError, type SettingKey } from "../settings";
+import { SIGN_OFF_RULES, settingLimits, timeZoneError, type SettingKey } from "../settings";
 import { isTimeZone } from "../time-format";
+import { evenWithFieldErrors, strictNumber } from "./fields";
 
 const wholeDays: SettingKey[] = ["rateCalibrationIntervalDays", "scaleCalibrationIntervalDays", "timingCheckIntervalDays", "calibrationReminderDays"];
 
 function field(key: SettingKey) {
   const { min, max, label, unit } = settingLimits[key];
-  const inRange = z.number().min(min, `${label} must be at least ${min} ${unit}.`).max(max, `${label} must be at most ${max} ${unit}.`);
+  const inRange = z
+    .number()
+    .min(min, `${label} must be at least ${amount(min, unit)}.`)
+    .max(max, `${label} must be at most ${amount(max, unit)}.`);
   const n = z.coerce
-    .number({ error: `${label} must be a number.` })
+    .number({ error: `${label}: enter a number.` })
     .refine(Number.isFinite, `${label} must be a number.`)
     .pipe(wholeDays.includes(key) ? inRange.int(`${label} must be a whole number of days.`) : inRange);
-  return z.preprocess((v) => (v === "" ? undefined : v), n);
+  return strictNumber(z.preprocess((v) => (v === "" ? undefined : v), n));
+}
+
+/** "1 day", "14 days": the unit's singular for exactly one. */
+export function amount(n: number, unit: string) {
+  return n === 1 && /^(days|hours)$/.test(unit) ? `1 ${unit.slice(0, -1)}` : `${n} ${unit}`;
 }
 
 /** The lab manager's settings form; limits and labels come from the one list in lib/settings. */
@@ -26,6 +35,8 @@ export const labSettingsSchema = z
     sessionIdleHours: field("sessionIdleHours"),
     // Left out (an older form or script): the lab's choice stays as it is.
     rateSource: z.enum(["calibrated", "footage"], { error: "Choose which rate the theory check uses." }).optional(),
+    // Left out: the lab's rule stays as it is.
+    signOffRule: z.enum(SIGN_OFF_RULES, { error: "Choose who may sign off a calibration." }).optional(),
     // Empty (or left out) means the server's own zone.
     timeZone: z
       .string()
@@ -42,4 +53,4 @@ export const labSettingsSchema = z
         message: `The reminder must come sooner than the shortest interval (${shortest} days), or it would go out the day a record is made.`,
       });
     }
-  });
+  }, evenWithFieldErrors);

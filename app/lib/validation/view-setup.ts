@@ -1,6 +1,8 @@
 import { z } from "zod";
+import { evenWithFieldErrors, strictNumber } from "./fields";
 
-const px = (what: string) => z.coerce.number({ error: `${what} must be a number of pixels.` }).refine(Number.isFinite, `${what} must be a number of pixels.`);
+const px = (what: string) =>
+  strictNumber(z.coerce.number({ error: `${what} must be a number of pixels.` }).refine(Number.isFinite, `${what} must be a number of pixels.`));
 const optionalPx = (what: string) => z.preprocess((v) => (v === "" || v === null ? undefined : v), px(what).optional());
 
 /** A view setup in image pixels; the frame size is checked on the server. */
@@ -11,9 +13,11 @@ export const viewSetupSchema = z
     edgeX: optionalPx("The tank edge's centre column"),
     edgeY: optionalPx("The tank edge's centre row"),
     edgeR: optionalPx("The tank edge's radius"),
-    scaleLengthCm: z.preprocess(
-      (v) => (v === "" || v === null ? undefined : v),
-      z.coerce.number().positive("The known length must be more than 0 cm.").max(500, "A known length over 5 m will not fit in a tank.").optional(),
+    scaleLengthCm: strictNumber(
+      z.preprocess(
+        (v) => (v === "" || v === null ? undefined : v),
+        z.coerce.number().positive("The known length must be more than 0 cm.").max(500, "A known length over 5 m will not fit in a tank.").optional(),
+      ),
     ),
     scaleLengthPx: optionalPx("The scale's length"),
     scalePoints: z.string().max(500).optional(),
@@ -37,6 +41,6 @@ export const viewSetupSchema = z
     if (v.scaleLengthPx !== undefined && v.scaleLengthPx < 10) {
       ctx.addIssue({ code: "custom", path: ["scaleLengthCm"], message: "The two scale points are less than 10 px apart; pick points further apart." });
     }
-  });
+  }, evenWithFieldErrors);
 
 export type ViewSetupInput = z.infer<typeof viewSetupSchema>;

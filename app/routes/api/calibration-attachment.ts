@@ -2,7 +2,9 @@ import type { Route } from "./+types/calibration-attachment";
 import { requireCapability } from "~/.server/auth/permissions";
 import { apiError, parseId } from "~/.server/http";
 import { storedFileResponse } from "~/.server/storage/respond";
-import { findCalibrationAttachment } from "~/.server/uploads/calibration-attachments";
+import { findCalibrationAttachment, removeCalibrationAttachment } from "~/.server/uploads/calibration-attachments";
+import { getCalibration, serializeCalibrations } from "~/.server/calibrations";
+import { methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 
 /** GET /api/v1/calibrations/:id/attachments/:attachmentId — the stored file, for signed-in people only. */
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -21,4 +23,20 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       "Content-Security-Policy": "default-src 'none'; img-src 'self'; style-src 'unsafe-inline'; sandbox",
     },
   });
+}
+
+/** DELETE /api/v1/calibrations/:id/attachments/:attachmentId — takes a file off a record not signed off; answers with the record. */
+export async function action({ request, params }: Route.ActionArgs) {
+  const user = await requireCapability(request, "record_calibration");
+  if (request.method !== "DELETE") return methodNotAllowed("GET, DELETE");
+  const id = parseId(request, params.id, "That calibration record");
+  try {
+    await removeCalibrationAttachment(id, parseId(request, params.attachmentId, "That attachment"), user);
+    const cal = await getCalibration(id);
+    if (!cal) return apiError(404, "not_found", "That calibration record does not exist.");
+    const [view] = await serializeCalibrations([cal]);
+    return Response.json(view);
+  } catch (err) {
+    return refusalResponse(err);
+  }
 }

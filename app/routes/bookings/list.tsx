@@ -28,11 +28,13 @@ import { kindLabels } from "~/lib/equipment";
 import { useLabTime } from "~/components/lab-time";
 import { formatDuration, fromZonedInput, timeFormat, zonedDay } from "~/lib/time-format";
 import { BookingWeek } from "~/components/booking-week";
-import { Button, ButtonA } from "~/components/ui/button";
+import { BookingActions, type RowOutcome } from "~/components/booking-actions";
+import { Button } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
 import { Notice, FormProblem } from "~/components/ui/notice";
 import { formText } from "~/lib/form-text";
+import { numberOrNull } from "~/lib/number-input";
 
 export const meta: Route.MetaFunction = () => [{ title: "Bookings · Tankside" }];
 export const links: Route.LinksFunction = () => [
@@ -93,7 +95,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   };
 }
 
-type Outcome = { request?: SubmissionResult<string[]>; notice?: string; problem?: string; feedUrl?: string };
+type Outcome = RowOutcome & { request?: SubmissionResult<string[]>; feedUrl?: string };
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
@@ -138,17 +140,17 @@ export async function action({ request }: Route.ActionArgs) {
     }
     if (intent === "approve") {
       const { booking, mail } = await approveBooking(id, user);
-      return data<Outcome>({ notice: `Booking #${booking.id} approved.`, ...mailNote(mail, "the requester") });
+      return data<Outcome>({ bookingId: id, notice: `Booking #${booking.id} approved.`, ...mailNote(mail, "the requester") });
     }
     if (intent === "decline") {
       const parsed = declineSchema.safeParse({ reason: form.get("reason") });
-      if (!parsed.success) return data<Outcome>({ problem: `Booking #${id}: ${parsed.error.issues[0]!.message}` }, { status: 400 });
+      if (!parsed.success) return data<Outcome>({ bookingId: id, problem: `Booking #${id}: ${parsed.error.issues[0]!.message}` }, { status: 400 });
       const { booking, mail } = await declineBooking(id, user, parsed.data.reason);
-      return data<Outcome>({ notice: `Booking #${booking.id} declined.`, ...mailNote(mail, "the requester") });
+      return data<Outcome>({ bookingId: id, notice: `Booking #${booking.id} declined.`, ...mailNote(mail, "the requester") });
     }
     if (intent === "cancel") {
       const { booking, mail } = await cancelBooking(id, user);
-      return data<Outcome>({ notice: `Booking #${booking.id} cancelled.`, ...mailNote(mail, "the people concerned") });
+      return data<Outcome>({ bookingId: id, notice: `Booking #${booking.id} cancelled.`, ...mailNote(mail, "the people concerned") });
     }
     if (intent === "feed") {
       const token = await createCalendarFeed(user.id);
@@ -160,7 +162,7 @@ export async function action({ request }: Route.ActionArgs) {
     }
     return data<Outcome>({ problem: "Unknown action." }, { status: 400 });
   } catch (err) {
-    if (err instanceof BookingError) return data<Outcome>({ problem: `Booking #${id}: ${err.message}` }, { status: err.status });
+    if (err instanceof BookingError) return data<Outcome>({ bookingId: id, problem: `Booking #${id}: ${err.message}` }, { status: err.status });
     throw err;
   }
 }
@@ -191,7 +193,10 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
   const [depth, setDepth] = useState("");
   const [start, setStart] = useState(String(fields.start.initialValue ?? ""));
   const chosenItem = items.find((i) => String(i.id) === chosen);
-  const leadS = Number(rate) > 0 && Number(depth) > 0 ? spinUpLeadS(Number(depth) / 100, Number(rate), loaderData.spinUpTimesToWait) : null;
+  const formHasErrors = Object.keys(form.allErrors).length > 0;
+  const rateRpm = numberOrNull(rate) ?? 0;
+  const depthCm = numberOrNull(depth) ?? 0;
+  const leadS = rateRpm > 0 && depthCm > 0 ? spinUpLeadS(depthCm / 100, rateRpm, loaderData.spinUpTimesToWait) : null;
   const startAt = start ? fromZonedInput(start, time.zone) : null;
   const proposedStart = leadS !== null && startAt ? new Date(Math.floor((startAt.getTime() - leadS * 1000) / 60_000) * 60_000) : null;
   const weekItem = items.find((i) => i.id === week.itemId);
@@ -200,8 +205,9 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
     <div>
       <PageHeader title="Bookings" subtitle="Ask for equipment time; a lab manager approves it. Approved time never overlaps on one item." />
       <div className="mb-4 flex flex-col gap-3">
-        {outcome.notice ? <Notice kind="success">{outcome.notice}</Notice> : null}
-        {outcome.problem ? <Notice kind="error">{outcome.problem}</Notice> : null}
+        {/* The last answer gives way as soon as the form shows new errors, so an old "requested" never sits beside them. */}
+        {outcome.notice && !formHasErrors ? <Notice kind="success">{outcome.notice}</Notice> : null}
+        {outcome.problem && !formHasErrors ? <Notice kind="error">{outcome.problem}</Notice> : null}
         {outcome.feedUrl ? (
           <Notice kind="info" title="Calendar feed address">
             <code className="break-all" data-testid="feed-url">
@@ -213,7 +219,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
 
       <div className="grid gap-6 lg:grid-cols-[1fr_2fr]">
         <Card title="Request equipment time">
-          <Form method="post" className="flex flex-col gap-4" {...getFormProps(form)}>
+          <Form method="post" action="/bookings" className="flex flex-col gap-4" {...getFormProps(form)}>
             <input type="hidden" name="intent" value="request" />
             <FormProblem errors={form.errors} />
             <SelectField
@@ -398,49 +404,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                         {b.declineReason ? <p className="text-sm">{b.declineReason}</p> : null}
                       </td>
                       <td className="py-3">
-                        <div className="flex flex-wrap gap-2">
-                          {isManager && b.state === "requested" ? (
-                            <>
-                              <Form method="post">
-                                <input type="hidden" name="bookingId" value={b.id} />
-                                <Button type="submit" name="intent" value="approve">
-                                  Approve
-                                </Button>
-                              </Form>
-                              <Form method="post" className="flex flex-wrap items-center gap-2">
-                                <input type="hidden" name="bookingId" value={b.id} />
-                                <label className="sr-only" htmlFor={`reason-${b.id}`}>
-                                  Reason for declining booking #{b.id}
-                                </label>
-                                <input
-                                  id={`reason-${b.id}`}
-                                  name="reason"
-                                  required
-                                  minLength={3}
-                                  maxLength={500}
-                                  placeholder="Reason"
-                                  className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-3"
-                                />
-                                <Button tone="danger" type="submit" name="intent" value="decline">
-                                  Decline
-                                </Button>
-                              </Form>
-                            </>
-                          ) : null}
-                          {canCancel ? (
-                            <Form method="post">
-                              <input type="hidden" name="bookingId" value={b.id} />
-                              <Button tone="quiet" type="submit" name="intent" value="cancel">
-                                Cancel booking
-                              </Button>
-                            </Form>
-                          ) : null}
-                          {b.state === "approved" ? (
-                            <ButtonA tone="quiet" href={`/api/v1/bookings/${b.id}/ics`}>
-                              .ics
-                            </ButtonA>
-                          ) : null}
-                        </div>
+                        <BookingActions booking={b} canDecide={isManager && b.state === "requested"} canCancel={canCancel} />
                       </td>
                     </tr>
                   );
@@ -463,13 +427,13 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
           </p>
         ) : null}
         <div className="flex flex-wrap gap-3">
-          <Form method="post">
+          <Form method="post" action="/bookings" preventScrollReset>
             <Button tone="plain" type="submit" name="intent" value="feed">
               {loaderData.feed ? "Make a new feed address" : "Make my feed address"}
             </Button>
           </Form>
           {loaderData.feed ? (
-            <Form method="post">
+            <Form method="post" action="/bookings" preventScrollReset>
               <Button tone="danger" type="submit" name="intent" value="feed-revoke">
                 Stop the feed
               </Button>

@@ -1,10 +1,13 @@
 import { Form, data } from "react-router";
+import { useRef, useState } from "react";
 import type { Route } from "./+types/detail";
 import uppyCore from "@uppy/core/css/style.min.css?url";
 import uppyDashboard from "@uppy/dashboard/css/style.min.css?url";
 import { can, requireCapability } from "~/.server/auth/permissions";
 import { notFound, parseId, readForm } from "~/.server/http";
-import { CalibrationError, getCalibration, serializeCalibrations, signOffCalibration } from "~/.server/calibrations";
+import { CalibrationError, getCalibration, secondPersonRefusal, serializeCalibrations, signOffCalibration } from "~/.server/calibrations";
+import { removeCalibrationAttachment } from "~/.server/uploads/calibration-attachments";
+import { getLabSettings } from "~/.server/settings";
 import { getCalibrationHistory } from "~/.server/calibration-history";
 import { RunHistoryList } from "~/components/run-record/run-history-list";
 import { calibrationKindLabels, trueRateFromCalibration } from "~/lib/calibrations";
@@ -30,22 +33,87 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireCapability(request, "read_calibrations");
   const cal = await getCalibration(parseId(request, params.id, "That calibration record"));
   if (!cal) throw notFound(request, "That calibration record");
-  const [[record], history] = await Promise.all([serializeCalibrations([cal]), getCalibrationHistory(cal.id)]);
-  return { record: record!, history, canRecord: can(user, "record_calibration"), canSign: can(user, "sign_off_calibration") };
+  const [[record], history, settings] = await Promise.all([serializeCalibrations([cal]), getCalibrationHistory(cal.id), getLabSettings()]);
+  const canSign = can(user, "sign_off_calibration");
+  return {
+    record: record!,
+    history,
+    canRecord: can(user, "record_calibration"),
+    canSign,
+    // Said before the button is pressed: under the lab's rule, the person who performed it does not sign it.
+    signBlocked: canSign ? secondPersonRefusal(cal, user, settings.signOffBySecondPerson) : null,
+  };
 }
 
+type Outcome = { notice?: string; problem?: string; about: "sign-off" | "attachments" };
+
 export async function action({ request, params }: Route.ActionArgs) {
-  const manager = await requireCapability(request, "sign_off_calibration");
+  // Technicians post here to remove a file from their record; signing off is checked for lab managers below.
+  const user = await requireCapability(request, "record_calibration");
   const id = parseId(request, params.id, "That calibration record");
-  const intent = formText(await readForm(request), "intent");
-  if (intent !== "sign-off") return data({ problem: "Unknown action." }, { status: 400 });
+  const form = await readForm(request);
+  const intent = formText(form, "intent");
   try {
-    await signOffCalibration(id, manager);
-    return { notice: "Signed off. From now on this record is kept exactly as it is." };
+    if (intent === "sign-off") {
+      const manager = await requireCapability(request, "sign_off_calibration");
+      if (formText(form, "confirm") !== "yes") {
+        return data<Outcome>({ problem: "Confirm the sign-off: it cannot be undone.", about: "sign-off" }, { status: 400 });
+      }
+      await signOffCalibration(id, manager);
+      return { notice: "Signed off. From now on this record is kept exactly as it is.", about: "sign-off" } satisfies Outcome;
+    }
+    if (intent === "remove-attachment") {
+      const attachmentId = parseId(request, formText(form, "attachmentId"), "That attachment");
+      const removed = await removeCalibrationAttachment(id, attachmentId, user);
+      return { notice: `"${removed.name}" removed from this record.`, about: "attachments" } satisfies Outcome;
+    }
+    return data<Outcome>({ problem: "Unknown action.", about: "sign-off" }, { status: 400 });
   } catch (err) {
-    if (err instanceof CalibrationError) return data({ problem: err.message }, { status: err.status });
+    if (err instanceof CalibrationError) {
+      return data<Outcome>({ problem: err.message, about: intent === "remove-attachment" ? "attachments" : "sign-off" }, { status: err.status });
+    }
     throw err;
   }
+}
+
+/** Sign-off in two steps: it cannot be undone, so the button asks first and says what it means. */
+function SignOffButton({ id }: { id: number }) {
+  const [asking, setAsking] = useState(false);
+  const question = useRef<HTMLParagraphElement>(null);
+  if (!asking) {
+    return (
+      <Button
+        type="button"
+        onClick={() => {
+          setAsking(true);
+          requestAnimationFrame(() => question.current?.focus());
+        }}
+      >
+        Sign off
+      </Button>
+    );
+  }
+  return (
+    <Form
+      method="post"
+      className="flex max-w-xl flex-col gap-3 rounded-card border-2 border-caution-line bg-caution-bg p-4 text-caution-ink"
+      data-testid="sign-off-confirmation"
+    >
+      <p ref={question} tabIndex={-1} className="font-bold">
+        Sign off calibration #{id}?
+      </p>
+      <p>Once signed it is in force and can never be changed or have files added or removed; a mistake needs a new record.</p>
+      <input type="hidden" name="confirm" value="yes" />
+      <div className="flex flex-wrap gap-2">
+        <Button type="submit" name="intent" value="sign-off">
+          Yes, sign it off
+        </Button>
+        <Button type="button" tone="plain" onClick={() => setAsking(false)}>
+          Not yet
+        </Button>
+      </div>
+    </Form>
+  );
 }
 
 function reminderText(m: { state: string; sentAt: string | null; lastError: string | null; attempts: number }, time: TimeFormat) {
@@ -57,7 +125,9 @@ function reminderText(m: { state: string; sentAt: string | null; lastError: stri
 export default function CalibrationDetail({ loaderData, actionData }: Route.ComponentProps) {
   const time = useLabTime();
   const r = loaderData.record;
-  const outcome = (actionData ?? {}) as { notice?: string; problem?: string };
+  const outcome: Partial<Outcome> = actionData ?? {};
+  const signOffOutcome = outcome.about === "sign-off" ? outcome : {};
+  const fileOutcome = outcome.about === "attachments" ? outcome : {};
   const signed = Boolean(r.signedOffAt);
   const line =
     r.kind === "rate" && r.slope !== null
@@ -89,19 +159,13 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
             {signed && loaderData.canRecord ? (
               <ButtonLink to={`/calibrations/new?equipmentId=${r.equipmentId}&kind=${r.kind}`}>Record a new one</ButtonLink>
             ) : null}
-            {!signed && loaderData.canSign ? (
-              <Form method="post">
-                <Button type="submit" name="intent" value="sign-off">
-                  Sign off
-                </Button>
-              </Form>
-            ) : null}
+            {!signed && loaderData.canSign && !loaderData.signBlocked ? <SignOffButton id={r.id} /> : null}
           </>
         }
       />
       <div className="mb-4 flex flex-col gap-3">
-        {outcome.notice ? <Notice kind="success">{outcome.notice}</Notice> : null}
-        {outcome.problem ? <Notice kind="error">{outcome.problem}</Notice> : null}
+        {signOffOutcome.notice ? <Notice kind="success">{signOffOutcome.notice}</Notice> : null}
+        {signOffOutcome.problem ? <Notice kind="error">{signOffOutcome.problem}</Notice> : null}
         {r.standing === "past_due" ? (
           <Notice kind="error" title="Past due">
             This record is no longer in force. Runs made with {r.equipmentName} are flagged until a new record is signed off.
@@ -115,6 +179,7 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
         {!signed ? (
           <Notice kind="caution" title="Awaiting sign-off">
             Not in force until a lab manager signs it off.
+            {loaderData.signBlocked ? <span data-testid="sign-off-blocked"> {loaderData.signBlocked}</span> : null}
           </Notice>
         ) : null}
         {r.kind === "rate" && r.passed === false ? (
@@ -193,16 +258,30 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
           </Card>
         ) : null}
         <Card title="Photos and certificates">
+          <div className="mb-3 flex flex-col gap-2" aria-live="polite">
+            {fileOutcome.notice ? <Notice kind="success">{fileOutcome.notice}</Notice> : null}
+            {fileOutcome.problem ? <Notice kind="error">{fileOutcome.problem}</Notice> : null}
+          </div>
           {r.attachments.length ? (
             <ul className="mb-4 flex flex-col gap-2">
               {r.attachments.map((a) => (
-                <li key={a.id}>
-                  <a href={a.url} target="_blank" rel="noreferrer">
-                    {a.originalName}
-                  </a>{" "}
-                  <span className="text-sm text-muted">
-                    ({a.contentType}, {Math.ceil(a.sizeBytes / 1024)} kB)
+                <li key={a.id} className="flex flex-wrap items-center gap-x-3 gap-y-1">
+                  <span>
+                    <a href={a.url} target="_blank" rel="noreferrer">
+                      {a.originalName}
+                    </a>{" "}
+                    <span className="text-sm text-muted">
+                      ({a.contentType}, {Math.ceil(a.sizeBytes / 1024)} kB)
+                    </span>
                   </span>
+                  {!signed && loaderData.canRecord ? (
+                    <Form method="post" preventScrollReset>
+                      <input type="hidden" name="attachmentId" value={a.id} />
+                      <Button tone="quiet" type="submit" name="intent" value="remove-attachment" aria-label={`Remove ${a.originalName}`}>
+                        Remove
+                      </Button>
+                    </Form>
+                  ) : null}
                 </li>
               ))}
             </ul>
@@ -216,7 +295,7 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
           ) : null}
         </Card>
         <Card title="History">
-          <RunHistoryList entries={loaderData.history} events={["created", "attachment", "signedOff"]} testId="calibration-history" />
+          <RunHistoryList entries={loaderData.history} events={["created", "attachment", "attachmentRemoved", "signedOff"]} testId="calibration-history" />
         </Card>
       </div>
     </div>

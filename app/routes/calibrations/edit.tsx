@@ -20,6 +20,8 @@ export const meta: Route.MetaFunction = ({ data }) => [
 ];
 
 const ROWS = 8;
+/** A reading's cell; outlined in the error colour when its value is refused. */
+const cell = "min-h-12 w-32 rounded-lg border-2 border-line-strong bg-sheet px-3 aria-[invalid=true]:border-4 aria-[invalid=true]:border-disagrees-ink";
 
 /** One module for /calibrations/new and /calibrations/:id/edit (only while not signed off). */
 export async function loader({ request, params }: Route.LoaderArgs) {
@@ -218,7 +220,11 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
                   </thead>
                   <tbody>
                     {Array.from({ length: ROWS }, (_, i) => {
-                      const rowError = errs[`readings[${i}].setRpm`]?.[0] ?? errs[`readings[${i}].measuredRpm`]?.[0];
+                      // Each bad reading is outlined on its own, and the row says what is wrong with each.
+                      const setError = errs[`readings[${i}].setRpm`]?.[0];
+                      const measuredError = errs[`readings[${i}].measuredRpm`]?.[0];
+                      const rowErrors = [setError ? `Set rate: ${setError}` : null, measuredError ? `Measured rate: ${measuredError}` : null].filter(Boolean);
+                      const errorId = rowErrors.length ? `reading-${i}-error` : undefined;
                       return (
                         <tr key={i} className="align-top">
                           <td className="py-1 pr-3">{i + 1}</td>
@@ -228,7 +234,9 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
                               name={`readings[${i}].setRpm`}
                               defaultValue={rows[i]?.setRpm ?? ""}
                               inputMode="decimal"
-                              className="min-h-12 w-32 rounded-lg border-2 border-line-strong bg-sheet px-3"
+                              aria-invalid={setError ? true : undefined}
+                              aria-describedby={setError ? errorId : undefined}
+                              className={cell}
                             />
                           </td>
                           <td className="py-1">
@@ -237,11 +245,13 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
                               name={`readings[${i}].measuredRpm`}
                               defaultValue={rows[i]?.measuredRpm ?? ""}
                               inputMode="decimal"
-                              className="min-h-12 w-32 rounded-lg border-2 border-line-strong bg-sheet px-3"
+                              aria-invalid={measuredError ? true : undefined}
+                              aria-describedby={measuredError ? errorId : undefined}
+                              className={cell}
                             />
-                            {rowError ? (
-                              <p className="text-sm font-bold text-disagrees-ink" role="alert">
-                                {rowError}
+                            {rowErrors.length ? (
+                              <p id={errorId} className="max-w-64 text-sm font-bold text-disagrees-ink" role="alert">
+                                {rowErrors.join(" ")}
                               </p>
                             ) : null}
                           </td>
@@ -271,6 +281,7 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
             <>
               {text("nominalFrameRateFps", "Nominal frame rate", { unit: "frames/s", inputMode: "decimal" })}
               {text("frameIntervals", "Frame intervals counted", {
+                unit: "intervals",
                 inputMode: "numeric",
                 hint: "Between two readings of a clock or rate meter filmed in view.",
               })}

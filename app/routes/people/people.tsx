@@ -71,13 +71,16 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
     lastResult: outcome.invite,
     shouldValidate: "onBlur",
     onValidate: ({ formData }) => parseWithZod(formData, { schema: inviteSchema }),
+    // After an invitation the form starts again from these, so the next one needs only a name and an address.
+    defaultValue: { role: "technician" },
   });
+  const formHasErrors = Object.keys(form.allErrors).length > 0;
   return (
     <div>
       <PageHeader title="People" subtitle="Who may use Tankside, and in what role." />
       <div className="mb-4 flex flex-col gap-3">
-        {outcome.notice ? <Notice kind="success">{outcome.notice}</Notice> : null}
-        {outcome.problem ? <Notice kind="error">{outcome.problem}</Notice> : null}
+        {outcome.notice && !formHasErrors ? <Notice kind="success">{outcome.notice}</Notice> : null}
+        {outcome.problem && !formHasErrors ? <Notice kind="error">{outcome.problem}</Notice> : null}
       </div>
       <div className="grid gap-6 lg:grid-cols-[2fr_1fr]">
         <Card title={`${loaderData.people.length} people`}>

@@ -13,6 +13,7 @@ import { getLabSettings } from "~/.server/settings";
 import { useLabTime } from "~/components/lab-time";
 import { fromZonedInput, toZonedInput } from "~/lib/time-format";
 import { runSchema } from "~/lib/validation/run";
+import { numberOrNull } from "~/lib/number-input";
 import { cameraModeLabels, directionLabels, runLabel, tracerLabels } from "~/lib/runs";
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
@@ -327,10 +328,10 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
           </Form>
         </Card>
         <RunConditionsPanel
-          rpm={Number(live.rpm)}
+          rpm={numberOrNull(live.rpm) ?? Number.NaN}
           direction={live.direction}
-          depthCm={Number(live.depthCm)}
-          temperatureC={live.temperatureC === "" ? Number.NaN : Number(live.temperatureC)}
+          depthCm={numberOrNull(live.depthCm) ?? Number.NaN}
+          temperatureC={numberOrNull(live.temperatureC) ?? Number.NaN}
           tankRadiusM={tank?.diameterM ? tank.diameterM / 2 : null}
           tankDepthM={tank?.depthM ?? null}
           tableMaxRpm={table?.maxRateRpm ?? null}

@@ -4,10 +4,10 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/settings";
 import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
-import { getLabSettings, setLabRateSource, setLabSetting, setLabTimeZone } from "~/.server/settings";
+import { getLabSettings, setLabRateSource, setLabSetting, setLabTimeZone, setSignOffRule } from "~/.server/settings";
 import { refitUnsignedRuns } from "~/.server/runs/rechecks";
 import { labSettingsSchema } from "~/lib/validation/settings";
-import { RATE_SOURCES, rateSourceLabels, settingDefaults, settingLimits, type SettingKey } from "~/lib/settings";
+import { RATE_SOURCES, rateSourceLabels, settingDefaults, settingLimits, SIGN_OFF_RULES, signOffRuleLabels, type SettingKey } from "~/lib/settings";
 import { systemTimeZone, timeFormat, timeZoneNames } from "~/lib/time-format";
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
@@ -28,10 +28,11 @@ export async function action({ request }: Route.ActionArgs) {
   if (submission.status !== "success") return data({ result: submission.reply(), saved: false }, { status: 400 });
   const before = await getLabSettings();
   // Every value is checked before any is written, so a bad entry changes nothing.
-  const { timeZone, rateSource, ...numbers } = submission.value;
+  const { timeZone, rateSource, signOffRule, ...numbers } = submission.value;
   for (const [key, value] of Object.entries(numbers) as [SettingKey, number][]) await setLabSetting(key, value);
   await setLabTimeZone(timeZone);
   if (rateSource) await setLabRateSource(rateSource);
+  if (signOffRule) await setSignOffRule(signOffRule);
   // The tolerance and the rate used decide verdicts: every unsigned run with a check is fitted again under the new ones.
   const after = await getLabSettings();
   if (after.checkTolerancePct !== before.checkTolerancePct || after.rateSource !== before.rateSource) await refitUnsignedRuns(user.id);
@@ -67,6 +68,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
       ...Object.fromEntries(Object.keys(settingDefaults).map((k) => [k, String(loaderData.settings[k as SettingKey])])),
       timeZone: loaderData.settings.timeZoneIsServerDefault ? "" : loaderData.settings.timeZone,
       rateSource: loaderData.settings.rateSource,
+      signOffRule: loaderData.settings.signOffBySecondPerson ? "second_person" : "anyone",
     },
   });
   const zone = fields.timeZone;
@@ -119,6 +121,27 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
             {fields.rateSource.errors ? (
               <p className="mt-2 text-sm font-bold text-disagrees-ink" role="alert">
                 {fields.rateSource.errors.join(" ")}
+              </p>
+            ) : null}
+          </fieldset>
+        </Card>
+        <Card title="Calibration sign-off">
+          <fieldset>
+            <legend className="mb-4 text-muted">
+              A signed calibration is in force and never changes. Who may sign one off? With a second person, the lab manager who performed a calibration asks
+              another to check and sign it.
+            </legend>
+            <div className="flex flex-col gap-2">
+              {SIGN_OFF_RULES.map((rule) => (
+                <label key={rule} className="flex items-center gap-2">
+                  <input type="radio" name={fields.signOffRule.name} value={rule} defaultChecked={fields.signOffRule.initialValue === rule} />
+                  {signOffRuleLabels[rule]}
+                </label>
+              ))}
+            </div>
+            {fields.signOffRule.errors ? (
+              <p className="mt-2 text-sm font-bold text-disagrees-ink" role="alert">
+                {fields.signOffRule.errors.join(" ")}
               </p>
             ) : null}
           </fieldset>

@@ -98,7 +98,12 @@ export function registerCalibrationPaths(registry: OpenAPIRegistry) {
     summary: "Sign a record off (lab manager)",
     ...strip(signOff),
     request: { params: ids("id") },
-    responses: { 200: json(calibrationSchema, "Signed off"), 403: signOff.forbidden, 404: noRecord, 409: error("Already signed off (calibration_signed).") },
+    responses: {
+      200: json(calibrationSchema, "Signed off"),
+      403: error("Not for your role (forbidden), or second_person_required: the lab requires a second person to sign off, and you performed this calibration."),
+      404: noRecord,
+      409: error("Already signed off (calibration_signed)."),
+    },
   });
   operation(registry, {
     method: "post",
@@ -137,6 +142,21 @@ export function registerCalibrationPaths(registry: OpenAPIRegistry) {
       200: { description: "The file, as its content type says", content: { "application/octet-stream": { schema: z.string().openapi({ format: "binary" }) } } },
       404: error("No such attachment (not_found)."),
       503: error("The file store cannot be reached (storage_unavailable)."),
+    },
+  });
+  operation(registry, {
+    method: "delete",
+    path: "/api/v1/calibrations/{id}/attachments/{attachmentId}",
+    operationId: "removeCalibrationAttachment",
+    tags,
+    summary: "Remove an attachment from a record not signed off; its file is deleted after the change is stored",
+    ...strip(record),
+    request: { params: ids("id", "attachmentId") },
+    responses: {
+      200: json(calibrationSchema, "The record without the file"),
+      403: record.forbidden,
+      404: error("No such record or attachment (not_found)."),
+      409: error("The record is signed off (calibration_signed): its files stay as they were signed."),
     },
   });
 }

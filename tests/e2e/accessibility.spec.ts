@@ -1,11 +1,14 @@
 import { test, expect, type Browser, type Page } from "@playwright/test";
 import AxeBuilder from "@axe-core/playwright";
 import { people, signIn, waitForMail, latestMailId, linkIn } from "./helpers";
+import { pageRoutes, phoneOverflow } from "./phone-width";
 
 // Every page each role can reach, at a desktop and a phone width, checked by axe-core against
 // WCAG 2.0 and 2.1, levels A and AA. A "serious" or "critical" violation fails the test, and the
 // message names the rule, its impact, where it is on the page and how to fix it.
 // The markup does not depend on the database, so this runs in the SQLite pass only.
+// At the phone width the same visit also checks that the page does not scroll sideways, and the
+// last test proves every page of app/routes.ts was measured so (phone-width.ts).
 
 test.skip(
   (process.env.TEST_DATABASE_URL ?? "").startsWith("postgres"),
@@ -69,9 +72,17 @@ async function expectAccessible(page: Page, what: string, open: () => Promise<vo
     await page.setViewportSize({ width: w.width, height: w.height });
     await settle(page);
     found.push(...(await seriousViolations(page, w.name)));
+    if (w.name === "phone") {
+      const overflow = await phoneOverflow(page, w.width);
+      if (overflow) found.push(`[phone] ${overflow}`);
+      measuredAtPhone.add(new URL(page.url()).pathname);
+    }
   }
   expect(found, `serious or critical accessibility violations on ${what} (${page.url()})`).toEqual([]);
 }
+
+/** Every address measured at the phone width, for the last test's check against the route list. */
+const measuredAtPhone = new Set<string>();
 
 function goto(page: Page, path: string, expectStatus = 200) {
   return async () => {
@@ -331,3 +342,12 @@ for (const [role, email] of [
     }
   });
 }
+
+// Runs last (tests run in file order, one at a time), after every page above was visited.
+test("every page in the route list was opened at phone width", () => {
+  const missing = pageRoutes().filter((r) => ![...measuredAtPhone].some((path) => r.pattern.test(path)));
+  expect(
+    missing.map((r) => `/${r.path}`),
+    "pages of app/routes.ts that no test above opened (add them to this spec's lists, so axe and the 390 px width check see them)",
+  ).toEqual([]);
+});

@@ -8,7 +8,7 @@ import type { ReactNode } from "react";
 export function ScrollRegion({ label, children }: { label: string; children: ReactNode }) {
   return (
     // eslint-disable-next-line jsx-a11y/no-noninteractive-tabindex -- a scrolling box must be reachable by keyboard to be scrolled
-    <div role="region" aria-label={label} tabIndex={0} className="overflow-x-auto">
+    <div role="region" aria-label={label} tabIndex={0} className="relative overflow-x-auto">
       {children}
     </div>
   );

@@ -68,7 +68,7 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
     onValidate: ({ formData }) => parseWithZod(formData, { schema: signInSchema }),
   });
   return (
-    <div className="mx-auto grid max-w-4xl gap-8 md:grid-cols-[1fr_1.1fr]">
+    <div className="mx-auto grid max-w-4xl grid-cols-1 gap-8 md:grid-cols-[1fr_1.1fr]">
       <section className="rounded-card bg-tank-800 p-8 text-white">
         <TanksideMark size={56} />
         <h1 className="mt-4 text-white">Tankside</h1>

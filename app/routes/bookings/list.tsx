@@ -217,7 +217,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
         ) : null}
       </div>
 
-      <div className="grid gap-6 lg:grid-cols-[1fr_2fr]">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-[1fr_2fr]">
         <Card title="Request equipment time">
           <Form method="post" action="/bookings" className="flex flex-col gap-4" {...getFormProps(form)}>
             <input type="hidden" name="intent" value="request" />
@@ -369,7 +369,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
         {bookings.length === 0 ? (
           <p>No bookings match.</p>
         ) : (
-          <div className="overflow-x-auto">
+          <div className="relative overflow-x-auto">
             <table className="w-full text-left">
               <thead>
                 <tr className="border-b-2 border-line">

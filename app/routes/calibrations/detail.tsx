@@ -188,7 +188,7 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
           </Notice>
         ) : null}
       </div>
-      <div className="grid gap-6 lg:grid-cols-2">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-2">
         <Card title="The record">
           <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
             {rows

@@ -11,6 +11,7 @@ import { Button } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { SelectField, TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
+import { ScrollRegion } from "~/components/ui/scroll-region";
 import { formText } from "~/lib/form-text";
 
 export const meta: Route.MetaFunction = () => [{ title: "People · Tankside" }];
@@ -82,8 +83,9 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
         {outcome.notice && !formHasErrors ? <Notice kind="success">{outcome.notice}</Notice> : null}
         {outcome.problem && !formHasErrors ? <Notice kind="error">{outcome.problem}</Notice> : null}
       </div>
-      <div className="grid gap-6 lg:grid-cols-[2fr_1fr]">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-[2fr_1fr]">
         <Card title={`${loaderData.people.length} people`}>
+          <ScrollRegion label="People">
           <table className="w-full text-left">
             <thead>
               <tr className="border-b-2 border-line">
@@ -146,6 +148,7 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
               ))}
             </tbody>
           </table>
+          </ScrollRegion>
         </Card>
         <Card title="Invite someone">
           <Form method="post" className="flex flex-col gap-4" {...getFormProps(form)}>

@@ -287,9 +287,9 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
               Clear filters
             </ButtonLink>
           ) : null}
-          <details className="relative">
+          <details className="relative max-sm:open:basis-full">
             <summary className="inline-flex min-h-12 cursor-pointer items-center rounded-lg border-2 border-line-strong px-5 font-bold">Columns</summary>
-            <fieldset className="absolute z-10 mt-2 grid w-72 gap-1 rounded-card border border-line bg-sheet p-3 shadow-lg">
+            <fieldset className="z-10 mt-2 grid w-72 max-w-full gap-1 sm:absolute rounded-card border border-line bg-sheet p-3 shadow-lg">
               <legend className="sr-only">Columns to show</legend>
               {table
                 .getAllLeafColumns()
@@ -326,7 +326,7 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
                 ? "No runs match."
                 : `${page.total} run${page.total === 1 ? "" : "s"} · page ${page.page} of ${page.pageCount}`}
           </p>
-          <div className={`overflow-x-auto rounded-card border border-line bg-sheet ${loading ? "opacity-60" : ""}`} aria-busy={loading}>
+          <div className={`relative overflow-x-auto rounded-card border border-line bg-sheet ${loading ? "opacity-60" : ""}`} aria-busy={loading}>
             <table className="w-full text-left">
               <thead className="border-b-2 border-line-strong bg-paper">
                 {table.getHeaderGroups().map((group) => (

@@ -58,7 +58,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 function Row({ label, children }: { label: string; children: ReactNode }) {
   return (
-    <div className="grid grid-cols-[12rem_1fr] gap-3 border-b border-line py-1 print:grid-cols-[10rem_1fr]">
+    <div className="grid grid-cols-1 gap-x-3 border-b border-line py-1 sm:grid-cols-[12rem_1fr] print:grid-cols-[10rem_1fr]">
       <dt className="font-bold">{label}</dt>
       <dd>{children}</dd>
     </div>

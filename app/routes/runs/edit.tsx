@@ -34,7 +34,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   let carryOver = null;
   if (params.id) {
     const found = await loadRun(request, params.id);
-    requireChangeable(request, found, user);
+    await requireChangeable(request, found, user);
     run = found.get({ plain: true });
   } else if (url.searchParams.get("supersedes")) {
     const old = await loadRun(request, url.searchParams.get("supersedes") ?? undefined);
@@ -54,7 +54,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   try {
     if (params.id) {
       const run = await loadRun(request, params.id);
-      requireChangeable(request, run, user);
+      await requireChangeable(request, run, user);
       await updateRun(run.id, submission.value, user);
       return redirect(`/runs/${run.id}`);
     }

@@ -8,6 +8,7 @@ import { getCurrentUser } from "./.server/auth/permissions";
 import { usingFakeMail } from "./.server/mail/send";
 import { getLabTimeZone } from "./.server/settings";
 import { LabTimeProvider } from "./components/lab-time";
+import { isErrorPageReason, type ErrorPageReason } from "~/lib/error-page";
 
 export const links: Route.LinksFunction = () => [
   { rel: "stylesheet", href: stylesheet },
@@ -60,14 +61,19 @@ export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
   let status = 500;
   let detail: string | undefined;
   let stack: string | undefined;
+  let reason: ErrorPageReason | undefined;
   if (isRouteErrorResponse(error)) {
     status = error.status;
     detail = typeof error.data === "string" ? error.data : undefined;
+    reason = isErrorPageReason(error.data) ? error.data : undefined;
   } else if (import.meta.env.DEV && error instanceof Error) {
     detail = error.message;
     stack = error.stack;
   }
-  const page = errorPages[status] ?? { title: `Error ${status}`, text: "The request could not be completed." };
+  // A page that knows the real reason (a run that is someone else's) says it instead of the status's words.
+  const page = reason
+    ? { title: reason.title, text: reason.message }
+    : (errorPages[status] ?? { title: `Error ${status}`, text: "The request could not be completed." });
   return (
     <AppShell user={rootData?.user ?? null} showMail={rootData?.showMail ?? false}>
       <title>{`${page.title} · Tankside`}</title>
@@ -79,8 +85,13 @@ export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
         <p className="mt-3">{page.text}</p>
         {detail && detail !== page.text ? <p className="mt-3 text-muted">{detail}</p> : null}
         {stack ? <pre className="mt-4 overflow-auto rounded bg-paper p-3 text-sm">{stack}</pre> : null}
-        <div className="mt-6 flex gap-3">
-          <ButtonLink to="/" tone="primary">
+        <div className="mt-6 flex flex-wrap gap-3">
+          {reason?.link ? (
+            <ButtonLink to={reason.link.to} tone="primary">
+              {reason.link.label}
+            </ButtonLink>
+          ) : null}
+          <ButtonLink to="/" tone={reason?.link ? undefined : "primary"}>
             Back to today
           </ButtonLink>
         </div>

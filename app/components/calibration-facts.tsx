@@ -27,9 +27,9 @@ interface Result {
 export function calibrationResult(c: Result): string {
   if (c.kind === "rate") {
     const b = c.interceptRpm ?? 0;
-    return `measured = ${formatNumber(c.slope, 5)} × set ${b < 0 ? "−" : "+"} ${formatNumber(Math.abs(b), 3)} rpm; residual SD ${formatNumber(c.residualSdRpm, 2)} rpm; worst ${formatNumber(c.maxDeviationPct, 2)} % (tolerance ${c.tolerancePct} %) — ${c.passed ? "passes" : "fails"}`;
+    return `measured = ${formatNumber(c.slope, 5)} × set ${b < 0 ? "−" : "+"} ${formatNumber(Math.abs(b), 3)} rpm; residual SD ${formatNumber(c.residualSdRpm, 2)} rpm; worst ${formatNumber(c.maxDeviationPct, 2)} % (tolerance ${formatNumber(c.tolerancePct, 6)} %) — ${c.passed ? "passes" : "fails"}`;
   }
   if (c.kind === "scale")
-    return `${formatNumber(c.scalePxPerM, 5)} ± ${formatNumber(c.scaleUncertaintyPxPerM, 2)} px/m${c.tolerancePct !== null ? `; view setups within ${c.tolerancePct} % agree` : ""}`;
+    return `${formatNumber(c.scalePxPerM, 5)} ± ${formatNumber(c.scaleUncertaintyPxPerM, 2)} px/m${c.tolerancePct !== null ? `; view setups within ${formatNumber(c.tolerancePct, 6)} % agree` : ""}`;
   return `${formatNumber(c.trueFrameRateFps, 6)} ± ${formatNumber(c.trueFrameRateUncertaintyFps, 2)} frames/s (${(c.frameRateDeviationPct ?? 0) >= 0 ? "+" : ""}${formatNumber(c.frameRateDeviationPct, 2)} % from nominal)`;
 }

@@ -1,7 +1,7 @@
 import type { EquipmentKind } from "~/lib/equipment";
 import { statusLabels, type EquipmentStatus } from "~/lib/equipment";
 import { Tag } from "./ui/card";
-import { formatNumber } from "~/lib/number-format";
+import { formatCentimetres, formatNumber } from "~/lib/number-format";
 
 interface Facts {
   kind: EquipmentKind;
@@ -15,17 +15,15 @@ interface Facts {
   meterType: string | null;
 }
 
-const cm = (m: number | null) => (m === null ? "—" : `${formatNumber(m * 100, 4)} cm`);
-
 /** The one-line summary of an item's key figures, in the units people read on the bench. */
 export function equipmentSummary(e: Facts): string {
   switch (e.kind) {
     case "table":
-      return `${cm(e.diameterM)} across · up to ${e.maxRateRpm ?? "—"} rpm · ${e.flatTable ? "flat top" : "paraboloidal or tank on top"}`;
+      return `${formatCentimetres(e.diameterM)} across · up to ${formatNumber(e.maxRateRpm, 6)} rpm · ${e.flatTable ? "flat top" : "paraboloidal or tank on top"}`;
     case "tank":
-      return `${cm(e.diameterM)} inner diameter · ${cm(e.depthM)} deep`;
+      return `${formatCentimetres(e.diameterM)} inner diameter · ${formatCentimetres(e.depthM)} deep`;
     case "camera":
-      return `${e.resolutionWidthPx ?? "—"} × ${e.resolutionHeightPx ?? "—"} px · ${e.nominalFrameRateFps ?? "—"} frames/s nominal`;
+      return `${e.resolutionWidthPx ?? "—"} × ${e.resolutionHeightPx ?? "—"} px · ${formatNumber(e.nominalFrameRateFps, 6)} frames/s nominal`;
     case "rate_meter":
       return e.meterType ?? "rate meter";
   }

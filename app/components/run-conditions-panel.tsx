@@ -72,7 +72,7 @@ export function RunConditionsPanel(p: RunConditionsProps) {
         <Row label="Ekman depth √(ν/Ω)" value={Number.isFinite(nu) && absOmega > 0 ? formatNumber(ekmanDepth(nu, absOmega) * 1000, 3) : "—"} unit="mm" />
         <Row label="Ekman number ν/(ΩH²)" value={Number.isFinite(nu) && absOmega > 0 && depth > 0 ? formatNumber(ekmanNumber(nu, absOmega, depth), 3) : "—"} />
         <Row label="Spin-up time τ = H/√(νΩ)" value={formatDuration(tau)} />
-        <Row label={`Ready at (${p.spinUpTimesToWait} τ after the rate was reached)`} value={time.timeSeconds(ready)} />
+        <Row label={`Ready at (${p.spinUpTimesToWait} τ after the rate was reached)`} value={time.dateTimeSeconds(ready)} />
         <Row label="Surface drop at the centre" value={surface ? formatNumber(surface.centreDrop * 1000, 3) : "—"} unit="mm" />
         <Row label="Centre-to-rim rise" value={surface ? formatNumber(surface.centreToRimRise * 1000, 3) : "—"} unit="mm" />
         {p.observed ? <Row label="Rossby number U/(|f|L)" note="tracer speed U, tank radius L" value={formatNumber(ro, 2)} /> : null}

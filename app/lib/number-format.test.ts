@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { formatFixed, formatNumber, formatWithError, percentRange } from "./number-format";
+import { formatCentimetres, formatFixed, formatNumber, formatWithError, percentRange } from "./number-format";
 
 describe("numbers to significant digits", () => {
   it("rounds to the digits asked for and drops trailing zeros", () => {
@@ -65,5 +65,22 @@ describe("a verdict's interval in words", () => {
   });
   it("says nothing numeric for an interval that is not finite", () => {
     expect(percentRange(Number.NaN, 0.1)).toBe("—");
+  });
+});
+
+describe("lengths in centimetres", () => {
+  it("shows a length stored in metres without the float noise of the conversion", () => {
+    // 0.57 * 100 is 56.99999999999999 in binary floating point; the seeded tank is 57 cm across.
+    expect(0.57 * 100).not.toBe(57);
+    expect(formatCentimetres(0.57)).toBe("57 cm");
+    expect(formatCentimetres(0.25)).toBe("25 cm");
+    expect(formatCentimetres(0.1234567)).toBe("12.35 cm");
+    expect(formatCentimetres(0.1234567, 6)).toBe("12.3457 cm");
+  });
+
+  it("shows a dash when there is no length", () => {
+    expect(formatCentimetres(null)).toBe("—");
+    expect(formatCentimetres(undefined)).toBe("—");
+    expect(formatCentimetres(Number.NaN)).toBe("—");
   });
 });

@@ -78,3 +78,9 @@ export function percentRange(low: number, high: number): string {
   const show = (v: number) => `${formatFixed(100 * v, decimals).replace(/^-/, "−")}%`;
   return `${show(low)} to ${show(high)}`;
 }
+
+/** A length stored in metres, shown in centimetres to `digits` significant digits: 0.57 m → "57 cm" (never "56.99999999999999 cm"). */
+export function formatCentimetres(metres: number | null | undefined, digits = 4): string {
+  if (metres === null || metres === undefined || !Number.isFinite(metres)) return NO_NUMBER;
+  return `${formatNumber(metres * 100, digits)} cm`;
+}

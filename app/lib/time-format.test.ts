@@ -32,6 +32,13 @@ describe("times in the lab's zone", () => {
     expect(f.range("2026-12-03T08:50:00Z", "2026-12-04T10:50:00Z")).toBe("3 Dec 2026, 09:50 CET – 4 Dec 2026, 11:50 CET");
   });
 
+  it("a moment with seconds carries its day, the lab's day", () => {
+    // A run's "ready at" can fall after midnight or days after the rate was reached: a bare time hid that.
+    expect(timeFormat("Europe/Berlin").dateTimeSeconds("2026-12-03T23:10:07Z")).toBe("4 Dec 2026, 00:10:07 CET");
+    expect(timeFormat("America/New_York").dateTimeSeconds("2026-12-03T23:10:07Z")).toBe("3 Dec 2026, 18:10:07 GMT-5");
+    expect(timeFormat("UTC").dateTimeSeconds(null)).toBe("—");
+  });
+
   it("summer time shows its own name", () => {
     expect(timeFormat("Europe/Berlin").dateTime("2026-07-01T08:50:00Z")).toBe("1 Jul 2026, 10:50 CEST");
   });

@@ -13,14 +13,18 @@ type Instant = string | Date | null | undefined;
 const LOCALE = "en-GB";
 const cache = new Map<string, Intl.DateTimeFormat>();
 
-function formatter(zone: string, kind: "date" | "dateTime" | "time" | "timeSeconds" | "zoneName" | "weekday" | "parts"): Intl.DateTimeFormat {
+function formatter(
+  zone: string,
+  kind: "date" | "dateTime" | "dateTimeSeconds" | "time" | "timeSeconds" | "zoneName" | "weekday" | "parts",
+): Intl.DateTimeFormat {
   const key = `${zone}|${kind}`;
   let f = cache.get(key);
   if (!f) {
     const options: Intl.DateTimeFormatOptions = { timeZone: zone };
-    if (kind === "date" || kind === "dateTime") Object.assign(options, { day: "numeric", month: "short", year: "numeric" });
+    if (kind === "date" || kind === "dateTime" || kind === "dateTimeSeconds") Object.assign(options, { day: "numeric", month: "short", year: "numeric" });
     if (kind === "dateTime" || kind === "time") Object.assign(options, { hour: "2-digit", minute: "2-digit", hourCycle: "h23" });
-    if (kind === "timeSeconds") Object.assign(options, { hour: "2-digit", minute: "2-digit", second: "2-digit", hourCycle: "h23" });
+    if (kind === "timeSeconds" || kind === "dateTimeSeconds")
+      Object.assign(options, { hour: "2-digit", minute: "2-digit", second: "2-digit", hourCycle: "h23" });
     if (kind === "zoneName") Object.assign(options, { timeZoneName: "short" });
     if (kind === "weekday") Object.assign(options, { weekday: "long", day: "numeric", month: "short" });
     if (kind === "parts")
@@ -143,6 +147,8 @@ export interface TimeFormat {
   date(value: Instant): string;
   /** "3 Dec 2026, 09:50 CET". */
   dateTime(value: Instant): string;
+  /** "3 Dec 2026, 09:50:12 CET": for a moment people wait for, where the day is not obvious. */
+  dateTimeSeconds(value: Instant): string;
   /** "09:50 CET". */
   time(value: Instant): string;
   /** "09:50:12 CET". */
@@ -171,6 +177,10 @@ export function timeFormat(zone: string): TimeFormat {
       return d ? formatter(z, "date").format(d) : dash;
     },
     dateTime,
+    dateTimeSeconds: (value) => {
+      const d = toDate(value);
+      return d ? `${formatter(z, "dateTimeSeconds").format(d)} ${zoneName(d, z)}` : dash;
+    },
     time: (value) => {
       const d = toDate(value);
       return d ? `${hm(d)} ${zoneName(d, z)}` : dash;

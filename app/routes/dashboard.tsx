@@ -12,6 +12,8 @@ import { formatNumber } from "~/lib/number-format";
 import { useLabTime } from "~/components/lab-time";
 import { roleLabels } from "~/lib/roles";
 import { runFiltersToSearch } from "~/lib/validation/run-filters";
+import { calibrationFiltersToSearch } from "~/lib/validation/calibration-filters";
+import { calibrationKindLabels } from "~/lib/calibrations";
 
 export const meta: Route.MetaFunction = () => [{ title: "Today · Tankside" }];
 
@@ -40,6 +42,19 @@ function RunLines({ items, empty }: { items: RunListItem[]; empty: string }) {
   );
 }
 
+/**
+ * How many a card lists, next to its title: the total when the list is complete, "5 of 7" when it
+ * shows only the first few, so the number never claims more than the list below it holds.
+ */
+function CountTag({ shown, total, tone = "tank" }: { shown: number; total: number; tone?: "tank" | "disagrees" }) {
+  const colours = tone === "disagrees" ? "bg-disagrees-bg text-disagrees-ink" : "bg-tank-50 text-tank-800";
+  return (
+    <span className={`ml-1 rounded-md px-2 font-mono ${colours}`} data-testid="count">
+      {shown < total ? `${shown} of ${total}` : total}
+    </span>
+  );
+}
+
 function QueueCard({
   title,
   queue,
@@ -57,7 +72,7 @@ function QueueCard({
     <Card
       title={
         <>
-          {title} <span className="ml-1 rounded-md bg-tank-50 px-2 font-mono text-tank-800">{queue.total}</span>
+          {title} <CountTag shown={queue.items.length} total={queue.total} />
         </>
       }
       actions={
@@ -140,9 +155,50 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
                     <Link to={`/calibrations/${c.id}`} className="flex min-h-12 flex-wrap items-center gap-x-3 py-2 no-underline hover:bg-tank-50">
                       {c.pastDue ? <Tag tone="disagrees">Expired</Tag> : <Tag tone="caution">Due</Tag>}
                       <span className="font-bold text-ink">{c.equipmentName}</span>
-                      <span className="text-ink">{c.kind} calibration</span>
+                      <span className="text-ink">{calibrationKindLabels[c.kind].toLowerCase()}</span>
                       <span className="text-sm text-muted">
                         {c.pastDue ? `was due ${time.date(c.dueAt)}` : `due ${time.date(c.dueAt)} (${c.daysLeft} day${c.daysLeft === 1 ? "" : "s"})`}
+                      </span>
+                    </Link>
+                  </li>
+                ))}
+              </ul>
+            )}
+          </Card>
+        ) : null}
+
+        {d.calibrationSignOff ? (
+          <Card
+            title={
+              <>
+                {d.calibrationSignOff.mine ? "Your calibrations waiting for sign-off" : "Calibrations waiting for sign-off"}{" "}
+                <CountTag shown={d.calibrationSignOff.items.length} total={d.calibrationSignOff.total} />
+              </>
+            }
+            actions={
+              d.calibrationSignOff.total > d.calibrationSignOff.items.length ? (
+                <Link to={`/calibrations${calibrationFiltersToSearch({ standing: "draft" })}`} className="inline-flex min-h-12 items-center font-bold">
+                  All {d.calibrationSignOff.total} →
+                </Link>
+              ) : null
+            }
+          >
+            <p className="mb-2 text-sm text-muted">
+              {d.calibrationSignOff.mine
+                ? "Records you made that a lab manager has not signed off yet, oldest first. They count for runs once signed."
+                : "Records not signed off yet, oldest first. A record counts for runs once it is signed off."}
+            </p>
+            {d.calibrationSignOff.items.length === 0 ? (
+              <p className="text-muted">No calibration records are waiting for sign-off.</p>
+            ) : (
+              <ul className="divide-y divide-line" data-testid="dashboard-calibration-sign-off">
+                {d.calibrationSignOff.items.map((c) => (
+                  <li key={c.id}>
+                    <Link to={`/calibrations/${c.id}`} className="flex min-h-12 flex-wrap items-center gap-x-3 py-2 no-underline hover:bg-tank-50">
+                      <span className="font-bold text-ink">{c.equipmentName}</span>
+                      <span className="text-ink">{calibrationKindLabels[c.kind].toLowerCase()}</span>
+                      <span className="text-sm text-muted">
+                        {c.performedByName} · {time.date(c.performedAt)}
                       </span>
                     </Link>
                   </li>
@@ -168,19 +224,19 @@ export default function Dashboard({ loaderData }: Route.ComponentProps) {
           title={user.role === "technician" ? "Your runs waiting for checking" : "Runs waiting for checking"}
           queue={d.queues.checking}
           empty="No tracked runs are waiting for a theory check."
-          hint="Tracked; run the theory check to get a verdict."
+          hint="Tracked, with no verdict yet. The theory check runs by itself when tracking ends; a run that stays here needs a look (open it to see why)."
         />
 
         <Card
           title={
             <>
-              Recent verdicts that disagree <span className="ml-1 rounded-md bg-disagrees-bg px-2 font-mono text-disagrees-ink">{d.disagreeing.total}</span>
+              Recent verdicts that disagree <CountTag shown={d.disagreeing.items.length} total={d.disagreeing.total} tone="disagrees" />
             </>
           }
           actions={
-            d.disagreeing.total ? (
+            d.disagreeing.total > d.disagreeing.items.length ? (
               <Link to={`/runs${runFiltersToSearch({ verdict: "disagrees" })}`} className="inline-flex min-h-12 items-center font-bold">
-                All →
+                All {d.disagreeing.total} →
               </Link>
             ) : null
           }

@@ -119,6 +119,11 @@ export async function listRuns(filters: RunFilters): Promise<RunPage> {
       "page",
     );
   }
+  return { items: await listItems(rows), total, page: filters.page, pageSize: filters.pageSize, pageCount };
+}
+
+/** Rows of the runs table as list items, with equipment and people named. */
+async function listItems(rows: Run[]): Promise<RunListItem[]> {
   const equipmentIds = [...new Set(rows.flatMap((r) => [r.tableId, r.tankId, r.cameraId]))];
   const userIds = [...new Set(rows.map((r) => r.technicianId))];
   const [equipment, users] = await Promise.all([
@@ -128,13 +133,27 @@ export async function listRuns(filters: RunFilters): Promise<RunPage> {
   const names = new Map(equipment.map((e) => [e.id, e.name]));
   const people = new Map(users.map((u) => [u.id, u.name]));
   const item = (id: number) => ({ id, name: names.get(id) ?? `#${id}` });
-  return {
-    items: rows.map((r) => serializeRunListItem(r, { equipment: item, person: (id) => ({ id, name: people.get(id) ?? `#${id}` }) })),
-    total,
-    page: filters.page,
-    pageSize: filters.pageSize,
-    pageCount,
-  };
+  return rows.map((r) => serializeRunListItem(r, { equipment: item, person: (id) => ({ id, name: people.get(id) ?? `#${id}` }) }));
+}
+
+/**
+ * The first `limit` runs matching `filters` and how many match in all, from one statement (a window
+ * count over the same WHERE), so the number a page shows beside a short list can never disagree with
+ * the list: two statements could each see a different moment (a run signed off between them).
+ */
+export async function listRunsWithTotal(filters: Omit<RunFilters, "page" | "pageSize">, limit: number): Promise<{ items: RunListItem[]; total: number }> {
+  const dir = filters.dir === "asc" ? "ASC" : "DESC";
+  const rows = await Run.findAll({
+    where: runsWhere({ ...filters, page: 1, pageSize: limit }),
+    order: [
+      [sortColumns[filters.sort], dir],
+      ["id", dir],
+    ],
+    limit,
+    attributes: [...listAttributes, [sequelize.literal("COUNT(*) OVER ()"), "matchingTotal"]],
+  });
+  const first = rows[0];
+  return { items: await listItems(rows), total: first ? Number(first.get("matchingTotal")) : 0 };
 }
 
 /** The choices the filter bar offers: every table, and everyone who can log a run. */

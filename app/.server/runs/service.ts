@@ -4,6 +4,7 @@ import type { RunInput } from "~/lib/validation/run";
 import type { CurrentUser } from "../auth/permissions";
 import type { RunState } from "~/lib/runs";
 import { calibrationsInForce, calibrationsPastDueAt, type CalibrationInForce, type PastDueAtRun } from "../calibrations";
+import { formatNumber } from "~/lib/number-format";
 
 export interface CalibrationSnapshot {
   at: string | null;
@@ -46,13 +47,22 @@ async function checkEquipment(input: RunInput, transaction?: Transaction) {
   expect(tank, "tank", "tankId", "tank");
   expect(camera, "camera", "cameraId", "camera");
   if (table?.maxRateRpm && input.setRateRpm > table.maxRateRpm) {
-    problems.push({ field: "setRateRpm", message: `${table.name} is rated to ${table.maxRateRpm} rpm; ${input.setRateRpm} rpm is above its maximum.` });
+    problems.push({
+      field: "setRateRpm",
+      message: `${table.name} is rated to ${formatNumber(table.maxRateRpm, 6)} rpm; ${formatNumber(input.setRateRpm, 6)} rpm is above its maximum.`,
+    });
   }
   if (tank?.depthM && input.waterDepthCm / 100 > tank.depthM) {
-    problems.push({ field: "waterDepthCm", message: `${tank.name} is ${tank.depthM * 100} cm deep; ${input.waterDepthCm} cm of water would overflow it.` });
+    problems.push({
+      field: "waterDepthCm",
+      message: `${tank.name} is ${formatNumber(tank.depthM * 100, 6)} cm deep; ${formatNumber(input.waterDepthCm, 6)} cm of water would overflow it.`,
+    });
   }
   if (table?.diameterM && tank?.diameterM && tank.diameterM > table.diameterM * 1.05) {
-    problems.push({ field: "tankId", message: `${tank.name} (${tank.diameterM * 100} cm) is wider than ${table.name} (${table.diameterM * 100} cm).` });
+    problems.push({
+      field: "tankId",
+      message: `${tank.name} (${formatNumber(tank.diameterM * 100, 6)} cm) is wider than ${table.name} (${formatNumber(table.diameterM * 100, 6)} cm).`,
+    });
   }
   return { table, tank, camera, problems };
 }

@@ -1,7 +1,9 @@
-import { CartesianGrid, Legend, Line, LineChart, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis, ZAxis } from "recharts";
+import { CartesianGrid, Line, LineChart, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis, ZAxis } from "recharts";
 import type { TheoryCheckResult } from "~/lib/analysis/check";
 import { imageToTable } from "~/lib/analysis/frames";
 import { formatNumber } from "~/lib/number-format";
+import { niceScale, niceTicks } from "~/lib/nice-ticks";
+import { PlotLegend, type LegendEntry } from "./plot-legend";
 
 /** Plot colours: the app's teal for data, amber for fits, ink for theory; each series also has a legend word. */
 const colours = { data: "#0c6a72", second: "#8f2318", fit: "#c27c00", theory: "#13202b" };
@@ -26,24 +28,25 @@ function squareDomain(xs: number[], ys: number[]) {
   return { x: [mx - half, mx + half] as [number, number], y: [my - half, my + half] as [number, number] };
 }
 
-/** Round tick values (1, 2 or 5 × 10ⁿ apart) across a domain, so equal axes still read easily. */
-function niceTicks([lo, hi]: [number, number], count = 6): number[] {
-  const span = hi - lo;
-  if (!(span > 0)) return [lo];
-  const raw = span / count;
-  const mag = 10 ** Math.floor(Math.log10(raw));
-  const step = [1, 2, 5, 10].map((m) => m * mag).find((s) => s >= raw) ?? 10 * mag;
-  const out: number[] = [];
-  for (let v = Math.ceil(lo / step) * step; v <= hi + 1e-9 * span; v += step) out.push(Number(v.toPrecision(12)));
-  return out;
-}
-
 const tick = (v: number) => formatNumber(v, 3);
 
-function PlotFrame({ title, caption, children, square }: { title: string; caption: string; children: React.ReactElement; square?: boolean }) {
+function PlotFrame({
+  title,
+  caption,
+  legend,
+  children,
+  square,
+}: {
+  title: string;
+  caption: string;
+  legend: LegendEntry[];
+  children: React.ReactElement;
+  square?: boolean;
+}) {
   return (
     <figure className="rounded-card border border-line bg-sheet p-3 print:break-inside-avoid">
       <figcaption className="mb-1 font-bold">{title}</figcaption>
+      <PlotLegend entries={legend} />
       <div className={square ? "mx-auto aspect-square w-full max-w-[460px]" : "h-72 w-full"}>
         <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 460, height: square ? 460 : 288 }}>
           {children}
@@ -53,6 +56,13 @@ function PlotFrame({ title, caption, children, square }: { title: string; captio
     </figure>
   );
 }
+
+/**
+ * A y axis label that stays whole: written along the axis, centred on the plot area and drawn
+ * inside the chart's left margin, so a long label ("acceleration (cm/s²)") is neither wrapped into
+ * the ticks nor cut at the chart's edge.
+ */
+const yLabel = (value: string) => ({ value, angle: -90, position: "insideLeft" as const, offset: 0, style: { textAnchor: "middle" as const } });
 
 export interface PlotContext {
   result: TheoryCheckResult;
@@ -87,6 +97,20 @@ export function TheoryPlots({ result, setup }: PlotContext) {
   const angle = thin(result.series.angle);
   const residuals = thin(result.series.residuals).map((p) => ({ t: p.t, rx: p.rx * k, ry: p.ry * k }));
   const accelUnit = `${unit}/s²`;
+  const accelX = niceScale(xr);
+  const accelY = niceScale([...accelPoints.map((p) => p.y), ...line(result.fMeasured).map((p) => p.y), ...line(result.fPredicted).map((p) => p.y)], 5);
+  const angleTime = niceScale(angle.map((p) => p.t));
+  const angleY = niceScale(
+    angle.flatMap((p) => [p.angle, p.fitted]),
+    5,
+  );
+  const residualTime = niceScale(residuals.map((p) => p.t));
+  const residualY = niceScale(
+    residuals.flatMap((p) => [p.rx, p.ry]),
+    5,
+  );
+  const rotLegend: LegendEntry[] = [{ label: "tracer", colour: colours.data, mark: "dot" }];
+  if (circle.length) rotLegend.push({ label: "fitted circle", colour: colours.fit, mark: "line" });
 
   return (
     <div className="grid gap-4 lg:grid-cols-2" data-testid="theory-plots">
@@ -94,6 +118,7 @@ export function TheoryPlots({ result, setup }: PlotContext) {
         square
         title="Track in the rotating frame"
         caption={`Seen from above, x right and y up, ${unit}. The amber circle is the fitted inertial circle.`}
+        legend={rotLegend}
       >
         <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
@@ -101,6 +126,7 @@ export function TheoryPlots({ result, setup }: PlotContext) {
             type="number"
             dataKey="x"
             domain={rotDomain.x}
+            interval={0}
             ticks={niceTicks(rotDomain.x)}
             tickFormatter={tick}
             allowDataOverflow
@@ -110,14 +136,14 @@ export function TheoryPlots({ result, setup }: PlotContext) {
             type="number"
             dataKey="y"
             domain={rotDomain.y}
+            interval={0}
             ticks={niceTicks(rotDomain.y)}
             tickFormatter={tick}
             allowDataOverflow
-            label={{ value: `y (${unit})`, angle: -90, position: "insideLeft" }}
+            label={yLabel(`y (${unit})`)}
           />
           <ZAxis range={[12, 12]} />
           <Tooltip formatter={(v: unknown) => tick(Number(v))} />
-          <Legend verticalAlign="top" />
           <Scatter name="tracer" data={rot} fill={colours.data} isAnimationActive={false} />
           {circle.length ? (
             <Scatter
@@ -131,13 +157,19 @@ export function TheoryPlots({ result, setup }: PlotContext) {
           ) : null}
         </ScatterChart>
       </PlotFrame>
-      <PlotFrame square title="Track in the lab frame" caption={`As a camera standing in the room would see it, ${unit}.`}>
+      <PlotFrame
+        square
+        title="Track in the lab frame"
+        caption={`As a camera standing in the room would see it, ${unit}.`}
+        legend={[{ label: "tracer (lab frame)", colour: colours.second, mark: "dot" }]}
+      >
         <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
           <XAxis
             type="number"
             dataKey="x"
             domain={labDomain.x}
+            interval={0}
             ticks={niceTicks(labDomain.x)}
             tickFormatter={tick}
             allowDataOverflow
@@ -147,34 +179,49 @@ export function TheoryPlots({ result, setup }: PlotContext) {
             type="number"
             dataKey="y"
             domain={labDomain.y}
+            interval={0}
             ticks={niceTicks(labDomain.y)}
             tickFormatter={tick}
             allowDataOverflow
-            label={{ value: `y (${unit})`, angle: -90, position: "insideLeft" }}
+            label={yLabel(`y (${unit})`)}
           />
           <ZAxis range={[12, 12]} />
-          <Legend verticalAlign="top" />
           <Scatter name="tracer (lab frame)" data={lab} fill={colours.second} isAnimationActive={false} />
         </ScatterChart>
       </PlotFrame>
       <PlotFrame
         title="Coriolis acceleration against the rotated velocity"
         caption={`Points: (v, aₓ + r u) and (−u, a_y + r v). Their slope is f; amber is the fit, ink is 2Ω from the rate in force.`}
+        legend={[
+          { label: "measured", colour: colours.data, mark: "dot" },
+          { label: `fit, f = ${result.fMeasured === null ? "—" : tick(result.fMeasured)} 1/s`, colour: colours.fit, mark: "line" },
+          { label: `2Ω = ${result.fPredicted === null ? "—" : tick(result.fPredicted)} 1/s`, colour: colours.theory, mark: "dashed" },
+        ]}
       >
-        <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 24 }}>
+        <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
-          <XAxis type="number" dataKey="x" tickFormatter={tick} label={{ value: `rotated velocity (${unit}/s)`, position: "insideBottom", offset: -16 }} />
+          <XAxis
+            type="number"
+            dataKey="x"
+            domain={accelX.domain}
+            interval={0}
+            ticks={accelX.ticks}
+            tickFormatter={tick}
+            label={{ value: `rotated velocity (${unit}/s)`, position: "insideBottom", offset: -16 }}
+          />
           <YAxis
             type="number"
             dataKey="y"
+            domain={accelY.domain}
+            interval={0}
+            ticks={accelY.ticks}
             tickFormatter={tick}
-            label={{ value: `acceleration (${accelUnit})`, angle: -90, position: "insideLeft", offset: -8 }}
+            label={yLabel(`acceleration (${accelUnit})`)}
           />
           <ZAxis range={[10, 10]} />
-          <Legend verticalAlign="top" />
           <Scatter name="measured" data={accelPoints} fill={colours.data} isAnimationActive={false} />
           <Scatter
-            name={`fit, f = ${result.fMeasured === null ? "—" : tick(result.fMeasured)} 1/s`}
+            name="fit"
             data={line(result.fMeasured)}
             line={{ stroke: colours.fit, strokeWidth: 3 }}
             shape={() => <g />}
@@ -182,7 +229,7 @@ export function TheoryPlots({ result, setup }: PlotContext) {
             isAnimationActive={false}
           />
           <Scatter
-            name={`2Ω = ${result.fPredicted === null ? "—" : tick(result.fPredicted)} 1/s`}
+            name="2Ω"
             data={line(result.fPredicted)}
             line={{ stroke: colours.theory, strokeWidth: 2, strokeDasharray: "6 4" }}
             shape={() => <g />}
@@ -194,6 +241,10 @@ export function TheoryPlots({ result, setup }: PlotContext) {
       <PlotFrame
         title="Direction of motion against time"
         caption="The velocity's angle, unwrapped, in radians. A straight line of slope −f means steady inertial turning."
+        legend={[
+          { label: "measured", colour: colours.data, mark: "line" },
+          { label: "straight fit", colour: colours.fit, mark: "dashed" },
+        ]}
       >
         <LineChart data={angle} margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
@@ -201,11 +252,12 @@ export function TheoryPlots({ result, setup }: PlotContext) {
             type="number"
             dataKey="t"
             tickFormatter={tick}
-            domain={["dataMin", "dataMax"]}
+            domain={angleTime.domain}
+            interval={0}
+            ticks={angleTime.ticks}
             label={{ value: "time (s)", position: "insideBottom", offset: -16 }}
           />
-          <YAxis tickFormatter={tick} label={{ value: "angle (rad)", angle: -90, position: "insideLeft" }} />
-          <Legend verticalAlign="top" />
+          <YAxis domain={angleY.domain} interval={0} ticks={angleY.ticks} tickFormatter={tick} label={yLabel("angle (rad)")} />
           <Line name="measured" dataKey="angle" stroke={colours.data} dot={false} strokeWidth={2} isAnimationActive={false} />
           <Line name="straight fit" dataKey="fitted" stroke={colours.fit} dot={false} strokeDasharray="6 4" strokeWidth={2} isAnimationActive={false} />
         </LineChart>
@@ -213,18 +265,23 @@ export function TheoryPlots({ result, setup }: PlotContext) {
       <PlotFrame
         title="Residuals of the acceleration fit"
         caption={`Measured minus fitted acceleration, ${accelUnit}. Structure here means the model misses something.`}
+        legend={[
+          { label: "x", colour: colours.data, mark: "line" },
+          { label: "y", colour: colours.second, mark: "line" },
+        ]}
       >
-        <LineChart data={residuals} margin={{ top: 10, right: 16, bottom: 28, left: 24 }}>
+        <LineChart data={residuals} margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
           <XAxis
             type="number"
             dataKey="t"
             tickFormatter={tick}
-            domain={["dataMin", "dataMax"]}
+            domain={residualTime.domain}
+            interval={0}
+            ticks={residualTime.ticks}
             label={{ value: "time (s)", position: "insideBottom", offset: -16 }}
           />
-          <YAxis tickFormatter={tick} label={{ value: `residual (${accelUnit})`, angle: -90, position: "insideLeft", offset: -8 }} />
-          <Legend verticalAlign="top" />
+          <YAxis domain={residualY.domain} interval={0} ticks={residualY.ticks} tickFormatter={tick} label={yLabel(`residual (${accelUnit})`)} />
           <Line name="x" dataKey="rx" stroke={colours.data} dot={false} isAnimationActive={false} />
           <Line name="y" dataKey="ry" stroke={colours.second} dot={false} isAnimationActive={false} />
         </LineChart>

@@ -1,6 +1,7 @@
 import type { RunHistoryEntry } from "~/.server/runs/record";
 import { ScrollRegion } from "~/components/ui/scroll-region";
 import { useLabTime } from "~/components/lab-time";
+import { historyEntryText } from "~/lib/history-text";
 
 function value(v: string | null) {
   return v === null || v === "" ? <span className="text-muted">(none)</span> : <span className="font-mono">{v}</span>;
@@ -8,7 +9,7 @@ function value(v: string | null) {
 
 /**
  * Every change to a record (a run, or a calibration record), oldest first: who, when, which field,
- * old → new. Fields named in `events` are single happenings (logged, signed off) shown by their value.
+ * old → new in words (lib/history-text.ts). Fields named in `events` are single happenings (logged, signed off), said once.
  */
 export function RunHistoryList({ entries, events = ["created"], testId = "run-history" }: { entries: RunHistoryEntry[]; events?: string[]; testId?: string }) {
   const time = useLabTime();
@@ -34,24 +35,27 @@ export function RunHistoryList({ entries, events = ["created"], testId = "run-hi
           </tr>
         </thead>
         <tbody className="divide-y divide-line">
-          {entries.map((e) => (
-            <tr key={e.id}>
-              <td className="py-2 pr-3 whitespace-nowrap">{time.dateTime(e.at)}</td>
-              <td className="py-2 pr-3">{e.who?.name ?? "Tankside"}</td>
-              <td className="py-2 pr-3">{e.fieldLabel}</td>
-              <td className="py-2">
-                {events.includes(e.field) ? (
-                  e.newValue === null ? null : (
-                    value(e.newValue)
-                  )
-                ) : (
-                  <>
-                    {value(e.oldValue)} <span aria-label="changed to">→</span> {value(e.newValue)}
-                  </>
-                )}
-              </td>
-            </tr>
-          ))}
+          {entries.map((e) => {
+            const text = historyEntryText(e, events, (iso) => time.dateTime(iso));
+            return (
+              <tr key={e.id}>
+                <td className="py-2 pr-3 whitespace-nowrap">{time.dateTime(e.at)}</td>
+                <td className="py-2 pr-3">{e.who?.name ?? "Tankside"}</td>
+                <td className="py-2 pr-3">{text.what}</td>
+                <td className="py-2">
+                  {text.change.event ? (
+                    text.change.detail === null ? null : (
+                      value(text.change.detail)
+                    )
+                  ) : (
+                    <>
+                      {value(text.change.from)} <span aria-label="changed to">→</span> {value(text.change.to)}
+                    </>
+                  )}
+                </td>
+              </tr>
+            );
+          })}
         </tbody>
       </table>
     </ScrollRegion>

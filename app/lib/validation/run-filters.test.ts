@@ -46,7 +46,9 @@ describe("runs-table filters from the address", () => {
     expect(sort.ok).toBe(false);
     if (!sort.ok) {
       expect(sort.field).toBe("sort");
-      expect(sort.message).toMatch(/sort must be one of createdAt, id, setRateRpm/);
+      expect(sort.message).toBe(
+        'There is no sort "technicianName": the runs list sorts by createdAt (logged), id (run), setRateRpm (set rate), waterDepthM (depth), waterTemperatureC (water temp.), frameCount (frames), state (state), verdict (verdict).',
+      );
     }
   });
 

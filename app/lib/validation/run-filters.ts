@@ -31,6 +31,12 @@ const id = (name: string) =>
     .transform(Number)
     .optional();
 
+/** The sort fields with the column names people see: "createdAt (logged), id (run), …". */
+function sortChoices(): string {
+  const label = (f: RunSortField) => (f === "id" ? "run" : runTableColumns.find((c) => c.id === f)?.label.toLowerCase());
+  return runSortFields.map((f) => `${f} (${label(f) ?? f})`).join(", ");
+}
+
 /**
  * The runs table's query, as URL search parameters (all strings). Shared by the page, its data
  * route and the API, so a filtered view is the same link in all three.
@@ -52,8 +58,12 @@ export const runFiltersSchema = z
         // eslint-disable-next-line no-control-regex -- matching control characters is the point of this pattern
         .regex(/^[^\u0000-\u001f\u007f]*$/, "Search text (q) cannot contain control characters.")
         .optional(),
-      sort: z.enum(runSortFields, { error: `sort must be one of ${runSortFields.join(", ")}.` }).default("createdAt"),
-      dir: z.enum(["asc", "desc"], { error: "dir must be asc or desc." }).default("desc"),
+      sort: z.enum(runSortFields, { error: (iss) => `There is no sort "${String(iss.input)}": the runs list sorts by ${sortChoices()}.` }).default("createdAt"),
+      dir: z
+        .enum(["asc", "desc"], {
+          error: (iss) => `There is no direction "${String(iss.input)}": dir is asc (oldest or smallest first) or desc (newest or largest first).`,
+        })
+        .default("desc"),
       page: z
         .string()
         .regex(/^\d{1,6}$/, "page must be a whole number from 1.")

@@ -40,7 +40,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (request.method !== "POST") return apiError(405, "method_not_allowed", "Send frames with POST, or remove them with DELETE.");
   const user = await requireRole(request, "technician", "lab_manager");
   const run = await loadRun(request, params.runId);
-  requireChangeable(request, run, user);
+  await requireChangeable(request, run, user);
 
   if (!(request.headers.get("Content-Type") ?? "").includes("multipart/form-data")) {
     return apiError(415, "unsupported_media_type", "Send the frame as multipart/form-data with the field `file`.");
@@ -89,7 +89,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 async function remove(request: Request, runId: string) {
   const user = await requireRole(request, "technician", "lab_manager");
   const run = await loadRun(request, runId);
-  requireChangeable(request, run, user);
+  await requireChangeable(request, run, user);
   const body = frameRemovalSchema.safeParse(await readJson(request));
   if (!body.success) return invalidInput(body.error);
   try {

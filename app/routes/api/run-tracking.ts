@@ -29,7 +29,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireRole(request, "technician", "lab_manager");
   const run = await loadRun(request, params.runId);
-  requireChangeable(request, run, user);
+  await requireChangeable(request, run, user);
   try {
     if (request.method === "POST") {
       const job = await enqueueTracking(run, user.id);

@@ -22,7 +22,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (request.method !== "PATCH") return apiError(405, "method_not_allowed", "Use PATCH to change a run.");
   const user = await requireRole(request, "technician", "lab_manager");
   const run = await loadRun(request, params.id);
-  requireChangeable(request, run, user);
+  await requireChangeable(request, run, user);
   const patch = runApiPatchSchema.safeParse(await readJson(request));
   if (!patch.success) return invalidInput(patch.error);
   // The stored run in the form's units (cm), with the change laid over it, checked as a whole.

@@ -152,7 +152,7 @@ describe("GET /api/v1/runs", () => {
   it("answers 400 with a clear message for an unknown filter or sort field, a malformed date and a page out of range", async () => {
     for (const [query, text] of [
       ["colour=red", /Unknown filter "colour"/],
-      ["sort=purpose", /sort must be one of/],
+      ["sort=purpose", /There is no sort "purpose": the runs list sorts by createdAt \(logged\)/],
       ["from=2025-13-01", /not a real calendar date/],
       ["page=4&pageSize=10", /Page 4 is past the last page: 30 runs make 3 pages of 10/],
       ["page=2&state=signed_off", /No runs match these filters, so there is only page 1/],

@@ -12,6 +12,7 @@ import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
 import { formText } from "~/lib/form-text";
+import { formatNumber } from "~/lib/number-format";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Booking #${data?.booking.id ?? ""} · Tankside` }];
 
@@ -65,8 +66,8 @@ export default function BookingDetail({ loaderData, actionData }: Route.Componen
     ["Slot", time.range(b.start, b.end)],
     ["Purpose", b.purpose],
     ["Requested by", `${b.requesterName}, ${time.dateTime(b.createdAt)}`],
-    ["Planned rate", b.plannedRateRpm === null ? null : `${b.plannedRateRpm} rpm`],
-    ["Planned depth", b.plannedDepthCm === null ? null : `${b.plannedDepthCm} cm`],
+    ["Planned rate", b.plannedRateRpm === null ? null : `${formatNumber(b.plannedRateRpm, 6)} rpm`],
+    ["Planned depth", b.plannedDepthCm === null ? null : `${formatNumber(b.plannedDepthCm, 6)} cm`],
     [
       "Spin-up lead time",
       b.spinUpLeadMinutes === null ? null : `${formatDuration(b.spinUpLeadMinutes * 60)}, included before the slot the requester asked for`,

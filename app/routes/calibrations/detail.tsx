@@ -184,7 +184,7 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
         ) : null}
         {r.kind === "rate" && r.passed === false ? (
           <Notice kind="error" title="Fails the tolerance">
-            At least one reading is more than {r.tolerancePct} % off its set rate. Check the drive before relying on the rate.
+            At least one reading is more than {formatNumber(r.tolerancePct, 6)} % off its set rate. Check the drive before relying on the rate.
           </Notice>
         ) : null}
       </div>
@@ -218,8 +218,8 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
                   const pct = (100 * (x.measuredRpm - x.setRpm)) / x.setRpm;
                   return (
                     <tr key={i} className="border-b border-line">
-                      <td className="py-1 pr-3 font-mono">{x.setRpm}</td>
-                      <td className="py-1 pr-3 font-mono">{x.measuredRpm}</td>
+                      <td className="py-1 pr-3 font-mono">{formatNumber(x.setRpm, 6)}</td>
+                      <td className="py-1 pr-3 font-mono">{formatNumber(x.measuredRpm, 6)}</td>
                       <td className={`py-1 pr-3 font-mono ${Math.abs(pct) > (r.tolerancePct ?? 1) ? "font-bold text-disagrees-ink" : ""}`}>
                         {pct >= 0 ? "+" : ""}
                         {formatNumber(pct, 3)} %

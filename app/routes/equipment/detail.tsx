@@ -9,6 +9,7 @@ import { equipmentSummary, StatusTag } from "~/components/equipment-facts";
 import { equipmentCalibrationSummary } from "~/.server/calibrations";
 import { listBookings, serializeBookings } from "~/.server/bookings";
 import { EquipmentBookings, EquipmentCalibrations } from "~/components/equipment-records";
+import { formatNumber } from "~/lib/number-format";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.item.name ?? "Equipment"} · Tankside` }];
 
@@ -33,8 +34,14 @@ export default function EquipmentDetail({ loaderData }: Route.ComponentProps) {
     ["Maker and model", [item.maker, item.model].filter(Boolean).join(" ") || null],
     ["Serial number", item.serialNumber],
     ["Location", item.location],
-    ["Rate calibration tolerance", item.kind === "table" && item.rateTolerancePct !== null ? `${item.rateTolerancePct} % of the set rate` : null],
-    ["Scale tolerance", item.kind === "camera" && item.scaleTolerancePct !== null ? `${item.scaleTolerancePct} % of the scale calibration` : null],
+    [
+      "Rate calibration tolerance",
+      item.kind === "table" && item.rateTolerancePct !== null ? `${formatNumber(item.rateTolerancePct, 6)} % of the set rate` : null,
+    ],
+    [
+      "Scale tolerance",
+      item.kind === "camera" && item.scaleTolerancePct !== null ? `${formatNumber(item.scaleTolerancePct, 6)} % of the scale calibration` : null,
+    ],
   ];
   return (
     <div>

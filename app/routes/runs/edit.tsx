@@ -20,6 +20,7 @@ import { Card, PageHeader } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
 import { Notice, FormProblem } from "~/components/ui/notice";
 import { RunConditionsPanel } from "~/components/run-conditions-panel";
+import { formatCentimetres, formatNumber } from "~/lib/number-format";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.run ? `Edit ${runLabel(data.run.id)}` : "Log a run"} · Tankside` }];
 
@@ -34,7 +35,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   let carryOver = null;
   if (params.id) {
     const found = await loadRun(request, params.id);
-    requireChangeable(request, found, user);
+    await requireChangeable(request, found, user);
     run = found.get({ plain: true });
   } else if (url.searchParams.get("supersedes")) {
     const old = await loadRun(request, url.searchParams.get("supersedes") ?? undefined);
@@ -54,7 +55,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   try {
     if (params.id) {
       const run = await loadRun(request, params.id);
-      requireChangeable(request, run, user);
+      await requireChangeable(request, run, user);
       await updateRun(run.id, submission.value, user);
       return redirect(`/runs/${run.id}`);
     }
@@ -201,7 +202,7 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
             >
               {tables.map((t) => (
                 <option key={t.id} value={t.id}>
-                  {t.name} (up to {t.maxRateRpm} rpm)
+                  {t.name} (up to {formatNumber(t.maxRateRpm, 6)} rpm)
                 </option>
               ))}
             </SelectField>
@@ -214,14 +215,14 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
             >
               {tanks.map((t) => (
                 <option key={t.id} value={t.id}>
-                  {t.name} ({(t.diameterM ?? 0) * 100} cm × {(t.depthM ?? 0) * 100} cm)
+                  {t.name} ({formatCentimetres(t.diameterM)} × {formatCentimetres(t.depthM)})
                 </option>
               ))}
             </SelectField>
             <SelectField label="Camera" name="cameraId" defaultValue={String(source?.cameraId ?? cameras[0]?.id ?? "")} error={fields.cameraId.errors}>
               {cameras.map((c) => (
                 <option key={c.id} value={c.id}>
-                  {c.name} ({c.resolutionWidthPx}×{c.resolutionHeightPx}, {c.nominalFrameRateFps} frames/s)
+                  {c.name} ({c.resolutionWidthPx}×{c.resolutionHeightPx}, {formatNumber(c.nominalFrameRateFps, 6)} frames/s)
                 </option>
               ))}
             </SelectField>

@@ -47,7 +47,7 @@ async function lastSetupOfCamera(cameraId: number, width: number, height: number
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireRole(request, "technician", "lab_manager");
   const run = await loadRun(request, params.id);
-  requireChangeable(request, run, user);
+  await requireChangeable(request, run, user);
   const count = await Frame.count({ where: { runId: run.id } });
   if (!count) throw data("Bring the frames first; the view is set up on one of them.", { status: 409 });
   const frame = await Frame.findOne({ where: { runId: run.id, position: 0 } });
@@ -77,7 +77,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const user = await requireRole(request, "technician", "lab_manager");
   const run = await loadRun(request, params.id);
-  requireChangeable(request, run, user);
+  await requireChangeable(request, run, user);
   const submission = parseWithZod(await readForm(request), { schema: viewSetupSchema });
   if (submission.status !== "success") return data({ errors: submission.reply().error ?? {} }, { status: 400 });
   const v = submission.value;

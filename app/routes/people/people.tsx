@@ -86,68 +86,68 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
       <div className="grid grid-cols-1 gap-6 lg:grid-cols-[2fr_1fr]">
         <Card title={`${loaderData.people.length} people`}>
           <ScrollRegion label="People">
-          <table className="w-full text-left">
-            <thead>
-              <tr className="border-b-2 border-line">
-                <th className="py-2 pr-3">Name</th>
-                <th className="py-2 pr-3">Role</th>
-                <th className="py-2 pr-3">State</th>
-                <th className="py-2">Actions</th>
-              </tr>
-            </thead>
-            <tbody>
-              {loaderData.people.map((p) => (
-                <tr key={p.id} className="border-b border-line align-top" data-testid={`person-${p.email}`}>
-                  <td className="py-3 pr-3">
-                    <p className="font-bold">{p.name}</p>
-                    <p className="text-sm text-muted">{p.email}</p>
-                  </td>
-                  <td className="py-3 pr-3">
-                    <Form method="post" className="flex items-center gap-2">
-                      <input type="hidden" name="intent" value="role" />
-                      <input type="hidden" name="userId" value={p.id} />
-                      <label className="sr-only" htmlFor={`role-${p.id}`}>
-                        Role of {p.name}
-                      </label>
-                      <select id={`role-${p.id}`} name="role" defaultValue={p.role} className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-2">
-                        {roles.map((r) => (
-                          <option key={r} value={r}>
-                            {roleLabels[r]}
-                          </option>
-                        ))}
-                      </select>
-                      <Button tone="plain" type="submit">
-                        Set
-                      </Button>
-                    </Form>
-                  </td>
-                  <td className="py-3 pr-3">
-                    {!p.active ? <Tag tone="disagrees">deactivated</Tag> : p.invited ? <Tag tone="caution">invited</Tag> : <Tag tone="agrees">active</Tag>}
-                  </td>
-                  <td className="py-3">
-                    <div className="flex flex-wrap gap-2">
-                      {p.id !== loaderData.me.id ? (
-                        <Form method="post">
-                          <input type="hidden" name="userId" value={p.id} />
-                          <Button tone={p.active ? "danger" : "plain"} type="submit" name="intent" value={p.active ? "deactivate" : "reactivate"}>
-                            {p.active ? "Deactivate" : "Reactivate"}
-                          </Button>
-                        </Form>
-                      ) : null}
-                      {p.invited && p.active ? (
-                        <Form method="post">
-                          <input type="hidden" name="userId" value={p.id} />
-                          <Button tone="quiet" type="submit" name="intent" value="resend">
-                            Send invitation again
-                          </Button>
-                        </Form>
-                      ) : null}
-                    </div>
-                  </td>
+            <table className="w-full text-left">
+              <thead>
+                <tr className="border-b-2 border-line">
+                  <th className="py-2 pr-3">Name</th>
+                  <th className="py-2 pr-3">Role</th>
+                  <th className="py-2 pr-3">State</th>
+                  <th className="py-2">Actions</th>
                 </tr>
-              ))}
-            </tbody>
-          </table>
+              </thead>
+              <tbody>
+                {loaderData.people.map((p) => (
+                  <tr key={p.id} className="border-b border-line align-top" data-testid={`person-${p.email}`}>
+                    <td className="py-3 pr-3">
+                      <p className="font-bold">{p.name}</p>
+                      <p className="text-sm text-muted">{p.email}</p>
+                    </td>
+                    <td className="py-3 pr-3">
+                      <Form method="post" className="flex items-center gap-2">
+                        <input type="hidden" name="intent" value="role" />
+                        <input type="hidden" name="userId" value={p.id} />
+                        <label className="sr-only" htmlFor={`role-${p.id}`}>
+                          Role of {p.name}
+                        </label>
+                        <select id={`role-${p.id}`} name="role" defaultValue={p.role} className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-2">
+                          {roles.map((r) => (
+                            <option key={r} value={r}>
+                              {roleLabels[r]}
+                            </option>
+                          ))}
+                        </select>
+                        <Button tone="plain" type="submit">
+                          Set
+                        </Button>
+                      </Form>
+                    </td>
+                    <td className="py-3 pr-3">
+                      {!p.active ? <Tag tone="disagrees">deactivated</Tag> : p.invited ? <Tag tone="caution">invited</Tag> : <Tag tone="agrees">active</Tag>}
+                    </td>
+                    <td className="py-3">
+                      <div className="flex flex-wrap gap-2">
+                        {p.id !== loaderData.me.id ? (
+                          <Form method="post">
+                            <input type="hidden" name="userId" value={p.id} />
+                            <Button tone={p.active ? "danger" : "plain"} type="submit" name="intent" value={p.active ? "deactivate" : "reactivate"}>
+                              {p.active ? "Deactivate" : "Reactivate"}
+                            </Button>
+                          </Form>
+                        ) : null}
+                        {p.invited && p.active ? (
+                          <Form method="post">
+                            <input type="hidden" name="userId" value={p.id} />
+                            <Button tone="quiet" type="submit" name="intent" value="resend">
+                              Send invitation again
+                            </Button>
+                          </Form>
+                        ) : null}
+                      </div>
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
           </ScrollRegion>
         </Card>
         <Card title="Invite someone">

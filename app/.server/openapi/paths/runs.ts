@@ -169,14 +169,10 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
             schema: z.strictObject({
               file: z.string().openapi({ format: "binary", description: "JPEG, PNG, TIFF or WebP image, or a ZIP of them; checked by content." }),
               timeS: z.number().min(0).optional().openapi({ description: "The frame's own time in s, for a frame cut from a video." }),
-              frameNumber: z
-                .int()
-                .min(1)
-                .optional()
-                .openapi({
-                  description:
-                    "With expectedFrames: this frame's 1-based place in the finished stack (by time, else by file name). The frame is then searched for the tracer as it lands.",
-                }),
+              frameNumber: z.int().min(1).optional().openapi({
+                description:
+                  "With expectedFrames: this frame's 1-based place in the finished stack (by time, else by file name). The frame is then searched for the tracer as it lands.",
+              }),
               expectedFrames: z.int().min(3).max(uploadLimits.maxFramesPerRun).optional().openapi({
                 description:
                   "With frameNumber: how many frames the finished stack will have. The upload that brings the stack to this count starts tracking when the run has a view setup. Send the frames the still background is made of first (the frames at 0-based places round(i·(N−1)/20), i = 0…20, for N ≥ 21) so the others can be searched as they land.",

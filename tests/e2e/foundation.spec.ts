@@ -159,7 +159,7 @@ test("an invitation e-mail leads to a working account", async ({ browser, baseUR
   await managerPage.getByLabel("Name").fill("Nadia Brightwater");
   await managerPage.getByLabel("E-mail").fill("Nadia@Tankside.example");
   await managerPage.getByLabel("Role", { exact: true }).selectOption("instructor");
-  await managerPage.getByRole("button", { name: "Send invitation" }).click();
+  await managerPage.getByRole("button", { name: "Send invitation", exact: true }).click();
   await expect(managerPage.getByText("Invitation sent to nadia@tankside.example.")).toBeVisible();
 
   const mail = await waitForMail(baseURL!, "nadia@tankside.example", "You are invited to Tankside", since);

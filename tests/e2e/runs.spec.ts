@@ -36,7 +36,7 @@ test("a technician logs a run, brings a frame stack, sets the view, tracks it an
   const fake = path.join(stack.dir, "frame_0.png");
   fs.writeFileSync(fake, "not really a picture");
   await page.getByLabel("Choose frames, a ZIP or a video").setInputFiles([...stack.files, fake]);
-  await expect(page.getByTestId("upload-outcomes")).toContainText("frame_0.png: frame_0.png: This is not an image Tankside can read", { timeout: 60_000 });
+  await expect(page.getByTestId("upload-outcomes")).toContainText("frame_0.png: This is not an image Tankside can read", { timeout: 60_000 });
   await expect(page.getByRole("heading", { name: "Frame stack (90)" })).toBeVisible({ timeout: 60_000 });
   await expect(page.getByTestId("filmstrip").getByRole("img")).toHaveCount(90);
 

@@ -172,7 +172,7 @@ test("an invitation e-mail leads to a working account", async ({ browser, baseUR
   await guest.getByLabel("The same again").fill("rotating tanks are fun");
   await guest.getByRole("button", { name: "Set my password and sign in" }).click();
   await expect(guest.getByRole("button", { name: "Sign out" })).toBeVisible();
-  await expect(guest.getByText("Instructor", { exact: true })).toBeVisible();
+  await expect(guest.getByRole("link", { name: "Nadia Brightwater Instructor" })).toBeVisible();
   await managerContext.close();
   await guestContext.close();
 });

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { parseQueryFilters, type ParsedFilters } from "./query-filters";
 import { calibrationKinds, calibrationKindLabels, standingLabels, type CalibrationStanding } from "~/lib/calibrations";
 
 /**
@@ -45,26 +46,10 @@ export const calibrationFiltersSchema = z.strictObject(
 );
 
 export type CalibrationFilters = z.output<typeof calibrationFiltersSchema>;
-export type ParsedCalibrationFilters = { ok: true; filters: CalibrationFilters } | { ok: false; field: string | null; message: string };
-
-/** Search params the router adds to data requests; they are not filters. */
-const routerParams = new Set(["index", "_routes", "_data"]);
+export type ParsedCalibrationFilters = ParsedFilters<CalibrationFilters>;
 
 export function parseCalibrationFilters(params: URLSearchParams): ParsedCalibrationFilters {
-  const raw: Record<string, string> = {};
-  for (const key of new Set(params.keys())) {
-    if (routerParams.has(key)) continue;
-    const values = params.getAll(key);
-    if (values.length > 1) return { ok: false, field: key, message: `Give ${key} once; it was given ${values.length} times.` };
-    const value = values[0] ?? "";
-    if (value !== "" || !knownKeys.has(key)) raw[key] = value;
-  }
-  const result = calibrationFiltersSchema.safeParse(raw);
-  if (result.success) return { ok: true, filters: result.data };
-  const issue = result.error.issues[0];
-  if (!issue) return { ok: false, field: null, message: "These filters cannot be read." };
-  const field = issue.code === "unrecognized_keys" ? (issue.keys[0] ?? null) : typeof issue.path[0] === "string" ? issue.path[0] : null;
-  return { ok: false, field, message: issue.message };
+  return parseQueryFilters(params, calibrationFiltersSchema, knownKeys);
 }
 
 /** The search string for a filter set, leaving out what is not set so links stay short. */

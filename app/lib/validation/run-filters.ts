@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { parseQueryFilters, type ParsedFilters } from "./query-filters";
 import { runStates, verdicts } from "~/lib/runs";
 
 /** Fields the runs table (and GET /api/v1/runs) can sort by: each is a column of runs, so the database sorts. */
@@ -85,29 +86,14 @@ export const runFiltersSchema = z
 
 export type RunFilters = z.output<typeof runFiltersSchema>;
 
-export type ParsedRunFilters = { ok: true; filters: RunFilters } | { ok: false; field: string | null; message: string };
+export type ParsedRunFilters = ParsedFilters<RunFilters>;
 
 export const runFilterKeys = ["table", "technician", "state", "verdict", "from", "to", "q", "sort", "dir", "page", "pageSize"] as const;
 const knownKeys = new Set<string>(runFilterKeys);
 
-/** Search params the router adds to data requests; they are not filters. */
-const routerParams = new Set(["index", "_routes", "_data"]);
-
 /** Reads the filters from a URL's search parameters; empty values count as absent, a repeated one is refused. */
 export function parseRunFilters(params: URLSearchParams): ParsedRunFilters {
-  const raw: Record<string, string> = {};
-  for (const key of new Set(params.keys())) {
-    if (routerParams.has(key)) continue;
-    const values = params.getAll(key);
-    if (values.length > 1) return { ok: false, field: key, message: `Give ${key} once; it was given ${values.length} times.` };
-    // An empty known field is "any" (an untouched select); an unknown one is refused even when empty.
-    if (values[0] !== "" || !knownKeys.has(key)) raw[key] = values[0]!;
-  }
-  const result = runFiltersSchema.safeParse(raw);
-  if (result.success) return { ok: true, filters: result.data };
-  const issue = result.error.issues[0]!;
-  const field = issue.code === "unrecognized_keys" ? (issue.keys[0] ?? null) : typeof issue.path[0] === "string" ? issue.path[0] : null;
-  return { ok: false, field, message: issue.message };
+  return parseQueryFilters(params, runFiltersSchema, knownKeys);
 }
 
 /** The search string for a filter set, leaving out defaults so shared links stay short. */

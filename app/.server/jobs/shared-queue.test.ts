@@ -228,10 +228,10 @@ describe.skipIf(!onPostgres)("the shared job queue on PostgreSQL (skipped on SQL
 
   it("a worker stopped with SIGTERM mid-job hands the job back at once, and the other worker resumes it", async () => {
     const [second, third] = [workers[1]!, workers[2]!];
-    // A run long enough (several seconds of tracking) that the signal surely lands mid-job: the
-    // 120-frame run can be finished between the first progress the test sees and the signal. 720
-    // since the search windows: at 360 the first progress written was already frame 209.
-    const LONG = 720;
+    // A run long enough (a few seconds of tracking) that the signal surely lands mid-job: the
+    // 120-frame run can be finished between the first progress the test sees and the signal. The
+    // job stores its first frames at once (tracking-run.ts), so the first progress seen is early.
+    const LONG = 360;
     const run = await newRun("worker stopped mid-job", await renderStack(LONG));
     const job = await enqueueTracking(run, lab.tech.id);
     const seen = await waitFor(

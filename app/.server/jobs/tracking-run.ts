@@ -194,6 +194,10 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     let pending: FrameDetections[] = [];
     let framesDone = prior.length + streamed.frames.length;
     let lastFlush = Date.now();
+    // The first few frames are stored at once, then every half second: whoever watches the job (the
+    // run page, a worker taking it over) sees it move from its first frames, however fast it runs.
+    const FIRST_FLUSH_FRAMES = 4;
+    let flushedOnce = false;
     let flushing: Promise<unknown> = Promise.resolve();
     const write = async (batch: FrameDetections[], count: number, mark: number) => {
       const rows = batch.flatMap((f) =>
@@ -238,7 +242,8 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
         done.add(fd.frameIndex);
         framesDone++;
         while (done.has(watermark)) watermark++;
-        if (Date.now() - lastFlush > 500) {
+        if (Date.now() - lastFlush > 500 || (!flushedOnce && pending.length >= FIRST_FLUSH_FRAMES)) {
+          flushedOnce = true;
           lastFlush = Date.now();
           void flush();
         }

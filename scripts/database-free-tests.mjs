@@ -20,6 +20,7 @@ export const databaseFree = [
     why: "npm run demo until the server would start: its secret, the build check, signals",
     children: ["scripts/demo.mjs"],
   },
+  { glob: "tests/unit/scene-projection.test.ts", why: "POV-Ray renders of the scene check against the projection, in a temporary folder" },
   { glob: "tests/unit/compressed-answers.test.ts", why: "long answers through the compression middleware, on a server of its own" },
 ];
 

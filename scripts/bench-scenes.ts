@@ -1,0 +1,44 @@
+/**
+ * `npm run bench:scenes`: Tankside's tracking and theory check on each ray-traced scene
+ * (tests/fixtures/scenes; rendered into the cache first where missing, see `npm run scenes`).
+ * Prints one JSON line per scene on stdout: frames, the share of frames in the longest track,
+ * the number of tracks, the longest track's RMS error against the truth (px; also against the
+ * projected centre), the fitted f and its error against 2Ω (%), the verdict, and the seconds the
+ * render (null when cached) and the tracking took. `npm run bench:scenes -- lab-float` runs one.
+ */
+import { closeTrackingPool } from "../app/.server/tracking/track-frame-stack";
+import { measureScene } from "../tests/fixtures/scenes/measure-scene";
+import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";
+import { sceneVariants } from "../tests/fixtures/scenes/scene-model";
+
+const round = (v: number | null, digits: number): number | null => (v === null ? null : Number(v.toFixed(digits)));
+
+async function main(): Promise<void> {
+  const wanted = process.argv.slice(2).filter((a) => !a.startsWith("-"));
+  const unknown = wanted.filter((w) => !sceneVariants.some((v) => v.name === w));
+  if (unknown.length > 0) throw new Error(`No such scene: ${unknown.join(", ")} (there are ${sceneVariants.map((v) => v.name).join(", ")}).`);
+  const variants = wanted.length > 0 ? sceneVariants.filter((v) => wanted.includes(v.name)) : sceneVariants;
+  for (const variant of variants) {
+    const stack = await ensureSceneStack(variant, (m) => process.stderr.write(`${m}\n`));
+    const m = await measureScene(stack);
+    process.stdout.write(
+      `${JSON.stringify({
+        ...m,
+        longestTrackShare: round(m.longestTrackShare, 4),
+        rmsErrorPx: round(m.rmsErrorPx, 3),
+        rmsErrorProjectedPx: round(m.rmsErrorProjectedPx, 3),
+        fMeasured: round(m.fMeasured, 5),
+        fErrorPercent: round(m.fErrorPercent, 3),
+        renderSeconds: round(m.renderSeconds, 1),
+        trackSeconds: round(m.trackSeconds, 2),
+      })}\n`,
+    );
+  }
+}
+
+main()
+  .catch((error: unknown) => {
+    process.stderr.write(`${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);
+    process.exitCode = 1;
+  })
+  .finally(() => closeTrackingPool());

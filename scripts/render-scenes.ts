@@ -1,0 +1,34 @@
+/**
+ * `npm run scenes`: renders the ray-traced test scenes (tests/fixtures/scenes) once into the cache
+ * (TANKSIDE_SCENE_CACHE, default node_modules/.cache/tankside-scenes) and prints one JSON line per
+ * variant: its folder, frames, and the seconds the render took (null when it was already cached).
+ * `npm run scenes -- rotating-float lab-dye` renders only those; `--prune` then removes the
+ * cached renders of earlier scene files.
+ */
+import { sceneVariants } from "../tests/fixtures/scenes/scene-model";
+import { rm } from "node:fs/promises";
+import { ensureSceneStack, staleStackDirs } from "../tests/fixtures/scenes/render-scene-stack";
+
+async function main(): Promise<void> {
+  const wanted = process.argv.slice(2).filter((a) => !a.startsWith("-"));
+  const unknown = wanted.filter((w) => !sceneVariants.some((v) => v.name === w));
+  if (unknown.length > 0) throw new Error(`No such scene: ${unknown.join(", ")} (there are ${sceneVariants.map((v) => v.name).join(", ")}).`);
+  const variants = wanted.length > 0 ? sceneVariants.filter((v) => wanted.includes(v.name)) : sceneVariants;
+  for (const variant of variants) {
+    const stack = await ensureSceneStack(variant, (m) => process.stderr.write(`${m}\n`));
+    process.stdout.write(
+      `${JSON.stringify({ scene: variant.name, dir: stack.dir, frames: stack.files.length, renderSeconds: stack.renderSeconds === null ? null : Number(stack.renderSeconds.toFixed(1)) })}\n`,
+    );
+  }
+  if (process.argv.includes("--prune")) {
+    for (const dir of await staleStackDirs(sceneVariants)) {
+      process.stderr.write(`removing ${dir}\n`);
+      await rm(dir, { recursive: true, force: true });
+    }
+  }
+}
+
+main().catch((error: unknown) => {
+  process.stderr.write(`${error instanceof Error ? error.message : String(error)}\n`);
+  process.exit(1);
+});

@@ -9,15 +9,12 @@
 import { closeTrackingPool } from "../app/.server/tracking/track-frame-stack";
 import { measureScene } from "../tests/fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";
-import { sceneVariants } from "../tests/fixtures/scenes/scene-model";
+import { variantsNamed } from "../tests/fixtures/scenes/scene-model";
 
 const round = (v: number | null, digits: number): number | null => (v === null ? null : Number(v.toFixed(digits)));
 
 async function main(): Promise<void> {
-  const wanted = process.argv.slice(2).filter((a) => !a.startsWith("-"));
-  const unknown = wanted.filter((w) => !sceneVariants.some((v) => v.name === w));
-  if (unknown.length > 0) throw new Error(`No such scene: ${unknown.join(", ")} (there are ${sceneVariants.map((v) => v.name).join(", ")}).`);
-  const variants = wanted.length > 0 ? sceneVariants.filter((v) => wanted.includes(v.name)) : sceneVariants;
+  const variants = variantsNamed(process.argv.slice(2));
   for (const variant of variants) {
     const stack = await ensureSceneStack(variant, (m) => process.stderr.write(`${m}\n`));
     const m = await measureScene(stack);

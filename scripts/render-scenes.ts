@@ -5,15 +5,12 @@
  * `npm run scenes -- rotating-float lab-dye` renders only those; `--prune` then removes the
  * cached renders of earlier scene files.
  */
-import { sceneVariants } from "../tests/fixtures/scenes/scene-model";
+import { sceneVariants, variantsNamed } from "../tests/fixtures/scenes/scene-model";
 import { rm } from "node:fs/promises";
 import { ensureSceneStack, staleStackDirs } from "../tests/fixtures/scenes/render-scene-stack";
 
 async function main(): Promise<void> {
-  const wanted = process.argv.slice(2).filter((a) => !a.startsWith("-"));
-  const unknown = wanted.filter((w) => !sceneVariants.some((v) => v.name === w));
-  if (unknown.length > 0) throw new Error(`No such scene: ${unknown.join(", ")} (there are ${sceneVariants.map((v) => v.name).join(", ")}).`);
-  const variants = wanted.length > 0 ? sceneVariants.filter((v) => wanted.includes(v.name)) : sceneVariants;
+  const variants = variantsNamed(process.argv.slice(2));
   for (const variant of variants) {
     const stack = await ensureSceneStack(variant, (m) => process.stderr.write(`${m}\n`));
     process.stdout.write(

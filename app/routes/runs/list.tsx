@@ -101,7 +101,7 @@ const columns = col.columns([
     header: "Run",
     enableHiding: false,
     cell: (info) => (
-      <Link to={`/runs/${info.row.original.id}`} className="inline-flex min-h-12 items-center font-mono text-lg font-bold">
+      <Link to={`/runs/${info.row.original.id}`} className="inline-flex min-h-12 items-center font-mono text-lg font-bold whitespace-nowrap">
         {info.row.original.label}
       </Link>
     ),

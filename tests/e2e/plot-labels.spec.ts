@@ -48,6 +48,9 @@ test("the theory-check plots keep their labels whole, tick time at round values 
   const key = coriolis.getByTestId("plot-legend");
   const theory = key.locator("li").filter({ hasText: "2Ω" });
   await expect(theory.locator("line")).toHaveAttribute("stroke-dasharray", "6 4");
+  // Four figures, so a fit a fraction of a per cent off 2Ω does not read the same as 2Ω (R-0001 turns at 10 rpm).
+  await expect(theory).toHaveText(/2Ω = 2\.09\d 1\/s/);
+  await expect(key.locator("li").filter({ hasText: "fit, f =" })).toHaveText(/f = \d\.\d{3} 1\/s/);
   expect(Number(await theory.locator("line").getAttribute("stroke-width"))).toBeGreaterThan(0);
   const fit = key.locator("li").filter({ hasText: "fit, f =" });
   await expect(fit.locator("line")).toHaveAttribute("stroke", "#c27c00");

@@ -228,7 +228,12 @@ export const queryTargets: { name: string; api: boolean; path: string; queries: 
     queries: ["equipmentId=abc", "equipmentId=true", "equipmentId=-1", "state=%00", "from=not-a-date", "to=%00"],
   },
   { name: "equipment (API)", api: true, path: "/api/v1/equipment", queries: ["kind=%00", "kind=table%00"] },
-  { name: "calibrations (API)", api: true, path: "/api/v1/calibrations", queries: ["equipmentId=abc", "equipmentId=0x10", "equipmentId=%00"] },
+  {
+    name: "calibrations (API)",
+    api: true,
+    path: "/api/v1/calibrations",
+    queries: ["equipmentId=abc", "equipmentId=0x10", "equipmentId=%00", "kind=%00", "standing=past", "q=%00"],
+  },
 ];
 
 /** Form bodies every page action must refuse (they cannot be read, or are not forms). */

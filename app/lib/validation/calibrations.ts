@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { calibrationKinds, MIN_RATE_READINGS } from "../calibrations";
+import { calibrationFiltersSchema } from "./calibration-filters";
 import { evenWithFieldErrors, FIRST_YEAR, isPlausibleDay, LAST_YEAR, strictNumber } from "./fields";
 
 const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
@@ -116,7 +117,11 @@ export const calibrationApiSchema = calibrationFields.strict().superRefine(kindN
 
 export type CalibrationInput = z.infer<typeof calibrationSchema>;
 
-/** GET /api/v1/calibrations's query: an equipmentId that cannot be an id is an error, not a silently unfiltered list. */
+/**
+ * GET /api/v1/calibrations's query: the calibrations page's filters (kind, standing, search text q),
+ * with the item named by `equipmentId` as the API always has. A value that cannot be meant is an
+ * error, not a silently unfiltered list; a blank one is "any".
+ */
 export const calibrationFilterSchema = z.object({
   equipmentId: z.preprocess(
     blankToUndefined,
@@ -126,4 +131,7 @@ export const calibrationFilterSchema = z.object({
       .transform(Number)
       .optional(),
   ),
+  kind: z.preprocess(blankToUndefined, calibrationFiltersSchema.shape.kind),
+  standing: z.preprocess(blankToUndefined, calibrationFiltersSchema.shape.standing),
+  q: z.preprocess(blankToUndefined, calibrationFiltersSchema.shape.q),
 });

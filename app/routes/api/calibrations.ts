@@ -4,13 +4,20 @@ import { apiError, readJson } from "~/.server/http";
 import { createCalibration, listCalibrations, serializeCalibrations } from "~/.server/calibrations";
 import { invalidInput, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 import { calibrationApiSchema, calibrationFilterSchema } from "~/lib/validation/calibrations";
+import { calibrationMatches } from "~/lib/validation/calibration-filters";
 
-/** GET /api/v1/calibrations?equipmentId= — every role reads the records. */
+/** GET /api/v1/calibrations?equipmentId=&kind=&standing=&q= — every role reads the records; the filters are the page's. */
 export async function loader({ request }: Route.LoaderArgs) {
   await requireCapability(request, "read_calibrations");
-  const parsed = calibrationFilterSchema.safeParse({ equipmentId: new URL(request.url).searchParams.get("equipmentId") ?? undefined });
-  if (!parsed.success) return apiError(400, "invalid_filter", parsed.error.issues[0]?.message ?? "The filter is not valid.", { field: "equipmentId" });
-  return Response.json(await serializeCalibrations(await listCalibrations({ equipmentId: parsed.data.equipmentId })));
+  const params = new URL(request.url).searchParams;
+  const parsed = calibrationFilterSchema.safeParse(Object.fromEntries(Object.keys(calibrationFilterSchema.shape).map((k) => [k, params.get(k) ?? undefined])));
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    return apiError(400, "invalid_filter", issue?.message ?? "The filter is not valid.", { field: String(issue?.path[0] ?? "") });
+  }
+  const { equipmentId, ...filters } = parsed.data;
+  const records = await serializeCalibrations(await listCalibrations({ equipmentId }));
+  return Response.json(records.filter((r) => calibrationMatches(r, filters)));
 }
 
 /** POST /api/v1/calibrations — technicians and lab managers record calibrations. */

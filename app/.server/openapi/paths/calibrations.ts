@@ -34,10 +34,10 @@ export function registerCalibrationPaths(registry: OpenAPIRegistry) {
     path: "/api/v1/calibrations",
     operationId: "listCalibrations",
     tags,
-    summary: "Calibration records, newest first",
+    summary: "Calibration records, newest first; filtered as the calibrations page filters",
     ...strip(read),
     request: { query: routeSchema(calibrationFilterSchema) },
-    responses: { 200: json(calibrationListSchema, "Newest first"), 400: error("equipmentId is not an id (invalid_filter).") },
+    responses: { 200: json(calibrationListSchema, "Newest first"), 400: error("equipmentId is not an id, or an unknown kind or standing, or search text that is too long (invalid_filter, with field).") },
   });
   operation(registry, {
     method: "post",

@@ -1,6 +1,7 @@
 import { Form, Link, data, useNavigation } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import { useState } from "react";
 import type { Route } from "./+types/list";
 import { readForm } from "~/.server/http";
@@ -181,9 +182,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
   const navigation = useNavigation();
   const [form, fields] = useForm({
     lastResult: outcome.request,
-    shouldValidate: "onBlur",
-    shouldRevalidate: "onInput",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: bookingRequestSchema }),
+    ...formCheck(bookingRequestSchema),
     defaultValue: { equipmentId: String(bookable.find((i) => i.kind === "table")?.id ?? ""), start: loaderData.defaults.start, end: loaderData.defaults.end },
   });
   const [chosen, setChosen] = useState(typeof fields.equipmentId.initialValue === "string" ? fields.equipmentId.initialValue : "");

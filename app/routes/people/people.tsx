@@ -1,6 +1,7 @@
 import { Form, data } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import type { Route } from "./+types/people";
 import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
@@ -70,8 +71,7 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
   const outcome = (actionData ?? {}) as Outcome & { invite?: SubmissionResult<string[]> };
   const [form, fields] = useForm({
     lastResult: outcome.invite,
-    shouldValidate: "onBlur",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: inviteSchema }),
+    ...formCheck(inviteSchema),
     // After an invitation the form starts again from these, so the next one needs only a name and an address.
     defaultValue: { role: "technician" },
   });

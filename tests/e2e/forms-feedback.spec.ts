@@ -160,6 +160,47 @@ test("the invitation form can be used twice in a row: the role starts again as t
   await expect(page.getByText(/Invitation sent to/)).toHaveCount(0);
 });
 
+test("a people row's action is answered in that row, far down the list, and the last answer gives way", async ({ page, baseURL }) => {
+  // Enough people that the last rows start well below the first screen (sorted by name: "Zz…" last).
+  const manager = await apiAs(baseURL!, people.manager);
+  const emails: string[] = [];
+  for (let i = 1; i <= 8; i++) {
+    const email = `zz.row${i}@tankside.example`;
+    const made = await manager.post("/people", { form: { intent: "invite", name: `Zz Row ${i}`, email, role: "technician" } });
+    expect(made.status()).toBe(200);
+    emails.push(email);
+  }
+  await manager.dispose();
+  await page.setViewportSize({ width: 1366, height: 700 });
+  await signIn(page, people.manager);
+  await page.goto("/people");
+  const row = page.getByTestId(`person-${emails[7]}`);
+  const rowTop = await row.evaluate((el) => el.getBoundingClientRect().top + window.scrollY);
+  expect(rowTop, "the row starts below the first screen").toBeGreaterThan(700);
+
+  await row.getByRole("button", { name: "Send invitation again" }).click();
+  const outcome = row.locator('[role="status"]');
+  await expect(outcome).toHaveText("Invitation sent again.");
+  await expect(outcome).toHaveAttribute("aria-live", "polite");
+  await expect(outcome).toBeInViewport();
+  // Said in the row only: nothing at the top of the page.
+  await expect(page.getByText("Invitation sent again.")).toHaveCount(1);
+  const said = await outcome.boundingBox();
+  const button = await row.getByRole("button", { name: "Send invitation again" }).boundingBox();
+  expect(Math.abs(said!.y - button!.y)).toBeLessThan(200);
+
+  // The next action on the row clears the last answer before its own comes.
+  await row.getByLabel(`Role of Zz Row 8`).selectOption("instructor");
+  await row.getByRole("button", { name: "Set" }).click();
+  await expect(outcome).toHaveText("Role changed to instructor.");
+  await expect(page.getByText("Invitation sent again.")).toHaveCount(0);
+  await row.getByRole("button", { name: "Deactivate" }).click();
+  await expect(outcome).toHaveText("Deactivated and signed out everywhere.");
+  await expect(outcome).toBeInViewport();
+  await expect(page.getByText("Role changed to instructor.")).toHaveCount(0);
+  await expect(row.getByText("deactivated")).toBeVisible();
+});
+
 test("the view setup's number fields edit as numbers: 12.5 stays, a comma reads, a negative scale is refused", async ({ page, baseURL }) => {
   test.setTimeout(240_000);
   const stack = await renderStackToDir({ frames: 3, rpm: 10 });

@@ -29,7 +29,7 @@ import { kindLabels } from "~/lib/equipment";
 import { useLabTime } from "~/components/lab-time";
 import { formatDuration, fromZonedInput, timeFormat, zonedDay } from "~/lib/time-format";
 import { BookingWeek } from "~/components/booking-week";
-import { BookingActions, type RowOutcome } from "~/components/booking-actions";
+import { BookingActions, type BookingRowOutcome } from "~/components/booking-actions";
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
@@ -96,7 +96,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   };
 }
 
-type Outcome = RowOutcome & { request?: SubmissionResult<string[]>; feedUrl?: string };
+type Outcome = BookingRowOutcome & { request?: SubmissionResult<string[]>; feedUrl?: string };
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);

@@ -1,7 +1,9 @@
 import fs from "node:fs";
+import path from "node:path";
 import { expect, test, type Page } from "@playwright/test";
 import { apiAs, logRunThroughForm, people, signIn } from "./helpers";
 import { renderStackToDir } from "../fixtures/render-stack";
+import { zip } from "../support/zip-writer";
 
 const NOT_A_NUMBER = /That is not a number/;
 
@@ -252,4 +254,25 @@ test("the view setup's number fields edit as numbers: 12.5 stays, a comma reads,
   await expect(column).toHaveValue("100.5");
   await expect(page.getByTestId("mark-centre")).toContainText("100.5");
   expect(problems.filter((p) => /NaN|attribute|svg/i.test(p))).toEqual([]);
+});
+
+test("the run page sends a ZIP as kind=zip and a frame as one frame, so each gets its own limit", async ({ page, baseURL }) => {
+  const stack = await renderStackToDir({ frames: 4, rpm: 10 });
+  const tech = await apiAs(baseURL!, people.tech);
+  const runId = await logRunThroughForm(tech, { setRateRpm: "10", purpose: "ZIP upload declares its kind" });
+  await tech.dispose();
+  const [first, ...rest] = stack.files;
+  const archive = zip(rest.map((file) => ({ name: path.basename(file), data: fs.readFileSync(file) })));
+  await signIn(page, people.tech);
+  await page.goto(`/runs/${runId}`);
+  const sent: string[] = [];
+  page.on("request", (r) => {
+    if (r.method() === "POST" && r.url().includes(`/api/v1/runs/${runId}/frames`)) sent.push(new URL(r.url()).search);
+  });
+  await page.getByLabel("Choose frames, a ZIP or a video").setInputFiles([
+    { name: path.basename(first!), mimeType: "image/png", buffer: fs.readFileSync(first!) },
+    { name: "stack.zip", mimeType: "application/zip", buffer: archive },
+  ]);
+  await expect(page.getByRole("heading", { name: "Frame stack (4)" })).toBeVisible({ timeout: 60_000 });
+  expect(sent.sort()).toEqual(["", "?kind=zip"]);
 });

@@ -12,22 +12,35 @@ export const MULTIPART_ALLOWANCE_BYTES = 64 * KiB;
 
 /**
  * The largest body each kind of request may send. The file sizes match app/lib/upload-limits.ts
- * (maxZipBytes) and MAX_ATTACHMENT_BYTES; a unit test keeps them equal, because this file runs
- * under plain Node and cannot import the app's TypeScript.
+ * (maxFrameBytes, maxZipBytes, MULTIPART_ALLOWANCE_BYTES) and MAX_ATTACHMENT_BYTES; a unit test
+ * keeps them equal, because this file runs under plain Node and cannot import the app's TypeScript.
  */
 export const bodyLimits = {
   /** Every form and JSON body: the largest real one (run setup with a full readings table) is a few kB. */
   form: { bytes: 64 * KiB, message: "Forms and JSON bodies may be at most 64 KiB." },
-  frameUpload: { bytes: 400 * MiB + MULTIPART_ALLOWANCE_BYTES, message: "A frame upload may be at most 400 MiB." },
+  /** A frame upload that does not say it is a ZIP: one image. */
+  frameUpload: {
+    bytes: 30 * MiB + MULTIPART_ALLOWANCE_BYTES,
+    message: "One frame may be at most 30 MiB. A ZIP of frames is sent with ?kind=zip (at most 400 MiB).",
+  },
+  /** A frame upload with ?kind=zip. */
+  zipUpload: { bytes: 400 * MiB + MULTIPART_ALLOWANCE_BYTES, message: "A ZIP of frames may be at most 400 MiB." },
   calibrationAttachment: { bytes: 20 * MiB + MULTIPART_ALLOWANCE_BYTES, message: "Attachments can be at most 20 MiB." },
 };
 
 const frameUploadPath = /^\/api\/v1\/runs\/[^/]+\/frames\/?$/;
 const attachmentPath = /^\/api\/v1\/calibrations\/[^/]+\/attachments\/?$/;
 
-/** Which limit a request falls under. Anything not recognised as an upload gets the small one. */
-export function bodyLimitFor(method, path) {
-  if (method === "POST" && frameUploadPath.test(path)) return bodyLimits.frameUpload;
+/**
+ * Which limit a request falls under, by its path and, for a frame upload, what its query says it
+ * is (`kind=zip`; anything else is one frame, and the app refuses a kind it does not know).
+ * Anything not recognised as an upload gets the small one.
+ */
+export function bodyLimitFor(method, path, search = "") {
+  if (method === "POST" && frameUploadPath.test(path)) {
+    const kinds = new URLSearchParams(search).getAll("kind");
+    return kinds.length === 1 && kinds[0] === "zip" ? bodyLimits.zipUpload : bodyLimits.frameUpload;
+  }
   if (method === "POST" && attachmentPath.test(path)) return bodyLimits.calibrationAttachment;
   return bodyLimits.form;
 }
@@ -68,9 +81,15 @@ export function sendTooLarge(req, res, limit) {
   else res.type("text/plain").send(`${limit.message} The request was refused.`);
 }
 
+/** The query string of a request, without its "?". */
+function searchOf(req) {
+  const at = req.originalUrl.indexOf("?");
+  return at === -1 ? "" : req.originalUrl.slice(at + 1);
+}
+
 /** A declared Content-Length over the limit is refused before a byte of the body is read. */
 export function refuseOversizedBodies(req, res, next) {
-  const limit = bodyLimitFor(req.method, req.path);
+  const limit = bodyLimitFor(req.method, req.path, searchOf(req));
   const declared = Number(req.get("content-length") ?? 0);
   if (declared > limit.bytes) return sendTooLarge(req, res, limit);
   next();
@@ -173,7 +192,7 @@ export function webRequest(req, res) {
   res.on("close", () => controller?.abort());
   const init = { method: req.method, headers: requestHeaders(req.headers), signal: controller.signal };
   if (req.method !== "GET" && req.method !== "HEAD") {
-    const limit = bodyLimitFor(req.method, req.path);
+    const limit = bodyLimitFor(req.method, req.path, searchOf(req));
     init.body = limitedBody(req, limit, () => {
       sendTooLarge(req, res, limit);
       controller?.abort();

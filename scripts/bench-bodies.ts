@@ -149,7 +149,7 @@ async function main() {
     });
     const boundary = "----tankside-bench-4b1d";
     const upload = await send(pid, {
-      path: `/api/v1/runs/${runId}/frames`,
+      path: `/api/v1/runs/${runId}/frames?kind=zip`,
       headers: { "Content-Type": `multipart/form-data; boundary=${boundary}`, Authorization: `Bearer ${token}` },
       head: `--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="stack.zip"\r\nContent-Type: application/zip\r\n\r\nPK\u0003\u0004`,
       total: 450 * MB,

@@ -1,8 +1,9 @@
 import { useFetcher } from "react-router";
 import { Button, ButtonA } from "~/components/ui/button";
+import { RowOutcome, type RowOutcomeData } from "~/components/row-outcome";
 
 /** What the bookings page's action answers to a decision on one row. */
-export type RowOutcome = { bookingId?: number; notice?: string; problem?: string };
+export type BookingRowOutcome = RowOutcomeData & { bookingId?: number };
 
 /**
  * The buttons of one booking in the list, each sent without leaving the page (a fetcher per row),
@@ -10,7 +11,7 @@ export type RowOutcome = { bookingId?: number; notice?: string; problem?: string
  * readers announce; the address bar keeps the list's own address.
  */
 export function BookingActions({ booking, canDecide, canCancel }: { booking: { id: number; state: string }; canDecide: boolean; canCancel: boolean }) {
-  const fetcher = useFetcher<RowOutcome>({ key: `booking-row-${booking.id}` });
+  const fetcher = useFetcher<BookingRowOutcome>({ key: `booking-row-${booking.id}` });
   const busy = fetcher.state !== "idle";
   const outcome = fetcher.state === "idle" ? fetcher.data : undefined;
   const id = booking.id;
@@ -59,12 +60,7 @@ export function BookingActions({ booking, canDecide, canCancel }: { booking: { i
           </ButtonA>
         ) : null}
       </div>
-      <div role="status" aria-live="polite" data-testid={`booking-${id}-outcome`}>
-        {outcome?.notice ? <p className="rounded-lg border-l-4 border-agrees-ink bg-agrees-bg px-3 py-2 font-bold text-agrees-ink">{outcome.notice}</p> : null}
-        {outcome?.problem ? (
-          <p className="rounded-lg border-l-4 border-disagrees-ink bg-disagrees-bg px-3 py-2 font-bold text-disagrees-ink">{outcome.problem}</p>
-        ) : null}
-      </div>
+      <RowOutcome outcome={outcome} testId={`booking-${id}-outcome`} />
     </div>
   );
 }

@@ -1,7 +1,9 @@
 import fs from "node:fs";
+import path from "node:path";
 import { expect, test, type Page } from "@playwright/test";
 import { apiAs, logRunThroughForm, people, signIn } from "./helpers";
 import { renderStackToDir } from "../fixtures/render-stack";
+import { zip } from "../support/zip-writer";
 
 const NOT_A_NUMBER = /That is not a number/;
 
@@ -51,9 +53,14 @@ test("the calibration form outlines every bad reading at once, each with its own
   await expect(page.getByLabel("Measured rate 2", { exact: true })).toHaveAttribute("aria-invalid", "true");
   await expect(page.getByText(/Set rate: That is not a number/)).toBeVisible();
   await expect(page.getByText(/Measured rate: That is not a number/)).toBeVisible();
-  // The rate meter's and the readings count's messages come in the same answer from the server and
-  // the schema (number-input.test.ts), but the page's own check in Chromium did not show them beside
-  // the bad readings; left for a later change rather than asserted here.
+  // The same first submit says what else the record needs, each on its own field: the rate meter
+  // (outlined, its message tied to it) and the number of readings (on the readings' group).
+  const meter = page.getByLabel("Rate meter used");
+  await expect(meter).toHaveAttribute("aria-invalid", "true");
+  await expect(page.locator("#meterId-error")).toHaveText("Choose the rate meter the readings were taken with.");
+  await expect(meter).toHaveAttribute("aria-describedby", /meterId-error/);
+  await expect(page.locator("#readings-error")).toHaveText("Enter readings at 3 or more set rates (2 entered).");
+  await expect(page.getByRole("group", { name: "Readings" })).toHaveAttribute("aria-describedby", "readings-error");
   await expect(page).toHaveURL(/\/calibrations\/new/);
 });
 
@@ -155,6 +162,48 @@ test("the invitation form can be used twice in a row: the role starts again as t
   await expect(page.getByText(/Invitation sent to/)).toHaveCount(0);
 });
 
+test("a people row's action is answered in that row, far down the list, and the last answer gives way", async ({ page, baseURL }) => {
+  // Enough people that the last rows start well below the first screen (sorted by name: "Zz…" last).
+  const manager = await apiAs(baseURL!, people.manager);
+  const emails: string[] = [];
+  const tag = Date.now().toString(36);
+  for (let i = 1; i <= 8; i++) {
+    const email = `zz.row${i}.${tag}@tankside.example`;
+    const made = await manager.post("/people", { form: { intent: "invite", name: `Zz Row ${i} ${tag}`, email, role: "technician" } });
+    expect(made.status()).toBe(200);
+    emails.push(email);
+  }
+  await manager.dispose();
+  await page.setViewportSize({ width: 1366, height: 700 });
+  await signIn(page, people.manager);
+  await page.goto("/people");
+  const row = page.getByTestId(`person-${emails[7]}`);
+  const rowTop = await row.evaluate((el) => el.getBoundingClientRect().top + window.scrollY);
+  expect(rowTop, "the row starts below the first screen").toBeGreaterThan(700);
+
+  await row.getByRole("button", { name: "Send invitation again" }).click();
+  const outcome = row.locator('[role="status"]');
+  await expect(outcome).toHaveText("Invitation sent again.");
+  await expect(outcome).toHaveAttribute("aria-live", "polite");
+  await expect(outcome).toBeInViewport();
+  // Said in the row only: nothing at the top of the page.
+  await expect(page.getByText("Invitation sent again.")).toHaveCount(1);
+  const said = await outcome.boundingBox();
+  const button = await row.getByRole("button", { name: "Send invitation again" }).boundingBox();
+  expect(Math.abs(said!.y - button!.y)).toBeLessThan(200);
+
+  // The next action on the row clears the last answer before its own comes.
+  await row.getByLabel(`Role of Zz Row 8 ${tag}`).selectOption("instructor");
+  await row.getByRole("button", { name: "Set" }).click();
+  await expect(outcome).toHaveText("Role changed to instructor.");
+  await expect(page.getByText("Invitation sent again.")).toHaveCount(0);
+  await row.getByRole("button", { name: "Deactivate" }).click();
+  await expect(outcome).toHaveText("Deactivated and signed out everywhere.");
+  await expect(outcome).toBeInViewport();
+  await expect(page.getByText("Role changed to instructor.")).toHaveCount(0);
+  await expect(row.getByText("deactivated", { exact: true })).toBeVisible();
+});
+
 test("the view setup's number fields edit as numbers: 12.5 stays, a comma reads, a negative scale is refused", async ({ page, baseURL }) => {
   test.setTimeout(240_000);
   const stack = await renderStackToDir({ frames: 3, rpm: 10 });
@@ -205,4 +254,25 @@ test("the view setup's number fields edit as numbers: 12.5 stays, a comma reads,
   await expect(column).toHaveValue("100.5");
   await expect(page.getByTestId("mark-centre")).toContainText("100.5");
   expect(problems.filter((p) => /NaN|attribute|svg/i.test(p))).toEqual([]);
+});
+
+test("the run page sends a ZIP as kind=zip and a frame as one frame, so each gets its own limit", async ({ page, baseURL }) => {
+  const stack = await renderStackToDir({ frames: 4, rpm: 10 });
+  const tech = await apiAs(baseURL!, people.tech);
+  const runId = await logRunThroughForm(tech, { setRateRpm: "10", purpose: "ZIP upload declares its kind" });
+  await tech.dispose();
+  const [first, ...rest] = stack.files;
+  const archive = zip(rest.map((file) => ({ name: path.basename(file), data: fs.readFileSync(file) })));
+  await signIn(page, people.tech);
+  await page.goto(`/runs/${runId}`);
+  const sent: string[] = [];
+  page.on("request", (r) => {
+    if (r.method() === "POST" && r.url().includes(`/api/v1/runs/${runId}/frames`)) sent.push(new URL(r.url()).search);
+  });
+  await page.getByLabel("Choose frames, a ZIP or a video").setInputFiles([
+    { name: path.basename(first!), mimeType: "image/png", buffer: fs.readFileSync(first!) },
+    { name: "stack.zip", mimeType: "application/zip", buffer: archive },
+  ]);
+  await expect(page.getByRole("heading", { name: "Frame stack (4)" })).toBeVisible({ timeout: 60_000 });
+  expect(sent.sort()).toEqual(["", "?kind=zip"]);
 });

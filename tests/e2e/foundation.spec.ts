@@ -134,7 +134,7 @@ test("a deactivated person is signed out at once and cannot sign in again", asyn
   const row = managerPage.getByTestId("person-instructor2@tankside.example");
   await row.getByRole("button", { name: "Deactivate" }).click();
   await expect(managerPage.getByText("Deactivated and signed out everywhere.")).toBeVisible();
-  await expect(row.getByText("deactivated")).toBeVisible();
+  await expect(row.getByText("deactivated", { exact: true })).toBeVisible();
 
   await techPage.goto("/account");
   await expect(techPage).toHaveURL(/\/sign-in/);

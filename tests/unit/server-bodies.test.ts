@@ -13,7 +13,7 @@ import {
   refuseOversizedBodies,
   // @ts-expect-error plain ESM module of the server, without type declarations
 } from "../../server-bodies.mjs";
-import { uploadLimits } from "~/lib/upload-limits";
+import { maxUploadBodyBytes, MULTIPART_ALLOWANCE_BYTES as APP_MULTIPART_ALLOWANCE_BYTES, uploadLimits } from "~/lib/upload-limits";
 import { MAX_ATTACHMENT_BYTES } from "~/.server/uploads/calibration-attachments";
 import { runSchema } from "~/lib/validation/run";
 import { calibrationSchema } from "~/lib/validation/calibrations";
@@ -49,14 +49,23 @@ async function readAll(body: ReadableStream<Uint8Array>) {
 }
 
 describe("the limits per path", () => {
-  it("match the upload limits the app states (the ZIP and attachment maxima plus multipart framing)", () => {
-    expect(bodyLimits.frameUpload.bytes).toBe(uploadLimits.maxZipBytes + MULTIPART_ALLOWANCE_BYTES);
+  it("match the upload limits the app states (the frame, ZIP and attachment maxima plus multipart framing)", () => {
+    expect(MULTIPART_ALLOWANCE_BYTES).toBe(APP_MULTIPART_ALLOWANCE_BYTES);
+    expect(bodyLimits.frameUpload.bytes).toBe(maxUploadBodyBytes("frame"));
+    expect(bodyLimits.frameUpload.bytes).toBe(uploadLimits.maxFrameBytes + MULTIPART_ALLOWANCE_BYTES);
+    expect(bodyLimits.zipUpload.bytes).toBe(maxUploadBodyBytes("zip"));
+    expect(bodyLimits.zipUpload.bytes).toBe(uploadLimits.maxZipBytes + MULTIPART_ALLOWANCE_BYTES);
     expect(bodyLimits.calibrationAttachment.bytes).toBe(MAX_ATTACHMENT_BYTES + MULTIPART_ALLOWANCE_BYTES);
     expect(bodyLimits.form.bytes).toBe(64 * KiB);
   });
 
   it("give the upload limits only to POSTs of the two upload addresses", () => {
     expect(bodyLimitFor("POST", "/api/v1/runs/12/frames")).toBe(bodyLimits.frameUpload);
+    expect(bodyLimitFor("POST", "/api/v1/runs/12/frames", "kind=zip")).toBe(bodyLimits.zipUpload);
+    expect(bodyLimitFor("POST", "/api/v1/runs/12/frames", "kind=frame")).toBe(bodyLimits.frameUpload);
+    // Said twice or unknown: the smaller limit (the app refuses such a query itself).
+    expect(bodyLimitFor("POST", "/api/v1/runs/12/frames", "kind=zip&kind=zip")).toBe(bodyLimits.frameUpload);
+    expect(bodyLimitFor("POST", "/api/v1/runs/12/frames", "kind=ZIP")).toBe(bodyLimits.frameUpload);
     expect(bodyLimitFor("POST", "/api/v1/calibrations/3/attachments")).toBe(bodyLimits.calibrationAttachment);
     expect(bodyLimitFor("PUT", "/api/v1/runs/12/frames")).toBe(bodyLimits.form);
     expect(bodyLimitFor("POST", "/api/v1/runs/12/frames/extra")).toBe(bodyLimits.form);
@@ -140,7 +149,15 @@ describe("refuseOversizedBodies", () => {
     const out = { status: 0, headers: {} as Record<string, string>, body: undefined as unknown, passed: false, type: "" };
     const h = Object.fromEntries(Object.entries(headers).map(([k, v]) => [k.toLowerCase(), v]));
     let reads = 0;
-    const req = { method: "POST", path, get: (n: string) => h[n.toLowerCase()], read: () => reads++, on: () => reads++, socket: {} };
+    const req = {
+      method: "POST",
+      path: path.split("?")[0],
+      originalUrl: path,
+      get: (n: string) => h[n.toLowerCase()],
+      read: () => reads++,
+      on: () => reads++,
+      socket: {},
+    };
     const res = {
       headersSent: false,
       setHeader(k: string, v: string) {
@@ -174,6 +191,14 @@ describe("refuseOversizedBodies", () => {
     expect(api.out).toMatchObject({ status: 413, passed: false, body: { error: { code: "too_large" } } });
     expect(api.out.headers.connection).toBe("close");
     expect(api.reads).toBe(0);
+    // One frame is refused over its own limit, a ZIP of the same size is let through to be read.
+    const frame = call("/api/v1/runs/4/frames", { "content-length": String(bodyLimits.frameUpload.bytes + 1) });
+    expect(frame.out).toMatchObject({ status: 413, passed: false, body: { error: { code: "too_large", message: expect.stringContaining("kind=zip") } } });
+    expect(frame.reads).toBe(0);
+    expect(call("/api/v1/runs/4/frames?kind=zip", { "content-length": String(bodyLimits.frameUpload.bytes + 1) }).out.passed).toBe(true);
+    const zip = call("/api/v1/runs/4/frames?kind=zip", { "content-length": String(bodyLimits.zipUpload.bytes + 1) });
+    expect(zip.out).toMatchObject({ status: 413, passed: false });
+    expect(zip.reads).toBe(0);
     const page = call("/sign-in", { "content-length": String(300 * MiB) });
     expect(page.out).toMatchObject({ status: 413, passed: false, type: "text/plain" });
     expect(String(page.out.body)).toContain("64 KiB");

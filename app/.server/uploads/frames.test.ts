@@ -1,71 +1,18 @@
 import { afterEach, beforeAll, describe, expect, it } from "vitest";
 import sharp from "sharp";
 import fs from "node:fs/promises";
-import zlib from "node:zlib";
 import { Frame, Run } from "../db";
 import { smallLab } from "../test-support";
 import { createRun } from "../runs/service";
 import { receiveFrameFile, UploadError } from "./frames";
 import { runKey, store } from "../storage";
 import { discardStaged, stageBytes, stagingDir } from "./staging";
+import { zip } from "../../../tests/support/zip-writer";
 
 async function png(w: number, h: number, shade: number) {
   return sharp({ create: { width: w, height: h, channels: 3, background: { r: shade, g: shade, b: shade } } }).png().toBuffer();
 }
 const file = (name: string, data: Buffer | Uint8Array) => new File([new Uint8Array(data)], name);
-
-/** A minimal stored (uncompressed) ZIP writer, so tests can build hostile archives byte by byte. */
-function zip(entries: { name: string; data: Buffer; declaredSize?: number; deflate?: boolean }[]) {
-  const crcTable = Array.from({ length: 256 }, (_, n) => {
-    let c = n;
-    for (let k = 0; k < 8; k++) c = c & 1 ? 0xedb88320 ^ (c >>> 1) : c >>> 1;
-    return c >>> 0;
-  });
-  const crc32 = (b: Buffer) => {
-    let c = 0xffffffff;
-    for (const x of b) c = crcTable[(c ^ x) & 0xff]! ^ (c >>> 8);
-    return (c ^ 0xffffffff) >>> 0;
-  };
-  const locals: Buffer[] = [];
-  const centrals: Buffer[] = [];
-  let offset = 0;
-  for (const e of entries) {
-    const name = Buffer.from(e.name);
-    const crc = crc32(e.data);
-    const size = e.declaredSize ?? e.data.length;
-    const body = e.deflate ? zlib.deflateRawSync(e.data) : e.data;
-    const method = e.deflate ? 8 : 0;
-    const local = Buffer.alloc(30);
-    local.writeUInt32LE(0x04034b50, 0);
-    local.writeUInt16LE(20, 4);
-    local.writeUInt16LE(method, 8);
-    local.writeUInt32LE(crc, 14);
-    local.writeUInt32LE(body.length, 18);
-    local.writeUInt32LE(size, 22);
-    local.writeUInt16LE(name.length, 26);
-    locals.push(local, name, body);
-    const central = Buffer.alloc(46);
-    central.writeUInt32LE(0x02014b50, 0);
-    central.writeUInt16LE(20, 4);
-    central.writeUInt16LE(20, 6);
-    central.writeUInt16LE(method, 10);
-    central.writeUInt32LE(crc, 16);
-    central.writeUInt32LE(body.length, 20);
-    central.writeUInt32LE(size, 24);
-    central.writeUInt16LE(name.length, 28);
-    central.writeUInt32LE(offset, 42);
-    centrals.push(central, name);
-    offset += 30 + name.length + body.length;
-  }
-  const cd = Buffer.concat(centrals);
-  const end = Buffer.alloc(22);
-  end.writeUInt32LE(0x06054b50, 0);
-  end.writeUInt16LE(entries.length, 8);
-  end.writeUInt16LE(entries.length, 10);
-  end.writeUInt32LE(cd.length, 12);
-  end.writeUInt32LE(offset, 16);
-  return Buffer.concat([...locals, cd, end]);
-}
 
 let lab: Awaited<ReturnType<typeof smallLab>>;
 beforeAll(async () => {

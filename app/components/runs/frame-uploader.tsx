@@ -3,7 +3,7 @@ import Uppy from "@uppy/core";
 import XHRUpload from "@uppy/xhr-upload";
 import { useRevalidator } from "react-router";
 import { cutVideoIntoFrames } from "./video-frames";
-import { uploadLimits, acceptedFrameTypes } from "~/lib/upload-limits";
+import { uploadLimits, acceptedFrameTypes, frameUploadKindOf, maxUploadFileBytes } from "~/lib/upload-limits";
 import { Button } from "~/components/ui/button";
 import { formatFixed } from "~/lib/number-format";
 
@@ -26,8 +26,8 @@ const megabytes = (bytes: number) => `${formatFixed(bytes / 1e6, 1)} MB`;
  * the server judges the content.
  */
 export function tooLargeToSend(file: { name: string; size: number }): string | null {
-  const zip = /\.zip$/i.test(file.name);
-  const limit = zip ? uploadLimits.maxZipBytes : uploadLimits.maxFrameBytes;
+  const zip = frameUploadKindOf(file.name) === "zip";
+  const limit = maxUploadFileBytes(frameUploadKindOf(file.name));
   if (file.size <= limit) return null;
   return `${file.name} is ${megabytes(file.size)}; ${zip ? "a ZIP" : "one frame"} may be at most ${limit / 1024 / 1024} MB. Not sent.`;
 }
@@ -46,9 +46,10 @@ interface ResponseBody {
  */
 export function FrameUploader({ runId, frameRate, disabled }: { runId: number; frameRate: number; disabled?: boolean }) {
   const revalidator = useRevalidator();
+  const endpoint = `/api/v1/runs/${runId}/frames`;
   const [uppy] = useState(() =>
     new Uppy<Meta, ResponseBody>({ autoProceed: false, allowMultipleUploadBatches: true }).use(XHRUpload, {
-      endpoint: `/api/v1/runs/${runId}/frames`,
+      endpoint,
       fieldName: "file",
       formData: true,
       limit: 2,
@@ -146,6 +147,8 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
             continue;
           }
           const id = uppy.addFile({ name: file.name, type: file.type || "application/octet-stream", data: file, meta: { timeS: "" } });
+          // The server takes a ZIP's larger limit only when the upload says it is one.
+          if (frameUploadKindOf(file.name) === "zip") uppy.setFileState(id, { xhrUpload: { endpoint: `${endpoint}?kind=zip` } });
           queued.push({ id, name: file.name, state: "waiting", bytes: file.size });
         }
       }

@@ -1,6 +1,7 @@
 import { Form, data, useActionData } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import type { Route } from "./+types/account";
 import { readForm } from "~/.server/http";
 import { requireUser } from "~/.server/auth/permissions";
@@ -109,8 +110,7 @@ export default function Account({ loaderData }: Route.ComponentProps) {
   const passwordResult = actionData && "result" in actionData ? actionData.result : undefined;
   const [form, fields] = useForm({
     lastResult: passwordResult,
-    shouldValidate: "onBlur",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: changePasswordSchema }),
+    ...formCheck(changePasswordSchema),
   });
   const { user, tokens } = loaderData;
   return (

@@ -8,7 +8,9 @@ import { StorageUnavailableError } from "~/.server/storage";
 import { storageUnavailable } from "~/.server/storage/respond";
 import { Frame } from "~/.server/db";
 import { inputsChanged } from "~/.server/runs/rechecks";
-import { uploadLimits } from "~/lib/upload-limits";
+import { maxUploadBodyBytes, maxUploadFileBytes, uploadLimits, type FrameUploadKind } from "~/lib/upload-limits";
+import { frameUploadQueryKeys, frameUploadQuerySchema } from "~/lib/validation/frame-upload";
+import { parseQueryFilters } from "~/lib/validation/query-filters";
 import { parseFrameTime } from "~/lib/video-frames";
 import { parseFrameStream } from "~/lib/frame-stream";
 import { streamedUpload } from "~/.server/jobs/stream-upload";
@@ -45,9 +47,15 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (!(request.headers.get("Content-Type") ?? "").includes("multipart/form-data")) {
     return apiError(415, "unsupported_media_type", "Send the frame as multipart/form-data with the field `file`.");
   }
+  // What the upload says it is picks its limit; a declared length over it is refused unread.
+  const query = parseQueryFilters(new URL(request.url).searchParams, frameUploadQuerySchema, frameUploadQueryKeys);
+  if (!query.ok) return apiError(400, "invalid_input", query.message, { issues: [{ field: query.field ?? "kind", message: query.message }] });
+  const { kind } = query.filters;
+  const tooLarge = uploadTooLarge(kind);
+  if (Number(request.headers.get("Content-Length") ?? 0) > maxUploadBodyBytes(kind)) return apiError(413, tooLarge.code, tooLarge.message);
   const limits = {
-    maxFileBytes: uploadLimits.maxZipBytes,
-    tooLarge: new UploadError(`The upload is over ${uploadLimits.maxZipBytes / 1024 / 1024} MB.`, 413, "too_large"),
+    maxFileBytes: maxUploadFileBytes(kind),
+    tooLarge,
     unreadable: new UploadError("The upload could not be read as multipart form data.", 400, "invalid_multipart"),
   };
   try {
@@ -84,6 +92,17 @@ export async function action({ request, params }: Route.ActionArgs) {
     if (err instanceof StorageUnavailableError) return storageUnavailable(err);
     throw err;
   }
+}
+
+/** The refusal of an upload over its kind's limit; a frame's says how to send a ZIP instead. */
+function uploadTooLarge(kind: FrameUploadKind) {
+  return kind === "zip"
+    ? new UploadError(`A ZIP of frames may be at most ${uploadLimits.maxZipBytes / 1024 / 1024} MiB.`, 413, "too_large")
+    : new UploadError(
+        `One frame may be at most ${uploadLimits.maxFrameBytes / 1024 / 1024} MiB. A ZIP of frames is sent with ?kind=zip (at most ${uploadLimits.maxZipBytes / 1024 / 1024} MiB).`,
+        413,
+        "too_large",
+      );
 }
 
 async function remove(request: Request, runId: string) {

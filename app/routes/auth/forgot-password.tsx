@@ -1,6 +1,7 @@
 import { Form, data } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import type { Route } from "./+types/forgot-password";
 import { readForm } from "~/.server/http";
 import { requestPasswordReset } from "~/.server/people";
@@ -23,8 +24,7 @@ export async function action({ request }: Route.ActionArgs) {
 export default function ForgotPassword({ actionData }: Route.ComponentProps) {
   const [form, fields] = useForm({
     lastResult: actionData?.result,
-    shouldValidate: "onBlur",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: forgotSchema }),
+    ...formCheck(forgotSchema),
   });
   return (
     <div className="mx-auto max-w-xl rounded-card border border-line bg-sheet p-8">

@@ -1,6 +1,7 @@
 import { Form, data } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import type { Route } from "./+types/reset-password";
 import { readForm } from "~/.server/http";
 import { findUsableToken, PeopleError, setPasswordWithToken } from "~/.server/people";
@@ -47,8 +48,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 export default function ChoosePassword({ loaderData, actionData }: Route.ComponentProps) {
   const [form, fields] = useForm({
     lastResult: actionData,
-    shouldValidate: "onBlur",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: setPasswordSchema }),
+    ...formCheck(setPasswordSchema),
   });
   const welcome = loaderData.purpose === "invitation";
   if (!loaderData.valid) {

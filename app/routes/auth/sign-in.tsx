@@ -1,6 +1,7 @@
 import { Form, data, redirect, useNavigation } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import type { Route } from "./+types/sign-in";
 import { readForm } from "~/.server/http";
 import { authenticator, SignInError, SIGN_IN_FAILED } from "~/.server/auth/authenticator";
@@ -64,8 +65,7 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
   const navigation = useNavigation();
   const [form, fields] = useForm({
     lastResult: actionData,
-    shouldValidate: "onBlur",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: signInSchema }),
+    ...formCheck(signInSchema),
   });
   return (
     <div className="mx-auto grid max-w-4xl grid-cols-1 gap-8 md:grid-cols-[1fr_1.1fr]">

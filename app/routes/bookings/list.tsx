@@ -1,6 +1,7 @@
 import { Form, Link, data, useNavigation } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import { useState } from "react";
 import type { Route } from "./+types/list";
 import { readForm } from "~/.server/http";
@@ -28,7 +29,7 @@ import { kindLabels } from "~/lib/equipment";
 import { useLabTime } from "~/components/lab-time";
 import { formatDuration, fromZonedInput, timeFormat, zonedDay } from "~/lib/time-format";
 import { BookingWeek } from "~/components/booking-week";
-import { BookingActions, type RowOutcome } from "~/components/booking-actions";
+import { BookingActions, type BookingRowOutcome } from "~/components/booking-actions";
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader, Tag } from "~/components/ui/card";
 import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
@@ -95,7 +96,7 @@ export async function loader({ request }: Route.LoaderArgs) {
   };
 }
 
-type Outcome = RowOutcome & { request?: SubmissionResult<string[]>; feedUrl?: string };
+type Outcome = BookingRowOutcome & { request?: SubmissionResult<string[]>; feedUrl?: string };
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
@@ -181,9 +182,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
   const navigation = useNavigation();
   const [form, fields] = useForm({
     lastResult: outcome.request,
-    shouldValidate: "onBlur",
-    shouldRevalidate: "onInput",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: bookingRequestSchema }),
+    ...formCheck(bookingRequestSchema),
     defaultValue: { equipmentId: String(bookable.find((i) => i.kind === "table")?.id ?? ""), start: loaderData.defaults.start, end: loaderData.defaults.end },
   });
   const [chosen, setChosen] = useState(typeof fields.equipmentId.initialValue === "string" ? fields.equipmentId.initialValue : "");

@@ -1,6 +1,7 @@
 import { Form, data, redirect } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import { useState } from "react";
 import type { Route } from "./+types/edit";
 import { requireCapability } from "~/.server/auth/permissions";
@@ -75,9 +76,7 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
   const initialKind: CalibrationKind = record?.kind ?? presetKind ?? (presetItem?.kind === "camera" ? "scale" : "rate");
   const [form, fields] = useForm({
     lastResult: actionData,
-    shouldValidate: "onBlur",
-    shouldRevalidate: "onInput",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: calibrationSchema }),
+    ...formCheck(calibrationSchema),
     defaultValue: record
       ? {
           kind: record.kind,
@@ -199,14 +198,14 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
                   ))}
                 </SelectField>
               </div>
-              <fieldset className="md:col-span-2">
+              <fieldset className="md:col-span-2" aria-describedby={fields.readings.errors ? "readings-error" : undefined}>
                 <legend className="font-bold">Readings</legend>
                 <p className="mb-2 text-sm text-muted">
                   At {MIN_RATE_READINGS} or more set rates across the range you use; leave spare rows empty. Tankside fits measured = a·set + b and checks every
                   reading against the table's tolerance.
                 </p>
                 {fields.readings.errors ? (
-                  <p className="mb-2 text-sm font-bold text-disagrees-ink" role="alert">
+                  <p id="readings-error" className="mb-2 text-sm font-bold text-disagrees-ink" role="alert">
                     {fields.readings.errors[0]}
                   </p>
                 ) : null}

@@ -1,6 +1,7 @@
 import { Form, data, redirect } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import { useState } from "react";
 import type { Route } from "./+types/edit";
 import { requireRole } from "~/.server/auth/permissions";
@@ -50,9 +51,7 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
   const item = loaderData.item;
   const [form, fields] = useForm({
     lastResult: actionData,
-    shouldValidate: "onBlur",
-    shouldRevalidate: "onInput",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: equipmentSchema }),
+    ...formCheck(equipmentSchema),
     defaultValue: item
       ? {
           kind: item.kind,

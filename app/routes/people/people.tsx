@@ -1,6 +1,7 @@
 import { Form, data } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import type { Route } from "./+types/people";
 import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
@@ -8,7 +9,8 @@ import { invitePerson, listPeople, PeopleError, changeRole, resendInvitation, se
 import { inviteSchema, roleChangeSchema } from "~/lib/validation/people";
 import { roleLabels, roles } from "~/lib/roles";
 import { Button } from "~/components/ui/button";
-import { Card, PageHeader, Tag } from "~/components/ui/card";
+import { Card, PageHeader } from "~/components/ui/card";
+import { PersonRow } from "~/components/person-row";
 import { SelectField, TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
 import { ScrollRegion } from "~/components/ui/scroll-region";
@@ -48,16 +50,16 @@ export async function action({ request }: Route.ActionArgs) {
       const parsed = roleChangeSchema.safeParse({ userId, role: form.get("role") });
       if (!parsed.success) return data({ problem: parsed.error.issues[0]!.message }, { status: 400 });
       await changeRole(parsed.data.userId, parsed.data.role);
-      return { notice: "Role changed." };
+      return { userId, notice: `Role changed to ${roleLabels[parsed.data.role].toLowerCase()}.` };
     }
     if (intent === "deactivate" || intent === "reactivate") {
       if (!Number.isInteger(userId) || userId <= 0) return data({ problem: "No such person." }, { status: 400 });
       await setActive(userId, intent === "reactivate");
-      return { notice: intent === "deactivate" ? "Deactivated and signed out everywhere." : "Reactivated." };
+      return { userId, notice: intent === "deactivate" ? "Deactivated and signed out everywhere." : "Reactivated." };
     }
     if (intent === "resend") {
       const mail = await resendInvitation(userId, me);
-      return mail.queued ? { notice: "Invitation sent again." } : data({ problem: "No invitation e-mail could be queued." }, { status: 500 });
+      return mail.queued ? { userId, notice: "Invitation sent again." } : data({ userId, problem: "No invitation e-mail could be queued." }, { status: 500 });
     }
     return data({ problem: "Unknown action." }, { status: 400 });
   } catch (err) {
@@ -70,8 +72,7 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
   const outcome = (actionData ?? {}) as Outcome & { invite?: SubmissionResult<string[]> };
   const [form, fields] = useForm({
     lastResult: outcome.invite,
-    shouldValidate: "onBlur",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: inviteSchema }),
+    ...formCheck(inviteSchema),
     // After an invitation the form starts again from these, so the next one needs only a name and an address.
     defaultValue: { role: "technician" },
   });
@@ -79,10 +80,6 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
   return (
     <div>
       <PageHeader title="People" subtitle="Who may use Tankside, and in what role." />
-      <div className="mb-4 flex flex-col gap-3">
-        {outcome.notice && !formHasErrors ? <Notice kind="success">{outcome.notice}</Notice> : null}
-        {outcome.problem && !formHasErrors ? <Notice kind="error">{outcome.problem}</Notice> : null}
-      </div>
       <div className="grid grid-cols-1 gap-6 lg:grid-cols-[2fr_1fr]">
         <Card title={`${loaderData.people.length} people`}>
           <ScrollRegion label="People">
@@ -97,54 +94,7 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
               </thead>
               <tbody>
                 {loaderData.people.map((p) => (
-                  <tr key={p.id} className="border-b border-line align-top" data-testid={`person-${p.email}`}>
-                    <td className="py-3 pr-3">
-                      <p className="font-bold">{p.name}</p>
-                      <p className="text-sm text-muted">{p.email}</p>
-                    </td>
-                    <td className="py-3 pr-3">
-                      <Form method="post" className="flex items-center gap-2">
-                        <input type="hidden" name="intent" value="role" />
-                        <input type="hidden" name="userId" value={p.id} />
-                        <label className="sr-only" htmlFor={`role-${p.id}`}>
-                          Role of {p.name}
-                        </label>
-                        <select id={`role-${p.id}`} name="role" defaultValue={p.role} className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-2">
-                          {roles.map((r) => (
-                            <option key={r} value={r}>
-                              {roleLabels[r]}
-                            </option>
-                          ))}
-                        </select>
-                        <Button tone="plain" type="submit">
-                          Set
-                        </Button>
-                      </Form>
-                    </td>
-                    <td className="py-3 pr-3">
-                      {!p.active ? <Tag tone="disagrees">deactivated</Tag> : p.invited ? <Tag tone="caution">invited</Tag> : <Tag tone="agrees">active</Tag>}
-                    </td>
-                    <td className="py-3">
-                      <div className="flex flex-wrap gap-2">
-                        {p.id !== loaderData.me.id ? (
-                          <Form method="post">
-                            <input type="hidden" name="userId" value={p.id} />
-                            <Button tone={p.active ? "danger" : "plain"} type="submit" name="intent" value={p.active ? "deactivate" : "reactivate"}>
-                              {p.active ? "Deactivate" : "Reactivate"}
-                            </Button>
-                          </Form>
-                        ) : null}
-                        {p.invited && p.active ? (
-                          <Form method="post">
-                            <input type="hidden" name="userId" value={p.id} />
-                            <Button tone="quiet" type="submit" name="intent" value="resend">
-                              Send invitation again
-                            </Button>
-                          </Form>
-                        ) : null}
-                      </div>
-                    </td>
-                  </tr>
+                  <PersonRow key={p.id} person={p} isMe={p.id === loaderData.me.id} />
                 ))}
               </tbody>
             </table>
@@ -152,6 +102,8 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
         </Card>
         <Card title="Invite someone">
           <Form method="post" className="flex flex-col gap-4" {...getFormProps(form)}>
+            {outcome.notice && !formHasErrors ? <Notice kind="success">{outcome.notice}</Notice> : null}
+            {outcome.problem && !formHasErrors ? <Notice kind="error">{outcome.problem}</Notice> : null}
             <input type="hidden" name="intent" value="invite" />
             <TextField
               label="Name"

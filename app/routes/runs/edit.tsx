@@ -1,6 +1,7 @@
 import { Form, data, redirect, useNavigation } from "react-router";
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import { useState } from "react";
 import type { Route } from "./+types/edit";
 import { readForm } from "~/.server/http";
@@ -152,9 +153,7 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
   const navigation = useNavigation();
   const [form, fields] = useForm({
     lastResult: actionData,
-    shouldValidate: "onBlur",
-    shouldRevalidate: "onInput",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: runSchema }),
+    ...formCheck(runSchema),
   });
   const tables = equipment.filter((e) => e.kind === "table");
   const tanks = equipment.filter((e) => e.kind === "tank");

@@ -1,6 +1,7 @@
 import { Form, data } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { formCheck } from "~/lib/form-check";
 import type { Route } from "./+types/settings";
 import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
@@ -61,9 +62,7 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
   const outcome = actionData as { result?: SubmissionResult<string[]>; saved?: boolean } | undefined;
   const [form, fields] = useForm({
     lastResult: outcome?.result,
-    shouldValidate: "onBlur",
-    shouldRevalidate: "onInput",
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: labSettingsSchema }),
+    ...formCheck(labSettingsSchema),
     defaultValue: {
       ...Object.fromEntries(Object.keys(settingDefaults).map((k) => [k, String(loaderData.settings[k as SettingKey])])),
       timeZone: loaderData.settings.timeZoneIsServerDefault ? "" : loaderData.settings.timeZone,

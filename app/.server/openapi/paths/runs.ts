@@ -15,6 +15,7 @@ import {
 import { runApiCreateSchema, runApiPatchSchema } from "~/lib/validation/run-api";
 import { runFiltersSchema } from "~/lib/validation/run-filters";
 import { frameRemovalSchema } from "~/lib/validation/frame-removal";
+import { frameUploadQuerySchema } from "~/lib/validation/frame-upload";
 import { uploadLimits } from "~/lib/upload-limits";
 
 const tags = ["Runs"];
@@ -160,8 +161,11 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
     operationId: "uploadFrames",
     tags,
     summary: "Upload one frame, or a ZIP of frames (technician, lab manager)",
+    description:
+      "Say what the upload is with kind: frame (one image, the default; a file of at most 30 MiB) or zip (a ZIP of images; at most 400 MiB). The body may be the file plus 64 KiB of multipart framing; a Content-Length over that is refused with 413 before any of the body is read, and a body without one is cut off at the limit. The file is judged by its content either way: a ZIP sent as a frame is taken when it fits the frame limit.",
     request: {
       params: ids("runId"),
+      query: routeSchema(frameUploadQuerySchema),
       body: {
         required: true,
         content: {
@@ -186,12 +190,14 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
       200: json(frameUploadSchema, "Every file was already in the stack"),
       201: json(frameUploadSchema, "Accepted and rejected files"),
       400: error(
-        "No file field (missing_file), a bad timeS (invalid_time), a bad or half frameNumber/expectedFrames pair (invalid_stream), or unreadable multipart (invalid_multipart).",
+        "No file field (missing_file), a bad timeS (invalid_time), a bad or half frameNumber/expectedFrames pair (invalid_stream), unreadable multipart (invalid_multipart), or a kind other than frame or zip, or given twice (invalid_input).",
       ),
       403: writers,
       404: noRun,
       409: error(`${signedOff}.`),
-      413: error("Too large, or a ZIP with too many entries."),
+      413: error(
+        "too_large: the declared or the received body is over the kind's limit (before the body is read when Content-Length says so), or a ZIP with too many entries.",
+      ),
       415: error("Not multipart/form-data (unsupported_media_type)."),
       422: json(
         z.union([frameUploadRefusedSchema, errorSchema]),

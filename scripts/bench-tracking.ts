@@ -21,7 +21,7 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { decodeFrame } from "../app/.server/tracking/decode-frame";
-import { closeTrackingPool, trackFrameStack, warmTrackingPool } from "../app/.server/tracking/track-frame-stack";
+import { closeTrackingPool, trackFrameStack, trackingThreads, warmTrackingPool } from "../app/.server/tracking/track-frame-stack";
 import { planDetection } from "../app/lib/tracking/plan";
 import type { SyntheticRunSpec } from "../app/lib/tracking/synthetic";
 import type { Track, TrackingSetup } from "../app/lib/tracking/types";
@@ -194,7 +194,7 @@ async function main(): Promise<void> {
   }
   const rmsErrorPx = counted > 0 ? Math.sqrt(squares / counted) : null;
   log(
-    `tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${os.availableParallelism()} workers ${warmPool ? "already started" : "started in the pass"}, block ${result.search.shrink} px), ` +
+    `tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${trackingThreads} worker(s) ${warmPool ? "already started" : "started in the pass"}, block ${result.search.shrink} px), ` +
       `${cpuMsPerFrame.toFixed(1)} ms CPU a frame, load average ${os.loadavg()[0]!.toFixed(1)}, ` +
       `${result.tracks.length} track(s), longest ${longest.points.length} points, ` +
       `frames detected ${(result.quality.framesDetectedShare * 100).toFixed(1)} %, jitter ${result.quality.jitterPx?.toFixed(3)} px, ` +

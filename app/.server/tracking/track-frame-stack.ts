@@ -18,6 +18,7 @@ import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup 
 import { decodeFrame, readFrameSize, type FrameSize } from "./decode-frame";
 import { TrackingError } from "./errors";
 import { bundledWorker } from "./worker-bundle";
+import { workerExecArgv } from "./worker-options";
 import type { TrackTask, TrackTaskResult } from "./track-worker";
 
 export interface TrackFrameStackInput {
@@ -89,31 +90,6 @@ function workerFile(): string {
   const inSource = path.resolve(process.cwd(), "app/.server/tracking", workerName);
   if (existsSync(inSource)) return inSource;
   throw new Error(`The tracking worker was not found at ${beside} or ${inSource}.`);
-}
-
-/**
- * The worker threads' Node options: the process's own, less tsx's loader. A process run through
- * tsx (`npm run worker`, the benchmarks) would otherwise load tsx again in every thread, about
- * 0.2 s of processor time each, for a bundle that is plain JavaScript (worker-bundle.ts).
- * Only when tsx's are the process's only options: a thread refuses V8 and process-wide options
- * given explicitly (they reach it when inherited), so any other set is inherited as before.
- */
-function workerExecArgv(): string[] | undefined {
-  const args = process.execArgv;
-  const kept: string[] = [];
-  let dropped = false;
-  for (let i = 0; i < args.length; i++) {
-    const arg = args[i]!;
-    if ((arg === "--require" || arg === "--import" || arg === "--loader") && /(^|[\\/])tsx([\\/]|$)/.test(args[i + 1] ?? "")) {
-      i++;
-      dropped = true;
-    } else if (/^--(require|import|loader)=(.*[\\/])?tsx([\\/]|$)/.test(arg)) {
-      dropped = true;
-    } else {
-      kept.push(arg);
-    }
-  }
-  return dropped && kept.length === 0 ? [] : undefined;
 }
 
 async function trackingPool(): Promise<TrackingPool> {

@@ -6,12 +6,15 @@
  * details on stderr and, as the last line of stdout, one JSON object: frames, width, height,
  * framesPerSecond, decodeOnlyFramesPerSecond, peakRssMB, and (added later) tracer, cpuMsPerFrame,
  * rmsErrorPx (the longest track against the rendered truth), ratioToDecode (framesPerSecond over
- * decodeOnlyFramesPerSecond, both of this run) and warmPool.
+ * decodeOnlyFramesPerSecond, both of this run), warmPool, decodeCpuMsPerFrame and cpuRatioToDecode
+ * (decoding's processor time a frame over tracking's).
  *
- * The tracking pass starts its worker pool, as a job on an idle server does (loading tsx and
- * OpenCV in each worker: about 0.8 s of processor time apiece). `--warm-pool` starts the pool
- * before the timed pass instead, as on a server that has tracked within the last minute, or
- * that started the pool when the frames began to arrive.
+ * The tracking pass starts its worker pool, as a job on an idle server does (one thread fewer
+ * than the cores, each loading OpenCV: about 0.2 s of processor time apiece). `--warm-pool`
+ * starts the pool before the timed pass instead, as on a server that has tracked within the last
+ * minute, or that started the pool when the frames began to arrive; the JSON line says which
+ * (warmPool). The decode-only pass is the decoder's own work on the same frames and crop
+ * (decodeFrame as a job calls it), run before the tracking pass in the same process.
  */
 import { spawnSync } from "node:child_process";
 import { createHash } from "node:crypto";
@@ -21,7 +24,7 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { decodeFrame } from "../app/.server/tracking/decode-frame";
-import { closeTrackingPool, trackFrameStack, warmTrackingPool } from "../app/.server/tracking/track-frame-stack";
+import { closeTrackingPool, trackFrameStack, trackingThreads, warmTrackingPool } from "../app/.server/tracking/track-frame-stack";
 import { planDetection } from "../app/lib/tracking/plan";
 import type { SyntheticRunSpec } from "../app/lib/tracking/synthetic";
 import type { Track, TrackingSetup } from "../app/lib/tracking/types";
@@ -164,7 +167,8 @@ async function main(): Promise<void> {
   const decodeCpuBefore = process.cpuUsage();
   const decodeFps = await decodeOnly(files);
   const decodeCpu = process.cpuUsage(decodeCpuBefore);
-  log(`decode only: ${decodeFps.toFixed(1)} frames/s, ${((decodeCpu.user + decodeCpu.system) / 1000 / files.length).toFixed(1)} ms CPU a frame`);
+  const decodeCpuMsPerFrame = (decodeCpu.user + decodeCpu.system) / 1000 / files.length;
+  log(`decode only: ${decodeFps.toFixed(1)} frames/s, ${decodeCpuMsPerFrame.toFixed(1)} ms CPU a frame`);
 
   if (warmPool) await warmTrackingPool();
   const started = performance.now();
@@ -194,7 +198,7 @@ async function main(): Promise<void> {
   }
   const rmsErrorPx = counted > 0 ? Math.sqrt(squares / counted) : null;
   log(
-    `tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${os.availableParallelism()} workers ${warmPool ? "already started" : "started in the pass"}, block ${result.search.shrink} px), ` +
+    `tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${trackingThreads} worker(s) ${warmPool ? "already started" : "started in the pass"}, block ${result.search.shrink} px), ` +
       `${cpuMsPerFrame.toFixed(1)} ms CPU a frame, load average ${os.loadavg()[0]!.toFixed(1)}, ` +
       `${result.tracks.length} track(s), longest ${longest.points.length} points, ` +
       `frames detected ${(result.quality.framesDetectedShare * 100).toFixed(1)} %, jitter ${result.quality.jitterPx?.toFixed(3)} px, ` +
@@ -213,6 +217,11 @@ async function main(): Promise<void> {
       rmsErrorPx: rmsErrorPx === null ? null : Number(rmsErrorPx.toFixed(3)),
       ratioToDecode: Number((fps / decodeFps).toFixed(2)),
       warmPool,
+      // Processor time a frame of decoding alone over that of tracking: roughly what the ratio
+      // above comes to on an idle machine whose cores decoding keeps busy, and far steadier than
+      // it on a machine other work shares.
+      decodeCpuMsPerFrame: Number(decodeCpuMsPerFrame.toFixed(1)),
+      cpuRatioToDecode: Number((decodeCpuMsPerFrame / cpuMsPerFrame).toFixed(2)),
     })}\n`,
   );
 }

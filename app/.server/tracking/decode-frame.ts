@@ -83,8 +83,12 @@ export async function readFrameSize(file: string, index: number): Promise<FrameS
   }
 }
 
-/** The plan's crop of one frame: green channel for floats, RGB for dye, row-major bytes. */
-export async function decodeFrame(file: string, index: number, plan: DetectionPlan): Promise<Uint8Array> {
+/**
+ * The plan's crop of one frame: green channel for floats, RGB for dye, row-major bytes. With
+ * `into` (at least the crop's size, e.g. a slot of shared memory that worker threads read) the
+ * bytes are written there and a view of them returned; otherwise into a new array.
+ */
+export async function decodeFrame(file: string, index: number, plan: DetectionPlan, into?: Uint8Array): Promise<Uint8Array> {
   const bytes = await readBytes(file, index);
   // One instance for the header check and the decode, as sharp allows.
   const image = sharp(bytes, sharpOptions);
@@ -117,6 +121,11 @@ export async function decodeFrame(file: string, index: number, plan: DetectionPl
   }
   if (info.width !== width || info.height !== height || info.channels !== plan.channels) {
     throw unreadable(file, index, `it decoded to ${info.width}×${info.height} px with ${info.channels} channels`);
+  }
+  if (into) {
+    if (into.length < data.length) throw new Error(`A ${into.length}-byte buffer cannot take a ${data.length}-byte frame.`);
+    into.set(data);
+    return into.subarray(0, data.length);
   }
   // A copy of our own: it can be handed to a worker thread without touching sharp's memory.
   return new Uint8Array(data);

@@ -74,6 +74,11 @@ export interface PatchCentre {
 export function createDyeCentre(width: number, height: number, spans: Int32Array) {
   const hist = new Uint32Array(2 * halfRange * binsPerLevel + 1);
   const factor = new Float64Array(3);
+  // The window's passes visit mostly the same pixels, and a pixel's signal is fixed for the
+  // frame: each is worked out once per frame (`stamp` says for which measurement).
+  const signals = new Float64Array(width * height);
+  const stamp = new Uint32Array(width * height);
+  let measurement = 0;
 
   /** The per-channel factors of the signal at one pixel: direction × level / local background. */
   function signalAt(img: Uint8Array, bg: Uint8Array, p: number): number {
@@ -86,6 +91,15 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       (factor[1]! * (img[q + 1]! - b1)) / (b1 > 0 ? b1 : 1) +
       (factor[2]! * (img[q + 2]! - b2)) / (b2 > 0 ? b2 : 1)
     );
+  }
+
+  /** signalAt, once per pixel per measurement. */
+  function signalOnce(img: Uint8Array, bg: Uint8Array, p: number): number {
+    if (stamp[p] === measurement) return signals[p]!;
+    const s = signalAt(img, bg, p);
+    signals[p] = s;
+    stamp[p] = measurement;
+    return s;
   }
 
   return function measure(image: DyeImage, background: Uint8Array, box: PatchBox): PatchCentre | null {
@@ -113,6 +127,9 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     const norm = Math.hypot(sum[0]!, sum[1]!, sum[2]!);
     if (!(norm > 0)) return null;
     for (let c = 0; c < 3; c++) factor[c] = (sum[c]! / norm) * level[c]!;
+    // A new colour direction: signals worked out before belong to another measurement.
+    measurement = measurement === 0xffffffff ? 1 : measurement + 1;
+    if (measurement === 1) stamp.fill(0);
 
     // Offset and noise of the signal over the searched region (the patch is a small part of it).
     hist.fill(0);
@@ -172,11 +189,11 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
           if (inverse) {
             const q = inverse[0] * dx * dx + 2 * inverse[1] * dx * dy + inverse[2] * dy * dy;
             if (q > windowSigmas * windowSigmas) continue;
-            const s = signalAt(img, bg, row * width + col);
+            const s = signalOnce(img, bg, row * width + col);
             if (s > peak) peak = s;
             weight = Math.max(0, s - offset) * Math.exp(-0.5 * q);
           } else {
-            const s = signalAt(img, bg, row * width + col);
+            const s = signalOnce(img, bg, row * width + col);
             if (s > peak) peak = s;
             weight = s - floor;
             if (weight <= 0) continue;

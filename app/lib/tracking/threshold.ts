@@ -62,6 +62,10 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
   const blockSums = new Float64Array(sw * 3);
   const colour = new Float64Array(3);
   const { hueMin, hueMax, satMin, valMin } = plan.dyeColour;
+  // At full resolution the channels are whole numbers, and so is the usual saturation limit:
+  // then 255·(v − least) < satMin·v decides exactly what the quotient would, without a division
+  // for every pixel of water.
+  const wholeSaturation = k === 1 && Number.isInteger(satMin);
   /** Column ranges of one tile row to search, [from, to) pairs in detection-image px. */
   const runs = new Int32Array(tilesX + 1);
 
@@ -182,7 +186,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
           // Value and saturation reject the water before any hue is worked out.
           if (v < valMin) continue;
           const least = r < g ? (r < bl ? r : bl) : g < bl ? g : bl;
-          if ((255 * (v - least)) / v < satMin) continue;
+          if (wholeSaturation ? 255 * (v - least) < satMin * v : (255 * (v - least)) / v < satMin) continue;
           hsv(r, g, bl, colour);
           if (!hueInRange(colour[0]!, hueMin, hueMax)) continue;
           const at = rowAt + sx;

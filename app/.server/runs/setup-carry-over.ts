@@ -1,4 +1,4 @@
-import { Op } from "sequelize";
+import { Op, type Transaction } from "sequelize";
 import { Run, ViewSetup, locking, sequelize } from "../db";
 
 /**
@@ -8,8 +8,9 @@ import { Run, ViewSetup, locking, sequelize } from "../db";
  * setup page that is a starting point to adjust; on the run page it is an opt-in of the upload, so
  * that frames can be searched as they land.
  */
-export async function lastSetupOfCamera(cameraId: number, size: { width: number; height: number } | null, exceptRunId?: number) {
+export async function lastSetupOfCamera(cameraId: number, size: { width: number; height: number } | null, exceptRunId?: number, transaction?: Transaction) {
   const recent = await ViewSetup.findAll({
+    transaction,
     where: exceptRunId === undefined ? { cameraId } : { cameraId, runId: { [Op.ne]: exceptRunId } },
     order: [
       ["updatedAt", "DESC"],
@@ -17,7 +18,7 @@ export async function lastSetupOfCamera(cameraId: number, size: { width: number;
     ],
     limit: 10,
   });
-  const runs = await Run.findAll({ where: { id: recent.map((s) => s.runId) }, attributes: ["id", "frameWidthPx", "frameHeightPx"] });
+  const runs = await Run.findAll({ where: { id: recent.map((s) => s.runId) }, attributes: ["id", "frameWidthPx", "frameHeightPx"], transaction });
   const sizeOf = new Map(runs.map((r) => [r.id, r.frameWidthPx && r.frameHeightPx ? { width: r.frameWidthPx, height: r.frameHeightPx } : null]));
   for (const setup of recent) {
     const made = sizeOf.get(setup.runId);
@@ -56,7 +57,7 @@ export async function carrySetupOver(runId: number, userId: number): Promise<Car
     const own = await ViewSetup.findOne({ where: { runId }, transaction });
     if (own) return { carried: false, alreadySet: true, message: "The run already has a view setup; it is kept." };
     if (!run.frameWidthPx || !run.frameHeightPx) return { carried: false, message: "The run has no frames yet, so its frame size is not known." };
-    const last = await lastSetupOfCamera(run.cameraId, { width: run.frameWidthPx, height: run.frameHeightPx }, run.id);
+    const last = await lastSetupOfCamera(run.cameraId, { width: run.frameWidthPx, height: run.frameHeightPx }, run.id, transaction);
     if (!last)
       return {
         carried: false,

@@ -48,6 +48,8 @@ interface ResponseBody {
   [key: string]: unknown;
 }
 
+const shortStack = "a still was refused, so the stack will not reach the count declared and tracking does not start by itself";
+
 /** The run as a stream sees it: frames already in, its own setup, the camera's last setup it may carry over. */
 export interface StreamStart {
   framesInRun: number;
@@ -129,6 +131,8 @@ export function FrameUploader({ runId, frameRate, disabled, start }: { runId: nu
     const onError = (file: { id: string } | undefined, error: { message?: string }, response?: { body?: ResponseBody; status: number }) => {
       if (!file) return;
       update(file.id, { state: "rejected", message: error?.message ?? response?.body?.error?.message ?? "Refused." });
+      // A stream's stack now ends short of its declared count: the frames in are searched, but the fit waits to be started.
+      setPlan((p) => (p?.stream ? { stream: false, why: shortStack } : p));
     };
     const onComplete = () => {
       setBusy(false);
@@ -199,6 +203,7 @@ export function FrameUploader({ runId, frameRate, disabled, start }: { runId: nu
           queued.push({ id, name: file.name, state: "waiting", bytes: file.size });
         }
       }
+      if (plan.stream && queued.some((o) => o.state === "rejected")) setPlan({ stream: false, why: shortStack });
       setOutcomes((list) => [...queued, ...list].slice(0, 500));
       setSentBytes({});
       if (uppy.getFiles().length === 0) {

@@ -4,6 +4,7 @@
  * frames the stack will have. Both or neither; the upload that brings the stack to the declared
  * count starts its tracking. Shared by the upload route and the run page's uploader.
  */
+import { orderBy } from "natural-orderby";
 import { uploadLimits } from "./upload-limits";
 import { backgroundSampleIndices } from "./tracking/background";
 
@@ -48,4 +49,57 @@ export function streamingOrder(count: number): number[] {
   const rest: number[] = [];
   for (let i = 0; i < count; i++) if (!chosen.has(i)) rest.push(i);
   return [...first, ...rest];
+}
+
+/** A file the technician dropped, as the planner needs it: its name, and whether it is a video. */
+export interface DroppedFile {
+  name: string;
+  video: boolean;
+}
+
+/** What the run offers a stream: frames already in it, and whether it will have a view setup before the frames. */
+export interface StreamContext {
+  framesInRun: number;
+  setup: "present" | "carried over" | "none";
+}
+
+export type StreamPlan =
+  | {
+      stream: true;
+      expectedFrames: number;
+      /** In sending order: which dropped file (index into the list given) and its 1-based place in the stack. */
+      sends: { file: number; frameNumber: number }[];
+    }
+  | { stream: false; why: string };
+
+/**
+ * How the run page's uploader sends a drop of files: as a stream (each still declaring its place
+ * in the stack, ordered by name as the server orders stills, the still background's frames first)
+ * when the places are known before the first byte is sent and the frames can be searched against a
+ * view setup; otherwise as before, with the reason in words for the page.
+ */
+export function streamPlan(files: readonly DroppedFile[], context: StreamContext): StreamPlan {
+  if (files.some((f) => f.video)) return { stream: false, why: "a video is cut into frames here first, and they are tracked once all of them are in" };
+  if (files.some((f) => /\.zip$/i.test(f.name)))
+    return { stream: false, why: "a ZIP is unpacked on the server as one upload, so its frames are tracked once it is all in" };
+  if (context.framesInRun > 0)
+    return { stream: false, why: "the run already has frames, so where the new ones fall in the stack is known only once they are in" };
+  if (files.length < 3) return { stream: false, why: "a stack of fewer than three frames is tracked once it is in" };
+  if (files.length > uploadLimits.maxFramesPerRun) return { stream: false, why: `a run holds at most ${uploadLimits.maxFramesPerRun} frames` };
+  const seen = new Set<string>();
+  for (const f of files) {
+    if (seen.has(f.name)) return { stream: false, why: `two files are called ${f.name}, so their order in the stack is not known beforehand` };
+    seen.add(f.name);
+  }
+  if (context.setup === "none") return { stream: false, why: "the run has no view setup yet, and the frames are searched against one" };
+  const byName = orderBy(
+    files.map((f, file) => ({ name: f.name, file })),
+    [(f) => f.name],
+    ["asc"],
+  );
+  return {
+    stream: true,
+    expectedFrames: byName.length,
+    sends: streamingOrder(byName.length).map((place) => ({ file: byName[place]!.file, frameNumber: place + 1 })),
+  };
 }

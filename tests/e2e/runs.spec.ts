@@ -32,6 +32,10 @@ test("a technician logs a run, brings a frame stack, sets the view, tracks it an
   await expect(page).toHaveURL(/\/runs\/\d+$/);
   const runId = Number(page.url().split("/").pop());
 
+  // This run's view is set up on its own frames below: the camera's last setup, when offered, is not carried over.
+  const carry = page.getByRole("checkbox", { name: /Carry over the view setup/ });
+  if (await carry.isVisible()) await carry.uncheck();
+
   // Frames through the drop zone (Uppy, one file per request); a text file named .png is refused on its own.
   const fake = path.join(stack.dir, "frame_0.png");
   fs.writeFileSync(fake, "not really a picture");
@@ -39,6 +43,8 @@ test("a technician logs a run, brings a frame stack, sets the view, tracks it an
   await expect(page.getByTestId("upload-outcomes")).toContainText("frame_0.png: This is not an image Tankside can read", { timeout: 60_000 });
   await expect(page.getByRole("heading", { name: "Frame stack (90)" })).toBeVisible({ timeout: 60_000 });
   await expect(page.getByTestId("filmstrip").getByRole("img")).toHaveCount(90);
+  await expect(page.getByTestId("stream-notice")).toContainText("Not tracked as they land");
+  await expect(page.getByTestId("stream-notice")).toContainText("the run has no view setup yet");
 
   // View setup: the centre and the tank edge typed in pixels (the overlay takes clicks too).
   await page.getByRole("link", { name: "Set up the view" }).click();

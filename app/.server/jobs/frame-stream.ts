@@ -20,6 +20,7 @@ import type { Detection } from "~/lib/tracking/types";
 import { saveStreamed, streamBasis, streamedShas } from "./streamed-detections";
 import { rateSettingsFrom, trackingSetupFrom } from "./tracking-setup";
 import { startRateStream, type RateStream, type StreamedRate } from "./rate-stream";
+import { warmTheoryCheck } from "../runs/check-warm-up";
 
 /** Frames being decoded or searched at once for one run: the pool's threads, each with one waiting. */
 const inFlightLimit = Math.max(1, os.availableParallelism()) * 2;
@@ -44,6 +45,8 @@ class RunStream {
   private readonly waiting: LandedFrame[] = [];
   private active = 0;
   private rows: { sha256: string; detections: Detection[] }[] = [];
+  /** Every frame this stream searched, by content: handed to the job in memory when it settles (Decision 67). */
+  private readonly found = new Map<string, Detection[]>();
   private flushTimer: NodeJS.Timeout | null = null;
   private flushing: Promise<void> = Promise.resolve();
   private idleTimer: NodeJS.Timeout | null = null;
@@ -61,6 +64,8 @@ class RunStream {
   ) {
     this.scratch = new ScratchDir(`frame-stream-${runId}`);
     this.rate = this.startRate().catch(() => null);
+    // The fit follows the last frame within a second or two: have its code compiled before then.
+    warmTheoryCheck();
     this.touch();
   }
 
@@ -151,6 +156,7 @@ class RunStream {
       const detections = await prepared.search.detect(file, row.position);
       this.searched++;
       this.rows.push({ sha256: frame.sha256, detections });
+      this.found.set(frame.sha256, detections);
       this.flushTimer ??= setTimeout(() => this.flushNow(), flushMs);
     } catch (err) {
       // The job searches it; a frame removed while it was read lands here too.
@@ -179,13 +185,17 @@ class RunStream {
       });
   }
 
-  /** Resolves when every frame that has landed is searched and stored (or given up), with the rate as read so far. */
-  async settle(): Promise<StreamedRate | null> {
-    await this.prepared;
+  /**
+   * Resolves when every frame that has landed is searched and stored (or given up), with the rate
+   * as read so far and the stream's finds on its basis, so the job need not read them back.
+   */
+  async settle(): Promise<Settled> {
+    const prepared = await this.prepared;
     if (this.active > 0 || this.waiting.length > 0) await new Promise<void>((resolve) => this.drained.push(resolve));
     this.flushNow();
     await this.flushing;
-    return (await this.rate)?.finish() ?? null;
+    const rate = (await (await this.rate)?.finish()) ?? null;
+    return { searched: this.searched, rate, found: prepared ? { basis: prepared.basis, bySha: this.found } : null };
   }
 
   private touch() {
@@ -230,17 +240,23 @@ export function frameLanded(runId: number, frame: LandedFrame, declared: FrameSt
   stream.land(frame, declared.frameNumber);
 }
 
+/** What a settled stream hands the job: how many frames it searched, the rate as read, and its finds by frame content on its basis. */
+export interface Settled {
+  searched: number;
+  rate: StreamedRate | null;
+  found: { basis: string; bySha: ReadonlyMap<string, Detection[]> } | null;
+}
+
 /**
  * The tracking job is about to read the streamed detections: let this process's stream of the run
  * finish what it has started and store it, then end the stream (frames after this are the job's).
- * Returns how many frames the stream searched.
  */
-export async function settleFrameStream(runId: number): Promise<{ searched: number; rate: StreamedRate | null }> {
+export async function settleFrameStream(runId: number): Promise<Settled> {
   const stream = streams.get(runId);
-  if (!stream) return { searched: 0, rate: null };
-  const rate = await stream.settle();
+  if (!stream) return { searched: 0, rate: null, found: null };
+  const settled = await stream.settle();
   await closeStream(runId);
-  return { searched: stream.searched, rate };
+  return settled;
 }
 
 /** Ends every stream (a stop); what was stored stays for the jobs. */

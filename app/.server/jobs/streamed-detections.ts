@@ -34,10 +34,24 @@ export async function saveStreamed(runId: number, basis: string, frames: { sha25
   );
 }
 
-/** The streamed detections of a stack's frames on `basis`, as frames of the stack (times from the stack). */
-export async function streamedFrames(runId: number, basis: string, shas: readonly string[], times: readonly number[]): Promise<FrameDetections[]> {
-  const rows = await StreamedDetection.findAll({ where: { runId, basis, sha256: { [Op.in]: [...new Set(shas)] } }, attributes: ["sha256", "detections"] });
-  const bySha = new Map(rows.map((r) => [r.sha256, JSON.parse(r.detections) as Detection[]]));
+/**
+ * The streamed detections of a stack's frames on `basis`, as frames of the stack (times from the
+ * stack). `known` holds finds already in memory on the same basis (this process's stream); only
+ * the frames it lacks are read from the table.
+ */
+export async function streamedFrames(
+  runId: number,
+  basis: string,
+  shas: readonly string[],
+  times: readonly number[],
+  known?: ReadonlyMap<string, Detection[]>,
+): Promise<FrameDetections[]> {
+  const bySha = new Map(known ?? []);
+  const missing = [...new Set(shas)].filter((sha) => !bySha.has(sha));
+  if (missing.length) {
+    const rows = await StreamedDetection.findAll({ where: { runId, basis, sha256: { [Op.in]: missing } }, attributes: ["sha256", "detections"] });
+    for (const r of rows) bySha.set(r.sha256, JSON.parse(r.detections) as Detection[]);
+  }
   const frames: FrameDetections[] = [];
   shas.forEach((sha, frameIndex) => {
     const detections = bySha.get(sha);

@@ -112,7 +112,7 @@ async function streamedOf(
   setup: TrackingSetup,
   from: number,
 ): Promise<{ frames: FrameDetections[]; rate: StreamedRate | null }> {
-  const { rate } = await settleFrameStream(run.id);
+  const { rate, found } = await settleFrameStream(run.id);
   if (!run.frameWidthPx || !run.frameHeightPx) return { frames: [], rate };
   let basis: string | null;
   try {
@@ -122,7 +122,9 @@ async function streamedOf(
     return { frames: [], rate };
   }
   if (!basis) return { frames: [], rate };
-  const frames = (await streamedFrames(run.id, basis, stack.shas, stack.times)).filter((f) => f.frameIndex >= from);
+  // This process's stream hands over what it found when it searched on this very basis; the table holds the rest (another process, an earlier stream).
+  const known = found?.basis === basis ? found.bySha : undefined;
+  const frames = (await streamedFrames(run.id, basis, stack.shas, stack.times, known)).filter((f) => f.frameIndex >= from);
   if (frames.length) console.log(`[tracking] run ${run.id}: ${frames.length} of ${stack.shas.length} frames were searched as they arrived`);
   return { frames, rate };
 }

@@ -1,5 +1,5 @@
 import { beforeAll, describe, expect, it } from "vitest";
-import { migrate, TrackingJob } from "../db";
+import { migrate, Run, TrackingJob } from "../db";
 import { createRun } from "./service";
 import { checkRun } from "./theory";
 import { checkAwaited } from "./current-check";
@@ -38,6 +38,17 @@ describe("checkAwaited: the run page keeps polling after tracking until the verd
     const later = new Date(job.finishedAt!.getTime() + 121_000);
     expect(await checkAwaited(run, job, later)).toBe(false);
     expect(await checkAwaited(run, job, new Date(job.finishedAt!.getTime() + 60_000))).toBe(true);
+  });
+
+  it("is true when the run was read before the job's last write and the job after it, as a page loading at that moment does", async () => {
+    const run = await createRun(runInput(lab), lab.technician);
+    await plainViewSetup(run, lab.technician.id);
+    await run.update({ state: "frames_in" });
+    const readBefore = await Run.findByPk(run.id);
+    const job = await doneTrackingJob(run, lab.technician.id, 10);
+    await run.update({ state: "tracked" });
+    expect(readBefore?.state).toBe("frames_in");
+    expect(await checkAwaited(readBefore!, job)).toBe(true);
   });
 
   it("is false while the job still runs, and with no job", async () => {

@@ -57,7 +57,11 @@ const CHECK_AWAITED_MS = 120_000;
  * polling while this holds, so the verdict appears without a reload.
  */
 export async function checkAwaited(run: Run, job: TrackingJob | null, now = new Date()): Promise<boolean> {
-  if (!job || job.state !== "done" || !job.finishedAt || run.state !== "tracked") return false;
+  if (!job || job.state !== "done" || !job.finishedAt) return false;
+  // The run's state as the job left it: a page may have loaded the run just before the job's last
+  // write (the same transaction that marks it tracked), and read the job just after (Decision 67).
+  const state = (await Run.findByPk(run.id, { attributes: ["state"] }))?.state ?? run.state;
+  if (state !== "tracked") return false;
   if (now.getTime() - job.finishedAt.getTime() > CHECK_AWAITED_MS) return false;
   const latest = await latestCheck(run.id, { attributes: ["id", "createdAt"] });
   return !latest || latest.createdAt.getTime() < job.finishedAt.getTime();

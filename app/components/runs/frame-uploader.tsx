@@ -6,9 +6,16 @@ import { cutVideoIntoFrames } from "./video-frames";
 import { uploadLimits, acceptedFrameTypes, frameUploadKindOf, maxUploadFileBytes } from "~/lib/upload-limits";
 import { Button } from "~/components/ui/button";
 import { formatFixed } from "~/lib/number-format";
+import { streamPlan, type StreamPlan } from "~/lib/frame-stream";
+import { runLabel } from "~/lib/runs";
+import { CarryOverChoice, StreamNotice } from "./stream-notice";
 
-/** A frame cut from a video carries its own time in s; a still carries none. */
-type Meta = { timeS: string; displayName?: string };
+/**
+ * A frame cut from a video carries its own time in s; a still carries none. A still of a stream
+ * declares its place (Decision 61); carryOverSetup opts in to the camera's last view setup (Decision 67).
+ * Empty means "not sent".
+ */
+type Meta = { timeS: string; frameNumber: string; expectedFrames: string; carryOverSetup: string; displayName?: string };
 type Outcome = { id: string; name: string; state: "waiting" | "sent" | "duplicate" | "rejected"; message?: string; frames?: number; bytes: number };
 
 /** A refusal names its file once: the server's own message often starts with the name already. */
@@ -37,14 +44,26 @@ interface ResponseBody {
   rejected?: { name: string; message: string }[];
   error?: { message: string };
   frameCount?: number;
+  setupCarriedOver?: { carried: true; fromRunId: number } | { carried: false; message: string; alreadySet?: boolean };
   [key: string]: unknown;
+}
+
+const shortStack = "a still was refused, so the stack will not reach the count declared and tracking does not start by itself";
+
+/** The run as a stream sees it: frames already in, its own setup, the camera's last setup it may carry over. */
+export interface StreamStart {
+  framesInRun: number;
+  hasSetup: boolean;
+  offer: { fromRunId: number; width: number; height: number } | null;
 }
 
 /**
  * Tankside's own drop zone on Uppy: one file per request to the frame route. Images and ZIPs go
- * as they are; a video is first cut into frames here in the browser.
+ * as they are; a video is first cut into frames here in the browser. A drop of stills on an empty
+ * run with a view setup (its own or carried over) is sent as a stream (streamPlan): each still
+ * declares its place, the still background's frames go first, and the last one starts tracking.
  */
-export function FrameUploader({ runId, frameRate, disabled }: { runId: number; frameRate: number; disabled?: boolean }) {
+export function FrameUploader({ runId, frameRate, disabled, start }: { runId: number; frameRate: number; disabled?: boolean; start: StreamStart }) {
   const revalidator = useRevalidator();
   const endpoint = `/api/v1/runs/${runId}/frames`;
   const [uppy] = useState(() =>
@@ -53,7 +72,7 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
       fieldName: "file",
       formData: true,
       limit: 2,
-      allowedMetaFields: ["timeS"],
+      allowedMetaFields: ["timeS", "frameNumber", "expectedFrames", "carryOverSetup"],
       timeout: 0,
       // A refusal (4xx) is final and carries the reason; only a lost connection or a server fault is worth retrying.
       shouldRetry: (xhr: XMLHttpRequest) => xhr.status === 0 || xhr.status >= 500,
@@ -76,6 +95,11 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
   const [problem, setProblem] = useState<string | null>(null);
   const [sentBytes, setSentBytes] = useState<Record<string, number>>({});
   const [over, setOver] = useState(false);
+  const [plan, setPlan] = useState<StreamPlan | null>(null);
+  const [carried, setCarried] = useState<string | null>(null);
+  // Opt-in, on by default when there is a setup to carry over.
+  const [carry, setCarry] = useState(Boolean(start.offer));
+  const carryOver = !start.hasSetup && start.offer !== null && carry;
   const input = useRef<HTMLInputElement>(null);
 
   useEffect(() => {
@@ -83,6 +107,13 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
     const onSuccess = (file: { id: string } | undefined, response: { body?: ResponseBody; status: number }) => {
       if (!file) return;
       const body = response.body ?? {};
+      const c = body.setupCarriedOver;
+      if (c?.carried) setCarried(`The view setup of ${runLabel(c.fromRunId)} was carried over to this run.`);
+      else if (c && !c.alreadySet) {
+        // Without a setup the frames wait for one: say so, and why.
+        setCarried(c.message);
+        setPlan({ stream: false, why: "the camera's last view setup could not be carried over" });
+      }
       const rejected = body.rejected ?? [];
       const accepted = body.accepted ?? [];
       const dup = accepted.length > 0 && accepted.every((a) => a.duplicate);
@@ -101,6 +132,8 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
     const onError = (file: { id: string } | undefined, error: { message?: string }, response?: { body?: ResponseBody; status: number }) => {
       if (!file) return;
       update(file.id, { state: "rejected", message: error?.message ?? response?.body?.error?.message ?? "Refused." });
+      // A stream's stack now ends short of its declared count: the frames in are searched, but the fit waits to be started.
+      setPlan((p) => (p?.stream ? { stream: false, why: shortStack } : p));
     };
     const onComplete = () => {
       setBusy(false);
@@ -130,14 +163,35 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
     if (!files.length) return;
     setBusy(true);
     const queued: Outcome[] = [];
+    const plan = streamPlan(
+      files.map((f) => ({ name: f.name, video: f.type.startsWith("video/") })),
+      { framesInRun: start.framesInRun, setup: start.hasSetup ? "present" : carryOver ? "carried over" : "none" },
+    );
+    setPlan(plan);
+    setCarried(null);
+    const carryMeta = carryOver ? "yes" : "";
+    const sendAs = { timeS: "", frameNumber: "", expectedFrames: "", carryOverSetup: carryMeta };
     try {
-      for (const file of files) {
+      if (plan.stream) {
+        for (const { file: index, frameNumber } of plan.sends) {
+          const file = files[index]!;
+          const refusal = tooLargeToSend(file);
+          if (refusal) {
+            queued.push({ id: `refused-${file.name}-${Date.now()}`, name: file.name, state: "rejected", message: refusal, bytes: 0 });
+            continue;
+          }
+          const meta = { ...sendAs, frameNumber: String(frameNumber), expectedFrames: String(plan.expectedFrames) };
+          const id = uppy.addFile({ name: file.name, type: file.type || "application/octet-stream", data: file, meta });
+          queued.push({ id, name: file.name, state: "waiting", bytes: file.size });
+        }
+      }
+      for (const file of plan.stream ? [] : files) {
         if (file.type.startsWith("video/")) {
           setCutting({ name: file.name, done: 0, total: 0 });
           const frames = await cutVideoIntoFrames(file, uploadLimits.maxFramesPerRun, (done, total) => setCutting({ name: file.name, done, total }));
           setCutting(null);
           for (const f of frames) {
-            const id = uppy.addFile({ name: f.file.name, type: "image/jpeg", data: f.file, meta: { timeS: String(f.timeS) } });
+            const id = uppy.addFile({ name: f.file.name, type: "image/jpeg", data: f.file, meta: { ...sendAs, timeS: String(f.timeS) } });
             queued.push({ id, name: f.file.name, state: "waiting", bytes: f.file.size });
           }
         } else {
@@ -146,12 +200,13 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
             queued.push({ id: `refused-${file.name}-${Date.now()}`, name: file.name, state: "rejected", message: refusal, bytes: 0 });
             continue;
           }
-          const id = uppy.addFile({ name: file.name, type: file.type || "application/octet-stream", data: file, meta: { timeS: "" } });
+          const id = uppy.addFile({ name: file.name, type: file.type || "application/octet-stream", data: file, meta: sendAs });
           // The server takes a ZIP's larger limit only when the upload says it is one.
           if (frameUploadKindOf(file.name) === "zip") uppy.setFileState(id, { xhrUpload: { endpoint: `${endpoint}?kind=zip` } });
           queued.push({ id, name: file.name, state: "waiting", bytes: file.size });
         }
       }
+      if (plan.stream && queued.some((o) => o.state === "rejected")) setPlan({ stream: false, why: shortStack });
       setOutcomes((list) => [...queued, ...list].slice(0, 500));
       setSentBytes({});
       if (uppy.getFiles().length === 0) {
@@ -175,6 +230,15 @@ export function FrameUploader({ runId, frameRate, disabled }: { runId: number; f
 
   return (
     <div className="flex flex-col gap-3">
+      {!start.hasSetup && start.offer ? <CarryOverChoice offer={start.offer} checked={carry} disabled={disabled || busy} onChange={setCarry} /> : null}
+      <div data-testid="stream-notice">
+        <StreamNotice plan={plan} framesInRun={start.framesInRun} setup={start.hasSetup ? "present" : carryOver ? "carried over" : "none"} />
+      </div>
+      {carried ? (
+        <p role="status" data-testid="setup-carried">
+          {carried}
+        </p>
+      ) : null}
       <div
         onDragOver={(e) => {
           e.preventDefault();

@@ -55,13 +55,17 @@ export function TrackingPanel({
   // Poll while the job runs, and after it while its theory check is still being made.
   const following = active || view.checkAwaited;
 
+  // Once every frame is searched only the linking, the rate and the check are left, a second or two
+  // after a streamed stack's last frame: ask more often then, so the verdict shows as soon as it is made.
+  const closing = view.checkAwaited || (job !== null && job.framesTotal > 0 && job.framesDone >= job.framesTotal);
+  const every = closing ? 250 : 1000;
   useEffect(() => {
     if (!following) return;
     const timer = setInterval(() => {
       if (poll.state === "idle") void poll.load(`/api/v1/runs/${runId}/tracking`);
-    }, 1000);
+    }, every);
     return () => clearInterval(timer);
-  }, [following, runId, poll]);
+  }, [following, runId, poll, every]);
 
   // When a job ends, and again when its check is made, reload the page's data so the tracks, the
   // overlay and the verdict appear.

@@ -14,7 +14,8 @@ import { parseQueryFilters } from "~/lib/validation/query-filters";
 import { parseFrameTime } from "~/lib/video-frames";
 import { parseFrameStream } from "~/lib/frame-stream";
 import { streamedUpload } from "~/.server/jobs/stream-upload";
-import type { FrameRemovalView, FrameStackView, FrameUploadRefusedView } from "~/.server/openapi/responses/tracking";
+import type { FrameRemovalView, FrameStackView, FrameUploadRefusedView, FrameUploadView } from "~/.server/openapi/responses/tracking";
+import { carrySetupOver } from "~/.server/runs/setup-carry-over";
 import { removeFrameSelection } from "~/.server/runs/frame-removal";
 import { runErrorResponse } from "~/.server/runs/api";
 import { invalidInput } from "~/.server/api-responses";
@@ -68,6 +69,9 @@ export async function action({ request, params }: Route.ActionArgs) {
       // A client streaming a stack says where this frame belongs and how many will come (Decision 61).
       const stream = parseFrameStream(fields.frameNumber ?? null, fields.expectedFrames ?? null);
       if (!stream.ok) return apiError(400, "invalid_stream", stream.message);
+      // Opt-in: a run without a view setup takes the camera's last one (Decision 67), before the frame is streamed.
+      const carryOver = fields.carryOverSetup ?? "";
+      if (carryOver !== "" && carryOver !== "yes") return apiError(400, "invalid_carry_over", 'carryOverSetup is "yes" or left out.');
       try {
         const result = await receiveFrameFile(run, file, time.timeS);
         if (result.accepted.length === 0 && result.rejected.length > 0) {
@@ -80,8 +84,10 @@ export async function action({ request, params }: Route.ActionArgs) {
         const allDuplicates = result.accepted.length > 0 && result.accepted.every((a) => a.duplicate);
         // New frames make a checked run's tracks and check out of date: track again.
         if (!allDuplicates && result.accepted.length) await inputsChanged(run.id, user.id, "track");
+        const setupCarriedOver = carryOver === "yes" && result.accepted.length ? await carrySetupOver(run.id, user.id) : undefined;
         await streamedUpload(run, result, stream.declared, user.id);
-        return Response.json(result, { status: allDuplicates ? 200 : 201 });
+        const answer: FrameUploadView = setupCarriedOver ? { ...result, setupCarriedOver } : result;
+        return Response.json(answer, { status: allDuplicates ? 200 : 201 });
       } catch (err) {
         if (err instanceof UploadError) return apiError(err.status, err.code, `${file.name}: ${err.message}`);
         throw err;

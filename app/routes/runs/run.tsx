@@ -18,6 +18,7 @@ import { TableRatePanel } from "~/components/runs/table-rate-panel";
 import { tableRateSummary } from "~/.server/runs/rate-from-footage";
 import { FrameViewer } from "~/components/runs/frame-viewer";
 import { frameReviewData } from "~/.server/runs/frame-review";
+import { carryOverOffer } from "~/.server/runs/setup-carry-over";
 import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
 import { SupersedesLinks } from "~/components/run-record/supersedes-links";
 import { SignOffPanel } from "~/components/run-record/sign-off-panel";
@@ -35,14 +36,15 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireUser(request);
   const run = await loadRun(request, params.id);
   const current = await currentCheck(run);
-  const [page, settings, record, tableRate, review] = await Promise.all([
+  const [page, settings, record, tableRate, review, carryOver] = await Promise.all([
     runPageData(run, user, current),
     getLabSettings(),
     getRunRecordParts(run, user, current),
     tableRateSummary(run),
     frameReviewData(run),
+    carryOverOffer(run),
   ]);
-  return { ...page, record, review, user, spinUpTimesToWait: settings.spinUpTimesToWait, tableRate };
+  return { ...page, record, review, user, spinUpTimesToWait: settings.spinUpTimesToWait, tableRate, carryOver };
 }
 
 function Fact({ label, children }: { label: string; children: React.ReactNode }) {
@@ -245,7 +247,11 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
         )}
         {canChange ? (
           <div className="mt-4">
-            <FrameUploader runId={run.id} frameRate={run.frameRateFps} />
+            <FrameUploader
+              runId={run.id}
+              frameRate={run.frameRateFps}
+              start={{ framesInRun: d.frames.length, hasSetup: Boolean(d.setup), offer: d.carryOver }}
+            />
           </div>
         ) : null}
       </Card>

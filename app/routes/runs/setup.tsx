@@ -3,11 +3,12 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import type { Route } from "./+types/setup";
 import { readForm } from "~/.server/http";
 import { requireRole } from "~/.server/auth/permissions";
-import { Frame, Run, ViewSetup } from "~/.server/db";
+import { Frame, ViewSetup } from "~/.server/db";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { scaleCalibrationOfRun } from "~/.server/runs/applied-calibrations";
 import { formatNumber } from "~/lib/number-format";
 import { saveViewSetup } from "~/.server/runs/view-setup";
+import { lastSetupOfCamera } from "~/.server/runs/setup-carry-over";
 import { viewSetupSchema } from "~/lib/validation/view-setup";
 import { runLabel } from "~/lib/runs";
 import { Button, ButtonLink } from "~/components/ui/button";
@@ -36,14 +37,6 @@ function toValues(s: ViewSetup): SetupValues {
   };
 }
 
-/** The camera's last setup, if it was made on frames of this size (a different size means a different mode or crop). */
-async function lastSetupOfCamera(cameraId: number, width: number, height: number) {
-  const recent = await ViewSetup.findAll({ where: { cameraId }, order: [["updatedAt", "DESC"]], limit: 10 });
-  const runs = await Run.findAll({ where: { id: recent.map((s) => s.runId) }, attributes: ["id", "frameWidthPx", "frameHeightPx"] });
-  const sameSize = new Set(runs.filter((r) => r.frameWidthPx === width && r.frameHeightPx === height).map((r) => r.id));
-  return recent.find((s) => sameSize.has(s.runId)) ?? null;
-}
-
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireRole(request, "technician", "lab_manager");
   const run = await loadRun(request, params.id);
@@ -53,7 +46,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const frame = await Frame.findOne({ where: { runId: run.id, position: 0 } });
   const own = await ViewSetup.findOne({ where: { runId: run.id } });
   // The same camera usually hangs in the same place: start from its last setup.
-  const previous = own ? null : await lastSetupOfCamera(run.cameraId, frame!.widthPx, frame!.heightPx);
+  const previous = own ? null : ((await lastSetupOfCamera(run.cameraId, { width: frame!.widthPx, height: frame!.heightPx }))?.setup ?? null);
   const start = own ?? previous;
   const scaleCalibration = await scaleCalibrationOfRun(run);
   // The marks are made on this frame's picture: say so plainly when its file is gone from storage.

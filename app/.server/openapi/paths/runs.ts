@@ -181,6 +181,10 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
                 description:
                   "With frameNumber: how many frames the finished stack will have. The upload that brings the stack to this count starts tracking when the run has a view setup. Send the frames the still background is made of first (the frames at 0-based places round(i·(N−1)/20), i = 0…20, for N ≥ 21) so the others can be searched as they land.",
               }),
+              carryOverSetup: z.enum(["yes"]).optional().openapi({
+                description:
+                  "A run without a view setup takes a copy of the camera's last view setup made on frames of this size (the answer's setupCarriedOver says whether it did), so that frames can be searched as they land.",
+              }),
             }),
           },
         },
@@ -190,7 +194,7 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
       200: json(frameUploadSchema, "Every file was already in the stack"),
       201: json(frameUploadSchema, "Accepted and rejected files"),
       400: error(
-        "No file field (missing_file), a bad timeS (invalid_time), a bad or half frameNumber/expectedFrames pair (invalid_stream), unreadable multipart (invalid_multipart), or a kind other than frame or zip, or given twice (invalid_input).",
+        "No file field (missing_file), a bad timeS (invalid_time), a bad or half frameNumber/expectedFrames pair (invalid_stream), a carryOverSetup other than yes (invalid_carry_over), unreadable multipart (invalid_multipart), or a kind other than frame or zip, or given twice (invalid_input).",
       ),
       403: writers,
       404: noRun,

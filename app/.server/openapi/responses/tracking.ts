@@ -70,7 +70,21 @@ const uploadResultFields = {
   rejected: z.array(z.strictObject({ name: z.string(), message: z.string() })),
   frameCount: z.number().int(),
 };
-export const frameUploadSchema = z.strictObject(uploadResultFields).openapi("FrameUpload");
+export const frameUploadSchema = z
+  .strictObject({
+    ...uploadResultFields,
+    setupCarriedOver: z
+      .union([
+        z.strictObject({ carried: z.literal(true), fromRunId: z.number().int() }),
+        z.strictObject({ carried: z.literal(false), message: z.string(), alreadySet: z.boolean().optional() }),
+      ])
+      .optional()
+      .openapi({
+        description:
+          "Only when the upload sent carryOverSetup=yes: whether the run, having no view setup, took a copy of the camera's last one (made on frames of the same size), and from which run; or why not.",
+      }),
+  })
+  .openapi("FrameUpload");
 export type FrameUploadView = z.infer<typeof frameUploadSchema>;
 
 /** 422 no_frames_accepted: the error, and what happened to each file. */

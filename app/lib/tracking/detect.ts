@@ -9,6 +9,7 @@
  * given the stack's colour background is instead measured over the whole patch (dye-centre.ts).
  */
 import { createDyeCentre } from "./dye-centre";
+import { floatCentre } from "./float-centre";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect, OpenCv } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
@@ -226,7 +227,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     return found;
   }
 
-  /** Intensity-weighted centroid at full resolution around one blob. */
+  /** A float's centre from its share of each pixel (float-centre.ts); dye found by colour alone, its saturation-weighted centroid. */
   function centroid(blob: Blob, image: FrameImage, background: Uint8Array | null, offset: number, sigma: number): Detection | null {
     const lab = labels.data;
     const img = image.data;
@@ -235,7 +236,35 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     const row1 = Math.min(height, (blob.rect.y + blob.rect.height) * k + margin);
     const col0 = Math.max(0, blob.rect.x * k - margin);
     const col1 = Math.min(width, (blob.rect.x + blob.rect.width) * k + margin);
-    const floor = background ? offset + weightSigmas * sigma : Math.min(satMin, offset + weightSigmas * sigma);
+    if (background) {
+      // A float: its share of each pixel, unbiased by lines and shadow under it, mirrored where glare hides it (float-centre.ts).
+      const found = floatCentre({
+        image: img,
+        background,
+        width,
+        spans: fullSpans,
+        col0,
+        col1,
+        row0,
+        row1,
+        free: (col, row) => {
+          const owner = lab[Math.min(sh - 1, Math.floor(row / k)) * sw + Math.min(sw - 1, Math.floor(col / k))];
+          return owner === 0 || owner === blob.label;
+        },
+        offset,
+        sigma,
+        floorSigmas: weightSigmas,
+      });
+      if (!found) return null;
+      return {
+        x: plan.crop.left + found.x,
+        y: plan.crop.top + found.y,
+        area: blob.pixels,
+        roundness: blob.roundness,
+        intensity: Math.min(255, Math.round(found.peak)),
+      };
+    }
+    const floor = Math.min(satMin, offset + weightSigmas * sigma);
     let sum = 0;
     let sumX = 0;
     let sumY = 0;
@@ -248,17 +277,12 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
         const owner = lab[labelRow + Math.min(sw - 1, Math.floor(col / k))];
         if (owner !== 0 && owner !== blob.label) continue;
         const p = row * width + col;
-        let signal: number;
-        if (background) {
-          signal = img[p]! - background[p]!;
-        } else {
-          hsv(img[3 * p]!, img[3 * p + 1]!, img[3 * p + 2]!, colour);
-          if (colour[2]! < valMin || !hueInRange(colour[0]!, hueMin, hueMax)) continue;
-          signal = colour[1]!;
-        }
+        hsv(img[3 * p]!, img[3 * p + 1]!, img[3 * p + 2]!, colour);
+        if (colour[2]! < valMin || !hueInRange(colour[0]!, hueMin, hueMax)) continue;
+        const signal = colour[1]!;
         const w = signal - floor;
         if (w <= 0) continue;
-        if (signal - (background ? offset : 0) > peak) peak = signal - (background ? offset : 0);
+        if (signal > peak) peak = signal;
         sum += w;
         sumX += w * col;
         sumY += w * row;

@@ -48,6 +48,8 @@ const weightSigmas = 3;
 const noiseStride = 4;
 const maxBlobs = 254;
 const maxDetections = 50;
+/** A float with more unreadable pixels than this share of its area is not placed (float-centre.ts). */
+const hiddenShare = 0.25;
 
 /** The decoder's crop and channel choice, for a frame already in memory (tests, demo seeding). */
 export function cropForPlan(frame: FrameImage, plan: DetectionPlan): FrameImage {
@@ -255,7 +257,8 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
         sigma,
         floorSigmas: weightSigmas,
       });
-      if (!found) return null;
+      // A float largely hidden by glare as bright as its face: its visible part does not place it.
+      if (!found || found.unknown > hiddenShare * blob.pixels) return null;
       return {
         x: plan.crop.left + found.x,
         y: plan.crop.top + found.y,

@@ -149,7 +149,7 @@ const typicalQuantile = 0.1;
 const minDoubtedMisfit = 9;
 
 /** The share of the turning disc's pixels that must be doubted before a turning model is made. */
-export const minDoubtedShare = 0.002;
+export const minDoubtedShare = 0.02;
 
 /**
  * The pixels of the turning disc (crop indices, ascending) when something turns through it: when

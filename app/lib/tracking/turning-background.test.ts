@@ -1,6 +1,17 @@
 import { describe, expect, it } from "vitest";
 import { medianBackground } from "./background";
-import { backgroundAt, meanSquareMisfit, ringMedians, turnBack, turnExclusions, turningPixels, turnRateInView, type TurnInView } from "./turning-background";
+import { planDetection } from "./plan";
+import {
+  backgroundAt,
+  meanSquareMisfit,
+  ringMedians,
+  samplesMisfit,
+  turnBack,
+  turnExclusions,
+  turningPixels,
+  turnRateInView,
+  type TurnInView,
+} from "./turning-background";
 
 const width = 121;
 const height = 121;
@@ -123,5 +134,51 @@ describe("the turning background model", () => {
     const dy = moved!.y - turn.cy;
     expect(turn.cx + Math.cos(angle) * dx - Math.sin(angle) * dy).toBeCloseTo(90, 9);
     expect(turn.cy + Math.sin(angle) * dx + Math.cos(angle) * dy).toBeCloseTo(50, 9);
+  });
+
+  it("explains the samples far better than the still model when the pattern turns about the plan's centre, and not when it turns about another point", () => {
+    const angles = Array.from({ length: 21 }, (_, j) => turn.rate * j * 0.4);
+    const build = (centre: { x: number; y: number }) => {
+      const samples = angles.map((a) => {
+        const frame = scene(a, false);
+        if (centre.x === turn.cx && centre.y === turn.cy) return frame;
+        // The same pattern turning about a point 6 px away (as a tilted camera sees the bottom).
+        const moved = new Uint8Array(frame.length);
+        for (let row = 0; row < height; row++) {
+          for (let col = 0; col < width; col++) {
+            const c = Math.min(width - 1, Math.max(0, col - (centre.x - turn.cx)));
+            const r = Math.min(height - 1, Math.max(0, row - (centre.y - turn.cy)));
+            moved[row * width + col] = frame[Math.round(r) * width + Math.round(c)]!;
+          }
+        }
+        return moved;
+      });
+      const still = medianBackground(samples);
+      const misfit = new Float32Array(width * height);
+      meanSquareMisfit(samples, still, width, 0, width * height, [], misfit);
+      const pixels = turningPixels(misfit, width, turn)!;
+      const turned = samples.map((sample, j) => {
+        const out = new Uint8Array(sample.length);
+        turnBack(sample, width, height, turn, angles[j]!, out);
+        return out;
+      });
+      const turning = medianBackground(turned);
+      return samplesMisfit(samples, still, { turn, turning, rings: ringMedians(turning, width, turn), pixels }, width, height, angles);
+    };
+    const about = build({ x: turn.cx, y: turn.cy });
+    expect(about.combined).toBeLessThan(0.1 * about.still);
+    const elsewhere = build({ x: turn.cx + 6, y: turn.cy });
+    expect(elsewhere.combined).toBeGreaterThan(0.5 * elsewhere.still);
+  });
+
+  it("is planned for a float with a tank edge and a turning table, at −Ω under a lab-fixed camera; not for dye or without a rate", () => {
+    const base = { tracer: "float" as const, centre: { x: 60, y: 50 }, tankEdge: { cx: 60, cy: 50, r: 40 }, mirrored: false };
+    const lab = planDetection({ ...base, rotation: { omega: 1.2, cameraMode: "lab" } }, 160, 120);
+    expect(lab.turn).toMatchObject({ cx: 40, cy: 40, rate: -1.2 });
+    expect(lab.turn!.r).toBeGreaterThan(30);
+    expect(planDetection({ ...base, rotation: { omega: 1.2, cameraMode: "rotating" } }, 160, 120).turn!.rate).toBe(1.2);
+    expect(planDetection({ ...base, tracer: "dye", rotation: { omega: 1.2, cameraMode: "lab" } }, 160, 120).turn).toBeNull();
+    expect(planDetection(base, 160, 120).turn).toBeNull();
+    expect(planDetection({ ...base, rotation: { omega: 0, cameraMode: "lab" } }, 160, 120).turn).toBeNull();
   });
 });

@@ -43,6 +43,8 @@ export type TrackTask =
       width: number;
       discs: BackgroundExclusion[];
       out: Float32Array;
+      /** Only pixels on every `stride`-th row and column. */
+      stride: number;
       from: number;
       to: number;
     }
@@ -129,7 +131,7 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   if (task.kind === "misfit") {
     const length = task.model.length;
     const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));
-    meanSquareMisfit(frames, task.model, task.width, task.from, task.to, task.discs, task.out);
+    meanSquareMisfit(frames, task.model, task.width, task.from, task.to, task.discs, task.out, task.stride);
     return null;
   }
   const { plan } = task;

@@ -89,7 +89,8 @@ export function turnExclusions(discs: readonly BackgroundExclusion[], turn: Turn
 
 /**
  * Mean square difference between each sample and a model, pixels [from, to), the samples a disc
- * covers at a pixel left out (where all are covered: +∞). Written into `out`.
+ * covers at a pixel left out (where all are covered: +∞). Written into `out`; with `stride`, only
+ * at pixels whose row and column are multiples of it (the rest are left as they are).
  */
 export function meanSquareMisfit(
   samples: readonly Uint8Array[],
@@ -99,6 +100,7 @@ export function meanSquareMisfit(
   to: number,
   discs: readonly BackgroundExclusion[],
   out: Float32Array,
+  stride = 1,
 ): void {
   const n = samples.length;
   const covered = new Uint8Array(n);
@@ -120,6 +122,7 @@ export function meanSquareMisfit(
       }
     }
     const col = p - r * width;
+    if (r % stride !== 0 || col % stride !== 0) continue;
     if (spans.length > 0) {
       covered.fill(0);
       for (const s of spans) if (col >= s.from && col <= s.to) covered[s.sample] = 1;
@@ -153,27 +156,30 @@ export const minDoubtedShare = 0.02;
 
 /**
  * The pixels of the turning disc (crop indices, ascending) when something turns through it: when
- * more than `minDoubtedShare` of them misfit the still model by well over the typical misfit;
+ * more than `minDoubtedShare` of them (judged on every `stride`-th row and column) misfit the still model by well over the typical misfit;
  * else null, and the still model stands alone. The turning model then applies over the whole
  * disc, since a lamp's light fades out far beyond where it makes the still model fail.
  */
-export function turningPixels(misfit: Float32Array, width: number, turn: TurnInView): Int32Array | null {
+export function turningPixels(misfit: Float32Array, width: number, turn: TurnInView, stride = 1): Int32Array | null {
   const inside: number[] = [];
+  const judged: number[] = [];
   const height = Math.floor(misfit.length / width);
   const r2 = turn.r * turn.r;
   for (let row = Math.max(0, Math.floor(turn.cy - turn.r)); row <= Math.min(height - 1, Math.ceil(turn.cy + turn.r)); row++) {
     for (let col = Math.max(0, Math.floor(turn.cx - turn.r)); col <= Math.min(width - 1, Math.ceil(turn.cx + turn.r)); col++) {
-      if ((col - turn.cx) ** 2 + (row - turn.cy) ** 2 <= r2) inside.push(row * width + col);
+      if ((col - turn.cx) ** 2 + (row - turn.cy) ** 2 > r2) continue;
+      inside.push(row * width + col);
+      if (row % stride === 0 && col % stride === 0) judged.push(row * width + col);
     }
   }
-  if (inside.length === 0) return null;
+  if (judged.length === 0) return null;
   // The noise's share of the misfit: a low quantile, since what turns may pass through most pixels.
-  const values = Float32Array.from(inside, (p) => misfit[p]!).sort();
+  const values = Float32Array.from(judged, (p) => misfit[p]!).sort();
   const typical = values[Math.floor(values.length * typicalQuantile)]!;
   const limit = Math.max(minDoubtedMisfit, doubtFactor * typical);
   let doubted = 0;
-  for (const p of inside) if (misfit[p]! > limit) doubted++;
-  return doubted > minDoubtedShare * inside.length ? Int32Array.from(inside) : null;
+  for (const p of judged) if (misfit[p]! > limit) doubted++;
+  return doubted > minDoubtedShare * judged.length ? Int32Array.from(inside) : null;
 }
 
 /** Both models of a stack, as the searched frames use them. */

@@ -84,6 +84,8 @@ const setup: TrackingSetup = {
   centre: spec.centre,
   tankEdge: { cx: 640, cy: 360, r: 335 },
   mirrored: false,
+  // As the server gives it (the run's set rate and camera mode), for the background's turning model.
+  rotation: { omega, cameraMode: spec.camera },
 };
 /** Keyed by the stack's description and the renderer's source, so a change to either renders anew. */
 const stackKey = createHash("sha256")

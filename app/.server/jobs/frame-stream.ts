@@ -114,7 +114,8 @@ class RunStream {
       size,
       sampled.map((f) => f.sha256),
     );
-    const search = await prepareStackSearch(files, tracking, size, this.controller.signal);
+    // A numbered stack is spaced by the run's frame rate, as the tracking job times it.
+    const search = await prepareStackSearch(files, tracking, size, this.controller.signal, (index) => index / run.frameRateFps);
     const prepared = { search, basis };
     const already = await streamedShas(this.runId, basis);
     for (const sha of already) this.queued.add(sha);

@@ -4,7 +4,8 @@ import { runOmega } from "~/lib/analysis/run-omega";
 import type { RateSettings } from "../tracking/rate-pass";
 
 /** What the tracker needs from a run and its view setup: the tracking job and the streaming tracker read it the same way. */
-export function trackingSetupFrom(run: Pick<Run, "tracer">, setup: ViewSetup): TrackingSetup {
+export function trackingSetupFrom(run: Pick<Run, "tracer" | "cameraMode" | "setRateRpm" | "direction">, setup: ViewSetup): TrackingSetup {
+  const omega = runOmega(run);
   return {
     tracer: run.tracer,
     centre: { x: setup.centreXPx, y: setup.centreYPx },
@@ -13,6 +14,8 @@ export function trackingSetupFrom(run: Pick<Run, "tracer">, setup: ViewSetup): T
         ? { cx: setup.tankEdgeXPx, cy: setup.tankEdgeYPx, r: setup.tankEdgeRPx }
         : null,
     mirrored: setup.mirrored,
+    // What turns in the view, for the background's second model (lib/tracking/turning-background.ts).
+    rotation: Number.isFinite(omega) && omega !== 0 ? { omega, cameraMode: run.cameraMode } : null,
   };
 }
 

@@ -14,6 +14,7 @@ import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../.
 import { trackingQuality } from "../../lib/tracking/quality";
 import { lastWholeFrame, searchedWhole, searchWindows } from "../../lib/tracking/search-windows";
 import type { SearchWindow } from "../../lib/tracking/threshold";
+import { ringMedians, samplesMisfit, turningPixels, turnExclusions, type TurningBackground } from "../../lib/tracking/turning-background";
 import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup } from "../../lib/tracking/types";
 import { decodeFrame, readFrameSize, type FrameSize } from "./decode-frame";
 import { TrackingError } from "./errors";
@@ -197,7 +198,14 @@ function makePlan(setup: TrackingSetup, width: number, height: number): Detectio
  * sample against it, then the median again with a disc around each float, or the ellipse each
  * dye patch covers, left out.
  */
-async function stillBackground(files: string[], plan: DetectionPlan, key: string, workers: TrackingPool, signal: AbortSignal | undefined): Promise<Uint8Array> {
+async function stillBackground(
+  files: string[],
+  plan: DetectionPlan,
+  key: string,
+  workers: TrackingPool,
+  signal: AbortSignal | undefined,
+  frameTime: ((index: number) => number) | undefined,
+): Promise<{ still: Uint8Array; turning: TurningBackground | null }> {
   if (files.length < 3) {
     throw new TrackingError("bad-input", "Tracking a float needs at least 3 frames: the still background is their median.");
   }
@@ -216,7 +224,7 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
       }
     }),
   );
-  const median = async (exclusions?: ExclusionSet, plain?: Uint8Array): Promise<Uint8Array> => {
+  const median = async (exclusions?: ExclusionSet, plain?: Uint8Array, from: Uint8Array = samples): Promise<Uint8Array> => {
     const out = new Uint8Array(new SharedArrayBuffer(length));
     const used = exclusions ? new Uint8Array(new SharedArrayBuffer(pixels)) : undefined;
     const strip = Math.ceil(pixels / threads);
@@ -224,7 +232,7 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
       Array.from({ length: threads }, (_, w) =>
         runTask(workers, {
           kind: "background",
-          samples,
+          samples: from,
           count: indices.length,
           out,
           from: Math.min(pixels, w * strip),
@@ -254,9 +262,75 @@ async function stillBackground(files: string[], plan: DetectionPlan, key: string
   const plain = await median();
   if (signal?.aborted) throw cancelled();
   const discs = tracerExclusions(await findIn(plain), plan.crop, plan.shrink);
-  if (discs.length === 0) return plain;
   if (signal?.aborted) throw cancelled();
-  return median({ width: plan.crop.width, discs }, plain);
+  const still = discs.length === 0 ? plain : await median({ width: plan.crop.width, discs }, plain);
+  if (!plan.turn || !frameTime) return { still, turning: null };
+  const angles = indices.map((index) => plan.turn!.rate * frameTime(index));
+  const turning = await turningModel(plan, workers, samples, indices.length, still, discs, angles, median);
+  return { still, turning };
+}
+
+/**
+ * The second model of a stack whose view has a turning part (lib/tracking/turning-background.ts):
+ * where the still model misfits the samples, the samples turned back into the turning frame and
+ * their median there, the tracer left out as in the still model. Null where nothing turns
+ * through the view (every pixel's misfit is like the rest), so such a stack costs one pass more.
+ */
+/** Whether anything turns is judged on every fourth row and column: a sixteenth of the pass. */
+const misfitStride = 4;
+/** The share of the still model's misfit the two models together must stay below to be used. */
+const keptMisfitShare = 0.5;
+
+async function turningModel(
+  plan: DetectionPlan,
+  workers: TrackingPool,
+  samples: Uint8Array,
+  count: number,
+  still: Uint8Array,
+  discs: ReturnType<typeof tracerExclusions>,
+  angles: number[],
+  median: (exclusions?: ExclusionSet, plain?: Uint8Array, from?: Uint8Array) => Promise<Uint8Array>,
+): Promise<TurningBackground | null> {
+  const turn = plan.turn!;
+  const width = plan.crop.width;
+  const pixels = width * plan.crop.height;
+  const misfit = new Float32Array(new SharedArrayBuffer(pixels * 4));
+  const strip = Math.ceil(pixels / threads);
+  await Promise.all(
+    Array.from({ length: threads }, (_, w) =>
+      runTask(workers, {
+        kind: "misfit",
+        samples,
+        count,
+        model: still,
+        width,
+        discs,
+        out: misfit,
+        stride: misfitStride,
+        from: Math.min(pixels, w * strip),
+        to: Math.min(pixels, (w + 1) * strip),
+      }),
+    ),
+  );
+  const inDisc = turningPixels(misfit, width, turn, misfitStride);
+  if (!inDisc) return null;
+  const turned = new Uint8Array(new SharedArrayBuffer(samples.length));
+  const share = Math.ceil(count / threads);
+  await Promise.all(
+    Array.from({ length: threads }, (_, w) =>
+      runTask(workers, { kind: "turn-back", samples, plan, angles, out: turned, from: Math.min(count, w * share), to: Math.min(count, (w + 1) * share) }),
+    ),
+  );
+  const turnedDiscs = turnExclusions(discs, turn, angles);
+  const turning = await median(turnedDiscs.length ? { width, discs: turnedDiscs } : undefined, undefined, turned);
+  const shared = new Int32Array(new SharedArrayBuffer(inDisc.length * 4));
+  shared.set(inDisc);
+  const model: TurningBackground = { turn, turning, rings: ringMedians(turning, width, turn), pixels: shared };
+  const length = pixels;
+  const frames = Array.from({ length: count }, (_, j) => samples.subarray(j * length, (j + 1) * length));
+  const misfits = samplesMisfit(frames, still, model, width, plan.crop.height, angles);
+  // Kept only where it explains the samples clearly better than the still model alone.
+  return misfits.combined < keptMisfitShare * misfits.still ? model : null;
 }
 
 function defaultStep(plan: DetectionPlan): number {
@@ -281,7 +355,17 @@ export interface StackSearch {
   detect(file: string, index: number, windows?: Promise<SearchWindow[] | null>): Promise<Detection[]>;
 }
 
-export async function prepareStackSearch(files: string[], setup: TrackingSetup, size: FrameSize, signal?: AbortSignal): Promise<StackSearch> {
+/**
+ * `frameTime` gives a frame's time (s) by its index: a view with a turning part (the setup's
+ * rotation) needs it to turn the background's second model; without it the still model is used alone.
+ */
+export async function prepareStackSearch(
+  files: string[],
+  setup: TrackingSetup,
+  size: FrameSize,
+  signal?: AbortSignal,
+  frameTime?: (index: number) => number,
+): Promise<StackSearch> {
   const { width, height } = size;
   const plan = makePlan(setup, width, height);
   const key = planKey(plan);
@@ -289,9 +373,14 @@ export async function prepareStackSearch(files: string[], setup: TrackingSetup, 
   const warmUp = startWorkers(workers);
   warmUp.catch(() => {});
   let background: Uint8Array | null;
+  let turning: TurningBackground | null = null;
   try {
     // Dye without enough frames for a median is found by its colour alone.
-    background = plan.tracer === "dye" && files.length < 3 ? null : await stillBackground(files, plan, key, workers, signal);
+    if (plan.tracer === "dye" && files.length < 3) {
+      background = null;
+    } else {
+      ({ still: background, turning } = await stillBackground(files, plan, key, workers, signal, frameTime));
+    }
   } finally {
     await warmUp;
   }
@@ -312,7 +401,8 @@ export async function prepareStackSearch(files: string[], setup: TrackingSetup, 
         const inWindows = (await windows) ?? null;
         if (signal?.aborted) throw cancelled();
         try {
-          return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background, windows: inWindows })) as Detection[];
+          const turned = turning && frameTime ? { model: turning, angle: turning.turn.rate * frameTime(index) } : null;
+          return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background, windows: inWindows, turning: turned })) as Detection[];
         } catch (error) {
           throw searchFailed(index, error);
         }
@@ -339,7 +429,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   for (let index = startAt; index < total; index++) if (!byFrame.has(index)) toSearch.push(index);
   const size = await readFrameSize(files[0]!, 0);
   // Every frame already searched: no background, no workers, straight to linking.
-  const search = toSearch.length ? await prepareStackSearch(files, setup, size, signal) : null;
+  const search = toSearch.length ? await prepareStackSearch(files, setup, size, signal, (index) => times[index]!) : null;
   const plan = search?.plan ?? makePlan(setup, size.width, size.height);
   const { width, height } = size;
 

@@ -8,6 +8,8 @@ import { createDetector, type Detector } from "../../lib/tracking/detect";
 import type { OpenCv } from "../../lib/tracking/opencv-types";
 import type { DetectionPlan } from "../../lib/tracking/plan";
 import type { SearchWindow } from "../../lib/tracking/threshold";
+import { backgroundAt, meanSquareMisfit, turnBack, type TurningBackground } from "../../lib/tracking/turning-background";
+import type { BackgroundExclusion } from "../../lib/tracking/background";
 import type { Detection } from "../../lib/tracking/types";
 
 export type TrackTask =
@@ -19,6 +21,32 @@ export type TrackTask =
       background: Uint8Array | null;
       /** Where to search first (search-windows.ts); the whole frame when absent. */
       windows?: SearchWindow[] | null;
+      /** The turning model and the angle its part has reached at this frame (turning-background.ts). */
+      turning?: { model: TurningBackground; angle: number } | null;
+    }
+  | {
+      /** Samples [from, to) turned back into the turning frame, each by its angle, into the shared `out`. */
+      kind: "turn-back";
+      samples: Uint8Array;
+      plan: DetectionPlan;
+      angles: number[];
+      out: Uint8Array;
+      from: number;
+      to: number;
+    }
+  | {
+      /** Mean square misfit of the samples against `model` for pixels [from, to), into the shared `out`. */
+      kind: "misfit";
+      samples: Uint8Array;
+      count: number;
+      model: Uint8Array;
+      width: number;
+      discs: BackgroundExclusion[];
+      out: Float32Array;
+      /** Only pixels on every `stride`-th row and column. */
+      stride: number;
+      from: number;
+      to: number;
     }
   | {
       /** Median of the sampled frames for pixels [from, to), written into the shared `out`. */
@@ -90,10 +118,32 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
     medianInto(frames, task.out, task.from, task.to, task.exclusions, task.used, task.channels ?? 1, task.plain);
     return null;
   }
+  if (task.kind === "turn-back") {
+    const { width, height } = task.plan.crop;
+    const length = width * height;
+    const turn = task.plan.turn;
+    if (!turn) throw new Error("This plan has no turning part.");
+    for (let j = task.from; j < task.to; j++) {
+      turnBack(task.samples.subarray(j * length, (j + 1) * length), width, height, turn, task.angles[j]!, task.out.subarray(j * length, (j + 1) * length));
+    }
+    return null;
+  }
+  if (task.kind === "misfit") {
+    const length = task.model.length;
+    const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));
+    meanSquareMisfit(frames, task.model, task.width, task.from, task.to, task.discs, task.out, task.stride);
+    return null;
+  }
   const { plan } = task;
-  return detectorFor(task.planKey, plan).detect(
-    { data: task.image, width: plan.crop.width, height: plan.crop.height, channels: plan.channels },
-    task.background,
-    task.windows ?? undefined,
-  );
+  const { width, height } = plan.crop;
+  let background = task.background;
+  if (task.turning && background) {
+    if (composed?.length !== background.length) composed = new Uint8Array(background.length);
+    backgroundAt(background, task.turning.model, task.image, width, height, task.turning.angle, composed);
+    background = composed;
+  }
+  return detectorFor(task.planKey, plan).detect({ data: task.image, width, height, channels: plan.channels }, background, task.windows ?? undefined);
 }
+
+/** This worker's frame background where a turning model takes part, reused from frame to frame. */
+let composed: Uint8Array | null = null;

@@ -9,6 +9,7 @@
  * given the stack's colour background is instead measured over the whole patch (dye-centre.ts).
  */
 import { createDyeCentre } from "./dye-centre";
+import { floatCentre } from "./float-centre";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect, OpenCv } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
@@ -47,6 +48,8 @@ const weightSigmas = 3;
 const noiseStride = 4;
 const maxBlobs = 254;
 const maxDetections = 50;
+/** A float with more unreadable pixels than this share of its area is not placed (float-centre.ts). */
+const hiddenShare = 0.25;
 
 /** The decoder's crop and channel choice, for a frame already in memory (tests, demo seeding). */
 export function cropForPlan(frame: FrameImage, plan: DetectionPlan): FrameImage {
@@ -226,7 +229,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     return found;
   }
 
-  /** Intensity-weighted centroid at full resolution around one blob. */
+  /** A float's centre from its share of each pixel (float-centre.ts); dye found by colour alone, its saturation-weighted centroid. */
   function centroid(blob: Blob, image: FrameImage, background: Uint8Array | null, offset: number, sigma: number): Detection | null {
     const lab = labels.data;
     const img = image.data;
@@ -235,7 +238,36 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     const row1 = Math.min(height, (blob.rect.y + blob.rect.height) * k + margin);
     const col0 = Math.max(0, blob.rect.x * k - margin);
     const col1 = Math.min(width, (blob.rect.x + blob.rect.width) * k + margin);
-    const floor = background ? offset + weightSigmas * sigma : Math.min(satMin, offset + weightSigmas * sigma);
+    if (background) {
+      // A float: its share of each pixel, unbiased by lines and shadow under it, mirrored where glare hides it (float-centre.ts).
+      const found = floatCentre({
+        image: img,
+        background,
+        width,
+        spans: fullSpans,
+        col0,
+        col1,
+        row0,
+        row1,
+        free: (col, row) => {
+          const owner = lab[Math.min(sh - 1, Math.floor(row / k)) * sw + Math.min(sw - 1, Math.floor(col / k))];
+          return owner === 0 || owner === blob.label;
+        },
+        offset,
+        sigma,
+        floorSigmas: weightSigmas,
+      });
+      // A float largely hidden by glare as bright as its face: its visible part does not place it.
+      if (!found || found.unknown > hiddenShare * blob.pixels) return null;
+      return {
+        x: plan.crop.left + found.x,
+        y: plan.crop.top + found.y,
+        area: blob.pixels,
+        roundness: blob.roundness,
+        intensity: Math.min(255, Math.round(found.peak)),
+      };
+    }
+    const floor = Math.min(satMin, offset + weightSigmas * sigma);
     let sum = 0;
     let sumX = 0;
     let sumY = 0;
@@ -248,17 +280,12 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
         const owner = lab[labelRow + Math.min(sw - 1, Math.floor(col / k))];
         if (owner !== 0 && owner !== blob.label) continue;
         const p = row * width + col;
-        let signal: number;
-        if (background) {
-          signal = img[p]! - background[p]!;
-        } else {
-          hsv(img[3 * p]!, img[3 * p + 1]!, img[3 * p + 2]!, colour);
-          if (colour[2]! < valMin || !hueInRange(colour[0]!, hueMin, hueMax)) continue;
-          signal = colour[1]!;
-        }
+        hsv(img[3 * p]!, img[3 * p + 1]!, img[3 * p + 2]!, colour);
+        if (colour[2]! < valMin || !hueInRange(colour[0]!, hueMin, hueMax)) continue;
+        const signal = colour[1]!;
         const w = signal - floor;
         if (w <= 0) continue;
-        if (signal - (background ? offset : 0) > peak) peak = signal - (background ? offset : 0);
+        if (signal > peak) peak = signal;
         sum += w;
         sumX += w * col;
         sumY += w * row;

@@ -1,5 +1,6 @@
 import type { DyeColour, TrackingSetup } from "./types";
 import { formatFixed } from "../number-format";
+import { turnRateInView, type TurnInView } from "./turning-background";
 
 /** The rectangle of the frame that is decoded and searched, full-frame px. */
 export interface CropBox {
@@ -30,6 +31,11 @@ export interface DetectionPlan {
   maxAreaPx: number;
   minRoundness: number;
   dyeColour: DyeColour;
+  /**
+   * What turns in the view about the rotation centre (crop px) and how fast, when the setup gives
+   * the table's rate and a tank edge: floats only. Null: the still background alone.
+   */
+  turn: TurnInView | null;
 }
 
 /** Any clearly saturated colour: water, the rim and glare are all close to grey. */
@@ -102,7 +108,24 @@ export function planDetection(setup: TrackingSetup, frameWidth: number, frameHei
     maxAreaPx,
     minRoundness,
     dyeColour: { ...defaultDyeColour, ...setup.dyeColour },
+    turn: planTurn(setup, crop, tank),
   };
+}
+
+/**
+ * The turning disc: centred on the rotation centre, as far as the tank edge and the crop allow
+ * (a turned pixel must stay inside the tank and the crop). None for dye, a table at rest or a
+ * rotation centre outside the tank.
+ */
+function planTurn(setup: TrackingSetup, crop: CropBox, tank: DetectionPlan["tank"]): TurnInView | null {
+  const rotation = setup.rotation;
+  if (!rotation || setup.tracer !== "float" || !tank || !finite(rotation.omega) || rotation.omega === 0) return null;
+  if (!finite(setup.centre.x) || !finite(setup.centre.y)) return null;
+  const cx = setup.centre.x - crop.left;
+  const cy = setup.centre.y - crop.top;
+  const r = Math.min(tank.r - Math.hypot(cx - tank.cx, cy - tank.cy), cx - 1, cy - 1, crop.width - 2 - cx, crop.height - 2 - cy);
+  if (!(r >= 8)) return null;
+  return { cx, cy, r, rate: turnRateInView(rotation.omega, rotation.cameraMode, setup.mirrored) };
 }
 
 /** A key that changes whenever the plan would search differently. */

@@ -76,6 +76,12 @@ export interface TrackingSetup {
   maxAreaPx?: number;
   /** Lowest 4πA/P² a blob may have. */
   minRoundness?: number;
+  /**
+   * The table's set rate (Ω, rad/s, counter-clockwise seen from above) and the camera mode: what
+   * turns in the view and how fast, for the background's turning model (turning-background.ts).
+   * Absent or null: everything behind the tracer is taken to stand still in the view.
+   */
+  rotation?: { omega: number; cameraMode: "rotating" | "lab" } | null;
 }
 
 export interface TrackQuality {

@@ -1,0 +1,292 @@
+/**
+ * The part of the scene that turns in the camera's view, as a second background model.
+ *
+ * A lab-fixed camera sees the table turn: the bottom's grid, its marks and the water turn about
+ * the rotation centre at Ω, while the room, the lamps and their glare on the water stay put. A
+ * co-rotating camera sees the opposite: the table stands still and the room and the glare turn at
+ * −Ω. A per-pixel median of frames (background.ts) models only what stands still in the view; what
+ * turns is smeared round the centre, or kept in one place while the frame shows it elsewhere.
+ *
+ * So a second model is made in the turning frame: each sampled frame is turned back about the
+ * centre by the angle the turning part had reached at its time (bilinear), the median is taken
+ * there (the tracer left out as in the still model), and for each searched frame it is turned
+ * forward again by the angle of that frame's time. Pixels the still model already explains over
+ * the samples (mean square misfit within a few times the typical one) keep the still model
+ * alone; where enough do not, each frame, over the whole turning disc, adds the turning model's departure from its ring average to the still
+ * model (backgroundAt): the light a lamp throws on the water adds to the grid seen through it.
+ *
+ * Angles here are image angles (from the column axis towards the row axis, rows pointing down);
+ * `turnRateInView` converts the table's Ω and the camera mode to one.
+ */
+import type { BackgroundExclusion } from "./background";
+
+/** The turning part of a view: centre and radius in crop px, rate in image radians per second. */
+export interface TurnInView {
+  cx: number;
+  cy: number;
+  /** Pixels within this distance of the centre turn; a turned pixel stays inside the crop. */
+  r: number;
+  rate: number;
+}
+
+/**
+ * The image-angle rate of what turns in view. Ω is counter-clockwise seen from above; a view from
+ * above with rows pointing down shows that as a negative image angle, and a mirror flips it. A
+ * lab-fixed camera sees the table turn at Ω; a co-rotating one sees the room turn at −Ω.
+ */
+export function turnRateInView(omega: number, cameraMode: "rotating" | "lab", mirrored: boolean): number {
+  const tableSense = cameraMode === "lab" ? omega : -omega;
+  return mirrored ? tableSense : -tableSense;
+}
+
+/**
+ * Samples the turning frame out of one frame: `out(q) = frame(c + R(angle)(q − c))` inside the
+ * turning disc (bilinear), the frame itself outside it. `angle` is the turning part's angle at the
+ * frame's time.
+ */
+export function turnBack(frame: Uint8Array, width: number, height: number, turn: TurnInView, angle: number, out: Uint8Array): void {
+  if (frame.length !== width * height || out.length !== frame.length) throw new Error("A turned frame must match the frame's size.");
+  const cos = Math.cos(angle);
+  const sin = Math.sin(angle);
+  const r2 = turn.r * turn.r;
+  for (let row = 0; row < height; row++) {
+    const dy = row - turn.cy;
+    for (let col = 0; col < width; col++) {
+      const p = row * width + col;
+      const dx = col - turn.cx;
+      if (dx * dx + dy * dy > r2) {
+        out[p] = frame[p]!;
+        continue;
+      }
+      out[p] = Math.round(bilinear(frame, width, height, turn.cx + cos * dx - sin * dy, turn.cy + sin * dx + cos * dy));
+    }
+  }
+}
+
+function bilinear(image: Uint8Array, width: number, height: number, x: number, y: number): number {
+  const x0 = Math.min(width - 2, Math.max(0, Math.floor(x)));
+  const y0 = Math.min(height - 2, Math.max(0, Math.floor(y)));
+  const fx = Math.min(1, Math.max(0, x - x0));
+  const fy = Math.min(1, Math.max(0, y - y0));
+  const p = y0 * width + x0;
+  const top = image[p]! + fx * (image[p + 1]! - image[p]!);
+  const bottom = image[p + width]! + fx * (image[p + width + 1]! - image[p + width]!);
+  return top + fy * (bottom - top);
+}
+
+/** The still model's exclusion discs moved into the turning frame (sample j turned back by its angle). */
+export function turnExclusions(discs: readonly BackgroundExclusion[], turn: TurnInView, angles: readonly number[]): BackgroundExclusion[] {
+  return discs.map((d) => {
+    const angle = angles[d.sample] ?? 0;
+    const cos = Math.cos(angle);
+    const sin = Math.sin(angle);
+    const dx = d.x - turn.cx;
+    const dy = d.y - turn.cy;
+    // The inverse of turnBack's map: q = c + R(−angle)(p − c).
+    return { ...d, x: turn.cx + cos * dx + sin * dy, y: turn.cy - sin * dx + cos * dy };
+  });
+}
+
+/**
+ * Mean square difference between each sample and a model, pixels [from, to), the samples a disc
+ * covers at a pixel left out (where all are covered: +∞). Written into `out`; with `stride`, only
+ * at pixels whose row and column are multiples of it (the rest are left as they are).
+ */
+export function meanSquareMisfit(
+  samples: readonly Uint8Array[],
+  model: Uint8Array,
+  width: number,
+  from: number,
+  to: number,
+  discs: readonly BackgroundExclusion[],
+  out: Float32Array,
+  stride = 1,
+): void {
+  const n = samples.length;
+  const covered = new Uint8Array(n);
+  let row = -1;
+  const spans: { sample: number; from: number; to: number }[] = [];
+  for (let p = from; p < to; p++) {
+    const r = Math.floor(p / width);
+    if (r !== row) {
+      row = r;
+      spans.length = 0;
+      for (const d of discs) {
+        // The disc's bounding circle: an ellipse's largest extent is r·√(largest eigenvalue); a disc's is r.
+        const reach = d.shape ? d.r * Math.sqrt(Math.max(d.shape.xx, d.shape.yy) + Math.abs(d.shape.xy)) : d.r;
+        const dy = r - d.y;
+        const half2 = reach * reach - dy * dy;
+        if (half2 < 0) continue;
+        const half = Math.sqrt(half2);
+        spans.push({ sample: d.sample, from: d.x - half, to: d.x + half });
+      }
+    }
+    const col = p - r * width;
+    if (r % stride !== 0 || col % stride !== 0) continue;
+    if (spans.length > 0) {
+      covered.fill(0);
+      for (const s of spans) if (col >= s.from && col <= s.to) covered[s.sample] = 1;
+    }
+    const m = model[p]!;
+    let sum = 0;
+    let count = 0;
+    for (let j = 0; j < n; j++) {
+      if (spans.length > 0 && covered[j]) continue;
+      const d = samples[j]![p]! - m;
+      sum += d * d;
+      count++;
+    }
+    out[p] = count > 0 ? sum / count : Number.POSITIVE_INFINITY;
+  }
+}
+
+/**
+ * How many times the typical misfit a pixel's may reach before the still model is doubted there.
+ * The typical misfit is the tenth percentile over the turning disc: for noise alone a mean of 21
+ * squares, about 0.6 σ², so the limit is about 2.5 σ², which noise passes at a fraction of a
+ * percent of pixels.
+ */
+export const doubtFactor = 4;
+const typicalQuantile = 0.1;
+/** Lowest misfit (grey levels squared) that is doubted, for nearly noiseless frames. */
+const minDoubtedMisfit = 9;
+
+/** The share of the turning disc's pixels that must be doubted before a turning model is made. */
+export const minDoubtedShare = 0.02;
+
+/**
+ * The pixels of the turning disc (crop indices, ascending) when something turns through it: when
+ * more than `minDoubtedShare` of them (judged on every `stride`-th row and column) misfit the still model by well over the typical misfit;
+ * else null, and the still model stands alone. The turning model then applies over the whole
+ * disc, since a lamp's light fades out far beyond where it makes the still model fail.
+ */
+export function turningPixels(misfit: Float32Array, width: number, turn: TurnInView, stride = 1): Int32Array | null {
+  const inside: number[] = [];
+  const judged: number[] = [];
+  const height = Math.floor(misfit.length / width);
+  const r2 = turn.r * turn.r;
+  for (let row = Math.max(0, Math.floor(turn.cy - turn.r)); row <= Math.min(height - 1, Math.ceil(turn.cy + turn.r)); row++) {
+    for (let col = Math.max(0, Math.floor(turn.cx - turn.r)); col <= Math.min(width - 1, Math.ceil(turn.cx + turn.r)); col++) {
+      if ((col - turn.cx) ** 2 + (row - turn.cy) ** 2 > r2) continue;
+      inside.push(row * width + col);
+      if (row % stride === 0 && col % stride === 0) judged.push(row * width + col);
+    }
+  }
+  if (judged.length === 0) return null;
+  // The noise's share of the misfit: a low quantile, since what turns may pass through most pixels.
+  const values = Float32Array.from(judged, (p) => misfit[p]!).sort();
+  const typical = values[Math.floor(values.length * typicalQuantile)]!;
+  const limit = Math.max(minDoubtedMisfit, doubtFactor * typical);
+  let doubted = 0;
+  for (const p of judged) if (misfit[p]! > limit) doubted++;
+  return doubted > minDoubtedShare * judged.length ? Int32Array.from(inside) : null;
+}
+
+/** Both models of a stack, as the searched frames use them. */
+export interface TurningBackground {
+  turn: TurnInView;
+  /** The median in the turning frame at angle 0 (crop px). */
+  turning: Uint8Array;
+  /** The turning model's median round each ring about the centre (1 px rings): the part both models hold. */
+  rings: Float32Array;
+  /** Crop pixels where the turning model takes part (turningPixels). */
+  pixels: Int32Array;
+}
+
+/**
+ * The median of the turning model over each 1 px ring about the centre, ring i holding the pixels
+ * at distance [i, i + 1). A ring's median is what does not depend on the angle (the illumination
+ * a ring gets on average, the rings of a grid), which the still model holds too.
+ */
+export function ringMedians(turning: Uint8Array, width: number, turn: TurnInView): Float32Array {
+  const count = Math.ceil(turn.r) + 1;
+  const rings: number[][] = Array.from({ length: count }, () => []);
+  const height = Math.floor(turning.length / width);
+  for (let row = Math.max(0, Math.floor(turn.cy - turn.r)); row <= Math.min(height - 1, Math.ceil(turn.cy + turn.r)); row++) {
+    for (let col = Math.max(0, Math.floor(turn.cx - turn.r)); col <= Math.min(width - 1, Math.ceil(turn.cx + turn.r)); col++) {
+      const i = Math.floor(Math.hypot(col - turn.cx, row - turn.cy));
+      if (i < count) rings[i]!.push(turning[row * width + col]!);
+    }
+  }
+  const out = new Float32Array(count);
+  let last = 0;
+  rings.forEach((values, i) => {
+    if (values.length > 0) {
+      values.sort((a, b) => a - b);
+      last = values[values.length >> 1]!;
+    }
+    out[i] = last;
+  });
+  return out;
+}
+
+/**
+ * The background of one frame, whose turning part stands at `angle`: the still model, and at the
+ * turning disc's pixels the turning model's departure from its ring median added to it. Both models see
+ * the same ring average (the illumination, the grid's rings), so the sum counts it once: a lamp's
+ * glare on the water over a grid line is the line from the one model plus the glare from the
+ * other, where choosing either model alone would leave one of them in the difference. Written into
+ * `out`.
+ */
+export function backgroundAt(
+  still: Uint8Array,
+  model: TurningBackground,
+  frame: Uint8Array,
+  width: number,
+  height: number,
+  angle: number,
+  out: Uint8Array,
+): void {
+  if (still.length !== width * height || frame.length !== still.length || out.length !== still.length) {
+    throw new Error("The background, the frame and the output must be the same size.");
+  }
+  out.set(still);
+  const { turn, turning, rings, pixels } = model;
+  // The turning model at this frame: a pixel p shows turning-frame point c + R(−angle)(p − c).
+  const cos = Math.cos(angle);
+  const sin = Math.sin(angle);
+  const last = rings.length - 1;
+  for (let i = 0; i < pixels.length; i++) {
+    const p = pixels[i]!;
+    const row = (p / width) | 0;
+    const dx = p - row * width - turn.cx;
+    const dy = row - turn.cy;
+    const turned = bilinear(turning, width, height, turn.cx + cos * dx + sin * dy, turn.cy - sin * dx + cos * dy);
+    // The ring median at this distance, between the two nearest rings' (ring i is centred on i + ½).
+    const at = Math.min(last, Math.max(0, Math.hypot(dx, dy) - 0.5));
+    const i0 = Math.min(last - 1, Math.floor(at));
+    const ring = i0 < 0 ? rings[0]! : rings[i0]! + (at - i0) * (rings[i0 + 1]! - rings[i0]!);
+    // In darkness (255 − value) the two models multiply: glare lets through a share of the bottom's darkness.
+    const value = 255 - ((255 - still[p]!) * (255 - turned)) / Math.max(1, 255 - ring);
+    out[p] = value <= 0 ? 0 : value >= 255 ? 255 : Math.round(value);
+  }
+}
+
+/**
+ * The mean square difference between the samples and each background over the turning disc:
+ * the still model alone, and the still and turning models together (each sample at its angle).
+ * Where the turning part does not turn about the centre as the plan says (a camera not quite
+ * overhead sees the bottom turn about another point than the water's surface), the turning model
+ * is blurred and the two together explain the samples worse than the still model alone.
+ */
+export function samplesMisfit(
+  samples: readonly Uint8Array[],
+  still: Uint8Array,
+  model: TurningBackground,
+  width: number,
+  height: number,
+  angles: readonly number[],
+): { still: number; combined: number } {
+  const combined = new Uint8Array(still.length);
+  let stillSum = 0;
+  let combinedSum = 0;
+  samples.forEach((sample, j) => {
+    backgroundAt(still, model, sample, width, height, angles[j]!, combined);
+    for (const p of model.pixels) {
+      stillSum += (sample[p]! - still[p]!) ** 2;
+      combinedSum += (sample[p]! - combined[p]!) ** 2;
+    }
+  });
+  const count = Math.max(1, samples.length * model.pixels.length);
+  return { still: stillSum / count, combined: combinedSum / count };
+}

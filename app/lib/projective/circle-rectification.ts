@@ -86,6 +86,6 @@ export function rectifyCircle(ellipse: Ellipse, radius: number, centreImage: Poi
     [0, 0, 1],
   ]);
   const homography = multiply(A, multiply(Hp, T));
-  const vanishingLine = centreImage ? (applyTo(transpose(T), l)) : null;
+  const vanishingLine = centreImage ? applyTo(transpose(T), l) : null;
   return { homography, vanishingLine };
 }

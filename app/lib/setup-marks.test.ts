@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { nudge, setupMarks, type SetupValues } from "./setup-marks";
+import { marksOf, nudge, setupMarks, type SetupValues } from "./setup-marks";
 
 const frame = { width: 640, height: 360 };
 const values: SetupValues = {
@@ -12,6 +12,11 @@ const values: SetupValues = {
   scaleLengthCm: 10,
   rateMark: { x: 400, y: 120 },
   mirrored: false,
+  rimPoints: [
+    { x: 170, y: 180 },
+    { x: 470, y: 181 },
+  ],
+  knownPoints: [],
 };
 const mark = (id: string) => {
   const m = setupMarks.find((s) => s.id === id);
@@ -51,5 +56,19 @@ describe("nudging a view setup's marks", () => {
       { x: 200, y: 300 },
       { x: 400, y: 120 },
     ]);
+  });
+});
+
+describe("rim points as marks", () => {
+  it("lists one mark per rim point after the fixed ones, and nudges only the chosen point", () => {
+    const marks = marksOf(values);
+    expect(marks.map((m) => m.id).slice(-2)).toEqual(["rim-1", "rim-2"]);
+    const second = marks.find((m) => m.id === "rim-2")!;
+    const moved = nudge(values, second, "ArrowLeft", true, frame);
+    expect(moved.rimPoints).toEqual([
+      { x: 170, y: 180 },
+      { x: 460, y: 181 },
+    ]);
+    expect(moved.centre).toEqual(values.centre);
   });
 });

@@ -1,4 +1,5 @@
 import type { Point } from "./geometry";
+import type { KnownPoint } from "./projective/view-correction";
 
 /**
  * The marks of a view setup as one list: each knows where it sits and how to move it, so the
@@ -13,6 +14,10 @@ export interface SetupValues {
   mirrored: boolean;
   /** A mark on the turntable, for reading the table's rate from the frames (lab-fixed camera). */
   rateMark: Point | null;
+  /** A camera not quite overhead (Decision 69): points on the tank's edge at the water's surface (five or more make an ellipse). */
+  rimPoints: Point[];
+  /** …or points whose place on the table is known. */
+  knownPoints: KnownPoint[];
 }
 
 export interface SetupMark {
@@ -45,6 +50,34 @@ export const setupMarks: SetupMark[] = [
   })),
   { id: "rate-mark", label: "Mark on the table", at: (v) => v.rateMark, moveTo: (v, p) => ({ ...v, rateMark: p }) },
 ];
+
+/** The i-th rim point as a mark: selected, nudged and listed like the others. */
+export function rimPointMark(i: number): SetupMark {
+  return {
+    id: `rim-${i + 1}`,
+    label: `Rim point ${i + 1}`,
+    at: (v) => v.rimPoints[i] ?? null,
+    moveTo: (v, p) => (i < v.rimPoints.length ? { ...v, rimPoints: v.rimPoints.map((q, j) => (j === i ? p : q)) } : v),
+  };
+}
+
+/** The i-th known point as a mark (its image position; its place on the table is typed). */
+export function knownPointMark(i: number): SetupMark {
+  return {
+    id: `known-${i + 1}`,
+    label: `Known point ${i + 1}`,
+    at: (v) => {
+      const k = v.knownPoints[i];
+      return k ? { x: k.x, y: k.y } : null;
+    },
+    moveTo: (v, p) => (i < v.knownPoints.length ? { ...v, knownPoints: v.knownPoints.map((q, j) => (j === i ? { ...q, x: p.x, y: p.y } : q)) } : v),
+  };
+}
+
+/** Every mark of these values: the fixed ones, then one per rim point and per known point. */
+export function marksOf(v: SetupValues): SetupMark[] {
+  return [...setupMarks, ...v.rimPoints.map((_, i) => rimPointMark(i)), ...v.knownPoints.map((_, i) => knownPointMark(i))];
+}
 
 export const nudgeKeys: Record<string, Point> = { ArrowLeft: { x: -1, y: 0 }, ArrowRight: { x: 1, y: 0 }, ArrowUp: { x: 0, y: -1 }, ArrowDown: { x: 0, y: 1 } };
 

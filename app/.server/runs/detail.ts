@@ -1,3 +1,4 @@
+import { correctionOfSetup } from "~/lib/projective/stored-marks";
 import { Equipment, Frame, Run, Track, User, ViewSetup } from "../db";
 import { latestJob, serializeJob } from "../jobs/tracking-queue";
 import { serializeEquipment } from "../equipment";
@@ -63,6 +64,7 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
           edge: setup.tankEdgeRPx ? { cx: setup.tankEdgeXPx, cy: setup.tankEdgeYPx, r: setup.tankEdgeRPx } : null,
           pxPerM: setup.scalePxPerM,
           mirrored: setup.mirrored,
+          ...tiltOfSetup(setup),
         }
       : null,
     job: serializeJob(job),
@@ -84,3 +86,9 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
   };
 }
 export type RunPageData = Awaited<ReturnType<typeof runPageData>>;
+
+/** A camera not quite overhead: the correction the check applies (Decision 69), its summary, or why the stored marks give none. */
+function tiltOfSetup(setup: ViewSetup) {
+  const { correction, error } = correctionOfSetup(setup);
+  return { correction: correction?.homography ?? null, tilt: correction?.summary ?? null, tiltError: error };
+}

@@ -1,3 +1,4 @@
+import { correctionOfSetup } from "~/lib/projective/stored-marks";
 import { Run, Track, ViewSetup } from "../db";
 import { currentCheck } from "./current-check";
 import { RunError } from "./service";
@@ -55,7 +56,15 @@ export async function tracksCsv(runId: number): Promise<{ filename: string; csv:
     }
   }
   const pxPerM = setup?.scalePxPerM || checkPxPerM;
-  const view: ViewGeometry | null = setup && pxPerM ? { centre: { x: setup.centreXPx, y: setup.centreYPx }, pxPerM, mirrored: setup.mirrored } : null;
+  const view: ViewGeometry | null =
+    setup && pxPerM
+      ? {
+          centre: { x: setup.centreXPx, y: setup.centreYPx },
+          pxPerM,
+          mirrored: setup.mirrored,
+          correction: correctionOfSetup(setup).correction?.homography ?? null,
+        }
+      : null;
 
   const columns = view ? ["track", "t_s", "x_px", "y_px", "x_m", "y_m"] : ["track", "t_s", "x_px", "y_px"];
   const rows: CsvCell[][] = [];

@@ -4,6 +4,7 @@
  * a field added here without the schema, or left out, fails the typecheck; the schema is the
  * OpenAPI document's, so the document and the answers cannot drift apart.
  */
+import { correctionOfSetup, parseKnownPoints, parseRimPoints } from "~/lib/projective/stored-marks";
 import type { Run, TheoryCheck, Track, ViewSetup } from "../db";
 import type { RunLinkView, RunListItemView, RunView, TheoryCheckView } from "../openapi/responses/runs";
 import type { z } from "zod";
@@ -88,6 +89,13 @@ function parseJson(text: string | null): unknown {
   }
 }
 
+function tiltSummary(s: ViewSetup) {
+  const summary = correctionOfSetup(s).correction?.summary;
+  return summary
+    ? { method: summary.method, tiltDeg: summary.tiltDeg, towardDeg: summary.towardDeg, sideKnown: summary.sideKnown, residualPx: summary.residualPx }
+    : null;
+}
+
 export function serializeViewSetup(s: ViewSetup | null): z.infer<typeof viewSetupSchema> | null {
   if (!s) return null;
   return {
@@ -98,6 +106,9 @@ export function serializeViewSetup(s: ViewSetup | null): z.infer<typeof viewSetu
     scalePxPerM: s.scalePxPerM,
     scalePoints: parseJson(s.scalePoints),
     mirrored: s.mirrored,
+    rimPoints: parseRimPoints(s.rimPoints),
+    knownPoints: parseKnownPoints(s.knownPoints),
+    tiltCorrection: tiltSummary(s),
     updatedAt: s.updatedAt.toISOString(),
   };
 }

@@ -78,6 +78,9 @@ export async function carrySetupOver(runId: number, userId: number): Promise<Car
         mirrored: s.mirrored,
         rateMarkXPx: s.rateMarkXPx,
         rateMarkYPx: s.rateMarkYPx,
+        // The camera's lean goes with its mount, so the tilt marks come over with the rest.
+        rimPoints: s.rimPoints,
+        knownPoints: s.knownPoints,
         createdById: userId,
       },
       { transaction },

@@ -1,3 +1,4 @@
+import { correctionOfSetup } from "~/lib/projective/stored-marks";
 import { Equipment, Run, TheoryCheck, Track, ViewSetup, locking, sequelize } from "../db";
 import { calibrationsForCheck } from "./applied-calibrations";
 import { getLabSettings } from "../settings";
@@ -52,6 +53,8 @@ export async function theoryInputFor(run: Run): Promise<{ inputs: { track: Track
       centre: { x: setup.centreXPx, y: setup.centreYPx },
       pxPerM: applied.pxPerM,
       mirrored: setup.mirrored,
+      // A camera not quite overhead: positions corrected before everything else (Decision 69).
+      correction: correctionOfSetup(setup).correction?.homography ?? null,
     },
     omegaSet: runOmega(run),
     omegaCalibrated,

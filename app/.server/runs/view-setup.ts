@@ -2,9 +2,9 @@ import { Run, ViewSetup, locking, sequelize } from "../db";
 import { inputsChanged } from "./rechecks";
 
 type SetupRow = ViewSetup["_creationAttributes"];
-/** The mark on the table (migration 0013) may be left out: an existing setup then keeps its own. */
-export type ViewSetupValues = Omit<SetupRow, "id" | "createdAt" | "updatedAt" | "rateMarkXPx" | "rateMarkYPx"> &
-  Partial<Pick<SetupRow, "rateMarkXPx" | "rateMarkYPx">>;
+/** The mark on the table (migration 0013) and the tilt marks (0016) may be left out: an existing setup then keeps its own. */
+export type ViewSetupValues = Omit<SetupRow, "id" | "createdAt" | "updatedAt" | "rateMarkXPx" | "rateMarkYPx" | "rimPoints" | "knownPoints"> &
+  Partial<Pick<SetupRow, "rateMarkXPx" | "rateMarkYPx" | "rimPoints" | "knownPoints">>;
 
 /**
  * Saves the run's view setup (one per run, a unique index); a changed setup makes the check out of

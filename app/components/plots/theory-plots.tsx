@@ -1,3 +1,4 @@
+import type { ViewGeometry } from "~/lib/analysis/frames";
 import { CartesianGrid, Line, LineChart, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis, ZAxis } from "recharts";
 import type { TheoryCheckResult } from "~/lib/analysis/check";
 import { imageToTable } from "~/lib/analysis/frames";
@@ -68,7 +69,7 @@ const yLabel = (value: string) => ({ value, angle: -90, position: "insideLeft" a
 
 export interface PlotContext {
   result: TheoryCheckResult;
-  setup: { centre: { x: number; y: number }; pxPerM: number | null; mirrored: boolean };
+  setup: ViewGeometry;
 }
 
 export function TheoryPlots({ result, setup }: PlotContext) {

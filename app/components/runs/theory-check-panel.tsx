@@ -1,3 +1,4 @@
+import type { ViewGeometry } from "~/lib/analysis/frames";
 import type { StoredCheckView } from "./types";
 import { TheoryPlots } from "~/components/plots/theory-plots";
 import { formatNumber } from "~/lib/number-format";
@@ -65,15 +66,7 @@ export function TrackChecksTable({ check }: { check: Pick<StoredCheckView, "chec
 }
 
 /** The theory check as a technician reads it: the verdict and its reason first, then the numbers, then the plots. */
-export function TheoryCheckPanel({
-  check,
-  setup,
-  printable,
-}: {
-  check: StoredCheckView;
-  setup: { centre: { x: number; y: number }; pxPerM: number | null; mirrored: boolean };
-  printable?: boolean;
-}) {
+export function TheoryCheckPanel({ check, setup, printable }: { check: StoredCheckView; setup: ViewGeometry; printable?: boolean }) {
   const time = useLabTime();
   const r = check.result;
   const tone =

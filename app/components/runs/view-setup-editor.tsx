@@ -3,7 +3,8 @@ import { circleThroughThreePoints, distance, type Point } from "~/lib/geometry";
 import { Button } from "~/components/ui/button";
 import { TextField } from "~/components/ui/field";
 import { formatFixed } from "~/lib/number-format";
-import { nudge, setupMarks, type SetupValues } from "~/lib/setup-marks";
+import { marksOf, nudge, type SetupValues } from "~/lib/setup-marks";
+import { liveTilt, TiltOverlay, TiltPanel } from "./tilt-marks";
 import { NOT_A_NUMBER, readNumber } from "~/lib/number-input";
 
 export type { SetupValues };
@@ -11,14 +12,21 @@ export type { SetupValues };
 /** How far the frame can be enlarged: at 8× a 1280 px frame on a 315 px phone shows about 2 image px per screen px. */
 const maxZoom = 8;
 
-type Tool = "centre" | "rim" | "scale" | "mark";
+type Tool = "centre" | "rim" | "scale" | "mark" | "tilt";
 const toolText: Record<Tool, string> = {
   centre: "Click the rotation centre (the table's axis).",
   rim: "Click three points on the tank's inner rim; the circle through them is the region searched.",
   scale: "Click the two ends of a known length (a ruler or marks on the tank floor).",
   mark: "Click a small, distinct mark on the turntable away from the centre (a lab-fixed camera only): the table's rate is read from how it turns.",
+  tilt: "Click five or more points where the water meets the tank wall, spread all round: each click adds one. Their ellipse shows how far the camera leans.",
 };
-const toolLabel: Record<Tool, string> = { centre: "Rotation centre", rim: "Tank edge (3 rim points)", scale: "Scale (2 points)", mark: "Mark on the table" };
+const toolLabel: Record<Tool, string> = {
+  centre: "Rotation centre",
+  rim: "Tank edge (3 rim points)",
+  scale: "Scale (2 points)",
+  mark: "Mark on the table",
+  tilt: "Tilt (5+ rim points)",
+};
 
 /** Marks the view on one frame with an SVG drawn over the image in its own pixel coordinates. */
 export function ViewSetupEditor({
@@ -46,7 +54,9 @@ export function ViewSetupEditor({
   const viewport = useRef<HTMLDivElement>(null);
   // Marks keep their size on screen at every zoom, so a zoomed view is as precise as it looks.
   const mark = Math.max(4, Math.round(Math.min(width, height) / 120)) / zoom;
-  const selectedMark = setupMarks.find((m) => m.id === selected && m.at(v));
+  const marks = marksOf(v);
+  const selectedMark = marks.find((m) => m.id === selected && m.at(v));
+  const tilt = liveTilt(v);
   const selectedAt = selectedMark?.at(v) ?? null;
 
   // Where the zoomed frame should scroll once the next render has laid it out at its new size.
@@ -117,6 +127,12 @@ export function ViewSetupEditor({
       setSelected("rate-mark");
       return;
     }
+    if (tool === "tilt") {
+      if (v.knownPoints.length) return;
+      setV({ ...v, rimPoints: [...v.rimPoints, p] });
+      setSelected(`rim-${v.rimPoints.length + 1}`);
+      return;
+    }
     const next = [...clicks, p];
     if (tool === "rim" && next.length === 3) {
       const c = circleThroughThreePoints(next[0]!, next[1]!, next[2]!);
@@ -179,7 +195,7 @@ export function ViewSetupEditor({
     <div className="grid gap-6 xl:grid-cols-[2fr_1fr]">
       <div>
         <div className="mb-3 flex flex-wrap gap-2" role="toolbar" aria-label="What to mark">
-          {(["centre", "rim", "scale", "mark"] as Tool[]).map((t) => (
+          {(["centre", "rim", "scale", "mark", "tilt"] as Tool[]).map((t) => (
             <Button
               key={t}
               type="button"
@@ -273,6 +289,7 @@ export function ViewSetupEditor({
                   strokeWidth={mark / 2}
                 />
               ) : null}
+              <TiltOverlay points={v.rimPoints} correction={tilt.correction} mark={mark} />
               {selectedAt ? (
                 <rect
                   x={selectedAt.x - mark * 4}
@@ -297,7 +314,7 @@ export function ViewSetupEditor({
         </p>
         <fieldset className="mt-3 flex flex-col gap-1">
           <legend className="mb-1 font-bold">Mark moved by the arrow keys</legend>
-          {setupMarks.map((m) => {
+          {marks.map((m) => {
             const at = m.at(v);
             return (
               <label key={m.id} className={`flex min-h-12 items-center gap-3 ${at ? "" : "text-muted"}`}>
@@ -406,6 +423,14 @@ export function ViewSetupEditor({
             Clear the mark on the table
           </Button>
         ) : null}
+        <TiltPanel
+          v={v}
+          error={errors.rimPoints ?? errors.knownPoints}
+          onClear={() => {
+            setV({ ...v, rimPoints: [], knownPoints: [] });
+            if (selected.startsWith("rim-") || selected.startsWith("known-")) setSelected("");
+          }}
+        />
         <label className="flex min-h-12 items-center gap-3 font-bold">
           <input type="checkbox" name="mirrored" className="h-6 w-6" checked={v.mirrored} onChange={(e) => setV({ ...v, mirrored: e.target.checked })} />
           The image is mirrored (camera under the table, or a mirror in the light path)

@@ -7,6 +7,7 @@ import { mean } from "simple-statistics";
 import { fitCircle } from "./circle-fit";
 import { fitCoriolis, inertialPeriodFromAngle, predictedRadius, turningRate } from "./coriolis-fit";
 import type { TimedPoint, ViewGeometry } from "./frames";
+import { invert, type Mat3 } from "../projective/matrix";
 import { imageToTable, reRotate, rotatingFrameToImage, trackToRotatingFrame } from "./frames";
 import { formatFixed, formatNumber } from "../number-format";
 import { correctFrameTimes } from "../calibrations-applied";
@@ -37,6 +38,13 @@ export const MIN_PERIOD_FRACTION = 0.25;
 export const MAX_VELOCITY_NOISE_SHARE = 1 / 32;
 /** More than this fraction of unusable points means the track itself is in doubt. */
 const MAX_LEFT_OUT_FRACTION = 0.2;
+
+/** A stored correction read back: three rows of three finite numbers, invertible. */
+function isHomography(m: unknown): boolean {
+  return (
+    Array.isArray(m) && m.length === 3 && m.every((row) => Array.isArray(row) && row.length === 3 && row.every(isFiniteNumber)) && invert(m as Mat3) !== null
+  );
+}
 
 /** Spread of points along and across their main direction (principal axes). */
 function principalSpread(points: readonly { x: number; y: number }[]): { major: number; minor: number } {
@@ -131,7 +139,10 @@ function check(input: TheoryCheckInput): TheoryCheckResult {
     return inconclusive("The timing check in force gives no usable correction of the frame times (a factor or its uncertainty is missing).", rate);
   }
   const timeFactor = timing ? timing.factor : 1;
-  const view: ViewGeometry = { centre: setup.centre, pxPerM: setup.pxPerM, mirrored: setup.mirrored === true };
+  if (setup.correction && !isHomography(setup.correction)) {
+    return inconclusive("The view setup's tilt correction is not a usable 3 × 3 matrix of numbers.", rate);
+  }
+  const view: ViewGeometry = { centre: setup.centre, pxPerM: setup.pxPerM, mirrored: setup.mirrored === true, correction: setup.correction ?? null };
   const lengthUnit = view.pxPerM === null ? "px" : "m";
   const pxPerUnit = view.pxPerM ?? 1;
 

@@ -78,3 +78,28 @@ describe("de-rotation of a lab-fixed view", () => {
     expect(drawn.x).toBeCloseTo(img.x, 9);
   });
 });
+
+describe("a camera not quite overhead, corrected in imageToTable and tableToImage", () => {
+  it("puts an exactly projected table point back where it lies on the table, and draws it back onto the image", async () => {
+    const { tiltedCamera } = await import("../../../tests/fixtures/tilted-camera");
+    const { viewCorrection } = await import("../projective/view-correction");
+    const camera = tiltedCamera(6, 120);
+    const centre = camera.project({ x: 0, y: 0 });
+    const rim = Array.from({ length: 8 }, (_, i) => camera.project({ x: 14 * Math.cos((i * Math.PI) / 4), y: 14 * Math.sin((i * Math.PI) / 4) }));
+    const { homography } = viewCorrection({ kind: "rim", points: rim }, centre, false);
+    const tilted = { centre, pxPerM: 1200, mirrored: false, correction: homography };
+    const plain = { centre, pxPerM: 1200, mirrored: false };
+    const p = { x: 0.09, y: -0.05 };
+    const seen = camera.project({ x: p.x * 100, y: p.y * 100 });
+    const withCorrection = imageToTable(seen, tilted);
+    const back = tableToImage(withCorrection, tilted);
+    expect(back.x).toBeCloseTo(seen.x, 9);
+    expect(back.y).toBeCloseTo(seen.y, 9);
+    // Distances between two corrected points keep the table's ratio; the uncorrected ones do not.
+    const q = { x: -0.11, y: 0.02 };
+    const seenQ = camera.project({ x: q.x * 100, y: q.y * 100 });
+    const ratio = (a: { x: number; y: number }, b: { x: number; y: number }) => Math.hypot(a.x, a.y) / Math.hypot(b.x, b.y);
+    expect(ratio(imageToTable(seen, tilted), imageToTable(seenQ, tilted))).toBeCloseTo(ratio(p, q), 9);
+    expect(Math.abs(ratio(imageToTable(seen, plain), imageToTable(seenQ, plain)) - ratio(p, q))).toBeGreaterThan(1e-3);
+  });
+});

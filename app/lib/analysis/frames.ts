@@ -1,7 +1,13 @@
 /**
  * From image pixels to the right-handed frame seen from above (x right, y up, z up the axis,
- * origin on the rotation axis), and from a lab-fixed view to the rotating frame.
+ * origin on the rotation axis), and from a lab-fixed view to the rotating frame. A camera not
+ * quite overhead is undone here and only here: the view's correction (a homography from the view
+ * setup's rim or known points, app/lib/projective/view-correction.ts) takes image pixels to an
+ * overhead view's before the centre, scale and mirror apply, so the fit, the check, exports and
+ * plots all see corrected positions.
  */
+import { project } from "../projective/homography";
+import { invert, type Mat3 } from "../projective/matrix";
 
 export interface ImagePoint {
   /** column, px */
@@ -25,6 +31,8 @@ export interface ViewGeometry {
   pxPerM: number | null;
   /** True when the image shows the table from below or mirrored: it flips the sense of rotation. */
   mirrored: boolean;
+  /** Image px → the px of an overhead view (row-major 3 × 3), for a camera not quite overhead; absent or null: none. */
+  correction?: Mat3 | null;
 }
 
 /** Length unit of the frame coordinates: metres with a scale, pixel units without one. */
@@ -37,17 +45,28 @@ function pixelsPerUnit(view: ViewGeometry): number {
   return view.pxPerM ?? 1;
 }
 
-/** x = ±(col − cx)/s, y = −(row − cy)/s; the mirror flips x. */
+/** A point through the correction; NaN where it has none (a point on the vanishing line), which the check leaves out like any non-finite point. */
+function corrected(H: Mat3, p: ImagePoint): ImagePoint {
+  return project(H, p) ?? { x: NaN, y: NaN };
+}
+
+/** x = ±(col − cx)/s, y = −(row − cy)/s after the correction (the centre corrected too); the mirror flips x. */
 export function imageToTable(p: ImagePoint, view: ViewGeometry): { x: number; y: number } {
   const s = pixelsPerUnit(view);
-  const x = (p.x - view.centre.x) / s;
-  return { x: view.mirrored ? -x : x, y: -(p.y - view.centre.y) / s };
+  const q = view.correction ? corrected(view.correction, p) : p;
+  const c = view.correction ? corrected(view.correction, view.centre) : view.centre;
+  const x = (q.x - c.x) / s;
+  return { x: view.mirrored ? -x : x, y: -(q.y - c.y) / s };
 }
 
 export function tableToImage(p: { x: number; y: number }, view: ViewGeometry): ImagePoint {
   const s = pixelsPerUnit(view);
   const x = view.mirrored ? -p.x : p.x;
-  return { x: view.centre.x + x * s, y: view.centre.y - p.y * s };
+  if (!view.correction) return { x: view.centre.x + x * s, y: view.centre.y - p.y * s };
+  const c = corrected(view.correction, view.centre);
+  const inverse = invert(view.correction);
+  const q = { x: c.x + x * s, y: c.y - p.y * s };
+  return inverse ? corrected(inverse, q) : { x: NaN, y: NaN };
 }
 
 function rotate(x: number, y: number, angle: number): { x: number; y: number } {

@@ -1,5 +1,10 @@
 import { z } from "zod";
 import { evenWithFieldErrors, strictNumber } from "./fields";
+import { GeometryError } from "../projective/geometry-error";
+import { parseKnownPoints, parseRimPoints } from "../projective/stored-marks";
+import { viewCorrection, type TiltMarks } from "../projective/view-correction";
+
+const marksText = z.preprocess((v) => (v === "" || v === null ? undefined : v), z.string().max(8000, "Too many points: keep to a few dozen.").optional());
 
 const px = (what: string) =>
   strictNumber(z.coerce.number({ error: `${what} must be a number of pixels.` }).refine(Number.isFinite, `${what} must be a number of pixels.`));
@@ -24,6 +29,10 @@ export const viewSetupSchema = z
     mirrored: z.preprocess((v) => v === "on" || v === "true", z.boolean()),
     rateMarkX: optionalPx("The table mark's column"),
     rateMarkY: optionalPx("The table mark's row"),
+    /** A camera not quite overhead (Decision 69): JSON [{x, y}], five or more points on the tank's edge at the water's surface. */
+    rimPoints: marksText,
+    /** …or JSON [{x, y, tableXCm, tableYCm}], four or more points whose place on the table is known (cm from the axis). */
+    knownPoints: marksText,
   })
   .superRefine((v, ctx) => {
     const edge = [v.edgeX, v.edgeY, v.edgeR];
@@ -37,6 +46,27 @@ export const viewSetupSchema = z
     }
     if ((v.scaleLengthCm === undefined) !== (v.scaleLengthPx === undefined)) {
       ctx.addIssue({ code: "custom", path: ["scaleLengthCm"], message: "For a scale, mark two points and give the length between them in cm." });
+    }
+    const rim = v.rimPoints === undefined ? undefined : parseRimPoints(v.rimPoints);
+    const known = v.knownPoints === undefined ? undefined : parseKnownPoints(v.knownPoints);
+    if (rim === null) ctx.addIssue({ code: "custom", path: ["rimPoints"], message: "Each rim point needs a column and a row in pixels." });
+    if (known === null) {
+      ctx.addIssue({ code: "custom", path: ["knownPoints"], message: "Each known point needs its column and row in pixels and its place on the table in cm." });
+    }
+    if (rim?.length && known?.length) {
+      ctx.addIssue({
+        code: "custom",
+        path: ["knownPoints"],
+        message: "Correct the tilt from the rim points or from known points, not both: clear one of them.",
+      });
+    } else if (Number.isFinite(v.centreX) && Number.isFinite(v.centreY) && (rim?.length || known?.length)) {
+      const marks: TiltMarks = rim?.length ? { kind: "rim", points: rim } : { kind: "known", points: known ?? [] };
+      try {
+        viewCorrection(marks, { x: v.centreX, y: v.centreY }, v.mirrored);
+      } catch (error) {
+        if (!(error instanceof GeometryError)) throw error;
+        ctx.addIssue({ code: "custom", path: [marks.kind === "rim" ? "rimPoints" : "knownPoints"], message: error.message });
+      }
     }
     if (v.scaleLengthPx !== undefined && v.scaleLengthPx < 10) {
       ctx.addIssue({ code: "custom", path: ["scaleLengthCm"], message: "The two scale points are less than 10 px apart; pick points further apart." });

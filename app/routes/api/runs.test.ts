@@ -10,6 +10,9 @@ import { loader as listLoader, action as createAction } from "./runs";
 import { loader as runLoader, action as runAction } from "./run";
 import { loader as csvLoader } from "./run-tracks-csv";
 import { loader as exportLoader } from "./run-export";
+import { tiltedCamera } from "../../../tests/fixtures/tilted-camera";
+import { imageToTable } from "~/lib/analysis/frames";
+import { correctionOfSetup } from "~/lib/projective/stored-marks";
 
 let lab: RunLab;
 let techToken: string;
@@ -297,6 +300,40 @@ describe("GET /api/v1/runs/:id/tracks.csv and export.json", () => {
     const [, , , , xm, ym] = lines[2]!.split(",").map(Number);
     expect(xm).toBeCloseTo(0.01, 9);
     expect(ym).toBeCloseTo(0.11, 9);
+  });
+
+  it("carries a tilted camera's rim points and its correction, and exports positions corrected by it", async () => {
+    const { run } = await checkedRun({}, { withSetup: false, points: [[0, 700, 300, 0]] });
+    // A camera 100 cm up, leaning 5° towards azimuth 30°, 1200 px focal length; its image of a 14 cm rim.
+    const camera = tiltedCamera(5, 30, { width: 1280, height: 720 });
+    const rim = Array.from({ length: 8 }, (_, i) => camera.project({ x: 14 * Math.cos((i * Math.PI) / 4), y: 14 * Math.sin((i * Math.PI) / 4) }));
+    const centre = camera.project({ x: 0, y: 0 });
+    await ViewSetup.create({ ...setupRow(run), centreXPx: centre.x, centreYPx: centre.y, scalePxPerM: 1200, rimPoints: JSON.stringify(rim) });
+    const res = await call(runLoader, get(`/api/v1/runs/${run.id}`, techToken), { id: String(run.id) });
+    expect(res.status).toBe(200);
+    const body = await res.json();
+    expect(body.viewSetup.rimPoints).toHaveLength(8);
+    expect(body.viewSetup.knownPoints).toBeNull();
+    expect(body.viewSetup.tiltCorrection).toMatchObject({ method: "rim ellipse", sideKnown: true });
+    expect(body.viewSetup.tiltCorrection.tiltDeg).toBeCloseTo(5, 6);
+    expect(body.viewSetup.tiltCorrection.towardDeg).toBeGreaterThan(28);
+    expect(body.viewSetup.tiltCorrection.towardDeg).toBeLessThan(32);
+    // The CSV's metres come through the correction: the point seen at (700, 300) lies where the table has it.
+    const csv = await call(csvLoader, get(`/api/v1/runs/${run.id}/tracks.csv`, techToken), { id: String(run.id) });
+    const [, , , , xm, ym] = (await csv.text()).trim().split("\r\n")[1]!.split(",").map(Number);
+    const expected = imageToTable(
+      { x: 700, y: 300 },
+      {
+        centre,
+        pxPerM: 1200,
+        mirrored: false,
+        correction: correctionOfSetup({ centreXPx: centre.x, centreYPx: centre.y, mirrored: false, rimPoints: JSON.stringify(rim) }).correction!.homography,
+      },
+    );
+    const plain = imageToTable({ x: 700, y: 300 }, { centre, pxPerM: 1200, mirrored: false });
+    expect(xm).toBeCloseTo(expected.x, 9);
+    expect(ym).toBeCloseTo(expected.y, 9);
+    expect(Math.hypot(xm! - plain.x, ym! - plain.y)).toBeGreaterThan(1e-4);
   });
 
   it("de-rotates a lab-fixed camera's positions by −Ω(t − t₀) with the checked rate", async () => {

@@ -1,3 +1,4 @@
+import { tiltInWords } from "~/lib/projective/view-correction";
 import { Link } from "react-router";
 import type { Route } from "./+types/run";
 import { requireUser } from "~/.server/auth/permissions";
@@ -288,6 +289,11 @@ export default function RunPage({ loaderData }: Route.ComponentProps) {
                     : "none (lengths in px)"}
               </Fact>
               <Fact label="Mirrored">{d.setup.mirrored ? "yes" : "no"}</Fact>
+              <Fact label="Camera tilt">
+                {d.setup.tilt
+                  ? `${tiltInWords(d.setup.tilt, (deg) => formatNumber(deg, 2))}, from ${d.setup.tilt.method}; positions are corrected for it`
+                  : (d.setup.tiltError ?? "not marked (positions used as the camera saw them)")}
+              </Fact>
             </dl>
           ) : (
             <p className="text-muted">{d.frames.length ? "Not set up yet." : "Set up once frames are in."}</p>

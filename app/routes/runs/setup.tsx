@@ -11,6 +11,7 @@ import { saveViewSetup } from "~/.server/runs/view-setup";
 import { lastSetupOfCamera } from "~/.server/runs/setup-carry-over";
 import { viewSetupSchema } from "~/lib/validation/view-setup";
 import { runLabel } from "~/lib/runs";
+import { parseKnownPoints, parseRimPoints } from "~/lib/projective/stored-marks";
 import { Button, ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
@@ -34,8 +35,13 @@ function toValues(s: ViewSetup): SetupValues {
     scaleLengthCm: scalePx && s.scalePxPerM ? Math.round((scalePx / s.scalePxPerM) * 100 * 1000) / 1000 : null,
     mirrored: s.mirrored,
     rateMark: s.rateMarkXPx !== null && s.rateMarkYPx !== null ? { x: s.rateMarkXPx, y: s.rateMarkYPx } : null,
+    rimPoints: parseRimPoints(s.rimPoints) ?? [],
+    knownPoints: parseKnownPoints(s.knownPoints) ?? [],
   };
 }
+
+/** Tilt marks as stored: the points read back (so the column holds nothing else), or null for none. */
+const storedList = (points: readonly object[] | null): string | null => (points?.length ? JSON.stringify(points) : null);
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireRole(request, "technician", "lab_manager");
@@ -62,7 +68,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     scaleCalibration,
     runId: run.id,
     frame: { id: frame!.id, width: frame!.widthPx, height: frame!.heightPx },
-    initial: start ? toValues(start) : { centre: null, edge: null, scalePoints: null, scaleLengthCm: null, mirrored: false, rateMark: null },
+    initial: start
+      ? toValues(start)
+      : { centre: null, edge: null, scalePoints: null, scaleLengthCm: null, mirrored: false, rateMark: null, rimPoints: [], knownPoints: [] },
     reusedFrom: previous ? previous.runId : null,
   };
 }
@@ -98,6 +106,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     mirrored: v.mirrored,
     rateMarkXPx: v.rateMarkX ?? null,
     rateMarkYPx: v.rateMarkY ?? null,
+    rimPoints: storedList(v.rimPoints === undefined ? null : parseRimPoints(v.rimPoints)),
+    knownPoints: storedList(v.knownPoints === undefined ? null : parseKnownPoints(v.knownPoints)),
     createdById: user.id,
   };
   await saveViewSetup(run, values, user.id);
@@ -111,7 +121,7 @@ export default function Setup({ loaderData, actionData }: Route.ComponentProps) 
     <div>
       <PageHeader
         title={`View setup · ${runLabel(runId)}`}
-        subtitle="Mark the rotation centre, the tank edge, the scale and, with a lab-fixed camera, a mark on the table on the first frame."
+        subtitle="Mark the rotation centre, the tank edge, the scale and, with a lab-fixed camera, a mark on the table on the first frame; with a camera not quite overhead, points on the rim."
         actions={<ButtonLink to={`/runs/${runId}`}>Back to the run</ButtonLink>}
       />
       {imageMissing ? (

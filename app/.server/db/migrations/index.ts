@@ -14,6 +14,7 @@ import * as m0012 from "./0012-lab-identity";
 import * as m0013 from "./0013-rate-from-footage";
 import * as m0014 from "./0014-shared-frame-files";
 import * as m0015 from "./0015-streamed-detections";
+import * as m0016 from "./0016-view-tilt-marks";
 
 export interface Migration {
   name: string;
@@ -38,4 +39,5 @@ export const migrations: Migration[] = [
   { name: "0013-rate-from-footage", ...m0013 },
   { name: "0014-shared-frame-files", ...m0014 },
   { name: "0015-streamed-detections", ...m0015 },
+  { name: "0016-view-tilt-marks", ...m0016 },
 ];

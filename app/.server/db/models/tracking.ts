@@ -53,6 +53,9 @@ export class ViewSetup extends Model<InferAttributes<ViewSetup>, InferCreationAt
   /** A mark on the turntable on the first frame, image px: the rate is read from it (lab-fixed camera). */
   declare rateMarkXPx: CreationOptional<number | null>;
   declare rateMarkYPx: CreationOptional<number | null>;
+  /** A camera not quite overhead (migration 0016): rim points [{x, y}] or known points [{x, y, tableXCm, tableYCm}] as JSON, image px and cm. */
+  declare rimPoints: CreationOptional<string | null>;
+  declare knownPoints: CreationOptional<string | null>;
   declare createdById: number;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -72,6 +75,8 @@ ViewSetup.init(
     mirrored: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
     rateMarkXPx: { type: DataTypes.DOUBLE, allowNull: true, field: "rate_mark_x_px" },
     rateMarkYPx: { type: DataTypes.DOUBLE, allowNull: true, field: "rate_mark_y_px" },
+    rimPoints: { type: DataTypes.TEXT, allowNull: true, field: "rim_points" },
+    knownPoints: { type: DataTypes.TEXT, allowNull: true, field: "known_points" },
     createdById: { type: DataTypes.INTEGER, allowNull: false },
     createdAt: DataTypes.DATE,
     updatedAt: DataTypes.DATE,

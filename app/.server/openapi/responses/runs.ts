@@ -109,6 +109,26 @@ export const viewSetupSchema = z
     scalePxPerM: z.number().nullable(),
     scalePoints: z.unknown().openapi({ description: "The points the scale was measured between, as the view setup stored them (or null)." }),
     mirrored: z.boolean(),
+    rimPoints: z
+      .array(z.strictObject({ x: z.number(), y: z.number() }))
+      .nullable()
+      .openapi({ description: "A camera not quite overhead: points on the tank's edge at the water's surface, image px (five or more), or null." }),
+    knownPoints: z
+      .array(z.strictObject({ x: z.number(), y: z.number(), tableXCm: z.number(), tableYCm: z.number() }))
+      .nullable()
+      .openapi({ description: "…or points whose place on the table is known: image px and cm from the rotation axis (four or more), or null." }),
+    tiltCorrection: z
+      .strictObject({
+        method: z.enum(["rim ellipse", "known points"]),
+        tiltDeg: z.number().openapi({ description: "How far the camera's axis leans off the table's normal, degrees, read at the rotation centre." }),
+        towardDeg: z
+          .number()
+          .openapi({ description: "The side of the frame it leans towards: degrees counter-clockwise from the frame's right, up positive." }),
+        sideKnown: z.boolean(),
+        residualPx: z.number().openapi({ description: "RMS distance of the marks from the fitted ellipse or map, px." }),
+      })
+      .nullable()
+      .openapi({ description: "What the tilt marks give; positions are corrected by it before the theory check. Null without marks." }),
     updatedAt: isoTime(),
   })
   .openapi("ViewSetup");

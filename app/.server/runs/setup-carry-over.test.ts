@@ -144,6 +144,21 @@ describe("the camera's last view setup carried over on upload", () => {
     expect(await carryOverOffer(await run.reload())).toBeNull();
   });
 
+  it("brings the camera's tilt marks (rim points, known points) with the rest of its setup", async () => {
+    const before = await earlierRun();
+    const rim = JSON.stringify(
+      [0, 72, 144, 216, 288].map((deg) => ({ x: 160 + 90 * Math.cos((deg * Math.PI) / 180), y: 120 + 88 * Math.sin((deg * Math.PI) / 180) })),
+    );
+    const known = JSON.stringify([{ x: 70, y: 120, tableXCm: -10, tableYCm: 0 }]);
+    await ViewSetup.update({ rimPoints: rim, knownPoints: known }, { where: { runId: before.id } });
+    const run = await createRun(lab.runInput(), lab.tech);
+    const res = await upload(run, stack[0]!, { carryOverSetup: "yes" });
+    expect(res.status).toBe(201);
+    const copied = await ViewSetup.findOne({ where: { runId: run.id } });
+    expect(copied?.rimPoints).toBe(rim);
+    expect(copied?.knownPoints).toBe(known);
+  });
+
   it("refuses any other value of carryOverSetup with 400 invalid_carry_over, and stores nothing", async () => {
     await earlierRun();
     const run = await createRun(lab.runInput(), lab.tech);

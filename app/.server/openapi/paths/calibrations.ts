@@ -37,7 +37,10 @@ export function registerCalibrationPaths(registry: OpenAPIRegistry) {
     summary: "Calibration records, newest first; filtered as the calibrations page filters",
     ...strip(read),
     request: { query: routeSchema(calibrationFilterSchema) },
-    responses: { 200: json(calibrationListSchema, "Newest first"), 400: error("equipmentId is not an id, or an unknown kind or standing, or search text that is too long (invalid_filter, with field).") },
+    responses: {
+      200: json(calibrationListSchema, "Newest first"),
+      400: error("equipmentId is not an id, or an unknown kind or standing, or search text that is too long (invalid_filter, with field)."),
+    },
   });
   operation(registry, {
     method: "post",

@@ -2,22 +2,12 @@ import zlib from "node:zlib";
 
 /** A minimal stored (uncompressed) ZIP writer, so tests can build hostile archives byte by byte. */
 export function zip(entries: { name: string; data: Buffer; declaredSize?: number; deflate?: boolean }[]) {
-  const crcTable = Array.from({ length: 256 }, (_, n) => {
-    let c = n;
-    for (let k = 0; k < 8; k++) c = c & 1 ? 0xedb88320 ^ (c >>> 1) : c >>> 1;
-    return c >>> 0;
-  });
-  const crc32 = (b: Buffer) => {
-    let c = 0xffffffff;
-    for (const x of b) c = crcTable[(c ^ x) & 0xff]! ^ (c >>> 8);
-    return (c ^ 0xffffffff) >>> 0;
-  };
   const locals: Buffer[] = [];
   const centrals: Buffer[] = [];
   let offset = 0;
   for (const e of entries) {
     const name = Buffer.from(e.name);
-    const crc = crc32(e.data);
+    const crc = zlib.crc32(e.data);
     const size = e.declaredSize ?? e.data.length;
     const body = e.deflate ? zlib.deflateRawSync(e.data) : e.data;
     const method = e.deflate ? 8 : 0;

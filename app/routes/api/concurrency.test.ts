@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { callApi } from "../../../tests/support/api-contract";
 import { Op } from "sequelize";
 import sharp from "sharp";
-import zlib from "node:zlib";
+import { zip } from "../../../tests/support/zip-writer";
 import { Booking, Calibration, Equipment, Frame, Run, migrate, sequelize } from "~/.server/db";
 import { createApiToken } from "~/.server/auth/api-tokens";
 import { createRun } from "~/.server/runs/service";
@@ -57,44 +57,6 @@ const png = (seed: number) =>
   sharp({ create: { width: 64, height: 48, channels: 3, background: { r: seed % 256, g: Math.floor(seed / 256) % 256, b: 77 } } })
     .png()
     .toBuffer();
-
-/** A ZIP of stored (uncompressed) entries. */
-function storedZip(entries: { name: string; data: Buffer }[]) {
-  const locals: Buffer[] = [];
-  const centrals: Buffer[] = [];
-  let offset = 0;
-  for (const e of entries) {
-    const name = Buffer.from(e.name);
-    const crc = zlib.crc32(e.data);
-    const local = Buffer.alloc(30);
-    local.writeUInt32LE(0x04034b50, 0);
-    local.writeUInt16LE(20, 4);
-    local.writeUInt32LE(crc, 14);
-    local.writeUInt32LE(e.data.length, 18);
-    local.writeUInt32LE(e.data.length, 22);
-    local.writeUInt16LE(name.length, 26);
-    locals.push(local, name, e.data);
-    const central = Buffer.alloc(46);
-    central.writeUInt32LE(0x02014b50, 0);
-    central.writeUInt16LE(20, 4);
-    central.writeUInt16LE(20, 6);
-    central.writeUInt32LE(crc, 16);
-    central.writeUInt32LE(e.data.length, 20);
-    central.writeUInt32LE(e.data.length, 24);
-    central.writeUInt16LE(name.length, 28);
-    central.writeUInt32LE(offset, 42);
-    centrals.push(central, name);
-    offset += 30 + name.length + e.data.length;
-  }
-  const cd = Buffer.concat(centrals);
-  const end = Buffer.alloc(22);
-  end.writeUInt32LE(0x06054b50, 0);
-  end.writeUInt16LE(entries.length, 8);
-  end.writeUInt16LE(entries.length, 10);
-  end.writeUInt32LE(cd.length, 12);
-  end.writeUInt32LE(offset, 16);
-  return Buffer.concat([...locals, cd, end]);
-}
 
 /** How many responses had each status, e.g. { 200: 1, 409: 19 }: a failure shows the whole tally. */
 const tally = (responses: Response[]) => responses.reduce<Record<number, number>>((t, r) => ({ ...t, [r.status]: (t[r.status] ?? 0) + 1 }), {});
@@ -162,7 +124,7 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
     const runs = await runsOneByOne(10, (k) => `Zip run ${k}`);
     const zips = await Promise.all(
       runs.map(async (_, k) =>
-        storedZip(await Promise.all(Array.from({ length: 20 }, async (_, i) => ({ name: `frame_${i + 1}.png`, data: await png(2000 + k * 20 + i) })))),
+        zip(await Promise.all(Array.from({ length: 20 }, async (_, i) => ({ name: `frame_${i + 1}.png`, data: await png(2000 + k * 20 + i) })))),
       ),
     );
     const responses = await Promise.all(
@@ -250,7 +212,7 @@ describe("concurrent writes wait their turn instead of failing", { timeout: 120_
 
   it("a frame of a ZIP that cannot be stored (the database fails) is the server's error, not a damaged entry", async () => {
     const run = (await runsOneByOne(1, () => "Zip with a failing store"))[0]!;
-    const archive = storedZip([
+    const archive = zip([
       { name: "frame_1.png", data: await png(9001) },
       { name: "frame_2.png", data: await png(9002) },
     ]);

@@ -1,7 +1,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import { expect, test } from "@playwright/test";
-import { apiAs, people, signIn, logRunThroughForm } from "./helpers";
+import { apiAs, declineCarryOver, people, signIn, logRunThroughForm } from "./helpers";
 import { renderStackToDir } from "../fixtures/render-stack";
 
 test("a technician logs a run, brings a frame stack, sets the view, tracks it and reads the verdict", async ({ page }) => {
@@ -33,8 +33,7 @@ test("a technician logs a run, brings a frame stack, sets the view, tracks it an
   const runId = Number(page.url().split("/").pop());
 
   // This run's view is set up on its own frames below: the camera's last setup, when offered, is not carried over.
-  const carry = page.getByRole("checkbox", { name: /Carry over the view setup/ });
-  if (await carry.isVisible()) await carry.uncheck();
+  await declineCarryOver(page);
 
   // Frames through the drop zone (Uppy, one file per request); a text file named .png is refused on its own.
   const fake = path.join(stack.dir, "frame_0.png");

@@ -1,7 +1,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import { expect, test, type Page } from "@playwright/test";
-import { apiAs, people, signIn, logRunThroughForm } from "./helpers";
+import { apiAs, declineCarryOver, people, signIn, logRunThroughForm } from "./helpers";
 import { renderVideo, type VideoKind } from "../fixtures/render-video";
 import { renderStackToDir } from "../fixtures/render-stack";
 
@@ -30,8 +30,7 @@ for (const kind of ["mp4-h264", "webm-vp8"] as VideoKind[]) {
     await signIn(page, people.tech);
     const runId = await logRun(page, `Browser test of cutting a ${kind} video`);
     // This run's view is set up on its own frames below: the camera's last setup, when offered, is not carried over.
-    const carry = page.getByRole("checkbox", { name: /Carry over the view setup/ });
-    if (await carry.isVisible()) await carry.uncheck();
+    await declineCarryOver(page);
     await page.getByLabel("Choose frames, a ZIP or a video").setInputFiles(video.file);
     await expect(page.getByTestId("stream-notice")).toContainText("Not tracked as they land");
     await expect(page.getByRole("heading", { name: "Frame stack (90)" })).toBeVisible({ timeout: 180_000 });

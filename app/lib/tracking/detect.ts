@@ -45,14 +45,7 @@ export interface Detector {
 /** Thresholds in noise units: detection well clear of noise, centroid weights just above it. */
 const detectSigmas = 5;
 const weightSigmas = 3;
-/**
- * The frame's noise figure is read on every 16th row, every 2nd pixel along it: some 11 000
- * samples in a 670 px tank (every 4th of every 4th row gave 22 000). A frame just decoded is not
- * in the processor's cache, and reading a sample costs its whole cache line: a quarter of the
- * rows read a quarter of the frame, a sixteenth of them a sixteenth.
- */
-const noiseRowStride = 16;
-const noiseColStride = 2;
+const noiseStride = 4;
 const maxBlobs = 254;
 const maxDetections = 50;
 /** A float with more unreadable pixels than this share of its area is not placed (float-centre.ts). */
@@ -145,10 +138,10 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   function noise(image: FrameImage, background: Uint8Array | null): { median: number; sigma: number } {
     hist.fill(0);
     const img = image.data;
-    for (let row = 0; row < height; row += noiseRowStride) {
+    for (let row = 0; row < height; row += noiseStride) {
       const a = fullSpans[2 * row]!;
       const b = fullSpans[2 * row + 1]!;
-      for (let col = a; col < b; col += noiseColStride) {
+      for (let col = a; col < b; col += noiseStride) {
         const p = row * width + col;
         if (background) {
           hist[img[p]! - background[p]! + 255]!++;

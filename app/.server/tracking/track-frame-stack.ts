@@ -205,7 +205,7 @@ async function stillBackground(
   workers: TrackingPool,
   signal: AbortSignal | undefined,
   frameTime: ((index: number) => number) | undefined,
-): Promise<{ still: Uint8Array; turning: TurningBackground | null }> {
+): Promise<{ still: Uint8Array; turning: TurningBackground | null; samples: Uint8Array; indices: number[] }> {
   if (files.length < 3) {
     throw new TrackingError("bad-input", "Tracking a float needs at least 3 frames: the still background is their median.");
   }
@@ -264,10 +264,10 @@ async function stillBackground(
   const discs = tracerExclusions(await findIn(plain), plan.crop, plan.shrink);
   if (signal?.aborted) throw cancelled();
   const still = discs.length === 0 ? plain : await median({ width: plan.crop.width, discs }, plain);
-  if (!plan.turn || !frameTime) return { still, turning: null };
+  if (!plan.turn || !frameTime) return { still, turning: null, samples, indices };
   const angles = indices.map((index) => plan.turn!.rate * frameTime(index));
   const turning = await turningModel(plan, workers, samples, indices.length, still, discs, angles, median);
-  return { still, turning };
+  return { still, turning, samples, indices };
 }
 
 /**
@@ -333,6 +333,11 @@ async function turningModel(
   return misfits.combined < keptMisfitShare * misfits.still ? model : null;
 }
 
+function copyInto(slot: Uint8Array, crop: Uint8Array): Uint8Array {
+  slot.set(crop);
+  return slot;
+}
+
 function defaultStep(plan: DetectionPlan): number {
   const size = plan.tank ? plan.tank.r : Math.min(plan.frameWidth, plan.frameHeight) / 2;
   return Math.max(10, 0.1 * size);
@@ -358,6 +363,10 @@ export interface StackSearch {
 /**
  * `frameTime` gives a frame's time (s) by its index: a view with a turning part (the setup's
  * rotation) needs it to turn the background's second model; without it the still model is used alone.
+ * `filesFixed` says that `files` will not change while the stack is searched (one job's pass):
+ * then a frame sampled for the background is searched from the crop decoded for it, not decoded
+ * again. Frames that arrive one by one may be replaced after the background was made, so the
+ * streaming tracker does not say so.
  */
 export async function prepareStackSearch(
   files: string[],
@@ -365,6 +374,7 @@ export async function prepareStackSearch(
   size: FrameSize,
   signal?: AbortSignal,
   frameTime?: (index: number) => number,
+  filesFixed = false,
 ): Promise<StackSearch> {
   const { width, height } = size;
   const plan = makePlan(setup, width, height);
@@ -374,12 +384,20 @@ export async function prepareStackSearch(
   warmUp.catch(() => {});
   let background: Uint8Array | null;
   let turning: TurningBackground | null = null;
+  /** Where each sampled frame's crop sits in `sampled`, by frame index (only when `filesFixed`). */
+  const sampleAt = new Map<number, number>();
+  let sampled: Uint8Array | null = null;
   try {
     // Dye without enough frames for a median is found by its colour alone.
     if (plan.tracer === "dye" && files.length < 3) {
       background = null;
     } else {
-      ({ still: background, turning } = await stillBackground(files, plan, key, workers, signal, frameTime));
+      const made = await stillBackground(files, plan, key, workers, signal, frameTime);
+      ({ still: background, turning } = made);
+      if (filesFixed) {
+        sampled = made.samples;
+        made.indices.forEach((index, j) => sampleAt.set(index, j));
+      }
     }
   } finally {
     await warmUp;
@@ -397,7 +415,9 @@ export async function prepareStackSearch(
       const slot = freeSlots.pop() ?? new Uint8Array(new SharedArrayBuffer(frameBytes));
       try {
         // Decoded while the earlier frames that place the windows are still being searched.
-        const image = await decodeFrame(file, index, plan, slot);
+        const j = sampleAt.get(index);
+        const image =
+          sampled && j !== undefined ? copyInto(slot, sampled.subarray(j * frameBytes, (j + 1) * frameBytes)) : await decodeFrame(file, index, plan, slot);
         const inWindows = (await windows) ?? null;
         if (signal?.aborted) throw cancelled();
         try {
@@ -429,7 +449,7 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   for (let index = startAt; index < total; index++) if (!byFrame.has(index)) toSearch.push(index);
   const size = await readFrameSize(files[0]!, 0);
   // Every frame already searched: no background, no workers, straight to linking.
-  const search = toSearch.length ? await prepareStackSearch(files, setup, size, signal, (index) => times[index]!) : null;
+  const search = toSearch.length ? await prepareStackSearch(files, setup, size, signal, (index) => times[index]!, true) : null;
   const plan = search?.plan ?? makePlan(setup, size.width, size.height);
   const { width, height } = size;
 

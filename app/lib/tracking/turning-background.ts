@@ -108,6 +108,11 @@ export function meanSquareMisfit(
   const spans: { sample: number; from: number; to: number }[] = [];
   for (let p = from; p < to; p++) {
     const r = Math.floor(p / width);
+    if (r % stride !== 0) {
+      // On to the next row (the loop's p++ lands on its first pixel).
+      p = (r + 1) * width - 1;
+      continue;
+    }
     if (r !== row) {
       row = r;
       spans.length = 0;
@@ -122,7 +127,7 @@ export function meanSquareMisfit(
       }
     }
     const col = p - r * width;
-    if (r % stride !== 0 || col % stride !== 0) continue;
+    if (col % stride !== 0) continue;
     if (spans.length > 0) {
       covered.fill(0);
       for (const s of spans) if (col >= s.from && col <= s.to) covered[s.sample] = 1;
@@ -161,15 +166,19 @@ export const minDoubtedShare = 0.02;
  * disc, since a lamp's light fades out far beyond where it makes the still model fail.
  */
 export function turningPixels(misfit: Float32Array, width: number, turn: TurnInView, stride = 1): Int32Array | null {
-  const inside: number[] = [];
   const judged: number[] = [];
   const height = Math.floor(misfit.length / width);
   const r2 = turn.r * turn.r;
-  for (let row = Math.max(0, Math.floor(turn.cy - turn.r)); row <= Math.min(height - 1, Math.ceil(turn.cy + turn.r)); row++) {
-    for (let col = Math.max(0, Math.floor(turn.cx - turn.r)); col <= Math.min(width - 1, Math.ceil(turn.cx + turn.r)); col++) {
-      if ((col - turn.cx) ** 2 + (row - turn.cy) ** 2 > r2) continue;
-      inside.push(row * width + col);
-      if (row % stride === 0 && col % stride === 0) judged.push(row * width + col);
+  const row0 = Math.max(0, Math.floor(turn.cy - turn.r));
+  const row1 = Math.min(height - 1, Math.ceil(turn.cy + turn.r));
+  const col0 = Math.max(0, Math.floor(turn.cx - turn.r));
+  const col1 = Math.min(width - 1, Math.ceil(turn.cx + turn.r));
+  const inDisc = (col: number, row: number) => (col - turn.cx) ** 2 + (row - turn.cy) ** 2 <= r2;
+  // Only the judged pixels first: most stacks turn nothing through the view, and then the disc's
+  // own list (every pixel of it) is never needed.
+  for (let row = Math.ceil(row0 / stride) * stride; row <= row1; row += stride) {
+    for (let col = Math.ceil(col0 / stride) * stride; col <= col1; col += stride) {
+      if (inDisc(col, row)) judged.push(row * width + col);
     }
   }
   if (judged.length === 0) return null;
@@ -179,7 +188,12 @@ export function turningPixels(misfit: Float32Array, width: number, turn: TurnInV
   const limit = Math.max(minDoubtedMisfit, doubtFactor * typical);
   let doubted = 0;
   for (const p of judged) if (misfit[p]! > limit) doubted++;
-  return doubted > minDoubtedShare * judged.length ? Int32Array.from(inside) : null;
+  if (!(doubted > minDoubtedShare * judged.length)) return null;
+  const inside: number[] = [];
+  for (let row = row0; row <= row1; row++) {
+    for (let col = col0; col <= col1; col++) if (inDisc(col, row)) inside.push(row * width + col);
+  }
+  return Int32Array.from(inside);
 }
 
 /** Both models of a stack, as the searched frames use them. */

@@ -51,6 +51,16 @@ describe("checkAwaited: the run page keeps polling after tracking until the verd
     expect(await checkAwaited(readBefore!, job)).toBe(true);
   });
 
+  it("is true for a page whose own read of the check came before the check was made, though the check is made now", async () => {
+    const { run } = await checkedRunFor(lab, lab.technician);
+    const done = await TrackingJob.findOne({ where: { runId: run.id }, order: [["id", "DESC"]] });
+    expect(done?.state).toBe("done");
+    expect((await Run.findByPk(run.id))?.state).toBe("checked");
+    // The page read no check (its read came first); reading afresh, the poll sees the check and stops.
+    expect(await checkAwaited(run, done, new Date(done!.finishedAt!.getTime() + 1000), null)).toBe(true);
+    expect(await checkAwaited(run, done, new Date(done!.finishedAt!.getTime() + 1000))).toBe(false);
+  });
+
   it("is false while the job still runs, and with no job", async () => {
     const { run, job } = await trackedUnchecked();
     await job.update({ state: "running", finishedAt: null });

@@ -55,14 +55,21 @@ const CHECK_AWAITED_MS = 120_000;
  * is done, the run is tracked (not signed off), no check is newer than the job's end, and the job
  * ended less than two minutes ago (a check that failed is not awaited for ever). The run page keeps
  * polling while this holds, so the verdict appears without a reload.
+ *
+ * `shown` is the newest check as the caller read it for the page it builds. The page's reads are
+ * separate statements: a check made between them (it follows the job within a few hundredths of a
+ * second) would otherwise be missing from the page while this, reading afresh, said it was no longer
+ * awaited, and the page would stop asking with no verdict on it (seen on PostgreSQL). With `shown`,
+ * a page without the check keeps polling, and the poll, reading afresh, ends it.
  */
-export async function checkAwaited(run: Run, job: TrackingJob | null, now = new Date()): Promise<boolean> {
+export async function checkAwaited(run: Run, job: TrackingJob | null, now = new Date(), shown?: Pick<TheoryCheck, "createdAt"> | null): Promise<boolean> {
   if (!job || job.state !== "done" || !job.finishedAt) return false;
   // The run's state as the job left it: a page may have loaded the run just before the job's last
   // write (the same transaction that marks it tracked), and read the job just after (Decision 67).
   const state = (await Run.findByPk(run.id, { attributes: ["state"] }))?.state ?? run.state;
-  if (state !== "tracked") return false;
+  // "checked": the check has been made, perhaps after the caller read the one it shows (see `shown`).
+  if (state !== "tracked" && state !== "checked") return false;
   if (now.getTime() - job.finishedAt.getTime() > CHECK_AWAITED_MS) return false;
-  const latest = await latestCheck(run.id, { attributes: ["id", "createdAt"] });
+  const latest = shown !== undefined ? shown : await latestCheck(run.id, { attributes: ["id", "createdAt"] });
   return !latest || latest.createdAt.getTime() < job.finishedAt.getTime();
 }

@@ -68,7 +68,8 @@ export async function runPageData(run: Run, user: CurrentUser, current?: Current
         }
       : null,
     job: serializeJob(job),
-    checkAwaited: await checkAwaited(run, job),
+    // Judged against the check this page shows, read with the rest of it: see checkAwaited.
+    checkAwaited: await checkAwaited(run, job, new Date(), judged.latest),
     tracks: tracks.map((t) => ({
       id: t.id,
       number: t.number,

@@ -42,6 +42,8 @@ test("redirectTo survives sign-in but a forged one stays inside the app", async 
   await page.getByRole("button", { name: "Sign in" }).click();
   await expect(page).toHaveURL(/\/equipment$/);
   await page.getByRole("button", { name: "Sign out" }).click();
+  // The sign-out has landed before the next address is opened: a navigation started earlier cancels it.
+  await expect(page).toHaveURL(/\/sign-in$/);
 
   await page.goto("/sign-in?redirectTo=https%3A%2F%2Fevil.example%2Fx");
   await page.getByLabel("E-mail").fill(people.instructor);

@@ -1,7 +1,7 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import sharp from "sharp";
 import { callApi } from "../../../tests/support/api-contract";
-import { Equipment, TheoryCheck, TrackingJob, ViewSetup, type Run } from "../db";
+import { Equipment, TheoryCheck, TrackingJob, ViewSetup, sequelize, type Run } from "../db";
 import { createApiToken } from "../auth/api-tokens";
 import { smallLab } from "../test-support";
 import { createRun } from "./service";
@@ -9,7 +9,7 @@ import { whenRechecksIdle } from "./rechecks";
 import { receiveFrameFile } from "../uploads/frames";
 import { floatStackViewSetup, renderStack, tracksOf } from "../jobs/testing";
 import { stopTrackingQueue, whenTrackingIdle } from "../jobs/tracking-queue";
-import { carryOverOffer } from "./setup-carry-over";
+import { carryOverOffer, carrySetupOver } from "./setup-carry-over";
 import { action as framesAction } from "~/routes/api/run-frames";
 import { streamPlan } from "~/lib/frame-stream";
 
@@ -127,6 +127,14 @@ describe("the camera's last view setup carried over on upload", () => {
     const res = await upload(own, stack[1]!, { carryOverSetup: "yes" });
     expect(((await res.json()) as { setupCarriedOver?: unknown }).setupCarriedOver).toMatchObject({ carried: false, alreadySet: true });
     expect(setupValues(await ViewSetup.findOne({ where: { runId: own.id } }))?.centre).toEqual([1, 2]);
+    // The later stills of a stream find the setup without queueing on the run's lock.
+    const transactions = vi.spyOn(sequelize, "transaction");
+    try {
+      expect(await carrySetupOver(own.id, lab.tech.id)).toMatchObject({ carried: false, alreadySet: true });
+      expect(transactions).not.toHaveBeenCalled();
+    } finally {
+      transactions.mockRestore();
+    }
 
     // Frames of another size (a crop, another mode): the earlier setup would put the marks in the wrong place.
     const camera = await Equipment.findByPk(before.cameraId);

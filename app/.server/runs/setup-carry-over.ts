@@ -44,6 +44,8 @@ export async function carryOverOffer(run: Run): Promise<CarryOverOffer | null> {
 
 export type CarryOverOutcome = { carried: true; fromRunId: number } | { carried: false; message: string; alreadySet?: boolean };
 
+const keptOwn: CarryOverOutcome = { carried: false, alreadySet: true, message: "The run already has a view setup; it is kept." };
+
 /**
  * After a frame was accepted on an upload that opted in: gives a run without a view setup a copy
  * of the camera's last setup made on frames of this run's size. A run that has a setup keeps it
@@ -51,11 +53,14 @@ export type CarryOverOutcome = { carried: true; fromRunId: number } | { carried:
  * it). The copy is the run's own from then on: changing it later is an ordinary setup change.
  */
 export async function carrySetupOver(runId: number, userId: number): Promise<CarryOverOutcome> {
+  // Every still of a streamed upload opts in; once the first has made the copy the rest must not
+  // queue on the run's lock only to find it. A setup, once there, stays for the upload's length.
+  if (await ViewSetup.count({ where: { runId } })) return keptOwn;
   return sequelize.transaction(async (transaction) => {
     const run = await Run.findByPk(runId, locking(transaction));
     if (!run) return { carried: false, message: "The run was deleted." };
     const own = await ViewSetup.findOne({ where: { runId }, transaction });
-    if (own) return { carried: false, alreadySet: true, message: "The run already has a view setup; it is kept." };
+    if (own) return keptOwn;
     if (!run.frameWidthPx || !run.frameHeightPx) return { carried: false, message: "The run has no frames yet, so its frame size is not known." };
     const last = await lastSetupOfCamera(run.cameraId, { width: run.frameWidthPx, height: run.frameHeightPx }, run.id, transaction);
     if (!last)

@@ -46,6 +46,31 @@ describe("formCheck: how every form checks itself before it is sent", () => {
     expect(errors.readings).toEqual(["Enter readings at 3 or more set rates (2 entered)."]);
   });
 
+  it("a half-filled reading row asks for its other rate on that row, below an empty one too, instead of calling the blank zero", () => {
+    const formData = new FormData();
+    for (const [name, value] of [
+      ["kind", "rate"],
+      ["equipmentId", "1"],
+      ["performedOn", "2026-03-02"],
+      ["meterId", "2"],
+      ["readings[0].setRpm", ""],
+      ["readings[0].measuredRpm", ""],
+      ["readings[1].setRpm", "5"],
+      ["readings[1].measuredRpm", ""],
+      ["readings[2].setRpm", ""],
+      ["readings[2].measuredRpm", "10.02"],
+    ]) {
+      formData.append(name!, value!);
+    }
+    const submission = formCheck(calibrationSchema).onValidate({ formData });
+    const errors = submission.status === "success" ? {} : (submission.error ?? {});
+    // Each message on the row that was half filled in, not on the empty row above it.
+    expect(errors["readings[1].measuredRpm"]).toEqual(["Enter the measured rate for this row as well, or clear the row."]);
+    expect(errors["readings[2].setRpm"]).toEqual(["Enter the set rate for this row as well, or clear the row."]);
+    expect(Object.keys(errors).filter((k) => k.startsWith("readings[0]") || k === "readings[1].setRpm")).toEqual([]);
+    expect(errors.readings).toEqual(["Enter readings at 3 or more set rates (2 entered)."]);
+  });
+
   it("every form in app/routes takes its options from formCheck, none sets its own moment to check", () => {
     const modules = routeModules(routes);
     const withForms = modules.filter((file) => fs.readFileSync(file, "utf8").includes("useForm("));

@@ -39,23 +39,37 @@ const nonNegative = (what: string, max: number, unit: string) =>
     ),
   );
 
-const reading = z.object({
-  setRpm: strictNumber(z.coerce.number({ error: "Set rate must be a number." }).refine((v) => v > 0, "A set rate must be more than zero rpm.")),
-  measuredRpm: strictNumber(z.coerce.number({ error: "Measured rate must be a number." }).refine((v) => v > 0, "A measured rate must be more than zero rpm.")),
-});
-
-/** Rows the person left empty on the form are dropped; a half-filled row is an error. */
-const readings = z.preprocess(
-  (v) =>
-    Array.isArray(v)
-      ? v.filter((row) => {
-          if (!row || typeof row !== "object") return false;
-          const r = row as Record<string, unknown>;
-          return blankToUndefined(r.setRpm) !== undefined || blankToUndefined(r.measuredRpm) !== undefined;
+/** One rate of a reading row; the row's other rate is filled in, so a blank here is a half-filled row. */
+const rowRate = (what: string) =>
+  strictNumber(
+    z.preprocess(
+      blankToUndefined,
+      z
+        .number({
+          error: (issue) => (issue.input === undefined ? `Enter the ${what} for this row as well, or clear the row.` : `The ${what} must be a number.`),
         })
-      : v,
-  z.array(reading).optional(),
-);
+        .refine((v) => v > 0, `A ${what} must be more than zero rpm.`),
+    ),
+  );
+
+const reading = z.object({ setRpm: rowRate("set rate"), measuredRpm: rowRate("measured rate") });
+
+/** A row the person left empty on the form (both rates blank). */
+function isBlankRow(row: unknown): boolean {
+  if (!row || typeof row !== "object") return false;
+  const r = row as Record<string, unknown>;
+  return blankToUndefined(r.setRpm) === undefined && blankToUndefined(r.measuredRpm) === undefined;
+}
+
+/**
+ * Rows the person left empty on the form are dropped; a half-filled row is an error. The empty rows
+ * are dropped after each row is checked, so an error lands on the row the person filled in, not on
+ * the one that took its place in the shortened list.
+ */
+const readings = z
+  .array(z.preprocess((row) => (isBlankRow(row) ? null : row), reading.nullable()))
+  .transform((rows) => rows.filter((row) => row !== null))
+  .optional();
 
 /** One form for the three kinds; the refinement asks for what each kind needs. Lengths in mm on the form. */
 const calibrationFields = z.object({
@@ -88,7 +102,8 @@ function kindNeeds(v: z.infer<typeof calibrationFields>, ctx: z.RefinementCtx) {
   }
   if (v.kind === "rate") {
     need("meterId", "Choose the rate meter the readings were taken with.");
-    const readings = Array.isArray(v.readings) ? v.readings : [];
+    // A failed row leaves the list unparsed, empty rows and all.
+    const readings = (Array.isArray(v.readings) ? v.readings : []).filter((row) => row !== null && !isBlankRow(row));
     const n = readings.length;
     if (n < MIN_RATE_READINGS) {
       ctx.addIssue({ code: "custom", path: ["readings"], message: `Enter readings at ${MIN_RATE_READINGS} or more set rates (${n} entered).` });

@@ -48,6 +48,7 @@ export default [
     route("users", "routes/api/users.ts"),
     route("mail", "routes/api/mail.ts"),
     route("mail/outbox", "routes/api/mail-outbox.ts"),
+    route("mail/outbox/:id/send-again", "routes/api/mail-outbox-send-again.ts"),
     route("equipment", "routes/api/equipment.ts"),
     route("equipment/:id", "routes/api/equipment-item.ts"),
     route("runs", "routes/api/runs.ts"),

@@ -72,20 +72,46 @@ export async function enqueueMail(message: OutgoingMail, options: EnqueueOptions
   } else {
     created = await OutboxMail.create(row, { transaction });
   }
-  // PostgreSQL: the shared queue's doorbell is rung once the row has committed, outside the caller's
-  // transaction, so a queue that is slow or down never holds up or fails the change itself; a ring
-  // lost to a crash or an error is made good by the workers' outbox sweep (mail/outbox-jobs.ts).
-  const after = usesJobQueue
-    ? () =>
-        void ringMail(created).then(wake, (err: unknown) => {
-          console.error(
-            `[mail] "${message.subject}" waits for the outbox sweep: the queue was not reached (${err instanceof Error ? err.message : String(err)})`,
-          );
-        })
-    : wake;
-  if (transaction) transaction.afterCommit(after);
-  else after();
+  if (transaction) transaction.afterCommit(() => announce(created));
+  else announce(created);
   return created;
+}
+
+/**
+ * Tells the sender a row is due. PostgreSQL: the shared queue's doorbell is rung once the row has
+ * committed, outside the caller's transaction, so a queue that is slow or down never holds up or
+ * fails the change itself; a ring lost to a crash or an error is made good by the workers' outbox
+ * sweep (mail/outbox-jobs.ts).
+ */
+function announce(row: OutboxMail) {
+  if (!usesJobQueue) return wake();
+  void ringMail(row).then(wake, (err: unknown) => {
+    console.error(`[mail] "${row.subject}" waits for the outbox sweep: the queue was not reached (${err instanceof Error ? err.message : String(err)})`);
+  });
+}
+
+export type SendAgainOutcome = { ok: true; row: OutboxView } | { ok: false; status: 404 | 409; code: "not_found" | "not_failed"; message: string };
+
+/**
+ * The lab manager sends a failed message again (the relay was down for hours, an address was
+ * mended at the relay): the row is queued afresh, its attempts counted from nought, with the
+ * earlier error kept until the next attempt. Only a failed row: a queued one is on its way and a
+ * sent one went out, and sending either again would duplicate it. A link in the text may have
+ * expired meanwhile; the page says so.
+ */
+export async function sendAgain(id: number): Promise<SendAgainOutcome> {
+  const [changed] = await OutboxMail.update(
+    { state: "queued", attempts: 0, nextAttemptAt: new Date(), leaseOwner: null, leaseUntil: null },
+    { where: { id, state: "failed" } },
+  );
+  const row = await OutboxMail.findByPk(id, { attributes: { exclude: ["textBody", "htmlBody"] } });
+  if (!row) return { ok: false, status: 404, code: "not_found", message: "No such message in the outbox." };
+  if (changed === 0) {
+    const what = row.state === "sent" ? "it was sent" : "it is still queued and will be tried again by itself";
+    return { ok: false, status: 409, code: "not_failed", message: `Only a failed message can be sent again; ${what}.` };
+  }
+  announce(row);
+  return { ok: true, row: outboxView(row) };
 }
 
 /**
@@ -105,7 +131,11 @@ export async function listOutbox(limit = 100): Promise<OutboxView[]> {
     order: [["id", "DESC"]],
     limit,
   });
-  return rows.map((r): OutboxView => ({
+  return rows.map(outboxView);
+}
+
+function outboxView(r: OutboxMail): OutboxView {
+  return {
     id: r.id,
     recipients: r.recipients ? r.recipients.split(", ") : [],
     subject: r.subject,
@@ -115,7 +145,7 @@ export async function listOutbox(limit = 100): Promise<OutboxView[]> {
     lastError: r.lastError,
     sentAt: r.sentAt?.toISOString() ?? null,
     createdAt: r.createdAt.toISOString(),
-  }));
+  };
 }
 
 /** The outbox row of a dedupe key, for pages that show whether a one-off message went out. */

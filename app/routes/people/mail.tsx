@@ -2,8 +2,11 @@ import type { Route } from "./+types/mail";
 import { requireRole } from "~/.server/auth/permissions";
 import { CapturedMail } from "~/.server/db";
 import { usingFakeMail } from "~/.server/mail/send";
-import { listOutbox, MAX_ATTEMPTS } from "~/.server/mail/outbox";
-import { Card, PageHeader, Tag } from "~/components/ui/card";
+import { listOutbox, MAX_ATTEMPTS, sendAgain } from "~/.server/mail/outbox";
+import { readForm } from "~/.server/http";
+import { data } from "react-router";
+import { OutboxRow } from "~/components/outbox-row";
+import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { useLabTime } from "~/components/lab-time";
 import { ScrollRegion } from "~/components/ui/scroll-region";
@@ -29,8 +32,15 @@ export async function loader({ request }: Route.LoaderArgs) {
   };
 }
 
-const stateTone = { queued: "caution", sent: "agrees", failed: "disagrees" } as const;
-const stateLabel = { queued: "Queued", sent: "Sent", failed: "Failed" } as const;
+/** A failed message sent again from its row (OutboxRow); the answer is said in that row. */
+export async function action({ request }: Route.ActionArgs) {
+  await requireRole(request, "lab_manager");
+  const form = await readForm(request);
+  const id = Number(form.get("id"));
+  if (form.get("intent") !== "send-again" || !Number.isInteger(id) || id <= 0) return data({ problem: "Unknown action." }, { status: 400 });
+  const outcome = await sendAgain(id);
+  return outcome.ok ? { notice: "Queued again; it is being sent now." } : data({ problem: outcome.message }, { status: outcome.status });
+}
 
 export default function Mail({ loaderData }: Route.ComponentProps) {
   const time = useLabTime();
@@ -48,7 +58,7 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
       <Card title="Outbox" className="mb-6">
         <p className="mb-3 text-sm text-muted">
           A failed attempt is tried again after 1 minute, then after twice the wait each time up to an hour; after {maxAttempts} failed attempts the message is
-          marked failed. Message texts are not kept here: they may hold someone's single-use link.
+          marked failed; a failed message can be sent again from its row. Texts of sent messages are not kept: they may hold someone's single-use link.
         </p>
         {outbox.length === 0 ? (
           <Notice>Nothing queued or sent yet.</Notice>
@@ -66,22 +76,7 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
               </thead>
               <tbody>
                 {outbox.map((m) => (
-                  <tr key={m.id} className="border-b border-line align-top" data-testid={`outbox-${m.id}`}>
-                    <td className="py-3 pr-3 text-sm">{time.dateTime(m.createdAt)}</td>
-                    <td className="py-3 pr-3 text-sm break-all">{m.recipients.join(", ") || "—"}</td>
-                    <td className="py-3 pr-3">{m.subject}</td>
-                    <td className="py-3 pr-3">
-                      <Tag tone={stateTone[m.state]}>{stateLabel[m.state]}</Tag>
-                    </td>
-                    <td className="py-3 text-sm">
-                      {m.state === "sent" && m.sentAt ? `${time.dateTime(m.sentAt)}` : null}
-                      {m.state === "queued" && m.nextAttemptAt
-                        ? `${m.attempts ? `${m.attempts} failed; next ` : ""}try ${time.dateTime(m.nextAttemptAt)}`
-                        : null}
-                      {m.state === "failed" ? `gave up after ${m.attempts} attempts` : null}
-                      {m.lastError && m.state !== "sent" ? <p className="text-muted break-words">{m.lastError}</p> : null}
-                    </td>
-                  </tr>
+                  <OutboxRow key={m.id} m={m} />
                 ))}
               </tbody>
             </table>

@@ -43,6 +43,19 @@ export function registerCorePaths(registry: OpenAPIRegistry) {
     responses: { 200: json(z.array(outboxMailSchema), "Newest first, at most 200"), 403: forbidden },
   });
   operation(registry, {
+    method: "post",
+    path: "/api/v1/mail/outbox/{id}/send-again",
+    operationId: "sendOutboxMailAgain",
+    summary: "Queue a failed e-mail afresh, its attempts counted from nought (lab manager)",
+    request: { params: ids("id") },
+    responses: {
+      200: json(outboxMailSchema, "Queued again; the sender tries it at once"),
+      403: forbidden,
+      404: error("No such message (not_found)."),
+      409: error("The message is not failed: it was sent, or it is still queued and retried by itself (not_failed)."),
+    },
+  });
+  operation(registry, {
     method: "get",
     path: "/api/v1/equipment",
     operationId: "listEquipment",

@@ -127,12 +127,14 @@ describe("tracking while the frames arrive", () => {
     const replaced = 10;
     expect(backgroundSampleIndices(FRAMES)).not.toContain(replaced);
     const wrong = await wrongFrame(replaced);
+    let wrongSha = "";
     for (const i of streamingOrder(FRAMES)) {
       if (i === replaced) {
         const res = await upload(run, wrong, declared(i));
         expect(res.status).toBe(201);
         const body = (await res.json()) as { accepted: { frameId: number }[] };
         const frame = await Frame.findByPk(body.accepted[0]!.frameId);
+        wrongSha = frame!.sha256;
         await removeFrameWithContent(run, frame!.sha256);
       }
       expect((await upload(run, stack[i]!, declared(i))).status).toBe(201);
@@ -141,6 +143,10 @@ describe("tracking while the frames arrive", () => {
     expect(await tracksOf(run.id)).toEqual(scratchTracks);
     // Every frame of the finished stack came from the stream; the wrong one was searched too, and left out.
     expect(searchedAsTheyArrived(log, run)).toBe(FRAMES);
+    // Its stored detections went with the job: only the finished stack's frames keep theirs.
+    const kept = await StreamedDetection.findAll({ where: { runId: run.id }, attributes: ["sha256"] });
+    expect(kept).toHaveLength(FRAMES);
+    expect(kept.map((r) => r.sha256)).not.toContain(wrongSha);
     log.mockRestore();
   }, 120_000);
 
@@ -165,8 +171,10 @@ describe("tracking while the frames arrive", () => {
     expect((await upload(run, stack[replaced]!, declared(replaced))).status).toBe(201);
     await whenTrackingIdle();
     expect(await tracksOf(run.id)).toEqual(scratchTracks);
-    // The background the stream searched on is not the finished stack's: nothing of it was used.
+    // The background the stream searched on is not the finished stack's: nothing of it was used,
+    // and nothing of it is kept once the job is done.
     expect(searchedAsTheyArrived(log, run)).toBe(0);
+    expect(await StreamedDetection.count({ where: { runId: run.id } })).toBe(0);
     log.mockRestore();
   }, 120_000);
 

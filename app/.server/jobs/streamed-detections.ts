@@ -65,3 +65,15 @@ export async function streamedShas(runId: number, basis: string): Promise<Set<st
   const rows = await StreamedDetection.findAll({ where: { runId, basis }, attributes: ["sha256"] });
   return new Set(rows.map((r) => r.sha256));
 }
+
+/**
+ * After a job has stored its tracks: the run keeps only the rows of the finished stack's frames on
+ * its basis (a re-track of the same stack uses them). Rows of another basis or of frames no longer in
+ * the stack are of no use to it, and were otherwise kept until the run was deleted. They are a
+ * store of work done, never of results: a row removed here at worst makes a later job search that
+ * frame itself.
+ */
+export async function pruneStreamed(runId: number, basis: string | null, shas: readonly string[]): Promise<number> {
+  const where = basis ? { runId, [Op.or]: [{ basis: { [Op.ne]: basis } }, { sha256: { [Op.notIn]: [...new Set(shas)] } }] } : { runId };
+  return StreamedDetection.destroy({ where });
+}

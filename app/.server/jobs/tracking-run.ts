@@ -10,7 +10,7 @@ import { measureRateFromFrames } from "../tracking/rate-pass";
 import { settleFrameStream } from "./frame-stream";
 import { rateSettingsFrom, trackingSetupFrom } from "./tracking-setup";
 import { streamedRateFits, type StreamedRate } from "./rate-stream";
-import { stackBasis, streamedFrames } from "./streamed-detections";
+import { pruneStreamed, stackBasis, streamedFrames } from "./streamed-detections";
 import type { FrameDetections, TrackingSetup } from "~/lib/tracking/types";
 
 /**
@@ -111,22 +111,22 @@ async function streamedOf(
   stack: { shas: string[]; times: number[] },
   setup: TrackingSetup,
   from: number,
-): Promise<{ frames: FrameDetections[]; rate: StreamedRate | null }> {
+): Promise<{ frames: FrameDetections[]; rate: StreamedRate | null; basis: string | null }> {
   const { rate, found } = await settleFrameStream(run.id);
-  if (!run.frameWidthPx || !run.frameHeightPx) return { frames: [], rate };
+  if (!run.frameWidthPx || !run.frameHeightPx) return { frames: [], rate, basis: null };
   let basis: string | null;
   try {
     basis = stackBasis(setup, { width: run.frameWidthPx, height: run.frameHeightPx }, stack.shas);
   } catch {
     // A setup the plan refuses: the search says why, in its own words.
-    return { frames: [], rate };
+    return { frames: [], rate, basis: null };
   }
-  if (!basis) return { frames: [], rate };
+  if (!basis) return { frames: [], rate, basis };
   // This process's stream hands over what it found when it searched on this very basis; the table holds the rest (another process, an earlier stream).
   const known = found?.basis === basis ? found.bySha : undefined;
   const frames = (await streamedFrames(run.id, basis, stack.shas, stack.times, known)).filter((f) => f.frameIndex >= from);
   if (frames.length) console.log(`[tracking] run ${run.id}: ${frames.length} of ${stack.shas.length} frames were searched as they arrived`);
-  return { frames, rate };
+  return { frames, rate, basis };
 }
 
 /** Seconds spent in each step of a job, for its last log line. */
@@ -316,6 +316,10 @@ async function trackHeldJob(job: TrackingJob, hold: JobHold, controller: AbortCo
     phases.mark("tracks stored");
     await checkRun(run.id, job.requestedById).catch((err) => console.error(`[tracking] theory check of run ${run.id} failed:`, err));
     phases.mark("check");
+    // After the verdict, so it never waits on this.
+    await pruneStreamed(run.id, streamed.basis, stack.shas).catch((err) =>
+      console.error(`[tracking] run ${run.id}: stale streamed detections not removed:`, err),
+    );
     console.log(`[tracking] job ${job.id} (run ${run.id}) done: ${phases.summary()}`);
   } catch (err) {
     await job.reload();

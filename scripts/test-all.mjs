@@ -16,11 +16,15 @@
 // and the browser lane spends much of its time waiting on one server and one browser. Their lines
 // are prefixed with the step's tag.
 //
+// The ray-traced scene tests (tests/scenes) have their own Vitest config and render their stacks
+// first where missing; those listed in scripts/scenes-in-suite.mjs run at the end of the server lane.
+//
 // Test files that never touch a database (listed in scripts/database-free-tests.mjs, and checked to
 // stay so by tests/unit/database-free.test.ts) run in the SQLite pass only.
 import { spawn, spawnSync } from "node:child_process";
 import path from "node:path";
 import { databaseFreeTests } from "./database-free-tests.mjs";
+import { sceneTestsInSuite } from "./scenes-in-suite.mjs";
 
 const root = path.resolve(import.meta.dirname, "..");
 const onlyAt = process.argv.indexOf("--only");
@@ -142,6 +146,13 @@ if (!failures.length) {
     if (postgres && (await buildDone)) {
       // Two web servers and two workers on one PostgreSQL database and a fake S3 bucket, then one SQLite server.
       await lane([{ name: "two processes, PostgreSQL + S3", tag: "two-process", cmd: "npx", args: ["tsx", "scripts/two-process.ts"], env: onPostgres }]);
+    }
+    // The ray-traced tank scenes whose tests run in the suite (scenes-in-suite.mjs): rendered with
+    // POV-Ray first where the cache lacks them, a few minutes, while the browser lane still runs.
+    if (sqlite) {
+      await lane([
+        { name: "ray-traced scenes", tag: "scenes", cmd: "npx", args: ["vitest", "run", "--config", "tests/scenes/vitest.config.ts", ...sceneTestsInSuite] },
+      ]);
     }
   })();
   await Promise.all([browserDone, serverDone]);

@@ -1,7 +1,7 @@
 /**
- * The ray-traced scene targets (issue 16) run apart from `npm test` until the tracker meets them:
- * `npx vitest run --config tests/scenes/vitest.config.ts`. To put them into `npm test`, move
- * scene-tracking.test.ts under tests/unit/ and list it in scripts/database-free-tests.mjs.
+ * The ray-traced scene tests (issue 16): `npx vitest run --config tests/scenes/vitest.config.ts`.
+ * `npm test` runs those listed in scripts/scenes-in-suite.mjs (the ones that meet their targets),
+ * rendering missing stacks first.
  */
 import { defineConfig } from "vitest/config";
 import base from "../../vite.config";

@@ -8,6 +8,13 @@ import { Tag } from "~/components/ui/card";
 const stateTone = { queued: "caution", sent: "agrees", failed: "disagrees" } as const;
 const stateLabel = { queued: "Queued", sent: "Sent", failed: "Failed" } as const;
 
+/** A queued message: being sent right now, or waiting for its next try (after how many failed ones). */
+function queuedDetail(m: OutboxView, dateTime: (iso: string) => string): string {
+  if (m.sending) return `sending now (attempt ${m.attempts})`;
+  const next = m.nextAttemptAt ? `try ${dateTime(m.nextAttemptAt)}` : "";
+  return m.attempts ? `${m.attempts} failed; next ${next}` : next;
+}
+
 /**
  * One message of the outbox. A failed one can be sent again from its row; the row's own fetcher
  * sends it, so the page stays where it is and the answer is said in this row.
@@ -26,9 +33,9 @@ export function OutboxRow({ m }: { m: OutboxView }) {
       </td>
       <td className="py-3 text-sm">
         {m.state === "sent" && m.sentAt ? `${time.dateTime(m.sentAt)}` : null}
-        {m.state === "queued" && m.nextAttemptAt ? `${m.attempts ? `${m.attempts} failed; next ` : ""}try ${time.dateTime(m.nextAttemptAt)}` : null}
+        {m.state === "queued" ? queuedDetail(m, (iso) => time.dateTime(iso)) : null}
         {m.state === "failed" ? `gave up after ${m.attempts} attempts` : null}
-        {m.lastError && m.state !== "sent" ? <p className="text-muted break-words">{m.lastError}</p> : null}
+        {m.lastError && m.state !== "sent" ? <p className="text-muted break-words">Last error: {m.lastError}</p> : null}
         {m.state === "failed" ? (
           <fetcher.Form method="post" action="/mail" className="mt-2">
             <input type="hidden" name="id" value={m.id} />

@@ -141,6 +141,7 @@ function outboxView(r: OutboxMail): OutboxView {
     subject: r.subject,
     state: r.state,
     attempts: r.attempts,
+    sending: r.state === "queued" && r.leaseUntil !== null && r.leaseUntil.getTime() > Date.now(),
     nextAttemptAt: r.state === "queued" ? r.nextAttemptAt.toISOString() : null,
     lastError: r.lastError,
     sentAt: r.sentAt?.toISOString() ?? null,

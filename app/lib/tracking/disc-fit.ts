@@ -70,34 +70,51 @@ function share(d: number, r: number): number {
   return 1 / (1 + Math.exp((d - r) / edgeScale));
 }
 
-/** The frame's noise about its background in a ring around the disc: 1.4826 × the median absolute deviation. */
-function ringNoise(input: DiscFitInput, margin: number): number {
-  const { image, background, width, height, x, y, radius } = input;
-  const inner = radius + margin + input.reach;
-  const outer = inner + 6;
-  const values: number[] = [];
-  for (let row = Math.max(0, Math.floor(y - outer)); row <= Math.min(height - 1, Math.ceil(y + outer)); row++) {
-    for (let col = Math.max(0, Math.floor(x - outer)); col <= Math.min(width - 1, Math.ceil(x + outer)); col++) {
-      const d = Math.hypot(col - x, row - y);
-      if (d < inner || d > outer || (input.inside && !input.inside(col, row))) continue;
+/** Every this many rows and columns the frame's noise is read. */
+const noiseStride = 4;
+
+/**
+ * The frame's noise about its background over the whole frame (every fourth row and column):
+ * 1.4826 × the median absolute deviation. Read near the disc instead, glare the background does
+ * not hold inflated it and let such a fit pass as noise.
+ */
+function frameNoise(input: DiscFitInput): number {
+  const { image, background, width, height } = input;
+  const hist = new Uint32Array(511);
+  let count = 0;
+  for (let row = 0; row < height; row += noiseStride) {
+    for (let col = 0; col < width; col += noiseStride) {
+      if (input.inside && !input.inside(col, row)) continue;
       const p = row * width + col;
-      // Saturated pixels show no noise; they would make it look smaller than it is.
-      if (background[p]! >= 250) continue;
-      values.push(image[p]! - background[p]!);
+      hist[image[p]! - background[p]! + 255]!++;
+      count++;
     }
   }
-  if (values.length < 20) return 3;
-  values.sort((a, b) => a - b);
-  const med = values[values.length >> 1]!;
-  const dev = values.map((v) => Math.abs(v - med)).sort((a, b) => a - b);
-  return Math.max(1, 1.4826 * dev[dev.length >> 1]!);
+  if (count < 20) return 3;
+  const at = (share: number): number => {
+    let seen = 0;
+    for (let v = 0; v < hist.length; v++) {
+      seen += hist[v]!;
+      if (seen > share * count) return v - 255;
+    }
+    return 255;
+  };
+  const med = at(0.5);
+  const dev = new Uint32Array(256);
+  for (let v = 0; v < hist.length; v++) dev[Math.abs(v - 255 - med)] = dev[Math.abs(v - 255 - med)]! + hist[v]!;
+  let seen = 0;
+  for (let v = 0; v < dev.length; v++) {
+    seen += dev[v]!;
+    if (seen > 0.5 * count) return Math.max(1, 1.4826 * v);
+  }
+  return 3;
 }
 
 /** The disc fitted near (x, y), or null when there are too few pixels or the fit does not settle. */
 export function fitDisc(input: DiscFitInput): DiscFit | null {
   const { image, background, width, height, reach } = input;
   const margin = 3;
-  const noise = ringNoise(input, margin);
+  const noise = frameNoise(input);
   const half = input.radius + reach + margin + 1;
   const pixels: Pixel[] = [];
   for (let row = Math.max(0, Math.floor(input.y - half)); row <= Math.min(height - 1, Math.ceil(input.y + half)); row++) {
@@ -151,6 +168,7 @@ export function fitDisc(input: DiscFitInput): DiscFit | null {
   const g = new Float64Array(n);
   const jac = new Float64Array(n);
   let settled = false;
+  let pinned = false;
   let counted = 0;
   let weightedSq = 0;
   for (let it = 0; it < maxIterations; it++) {
@@ -185,7 +203,20 @@ export function fitDisc(input: DiscFitInput): DiscFit | null {
       counted++;
       weightedSq += w * e * e;
     }
-    const step = solve(a, g, n);
+    // A face at white stays at white: the camera shows nothing brighter, so F is held there
+    // unless the pixels ask for a darker face.
+    if (pinned && g[2]! < 0) pinned = false;
+    let step = pinned ? null : solve(a, g, n);
+    if (step && f + step[2]! > 255) {
+      pinned = true;
+      step = null;
+    }
+    if (pinned) {
+      f = 255;
+      const reduced = withoutFace(a, g, n);
+      const part = solve(reduced.a, reduced.g, n - 1);
+      step = part && Float64Array.from([part[0]!, part[1]!, 0, ...(n === 4 ? [part[2]!] : [])]);
+    }
     if (!step) return null;
     cx += step[0]!;
     cy += step[1]!;
@@ -205,21 +236,37 @@ export function fitDisc(input: DiscFitInput): DiscFit | null {
     covered += s;
     rise += s * (f - q.b);
   }
-  const inverse = invert(a, n);
+  const free = pinned ? n - 1 : n;
+  const inverse = pinned ? invert(withoutFace(a, g, n).a, free) : invert(a, n);
   if (!inverse) return null;
-  const variance = weightedSq / (counted - n);
+  const variance = weightedSq / (counted - free);
   return {
     x: cx,
     y: cy,
     radius: r,
     face: f,
     sdX: Math.sqrt(Math.max(0, inverse[0]! * variance)),
-    sdY: Math.sqrt(Math.max(0, inverse[n + 1]! * variance)),
+    sdY: Math.sqrt(Math.max(0, inverse[free + 1]! * variance)),
     residualRms: Math.sqrt(variance),
     noise,
     pixels: counted,
     contrast: covered > 0 ? rise / covered : 0,
   };
+}
+
+/** The normal equations with the face's row and column (index 2) taken out. */
+function withoutFace(a: Float64Array, g: Float64Array, n: number): { a: Float64Array; g: Float64Array } {
+  const keep = Array.from({ length: n }, (_, i) => i).filter((i) => i !== 2);
+  const m = keep.length;
+  const ra = new Float64Array(m * m);
+  const rg = new Float64Array(m);
+  keep.forEach((u, i) => {
+    rg[i] = g[u]!;
+    keep.forEach((v, j) => {
+      ra[i * m + j] = a[u * n + v]!;
+    });
+  });
+  return { a: ra, g: rg };
 }
 
 /** Solves the n × n symmetric system a·x = g (Gaussian elimination with partial pivoting). */

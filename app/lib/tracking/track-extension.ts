@@ -36,8 +36,11 @@ export interface ExtensionOptions {
 
 /** The largest position uncertainty (1 σ, px) a fitted disc may have to be kept. */
 export const maxFitSdPx = 0.1;
-/** The largest residual RMS, in units of the frame's noise around the disc (at least 2 grey levels). */
-const maxResidualNoise = 3;
+/**
+ * The largest residual RMS as a multiple of the clear frames' own (their residual is not the
+ * noise alone: the edge's profile, the float's shadow and JPEG's blocks add to it).
+ */
+const maxResidualRatio = 1.5;
 /** How far the fitted face may be from the clear frames', grey levels. */
 const faceTolerance = 30;
 /** Clear frames of a track measured for the radius and face, from each end. */
@@ -76,25 +79,34 @@ function median(values: number[]): number {
 }
 
 /** The disc's radius and face level from a track's clear frames at one end, or null if none fits well. */
-async function calibrate(points: readonly TrackPoint[], fit: FitInFrame): Promise<{ radius: number; face: number } | null> {
+async function calibrate(points: readonly TrackPoint[], fit: FitInFrame): Promise<Calibration | null> {
   const radii: number[] = [];
   const faces: number[] = [];
+  const residuals: number[] = [];
   for (const p of points) {
     const found = await fit(p.frameIndex, { x: p.x, y: p.y, radius: 8, face: 255, reach: 2, fitRadius: true });
     if (!found || Math.max(found.sdX, found.sdY) > maxFitSdPx || !(found.radius > 2)) continue;
     radii.push(found.radius);
     faces.push(found.face);
+    residuals.push(found.residualRms);
   }
   if (radii.length === 0) return null;
-  return { radius: median(radii), face: median(faces) };
+  return { radius: median(radii), face: median(faces), residual: median(residuals) };
 }
 
-function acceptable(found: DiscFit | null, face: number): found is DiscFit {
+interface Calibration {
+  radius: number;
+  face: number;
+  /** The clear frames' residual RMS, grey levels. */
+  residual: number;
+}
+
+function acceptable(found: DiscFit | null, disc: Calibration): found is DiscFit {
   return (
     found !== null &&
     Math.max(found.sdX, found.sdY) <= maxFitSdPx &&
-    found.residualRms <= maxResidualNoise * Math.max(2, found.noise) &&
-    Math.abs(found.face - face) <= faceTolerance
+    found.residualRms <= maxResidualRatio * Math.max(disc.residual, found.noise) &&
+    Math.abs(found.face - disc.face) <= faceTolerance
   );
 }
 
@@ -121,7 +133,7 @@ export async function extendTracks(tracks: readonly Track[], fit: FitInFrame, op
       for (let frame = next; frame >= 0 && frame < options.frames && !held.has(frame); frame += direction) {
         const guess = foresee(recent, frame);
         const found = await fit(frame, { ...guess, radius: disc.radius, face: disc.face, reach: options.reachPx, fitRadius: false });
-        if (!acceptable(found, disc.face)) {
+        if (!acceptable(found, disc)) {
           refused++;
           break;
         }

@@ -45,6 +45,11 @@ const maxResidualRatio = 1.5;
 const faceTolerance = 30;
 /** Clear frames of a track measured for the radius and face, from each end. */
 const calibrationFrames = 3;
+/**
+ * Tracks carried on, longest first: each end costs a few decodes, and a stack cluttered with
+ * short tracks should not pay that for all of them.
+ */
+export const maxExtendedTracks = 10;
 
 export interface Extension {
   /** Fitted detections by frame index. */
@@ -120,7 +125,7 @@ export async function extendTracks(tracks: readonly Track[], fit: FitInFrame, op
   for (const track of tracks) for (const p of track.points) held.add(p.frameIndex);
   const added = new Map<number, Detection>();
   let refused = 0;
-  const longestFirst = [...tracks].sort((a, b) => b.points.length - a.points.length);
+  const longestFirst = [...tracks].sort((a, b) => b.points.length - a.points.length).slice(0, maxExtendedTracks);
   for (const track of longestFirst) {
     for (const direction of [1, -1] as const) {
       const ordered = direction === 1 ? track.points : [...track.points].reverse();

@@ -9,7 +9,9 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import Piscina from "piscina";
 import { backgroundSampleIndices, fillChannelsFromSurroundings, minimumFreeSamples, tracerExclusions, type ExclusionSet } from "../../lib/tracking/background";
+import type { DiscFit } from "../../lib/tracking/disc-fit";
 import { defaultLinking, linkDetections, type LinkingOptions } from "../../lib/tracking/link";
+import { extendTracks, withExtension, type DiscRequest } from "../../lib/tracking/track-extension";
 import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../../lib/tracking/plan";
 import { trackingQuality } from "../../lib/tracking/quality";
 import { lastWholeFrame, searchedWhole, searchWindows } from "../../lib/tracking/search-windows";
@@ -67,6 +69,8 @@ const inFlightLimit = cores * 3;
  */
 const windowLag = inFlightLimit;
 const progressIntervalMs = 200;
+/** How far from its foreseen place a float's fitted disc may lie, px (track-extension.ts). */
+const extensionReachPx = 4;
 
 interface TrackingPool {
   piscina: Piscina<TrackTask, TrackTaskResult>;
@@ -358,6 +362,8 @@ export interface StackSearch {
    * in `windows` when they settle to some (search-windows.ts), else over the whole frame.
    */
   detect(file: string, index: number, windows?: Promise<SearchWindow[] | null>): Promise<Detection[]>;
+  /** A float's disc fitted in one frame near a place (full-frame px, track-extension.ts); null for dye. */
+  fitDisc(file: string, index: number, request: DiscRequest): Promise<DiscFit | null>;
 }
 
 /**
@@ -407,10 +413,24 @@ export async function prepareStackSearch(
   // At most the in-flight count of slots is ever made (Decision 68).
   const frameBytes = plan.crop.width * plan.crop.height * plan.channels;
   const freeSlots: Uint8Array[] = [];
+  const turnedAt = (index: number) => (turning && frameTime ? { model: turning, angle: turning.turn.rate * frameTime(index) } : null);
   return {
     plan,
     width,
     height,
+    async fitDisc(file, index, request) {
+      if (plan.tracer !== "float" || !background) return null;
+      const image = await decodeFrame(file, index, plan);
+      if (signal?.aborted) throw cancelled();
+      const { left, top } = plan.crop;
+      const inCrop = { ...request, x: request.x - left, y: request.y - top };
+      try {
+        const fit = (await runTask(workers, { kind: "fit-disc", plan, image, background, turning: turnedAt(index), request: inCrop })) as DiscFit | null;
+        return fit && { ...fit, x: fit.x + left, y: fit.y + top };
+      } catch (error) {
+        throw searchFailed(index, error);
+      }
+    },
     async detect(file: string, index: number, windows?: Promise<SearchWindow[] | null>) {
       const slot = freeSlots.pop() ?? new Uint8Array(new SharedArrayBuffer(frameBytes));
       try {
@@ -421,8 +441,15 @@ export async function prepareStackSearch(
         const inWindows = (await windows) ?? null;
         if (signal?.aborted) throw cancelled();
         try {
-          const turned = turning && frameTime ? { model: turning, angle: turning.turn.rate * frameTime(index) } : null;
-          return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background, windows: inWindows, turning: turned })) as Detection[];
+          return (await runTask(workers, {
+            kind: "detect",
+            plan,
+            planKey: key,
+            image,
+            background,
+            windows: inWindows,
+            turning: turnedAt(index),
+          })) as Detection[];
         } catch (error) {
           throw searchFailed(index, error);
         }
@@ -513,7 +540,21 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
     throw new TrackingError("tracer-not-found", `The tracer was not found in any frame — check the tracer kind (${setup.tracer}) and the tank edge.`);
   }
   const linking: LinkingOptions = { maxStepPx: defaultStep(plan), ...defaultLinking, ...input.linking };
-  const { tracks, shortTracksDropped } = linkDetections(detections, linking);
+  let { tracks, shortTracksDropped } = linkDetections(detections, linking);
+  if (plan.tracer === "float" && tracks.length > 0) {
+    // Floats hidden in part by glare: the tracks carried on by fitting the float's disc (track-extension.ts).
+    let fitter = search;
+    const fit = async (index: number, request: DiscRequest) => {
+      fitter ??= await prepareStackSearch(files, setup, size, signal, (i) => times[i]!, true);
+      return fitter.fitDisc(files[index]!, index, request);
+    };
+    const extension = await extendTracks(tracks, fit, { frames: total, reachPx: extensionReachPx });
+    if (extension.added.size > 0) {
+      const extended = withExtension(detections, extension);
+      detections.splice(0, detections.length, ...extended);
+      ({ tracks, shortTracksDropped } = linkDetections(detections, linking));
+    }
+  }
   if (tracks.length === 0) {
     const seen = detections.filter((f) => f.detections.length > 0).length;
     throw new TrackingError(

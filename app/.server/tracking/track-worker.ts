@@ -11,6 +11,8 @@ import type { SearchWindow } from "../../lib/tracking/threshold";
 import { backgroundAt, meanSquareMisfit, turnBack, type TurningBackground } from "../../lib/tracking/turning-background";
 import type { BackgroundExclusion } from "../../lib/tracking/background";
 import type { Detection } from "../../lib/tracking/types";
+import { fitDisc, type DiscFit } from "../../lib/tracking/disc-fit";
+import type { DiscRequest } from "../../lib/tracking/track-extension";
 
 export type TrackTask =
   | {
@@ -23,6 +25,16 @@ export type TrackTask =
       windows?: SearchWindow[] | null;
       /** The turning model and the angle its part has reached at this frame (turning-background.ts). */
       turning?: { model: TurningBackground; angle: number } | null;
+    }
+  | {
+      /** A float's disc fitted near a place in one frame (disc-fit.ts), the frame's background composed as for "detect". */
+      kind: "fit-disc";
+      plan: DetectionPlan;
+      image: Uint8Array;
+      background: Uint8Array;
+      turning?: { model: TurningBackground; angle: number } | null;
+      /** In crop px. */
+      request: DiscRequest;
     }
   | {
       /** Samples [from, to) turned back into the turning frame, each by its angle, into the shared `out`. */
@@ -72,7 +84,7 @@ export type TrackTask =
       expected: number;
     };
 
-export type TrackTaskResult = Detection[] | null;
+export type TrackTaskResult = Detection[] | DiscFit | null;
 
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };
 const warmUpWaitMs = 5_000;
@@ -141,6 +153,17 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
     if (composed?.length !== background.length) composed = new Uint8Array(background.length);
     backgroundAt(background, task.turning.model, task.image, width, height, task.turning.angle, composed);
     background = composed;
+  }
+  if (task.kind === "fit-disc") {
+    const tank = plan.tank;
+    return fitDisc({
+      image: task.image,
+      background: background!,
+      width,
+      height,
+      ...task.request,
+      inside: tank ? (col, row) => (col - tank.cx) ** 2 + (row - tank.cy) ** 2 <= tank.r * tank.r : undefined,
+    });
   }
   return detectorFor(task.planKey, plan).detect({ data: task.image, width, height, channels: plan.channels }, background, task.windows ?? undefined);
 }

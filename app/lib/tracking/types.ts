@@ -22,6 +22,8 @@ export interface Detection {
    * dye found by colour alone, the difference along the dye's colour for dye against a background.
    */
   intensity: number;
+  /** A float's disc fitted where glare hid part of it (track-extension.ts): the centre's uncertainty, 1 σ px (not stored). */
+  sdPx?: number;
   /** Second moments of a dye patch measured against a background, px² (not stored). */
   spread?: { xx: number; xy: number; yy: number };
 }

@@ -24,7 +24,7 @@
 import { spawn, spawnSync } from "node:child_process";
 import path from "node:path";
 import { databaseFreeTests } from "./database-free-tests.mjs";
-import { sceneTestsInSuite } from "./scenes-in-suite.mjs";
+import { sceneTestFilesInSuite, trackedScenesInSuite } from "./scenes-in-suite.mjs";
 
 const root = path.resolve(import.meta.dirname, "..");
 const onlyAt = process.argv.indexOf("--only");
@@ -150,8 +150,15 @@ if (!failures.length) {
     // The ray-traced tank scenes whose tests run in the suite (scenes-in-suite.mjs): rendered with
     // POV-Ray first where the cache lacks them, a few minutes, while the browser lane still runs.
     if (sqlite) {
+      const files = [...sceneTestFilesInSuite, ...(trackedScenesInSuite.length ? ["tests/scenes/scene-tracking.test.ts"] : [])];
       await lane([
-        { name: "ray-traced scenes", tag: "scenes", cmd: "npx", args: ["vitest", "run", "--config", "tests/scenes/vitest.config.ts", ...sceneTestsInSuite] },
+        {
+          name: "ray-traced scenes",
+          tag: "scenes",
+          cmd: "npx",
+          args: ["vitest", "run", "--config", "tests/scenes/vitest.config.ts", ...files],
+          env: { TANKSIDE_SCENE_VARIANTS: trackedScenesInSuite.join(",") },
+        },
       ]);
     }
   })();

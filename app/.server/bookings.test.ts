@@ -2,19 +2,8 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import ICAL from "ical.js";
 import { Op } from "sequelize";
 import { Booking, CapturedMail, Equipment, OutboxMail, User, migrate, sequelize } from "./db";
-import {
-  BookingError,
-  approveBooking,
-  bookingIcs,
-  cancelBooking,
-  createBooking,
-  createCalendarFeed,
-  declineBooking,
-  feedOwner,
-  listBookings,
-  personalFeedIcs,
-  serializeBooking,
-} from "./bookings";
+import { BookingError, approveBooking, cancelBooking, createBooking, declineBooking, listBookings, serializeBooking } from "./bookings";
+import { bookingIcs, createCalendarFeed, feedOwner, personalFeedIcs } from "./booking-calendar";
 import { stopFakeSmtp } from "./mail/fake-smtp";
 import { OutboxSender } from "./mail/outbox-sender";
 import { env } from "./env";

@@ -24,7 +24,7 @@ import {
   ViewSetup,
   sequelize,
 } from "~/.server/db";
-import { feedOwner } from "~/.server/bookings";
+import { feedOwner } from "~/.server/booking-calendar";
 import { createApiToken } from "~/.server/auth/api-tokens";
 import { checkedRunFor } from "~/.server/runs/testing";
 import { whenRechecksIdle } from "~/.server/runs/rechecks";

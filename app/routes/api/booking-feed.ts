@@ -1,6 +1,6 @@
 import type { Route } from "./+types/booking-feed";
 import { apiError } from "~/.server/http";
-import { feedOwner, personalFeedIcs } from "~/.server/bookings";
+import { feedOwner, personalFeedIcs } from "~/.server/booking-calendar";
 
 /**
  * GET /api/v1/feeds/:token/bookings.ics — a person's approved bookings for a calendar app, which

@@ -1,7 +1,8 @@
 import type { Route } from "./+types/booking-ics";
 import { requireUser } from "~/.server/auth/permissions";
 import { apiError, parseId } from "~/.server/http";
-import { bookingIcs, getBooking, serializeBooking } from "~/.server/bookings";
+import { getBooking, serializeBooking } from "~/.server/bookings";
+import { bookingIcs } from "~/.server/booking-calendar";
 
 /** GET /api/v1/bookings/:id/ics — one booking as an iCalendar (RFC 5545) file, for a signed-in person. */
 export async function loader({ request, params }: Route.LoaderArgs) {

@@ -8,19 +8,8 @@ import { readForm } from "~/.server/http";
 import rbcStyles from "react-big-calendar/lib/css/react-big-calendar.css?url";
 import weekStyles from "~/components/booking-week.css?url";
 import { requireUser } from "~/.server/auth/permissions";
-import {
-  BookingError,
-  approveBooking,
-  cancelBooking,
-  createBooking,
-  createCalendarFeed,
-  declineBooking,
-  feedUrl,
-  getCalendarFeed,
-  listBookings,
-  revokeCalendarFeed,
-  serializeBookings,
-} from "~/.server/bookings";
+import { BookingError, approveBooking, cancelBooking, createBooking, declineBooking, listBookings, serializeBookings } from "~/.server/bookings";
+import { createCalendarFeed, feedUrl, getCalendarFeed, revokeCalendarFeed } from "~/.server/booking-calendar";
 import { listEquipment } from "~/.server/equipment";
 import { getLabSettings, getLabTimeZone } from "~/.server/settings";
 import { bookingFilterSchema, bookingRequestSchema, declineSchema } from "~/lib/validation/bookings";

@@ -20,7 +20,6 @@ import { decodeFrame, readFrameSize, type FrameSize } from "./decode-frame";
 import { TrackingError } from "./errors";
 import { bundledWorker } from "./worker-bundle";
 import { workerExecArgv } from "./worker-options";
-import { unknownStack, type StackShare } from "./stack-share";
 import type { TrackTask, TrackTaskResult } from "./track-worker";
 
 export interface TrackFrameStackInput {
@@ -68,9 +67,6 @@ const inFlightLimit = cores * 3;
  */
 const windowLag = inFlightLimit;
 const progressIntervalMs = 200;
-/** Frame slots of a stack: as many as a job has frames in flight. */
-const stackSlots = inFlightLimit;
-let nextStackId = 1;
 
 interface TrackingPool {
   piscina: Piscina<TrackTask, TrackTaskResult>;
@@ -407,51 +403,31 @@ export async function prepareStackSearch(
     await warmUp;
   }
   // Frames reach the workers through slots of shared memory, reused: a new transferred buffer
-  // per frame made the thread's heap take in and collect 0.45–1.35 MB of outside memory a frame
-  // (Decision 68). The slots are one shared buffer, handed to each worker once with the plan and
-  // the background (StackShare); a frame's task names only its slot (Decision 74). Should more
-  // frames be in flight than there are slots, the extra frame goes in a buffer of its own.
+  // per frame made the thread's heap take in and collect 0.45–1.35 MB of outside memory a frame.
+  // At most the in-flight count of slots is ever made (Decision 68).
   const frameBytes = plan.crop.width * plan.crop.height * plan.channels;
-  const share: StackShare = {
-    id: nextStackId++,
-    plan,
-    planKey: key,
-    background,
-    turning,
-    slots: new Uint8Array(new SharedArrayBuffer(stackSlots * frameBytes)),
-    frameBytes,
-  };
-  const freeSlots = Array.from({ length: stackSlots }, (_, k) => stackSlots - 1 - k);
-  const searchSlot = async (slot: number, windows: SearchWindow[] | null, angle: number | null): Promise<Detection[]> => {
-    const task: TrackTask = { kind: "detect-in-stack", stack: share.id, slot, windows, angle };
-    const found = await runTask(workers, task);
-    // This worker has not held the stack yet (or has let it go): once more, with the stack.
-    return (found === unknownStack ? await runTask(workers, { ...task, share }) : found) as Detection[];
-  };
+  const freeSlots: Uint8Array[] = [];
   return {
     plan,
     width,
     height,
     async detect(file: string, index: number, windows?: Promise<SearchWindow[] | null>) {
-      const slot = freeSlots.pop();
-      const into = slot === undefined ? new Uint8Array(new SharedArrayBuffer(frameBytes)) : share.slots.subarray(slot * frameBytes, (slot + 1) * frameBytes);
+      const slot = freeSlots.pop() ?? new Uint8Array(new SharedArrayBuffer(frameBytes));
       try {
         // Decoded while the earlier frames that place the windows are still being searched.
         const j = sampleAt.get(index);
         const image =
-          sampled && j !== undefined ? copyInto(into, sampled.subarray(j * frameBytes, (j + 1) * frameBytes)) : await decodeFrame(file, index, plan, into);
+          sampled && j !== undefined ? copyInto(slot, sampled.subarray(j * frameBytes, (j + 1) * frameBytes)) : await decodeFrame(file, index, plan, slot);
         const inWindows = (await windows) ?? null;
         if (signal?.aborted) throw cancelled();
-        const angle = turning && frameTime ? turning.turn.rate * frameTime(index) : null;
         try {
-          if (slot !== undefined) return await searchSlot(slot, inWindows, angle);
-          const turned = turning && angle !== null ? { model: turning, angle } : null;
+          const turned = turning && frameTime ? { model: turning, angle: turning.turn.rate * frameTime(index) } : null;
           return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background, windows: inWindows, turning: turned })) as Detection[];
         } catch (error) {
           throw searchFailed(index, error);
         }
       } finally {
-        if (slot !== undefined) freeSlots.push(slot);
+        freeSlots.push(slot);
       }
     },
   };

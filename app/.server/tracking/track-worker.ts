@@ -11,20 +11,8 @@ import type { SearchWindow } from "../../lib/tracking/threshold";
 import { backgroundAt, meanSquareMisfit, turnBack, type TurningBackground } from "../../lib/tracking/turning-background";
 import type { BackgroundExclusion } from "../../lib/tracking/background";
 import type { Detection } from "../../lib/tracking/types";
-import { unknownStack, type StackShare } from "./stack-share";
 
 export type TrackTask =
-  | {
-      /** One frame of a stack, decoded into slot `slot` of the stack's shared slots. */
-      kind: "detect-in-stack";
-      stack: number;
-      /** Present when this worker may not hold the stack yet. */
-      share?: StackShare;
-      slot: number;
-      windows: SearchWindow[] | null;
-      /** The angle the turning part has reached at this frame, when the stack has a turning model. */
-      angle: number | null;
-    }
   | {
       kind: "detect";
       plan: DetectionPlan;
@@ -84,7 +72,7 @@ export type TrackTask =
       expected: number;
     };
 
-export type TrackTaskResult = Detection[] | typeof unknownStack | null;
+export type TrackTaskResult = Detection[] | null;
 
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };
 const warmUpWaitMs = 5_000;
@@ -95,8 +83,6 @@ const warmUpWaitMs = 5_000;
  */
 const detectors = new Map<string, Detector>();
 const keptDetectors = 2;
-/** Stacks held by this worker, oldest first; as many as detectors, for the same reason. */
-const stacks = new Map<number, StackShare>();
 
 function detectorFor(key: string, plan: DetectionPlan): Detector {
   let detector = detectors.get(key);
@@ -148,37 +134,15 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
     meanSquareMisfit(frames, task.model, task.width, task.from, task.to, task.discs, task.out, task.stride);
     return null;
   }
-  if (task.kind === "detect-in-stack") {
-    if (task.share) {
-      stacks.delete(task.stack);
-      if (stacks.size >= keptDetectors) stacks.delete(stacks.keys().next().value as number);
-      stacks.set(task.stack, task.share);
-    }
-    const stack = stacks.get(task.stack);
-    if (!stack) return unknownStack;
-    const image = stack.slots.subarray(task.slot * stack.frameBytes, (task.slot + 1) * stack.frameBytes);
-    const turning = stack.turning && task.angle !== null ? { model: stack.turning, angle: task.angle } : null;
-    return detectIn(stack.plan, stack.planKey, image, stack.background, task.windows, turning);
-  }
-  return detectIn(task.plan, task.planKey, task.image, task.background, task.windows ?? null, task.turning ?? null);
-}
-
-function detectIn(
-  plan: DetectionPlan,
-  planKey: string,
-  image: Uint8Array,
-  still: Uint8Array | null,
-  windows: SearchWindow[] | null,
-  turning: { model: TurningBackground; angle: number } | null,
-): Detection[] {
+  const { plan } = task;
   const { width, height } = plan.crop;
-  let background = still;
-  if (turning && background) {
+  let background = task.background;
+  if (task.turning && background) {
     if (composed?.length !== background.length) composed = new Uint8Array(background.length);
-    backgroundAt(background, turning.model, image, width, height, turning.angle, composed);
+    backgroundAt(background, task.turning.model, task.image, width, height, task.turning.angle, composed);
     background = composed;
   }
-  return detectorFor(planKey, plan).detect({ data: image, width, height, channels: plan.channels }, background, windows ?? undefined);
+  return detectorFor(task.planKey, plan).detect({ data: task.image, width, height, channels: plan.channels }, background, task.windows ?? undefined);
 }
 
 /** This worker's frame background where a turning model takes part, reused from frame to frame. */

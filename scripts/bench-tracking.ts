@@ -15,6 +15,9 @@
  * minute, or that started the pool when the frames began to arrive; the JSON line says which
  * (warmPool). The decode-only pass is the decoder's own work on the same frames and crop
  * (decodeFrame as a job calls it), run before the tracking pass in the same process.
+ *
+ * `--threads` also prints, on stderr, each pass's processor time by kind of thread
+ * (scripts/thread-times.ts): where the time beyond decoding goes.
  */
 import { spawnSync } from "node:child_process";
 import { createHash } from "node:crypto";
@@ -29,6 +32,7 @@ import { planDetection } from "../app/lib/tracking/plan";
 import type { SyntheticRunSpec } from "../app/lib/tracking/synthetic";
 import type { Track, TrackingSetup } from "../app/lib/tracking/types";
 import { writeSyntheticStack } from "../tests/fixtures/tracking/write-stack";
+import { threadSnapshot, threadTimes } from "./thread-times";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const tracerArg = process.argv.indexOf("--tracer");
@@ -36,6 +40,7 @@ const tracerName = tracerArg >= 0 ? process.argv[tracerArg + 1] : "float";
 if (tracerName !== "float" && tracerName !== "dye") throw new Error(`--tracer is float or dye, not ${String(tracerName)}.`);
 const tracer: "float" | "dye" = tracerName;
 const warmPool = process.argv.includes("--warm-pool");
+const byThread = process.argv.includes("--threads");
 const omega = (2 * Math.PI * 10) / 60;
 const floatSpec: SyntheticRunSpec = {
   width: 1280,
@@ -166,13 +171,17 @@ async function main(): Promise<void> {
   const times = files.map((_, i) => i / spec.fps);
   const sampler = rssSampler();
 
+  const existing = threadSnapshot();
   const decodeCpuBefore = process.cpuUsage();
   const decodeFps = await decodeOnly(files);
   const decodeCpu = process.cpuUsage(decodeCpuBefore);
+  const afterDecode = threadSnapshot();
+  if (byThread) log(`decode only, ms of processor time by thread: ${JSON.stringify(threadTimes(existing, afterDecode, existing))}`);
   const decodeCpuMsPerFrame = (decodeCpu.user + decodeCpu.system) / 1000 / files.length;
   log(`decode only: ${decodeFps.toFixed(1)} frames/s, ${decodeCpuMsPerFrame.toFixed(1)} ms CPU a frame`);
 
   if (warmPool) await warmTrackingPool();
+  const beforeTracking = threadSnapshot();
   const started = performance.now();
   const cpuBefore = process.cpuUsage();
   const result = await trackFrameStack({ files, times, setup });
@@ -182,6 +191,7 @@ async function main(): Promise<void> {
   const cpu = process.cpuUsage(cpuBefore);
   const cpuMsPerFrame = (cpu.user + cpu.system) / 1000 / files.length;
   const fps = files.length / seconds;
+  if (byThread) log(`tracking, ms of processor time by thread: ${JSON.stringify(threadTimes(beforeTracking, threadSnapshot(), afterDecode))}`);
   await closeTrackingPool();
   const sampledPeak = sampler.stop();
   // The kernel's high-water mark for the whole process, threads included; no render happened here.

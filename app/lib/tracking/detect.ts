@@ -1,14 +1,19 @@
 /**
  * Finding the tracer in one frame.
  *
- * Float: difference from the median background (bright float on darker water). Dye: HSV colour
+ * Float: difference from the median background (bright float on darker water). Dye: the change
+ * of colour against the stack's colour background (dye-signal.ts), or, without one, the HSV colour
  * range. Either way a detection image (blocks of `plan.shrink` px averaged) is thresholded (threshold.ts),
  * cleaned with an opening and a closing, and split into blobs; blobs are kept by area and
  * roundness. The centroid of each blob is then weighted by the un-thresholded signal (difference
  * or saturation) at full resolution, less a noise floor, which keeps it sub-pixel. A dye blob
- * given the stack's colour background is instead measured over the whole patch (dye-centre.ts).
+ * found against the background is instead measured over the whole patch (dye-centre.ts), kept
+ * when its colour changes towards a hue of the plan's range, and dropped when it changes the
+ * colour less than half as much as the strongest patch of the frame: a dye's coloured shadow on
+ * the bottom, lit by only part of the light, is such a weaker copy of it.
  */
 import { createDyeCentre } from "./dye-centre";
+import { relativeChangeSquared } from "./dye-signal";
 import { floatCentre } from "./float-centre";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect, OpenCv } from "./opencv-types";
@@ -50,6 +55,12 @@ const maxBlobs = 254;
 const maxDetections = 50;
 /** A float with more unreadable pixels than this share of its area is not placed (float-centre.ts). */
 const hiddenShare = 0.25;
+/** A dye patch changing the colour less than this share of the frame's strongest is taken for its shadow. */
+export const shadowShare = 0.5;
+/** Finds of one frame within this many of a stronger patch's standard deviations are that patch. */
+const samePatchSigmas = 2;
+/** Histogram bins per unit of a dye's change of colour (|s|, dye-signal.ts), up to a change of 0.5. */
+const changeBins = 2048;
 
 /** The decoder's crop and channel choice, for a frame already in memory (tests, demo seeding). */
 export function cropForPlan(frame: FrameImage, plan: DetectionPlan): FrameImage {
@@ -101,6 +112,31 @@ function rowSpans(rows: number, cols: number, step: number, offset: number, tank
   return spans;
 }
 
+/**
+ * The dye finds of one frame that are patches of their own: a find whose measured centre lies
+ * within `samePatchSigmas` of a stronger find's shape is that patch again (one patch can leave
+ * several blobs, split by the cleaning where its edge is faint), and a find changing the colour
+ * less than `shadowShare` as much as the frame's strongest is taken for a shadow of it.
+ */
+export function distinctPatches(patches: readonly { detection: Detection; change: number }[]): Detection[] {
+  const strongest = patches.reduce((most, p) => Math.max(most, p.change), 0);
+  const kept: Detection[] = [];
+  for (const p of [...patches].sort((a, b) => b.change - a.change)) {
+    if (!(p.change >= shadowShare * strongest)) continue;
+    const d = p.detection;
+    const same = kept.some((k) => {
+      if (!k.spread) return false;
+      const { xx, xy, yy } = k.spread;
+      const det = xx * yy - xy * xy;
+      const dx = d.x - k.x;
+      const dy = d.y - k.y;
+      return det > 0 && (yy * dx * dx - 2 * xy * dx * dy + xx * dy * dy) / det <= samePatchSigmas * samePatchSigmas;
+    });
+    if (!same) kept.push(d);
+  }
+  return kept;
+}
+
 export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   const { smallWidth: sw, smallHeight: sh, shrink: k } = plan;
   const width = plan.crop.width;
@@ -114,6 +150,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   const fullSpans = rowSpans(height, width, 1, 0, plan.tank);
   const smallSpans = rowSpans(sh, sw, k, (k - 1) / 2, plan.tank);
   const hist = new Uint32Array(511);
+  const changeHist = new Uint32Array(changeBins / 2 + 1);
   const colour = new Float64Array(3);
   const block = k * k;
   const threshold = createThreshold(plan, smallSpans, detectSigmas);
@@ -132,6 +169,24 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     if (plan.tracer === "dye" && background && background.length !== width * height * 3) {
       throw new Error("A dye background must be the colour image of the same region.");
     }
+  }
+
+  /** Offset and noise of a dye's change of colour against the background (|s|, dye-signal.ts) over the tank. */
+  function colourNoise(image: FrameImage, background: Uint8Array): { median: number; sigma: number } {
+    changeHist.fill(0);
+    const img = image.data;
+    const last = changeHist.length - 1;
+    for (let row = 0; row < height; row += noiseStride) {
+      const a = fullSpans[2 * row]!;
+      const b = fullSpans[2 * row + 1]!;
+      for (let col = a; col < b; col += noiseStride) {
+        const q = 3 * (row * width + col);
+        const change = Math.sqrt(relativeChangeSquared(img[q]!, img[q + 1]!, img[q + 2]!, background[q]!, background[q + 1]!, background[q + 2]!));
+        changeHist[Math.min(last, Math.round(change * changeBins))]!++;
+      }
+    }
+    const stats = robustStats(changeHist, 0);
+    return { median: stats.median / changeBins, sigma: stats.sigma / changeBins };
   }
 
   /** Offset and noise of the float difference, or of the water's saturation for dye. */
@@ -302,23 +357,39 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   }
 
   /** A dye blob's centre from the whole patch against the background (dye-centre.ts). */
-  function patchCentre(blob: Blob, image: FrameImage, background: Uint8Array): Detection | null {
+  function patchCentre(blob: Blob, image: FrameImage, background: Uint8Array): { detection: Detection; change: number } | null {
     if (!dyeCentre) return null;
     const margin = k + 2;
-    const found = dyeCentre(image, background, {
-      col0: blob.rect.x * k - margin,
-      row0: blob.rect.y * k - margin,
-      col1: (blob.rect.x + blob.rect.width) * k + margin,
-      row1: (blob.rect.y + blob.rect.height) * k + margin,
-    });
+    const lab = labels.data;
+    const found = dyeCentre(
+      image,
+      background,
+      {
+        col0: blob.rect.x * k - margin,
+        row0: blob.rect.y * k - margin,
+        col1: (blob.rect.x + blob.rect.width) * k + margin,
+        row1: (blob.rect.y + blob.rect.height) * k + margin,
+      },
+      // The first estimate keeps to pixels no other blob holds: a stronger patch beside this one would draw it over.
+      (col, row) => {
+        const owner = lab[Math.min(sh - 1, Math.floor(row / k)) * sw + Math.min(sw - 1, Math.floor(col / k))];
+        return owner === 0 || owner === blob.label;
+      },
+    );
     if (!found || !(found.x >= 0 && found.x <= width - 1 && found.y >= 0 && found.y <= height - 1)) return null;
+    // The hue the colour changes towards: that of grey moved along the dye's direction (any step gives the same hue).
+    hsv(128 + 100 * found.colour[0], 128 + 100 * found.colour[1], 128 + 100 * found.colour[2], colour);
+    if (!hueInRange(colour[0]!, hueMin, hueMax)) return null;
     return {
-      x: plan.crop.left + found.x,
-      y: plan.crop.top + found.y,
-      area: blob.pixels,
-      roundness: blob.roundness,
-      intensity: Math.min(255, Math.max(0, Math.round(found.peak))),
-      spread: found.spread,
+      detection: {
+        x: plan.crop.left + found.x,
+        y: plan.crop.top + found.y,
+        area: blob.pixels,
+        roundness: blob.roundness,
+        intensity: Math.min(255, Math.max(0, Math.round(found.peak))),
+        spread: found.spread,
+      },
+      change: found.change,
     };
   }
 
@@ -327,28 +398,37 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
       check(image, background);
       const bg = plan.tracer === "float" ? background : null;
       const dyeBackground = plan.tracer === "dye" ? background : null;
-      // Dye measured against a background has noise figures of its own (dye-centre.ts).
-      const { median, sigma } = dyeBackground ? { median: 0, sigma: 0 } : noise(image, bg);
+      // Dye against a background: the noise of its change of colour (dye-centre.ts measures its own for the centre).
+      const { median, sigma } = dyeBackground ? colourNoise(image, dyeBackground) : noise(image, bg);
       const measure = (regions: CvRect[]): Detection[] => {
-        const detections: Detection[] = [];
+        let detections: Detection[] = [];
         if (regions.length === 0) return detections;
-        for (const blob of blobs(regions)) {
-          const d = dyeBackground ? patchCentre(blob, image, dyeBackground) : centroid(blob, image, bg, median, sigma);
-          if (d) detections.push(d);
+        if (dyeBackground) {
+          const patches: { detection: Detection; change: number }[] = [];
+          for (const blob of blobs(regions)) {
+            const found = patchCentre(blob, image, dyeBackground);
+            if (found) patches.push(found);
+          }
+          detections = distinctPatches(patches);
+        } else {
+          for (const blob of blobs(regions)) {
+            const d = centroid(blob, image, bg, median, sigma);
+            if (d) detections.push(d);
+          }
         }
         detections.sort((a, b) => b.intensity * b.area - a.intensity * a.area);
         detections.length = Math.min(detections.length, maxDetections);
         return detections;
       };
       if (windows && windows.length > 0) {
-        const regions = threshold.run(mask.data, image, bg, median, sigma, threshold.windowTiles(windows));
+        const regions = threshold.run(mask.data, image, bg ?? dyeBackground, median, sigma, threshold.windowTiles(windows));
         if (regions) {
           const found = measure(regions);
           const held = (w: SearchWindow) => found.some((d) => Math.abs(d.x - w.x) <= w.reach && Math.abs(d.y - w.y) <= w.reach);
           if (windows.every(held)) return found;
         }
       }
-      return measure(threshold.run(mask.data, image, bg, median, sigma) ?? []);
+      return measure(threshold.run(mask.data, image, bg ?? dyeBackground, median, sigma) ?? []);
     },
     dispose() {
       if (disposed) return;

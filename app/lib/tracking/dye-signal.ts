@@ -55,3 +55,20 @@ export function levelDifference(i0: number, i1: number, i2: number, b0: number, 
 export function differenceAlong(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, u: Float64Array): number {
   return ((i0 - b0) * u[0]! + (i1 - b1) * u[1]! + (i2 - b2) * u[2]!) / levelOf(b0, b1, b2);
 }
+
+/**
+ * Whether relativeChangeSquared exceeds `level²`, without a division: with P_c the product of the
+ * other two channels' background, r_c ∝ I_c·P_c, and |r / mean(r) − 1|² = 9·Σr_c² / (Σr_c)² − 3.
+ * For the threshold's pass over every searched pixel.
+ */
+export function relativeChangeAbove(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, level: number): boolean {
+  const c0 = b0 > 1 ? b0 : 1;
+  const c1 = b1 > 1 ? b1 : 1;
+  const c2 = b2 > 1 ? b2 : 1;
+  const r0 = i0 * c1 * c2;
+  const r1 = i1 * c0 * c2;
+  const r2 = i2 * c0 * c1;
+  const sum = r0 + r1 + r2;
+  if (!(sum > 0)) return false;
+  return 9 * (r0 * r0 + r1 * r1 + r2 * r2) > (level * level + 3) * sum * sum;
+}

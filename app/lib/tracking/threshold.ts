@@ -15,7 +15,7 @@
  * the tiles) and the pixel beyond that which the 3 × 3 cleaning reads are the same either way.
  * Otherwise the windows are not trusted and the caller searches the whole frame.
  */
-import { relativeChangeSquared } from "./dye-signal";
+import { relativeChangeAbove } from "./dye-signal";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
@@ -120,7 +120,6 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     const level = background && !dye ? (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block : 0;
     // A block's mean change of colour has 1/k of a pixel's noise, and so has its offset (|s| is never negative).
     const changeLevel = background && dye ? Math.max(minColourChange, (offset + detectSigmas * sigma) / k) : 0;
-    const changeLevel2 = changeLevel * changeLevel;
     for (let sy = 0; sy < sh; sy++) {
       const a = smallSpans[2 * sy]!;
       const b = smallSpans[2 * sy + 1]!;
@@ -135,10 +134,10 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
         if (background && dye) {
           // The change of colour against the background, of the block's mean at reduced resolution.
           for (let sx = c0; sx < c1; sx++) {
-            let squared: number;
+            let above: boolean;
             if (k === 1) {
               const p = 3 * (rowAt + sx);
-              squared = relativeChangeSquared(img[p]!, img[p + 1]!, img[p + 2]!, background[p]!, background[p + 1]!, background[p + 2]!);
+              above = relativeChangeAbove(img[p]!, img[p + 1]!, img[p + 2]!, background[p]!, background[p + 1]!, background[p + 2]!, changeLevel);
             } else {
               let i0 = 0;
               let i1 = 0;
@@ -156,9 +155,9 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
                   b2 += background[p + 2]!;
                 }
               }
-              squared = relativeChangeSquared(i0 / block, i1 / block, i2 / block, b0 / block, b1 / block, b2 / block);
+              above = relativeChangeAbove(i0 / block, i1 / block, i2 / block, b0 / block, b1 / block, b2 / block, changeLevel);
             }
-            if (squared <= changeLevel2) continue;
+            if (!above) continue;
             const at = rowAt + sx;
             m[at] = 255;
             if (previous === at - 1) {

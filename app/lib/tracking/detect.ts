@@ -359,7 +359,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   }
 
   /** A dye blob's centre from the whole patch against the background (dye-centre.ts). */
-  function patchCentre(blob: Blob, image: FrameImage, background: Uint8Array): { detection: Detection; change: number } | null {
+  function patchCentre(blob: Blob, image: FrameImage, background: Uint8Array): Detection | null {
     if (!dyeCentre) return null;
     const margin = k + 2;
     const lab = labels.data;
@@ -383,16 +383,51 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     hsv(128 + 100 * found.colour[0], 128 + 100 * found.colour[1], 128 + 100 * found.colour[2], colour);
     if (!hueInRange(colour[0]!, hueMin, hueMax)) return null;
     return {
-      detection: {
-        x: plan.crop.left + found.x,
-        y: plan.crop.top + found.y,
-        area: blob.pixels,
-        roundness: blob.roundness,
-        intensity: Math.min(255, Math.max(0, Math.round(found.peak))),
-        spread: found.spread,
-      },
-      change: found.change,
+      x: plan.crop.left + found.x,
+      y: plan.crop.top + found.y,
+      area: blob.pixels,
+      roundness: blob.roundness,
+      intensity: Math.min(255, Math.max(0, Math.round(found.peak))),
+      spread: found.spread,
     };
+  }
+
+  /**
+   * A dye blob's strength: the highest departure of colour in ratios (dye-signal.ts) over its own
+   * pixels, each read from the 3 × 3 pixels around it (a single pixel's noise would decide it).
+   */
+  function blobStrength(blob: Blob, image: FrameImage, background: Uint8Array): number {
+    const lab = labels.data;
+    const img = image.data;
+    let most = 0;
+    const row0 = Math.max(1, blob.rect.y * k);
+    const row1 = Math.min(height - 1, (blob.rect.y + blob.rect.height) * k);
+    const col0 = Math.max(1, blob.rect.x * k);
+    const col1 = Math.min(width - 1, (blob.rect.x + blob.rect.width) * k);
+    for (let row = row0; row < row1; row++) {
+      const labelRow = Math.min(sh - 1, Math.floor(row / k)) * sw;
+      for (let col = col0; col < col1; col++) {
+        if (lab[labelRow + Math.min(sw - 1, Math.floor(col / k))] !== blob.label) continue;
+        let i0 = 0;
+        let i1 = 0;
+        let i2 = 0;
+        let b0 = 0;
+        let b1 = 0;
+        let b2 = 0;
+        for (let r = row - 1; r <= row + 1; r++) {
+          for (let q = 3 * (r * width + col - 1), end = q + 9; q < end; q += 3) {
+            i0 += img[q]!;
+            i1 += img[q + 1]!;
+            i2 += img[q + 2]!;
+            b0 += background[q]!;
+            b1 += background[q + 1]!;
+            b2 += background[q + 2]!;
+          }
+        }
+        most = Math.max(most, relativeChangeSquared(i0, i1, i2, b0, b1, b2));
+      }
+    }
+    return Math.sqrt(most);
   }
 
   return {
@@ -406,10 +441,14 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
         let detections: Detection[] = [];
         if (regions.length === 0) return detections;
         if (dyeBackground) {
+          // Only blobs at least `shadowShare` as strong as the frame's strongest are measured.
+          const found = blobs(regions).map((blob) => ({ blob, change: blobStrength(blob, image, dyeBackground) }));
+          const strongest = found.reduce((most, f) => Math.max(most, f.change), 0);
           const patches: { detection: Detection; change: number }[] = [];
-          for (const blob of blobs(regions)) {
-            const found = patchCentre(blob, image, dyeBackground);
-            if (found) patches.push(found);
+          for (const { blob, change } of found) {
+            if (!(change >= shadowShare * strongest)) continue;
+            const detection = patchCentre(blob, image, dyeBackground);
+            if (detection) patches.push({ detection, change });
           }
           detections = distinctPatches(patches);
         } else {

@@ -22,7 +22,7 @@
  * noise sits symmetrically about the centre and does not pull it. The Gaussian weight halves the
  * measured moments, so the next window takes twice them; that converges to the patch's own.
  */
-import { differenceAlong, levelDifference, relativeChangeSquared } from "./dye-signal";
+import { differenceAlong, levelDifference } from "./dye-signal";
 import { robustStats } from "./robust-stats";
 
 /** Threshold below which the signal gets no weight, in noise widths. */
@@ -38,8 +38,6 @@ const firstGrowth = 1 / 0.217;
 /** Largest variance of the window along an axis, px² (a 100 px standard deviation). */
 const maxVariance = 1e4;
 const maxIterations = 12;
-/** The strength is read within this many of the patch's standard deviations of its centre. */
-const strengthSigmas = 2;
 /** The ring around the box where the background's misfit is read is at least this wide, px. */
 const ringMinPx = 4;
 /** The window stops when it moves less than this, px. */
@@ -73,8 +71,6 @@ export interface PatchCentre {
   y: number;
   /** Highest signal in the window, grey levels along the dye's colour (the change times the background's level). */
   peak: number;
-  /** The patch's strength: its highest departure of colour from the background's in ratios (dye-signal.ts). */
-  change: number;
   /** The dye's direction of change (unit, its components summing to zero): its hue against the background. */
   colour: [number, number, number];
   /** The patch's second moments, px². */
@@ -287,29 +283,6 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       if (iteration > 1 && Math.hypot(mx, my) < settledPx) break;
     }
     if (!shape) return null;
-    // The patch's strength: its highest departure of colour in ratios (dye-signal.ts) within
-    // `strengthSigmas` of the centre, on pixels no other blob holds.
-    let strength = 0;
-    {
-      const det = shape[0] * shape[2] - shape[1] * shape[1];
-      const i0 = shape[2] / det;
-      const i1 = -shape[1] / det;
-      const i2 = shape[0] / det;
-      const limit = strengthSigmas * strengthSigmas;
-      const rx = strengthSigmas * Math.sqrt(shape[0]) + 1;
-      const ry = strengthSigmas * Math.sqrt(shape[2]) + 1;
-      for (let row = Math.max(0, Math.floor(y - ry)); row <= Math.min(height - 1, Math.ceil(y + ry)); row++) {
-        const dy = row - y;
-        const a = Math.max(spans[2 * row]!, Math.floor(x - rx));
-        const b = Math.min(spans[2 * row + 1]!, Math.ceil(x + rx) + 1);
-        for (let col = a; col < b; col++) {
-          const dx = col - x;
-          if (i0 * dx * dx + 2 * i1 * dx * dy + i2 * dy * dy > limit || (free && !free(col, row))) continue;
-          const q = 3 * (row * width + col);
-          strength = Math.max(strength, relativeChangeSquared(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!));
-        }
-      }
-    }
     // The background's brightness at the box's centre turns the relative change into grey levels.
     const middle = 3 * (((row0 + row1) >> 1) * width + ((col0 + col1) >> 1));
     const level = (bg[middle]! + bg[middle + 1]! + bg[middle + 2]!) / 3;
@@ -317,7 +290,6 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       x,
       y,
       peak: peak * level,
-      change: Math.sqrt(strength),
       colour: [hue[0]!, hue[1]!, hue[2]!],
       spread: { xx: shape[0], xy: shape[1], yy: shape[2] },
     };

@@ -13,7 +13,7 @@
  * the bottom, lit by only part of the light, is such a weaker copy of it.
  */
 import { createDyeCentre } from "./dye-centre";
-import { relativeChangeSquared } from "./dye-signal";
+import { blobStrength, createColourNoise, distinctPatches, shadowShare } from "./dye-patches";
 import { floatCentre } from "./float-centre";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect, OpenCv } from "./opencv-types";
@@ -51,18 +51,10 @@ export interface Detector {
 const detectSigmas = 5;
 const weightSigmas = 3;
 const noiseStride = 4;
-/** A dye's change of colour is sampled on every 8th pixel of every 8th row (some 7000 in a 670 px tank), as dye-centre.ts does. */
-const colourNoiseStride = 8;
 const maxBlobs = 254;
 const maxDetections = 50;
 /** A float with more unreadable pixels than this share of its area is not placed (float-centre.ts). */
 const hiddenShare = 0.25;
-/** A dye patch changing the colour less than this share of the frame's strongest is taken for its shadow. */
-export const shadowShare = 0.5;
-/** Finds of one frame within this many of a stronger patch's standard deviations are that patch. */
-const samePatchSigmas = 2;
-/** Histogram bins per unit of a dye's change of colour (|s|, dye-signal.ts), up to a change of 0.5. */
-const changeBins = 2048;
 
 /** The decoder's crop and channel choice, for a frame already in memory (tests, demo seeding). */
 export function cropForPlan(frame: FrameImage, plan: DetectionPlan): FrameImage {
@@ -114,31 +106,6 @@ function rowSpans(rows: number, cols: number, step: number, offset: number, tank
   return spans;
 }
 
-/**
- * The dye finds of one frame that are patches of their own: a find whose measured centre lies
- * within `samePatchSigmas` of a stronger find's shape is that patch again (one patch can leave
- * several blobs, split by the cleaning where its edge is faint), and a find changing the colour
- * less than `shadowShare` as much as the frame's strongest is taken for a shadow of it.
- */
-export function distinctPatches(patches: readonly { detection: Detection; change: number }[]): Detection[] {
-  const strongest = patches.reduce((most, p) => Math.max(most, p.change), 0);
-  const kept: Detection[] = [];
-  for (const p of [...patches].sort((a, b) => b.change - a.change)) {
-    if (!(p.change >= shadowShare * strongest)) continue;
-    const d = p.detection;
-    const same = kept.some((k) => {
-      if (!k.spread) return false;
-      const { xx, xy, yy } = k.spread;
-      const det = xx * yy - xy * xy;
-      const dx = d.x - k.x;
-      const dy = d.y - k.y;
-      return det > 0 && (yy * dx * dx - 2 * xy * dx * dy + xx * dy * dy) / det <= samePatchSigmas * samePatchSigmas;
-    });
-    if (!same) kept.push(d);
-  }
-  return kept;
-}
-
 export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   const { smallWidth: sw, smallHeight: sh, shrink: k } = plan;
   const width = plan.crop.width;
@@ -152,7 +119,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   const fullSpans = rowSpans(height, width, 1, 0, plan.tank);
   const smallSpans = rowSpans(sh, sw, k, (k - 1) / 2, plan.tank);
   const hist = new Uint32Array(511);
-  const changeHist = new Uint32Array(changeBins / 2 + 1);
+  const colourNoise = createColourNoise(width, height, fullSpans);
   const colour = new Float64Array(3);
   const block = k * k;
   const threshold = createThreshold(plan, smallSpans, detectSigmas);
@@ -171,24 +138,6 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     if (plan.tracer === "dye" && background && background.length !== width * height * 3) {
       throw new Error("A dye background must be the colour image of the same region.");
     }
-  }
-
-  /** Offset and noise of a dye's change of colour against the background (|s|, dye-signal.ts) over the tank. */
-  function colourNoise(image: FrameImage, background: Uint8Array): { median: number; sigma: number } {
-    changeHist.fill(0);
-    const img = image.data;
-    const last = changeHist.length - 1;
-    for (let row = 0; row < height; row += colourNoiseStride) {
-      const a = fullSpans[2 * row]!;
-      const b = fullSpans[2 * row + 1]!;
-      for (let col = a; col < b; col += colourNoiseStride) {
-        const q = 3 * (row * width + col);
-        const change = Math.sqrt(relativeChangeSquared(img[q]!, img[q + 1]!, img[q + 2]!, background[q]!, background[q + 1]!, background[q + 2]!));
-        changeHist[Math.min(last, Math.round(change * changeBins))]!++;
-      }
-    }
-    const stats = robustStats(changeHist, 0);
-    return { median: stats.median / changeBins, sigma: stats.sigma / changeBins };
   }
 
   /** Offset and noise of the float difference, or of the water's saturation for dye. */
@@ -392,57 +341,22 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     };
   }
 
-  /**
-   * A dye blob's strength: the highest departure of colour in ratios (dye-signal.ts) over its own
-   * pixels, each read from the 3 × 3 pixels around it (a single pixel's noise would decide it).
-   */
-  function blobStrength(blob: Blob, image: FrameImage, background: Uint8Array): number {
-    const lab = labels.data;
-    const img = image.data;
-    let most = 0;
-    const row0 = Math.max(1, blob.rect.y * k);
-    const row1 = Math.min(height - 1, (blob.rect.y + blob.rect.height) * k);
-    const col0 = Math.max(1, blob.rect.x * k);
-    const col1 = Math.min(width - 1, (blob.rect.x + blob.rect.width) * k);
-    for (let row = row0; row < row1; row++) {
-      const labelRow = Math.min(sh - 1, Math.floor(row / k)) * sw;
-      for (let col = col0; col < col1; col++) {
-        if (lab[labelRow + Math.min(sw - 1, Math.floor(col / k))] !== blob.label) continue;
-        let i0 = 0;
-        let i1 = 0;
-        let i2 = 0;
-        let b0 = 0;
-        let b1 = 0;
-        let b2 = 0;
-        for (let r = row - 1; r <= row + 1; r++) {
-          for (let q = 3 * (r * width + col - 1), end = q + 9; q < end; q += 3) {
-            i0 += img[q]!;
-            i1 += img[q + 1]!;
-            i2 += img[q + 2]!;
-            b0 += background[q]!;
-            b1 += background[q + 1]!;
-            b2 += background[q + 2]!;
-          }
-        }
-        most = Math.max(most, relativeChangeSquared(i0, i1, i2, b0, b1, b2));
-      }
-    }
-    return Math.sqrt(most);
-  }
-
   return {
     detect(image, background, windows) {
       check(image, background);
       const bg = plan.tracer === "float" ? background : null;
       const dyeBackground = plan.tracer === "dye" ? background : null;
       // Dye against a background: the noise of its change of colour (dye-centre.ts measures its own for the centre).
-      const { median, sigma } = dyeBackground ? colourNoise(image, dyeBackground) : noise(image, bg);
+      const { median, sigma } = dyeBackground ? colourNoise(image.data, dyeBackground) : noise(image, bg);
       const measure = (regions: CvRect[]): Detection[] => {
         let detections: Detection[] = [];
         if (regions.length === 0) return detections;
         if (dyeBackground) {
           // Only blobs at least `shadowShare` as strong as the frame's strongest are measured.
-          const found = blobs(regions).map((blob) => ({ blob, change: blobStrength(blob, image, dyeBackground) }));
+          const found = blobs(regions).map((blob) => ({
+            blob,
+            change: blobStrength({ labels: labels.data, width: sw, height: sh, shrink: k }, blob, image.data, dyeBackground, width, height),
+          }));
           const strongest = found.reduce((most, f) => Math.max(most, f.change), 0);
           const patches: { detection: Detection; change: number }[] = [];
           for (const { blob, change } of found) {

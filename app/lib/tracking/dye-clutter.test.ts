@@ -7,7 +7,8 @@
  */
 import { createRequire } from "node:module";
 import { afterAll, describe, expect, it } from "vitest";
-import { createDetector, cropForPlan, distinctPatches, type Detector, type FrameImage } from "./detect";
+import { createDetector, cropForPlan, type Detector, type FrameImage } from "./detect";
+import { distinctPatches } from "./dye-patches";
 import { relativeChangeAbove, relativeChangeSquared, levelDifference, differenceAlong } from "./dye-signal";
 import { hsv } from "./hsv";
 import type { OpenCv } from "./opencv-types";

@@ -1,14 +1,19 @@
 /**
  * Finding the tracer in one frame.
  *
- * Float: difference from the median background (bright float on darker water). Dye: HSV colour
+ * Float: difference from the median background (bright float on darker water). Dye: the change
+ * of colour against the stack's colour background (dye-signal.ts), or, without one, the HSV colour
  * range. Either way a detection image (blocks of `plan.shrink` px averaged) is thresholded (threshold.ts),
  * cleaned with an opening and a closing, and split into blobs; blobs are kept by area and
  * roundness. The centroid of each blob is then weighted by the un-thresholded signal (difference
  * or saturation) at full resolution, less a noise floor, which keeps it sub-pixel. A dye blob
- * given the stack's colour background is instead measured over the whole patch (dye-centre.ts).
+ * found against the background is instead measured over the whole patch (dye-centre.ts), kept
+ * when its colour changes towards a hue of the plan's range, and dropped when it changes the
+ * colour less than half as much as the strongest patch of the frame: a dye's coloured shadow on
+ * the bottom, lit by only part of the light, is such a weaker copy of it.
  */
 import { createDyeCentre } from "./dye-centre";
+import { blobStrength, createColourNoise, distinctPatches, shadowShare } from "./dye-patches";
 import { floatCentre } from "./float-centre";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect, OpenCv } from "./opencv-types";
@@ -114,6 +119,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   const fullSpans = rowSpans(height, width, 1, 0, plan.tank);
   const smallSpans = rowSpans(sh, sw, k, (k - 1) / 2, plan.tank);
   const hist = new Uint32Array(511);
+  const colourNoise = createColourNoise(width, height, fullSpans);
   const colour = new Float64Array(3);
   const block = k * k;
   const threshold = createThreshold(plan, smallSpans, detectSigmas);
@@ -305,13 +311,26 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   function patchCentre(blob: Blob, image: FrameImage, background: Uint8Array): Detection | null {
     if (!dyeCentre) return null;
     const margin = k + 2;
-    const found = dyeCentre(image, background, {
-      col0: blob.rect.x * k - margin,
-      row0: blob.rect.y * k - margin,
-      col1: (blob.rect.x + blob.rect.width) * k + margin,
-      row1: (blob.rect.y + blob.rect.height) * k + margin,
-    });
+    const lab = labels.data;
+    const found = dyeCentre(
+      image,
+      background,
+      {
+        col0: blob.rect.x * k - margin,
+        row0: blob.rect.y * k - margin,
+        col1: (blob.rect.x + blob.rect.width) * k + margin,
+        row1: (blob.rect.y + blob.rect.height) * k + margin,
+      },
+      // The first estimate keeps to pixels no other blob holds: a stronger patch beside this one would draw it over.
+      (col, row) => {
+        const owner = lab[Math.min(sh - 1, Math.floor(row / k)) * sw + Math.min(sw - 1, Math.floor(col / k))];
+        return owner === 0 || owner === blob.label;
+      },
+    );
     if (!found || !(found.x >= 0 && found.x <= width - 1 && found.y >= 0 && found.y <= height - 1)) return null;
+    // The hue the colour changes towards: that of grey moved along the dye's direction (any step gives the same hue).
+    hsv(128 + 100 * found.colour[0], 128 + 100 * found.colour[1], 128 + 100 * found.colour[2], colour);
+    if (!hueInRange(colour[0]!, hueMin, hueMax)) return null;
     return {
       x: plan.crop.left + found.x,
       y: plan.crop.top + found.y,
@@ -327,28 +346,44 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
       check(image, background);
       const bg = plan.tracer === "float" ? background : null;
       const dyeBackground = plan.tracer === "dye" ? background : null;
-      // Dye measured against a background has noise figures of its own (dye-centre.ts).
-      const { median, sigma } = dyeBackground ? { median: 0, sigma: 0 } : noise(image, bg);
+      // Dye against a background: the noise of its change of colour (dye-centre.ts measures its own for the centre).
+      const { median, sigma } = dyeBackground ? colourNoise(image.data, dyeBackground) : noise(image, bg);
       const measure = (regions: CvRect[]): Detection[] => {
-        const detections: Detection[] = [];
+        let detections: Detection[] = [];
         if (regions.length === 0) return detections;
-        for (const blob of blobs(regions)) {
-          const d = dyeBackground ? patchCentre(blob, image, dyeBackground) : centroid(blob, image, bg, median, sigma);
-          if (d) detections.push(d);
+        if (dyeBackground) {
+          // Only blobs at least `shadowShare` as strong as the frame's strongest are measured.
+          const found = blobs(regions).map((blob) => ({
+            blob,
+            change: blobStrength({ labels: labels.data, width: sw, height: sh, shrink: k }, blob, image.data, dyeBackground, width, height),
+          }));
+          const strongest = found.reduce((most, f) => Math.max(most, f.change), 0);
+          const patches: { detection: Detection; change: number }[] = [];
+          for (const { blob, change } of found) {
+            if (!(change >= shadowShare * strongest)) continue;
+            const detection = patchCentre(blob, image, dyeBackground);
+            if (detection) patches.push({ detection, change });
+          }
+          detections = distinctPatches(patches);
+        } else {
+          for (const blob of blobs(regions)) {
+            const d = centroid(blob, image, bg, median, sigma);
+            if (d) detections.push(d);
+          }
         }
         detections.sort((a, b) => b.intensity * b.area - a.intensity * a.area);
         detections.length = Math.min(detections.length, maxDetections);
         return detections;
       };
       if (windows && windows.length > 0) {
-        const regions = threshold.run(mask.data, image, bg, median, sigma, threshold.windowTiles(windows));
+        const regions = threshold.run(mask.data, image, bg ?? dyeBackground, median, sigma, threshold.windowTiles(windows));
         if (regions) {
           const found = measure(regions);
           const held = (w: SearchWindow) => found.some((d) => Math.abs(d.x - w.x) <= w.reach && Math.abs(d.y - w.y) <= w.reach);
           if (windows.every(held)) return found;
         }
       }
-      return measure(threshold.run(mask.data, image, bg, median, sigma) ?? []);
+      return measure(threshold.run(mask.data, image, bg ?? dyeBackground, median, sigma) ?? []);
     },
     dispose() {
       if (disposed) return;

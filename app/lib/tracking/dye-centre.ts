@@ -4,16 +4,17 @@
  * A dye patch is faint, wide and elongated: thresholding its colour keeps a ragged core whose
  * outline moves with the noise, and weighting by saturation (a ratio of channels) is noisy and
  * not proportional to the amount of dye. Here every pixel's difference from the background is
- * used instead, per channel divided by the background's own level there (so the light falling on
- * that part of the tank cancels: an uneven light would otherwise pull the centre towards the
- * brighter side), and projected on the dye's colour direction, estimated from the patch itself
- * (so a dark or a bright dye of any hue gives a positive signal, and the channels add up the way
- * that keeps most signal over the noise). The weight is that signal above the water's level,
- * clipped at zero.
+ * used instead, over the background's level there (dye-signal.ts), projected on the patch's own
+ * direction: its change of colour, which glare, and on a grey bottom grid lines and shadows, do
+ * not touch, plus its change of brightness weighted down by how badly the background explains
+ * the brightness in a ring around the patch (the matched filter for noise of unequal parts: on a
+ * plain view a dark dye's darkening counts in full, under glare or over lines the background does
+ * not hold only its colour does). A dark or a bright dye of any hue gives a positive signal. The
+ * weight is that signal above the water's level, clipped at zero.
  *
- * A first pass over the colour blob's box, with the weights above a threshold of two noise
- * widths, gives a first centre and shape. Then the weights are multiplied by a Gaussian of the
- * patch's own shape (its second moments: size, elongation and direction, which change slowly
+ * A first pass over the blob's box, on pixels no other blob holds and with the weights above half
+ * the box's highest signal (so a weaker patch beside it, such as its shadow, stays out), gives a
+ * first centre and shape. Then the weights are multiplied by a Gaussian of the patch's own shape (its second moments: size, elongation and direction, which change slowly
  * from frame to frame) centred on the current centre, the centre moved to their centroid, and
  * the shape measured again, until the centre stops moving. For a Gaussian patch this fixed point
  * is the least-squares centre (the same equation), which keeps the error near the lowest a
@@ -21,26 +22,33 @@
  * noise sits symmetrically about the centre and does not pull it. The Gaussian weight halves the
  * measured moments, so the next window takes twice them; that converges to the patch's own.
  */
+import { differenceAlong, levelDifference } from "./dye-signal";
 import { robustStats } from "./robust-stats";
 
 /** Threshold below which the signal gets no weight, in noise widths. */
 const thresholdSigmas = 2;
 /** Half-size of the window in the patch's standard deviations. */
 const windowSigmas = 3.5;
-/** The first pass's thresholded moments fall short of the patch's own; this much is made up. */
-const firstGrowth = 1.5;
+/**
+ * The first pass weighs the signal above half the box's highest (a weaker patch beside this one,
+ * such as its shadow, stays out of it); for a Gaussian patch those moments are 0.217 of its own.
+ */
+const firstShare = 0.5;
+const firstGrowth = 1 / 0.217;
 /** Largest variance of the window along an axis, px² (a 100 px standard deviation). */
 const maxVariance = 1e4;
 const maxIterations = 12;
+/** The ring around the box where the background's misfit is read is at least this wide, px. */
+const ringMinPx = 4;
 /** The window stops when it moves less than this, px. */
 const settledPx = 2e-3;
 /** Smallest variance of the window along any direction, px². */
 const minVariance = 0.5;
 /** Every 8th pixel of every 8th row: some 7000 samples in a 670 px tank, plenty for a median and MAD. */
 const noiseStride = 8;
-/** Histogram bins per grey level of signal, and its half-range in grey levels. */
-const binsPerLevel = 4;
-const halfRange = 512;
+/** Histogram bins per unit of signal (a relative change of colour), and its half-range. */
+const binsPerUnit = 4096;
+const halfRange = 0.5;
 
 export interface DyeImage {
   /** Interleaved RGB, row-major. */
@@ -61,8 +69,10 @@ export interface PatchCentre {
   /** Crop px. */
   x: number;
   y: number;
-  /** Highest signal in the window, grey levels along the dye's colour. */
+  /** Highest signal in the window, grey levels along the dye's colour (the change times the background's level). */
   peak: number;
+  /** The dye's direction of change (unit, its components summing to zero): its hue against the background. */
+  colour: [number, number, number];
   /** The patch's second moments, px². */
   spread: { xx: number; xy: number; yy: number };
 }
@@ -72,25 +82,22 @@ export interface PatchCentre {
  * searched (inside the tank edge).
  */
 export function createDyeCentre(width: number, height: number, spans: Int32Array) {
-  const hist = new Uint32Array(2 * halfRange * binsPerLevel + 1);
-  const factor = new Float64Array(3);
+  const hist = new Uint32Array(2 * halfRange * binsPerUnit + 1);
+  /** The dye's direction of change, unit length. */
+  const direction = new Float64Array(3);
+  const change = new Float64Array(3);
+  /** The patch's change of colour alone, unit length (its components sum to zero). */
+  const hue = new Float64Array(3);
   // The window's passes visit mostly the same pixels, and a pixel's signal is fixed for the
   // frame: each is worked out once per frame (`stamp` says for which measurement).
   const signals = new Float64Array(width * height);
   const stamp = new Uint32Array(width * height);
   let measurement = 0;
 
-  /** The per-channel factors of the signal at one pixel: direction × level / local background. */
+  /** The change of colour at one pixel along the dye's direction (dye-signal.ts). */
   function signalAt(img: Uint8Array, bg: Uint8Array, p: number): number {
     const q = 3 * p;
-    const b0 = bg[q]!;
-    const b1 = bg[q + 1]!;
-    const b2 = bg[q + 2]!;
-    return (
-      (factor[0]! * (img[q]! - b0)) / (b0 > 0 ? b0 : 1) +
-      (factor[1]! * (img[q + 1]! - b1)) / (b1 > 0 ? b1 : 1) +
-      (factor[2]! * (img[q + 2]! - b2)) / (b2 > 0 ? b2 : 1)
-    );
+    return differenceAlong(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, direction);
   }
 
   /** signalAt, once per pixel per measurement. */
@@ -102,7 +109,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     return s;
   }
 
-  return function measure(image: DyeImage, background: Uint8Array, box: PatchBox): PatchCentre | null {
+  return function measure(image: DyeImage, background: Uint8Array, box: PatchBox, free?: (col: number, row: number) => boolean): PatchCentre | null {
     const img = image.data;
     const bg = background;
     const col0 = Math.max(0, box.col0);
@@ -111,22 +118,63 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     const row1 = Math.min(height, box.row1);
     if (col1 <= col0 || row1 <= row0) return null;
 
-    // The light level at the box's centre turns relative differences back into grey levels.
-    const middle = 3 * (((row0 + row1) >> 1) * width + ((col0 + col1) >> 1));
-    const level = [Math.max(1, bg[middle]!), Math.max(1, bg[middle + 1]!), Math.max(1, bg[middle + 2]!)];
-    // The dye's colour direction: the summed relative difference over the blob's box.
+    // The patch's summed difference over its box (dye-signal.ts), split into its change of colour
+    // (the part that sums to zero over the channels) and its change of brightness.
     const sum = [0, 0, 0];
     for (let row = row0; row < row1; row++) {
       const a = Math.max(col0, spans[2 * row]!);
       const b = Math.min(col1, spans[2 * row + 1]!);
       for (let col = a; col < b; col++) {
         const q = 3 * (row * width + col);
-        for (let c = 0; c < 3; c++) sum[c]! += ((img[q + c]! - bg[q + c]!) * level[c]!) / Math.max(1, bg[q + c]!);
+        levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change);
+        sum[0]! += change[0]!;
+        sum[1]! += change[1]!;
+        sum[2]! += change[2]!;
       }
     }
-    const norm = Math.hypot(sum[0]!, sum[1]!, sum[2]!);
+    const brightness = (sum[0]! + sum[1]! + sum[2]!) / 3;
+    const chroma = [sum[0]! - brightness, sum[1]! - brightness, sum[2]! - brightness];
+    const chromaNorm = Math.hypot(chroma[0]!, chroma[1]!, chroma[2]!);
+    if (!(chromaNorm > 0)) return null;
+    for (let c = 0; c < 3; c++) hue[c] = chroma[c]! / chromaNorm;
+    // What the background leaves around the patch, in each of the two parts: sensor noise in both,
+    // and in brightness also whatever darkens or brightens all channels alike (grid lines and
+    // shadows the background does not hold, glare). Each part then counts by its share of the
+    // patch's signal over that mean square (the matched filter for noise of unequal parts): on a
+    // plain view a dark dye's darkening counts in full, under glare and over moving lines only its
+    // colour does.
+    const ringX = Math.max(ringMinPx, (col1 - col0) >> 1);
+    const ringY = Math.max(ringMinPx, (row1 - row0) >> 1);
+    let brightSquares = 0;
+    let colourSquares = 0;
+    let ringCount = 0;
+    for (let row = Math.max(0, row0 - ringY); row < Math.min(height, row1 + ringY); row++) {
+      const inRows = row >= row0 && row < row1;
+      const a = Math.max(col0 - ringX, spans[2 * row]!);
+      const b = Math.min(col1 + ringX, spans[2 * row + 1]!);
+      for (let col = a; col < b; col++) {
+        if (inRows && col >= col0 && col < col1) continue;
+        const q = 3 * (row * width + col);
+        levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change);
+        const mean = (change[0]! + change[1]! + change[2]!) / 3;
+        // Along (1, 1, 1)/√3 the brightness part is √3 × the mean.
+        brightSquares += 3 * mean * mean;
+        const along = (change[0]! - mean) * hue[0]! + (change[1]! - mean) * hue[1]! + (change[2]! - mean) * hue[2]!;
+        colourSquares += along * along;
+        ringCount++;
+      }
+    }
+    let brightWeight = 0;
+    let colourWeight = 1;
+    if (ringCount > 0 && colourSquares > 0 && brightSquares > 0) {
+      brightWeight = (Math.sqrt(3) * brightness) / (brightSquares / ringCount);
+      colourWeight = chromaNorm / (colourSquares / ringCount);
+    }
+    const unit = Math.sqrt(3);
+    for (let c = 0; c < 3; c++) direction[c] = brightWeight / unit + colourWeight * hue[c]!;
+    const norm = Math.hypot(direction[0]!, direction[1]!, direction[2]!);
     if (!(norm > 0)) return null;
-    for (let c = 0; c < 3; c++) factor[c] = (sum[c]! / norm) * level[c]!;
+    for (let c = 0; c < 3; c++) direction[c] = direction[c]! / norm;
     // A new colour direction: signals worked out before belong to another measurement.
     measurement = measurement === 0xffffffff ? 1 : measurement + 1;
     if (measurement === 1) stamp.fill(0);
@@ -138,15 +186,22 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       const b = spans[2 * row + 1]!;
       for (let col = a; col < b; col += noiseStride) {
         const s = signalAt(img, bg, row * width + col);
-        const bin = Math.round((Math.max(-halfRange, Math.min(halfRange, s)) + halfRange) * binsPerLevel);
+        const bin = Math.round((Math.max(-halfRange, Math.min(halfRange, s)) + halfRange) * binsPerUnit);
         hist[bin]!++;
       }
     }
-    const stats = robustStats(hist, halfRange * binsPerLevel);
-    const floor = (stats.median + thresholdSigmas * stats.sigma) / binsPerLevel;
+    const stats = robustStats(hist, halfRange * binsPerUnit);
+    const floor = (stats.median + thresholdSigmas * stats.sigma) / binsPerUnit;
 
-    // First pass: the thresholded signal over the box gives a first centre and shape.
-    const offset = stats.median / binsPerLevel;
+    // First pass: the signal over the box above half its highest gives a first centre and shape.
+    let top = 0;
+    for (let row = row0; row < row1; row++) {
+      const a = Math.max(col0, spans[2 * row]!);
+      const b = Math.min(col1, spans[2 * row + 1]!);
+      for (let col = a; col < b; col++) if (!free || free(col, row)) top = Math.max(top, signalOnce(img, bg, row * width + col));
+    }
+    const firstFloor = Math.max(floor, firstShare * top);
+    const offset = stats.median / binsPerUnit;
     let x = (col0 + col1 - 1) / 2;
     let y = (row0 + row1 - 1) / 2;
     let shape: [number, number, number] | null = null;
@@ -193,9 +248,10 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
             if (s > peak) peak = s;
             weight = Math.max(0, s - offset) * Math.exp(-0.5 * q);
           } else {
+            if (free && !free(col, row)) continue;
             const s = signalOnce(img, bg, row * width + col);
             if (s > peak) peak = s;
-            weight = s - floor;
+            weight = s - firstFloor;
             if (weight <= 0) continue;
           }
           w += weight;
@@ -227,6 +283,15 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       if (iteration > 1 && Math.hypot(mx, my) < settledPx) break;
     }
     if (!shape) return null;
-    return { x, y, peak, spread: { xx: shape[0], xy: shape[1], yy: shape[2] } };
+    // The background's brightness at the box's centre turns the relative change into grey levels.
+    const middle = 3 * (((row0 + row1) >> 1) * width + ((col0 + col1) >> 1));
+    const level = (bg[middle]! + bg[middle + 1]! + bg[middle + 2]!) / 3;
+    return {
+      x,
+      y,
+      peak: peak * level,
+      colour: [hue[0]!, hue[1]!, hue[2]!],
+      spread: { xx: shape[0], xy: shape[1], yy: shape[2] },
+    };
   };
 }

@@ -3,7 +3,9 @@
  * regions of touching tiles that the OpenCV cleaning then works on.
  *
  * Floats: the difference from the background above a noise threshold, compared as block sums so
- * that no pixel needs a division. Dye: the block's colour inside the plan's HSV range, value and
+ * that no pixel needs a division. Dye against the stack's background: the block's change of colour
+ * (dye-signal.ts, free of brightness) above a noise threshold, whatever its hue. Dye without a
+ * background (fewer than 3 frames): the block's colour inside the plan's HSV range, value and
  * saturation checked before any hue is worked out.
  *
  * The search may be held to windows around where the tracers are expected (search-windows.ts),
@@ -13,6 +15,7 @@
  * the tiles) and the pixel beyond that which the 3 × 3 cleaning reads are the same either way.
  * Otherwise the windows are not trusted and the caller searches the whole frame.
  */
+import { relativeChangeAbove } from "./dye-signal";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
@@ -22,6 +25,8 @@ export const tileSize = 32;
 const tileShift = 5;
 /** Lowest contrast (grey levels) that counts, for nearly noiseless frames. */
 const minContrast = 5;
+/** Lowest change of colour against the background that counts for dye (2 %), likewise. */
+export const minColourChange = 0.02;
 
 /** A square of the frame to search: centre and half-side, full-frame px. */
 export interface SearchWindow {
@@ -40,7 +45,9 @@ export interface Threshold {
    * groups of touching tiles holding at least two neighbouring pixels above the threshold. Stray
    * noise pixels set no tile, so the OpenCV work stays near the tracer however large the tank
    * is. With `tiles` (from `windowTiles`) only those tiles are searched, and null comes back if
-   * a find lies too close to their edge to be sure of it.
+   * a find lies too close to their edge to be sure of it. For dye, `background` is the stack's
+   * colour background (or null: the colour range alone), and `offset` and `sigma` describe the
+   * change of colour (dye-signal.ts) over the tank.
    */
   run(mask: Uint8Array, image: ThresholdImage, background: Uint8Array | null, offset: number, sigma: number, tiles?: Uint8Array): CvRect[] | null;
   /** The tiles covering the windows (1 = search). */
@@ -62,6 +69,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
   const blockSums = new Float64Array(sw * 3);
   const colour = new Float64Array(3);
   const { hueMin, hueMax, satMin, valMin } = plan.dyeColour;
+  const dye = plan.tracer === "dye";
   // At full resolution the channels are whole numbers, and so is the usual saturation limit:
   // then 255·(v − least) < satMin·v decides exactly what the quotient would, without a division
   // for every pixel of water.
@@ -109,7 +117,9 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     let any = false;
     // A tile is set by two neighbouring marked pixels in a row: `previous` is the last one marked.
     let previous = -2;
-    const level = background ? (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block : 0;
+    const level = background && !dye ? (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block : 0;
+    // A block's mean change of colour has 1/k of a pixel's noise, and so has its offset (|s| is never negative).
+    const changeLevel = background && dye ? Math.max(minColourChange, (offset + detectSigmas * sigma) / k) : 0;
     for (let sy = 0; sy < sh; sy++) {
       const a = smallSpans[2 * sy]!;
       const b = smallSpans[2 * sy + 1]!;
@@ -121,6 +131,43 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
         const c0 = Math.max(a, runs[2 * r]!);
         const c1 = Math.min(b, runs[2 * r + 1]!);
         if (c0 >= c1) continue;
+        if (background && dye) {
+          // The change of colour against the background, of the block's mean at reduced resolution.
+          for (let sx = c0; sx < c1; sx++) {
+            let above: boolean;
+            if (k === 1) {
+              const p = 3 * (rowAt + sx);
+              above = relativeChangeAbove(img[p]!, img[p + 1]!, img[p + 2]!, background[p]!, background[p + 1]!, background[p + 2]!, changeLevel);
+            } else {
+              let i0 = 0;
+              let i1 = 0;
+              let i2 = 0;
+              let b0 = 0;
+              let b1 = 0;
+              let b2 = 0;
+              for (let ky = 0; ky < k; ky++) {
+                for (let p = 3 * ((sy * k + ky) * width + sx * k), end = p + 3 * k; p < end; p += 3) {
+                  i0 += img[p]!;
+                  i1 += img[p + 1]!;
+                  i2 += img[p + 2]!;
+                  b0 += background[p]!;
+                  b1 += background[p + 1]!;
+                  b2 += background[p + 2]!;
+                }
+              }
+              above = relativeChangeAbove(i0 / block, i1 / block, i2 / block, b0 / block, b1 / block, b2 / block, changeLevel);
+            }
+            if (!above) continue;
+            const at = rowAt + sx;
+            m[at] = 255;
+            if (previous === at - 1) {
+              tileHits[tileRow + (sx >> tileShift)] = 1;
+              any = true;
+            }
+            previous = at;
+          }
+          continue;
+        }
         if (background && k === 1) {
           // Full resolution: the detection image is the crop itself (sw = width).
           for (let p = rowAt + c0, end = rowAt + c1; p < end; p++) {

@@ -1,0 +1,74 @@
+/**
+ * A dye's signal at one pixel against the stack's colour background: two readings of the same
+ * difference, for two jobs.
+ *
+ * *Finding and comparing patches* (relativeChangeSquared): each channel's ratio to the background,
+ * r_c = I_c / B_c, over their mean, less 1: the colour's departure from the background's. Whatever
+ * multiplies all channels alike leaves it at zero, on any bottom: a grid line, a mark or a shadow
+ * the background does not hold (under a lab-fixed camera the grid turns through a still
+ * background), and the light falling unevenly on the tank. A dye seen through (I = B·T) gives
+ * T_c / mean(T) − 1, which grows as the dye darkens what lies behind it, while the dye's coloured
+ * shadow on the bottom, lit by only part of the lamps (I = B·(1 − f + f·T)), gives less: that is
+ * how a patch is told from its shadow (detect.ts). White glare on top of the dye weakens it.
+ *
+ * *Centring a patch* (levelDifference, differenceAlong): the difference itself per channel, over
+ * the background's mean level, projected on the patch's own direction (dye-centre.ts). Its part
+ * that sums to zero over the channels, the change of colour, is untouched by white glare
+ * (I = B + g adds the same g to every channel, on top of the dye too) and, on a grey bottom, by
+ * lines and shadows; it is about proportional to the amount of dye while the dye is faint. Its
+ * brightness part is not, and counts only as far as the background explains the brightness
+ * around the patch.
+ */
+
+/** The background's mean level, at least 1. */
+function levelOf(b0: number, b1: number, b2: number): number {
+  const level = (b0 + b1 + b2) / 3;
+  return level > 1 ? level : 1;
+}
+
+/**
+ * |r / mean(r) − 1|² with r_c = I_c / B_c (a black background channel taken as 1); 0 for a pixel
+ * black in every channel.
+ */
+export function relativeChangeSquared(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number): number {
+  const r0 = i0 / (b0 > 1 ? b0 : 1);
+  const r1 = i1 / (b1 > 1 ? b1 : 1);
+  const r2 = i2 / (b2 > 1 ? b2 : 1);
+  const sum = r0 + r1 + r2;
+  if (!(sum > 0)) return 0;
+  const scale = 3 / sum;
+  const s0 = r0 * scale - 1;
+  const s1 = r1 * scale - 1;
+  const s2 = r2 * scale - 1;
+  return s0 * s0 + s1 * s1 + s2 * s2;
+}
+
+/** The pixel's difference from the background per channel over the background's mean level, into `out`. */
+export function levelDifference(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, out: Float64Array): void {
+  const scale = 1 / levelOf(b0, b1, b2);
+  out[0] = (i0 - b0) * scale;
+  out[1] = (i1 - b1) * scale;
+  out[2] = (i2 - b2) * scale;
+}
+
+/** levelDifference projected on a unit direction `u`. */
+export function differenceAlong(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, u: Float64Array): number {
+  return ((i0 - b0) * u[0]! + (i1 - b1) * u[1]! + (i2 - b2) * u[2]!) / levelOf(b0, b1, b2);
+}
+
+/**
+ * Whether relativeChangeSquared exceeds `level²`, without a division: with P_c the product of the
+ * other two channels' background, r_c ∝ I_c·P_c, and |r / mean(r) − 1|² = 9·Σr_c² / (Σr_c)² − 3.
+ * For the threshold's pass over every searched pixel.
+ */
+export function relativeChangeAbove(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, level: number): boolean {
+  const c0 = b0 > 1 ? b0 : 1;
+  const c1 = b1 > 1 ? b1 : 1;
+  const c2 = b2 > 1 ? b2 : 1;
+  const r0 = i0 * c1 * c2;
+  const r1 = i1 * c0 * c2;
+  const r2 = i2 * c0 * c1;
+  const sum = r0 + r1 + r2;
+  if (!(sum > 0)) return false;
+  return 9 * (r0 * r0 + r1 * r1 + r2 * r2) > (level * level + 3) * sum * sum;
+}

@@ -106,7 +106,7 @@ export interface KnownPointsFit {
   points: { clicked: Point; fitted: Point; offPx: number }[];
   /** RMS of offPx */
   residualPx: number;
-  /** the table's grid (lines every stepCm out to radiusCm, and the circle of radiusCm) as the camera sees it, image px */
+  /** the table's grid (lines every stepCm within radiusCm, the farthest point's distance, and that circle) as the camera sees it, image px */
   grid: { lines: [Point, Point][]; circle: Point[]; stepCm: number; radiusCm: number };
 }
 
@@ -136,7 +136,8 @@ export function knownPointsFit(points: readonly KnownPoint[], mirrored: boolean)
   const residualPx = Math.sqrt(fitted.reduce((s, p) => s + p.offPx ** 2, 0) / fitted.length);
   const reach = Math.max(...pairs.map((p) => Math.hypot(p.to.x, p.to.y)));
   const stepCm = gridStep(reach);
-  const radiusCm = Math.ceil(reach / stepCm) * stepCm;
+  // Out to the farthest point (to the whole cm), so the grid covers what the marks vouch for and no more.
+  const radiusCm = Math.ceil(reach - 1e-9);
   const lines: [Point, Point][] = [];
   const send = (p: Point) => project(toImage, p);
   for (let k = -Math.floor(radiusCm / stepCm); k <= Math.floor(radiusCm / stepCm); k++) {

@@ -92,7 +92,7 @@ export default function Setup({ loaderData, actionData }: Route.ComponentProps) 
     <div>
       <PageHeader
         title={`View setup · ${runLabel(runId)}`}
-        subtitle="Mark the rotation centre, the tank edge, the scale and, with a lab-fixed camera, a mark on the table on the first frame; with a camera not quite overhead, points on the rim."
+        subtitle="Mark the rotation centre, the tank edge, the scale and, with a lab-fixed camera, a mark on the table on the first frame; with a camera not quite overhead, points on the rim or marks whose place on the table you know."
         actions={<ButtonLink to={`/runs/${runId}`}>Back to the run</ButtonLink>}
       />
       {imageMissing ? (

@@ -5,7 +5,7 @@ import { minKnownPoints, type KnownPointEntry, type KnownPointsFit } from "~/lib
 import type { SetupValues } from "~/lib/setup-marks";
 import type { useNumberFields } from "./use-number-fields";
 
-const knownColour = "#c9a7ff";
+const knownColour = "#d2b6ff";
 const gridColour = "#7fd4ff";
 
 /**
@@ -34,16 +34,25 @@ export function KnownPointsOverlay({ entries, fit, mark }: { entries: readonly K
       {entries.map((p, i) => (
         <g key={i}>
           <rect
-            x={p.x - mark}
-            y={p.y - mark}
-            width={mark * 2}
-            height={mark * 2}
+            x={p.x - mark * 1.2}
+            y={p.y - mark * 1.2}
+            width={mark * 2.4}
+            height={mark * 2.4}
             transform={`rotate(45 ${p.x} ${p.y})`}
             fill={knownColour}
-            stroke="#000"
-            strokeWidth={mark / 4}
+            stroke="#1b0a36"
+            strokeWidth={mark / 3}
           />
-          <text x={p.x + mark * 1.5} y={p.y - mark * 1.5} fontSize={mark * 3} fill={knownColour} stroke="#000" strokeWidth={mark / 6} paintOrder="stroke">
+          <text
+            x={p.x + mark * 1.8}
+            y={p.y - mark * 1.8}
+            fontSize={mark * 3.2}
+            fontWeight="bold"
+            fill={knownColour}
+            stroke="#1b0a36"
+            strokeWidth={mark / 3}
+            paintOrder="stroke"
+          >
             {i + 1}
           </text>
         </g>
@@ -101,13 +110,19 @@ export function KnownPointsPanel({
                 </p>
                 <div className="grid grid-cols-[1fr_1fr_auto] items-end gap-2">
                   <TextField
-                    label={`Point ${i + 1} x`}
-                    unit="cm"
+                    label={
+                      <>
+                        <span className="sr-only">Point {i + 1} </span>x, cm
+                      </>
+                    }
                     {...numberField(`known-${i + 1}-x`, p.tableXCm, set(i, "tableXCm"), undefined, { invalidAsBlank: true })}
                   />
                   <TextField
-                    label={`Point ${i + 1} y`}
-                    unit="cm"
+                    label={
+                      <>
+                        <span className="sr-only">Point {i + 1} </span>y, cm
+                      </>
+                    }
                     {...numberField(`known-${i + 1}-y`, p.tableYCm, set(i, "tableYCm"), undefined, { invalidAsBlank: true })}
                   />
                   <Button type="button" tone="quiet" aria-label={`Remove point ${i + 1}`} onClick={() => onRemove(i)}>

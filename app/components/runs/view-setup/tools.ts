@@ -10,7 +10,7 @@ export const toolText: Record<Tool, string> = {
   mark: "Click a small, distinct mark on the turntable away from the centre (a lab-fixed camera only): the table's rate is read from how it turns.",
   tilt: "Click five or more points where the water meets the tank wall, spread all round: each click adds one. Their ellipse shows how far the camera leans.",
   known:
-    "Click four or more marks whose place on the table you measured, spread around the tank; each click adds one, then type its position in cm from the rotation centre in the list.",
+    "Click four or more marks whose place on the table you measured, spread around the tank, then type each one's position in the list. Zoom in to click each mark's middle: at a few degrees of lean, a click half a pixel off moves the reading by a degree or more.",
 };
 
 export const toolLabel: Record<Tool, string> = {

@@ -56,6 +56,7 @@ export default [
     route("runs/:id/tracks.csv", "routes/api/run-tracks-csv.ts"),
     route("runs/:id/export.json", "routes/api/run-export.ts"),
     route("runs/:id/sign-off", "routes/api/run-sign-off.ts"),
+    route("runs/:id/view-setup", "routes/api/run-view-setup.ts"),
     route("openapi.json", "routes/api/openapi.ts"),
     route("runs/:runId/frames", "routes/api/run-frames.ts"),
     route("runs/:runId/tracking", "routes/api/run-tracking.ts"),

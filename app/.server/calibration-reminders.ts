@@ -4,7 +4,8 @@ import { onBoot } from "./boot";
 import { usesJobQueue } from "./jobs/boss";
 import { enqueueMail } from "./mail/outbox";
 import { getLabSettings } from "./settings";
-import { calibrationReminderKey, listCalibrationsDueOrExpired } from "./calibrations";
+import { listCalibrationsDueOrExpired } from "./calibrations-in-force";
+import { calibrationReminderKey } from "./calibration-views";
 import { calibrationKindLabels } from "~/lib/calibrations";
 import { timeFormat } from "~/lib/time-format";
 

@@ -2,19 +2,9 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { Op } from "sequelize";
 import { Calibration, CalibrationAttachment, CapturedMail, Equipment, OutboxMail, User, migrate, sequelize } from "./db";
 import { OutboxSender } from "./mail/outbox-sender";
-import {
-  CalibrationError,
-  calibrationReminderKey,
-  calibrationsInForce,
-  createCalibration,
-  listCalibrationsDueOrExpired,
-  rateCalibrationInForce,
-  serializeCalibrations,
-  signOffCalibration,
-  toDayString,
-  trueRateFromCalibration,
-  updateCalibration,
-} from "./calibrations";
+import { CalibrationError, createCalibration, signOffCalibration, toDayString, updateCalibration } from "./calibrations";
+import { calibrationsInForce, listCalibrationsDueOrExpired, rateCalibrationInForce, trueRateFromCalibration } from "./calibrations-in-force";
+import { calibrationReminderKey, serializeCalibrations } from "./calibration-views";
 import { runCalibrationReminders } from "./calibration-reminders";
 import { setLabTimeZone } from "./settings";
 import { addCalibrationAttachment } from "./uploads/calibration-attachments";

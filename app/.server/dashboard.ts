@@ -1,7 +1,7 @@
 import { Op } from "sequelize";
 import { Booking } from "./db";
 import { listBookings, serializeBookings } from "./bookings";
-import { listCalibrationsDueOrExpired } from "./calibrations";
+import { listCalibrationsDueOrExpired } from "./calibrations-in-force";
 import { listRunsWithTotal } from "./runs/queries";
 import { listCalibrationsAwaitingSignOff } from "./calibration-queries";
 import type { CurrentUser } from "./auth/permissions";

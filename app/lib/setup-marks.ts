@@ -1,5 +1,5 @@
 import type { Point } from "./geometry";
-import type { KnownPoint } from "./projective/view-correction";
+import type { KnownPointEntry } from "./projective/known-points";
 
 /**
  * The marks of a view setup as one list: each knows where it sits and how to move it, so the
@@ -16,8 +16,8 @@ export interface SetupValues {
   rateMark: Point | null;
   /** A camera not quite overhead (Decision 69): points on the tank's edge at the water's surface (five or more make an ellipse). */
   rimPoints: Point[];
-  /** …or points whose place on the table is known. */
-  knownPoints: KnownPoint[];
+  /** …or points whose place on the table is known (cm from the axis; null while not typed yet). */
+  knownPoints: KnownPointEntry[];
 }
 
 export interface SetupMark {

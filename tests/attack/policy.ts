@@ -87,6 +87,7 @@ export const policy: Record<string, Partial<Record<Method, Access>>> = {
   "routes/api/calibrations": { GET: signedIn, POST: labStaff },
   "routes/api/calibration-item": { GET: signedIn, PUT: labStaff, PATCH: labStaff },
   "routes/api/run-sign-off": { POST: managers },
+  "routes/api/run-view-setup": { PUT: labStaff },
   "routes/api/calibration-sign-off": { POST: managers },
   "routes/api/calibration-attachments": { POST: labStaff },
   "routes/api/calibration-attachment": { GET: signedIn, DELETE: labStaff },

@@ -10,7 +10,8 @@ import { smallLab } from "../test-support";
 import { createRun } from "../runs/service";
 import { enqueueMail } from "../mail/outbox";
 import { enqueueTracking } from "./tracking-queue";
-import { calibrationReminderKey, createCalibration, signOffCalibration, toDayString } from "../calibrations";
+import { createCalibration, signOffCalibration, toDayString } from "../calibrations";
+import { calibrationReminderKey } from "../calibration-views";
 import { QUEUES, queueClient, ring } from "./boss";
 import { WorkerProcess, prepareRun, renderStack, tracksOf, waitFor } from "./testing";
 

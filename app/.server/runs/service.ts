@@ -3,7 +3,7 @@ import { Equipment, Frame, Run, RunHistory, locking, sequelize } from "../db";
 import type { RunInput } from "~/lib/validation/run";
 import type { CurrentUser } from "../auth/permissions";
 import type { RunState } from "~/lib/runs";
-import { calibrationsInForce, calibrationsPastDueAt, type CalibrationInForce, type PastDueAtRun } from "../calibrations";
+import { calibrationsInForce, calibrationsPastDueAt, type CalibrationInForce, type PastDueAtRun } from "../calibrations-in-force";
 import { formatNumber } from "~/lib/number-format";
 
 export interface CalibrationSnapshot {

@@ -4,6 +4,7 @@
  */
 import type { Point } from "../geometry";
 import { GeometryError } from "./geometry-error";
+import type { KnownPointEntry } from "./known-points";
 import { viewCorrection, type KnownPoint, type TiltMarks, type ViewCorrection } from "./view-correction";
 
 const finite = (v: unknown): v is number => typeof v === "number" && Number.isFinite(v);
@@ -30,6 +31,25 @@ export function parseKnownPoints(text: string | null | undefined): KnownPoint[] 
   if (!list) return null;
   const ok = (p: unknown): p is KnownPoint =>
     typeof p === "object" && p !== null && [(p as KnownPoint).x, (p as KnownPoint).y, (p as KnownPoint).tableXCm, (p as KnownPoint).tableYCm].every(finite);
+  const points = list.filter(ok);
+  return points.length === list.length ? points.map((p) => ({ x: p.x, y: p.y, tableXCm: p.tableXCm, tableYCm: p.tableYCm })) : null;
+}
+
+/**
+ * Known points as the form sends them: each with its pixels, its table position a number or null
+ * while not typed (so the check can say which point lacks one); null when the text is not such a list.
+ */
+export function parseKnownPointEntries(text: string | null | undefined): KnownPointEntry[] | null {
+  const list = readList(text);
+  if (!list) return null;
+  const orNull = (v: unknown) => v === null || finite(v);
+  const ok = (p: unknown): p is KnownPointEntry =>
+    typeof p === "object" &&
+    p !== null &&
+    finite((p as KnownPointEntry).x) &&
+    finite((p as KnownPointEntry).y) &&
+    orNull((p as KnownPointEntry).tableXCm) &&
+    orNull((p as KnownPointEntry).tableYCm);
   const points = list.filter(ok);
   return points.length === list.length ? points.map((p) => ({ x: p.x, y: p.y, tableXCm: p.tableXCm, tableYCm: p.tableYCm })) : null;
 }

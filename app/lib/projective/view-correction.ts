@@ -11,17 +11,11 @@ import type { Point } from "../geometry";
 import { rectifyCircle } from "./circle-rectification";
 import { fitEllipse, type Ellipse } from "./ellipse-fit";
 import { GeometryError } from "./geometry-error";
-import { homographyFromPairs, project } from "./homography";
+import { project } from "./homography";
+import { knownPairs, knownPointsHomography, type KnownPoint } from "./known-points";
 import { invert, mat3, multiply, type Mat3 } from "./matrix";
 
-export interface KnownPoint {
-  /** image px */
-  x: number;
-  y: number;
-  /** where it is on the table, cm from the rotation axis (x right, y up in an unmirrored view) */
-  tableXCm: number;
-  tableYCm: number;
-}
+export type { KnownPoint };
 
 export type TiltMarks = { kind: "rim"; points: Point[] } | { kind: "known"; points: KnownPoint[] };
 
@@ -152,9 +146,8 @@ export function viewCorrection(marks: TiltMarks, centre: Point, mirrored: boolea
     };
   }
   // Table positions in the orientation of an unmirrored image: right is +x, down is −y.
-  const flip = mirrored ? -1 : 1;
-  const pairs = marks.points.map((p) => ({ from: { x: p.x, y: p.y }, to: { x: flip * p.tableXCm, y: -p.tableYCm } }));
-  const G = homographyFromPairs(pairs);
+  const pairs = knownPairs(marks.points, mirrored);
+  const G = knownPointsHomography(marks.points, mirrored);
   const F = normaliseAt(G, centre);
   const { tiltDeg, towardDeg, sideKnown } = summarise(F, centre, null);
   checkTilt(tiltDeg);

@@ -37,4 +37,28 @@ describe("the view setup's tilt marks (Decision 69)", () => {
   it("refuses a rotation centre outside the rim's ellipse on the rim field", () => {
     expect(viewSetupSchema.safeParse({ ...base, centreX: "5", centreY: "5", rimPoints: JSON.stringify(rim) }).error?.issues[0]?.path).toEqual(["rimPoints"]);
   });
+
+  it("known points: accepts four seen by the tilted camera; names the one without a table position, too few, repeats and a line", () => {
+    const table = [
+      { x: 10, y: 0 },
+      { x: 0, y: 10 },
+      { x: -10, y: 0 },
+      { x: 0, y: -10 },
+    ];
+    const known = table.map((t) => ({ ...camera.project(t), tableXCm: t.x, tableYCm: t.y }));
+    expect(issues({ knownPoints: JSON.stringify(known) })).toEqual([]);
+    expect(issues({ knownPoints: JSON.stringify(known.map((k, i) => (i === 1 ? { ...k, tableXCm: null } : k))) })).toEqual([
+      "knownPoints: Known point 2 needs its place on the table: x and y in cm, as numbers.",
+    ]);
+    expect(issues({ knownPoints: JSON.stringify(known.slice(0, 3)) })).toEqual([
+      "knownPoints: A correction from known points needs at least 4 of them; 3 are placed.",
+    ]);
+    expect(issues({ knownPoints: JSON.stringify([...known.slice(0, 3), { ...known[0]!, tableXCm: 5, tableYCm: 5 }]) })).toEqual([
+      "knownPoints: Known points 1 and 4 are on the same spot of the frame; remove one and click another mark.",
+    ]);
+    const line = known.map((k, i) => ({ ...k, x: 100 + 30 * i, y: 80 + 10 * i }));
+    expect(issues({ knownPoints: JSON.stringify(line) })).toEqual([
+      "knownPoints: The known points lie in one line in the frame; pick marks spread around the tank.",
+    ]);
+  });
 });

@@ -1,7 +1,8 @@
 import { z } from "zod";
 import { evenWithFieldErrors, strictNumber } from "./fields";
 import { GeometryError } from "../projective/geometry-error";
-import { parseKnownPoints, parseRimPoints } from "../projective/stored-marks";
+import { completeKnownPoints, knownPointsProblem } from "../projective/known-points";
+import { parseKnownPointEntries, parseRimPoints } from "../projective/stored-marks";
 import { viewCorrection, type TiltMarks } from "../projective/view-correction";
 
 const marksText = z.preprocess((v) => (v === "" || v === null ? undefined : v), z.string().max(8000, "Too many points: keep to a few dozen.").optional());
@@ -48,17 +49,21 @@ export const viewSetupSchema = z
       ctx.addIssue({ code: "custom", path: ["scaleLengthCm"], message: "For a scale, mark two points and give the length between them in cm." });
     }
     const rim = v.rimPoints === undefined ? undefined : parseRimPoints(v.rimPoints);
-    const known = v.knownPoints === undefined ? undefined : parseKnownPoints(v.knownPoints);
+    const entries = v.knownPoints === undefined ? undefined : parseKnownPointEntries(v.knownPoints);
     if (rim === null) ctx.addIssue({ code: "custom", path: ["rimPoints"], message: "Each rim point needs a column and a row in pixels." });
-    if (known === null) {
+    if (entries === null) {
       ctx.addIssue({ code: "custom", path: ["knownPoints"], message: "Each known point needs its column and row in pixels and its place on the table in cm." });
     }
-    if (rim?.length && known?.length) {
+    const problem = entries?.length ? knownPointsProblem(entries) : null;
+    const known = entries ? completeKnownPoints(entries) : undefined;
+    if (rim?.length && entries?.length) {
       ctx.addIssue({
         code: "custom",
         path: ["knownPoints"],
         message: "Correct the tilt from the rim points or from known points, not both: clear one of them.",
       });
+    } else if (problem) {
+      ctx.addIssue({ code: "custom", path: ["knownPoints"], message: problem });
     } else if (Number.isFinite(v.centreX) && Number.isFinite(v.centreY) && (rim?.length || known?.length)) {
       const marks: TiltMarks = rim?.length ? { kind: "rim", points: rim } : { kind: "known", points: known ?? [] };
       try {

@@ -3,7 +3,8 @@ import { requireCapability } from "~/.server/auth/permissions";
 import { apiError, parseId } from "~/.server/http";
 import { storedFileResponse } from "~/.server/storage/respond";
 import { findCalibrationAttachment, removeCalibrationAttachment } from "~/.server/uploads/calibration-attachments";
-import { getCalibration, serializeCalibrations } from "~/.server/calibrations";
+import { getCalibration } from "~/.server/calibrations";
+import { serializeCalibrations } from "~/.server/calibration-views";
 import { methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 
 /** GET /api/v1/calibrations/:id/attachments/:attachmentId — the stored file, for signed-in people only. */

@@ -1,7 +1,8 @@
 import type { Route } from "./+types/calibration-item";
 import { requireCapability } from "~/.server/auth/permissions";
 import { apiError, parseId, readJson } from "~/.server/http";
-import { getCalibration, serializeCalibrations, updateCalibration } from "~/.server/calibrations";
+import { getCalibration, updateCalibration } from "~/.server/calibrations";
+import { serializeCalibrations } from "~/.server/calibration-views";
 import { invalidInput, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 import { calibrationApiSchema } from "~/lib/validation/calibrations";
 

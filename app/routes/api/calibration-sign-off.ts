@@ -1,7 +1,8 @@
 import type { Route } from "./+types/calibration-sign-off";
 import { requireCapability } from "~/.server/auth/permissions";
 import { parseId } from "~/.server/http";
-import { serializeCalibrations, signOffCalibration } from "~/.server/calibrations";
+import { signOffCalibration } from "~/.server/calibrations";
+import { serializeCalibrations } from "~/.server/calibration-views";
 import { methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 
 /** POST /api/v1/calibrations/:id/sign-off — a lab manager's sign-off; a second one answers 409. */

@@ -1,7 +1,8 @@
 import type { Route } from "./+types/calibrations";
 import { requireCapability } from "~/.server/auth/permissions";
 import { apiError, readJson } from "~/.server/http";
-import { createCalibration, listCalibrations, serializeCalibrations } from "~/.server/calibrations";
+import { createCalibration } from "~/.server/calibrations";
+import { listCalibrations, serializeCalibrations } from "~/.server/calibration-views";
 import { invalidInput, methodNotAllowed, refusalResponse } from "~/.server/api-responses";
 import { calibrationApiSchema, calibrationFilterSchema } from "~/lib/validation/calibrations";
 import { calibrationMatches } from "~/lib/validation/calibration-filters";

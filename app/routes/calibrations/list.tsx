@@ -1,7 +1,8 @@
 import { data, Form, Link, useSubmit } from "react-router";
 import type { Route } from "./+types/list";
 import { can, requireCapability } from "~/.server/auth/permissions";
-import { listCalibrations, listCalibrationsDueOrExpired, serializeCalibrations } from "~/.server/calibrations";
+import { listCalibrationsDueOrExpired } from "~/.server/calibrations-in-force";
+import { listCalibrations, serializeCalibrations } from "~/.server/calibration-views";
 import { getLabSettings } from "~/.server/settings";
 import { calibrationKindLabels, calibrationKinds, standingLabels } from "~/lib/calibrations";
 import { calibrationMatches, calibrationStandings, parseCalibrationFilters, type CalibrationFilters } from "~/lib/validation/calibration-filters";

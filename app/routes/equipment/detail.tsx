@@ -6,7 +6,7 @@ import { kindLabels } from "~/lib/equipment";
 import { ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { equipmentSummary, StatusTag } from "~/components/equipment-facts";
-import { equipmentCalibrationSummary } from "~/.server/calibrations";
+import { equipmentCalibrationSummary } from "~/.server/calibration-views";
 import { listBookings, serializeBookings } from "~/.server/bookings";
 import { EquipmentBookings, EquipmentCalibrations } from "~/components/equipment-records";
 import { formatNumber } from "~/lib/number-format";

@@ -7,7 +7,7 @@ import { Frame, ViewSetup } from "~/.server/db";
 import { loadRun, requireChangeable } from "~/.server/runs/access";
 import { scaleCalibrationOfRun } from "~/.server/runs/applied-calibrations";
 import { formatNumber } from "~/lib/number-format";
-import { saveViewSetup } from "~/.server/runs/view-setup";
+import { marksOutsideFrame, saveViewSetup, setupRowOf } from "~/.server/runs/view-setup";
 import { lastSetupOfCamera } from "~/.server/runs/setup-carry-over";
 import { viewSetupSchema } from "~/lib/validation/view-setup";
 import { runLabel } from "~/lib/runs";
@@ -39,9 +39,6 @@ function toValues(s: ViewSetup): SetupValues {
     knownPoints: parseKnownPoints(s.knownPoints) ?? [],
   };
 }
-
-/** Tilt marks as stored: the points read back (so the column holds nothing else), or null for none. */
-const storedList = (points: readonly object[] | null): string | null => (points?.length ? JSON.stringify(points) : null);
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const user = await requireRole(request, "technician", "lab_manager");
@@ -82,35 +79,9 @@ export async function action({ request, params }: Route.ActionArgs) {
   const submission = parseWithZod(await readForm(request), { schema: viewSetupSchema });
   if (submission.status !== "success") return data({ errors: submission.reply().error ?? {} }, { status: 400 });
   const v = submission.value;
-  const w = run.frameWidthPx ?? 0;
-  const h = run.frameHeightPx ?? 0;
-  const errors: Record<string, string[]> = {};
-  if (v.centreX < 0 || v.centreX > w || v.centreY < 0 || v.centreY > h) errors.centreX = [`The centre must lie inside the ${w} × ${h} px frame.`];
-  if (v.edgeX !== undefined && v.edgeY !== undefined && (v.edgeX < 0 || v.edgeX > w || v.edgeY < 0 || v.edgeY > h)) {
-    errors.edgeX = [`The tank edge's centre must lie inside the ${w} × ${h} px frame.`];
-  }
-  if (v.rateMarkX !== undefined && v.rateMarkY !== undefined && (v.rateMarkX < 0 || v.rateMarkX > w || v.rateMarkY < 0 || v.rateMarkY > h)) {
-    errors.rateMarkX = [`The mark on the table must lie inside the ${w} × ${h} px frame.`];
-  }
+  const errors = marksOutsideFrame(run, v);
   if (Object.keys(errors).length) return data({ errors }, { status: 400 });
-  const values = {
-    runId: run.id,
-    cameraId: run.cameraId,
-    centreXPx: v.centreX,
-    centreYPx: v.centreY,
-    tankEdgeXPx: v.edgeX ?? null,
-    tankEdgeYPx: v.edgeY ?? null,
-    tankEdgeRPx: v.edgeR ?? null,
-    scalePxPerM: v.scaleLengthPx && v.scaleLengthCm ? v.scaleLengthPx / (v.scaleLengthCm / 100) : null,
-    scalePoints: v.scalePoints || null,
-    mirrored: v.mirrored,
-    rateMarkXPx: v.rateMarkX ?? null,
-    rateMarkYPx: v.rateMarkY ?? null,
-    rimPoints: storedList(v.rimPoints === undefined ? null : parseRimPoints(v.rimPoints)),
-    knownPoints: storedList(v.knownPoints === undefined ? null : parseKnownPoints(v.knownPoints)),
-    createdById: user.id,
-  };
-  await saveViewSetup(run, values, user.id);
+  await saveViewSetup(run, setupRowOf(run, v, user.id), user.id);
   return redirect(`/runs/${run.id}#tracking`);
 }
 
@@ -121,7 +92,7 @@ export default function Setup({ loaderData, actionData }: Route.ComponentProps) 
     <div>
       <PageHeader
         title={`View setup · ${runLabel(runId)}`}
-        subtitle="Mark the rotation centre, the tank edge, the scale and, with a lab-fixed camera, a mark on the table on the first frame; with a camera not quite overhead, points on the rim."
+        subtitle="Mark the rotation centre, the tank edge, the scale and, with a lab-fixed camera, a mark on the table on the first frame; with a camera not quite overhead, points on the rim or marks whose place on the table you know."
         actions={<ButtonLink to={`/runs/${runId}`}>Back to the run</ButtonLink>}
       />
       {imageMissing ? (

@@ -1,7 +1,7 @@
 import type { OpenAPIRegistry } from "@asteasolutions/zod-to-openapi";
 import { z } from "../zod";
 import { badBody, error, file, ids, json, notJson, operation, routeSchema } from "./helpers";
-import { runDetailSchema, runPageSchema, runSchema } from "../responses/runs";
+import { runDetailSchema, runPageSchema, runSchema, viewSetupSchema as viewSetupAnswer } from "../responses/runs";
 import { runExportSchema } from "../responses/run-export";
 import { errorSchema } from "../responses/common";
 import {
@@ -13,6 +13,7 @@ import {
   trackingSchema,
 } from "../responses/tracking";
 import { runApiCreateSchema, runApiPatchSchema } from "~/lib/validation/run-api";
+import { viewSetupApiSchema } from "~/lib/validation/view-setup-api";
 import { runFiltersSchema } from "~/lib/validation/run-filters";
 import { frameRemovalSchema } from "~/lib/validation/frame-removal";
 import { frameUploadQuerySchema } from "~/lib/validation/frame-upload";
@@ -43,8 +44,21 @@ export const runCreateExample = {
 };
 export const runPatchExample = { waterTemperatureC: 21, notes: "Thermometer re-read after the run." };
 
+export const viewSetupExample = {
+  centre: { x: 320.5, y: 181 },
+  tankEdge: { x: 320, y: 180, r: 168 },
+  mirrored: false,
+  knownPoints: [
+    { x: 440.2, y: 180.4, tableXCm: 10, tableYCm: 0 },
+    { x: 320.6, y: 62.3, tableXCm: 0, tableYCm: 10 },
+    { x: 200.9, y: 181.2, tableXCm: -10, tableYCm: 0 },
+    { x: 320.4, y: 296.8, tableXCm: 0, tableYCm: -10 },
+  ],
+};
+
 export function registerRunPaths(registry: OpenAPIRegistry) {
   const create = registry.register("RunCreate", routeSchema(runApiCreateSchema));
+  const setup = registry.register("ViewSetupPut", routeSchema(viewSetupApiSchema));
   const patch = registry.register("RunPatch", routeSchema(runApiPatchSchema));
   operation(registry, {
     method: "get",
@@ -120,6 +134,27 @@ export function registerRunPaths(registry: OpenAPIRegistry) {
       200: file("text/csv", "CSV", "track,t_s,x_px,y_px,x_m,y_m\r\n1,0,640.5,360.25,0.0412,-0.0107\r\n"),
       404: noRun,
       409: error("The run has no tracks yet (no_tracks)."),
+    },
+  });
+  operation(registry, {
+    method: "put",
+    path: "/api/v1/runs/{id}/view-setup",
+    operationId: "putViewSetup",
+    tags,
+    summary: "Set up the run's view (its technician or a lab manager)",
+    description:
+      "The whole view setup in the frame's pixels, checked as the setup page checks it; it replaces the run's setup, and a changed setup makes the run's tracks and check out of date. A camera not quite overhead is corrected from rimPoints (five or more, where the water meets the tank wall) or knownPoints (four or more marks with their place on the table in cm from the rotation axis, x and y a right-handed pair seen from above), not both; the correction holds for the height of the marks, which should be the height the tracer moves at.",
+    request: { params: ids("id"), body: { required: true, content: { "application/json": { schema: setup, example: viewSetupExample } } } },
+    responses: {
+      200: json(viewSetupAnswer, "The view setup as saved, with the tilt correction its marks give"),
+      400: badBody(),
+      403: writers,
+      404: noRun,
+      409: error(`no_frames: the run has no frames yet, so no frame size to mark in; or ${signedOff}.`),
+      415: notJson,
+      422: error(
+        "setup_not_usable: the body is well-formed but its marks are refused (outside the frame, an incomplete tank edge or scale, tilt marks too few, repeated, in a line, both kinds at once, or implying more than 25° of lean); error.issues names the fields. Nothing saved is changed.",
+      ),
     },
   });
   operation(registry, {

@@ -1,5 +1,6 @@
 import { Equipment, User, migrate } from "./db";
 import type { CurrentUser } from "./auth/permissions";
+import { sessionStorage } from "./auth/session";
 import type { RunInput } from "~/lib/validation/run";
 
 /** Test fixtures shared by the server tests: a migrated database with a small lab in it. */
@@ -62,4 +63,37 @@ export async function smallLab() {
     ...over,
   });
   return { tech, otherTech, manager, instructor, table, tank, camera, retiredCamera, runInput };
+}
+
+/** The session cookie of a signed-in person, as their browser would send it. */
+export async function sessionCookie(userId: number): Promise<string> {
+  const session = await sessionStorage.getSession();
+  session.set("userId", userId);
+  return (await sessionStorage.commitSession(session)).split(";")[0] ?? "";
+}
+
+type PageAction = (args: { request: Request; params: Record<string, string>; context: unknown }) => unknown;
+
+/**
+ * A page's form posted by a signed-in person, straight to the route's action: its status and the
+ * data it answered with (`data(…, { status })` carries the status in `init`; a plain object is a 200).
+ */
+export async function postPageForm<T = { notice?: string; problem?: string }>(
+  action: PageAction,
+  path: string,
+  who: Pick<CurrentUser, "id">,
+  fields: Record<string, string>,
+  params: Record<string, string> = {},
+): Promise<{ status: number; body: T }> {
+  const request = new Request(`http://localhost${path}`, {
+    method: "POST",
+    headers: { Cookie: await sessionCookie(who.id) },
+    body: new URLSearchParams(fields),
+  });
+  const result = await action({ request, params, context: {} });
+  if (result && typeof result === "object" && "init" in result && "data" in result) {
+    const r = result as { init: ResponseInit | null; data: T };
+    return { status: r.init?.status ?? 200, body: r.data };
+  }
+  return { status: 200, body: result as T };
 }

@@ -3,12 +3,11 @@ import sharp from "sharp";
 import { callApi } from "../../../tests/support/api-contract";
 import { Calibration, CalibrationAttachment, CalibrationHistory, Equipment, User, sequelize } from "~/.server/db";
 import { createApiToken } from "~/.server/auth/api-tokens";
-import { sessionStorage } from "~/.server/auth/session";
 import { createCalibration, toDayString } from "~/.server/calibrations";
 import { setSignOffRule } from "~/.server/settings";
 import { calibrationKey, store } from "~/.server/storage";
 import { addCalibrationAttachment } from "~/.server/uploads/calibration-attachments";
-import { smallLab } from "~/.server/test-support";
+import { postPageForm, smallLab } from "~/.server/test-support";
 import type { CurrentUser } from "~/.server/auth/permissions";
 import { action as signOffAction } from "./calibration-sign-off";
 import { action as attachmentAction } from "./calibration-attachment";
@@ -61,18 +60,8 @@ const remove = (id: number, attachmentId: number, who: CurrentUser) =>
     attachmentId: String(attachmentId),
   });
 
-async function pagePost(id: number, who: CurrentUser, fields: Record<string, string>) {
-  const s = await sessionStorage.getSession();
-  s.set("userId", who.id);
-  const cookie = (await sessionStorage.commitSession(s)).split(";")[0] ?? "";
-  const request = new Request(`http://localhost/calibrations/${id}`, { method: "POST", headers: { Cookie: cookie }, body: new URLSearchParams(fields) });
-  const result = (await pageAction({ request, params: { id: String(id) }, context: {} } as never)) as unknown;
-  if (result && typeof result === "object" && "init" in result && "data" in result) {
-    const r = result as { init: ResponseInit | null; data: { notice?: string; problem?: string } };
-    return { status: r.init?.status ?? 200, body: r.data };
-  }
-  return { status: 200, body: result as { notice?: string; problem?: string } };
-}
+const pagePost = (id: number, who: CurrentUser, fields: Record<string, string>) =>
+  postPageForm(pageAction as never, `/calibrations/${id}`, who, fields, { id: String(id) });
 
 describe("calibration sign-off by a second person (a lab setting, on by default)", () => {
   it("refuses the lab manager who performed the record with 403 second_person_required; another lab manager signs it", async () => {

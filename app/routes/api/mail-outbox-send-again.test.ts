@@ -2,12 +2,11 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { callApi } from "../../../tests/support/api-contract";
 import { CapturedMail, OutboxMail, sequelize } from "~/.server/db";
 import { createApiToken } from "~/.server/auth/api-tokens";
-import { sessionStorage } from "~/.server/auth/session";
 import type { CurrentUser } from "~/.server/auth/permissions";
 import { stopFakeSmtp } from "~/.server/mail/fake-smtp";
 import { MAX_ATTEMPTS, enqueueMail, listOutbox, setEnqueueListener } from "~/.server/mail/outbox";
 import { OutboxSender } from "~/.server/mail/outbox-sender";
-import { smallLab } from "~/.server/test-support";
+import { postPageForm, smallLab } from "~/.server/test-support";
 import { action as sendAgainAction, loader as sendAgainLoader } from "./mail-outbox-send-again";
 import { action as mailPageAction } from "../people/mail";
 
@@ -43,18 +42,7 @@ const post = (id: number | string, who: CurrentUser, method = "POST") =>
     { id: String(id) },
   );
 
-async function pagePost(who: CurrentUser, fields: Record<string, string>) {
-  const s = await sessionStorage.getSession();
-  s.set("userId", who.id);
-  const cookie = (await sessionStorage.commitSession(s)).split(";")[0] ?? "";
-  const request = new Request("http://localhost/mail", { method: "POST", headers: { Cookie: cookie }, body: new URLSearchParams(fields) });
-  const result = (await mailPageAction({ request, params: {}, context: {} } as never)) as unknown;
-  if (result && typeof result === "object" && "init" in result && "data" in result) {
-    const r = result as { init: ResponseInit | null; data: { notice?: string; problem?: string } };
-    return { status: r.init?.status ?? 200, body: r.data };
-  }
-  return { status: 200, body: result as { notice?: string; problem?: string } };
-}
+const pagePost = (who: CurrentUser, fields: Record<string, string>) => postPageForm(mailPageAction as never, "/mail", who, fields);
 
 describe("sending a failed e-mail again", () => {
   it("queues it afresh with its attempts from nought, and the sender then delivers it to the SMTP server", async () => {

@@ -19,14 +19,134 @@
  * `turnRateInView` converts the table's Ω and the camera mode to one.
  */
 import type { BackgroundExclusion } from "./background";
+import type { Mat3 } from "../projective/matrix";
 
-/** The turning part of a view: centre and radius in crop px, rate in image radians per second. */
+/**
+ * The turning part of a view: centre and radius in crop px, rate in image radians per second.
+ * With `rectify` (a camera not quite overhead, Decision 76) the centre and radius are in the
+ * rectified plane's px and the turn is rigid there: a pixel p turns to H⁻¹ R(θ) H p.
+ */
 export interface TurnInView {
   cx: number;
   cy: number;
   /** Pixels within this distance of the centre turn; a turned pixel stays inside the crop. */
   r: number;
   rate: number;
+  /** Crop px → the rectified plane's px (the view correction moved to the crop), and its inverse. */
+  rectify?: { H: Mat3; Hinv: Mat3 } | null;
+  /**
+   * The tank's disc in the rectified plane (plane px) when the turning centre is not the marked
+   * centre: only pixels inside it take part, and samples that show a point from outside it are left
+   * out of its median (turning-median.ts).
+   */
+  bound?: { cx: number; cy: number; r: number } | null;
+}
+
+/** `out` = H·(x, y) in the plane's px; false where the point goes to infinity. */
+function toPlane(H: Mat3, x: number, y: number, out: Float64Array): boolean {
+  const w = H[2][0] * x + H[2][1] * y + H[2][2];
+  if (!(Math.abs(w) > 1e-12)) return false;
+  out[0] = (H[0][0] * x + H[0][1] * y + H[0][2]) / w;
+  out[1] = (H[1][0] * x + H[1][1] * y + H[1][2]) / w;
+  return true;
+}
+
+/**
+ * Where crop pixel (x, y) lands when what turns is turned by `angle` about the centre (image angle):
+ * c + R(angle)(p − c), in the rectified plane when the view has one. Written into `out`; false
+ * when the pixel lies outside the turning disc (`out` then holds the pixel itself).
+ */
+export function turnPoint(turn: TurnInView, angle: number, x: number, y: number, out: Float64Array, cos = Math.cos(angle), sin = Math.sin(angle)): boolean {
+  const rect = turn.rectify;
+  let px = x;
+  let py = y;
+  if (rect) {
+    if (!toPlane(rect.H, x, y, out)) {
+      out[0] = x;
+      out[1] = y;
+      return false;
+    }
+    px = out[0]!;
+    py = out[1]!;
+  }
+  const dx = px - turn.cx;
+  const dy = py - turn.cy;
+  if (dx * dx + dy * dy > turn.r * turn.r) {
+    out[0] = x;
+    out[1] = y;
+    return false;
+  }
+  const qx = turn.cx + cos * dx - sin * dy;
+  const qy = turn.cy + sin * dx + cos * dy;
+  if (!rect) {
+    out[0] = qx;
+    out[1] = qy;
+    return true;
+  }
+  if (toPlane(rect.Hinv, qx, qy, out)) return true;
+  out[0] = x;
+  out[1] = y;
+  return false;
+}
+
+/** Distance of crop pixel (x, y) from the turning centre, in the plane where the turn is rigid. */
+export function turnDistance(turn: TurnInView, x: number, y: number, scratch = new Float64Array(2)): number {
+  if (turn.rectify) {
+    if (!toPlane(turn.rectify.H, x, y, scratch)) return Number.POSITIVE_INFINITY;
+    return Math.hypot(scratch[0]! - turn.cx, scratch[1]! - turn.cy);
+  }
+  return Math.hypot(x - turn.cx, y - turn.cy);
+}
+
+/** The crop rows and columns the turning disc can cover (its bounding box, the rectified disc mapped back). */
+function discBox(turn: TurnInView, width: number, height: number): { row0: number; row1: number; col0: number; col1: number } {
+  if (!turn.rectify) {
+    return {
+      row0: Math.max(0, Math.floor(turn.cy - turn.r)),
+      row1: Math.min(height - 1, Math.ceil(turn.cy + turn.r)),
+      col0: Math.max(0, Math.floor(turn.cx - turn.r)),
+      col1: Math.min(width - 1, Math.ceil(turn.cx + turn.r)),
+    };
+  }
+  let minX = Infinity;
+  let maxX = -Infinity;
+  let minY = Infinity;
+  let maxY = -Infinity;
+  const at = new Float64Array(2);
+  const disc = turn.bound && turn.bound.r < turn.r ? turn.bound : turn;
+  for (let k = 0; k < 64; k++) {
+    const a = (2 * Math.PI * k) / 64;
+    if (!toPlane(turn.rectify.Hinv, disc.cx + disc.r * Math.cos(a), disc.cy + disc.r * Math.sin(a), at)) continue;
+    minX = Math.min(minX, at[0]!);
+    maxX = Math.max(maxX, at[0]!);
+    minY = Math.min(minY, at[1]!);
+    maxY = Math.max(maxY, at[1]!);
+  }
+  // A margin for the chords between the 64 points.
+  return {
+    row0: Math.max(0, Math.floor(minY - 2)),
+    row1: Math.min(height - 1, Math.ceil(maxY + 2)),
+    col0: Math.max(0, Math.floor(minX - 2)),
+    col1: Math.min(width - 1, Math.ceil(maxX + 2)),
+  };
+}
+
+/** Whether crop pixel (x, y) lies in the turning disc. */
+export function inTurningDisc(turn: TurnInView, x: number, y: number, scratch = new Float64Array(2)): boolean {
+  if (!(turnDistance(turn, x, y, scratch) <= turn.r)) return false;
+  const bound = turn.bound;
+  return !bound || !turn.rectify || Math.hypot(scratch[0]! - bound.cx, scratch[1]! - bound.cy) <= bound.r;
+}
+
+/** Every crop pixel of the turning disc, ascending. */
+export function discPixels(turn: TurnInView, width: number, height: number): Int32Array {
+  const { row0, row1, col0, col1 } = discBox(turn, width, height);
+  const inside: number[] = [];
+  const scratch = new Float64Array(2);
+  for (let row = row0; row <= row1; row++) {
+    for (let col = col0; col <= col1; col++) if (inTurningDisc(turn, col, row, scratch)) inside.push(row * width + col);
+  }
+  return Int32Array.from(inside);
 }
 
 /**
@@ -48,6 +168,7 @@ export function turnBack(frame: Uint8Array, width: number, height: number, turn:
   if (frame.length !== width * height || out.length !== frame.length) throw new Error("A turned frame must match the frame's size.");
   const cos = Math.cos(angle);
   const sin = Math.sin(angle);
+  if (turn.rectify) throw new Error("A tilted view's turning model is made by turningMedian (turning-median.ts).");
   const r2 = turn.r * turn.r;
   for (let row = 0; row < height; row++) {
     const dy = row - turn.cy;
@@ -63,7 +184,7 @@ export function turnBack(frame: Uint8Array, width: number, height: number, turn:
   }
 }
 
-function bilinear(image: Uint8Array, width: number, height: number, x: number, y: number): number {
+export function bilinear(image: ArrayLike<number>, width: number, height: number, x: number, y: number): number {
   const x0 = Math.min(width - 2, Math.max(0, Math.floor(x)));
   const y0 = Math.min(height - 2, Math.max(0, Math.floor(y)));
   const fx = Math.min(1, Math.max(0, x - x0));
@@ -76,6 +197,7 @@ function bilinear(image: Uint8Array, width: number, height: number, x: number, y
 
 /** The still model's exclusion discs moved into the turning frame (sample j turned back by its angle). */
 export function turnExclusions(discs: readonly BackgroundExclusion[], turn: TurnInView, angles: readonly number[]): BackgroundExclusion[] {
+  if (turn.rectify) throw new Error("A tilted view's turning model leaves the float out itself (turning-median.ts).");
   return discs.map((d) => {
     const angle = angles[d.sample] ?? 0;
     const cos = Math.cos(angle);
@@ -168,12 +290,9 @@ export const minDoubtedShare = 0.02;
 export function turningPixels(misfit: Float32Array, width: number, turn: TurnInView, stride = 1): Int32Array | null {
   const judged: number[] = [];
   const height = Math.floor(misfit.length / width);
-  const r2 = turn.r * turn.r;
-  const row0 = Math.max(0, Math.floor(turn.cy - turn.r));
-  const row1 = Math.min(height - 1, Math.ceil(turn.cy + turn.r));
-  const col0 = Math.max(0, Math.floor(turn.cx - turn.r));
-  const col1 = Math.min(width - 1, Math.ceil(turn.cx + turn.r));
-  const inDisc = (col: number, row: number) => (col - turn.cx) ** 2 + (row - turn.cy) ** 2 <= r2;
+  const { row0, row1, col0, col1 } = discBox(turn, width, height);
+  const scratch = new Float64Array(2);
+  const inDisc = (col: number, row: number) => inTurningDisc(turn, col, row, scratch);
   // Only the judged pixels first: most stacks turn nothing through the view, and then the disc's
   // own list (every pixel of it) is never needed.
   for (let row = Math.ceil(row0 / stride) * stride; row <= row1; row += stride) {
@@ -189,11 +308,7 @@ export function turningPixels(misfit: Float32Array, width: number, turn: TurnInV
   let doubted = 0;
   for (const p of judged) if (misfit[p]! > limit) doubted++;
   if (!(doubted > minDoubtedShare * judged.length)) return null;
-  const inside: number[] = [];
-  for (let row = row0; row <= row1; row++) {
-    for (let col = col0; col <= col1; col++) if (inDisc(col, row)) inside.push(row * width + col);
-  }
-  return Int32Array.from(inside);
+  return discPixels(turn, width, height);
 }
 
 /** Both models of a stack, as the searched frames use them. */
@@ -205,6 +320,11 @@ export interface TurningBackground {
   rings: Float32Array;
   /** Crop pixels where the turning model takes part (turningPixels). */
   pixels: Int32Array;
+  /**
+   * A tilted view's turning model as a factor on the still model's darkness, in the turning frame
+   * (turning-median.ts); when present, `turning` and `rings` are not used.
+   */
+  factor?: Float32Array | null;
 }
 
 /**
@@ -216,9 +336,11 @@ export function ringMedians(turning: Uint8Array, width: number, turn: TurnInView
   const count = Math.ceil(turn.r) + 1;
   const rings: number[][] = Array.from({ length: count }, () => []);
   const height = Math.floor(turning.length / width);
-  for (let row = Math.max(0, Math.floor(turn.cy - turn.r)); row <= Math.min(height - 1, Math.ceil(turn.cy + turn.r)); row++) {
-    for (let col = Math.max(0, Math.floor(turn.cx - turn.r)); col <= Math.min(width - 1, Math.ceil(turn.cx + turn.r)); col++) {
-      const i = Math.floor(Math.hypot(col - turn.cx, row - turn.cy));
+  const { row0, row1, col0, col1 } = discBox(turn, width, height);
+  const scratch = new Float64Array(2);
+  for (let row = row0; row <= row1; row++) {
+    for (let col = col0; col <= col1; col++) {
+      const i = Math.floor(turnDistance(turn, col, row, scratch));
       if (i < count) rings[i]!.push(turning[row * width + col]!);
     }
   }
@@ -260,11 +382,20 @@ export function backgroundAt(
   const cos = Math.cos(angle);
   const sin = Math.sin(angle);
   const last = rings.length - 1;
+  if (turn.rectify && !model.factor) throw new Error("A tilted view's turning model is a factor (turning-median.ts).");
+  const plane = new Float64Array(2);
   for (let i = 0; i < pixels.length; i++) {
     const p = pixels[i]!;
     const row = (p / width) | 0;
     const dx = p - row * width - turn.cx;
     const dy = row - turn.cy;
+    if (model.factor) {
+      // A tilted view: the factor at H⁻¹(c + R(−angle)(H p − c)) on the still model's darkness.
+      turnPoint(turn, -angle, p - row * width, row, plane, cos, -sin);
+      const value = 255 - (255 - still[p]!) * bilinear(model.factor, width, height, plane[0]!, plane[1]!);
+      out[p] = value <= 0 ? 0 : value >= 255 ? 255 : Math.round(value);
+      continue;
+    }
     const turned = bilinear(turning, width, height, turn.cx + cos * dx + sin * dy, turn.cy - sin * dx + cos * dy);
     // The ring median at this distance, between the two nearest rings' (ring i is centred on i + ½).
     const at = Math.min(last, Math.max(0, Math.hypot(dx, dy) - 0.5));

@@ -7,7 +7,9 @@
  * view setup a technician gives (centre, tank edge, scale, camera mode, set rate), and must find
  * the tracer in one track over at least 98 % of the frames, within 0.12 px RMS for a float and
  * 0.2 px for dye of the truth, with f within 0.3 % of 2Ω and the verdict "agrees".
- * The tilted scenes are tracked without a tilt correction here (none exists yet).
+ * On the tilted scenes the view setup also carries the rim marks a technician would place (the
+ * water line's points, measure-scene.ts): the tracker's turning background and the check both use
+ * their correction (Decisions 69 and 76).
  */
 import { afterAll, describe, expect, it } from "vitest";
 import { closeTrackingPool } from "../../app/.server/tracking/track-frame-stack";

@@ -284,6 +284,11 @@ async function stillBackground(
  */
 /** Whether anything turns is judged on every fourth row and column: a sixteenth of the pass. */
 const misfitStride = 4;
+/**
+ * A tilted view's turning centre found this close to the marked one (px) is taken for it: the
+ * camera is straight down for what turns, and Decision 70's model serves (Decision 76).
+ */
+const sameCentrePx = 1;
 /** The share of the still model's misfit the two models together must stay below to be used. */
 const keptMisfitShare = 0.5;
 
@@ -324,10 +329,17 @@ async function turningModel(
   let turning: Uint8Array;
   let factor: Float32Array | null = null;
   if (turn.rectify) {
-    // A tilted view: what turns does so about its own centre (turning-centre.ts), and its model
-    // is a factor on the still model's darkness (turning-median.ts, Decision 76).
-    turn = recentredTurn(frames, still, width, plan.crop.height, turn, angles);
+    // A tilted view: what turns does so about its own centre (turning-centre.ts, Decision 76).
+    const recentred = recentredTurn(frames, still, width, plan.crop.height, turn, angles);
+    turn =
+      Math.hypot(recentred.cx - turn.cx, recentred.cy - turn.cy) <= sameCentrePx
+        ? // About the marked centre after all (a camera nearly straight down): Decision 70's model in the image.
+          { cx: turn.cx, cy: turn.cy, r: turn.r - 1, rate: turn.rate }
+        : recentred;
     inDisc = discPixels(turn, width, plan.crop.height);
+  }
+  if (turn.rectify) {
+    // Its model is a factor on the still model's darkness (turning-median.ts).
     const made = turningMedian(frames, still, width, plan.crop.height, turn, angles, discs);
     factor = new Float32Array(new SharedArrayBuffer(made.length * 4));
     factor.set(made);
@@ -335,9 +347,18 @@ async function turningModel(
   } else {
     const turned = new Uint8Array(new SharedArrayBuffer(samples.length));
     const share = Math.ceil(count / threads);
+    const turnedPlan = { ...plan, turn };
     await Promise.all(
       Array.from({ length: threads }, (_, w) =>
-        runTask(workers, { kind: "turn-back", samples, plan, angles, out: turned, from: Math.min(count, w * share), to: Math.min(count, (w + 1) * share) }),
+        runTask(workers, {
+          kind: "turn-back",
+          samples,
+          plan: turnedPlan,
+          angles,
+          out: turned,
+          from: Math.min(count, w * share),
+          to: Math.min(count, (w + 1) * share),
+        }),
       ),
     );
     const turnedDiscs = turnExclusions(discs, turn, angles);

@@ -16,7 +16,8 @@ import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../.
 import { trackingQuality } from "../../lib/tracking/quality";
 import { lastWholeFrame, searchedWhole, searchWindows } from "../../lib/tracking/search-windows";
 import type { SearchWindow } from "../../lib/tracking/threshold";
-import { discPixels, ringMedians, samplesMisfit, turningPixels, turnExclusions, type TurningBackground } from "../../lib/tracking/turning-background";
+import { discPixels } from "../../lib/tracking/turning-geometry";
+import { ringMedians, samplesMisfit, turningPixels, turnExclusions, type TurningBackground } from "../../lib/tracking/turning-background";
 import { recentredTurn } from "../../lib/tracking/turning-centre";
 import { turningMedian } from "../../lib/tracking/turning-median";
 import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup } from "../../lib/tracking/types";

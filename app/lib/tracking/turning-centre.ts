@@ -13,7 +13,8 @@
  * the samples' departures from the still model, turned back about a candidate centre, agree best
  * when it is the centre of what turns.
  */
-import { bilinear, type TurnInView } from "./turning-background";
+import { bilinear } from "./turning-background";
+import type { TurnInView } from "./turning-geometry";
 
 /** Each sample's departure from the still model (sample − still), per pixel. */
 export function departures(samples: readonly Uint8Array[], still: Uint8Array): Int16Array[] {

@@ -14,7 +14,8 @@
  * keep the factor 1 (the still model alone).
  */
 import type { BackgroundExclusion } from "./background";
-import { bilinear, turnDistance, turnPoint, type TurnInView } from "./turning-background";
+import { bilinear } from "./turning-background";
+import { turnDistance, turnPoint, type TurnInView } from "./turning-geometry";
 
 /** The fewest samples a point's median is taken over. */
 const minSamples = 5;

@@ -22,10 +22,10 @@ const truthCentre = { x: 68, y: 55 };
 function homography(): Mat3 {
   const g = 4e-4;
   const h = -2e-4;
-  // p ↦ (p + t) / (1 + g(x − c0x) + h(y − c0y)), shifted so that c0 stays.
+  // p ↦ (p − c0·(g(x − c0x) + h(y − c0y))) / (1 + g(x − c0x) + h(y − c0y)): c0 stays, the rest leans.
   return [
-    [1 - g * c0.x, -h * c0.x, -(-g * c0.x * c0.x - h * c0.x * c0.y) - 0],
-    [-g * c0.y, 1 - h * c0.y, -(-g * c0.x * c0.y - h * c0.y * c0.y) - 0],
+    [1 - g * c0.x, -h * c0.x, g * c0.x * c0.x + h * c0.x * c0.y],
+    [-g * c0.y, 1 - h * c0.y, g * c0.x * c0.y + h * c0.y * c0.y],
     [g, h, 1 - g * c0.x - h * c0.y],
   ];
 }

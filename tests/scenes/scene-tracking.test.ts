@@ -7,9 +7,10 @@
  * view setup a technician gives (centre, tank edge, scale, camera mode, set rate), and must find
  * the tracer in one track over at least 98 % of the frames, within 0.12 px RMS for a float and
  * 0.2 px for dye of the truth, with f within 0.3 % of 2Ω and the verdict "agrees".
- * The tilted scenes are tracked here as marked for a straight-down camera (scene-tilt.test.ts holds
- * the tilt correction's figures). TANKSIDE_SCENE_VARIANTS (names, comma-separated) limits the run
- * to those scenes: `npm test` gives the ones that meet the targets (scripts/scenes-in-suite.mjs).
+ * On the tilted scenes the view setup also carries the rim marks a technician would place (the
+ * water line's points, measure-scene.ts): the tracker's turning background and the check both use
+ * their correction (Decisions 69 and 76). TANKSIDE_SCENE_VARIANTS (names, comma-separated) limits
+ * the run to those scenes: `npm test` gives the ones that meet the targets (scripts/scenes-in-suite.mjs).
  */
 import { afterAll, describe, expect, it } from "vitest";
 import { closeTrackingPool } from "../../app/.server/tracking/track-frame-stack";

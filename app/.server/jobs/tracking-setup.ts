@@ -1,6 +1,7 @@
 import type { Run, ViewSetup } from "../db";
 import type { TrackingSetup } from "~/lib/tracking/types";
 import { runOmega } from "~/lib/analysis/run-omega";
+import { correctionOfSetup } from "~/lib/projective/stored-marks";
 import type { RateSettings } from "../tracking/rate-pass";
 
 /** What the tracker needs from a run and its view setup: the tracking job and the streaming tracker read it the same way. */
@@ -16,6 +17,8 @@ export function trackingSetupFrom(run: Pick<Run, "tracer" | "cameraMode" | "setR
     mirrored: setup.mirrored,
     // What turns in the view, for the background's second model (lib/tracking/turning-background.ts).
     rotation: Number.isFinite(omega) && omega !== 0 ? { omega, cameraMode: run.cameraMode } : null,
+    // A camera not quite overhead: the turning model turns rigidly in the corrected plane (Decision 76).
+    correction: correctionOfSetup(setup).correction?.homography ?? null,
   };
 }
 

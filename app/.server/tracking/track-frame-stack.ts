@@ -16,7 +16,10 @@ import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../.
 import { trackingQuality } from "../../lib/tracking/quality";
 import { lastWholeFrame, searchedWhole, searchWindows } from "../../lib/tracking/search-windows";
 import type { SearchWindow } from "../../lib/tracking/threshold";
+import { discPixels } from "../../lib/tracking/turning-geometry";
 import { ringMedians, samplesMisfit, turningPixels, turnExclusions, type TurningBackground } from "../../lib/tracking/turning-background";
+import { recentredTurn } from "../../lib/tracking/turning-centre";
+import { turningMedian } from "../../lib/tracking/turning-median";
 import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup } from "../../lib/tracking/types";
 import { decodeFrame, readFrameSize, type FrameSize } from "./decode-frame";
 import { TrackingError } from "./errors";
@@ -282,6 +285,11 @@ async function stillBackground(
  */
 /** Whether anything turns is judged on every fourth row and column: a sixteenth of the pass. */
 const misfitStride = 4;
+/**
+ * A tilted view's turning centre found this close to the marked one (px) is taken for it: the
+ * camera is straight down for what turns, and Decision 70's model serves (Decision 76).
+ */
+const sameCentrePx = 1;
 /** The share of the still model's misfit the two models together must stay below to be used. */
 const keptMisfitShare = 0.5;
 
@@ -295,7 +303,7 @@ async function turningModel(
   angles: number[],
   median: (exclusions?: ExclusionSet, plain?: Uint8Array, from?: Uint8Array) => Promise<Uint8Array>,
 ): Promise<TurningBackground | null> {
-  const turn = plan.turn!;
+  let turn = plan.turn!;
   const width = plan.crop.width;
   const pixels = width * plan.crop.height;
   const misfit = new Float32Array(new SharedArrayBuffer(pixels * 4));
@@ -316,22 +324,50 @@ async function turningModel(
       }),
     ),
   );
-  const inDisc = turningPixels(misfit, width, turn, misfitStride);
+  let inDisc = turningPixels(misfit, width, turn, misfitStride);
   if (!inDisc) return null;
-  const turned = new Uint8Array(new SharedArrayBuffer(samples.length));
-  const share = Math.ceil(count / threads);
-  await Promise.all(
-    Array.from({ length: threads }, (_, w) =>
-      runTask(workers, { kind: "turn-back", samples, plan, angles, out: turned, from: Math.min(count, w * share), to: Math.min(count, (w + 1) * share) }),
-    ),
-  );
-  const turnedDiscs = turnExclusions(discs, turn, angles);
-  const turning = await median(turnedDiscs.length ? { width, discs: turnedDiscs } : undefined, undefined, turned);
+  const frames = Array.from({ length: count }, (_, j) => samples.subarray(j * pixels, (j + 1) * pixels));
+  let turning: Uint8Array;
+  let factor: Float32Array | null = null;
+  if (turn.rectify) {
+    // A tilted view: what turns does so about its own centre (turning-centre.ts, Decision 76).
+    const recentred = recentredTurn(frames, still, width, plan.crop.height, turn, angles);
+    turn =
+      Math.hypot(recentred.cx - turn.cx, recentred.cy - turn.cy) <= sameCentrePx
+        ? // About the marked centre after all (a camera nearly straight down): Decision 70's model in the image.
+          { cx: turn.cx, cy: turn.cy, r: turn.r - 1, rate: turn.rate }
+        : recentred;
+    inDisc = discPixels(turn, width, plan.crop.height);
+  }
+  if (turn.rectify) {
+    // Its model is a factor on the still model's darkness (turning-median.ts).
+    const made = turningMedian(frames, still, width, plan.crop.height, turn, angles, discs);
+    factor = new Float32Array(new SharedArrayBuffer(made.length * 4));
+    factor.set(made);
+    turning = still;
+  } else {
+    const turned = new Uint8Array(new SharedArrayBuffer(samples.length));
+    const share = Math.ceil(count / threads);
+    const turnedPlan = { ...plan, turn };
+    await Promise.all(
+      Array.from({ length: threads }, (_, w) =>
+        runTask(workers, {
+          kind: "turn-back",
+          samples,
+          plan: turnedPlan,
+          angles,
+          out: turned,
+          from: Math.min(count, w * share),
+          to: Math.min(count, (w + 1) * share),
+        }),
+      ),
+    );
+    const turnedDiscs = turnExclusions(discs, turn, angles);
+    turning = await median(turnedDiscs.length ? { width, discs: turnedDiscs } : undefined, undefined, turned);
+  }
   const shared = new Int32Array(new SharedArrayBuffer(inDisc.length * 4));
   shared.set(inDisc);
-  const model: TurningBackground = { turn, turning, rings: ringMedians(turning, width, turn), pixels: shared };
-  const length = pixels;
-  const frames = Array.from({ length: count }, (_, j) => samples.subarray(j * length, (j + 1) * length));
+  const model: TurningBackground = { turn, turning, rings: factor ? new Float32Array(0) : ringMedians(turning, width, turn), pixels: shared, factor };
   const misfits = samplesMisfit(frames, still, model, width, plan.crop.height, angles);
   // Kept only where it explains the samples clearly better than the still model alone.
   return misfits.combined < keptMisfitShare * misfits.still ? model : null;

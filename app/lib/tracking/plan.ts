@@ -1,6 +1,7 @@
 import type { DyeColour, TrackingSetup } from "./types";
 import { formatFixed } from "../number-format";
 import { turnRateInView, type TurnInView } from "./turning-background";
+import { invert, multiply, type Mat3 } from "../projective/matrix";
 
 /** The rectangle of the frame that is decoded and searched, full-frame px. */
 export interface CropBox {
@@ -123,9 +124,59 @@ function planTurn(setup: TrackingSetup, crop: CropBox, tank: DetectionPlan["tank
   if (!finite(setup.centre.x) || !finite(setup.centre.y)) return null;
   const cx = setup.centre.x - crop.left;
   const cy = setup.centre.y - crop.top;
+  const rate = turnRateInView(rotation.omega, rotation.cameraMode, setup.mirrored);
+  if (setup.correction) return rectifiedTurn(setup.correction, crop, tank, { x: cx, y: cy }, rate);
   const r = Math.min(tank.r - Math.hypot(cx - tank.cx, cy - tank.cy), cx - 1, cy - 1, crop.width - 2 - cx, crop.height - 2 - cy);
   if (!(r >= 8)) return null;
-  return { cx, cy, r, rate: turnRateInView(rotation.omega, rotation.cameraMode, setup.mirrored) };
+  return { cx, cy, r, rate };
+}
+
+/**
+ * The turning disc of a tilted view (Decision 76): in the plane of the view correction moved to the
+ * crop, about the rotation centre (which the correction keeps in place), as far as the tank edge and
+ * the crop's border allow there.
+ */
+function rectifiedTurn(
+  correction: Mat3,
+  crop: CropBox,
+  tank: NonNullable<DetectionPlan["tank"]>,
+  centre: { x: number; y: number },
+  rate: number,
+): TurnInView | null {
+  const shift = (dx: number, dy: number): Mat3 => [
+    [1, 0, dx],
+    [0, 1, dy],
+    [0, 0, 1],
+  ];
+  const H = multiply(shift(-crop.left, -crop.top), multiply(correction, shift(crop.left, crop.top)));
+  const Hinv = invert(H);
+  if (!Hinv || !H.flat().every(finite) || !Hinv.flat().every(finite)) return null;
+  const toPlane = (x: number, y: number): { x: number; y: number } | null => {
+    const w = H[2][0] * x + H[2][1] * y + H[2][2];
+    if (!(Math.abs(w) > 1e-12)) return null;
+    return { x: (H[0][0] * x + H[0][1] * y + H[0][2]) / w, y: (H[1][0] * x + H[1][1] * y + H[1][2]) / w };
+  };
+  const c = toPlane(centre.x, centre.y);
+  if (!c) return null;
+  // The nearest of the tank edge and the crop's border, both carried into the plane, less a pixel.
+  const around: { x: number; y: number }[] = [];
+  for (let k = 0; k < 180; k++) {
+    const a = (2 * Math.PI * k) / 180;
+    around.push({ x: tank.cx + tank.r * Math.cos(a), y: tank.cy + tank.r * Math.sin(a) });
+  }
+  for (let t = 0; t <= 1; t += 1 / 64) {
+    const x = 1 + t * (crop.width - 3);
+    const y = 1 + t * (crop.height - 3);
+    around.push({ x, y: 1 }, { x, y: crop.height - 2 }, { x: 1, y }, { x: crop.width - 2, y });
+  }
+  let r = Infinity;
+  for (const p of around) {
+    const q = toPlane(p.x, p.y);
+    r = Math.min(r, q ? Math.hypot(q.x - c.x, q.y - c.y) : 0);
+  }
+  r -= 1;
+  if (!(r >= 8)) return null;
+  return { cx: c.x, cy: c.y, r, rate, rectify: { H, Hinv } };
 }
 
 /** A key that changes whenever the plan would search differently. */

@@ -19,15 +19,9 @@
  * `turnRateInView` converts the table's Ω and the camera mode to one.
  */
 import type { BackgroundExclusion } from "./background";
+import { discBox, discPixels, inTurningDisc, turnDistance, turnPoint, type TurnInView } from "./turning-geometry";
 
-/** The turning part of a view: centre and radius in crop px, rate in image radians per second. */
-export interface TurnInView {
-  cx: number;
-  cy: number;
-  /** Pixels within this distance of the centre turn; a turned pixel stays inside the crop. */
-  r: number;
-  rate: number;
-}
+export type { TurnInView } from "./turning-geometry";
 
 /**
  * The image-angle rate of what turns in view. Ω is counter-clockwise seen from above; a view from
@@ -48,6 +42,7 @@ export function turnBack(frame: Uint8Array, width: number, height: number, turn:
   if (frame.length !== width * height || out.length !== frame.length) throw new Error("A turned frame must match the frame's size.");
   const cos = Math.cos(angle);
   const sin = Math.sin(angle);
+  if (turn.rectify) throw new Error("A tilted view's turning model is made by turningMedian (turning-median.ts).");
   const r2 = turn.r * turn.r;
   for (let row = 0; row < height; row++) {
     const dy = row - turn.cy;
@@ -63,7 +58,7 @@ export function turnBack(frame: Uint8Array, width: number, height: number, turn:
   }
 }
 
-function bilinear(image: Uint8Array, width: number, height: number, x: number, y: number): number {
+export function bilinear(image: ArrayLike<number>, width: number, height: number, x: number, y: number): number {
   const x0 = Math.min(width - 2, Math.max(0, Math.floor(x)));
   const y0 = Math.min(height - 2, Math.max(0, Math.floor(y)));
   const fx = Math.min(1, Math.max(0, x - x0));
@@ -76,6 +71,7 @@ function bilinear(image: Uint8Array, width: number, height: number, x: number, y
 
 /** The still model's exclusion discs moved into the turning frame (sample j turned back by its angle). */
 export function turnExclusions(discs: readonly BackgroundExclusion[], turn: TurnInView, angles: readonly number[]): BackgroundExclusion[] {
+  if (turn.rectify) throw new Error("A tilted view's turning model leaves the float out itself (turning-median.ts).");
   return discs.map((d) => {
     const angle = angles[d.sample] ?? 0;
     const cos = Math.cos(angle);
@@ -168,12 +164,9 @@ export const minDoubtedShare = 0.02;
 export function turningPixels(misfit: Float32Array, width: number, turn: TurnInView, stride = 1): Int32Array | null {
   const judged: number[] = [];
   const height = Math.floor(misfit.length / width);
-  const r2 = turn.r * turn.r;
-  const row0 = Math.max(0, Math.floor(turn.cy - turn.r));
-  const row1 = Math.min(height - 1, Math.ceil(turn.cy + turn.r));
-  const col0 = Math.max(0, Math.floor(turn.cx - turn.r));
-  const col1 = Math.min(width - 1, Math.ceil(turn.cx + turn.r));
-  const inDisc = (col: number, row: number) => (col - turn.cx) ** 2 + (row - turn.cy) ** 2 <= r2;
+  const { row0, row1, col0, col1 } = discBox(turn, width, height);
+  const scratch = new Float64Array(2);
+  const inDisc = (col: number, row: number) => inTurningDisc(turn, col, row, scratch);
   // Only the judged pixels first: most stacks turn nothing through the view, and then the disc's
   // own list (every pixel of it) is never needed.
   for (let row = Math.ceil(row0 / stride) * stride; row <= row1; row += stride) {
@@ -189,11 +182,7 @@ export function turningPixels(misfit: Float32Array, width: number, turn: TurnInV
   let doubted = 0;
   for (const p of judged) if (misfit[p]! > limit) doubted++;
   if (!(doubted > minDoubtedShare * judged.length)) return null;
-  const inside: number[] = [];
-  for (let row = row0; row <= row1; row++) {
-    for (let col = col0; col <= col1; col++) if (inDisc(col, row)) inside.push(row * width + col);
-  }
-  return Int32Array.from(inside);
+  return discPixels(turn, width, height);
 }
 
 /** Both models of a stack, as the searched frames use them. */
@@ -205,6 +194,11 @@ export interface TurningBackground {
   rings: Float32Array;
   /** Crop pixels where the turning model takes part (turningPixels). */
   pixels: Int32Array;
+  /**
+   * A tilted view's turning model as a factor on the still model's darkness, in the turning frame
+   * (turning-median.ts); when present, `turning` and `rings` are not used.
+   */
+  factor?: Float32Array | null;
 }
 
 /**
@@ -216,9 +210,11 @@ export function ringMedians(turning: Uint8Array, width: number, turn: TurnInView
   const count = Math.ceil(turn.r) + 1;
   const rings: number[][] = Array.from({ length: count }, () => []);
   const height = Math.floor(turning.length / width);
-  for (let row = Math.max(0, Math.floor(turn.cy - turn.r)); row <= Math.min(height - 1, Math.ceil(turn.cy + turn.r)); row++) {
-    for (let col = Math.max(0, Math.floor(turn.cx - turn.r)); col <= Math.min(width - 1, Math.ceil(turn.cx + turn.r)); col++) {
-      const i = Math.floor(Math.hypot(col - turn.cx, row - turn.cy));
+  const { row0, row1, col0, col1 } = discBox(turn, width, height);
+  const scratch = new Float64Array(2);
+  for (let row = row0; row <= row1; row++) {
+    for (let col = col0; col <= col1; col++) {
+      const i = Math.floor(turnDistance(turn, col, row, scratch));
       if (i < count) rings[i]!.push(turning[row * width + col]!);
     }
   }
@@ -260,11 +256,20 @@ export function backgroundAt(
   const cos = Math.cos(angle);
   const sin = Math.sin(angle);
   const last = rings.length - 1;
+  if (turn.rectify && !model.factor) throw new Error("A tilted view's turning model is a factor (turning-median.ts).");
+  const plane = new Float64Array(2);
   for (let i = 0; i < pixels.length; i++) {
     const p = pixels[i]!;
     const row = (p / width) | 0;
     const dx = p - row * width - turn.cx;
     const dy = row - turn.cy;
+    if (model.factor) {
+      // A tilted view: the factor at H⁻¹(c + R(−angle)(H p − c)) on the still model's darkness.
+      turnPoint(turn, -angle, p - row * width, row, plane, cos, -sin);
+      const value = 255 - (255 - still[p]!) * bilinear(model.factor, width, height, plane[0]!, plane[1]!);
+      out[p] = value <= 0 ? 0 : value >= 255 ? 255 : Math.round(value);
+      continue;
+    }
     const turned = bilinear(turning, width, height, turn.cx + cos * dx + sin * dy, turn.cy - sin * dx + cos * dy);
     // The ring median at this distance, between the two nearest rings' (ring i is centred on i + ½).
     const at = Math.min(last, Math.max(0, Math.hypot(dx, dy) - 0.5));

@@ -1,3 +1,4 @@
+import type { Mat3 } from "../projective/matrix";
 /**
  * Shapes shared by the tracking steps. Positions are full-frame image pixels: x is the column,
  * y the row (pointing down), and the centre of pixel (col, row) sits at (col, row) exactly.
@@ -84,6 +85,11 @@ export interface TrackingSetup {
    * Absent or null: everything behind the tracer is taken to stand still in the view.
    */
   rotation?: { omega: number; cameraMode: "rotating" | "lab" } | null;
+  /**
+   * The view correction of a camera not quite overhead (image px → overhead px, app/lib/projective),
+   * when the setup carries tilt marks: the background's turning model turns rigidly in that plane.
+   */
+  correction?: Mat3 | null;
 }
 
 export interface TrackQuality {

@@ -18,14 +18,12 @@ import { lastWholeFrame, searchedWhole, searchWindows } from "../../lib/tracking
 import type { SearchWindow } from "../../lib/tracking/threshold";
 import { discPixels } from "../../lib/tracking/turning-geometry";
 import { ringMedians, samplesMisfit, turningPixels, turnExclusions, type TurningBackground } from "../../lib/tracking/turning-background";
-import { recentredTurn } from "../../lib/tracking/turning-centre";
-import { turningMedian } from "../../lib/tracking/turning-median";
 import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup } from "../../lib/tracking/types";
 import { decodeFrame, readFrameSize, type FrameSize } from "./decode-frame";
 import { TrackingError } from "./errors";
 import { bundledWorker } from "./worker-bundle";
 import { workerExecArgv } from "./worker-options";
-import type { TrackTask, TrackTaskResult } from "./track-worker";
+import type { TiltedTurning, TrackTask, TrackTaskResult } from "./track-worker";
 
 export interface TrackFrameStackInput {
   /** Frame files in stack order. */
@@ -330,20 +328,31 @@ async function turningModel(
   let turning: Uint8Array;
   let factor: Float32Array | null = null;
   if (turn.rectify) {
-    // A tilted view: what turns does so about its own centre (turning-centre.ts, Decision 76).
-    const recentred = recentredTurn(frames, still, width, plan.crop.height, turn, angles);
-    turn =
-      Math.hypot(recentred.cx - turn.cx, recentred.cy - turn.cy) <= sameCentrePx
-        ? // About the marked centre after all (a camera nearly straight down): Decision 70's model in the image.
-          { cx: turn.cx, cy: turn.cy, r: turn.r - 1, rate: turn.rate }
-        : recentred;
+    // A tilted view: what turns does so about its own centre (turning-centre.ts, Decision 76), and
+    // its model is a factor on the still model's darkness (turning-median.ts), made in a worker.
+    const tilted = (await runTask(workers, {
+      kind: "tilted-turning",
+      samples,
+      count,
+      still,
+      width,
+      height: plan.crop.height,
+      turn,
+      angles,
+      discs,
+      sameCentrePx,
+    })) as TiltedTurning;
+    if (tilted.turn && tilted.factor) {
+      turn = tilted.turn;
+      factor = new Float32Array(new SharedArrayBuffer(tilted.factor.length * 4));
+      factor.set(tilted.factor);
+    } else {
+      // About the marked centre after all (a camera nearly straight down): Decision 70's model in the image.
+      turn = { cx: turn.cx, cy: turn.cy, r: turn.r - 1, rate: turn.rate };
+    }
     inDisc = discPixels(turn, width, plan.crop.height);
   }
-  if (turn.rectify) {
-    // Its model is a factor on the still model's darkness (turning-median.ts).
-    const made = turningMedian(frames, still, width, plan.crop.height, turn, angles, discs);
-    factor = new Float32Array(new SharedArrayBuffer(made.length * 4));
-    factor.set(made);
+  if (factor) {
     turning = still;
   } else {
     const turned = new Uint8Array(new SharedArrayBuffer(samples.length));

@@ -13,6 +13,9 @@ import type { BackgroundExclusion } from "../../lib/tracking/background";
 import type { Detection } from "../../lib/tracking/types";
 import { fitDisc, type DiscFit } from "../../lib/tracking/disc-fit";
 import type { DiscRequest } from "../../lib/tracking/track-extension";
+import { recentredTurn } from "../../lib/tracking/turning-centre";
+import type { TurnInView } from "../../lib/tracking/turning-geometry";
+import { turningMedian } from "../../lib/tracking/turning-median";
 
 export type TrackTask =
   | {
@@ -45,6 +48,24 @@ export type TrackTask =
       out: Uint8Array;
       from: number;
       to: number;
+    }
+  | {
+      /**
+       * A tilted view's turning part (Decision 76): its centre found from the samples' departures
+       * from the still model, then its model, a factor on the still model's darkness. Seconds of
+       * processor time a stack, so off the server's main thread. `turn` null: the centre was found
+       * within `sameCentrePx` of the marked one.
+       */
+      kind: "tilted-turning";
+      samples: Uint8Array;
+      count: number;
+      still: Uint8Array;
+      width: number;
+      height: number;
+      turn: TurnInView;
+      angles: number[];
+      discs: BackgroundExclusion[];
+      sameCentrePx: number;
     }
   | {
       /** Mean square misfit of the samples against `model` for pixels [from, to), into the shared `out`. */
@@ -84,7 +105,12 @@ export type TrackTask =
       expected: number;
     };
 
-export type TrackTaskResult = Detection[] | DiscFit | null;
+export interface TiltedTurning {
+  turn: TurnInView | null;
+  factor: Float32Array | null;
+}
+
+export type TrackTaskResult = Detection[] | DiscFit | TiltedTurning | null;
 
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };
 const warmUpWaitMs = 5_000;
@@ -139,6 +165,13 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
       turnBack(task.samples.subarray(j * length, (j + 1) * length), width, height, turn, task.angles[j]!, task.out.subarray(j * length, (j + 1) * length));
     }
     return null;
+  }
+  if (task.kind === "tilted-turning") {
+    const length = task.width * task.height;
+    const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));
+    const found = recentredTurn(frames, task.still, task.width, task.height, task.turn, task.angles);
+    if (Math.hypot(found.cx - task.turn.cx, found.cy - task.turn.cy) <= task.sameCentrePx) return { turn: null, factor: null };
+    return { turn: found, factor: turningMedian(frames, task.still, task.width, task.height, found, task.angles, task.discs) };
   }
   if (task.kind === "misfit") {
     const length = task.model.length;

@@ -22,5 +22,8 @@ if (testDatabaseUrl && /^postgres(ql)?:\/\//.test(testDatabaseUrl)) {
   process.env.DATABASE_URL = `sqlite:${path.join(os.tmpdir(), `tankside-vitest-${process.pid}-${crypto.randomUUID()}.sqlite`)}`;
 }
 process.env.SESSION_SECRET ??= "vitest-session-secret-not-for-production";
-process.env.UPLOADS_DIR = path.join(os.tmpdir(), `tankside-vitest-uploads-${process.pid}`);
+// Each test file its own uploads folder too. One named by the process id alone was met again by a
+// later run whose worker got the same id, with that run's files in it, hours old: the orphan sweep's
+// test then found them and counted them as its own.
+process.env.UPLOADS_DIR = path.join(os.tmpdir(), `tankside-vitest-uploads-${process.pid}-${crypto.randomUUID()}`);
 delete process.env.SMTP_URL;

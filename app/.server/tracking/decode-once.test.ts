@@ -2,7 +2,7 @@ import { mkdtemp, rm } from "node:fs/promises";
 import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
-import { writeSyntheticStack, type WrittenStack } from "../../../tests/fixtures/tracking/write-stack";
+import { smallLabFloatCentre, smallLabFloatSpec, writeSyntheticStack, type WrittenStack } from "../../../tests/fixtures/tracking/write-stack";
 import { decodeFrame } from "./decode-frame";
 import { closeTrackingPool, prepareStackSearch, trackFrameStack } from "./track-frame-stack";
 
@@ -11,7 +11,7 @@ vi.mock("./decode-frame", async (importOriginal) => {
   return { ...actual, decodeFrame: vi.fn(actual.decodeFrame) };
 });
 
-const centre = { x: 160.3, y: 119.6 };
+const centre = smallLabFloatCentre;
 const setup = { tracer: "float" as const, centre, tankEdge: { cx: centre.x, cy: centre.y, r: 106 }, mirrored: false };
 
 let dir: string;
@@ -19,21 +19,7 @@ let stack: WrittenStack;
 
 beforeAll(async () => {
   dir = await mkdtemp(path.join(os.tmpdir(), "tankside-decode-once-"));
-  stack = await writeSyntheticStack(path.join(dir, "float"), {
-    width: 320,
-    height: 240,
-    frames: 40,
-    fps: 30,
-    seed: 5,
-    camera: "lab",
-    omega: 1.2,
-    centre,
-    pxPerM: 1,
-    tankRadiusPx: 110,
-    noiseSigma: 3,
-    illuminationGradient: 0.3,
-    tracers: [{ kind: "float", path: { kind: "inertial-circle", centre: { x: -20, y: 10 }, radius: 45, phase: 0.3 }, sigmaPx: 2.2, brightness: 110 }],
-  });
+  stack = await writeSyntheticStack(path.join(dir, "float"), smallLabFloatSpec(40, 0.3));
 });
 
 afterAll(async () => {

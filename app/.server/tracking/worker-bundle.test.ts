@@ -3,29 +3,16 @@ import { mkdtemp, rm } from "node:fs/promises";
 import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { writeSyntheticStack, type WrittenStack } from "../../../tests/fixtures/tracking/write-stack";
+import { smallLabFloatCentre, smallLabFloatSpec, writeSyntheticStack, type WrittenStack } from "../../../tests/fixtures/tracking/write-stack";
 import { closeTrackingPool, trackFrameStack } from "./track-frame-stack";
 
-const centre = { x: 160.3, y: 119.6 };
+const centre = smallLabFloatCentre;
 let dir: string;
 let stack: WrittenStack;
 
 beforeAll(async () => {
   dir = await mkdtemp(path.join(os.tmpdir(), "tankside-worker-bundle-"));
-  stack = await writeSyntheticStack(path.join(dir, "float"), {
-    width: 320,
-    height: 240,
-    frames: 12,
-    fps: 30,
-    seed: 5,
-    camera: "lab",
-    omega: 1.2,
-    centre,
-    pxPerM: 1,
-    tankRadiusPx: 110,
-    noiseSigma: 3,
-    tracers: [{ kind: "float", path: { kind: "inertial-circle", centre: { x: -20, y: 10 }, radius: 45, phase: 0.3 }, sigmaPx: 2.2, brightness: 110 }],
-  });
+  stack = await writeSyntheticStack(path.join(dir, "float"), smallLabFloatSpec(12));
 });
 afterAll(async () => {
   await closeTrackingPool();

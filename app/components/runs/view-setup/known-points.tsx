@@ -4,6 +4,7 @@ import { formatFixed } from "~/lib/number-format";
 import { minKnownPoints, type KnownPointEntry, type KnownPointsFit } from "~/lib/projective/known-points";
 import type { SetupValues } from "~/lib/setup-marks";
 import type { useNumberFields } from "./use-number-fields";
+import { MarksProblem } from "./marks-problem";
 
 const knownColour = "#d2b6ff";
 const gridColour = "#7fd4ff";
@@ -136,11 +137,7 @@ export function KnownPointsPanel({
       ) : (
         <p className="text-sm text-muted">No known points placed.</p>
       )}
-      {error?.length ? (
-        <p className="text-sm font-bold text-disagrees-ink" role="alert" id="knownPoints-error" data-testid="known-error">
-          {error.join(" ")}
-        </p>
-      ) : null}
+      <MarksProblem error={error} id="knownPoints-error" testId="known-error" />
       {v.knownPoints.length ? (
         <Button type="button" tone="quiet" onClick={onClear}>
           Clear the known points

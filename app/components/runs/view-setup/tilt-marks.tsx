@@ -3,6 +3,7 @@ import type { ViewCorrection } from "~/lib/projective/view-correction";
 import { tiltReadout, type LiveTilt } from "~/lib/tilt-preview";
 import type { SetupValues } from "~/lib/setup-marks";
 import { Button } from "~/components/ui/button";
+import { MarksProblem } from "./marks-problem";
 
 /** The rim points and, once they make one, their ellipse, drawn in the frame's pixels. */
 export function TiltOverlay({ points, correction, mark }: { points: readonly Point[]; correction: ViewCorrection | null; mark: number }) {
@@ -51,11 +52,7 @@ export function TiltPanel({ v, tilt, onClear, error }: { v: SetupValues; tilt: L
       <p id="tilt-readout" aria-live="polite" className={tilt.correction ? "font-bold" : "text-muted"} data-testid="tilt-readout">
         {tiltReadout(tilt, v.knownPoints.length)}
       </p>
-      {error?.length ? (
-        <p className="text-sm font-bold text-disagrees-ink" role="alert" id="rimPoints-error" data-testid="tilt-error">
-          {error.join(" ")}
-        </p>
-      ) : null}
+      <MarksProblem error={error} id="rimPoints-error" testId="tilt-error" />
       {v.rimPoints.length ? (
         <Button type="button" tone="quiet" onClick={onClear}>
           Clear the rim points

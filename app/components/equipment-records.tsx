@@ -7,6 +7,7 @@ import { ButtonLink } from "./ui/button";
 import { Card, Tag } from "./ui/card";
 import { Notice } from "./ui/notice";
 import { StandingTag, calibrationResult } from "./calibration-facts";
+import { TableHead } from "~/components/ui/table-head";
 
 type RecordRow = Parameters<typeof calibrationResult>[0] & {
   id: number;
@@ -66,14 +67,7 @@ export function EquipmentCalibrations({
       </ul>
       {records.length ? (
         <table className="w-full text-left text-sm">
-          <thead>
-            <tr className="border-b-2 border-line">
-              <th className="py-1 pr-3">Record</th>
-              <th className="py-1 pr-3">Done</th>
-              <th className="py-1 pr-3">Result</th>
-              <th className="py-1">Standing</th>
-            </tr>
-          </thead>
+          <TableHead columns={["Record", "Done", "Result", "Standing"]} compact />
           <tbody>
             {records.map((r) => (
               <tr key={r.id} className="border-b border-line align-top">

@@ -4,6 +4,7 @@ import { TheoryPlots } from "~/components/plots/theory-plots";
 import { formatNumber } from "~/lib/number-format";
 import { CalibrationsAppliedList } from "./calibrations-applied-list";
 import { useLabTime } from "~/components/lab-time";
+import { TableHead } from "~/components/ui/table-head";
 
 const verdictWords = { agrees: "Agrees with theory", disagrees: "Disagrees with theory", inconclusive: "Inconclusive" } as const;
 
@@ -28,16 +29,7 @@ export function TrackChecksTable({ check }: { check: Pick<StoredCheckView, "chec
       <h3 className="font-bold">Each track</h3>
       {k ? <p className="mt-1">{k.words}</p> : null}
       <table className="mt-2 w-full text-left">
-        <thead>
-          <tr className="border-b-2 border-line">
-            <th className="py-1">Track</th>
-            <th className="py-1">f (1/s)</th>
-            <th className="py-1">Drag (1/s)</th>
-            <th className="py-1">Points</th>
-            <th className="py-1">Pull</th>
-            <th className="py-1">Verdict alone</th>
-          </tr>
-        </thead>
+        <TableHead columns={["Track", "f (1/s)", "Drag (1/s)", "Points", "Pull", "Verdict alone"]} compact spaced={false} />
         <tbody>
           {check.checks.map((t, i) => (
             <tr key={t.trackNumber ?? `old-${i}`} className={`border-b border-line ${t.flagged ? "font-bold" : ""}`}>

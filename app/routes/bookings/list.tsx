@@ -25,6 +25,7 @@ import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
 import { Notice, FormProblem } from "~/components/ui/notice";
 import { formText } from "~/lib/form-text";
 import { numberOrNull } from "~/lib/number-input";
+import { TableHead } from "~/components/ui/table-head";
 
 export const meta: Route.MetaFunction = () => [{ title: "Bookings · Tankside" }];
 export const links: Route.LinksFunction = () => [
@@ -359,16 +360,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
         ) : (
           <div className="relative overflow-x-auto">
             <table className="w-full text-left">
-              <thead>
-                <tr className="border-b-2 border-line">
-                  <th className="py-2 pr-3">Booking</th>
-                  <th className="py-2 pr-3">Item</th>
-                  <th className="py-2 pr-3">Slot</th>
-                  <th className="py-2 pr-3">Purpose</th>
-                  <th className="py-2 pr-3">State</th>
-                  <th className="py-2">Actions</th>
-                </tr>
-              </thead>
+              <TableHead columns={["Booking", "Item", "Slot", "Purpose", "State", "Actions"]} />
               <tbody>
                 {bookings.map((b) => {
                   const open = b.state === "requested" || b.state === "approved";

@@ -21,6 +21,7 @@ import { Notice } from "~/components/ui/notice";
 import { StandingTag, calibrationResult } from "~/components/calibration-facts";
 import { CalibrationUploader } from "~/components/calibration-uploader";
 import { formText } from "~/lib/form-text";
+import { TableHead } from "~/components/ui/table-head";
 
 export const meta: Route.MetaFunction = ({ data }) => [
   { title: `${data ? `${calibrationKindLabels[data.record.kind]} #${data.record.id}` : "Calibration"} · Tankside` },
@@ -206,14 +207,7 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
         {r.kind === "rate" && r.readings && line ? (
           <Card title="Readings and fit">
             <table className="w-full text-left">
-              <thead>
-                <tr className="border-b-2 border-line">
-                  <th className="py-1 pr-3">Set (rpm)</th>
-                  <th className="py-1 pr-3">Measured (rpm)</th>
-                  <th className="py-1 pr-3">Off set rate</th>
-                  <th className="py-1">Residual (rpm)</th>
-                </tr>
-              </thead>
+              <TableHead columns={["Set (rpm)", "Measured (rpm)", "Off set rate", "Residual (rpm)"]} compact />
               <tbody>
                 {r.readings.map((x, i) => {
                   const pct = (100 * (x.measuredRpm - x.setRpm)) / x.setRpm;

@@ -12,6 +12,7 @@ import { SelectField, TextField } from "~/components/ui/field";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { StandingTag, calibrationResult } from "~/components/calibration-facts";
+import { TableHead } from "~/components/ui/table-head";
 
 export const meta: Route.MetaFunction = () => [{ title: "Calibrations · Tankside" }];
 
@@ -140,16 +141,7 @@ export default function Calibrations({ loaderData }: Route.ComponentProps) {
           ) : (
             <div className="overflow-x-auto">
               <table className="w-full text-left">
-                <thead>
-                  <tr className="border-b-2 border-line">
-                    <th className="py-2 pr-3">Record</th>
-                    <th className="py-2 pr-3">Item</th>
-                    <th className="py-2 pr-3">Done</th>
-                    <th className="py-2 pr-3">Due</th>
-                    <th className="py-2 pr-3">Result</th>
-                    <th className="py-2">Standing</th>
-                  </tr>
-                </thead>
+                <TableHead columns={["Record", "Item", "Done", "Due", "Result", "Standing"]} />
                 <tbody>
                   {records.map((r) => (
                     <tr key={r.id} className="border-b border-line align-top" data-testid={`calibration-${r.id}`}>

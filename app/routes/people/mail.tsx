@@ -10,6 +10,7 @@ import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { useLabTime } from "~/components/lab-time";
 import { ScrollRegion } from "~/components/ui/scroll-region";
+import { TableHead } from "~/components/ui/table-head";
 
 export const meta: Route.MetaFunction = () => [{ title: "Mail · Tankside" }];
 
@@ -65,15 +66,7 @@ export default function Mail({ loaderData }: Route.ComponentProps) {
         ) : (
           <ScrollRegion label="Outgoing mail">
             <table className="w-full text-left">
-              <thead>
-                <tr className="border-b-2 border-line">
-                  <th className="py-2 pr-3">Queued</th>
-                  <th className="py-2 pr-3">To</th>
-                  <th className="py-2 pr-3">Subject</th>
-                  <th className="py-2 pr-3">State</th>
-                  <th className="py-2">Details</th>
-                </tr>
-              </thead>
+              <TableHead columns={["Queued", "To", "Subject", "State", "Details"]} />
               <tbody>
                 {outbox.map((m) => (
                   <OutboxRow key={m.id} m={m} />

@@ -15,6 +15,7 @@ import { SelectField, TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
 import { ScrollRegion } from "~/components/ui/scroll-region";
 import { formText } from "~/lib/form-text";
+import { TableHead } from "~/components/ui/table-head";
 
 export const meta: Route.MetaFunction = () => [{ title: "People · Tankside" }];
 
@@ -84,14 +85,7 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
         <Card title={`${loaderData.people.length} people`}>
           <ScrollRegion label="People">
             <table className="w-full text-left">
-              <thead>
-                <tr className="border-b-2 border-line">
-                  <th className="py-2 pr-3">Name</th>
-                  <th className="py-2 pr-3">Role</th>
-                  <th className="py-2 pr-3">State</th>
-                  <th className="py-2">Actions</th>
-                </tr>
-              </thead>
+              <TableHead columns={["Name", "Role", "State", "Actions"]} />
               <tbody>
                 {loaderData.people.map((p) => (
                   <PersonRow key={p.id} person={p} isMe={p.id === loaderData.me.id} />

@@ -1,6 +1,7 @@
 import { Card } from "~/components/ui/card";
 import { formatNumber } from "~/lib/number-format";
 import type { RunPageData } from "../run";
+import { TableHead } from "~/components/ui/table-head";
 
 /** The finished job's tracks over the middle frame and as a table, the longest in bold. */
 export function TracksCard({ d }: { d: RunPageData }) {
@@ -16,15 +17,7 @@ export function TracksCard({ d }: { d: RunPageData }) {
           className="w-full rounded border border-line"
         />
         <table className="w-full self-start text-left">
-          <thead>
-            <tr className="border-b-2 border-line">
-              <th className="py-2">Track</th>
-              <th className="py-2">Points</th>
-              <th className="py-2">Duration</th>
-              <th className="py-2">Detected</th>
-              <th className="py-2">Jitter</th>
-            </tr>
-          </thead>
+          <TableHead columns={["Track", "Points", "Duration", "Detected", "Jitter"]} spaced={false} />
           <tbody>
             {d.tracks.map((t) => (
               <tr key={t.id} className={`border-b border-line ${t.id === longest?.id ? "font-bold" : ""}`}>

@@ -72,6 +72,34 @@ export interface PlotContext {
   setup: ViewGeometry;
 }
 
+/** The x and y axes of a plan view (seen from above, equal scales), as an array so the chart sees them as its own children. */
+function planeAxes(domain: { x: [number, number]; y: [number, number] }, unit: string) {
+  return [
+    <XAxis
+      key="x"
+      type="number"
+      dataKey="x"
+      domain={domain.x}
+      interval={0}
+      ticks={niceTicks(domain.x)}
+      tickFormatter={tick}
+      allowDataOverflow
+      label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }}
+    />,
+    <YAxis
+      key="y"
+      type="number"
+      dataKey="y"
+      domain={domain.y}
+      interval={0}
+      ticks={niceTicks(domain.y)}
+      tickFormatter={tick}
+      allowDataOverflow
+      label={yLabel(`y (${unit})`)}
+    />,
+  ];
+}
+
 export function TheoryPlots({ result, setup }: PlotContext) {
   const unit = result.lengthUnit === "m" ? "cm" : "px";
   const k = result.lengthUnit === "m" ? 100 : 1;
@@ -125,26 +153,7 @@ export function TheoryPlots({ result, setup }: PlotContext) {
       >
         <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
-          <XAxis
-            type="number"
-            dataKey="x"
-            domain={rotDomain.x}
-            interval={0}
-            ticks={niceTicks(rotDomain.x)}
-            tickFormatter={tick}
-            allowDataOverflow
-            label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }}
-          />
-          <YAxis
-            type="number"
-            dataKey="y"
-            domain={rotDomain.y}
-            interval={0}
-            ticks={niceTicks(rotDomain.y)}
-            tickFormatter={tick}
-            allowDataOverflow
-            label={yLabel(`y (${unit})`)}
-          />
+          {planeAxes(rotDomain, unit)}
           <ZAxis range={[12, 12]} />
           <Tooltip formatter={(v: unknown) => tick(Number(v))} />
           <Scatter name="tracer" data={rot} fill={colours.data} isAnimationActive={false} />
@@ -168,26 +177,7 @@ export function TheoryPlots({ result, setup }: PlotContext) {
       >
         <ScatterChart margin={{ top: 10, right: 16, bottom: 28, left: 16 }}>
           <CartesianGrid stroke="#dde2e6" />
-          <XAxis
-            type="number"
-            dataKey="x"
-            domain={labDomain.x}
-            interval={0}
-            ticks={niceTicks(labDomain.x)}
-            tickFormatter={tick}
-            allowDataOverflow
-            label={{ value: `x (${unit})`, position: "insideBottom", offset: -16 }}
-          />
-          <YAxis
-            type="number"
-            dataKey="y"
-            domain={labDomain.y}
-            interval={0}
-            ticks={niceTicks(labDomain.y)}
-            tickFormatter={tick}
-            allowDataOverflow
-            label={yLabel(`y (${unit})`)}
-          />
+          {planeAxes(labDomain, unit)}
           <ZAxis range={[12, 12]} />
           <Scatter name="tracer (lab frame)" data={lab} fill={colours.second} isAnimationActive={false} />
         </ScatterChart>

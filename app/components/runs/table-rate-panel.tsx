@@ -1,5 +1,6 @@
 import type { RateChoice } from "~/lib/analysis/rate-choice";
 import { formatNumber, formatWithError } from "~/lib/number-format";
+import { Fact, Facts } from "~/components/ui/facts";
 import { Notice } from "~/components/ui/notice";
 
 /** The run page's summary of the table's rate (see app/.server/runs/rate-from-footage.ts). */
@@ -26,24 +27,20 @@ export function TableRatePanel({ rate, checkRate }: { rate: TableRateView; check
           {rate.disagreement}
         </Notice>
       ) : null}
-      <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
-        <dt className="font-bold">Set rate</dt>
-        <dd>{formatNumber(rate.setRpm, 4)} rpm</dd>
-        <dt className="font-bold">Rate calibration</dt>
-        <dd>
+      <Facts>
+        <Fact label="Set rate">{formatNumber(rate.setRpm, 4)} rpm</Fact>
+        <Fact label="Rate calibration">
           {rate.calibrated
             ? `${formatWithError(rate.calibrated.rpm, rate.calibrated.stdErrorRpm)} rpm (record #${rate.calibrated.calibrationId})`
             : "none in force"}
-        </dd>
-        <dt className="font-bold">Measured from the footage</dt>
-        <dd>
+        </Fact>
+        <Fact label="Measured from the footage">
           {rate.measured
             ? `${formatWithError(rate.measured.rpm, rate.measured.stdErrorRpm)} rpm, ${methodWords[rate.measured.method] ?? rate.measured.method} in ${rate.measured.frames} frames${rate.measured.sameSense ? "" : ", turning the other way"}`
             : (rate.note ?? "not measured (the frames have not been tracked since the rate was first read)")}
-        </dd>
-        <dt className="font-bold">Used by the check</dt>
-        <dd>{checkRate ? `${checkRate.used}: ${checkRate.why}` : rate.why}</dd>
-      </dl>
+        </Fact>
+        <Fact label="Used by the check">{checkRate ? `${checkRate.used}: ${checkRate.why}` : rate.why}</Fact>
+      </Facts>
     </div>
   );
 }

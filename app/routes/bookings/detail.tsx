@@ -13,6 +13,7 @@ import { TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
 import { formText } from "~/lib/form-text";
 import { formatNumber } from "~/lib/number-format";
+import { FactRows } from "~/components/ui/facts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Booking #${data?.booking.id ?? ""} · Tankside` }];
 
@@ -95,16 +96,7 @@ export default function BookingDetail({ loaderData, actionData }: Route.Componen
       </div>
       <div className="grid gap-6 lg:grid-cols-2">
         <Card title="The booking">
-          <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
-            {rows
-              .filter(([, v]) => v)
-              .map(([k, v]) => (
-                <div key={k} className="contents">
-                  <dt className="font-bold">{k}</dt>
-                  <dd>{v}</dd>
-                </div>
-              ))}
-          </dl>
+          <FactRows rows={rows} />
         </Card>
         {(isManager && b.state === "requested") || canCancel ? (
           <Card title="Decide">

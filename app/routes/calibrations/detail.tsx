@@ -22,6 +22,7 @@ import { StandingTag, calibrationResult } from "~/components/calibration-facts";
 import { CalibrationUploader } from "~/components/calibration-uploader";
 import { formText } from "~/lib/form-text";
 import { TableHead } from "~/components/ui/table-head";
+import { FactRows } from "~/components/ui/facts";
 
 export const meta: Route.MetaFunction = ({ data }) => [
   { title: `${data ? `${calibrationKindLabels[data.record.kind]} #${data.record.id}` : "Calibration"} · Tankside` },
@@ -192,16 +193,7 @@ export default function CalibrationDetail({ loaderData, actionData }: Route.Comp
       </div>
       <div className="grid grid-cols-1 gap-6 lg:grid-cols-2">
         <Card title="The record">
-          <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
-            {rows
-              .filter(([, v]) => v)
-              .map(([k, v]) => (
-                <div key={k} className="contents">
-                  <dt className="font-bold">{k}</dt>
-                  <dd>{v}</dd>
-                </div>
-              ))}
-          </dl>
+          <FactRows rows={rows} />
           {r.notes ? <p className="mt-4 whitespace-pre-wrap">{r.notes}</p> : null}
         </Card>
         {r.kind === "rate" && r.readings && line ? (

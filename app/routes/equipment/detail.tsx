@@ -10,6 +10,7 @@ import { equipmentCalibrationSummary } from "~/.server/calibration-views";
 import { listBookings, serializeBookings } from "~/.server/bookings";
 import { EquipmentBookings, EquipmentCalibrations } from "~/components/equipment-records";
 import { formatNumber } from "~/lib/number-format";
+import { FactRows } from "~/components/ui/facts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.item.name ?? "Equipment"} · Tankside` }];
 
@@ -52,16 +53,7 @@ export default function EquipmentDetail({ loaderData }: Route.ComponentProps) {
       />
       <div className="grid gap-6 lg:grid-cols-2">
         <Card title="About this item">
-          <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
-            {rows
-              .filter(([, v]) => v)
-              .map(([k, v]) => (
-                <div key={k} className="contents">
-                  <dt className="font-bold">{k}</dt>
-                  <dd>{v}</dd>
-                </div>
-              ))}
-          </dl>
+          <FactRows rows={rows} />
           {item.notes ? <p className="mt-4 whitespace-pre-wrap">{item.notes}</p> : null}
         </Card>
         <EquipmentCalibrations

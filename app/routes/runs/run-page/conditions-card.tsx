@@ -5,7 +5,7 @@ import { calibrationKindLabels } from "~/lib/calibrations";
 import { formatNumber } from "~/lib/number-format";
 import { roleCan } from "~/lib/roles";
 import { cameraModeLabels, directionLabels, tracerLabels } from "~/lib/runs";
-import { Fact } from "./fact";
+import { Fact, Facts } from "~/components/ui/facts";
 import type { RunPageData } from "../run";
 
 /** The run's conditions as logged, with the calibrations in force when it was logged. */
@@ -14,7 +14,7 @@ export function ConditionsCard({ d }: { d: RunPageData }) {
   const { run } = d;
   return (
     <Card title="Conditions">
-      <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
+      <Facts>
         <Fact label="Table">{d.table ? <Link to={`/equipment/${d.table.id}`}>{d.table.name}</Link> : "—"}</Fact>
         <Fact label="Tank">{d.tank ? <Link to={`/equipment/${d.tank.id}`}>{d.tank.name}</Link> : "—"}</Fact>
         <Fact label="Camera">
@@ -58,7 +58,7 @@ export function ConditionsCard({ d }: { d: RunPageData }) {
             "none signed and in date when the run was logged"
           )}
         </Fact>
-      </dl>
+      </Facts>
     </Card>
   );
 }

@@ -1,7 +1,7 @@
 import { Card } from "~/components/ui/card";
 import { formatNumber } from "~/lib/number-format";
 import { tiltInWords } from "~/lib/projective/view-correction";
-import { Fact } from "./fact";
+import { Fact, Facts } from "~/components/ui/facts";
 import type { RunPageData } from "../run";
 
 /** The view setup as saved: centre, tank edge, scale (or the calibration's), mirror and the camera's tilt. */
@@ -9,7 +9,7 @@ export function ViewSetupCard({ d }: { d: RunPageData }) {
   return (
     <Card title="View setup">
       {d.setup ? (
-        <dl className="grid grid-cols-[auto_1fr] gap-x-6 gap-y-2">
+        <Facts>
           <Fact label="Rotation centre">
             {formatNumber(d.setup.centre.x, 5)}, {formatNumber(d.setup.centre.y, 5)} px
           </Fact>
@@ -27,7 +27,7 @@ export function ViewSetupCard({ d }: { d: RunPageData }) {
               ? `${tiltInWords(d.setup.tilt, (deg) => formatNumber(deg, 2))}, from ${d.setup.tilt.method}; positions are corrected for it`
               : (d.setup.tiltError ?? "not marked (positions used as the camera saw them)")}
           </Fact>
-        </dl>
+        </Facts>
       ) : (
         <p className="text-muted">{d.frames.length ? "Not set up yet." : "Set up once frames are in."}</p>
       )}

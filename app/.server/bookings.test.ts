@@ -23,27 +23,12 @@ const asInstructor = () => ({ id: instructor.id, role: "instructor" as const, na
 const deliver = () => new OutboxSender().drain();
 const hoursFromNow = (h: number) => new Date(Math.round((Date.now() + h * 3_600_000) / 60_000) * 60_000);
 
-const base = {
-  maker: null,
-  model: null,
-  serialNumber: null,
-  location: null,
-  notes: null,
-  diameterM: 0.6,
-  maxRateRpm: 30,
-  flatTable: false,
-  rateTolerancePct: 1,
-  depthM: null,
-  resolutionWidthPx: null,
-  resolutionHeightPx: null,
-  nominalFrameRateFps: null,
-  meterType: null,
-};
+const tableDetails = { diameterM: 0.6, maxRateRpm: 30, flatTable: false, rateTolerancePct: 1 };
 
 beforeAll(async () => {
   await migrate();
-  table = await Equipment.create({ ...base, kind: "table", name: "Booking table" });
-  broken = await Equipment.create({ ...base, kind: "table", name: "Broken table", status: "out_of_service" });
+  table = await Equipment.create({ ...tableDetails, kind: "table", name: "Booking table" });
+  broken = await Equipment.create({ ...tableDetails, kind: "table", name: "Broken table", status: "out_of_service" });
   instructor = await User.create({ email: "i@tankside.example", name: "Ida Instructor", role: "instructor", passwordHash: null, passwordChangedAt: null });
   manager = await User.create({ email: "m@tankside.example", name: "Mo Manager", role: "lab_manager", passwordHash: null, passwordChangedAt: null });
   manager2 = await User.create({ email: "m2@tankside.example", name: "Mia Manager", role: "lab_manager", passwordHash: null, passwordChangedAt: null });
@@ -243,7 +228,7 @@ describe("iCalendar folding and UIDs (RFC 5545 §3.1, §3.8.4.7), parsed with ic
   const purpose = "Inertial circles for the Ø group — ".repeat(4).trim();
 
   it("folds every line at 75 octets without splitting a character; the name and purpose survive unfolding intact", async () => {
-    const item = await Equipment.create({ ...base, kind: "table", name: longName });
+    const item = await Equipment.create({ ...tableDetails, kind: "table", name: longName });
     const { booking } = await createBooking({ equipmentId: item.id, start: hoursFromNow(300), end: hoursFromNow(302), purpose }, asInstructor());
     await approveBooking(booking.id, asManager());
     const file = await bookingIcs(await serializeBooking((await Booking.findByPk(booking.id))!));

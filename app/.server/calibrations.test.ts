@@ -31,25 +31,9 @@ const rateInput = (over: Partial<CalibrationInput> = {}): CalibrationInput => ({
 
 beforeAll(async () => {
   await migrate();
-  const base = {
-    maker: null,
-    model: null,
-    serialNumber: null,
-    location: null,
-    notes: null,
-    diameterM: null,
-    maxRateRpm: null,
-    flatTable: null,
-    rateTolerancePct: null,
-    depthM: null,
-    resolutionWidthPx: null,
-    resolutionHeightPx: null,
-    nominalFrameRateFps: null,
-    meterType: null,
-  };
-  table = await Equipment.create({ ...base, kind: "table", name: "Test table", diameterM: 0.6, maxRateRpm: 30, flatTable: false, rateTolerancePct: 1 });
-  camera = await Equipment.create({ ...base, kind: "camera", name: "Test camera", resolutionWidthPx: 1280, resolutionHeightPx: 720, nominalFrameRateFps: 30 });
-  meter = await Equipment.create({ ...base, kind: "rate_meter", name: "Test tachometer", meterType: "tachometer" });
+  table = await Equipment.create({ kind: "table", name: "Test table", diameterM: 0.6, maxRateRpm: 30, flatTable: false, rateTolerancePct: 1 });
+  camera = await Equipment.create({ kind: "camera", name: "Test camera", resolutionWidthPx: 1280, resolutionHeightPx: 720, nominalFrameRateFps: 30 });
+  meter = await Equipment.create({ kind: "rate_meter", name: "Test tachometer", meterType: "tachometer" });
   tech = await User.create({ email: "t@tankside.example", name: "Test Tech", role: "technician", passwordHash: null, passwordChangedAt: null });
   manager = await User.create({ email: "m@tankside.example", name: "Test Manager", role: "lab_manager", passwordHash: null, passwordChangedAt: null });
   await User.create({ email: "m2@tankside.example", name: "Second Manager", role: "lab_manager", passwordHash: null, passwordChangedAt: null });
@@ -228,22 +212,7 @@ describe("in force at a moment (what a run freezes at its creation)", () => {
 
 describe("due list and reminders", () => {
   it("lists past due first and enqueues one reminder per record, delivered once, not again after a restart", async () => {
-    const base = {
-      maker: null,
-      model: null,
-      serialNumber: null,
-      location: null,
-      notes: null,
-      diameterM: 0.5,
-      maxRateRpm: 20,
-      flatTable: false,
-      rateTolerancePct: 1,
-      depthM: null,
-      resolutionWidthPx: null,
-      resolutionHeightPx: null,
-      nominalFrameRateFps: null,
-      meterType: null,
-    };
+    const base = { diameterM: 0.5, maxRateRpm: 20, flatTable: false, rateTolerancePct: 1 };
     const soon = await Equipment.create({ ...base, kind: "table", name: "Reminder table soon" });
     const late = await Equipment.create({ ...base, kind: "table", name: "Reminder table late" });
     const a = await createCalibration(

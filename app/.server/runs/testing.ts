@@ -6,31 +6,14 @@ import { trackingFingerprint } from "./provenance";
 import type { CurrentUser } from "../auth/permissions";
 import type { Role } from "~/lib/roles";
 
-const blank = {
-  maker: null,
-  model: null,
-  serialNumber: null,
-  location: null,
-  notes: null,
-  diameterM: null,
-  maxRateRpm: null,
-  flatTable: null,
-  rateTolerancePct: null,
-  depthM: null,
-  resolutionWidthPx: null,
-  resolutionHeightPx: null,
-  nominalFrameRateFps: null,
-  meterType: null,
-};
-
 /** A small invented lab for tests and the benchmark: two tables, two tanks, a camera and one person of each role. */
 export async function seedRunLab() {
   const [tableA, tableB, tank, tank2, camera] = await Equipment.bulkCreate([
-    { ...blank, kind: "table", name: "Bench table North", diameterM: 0.6, maxRateRpm: 30, flatTable: false, rateTolerancePct: 1 },
-    { ...blank, kind: "table", name: "Bench table South", diameterM: 1.0, maxRateRpm: 20, flatTable: false, rateTolerancePct: 1 },
-    { ...blank, kind: "tank", name: "Round tank 40", diameterM: 0.4, depthM: 0.2 },
-    { ...blank, kind: "tank", name: "Round tank 57", diameterM: 0.57, depthM: 0.25 },
-    { ...blank, kind: "camera", name: "Mast camera", resolutionWidthPx: 1280, resolutionHeightPx: 720, nominalFrameRateFps: 30 },
+    { kind: "table", name: "Bench table North", diameterM: 0.6, maxRateRpm: 30, flatTable: false, rateTolerancePct: 1 },
+    { kind: "table", name: "Bench table South", diameterM: 1.0, maxRateRpm: 20, flatTable: false, rateTolerancePct: 1 },
+    { kind: "tank", name: "Round tank 40", diameterM: 0.4, depthM: 0.2 },
+    { kind: "tank", name: "Round tank 57", diameterM: 0.57, depthM: 0.25 },
+    { kind: "camera", name: "Mast camera", resolutionWidthPx: 1280, resolutionHeightPx: 720, nominalFrameRateFps: 30 },
   ]);
   if (!tableA || !tableB || !tank || !tank2 || !camera) throw new Error("bulkCreate returned fewer rows than it was given");
   const person = async (role: Role, name: string) => {

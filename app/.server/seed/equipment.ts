@@ -2,28 +2,9 @@ import { Equipment } from "../db";
 import { addDemoStep } from "./demo";
 
 type Row = Partial<import("sequelize").InferCreationAttributes<Equipment>> & Pick<Equipment, "kind" | "name">;
-const base = {
-  location: null,
-  maker: null,
-  model: null,
-  serialNumber: null,
-  notes: null,
-  diameterM: null,
-  maxRateRpm: null,
-  flatTable: null,
-  rateTolerancePct: null,
-  depthM: null,
-  resolutionWidthPx: null,
-  resolutionHeightPx: null,
-  nominalFrameRateFps: null,
-  scaleTolerancePct: null,
-  meterType: null,
-};
-
 /** The invented lab's equipment. */
 export const demoEquipment: Row[] = [
   {
-    ...base,
     kind: "table",
     name: "Table A (east bench)",
     location: "Room 114",
@@ -35,7 +16,6 @@ export const demoEquipment: Row[] = [
     rateTolerancePct: 1,
   },
   {
-    ...base,
     kind: "table",
     name: "Table B (west bench)",
     location: "Room 114",
@@ -47,7 +27,6 @@ export const demoEquipment: Row[] = [
     rateTolerancePct: 1,
   },
   {
-    ...base,
     kind: "table",
     name: "Table C (spare)",
     location: "Store 2",
@@ -58,11 +37,10 @@ export const demoEquipment: Row[] = [
     rateTolerancePct: 1,
     notes: "Drive belt slipping above 10 rpm; waiting for a new belt.",
   },
-  { ...base, kind: "tank", name: "Acrylic tank 40", location: "Room 114", diameterM: 0.4, depthM: 0.2 },
-  { ...base, kind: "tank", name: "Acrylic tank 57", location: "Room 114", diameterM: 0.57, depthM: 0.25 },
-  { ...base, kind: "tank", name: "Wide tank 90", location: "Room 114", diameterM: 0.9, depthM: 0.3 },
+  { kind: "tank", name: "Acrylic tank 40", location: "Room 114", diameterM: 0.4, depthM: 0.2 },
+  { kind: "tank", name: "Acrylic tank 57", location: "Room 114", diameterM: 0.57, depthM: 0.25 },
+  { kind: "tank", name: "Wide tank 90", location: "Room 114", diameterM: 0.9, depthM: 0.3 },
   {
-    ...base,
     kind: "camera",
     name: "Overhead camera 1",
     location: "Table A mast",
@@ -74,7 +52,6 @@ export const demoEquipment: Row[] = [
     scaleTolerancePct: 1,
   },
   {
-    ...base,
     kind: "camera",
     name: "Overhead camera 2",
     location: "Table B mast",
@@ -85,9 +62,9 @@ export const demoEquipment: Row[] = [
     nominalFrameRateFps: 60,
     scaleTolerancePct: 1,
   },
-  { ...base, kind: "camera", name: "Old bench camera", status: "retired", resolutionWidthPx: 640, resolutionHeightPx: 480, nominalFrameRateFps: 25 },
-  { ...base, kind: "rate_meter", name: "Optical tachometer T1", meterType: "tachometer", maker: "Quillon", model: "OT-5" },
-  { ...base, kind: "rate_meter", name: "Photogate PG-2", meterType: "photogate" },
+  { kind: "camera", name: "Old bench camera", status: "retired", resolutionWidthPx: 640, resolutionHeightPx: 480, nominalFrameRateFps: 25 },
+  { kind: "rate_meter", name: "Optical tachometer T1", meterType: "tachometer", maker: "Quillon", model: "OT-5" },
+  { kind: "rate_meter", name: "Photogate PG-2", meterType: "photogate" },
 ];
 
 addDemoStep({

@@ -2,27 +2,28 @@ import { DataTypes, Model, type CreationOptional, type InferAttributes, type Inf
 import { sequelize } from "../connection";
 import type { EquipmentKind, EquipmentStatus } from "~/lib/equipment";
 
+/** Every detail column may be left out when a row is made: a column a kind does not use stays empty (null). */
 export class Equipment extends Model<InferAttributes<Equipment>, InferCreationAttributes<Equipment>> {
   declare id: CreationOptional<number>;
   declare kind: EquipmentKind;
   declare name: string;
   declare status: CreationOptional<EquipmentStatus>;
-  declare maker: string | null;
-  declare model: string | null;
-  declare serialNumber: string | null;
-  declare location: string | null;
-  declare notes: string | null;
-  declare diameterM: number | null;
-  declare maxRateRpm: number | null;
-  declare flatTable: boolean | null;
-  declare rateTolerancePct: number | null;
-  declare depthM: number | null;
-  declare resolutionWidthPx: number | null;
-  declare resolutionHeightPx: number | null;
-  declare nominalFrameRateFps: number | null;
+  declare maker: CreationOptional<string | null>;
+  declare model: CreationOptional<string | null>;
+  declare serialNumber: CreationOptional<string | null>;
+  declare location: CreationOptional<string | null>;
+  declare notes: CreationOptional<string | null>;
+  declare diameterM: CreationOptional<number | null>;
+  declare maxRateRpm: CreationOptional<number | null>;
+  declare flatTable: CreationOptional<boolean | null>;
+  declare rateTolerancePct: CreationOptional<number | null>;
+  declare depthM: CreationOptional<number | null>;
+  declare resolutionWidthPx: CreationOptional<number | null>;
+  declare resolutionHeightPx: CreationOptional<number | null>;
+  declare nominalFrameRateFps: CreationOptional<number | null>;
   /** camera: % a view setup's scale may differ from the scale calibration before a run is flagged */
-  declare scaleTolerancePct: number | null;
-  declare meterType: string | null;
+  declare scaleTolerancePct: CreationOptional<number | null>;
+  declare meterType: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }

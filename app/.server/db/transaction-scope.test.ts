@@ -43,7 +43,7 @@ describe("inside a transaction's callback, every query passes the transaction (b
     expect(await labels()).toEqual(["kept", "in savepoint"]);
   });
 
-  it("work started in a callback that queries after the commit runs on its own", async () => {
+  it("work started in a callback that writes after the commit runs on its own, outside the finished transaction, and takes its own turn in the write queue", async () => {
     await Probe.destroy({ where: {} });
     const started = gate();
     let later: Promise<unknown> = Promise.resolve();

@@ -60,19 +60,6 @@ describe.skipIf(!isSqlite)("the write queue (SQLite)", () => {
     expect(await labels()).toEqual(["in transaction", "outside"]);
   });
 
-  it("work started in a transaction's callback that writes after the commit takes its own turn", async () => {
-    await Probe.destroy({ where: {} });
-    const started = gate();
-    let later: Promise<unknown> = Promise.resolve();
-    await sequelize.transaction(async (transaction) => {
-      await Probe.create({ label: "first" }, { transaction });
-      later = started.opened.then(() => Probe.create({ label: "after commit" }));
-    });
-    started.open();
-    await later;
-    expect(await labels()).toEqual(["first", "after commit"]);
-  });
-
   it("Sequelize's own unmanaged transactions (findOrCreate) give their turn back, also when they fail", async () => {
     await Probe.destroy({ where: {} });
     const results = await Promise.all(Array.from({ length: 8 }, (_, i) => Probe.findOrCreate({ where: { label: `same ${i % 2}` } })));

@@ -6,3 +6,8 @@
 export const sceneTestFilesInSuite = ["tests/scenes/scene-tilt.test.ts"];
 /** The scenes scene-tracking.test.ts is run on (TANKSIDE_SCENE_VARIANTS). */
 export const trackedScenesInSuite = ["rotating-float", "lab-float"];
+/**
+ * Every stack the tests above read (scene-tilt.test.ts reads the tilted floats): `npm test` renders
+ * the missing ones at the start, at low priority, so POV-Ray uses what the other steps leave idle.
+ */
+export const sceneStacksInSuite = [...new Set(["rotating-float-tilt5", "lab-float-tilt5", ...trackedScenesInSuite])];

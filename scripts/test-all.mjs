@@ -16,15 +16,16 @@
 // and the browser lane spends much of its time waiting on one server and one browser. Their lines
 // are prefixed with the step's tag.
 //
-// The ray-traced scene tests (tests/scenes) have their own Vitest config and render their stacks
-// first where missing; those listed in scripts/scenes-in-suite.mjs run at the end of the server lane.
+// The ray-traced scene tests (tests/scenes) have their own Vitest config; those listed in
+// scripts/scenes-in-suite.mjs run at the end of the server lane, their stacks rendered where missing
+// by a low-priority step that starts with the lanes.
 //
 // Test files that never touch a database (listed in scripts/database-free-tests.mjs, and checked to
 // stay so by tests/unit/database-free.test.ts) run in the SQLite pass only.
 import { spawn, spawnSync } from "node:child_process";
 import path from "node:path";
 import { databaseFreeTests } from "./database-free-tests.mjs";
-import { sceneTestFilesInSuite, trackedScenesInSuite } from "./scenes-in-suite.mjs";
+import { sceneStacksInSuite, sceneTestFilesInSuite, trackedScenesInSuite } from "./scenes-in-suite.mjs";
 
 const root = path.resolve(import.meta.dirname, "..");
 const onlyAt = process.argv.indexOf("--only");
@@ -132,6 +133,13 @@ if (!failures.length) {
   if (sqlite) browserLane.push({ name: "browser tests on SQLite", tag: "sqlite:browser", cmd: "npx", args: ["playwright", "test"] });
   if (postgres) browserLane.push({ name: "browser tests on PostgreSQL", tag: "pg:browser", cmd: "npx", args: ["playwright", "test"], env: onPostgres });
 
+  // The scene stacks the suite reads are rendered from the start, by POV-Ray at low priority (nice
+  // 10): a clean clone has none, and the browser lane leaves much of the processors idle while it
+  // waits on its server and browser. The scene tests wait for it.
+  const scenesRendered = sqlite
+    ? run({ name: "scene stacks rendered", tag: "render", cmd: "nice", args: ["-n", "10", "npx", "tsx", "scripts/render-scenes.ts", ...sceneStacksInSuite] })
+    : Promise.resolve(false);
+
   // The two-process test needs the build: it runs once the server lane is done and the build is made.
   let built;
   const buildDone = new Promise((resolve) => (built = resolve));
@@ -147,9 +155,9 @@ if (!failures.length) {
       // Two web servers and two workers on one PostgreSQL database and a fake S3 bucket, then one SQLite server.
       await lane([{ name: "two processes, PostgreSQL + S3", tag: "two-process", cmd: "npx", args: ["tsx", "scripts/two-process.ts"], env: onPostgres }]);
     }
-    // The ray-traced tank scenes whose tests run in the suite (scenes-in-suite.mjs): rendered with
-    // POV-Ray first where the cache lacks them, a few minutes, while the browser lane still runs.
-    if (sqlite) {
+    // The ray-traced tank scenes whose tests run in the suite (scenes-in-suite.mjs), once their
+    // stacks are rendered (a failed render is reported as its own step).
+    if (sqlite && (await scenesRendered)) {
       const files = [...sceneTestFilesInSuite, ...(trackedScenesInSuite.length ? ["tests/scenes/scene-tracking.test.ts"] : [])];
       await lane([
         {

@@ -128,6 +128,20 @@ async function trackingPool(): Promise<TrackingPool> {
   return made;
 }
 
+/** A number per background array, the same for the same array (track-worker.ts keeps one view of it). */
+const backgroundIds = new WeakMap<Uint8Array, number>();
+let nextBackgroundId = 1;
+
+function backgroundId(background: Uint8Array | null): number | undefined {
+  if (!background) return undefined;
+  let id = backgroundIds.get(background);
+  if (id === undefined) {
+    id = nextBackgroundId++;
+    backgroundIds.set(background, id);
+  }
+  return id;
+}
+
 function runTask(workers: TrackingPool, task: TrackTask, transferList?: ArrayBuffer[]): Promise<TrackTaskResult> {
   return Promise.race([workers.piscina.run(task, { transferList }), workers.failed]);
 }
@@ -258,7 +272,9 @@ async function stillBackground(
         // A copy of its own (slice of shared memory is not shared), handed over to the worker.
         const image = samples.slice(j * length, (j + 1) * length);
         try {
-          return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background }, [image.buffer])) as Detection[];
+          return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background, backgroundId: backgroundId(background) }, [
+            image.buffer,
+          ])) as Detection[];
         } catch (error) {
           throw searchFailed(index, error);
         }
@@ -492,6 +508,7 @@ export async function prepareStackSearch(
             planKey: key,
             image,
             background,
+            backgroundId: backgroundId(background),
             windows: inWindows,
             turning: turnedAt(index),
           })) as Detection[];

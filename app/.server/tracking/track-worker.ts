@@ -24,6 +24,12 @@ export type TrackTask =
       planKey: string;
       image: Uint8Array;
       background: Uint8Array | null;
+      /**
+       * Names the background array (the same number for the same array): it arrives as a new view
+       * of its shared memory with every task, and the detector keeps sums of it for the array it
+       * was last given (threshold.ts), so the worker hands it the first view it had of that array.
+       */
+      backgroundId?: number;
       /** Where to search first (search-windows.ts); the whole frame when absent. */
       windows?: SearchWindow[] | null;
       /** The turning model and the angle its part has reached at this frame (turning-background.ts). */
@@ -181,7 +187,7 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   }
   const { plan } = task;
   const { width, height } = plan.crop;
-  let background = task.background;
+  let background = task.kind === "detect" ? sameBackground(task.background, task.backgroundId) : task.background;
   if (task.turning && background) {
     if (composed?.length !== background.length) composed = new Uint8Array(background.length);
     backgroundAt(background, task.turning.model, task.image, width, height, task.turning.angle, composed);
@@ -199,6 +205,19 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
     });
   }
   return detectorFor(task.planKey, plan).detect({ data: task.image, width, height, channels: plan.channels }, background, task.windows ?? undefined);
+}
+
+/** The first view this worker had of each of the last few named backgrounds. */
+const backgroundViews = new Map<number, Uint8Array>();
+const keptBackgrounds = 2;
+
+function sameBackground(background: Uint8Array | null, id: number | undefined): Uint8Array | null {
+  if (!background || id === undefined) return background;
+  const known = backgroundViews.get(id);
+  if (known && known.length === background.length) return known;
+  if (backgroundViews.size >= keptBackgrounds) backgroundViews.delete(backgroundViews.keys().next().value as number);
+  backgroundViews.set(id, background);
+  return background;
 }
 
 /** This worker's frame background where a turning model takes part, reused from frame to frame. */

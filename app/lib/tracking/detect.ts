@@ -41,6 +41,9 @@ export interface Detector {
    * there (threshold.ts). If a window holds no find, or a find lies too near a window's edge,
    * the whole frame is searched after all, so a window can make the search cheaper but never
    * change what it finds in the windows.
+   *
+   * A background is read as it is at its first use with this detector: one that changes must be
+   * given as a new array (threshold.ts keeps a dye background's block sums per array).
    */
   detect(image: FrameImage, background: Uint8Array | null, windows?: readonly SearchWindow[]): Detection[];
   /** Frees the OpenCV matrices: wasm memory is not garbage-collected. */

@@ -74,6 +74,44 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
   // then 255·(v − least) < satMin·v decides exactly what the quotient would, without a division
   // for every pixel of water.
   const wholeSaturation = k === 1 && Number.isInteger(satMin);
+  const sums = new Float64Array(3);
+  /**
+   * The colour background's block sums, channel by channel, for dye at reduced resolution: a
+   * stack's background stays as it is from frame to frame, so it is summed once for the array it
+   * was last given (`summedFor`) instead of in every frame's searched blocks.
+   */
+  let backgroundSums = new Float64Array(0);
+  let summedFor: Uint8Array | null = null;
+
+  /** The three channels of block (`sx`, `sy`) of an interleaved RGB image, summed into `out`. */
+  function blockSum3(data: Uint8Array, sx: number, sy: number, out: Float64Array): void {
+    let c0 = 0;
+    let c1 = 0;
+    let c2 = 0;
+    for (let ky = 0; ky < k; ky++) {
+      for (let p = 3 * ((sy * k + ky) * width + sx * k), end = p + 3 * k; p < end; p += 3) {
+        c0 += data[p]!;
+        c1 += data[p + 1]!;
+        c2 += data[p + 2]!;
+      }
+    }
+    out[0] = c0;
+    out[1] = c1;
+    out[2] = c2;
+  }
+
+  function sumBackground(background: Uint8Array): void {
+    if (summedFor === background) return;
+    if (backgroundSums.length !== sw * sh * 3) backgroundSums = new Float64Array(sw * sh * 3);
+    for (let sy = 0; sy < sh; sy++) {
+      for (let sx = 0; sx < sw; sx++) {
+        blockSum3(background, sx, sy, sums);
+        backgroundSums.set(sums, 3 * (sy * sw + sx));
+      }
+    }
+    summedFor = background;
+  }
+
   /** Column ranges of one tile row to search, [from, to) pairs in detection-image px. */
   const runs = new Int32Array(tilesX + 1);
 
@@ -120,6 +158,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     const level = background && !dye ? (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block : 0;
     // A block's mean change of colour has 1/k of a pixel's noise, and so has its offset (|s| is never negative).
     const changeLevel = background && dye ? Math.max(minColourChange, (offset + detectSigmas * sigma) / k) : 0;
+    if (background && dye && k > 1) sumBackground(background);
     for (let sy = 0; sy < sh; sy++) {
       const a = smallSpans[2 * sy]!;
       const b = smallSpans[2 * sy + 1]!;
@@ -139,23 +178,17 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
               const p = 3 * (rowAt + sx);
               above = relativeChangeAbove(img[p]!, img[p + 1]!, img[p + 2]!, background[p]!, background[p + 1]!, background[p + 2]!, changeLevel);
             } else {
-              let i0 = 0;
-              let i1 = 0;
-              let i2 = 0;
-              let b0 = 0;
-              let b1 = 0;
-              let b2 = 0;
-              for (let ky = 0; ky < k; ky++) {
-                for (let p = 3 * ((sy * k + ky) * width + sx * k), end = p + 3 * k; p < end; p += 3) {
-                  i0 += img[p]!;
-                  i1 += img[p + 1]!;
-                  i2 += img[p + 2]!;
-                  b0 += background[p]!;
-                  b1 += background[p + 1]!;
-                  b2 += background[p + 2]!;
-                }
-              }
-              above = relativeChangeAbove(i0 / block, i1 / block, i2 / block, b0 / block, b1 / block, b2 / block, changeLevel);
+              blockSum3(img, sx, sy, sums);
+              const b = 3 * (rowAt + sx);
+              above = relativeChangeAbove(
+                sums[0]! / block,
+                sums[1]! / block,
+                sums[2]! / block,
+                backgroundSums[b]! / block,
+                backgroundSums[b + 1]! / block,
+                backgroundSums[b + 2]! / block,
+                changeLevel,
+              );
             }
             if (!above) continue;
             const at = rowAt + sx;
@@ -215,19 +248,10 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
             g = img[p + 1]!;
             bl = img[p + 2]!;
           } else {
-            r = 0;
-            g = 0;
-            bl = 0;
-            for (let ky = 0; ky < k; ky++) {
-              for (let p = 3 * ((sy * k + ky) * width + sx * k), end = p + 3 * k; p < end; p += 3) {
-                r += img[p]!;
-                g += img[p + 1]!;
-                bl += img[p + 2]!;
-              }
-            }
-            r /= block;
-            g /= block;
-            bl /= block;
+            blockSum3(img, sx, sy, sums);
+            r = sums[0]! / block;
+            g = sums[1]! / block;
+            bl = sums[2]! / block;
           }
           const v = r > g ? (r > bl ? r : bl) : g > bl ? g : bl;
           // Value and saturation reject the water before any hue is worked out.

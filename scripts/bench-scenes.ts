@@ -6,7 +6,7 @@
  * projected centre), the fitted f and its error against 2Ω (%), the verdict, and the seconds the
  * render (null when cached) and the tracking took. `npm run bench:scenes -- lab-float` runs one.
  */
-import { closeTrackingPool } from "../app/.server/tracking/track-frame-stack";
+import { closeTrackingPool } from "../app/.server/tracking/tracking-pool";
 import { measureScene } from "../tests/fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";
 import { variantsNamed } from "../tests/fixtures/scenes/scene-model";

@@ -20,7 +20,8 @@
  * unit normal).
  */
 import { readFrameSize } from "../app/.server/tracking/decode-frame";
-import { closeTrackingPool, prepareStackSearch } from "../app/.server/tracking/track-frame-stack";
+import { prepareStackSearch } from "../app/.server/tracking/track-frame-stack";
+import { closeTrackingPool } from "../app/.server/tracking/tracking-pool";
 import { maxFitSdPx } from "../app/lib/tracking/track-extension";
 import { viewSetup } from "../tests/fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";

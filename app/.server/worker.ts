@@ -19,7 +19,7 @@ if (mailProblem) {
 
 const { startWorkers, stopWorkers, workerName } = await import("./jobs/job-workers");
 const { stopQueueClient } = await import("./jobs/boss");
-const { closeTrackingPool } = await import("./tracking/track-frame-stack");
+const { closeTrackingPool } = await import("./tracking/tracking-pool");
 const { stopFakeSmtp } = await import("./mail/fake-smtp");
 
 const applied = await migrate();

@@ -10,7 +10,8 @@
  * (`npm run scenes`): a missing POV-Ray fails the test, it does not skip it.
  */
 import { afterAll, describe, expect, it } from "vitest";
-import { closeTrackingPool, trackFrameStack } from "../../app/.server/tracking/track-frame-stack";
+import { trackFrameStack } from "../../app/.server/tracking/track-frame-stack";
+import { closeTrackingPool } from "../../app/.server/tracking/tracking-pool";
 import { viewCorrection } from "../../app/lib/projective/view-correction";
 import { checkSceneTracks, viewSetup } from "../fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../fixtures/scenes/render-scene-stack";

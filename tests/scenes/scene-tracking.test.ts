@@ -13,7 +13,7 @@
  * the run to those scenes: `npm test` gives the ones that meet the targets (scripts/scenes-in-suite.mjs).
  */
 import { afterAll, describe, expect, it } from "vitest";
-import { closeTrackingPool } from "../../app/.server/tracking/track-frame-stack";
+import { closeTrackingPool } from "../../app/.server/tracking/tracking-pool";
 import { measureScene } from "../fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../fixtures/scenes/render-scene-stack";
 import { variantsNamed } from "../fixtures/scenes/scene-model";

@@ -12,7 +12,8 @@ import { checkTracks } from "../../lib/analysis/check-tracks";
 import { omegaFromTableRate } from "../../lib/analysis/run-omega";
 import type { Track, TrackingSetup } from "../../lib/tracking/types";
 import { TrackingError } from "../tracking/errors";
-import { closeTrackingPool, trackFrameStack, type TrackFrameStackResult } from "../tracking/track-frame-stack";
+import { trackFrameStack, type TrackFrameStackResult } from "../tracking/track-frame-stack";
+import { closeTrackingPool } from "../tracking/tracking-pool";
 import { parseAnalyzeArguments, usage, UsageError, type AnalyzeArguments } from "./analyze-arguments";
 
 const frameExtensions = new Set([".jpg", ".jpeg", ".png", ".tif", ".tiff", ".webp"]);

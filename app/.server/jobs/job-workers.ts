@@ -7,7 +7,7 @@ import { OutboxSender } from "../mail/outbox-sender";
 import { setEnqueueListener } from "../mail/outbox";
 import { deliverOutboxRow, sweepOutbox } from "../mail/outbox-jobs";
 import { runCalibrationReminders } from "../calibration-reminders";
-import { closeTrackingPool } from "../tracking/track-frame-stack";
+import { closeTrackingPool } from "../tracking/tracking-pool";
 import { QUEUES, bossOptions, createQueues, queueClient, stopQueueClient, usesJobQueue } from "./boss";
 import { claimTrackingJob, handBack, heartbeatMs, leaseUntilLiteral, renewLease, sweepMs, sweepTrackingJobs } from "./tracking-leases";
 import { runTrackingJob } from "./tracking-run";

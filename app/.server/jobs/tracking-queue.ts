@@ -2,7 +2,7 @@ import { Op } from "sequelize";
 import { Frame, Run, TrackingJob, ViewSetup, sequelize } from "../db";
 import { onBoot } from "../boot";
 import { env } from "../env";
-import { closeTrackingPool } from "../tracking/track-frame-stack";
+import { closeTrackingPool } from "../tracking/tracking-pool";
 import { stopFrameStreams } from "./frame-stream";
 import { usesJobQueue } from "./boss";
 import { JobError, runTrackingJob } from "./tracking-run";

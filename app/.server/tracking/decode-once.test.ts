@@ -4,7 +4,8 @@ import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { smallLabFloatCentre, smallLabFloatSpec, writeSyntheticStack, type WrittenStack } from "../../../tests/fixtures/tracking/write-stack";
 import { decodeFrame } from "./decode-frame";
-import { closeTrackingPool, prepareStackSearch, trackFrameStack } from "./track-frame-stack";
+import { prepareStackSearch, trackFrameStack } from "./track-frame-stack";
+import { closeTrackingPool } from "./tracking-pool";
 
 vi.mock("./decode-frame", async (importOriginal) => {
   const actual = await importOriginal<typeof import("./decode-frame")>();

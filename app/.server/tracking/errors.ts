@@ -21,3 +21,17 @@ export class TrackingError extends Error {
 export function isTrackingCancelled(error: unknown): boolean {
   return error instanceof TrackingError && error.code === "cancelled";
 }
+
+/** A job stopped because it was cancelled (its signal aborted). */
+export function cancelled(): TrackingError {
+  return new TrackingError("cancelled", "The tracking job was cancelled.");
+}
+
+/** A frame the worker could not search: the frame is named, the worker's reason kept. */
+export function searchFailed(index: number, error: unknown): TrackingError {
+  const reason = error instanceof Error ? error.message : String(error);
+  return new TrackingError("unreadable-frame", `Frame ${index + 1} could not be searched: ${reason}`, {
+    frameIndex: index,
+    cause: error,
+  });
+}

@@ -13,7 +13,8 @@ import { runTheoryCheck } from "../../lib/analysis/check";
 import { Z95 } from "../../lib/analysis/decision";
 import type { SyntheticRunSpec } from "../../lib/tracking/synthetic";
 import { writeSyntheticStack } from "../../../tests/fixtures/tracking/write-stack";
-import { closeTrackingPool, trackFrameStack } from "./track-frame-stack";
+import { trackFrameStack } from "./track-frame-stack";
+import { closeTrackingPool } from "./tracking-pool";
 
 const OMEGA = (10 * 2 * Math.PI) / 60;
 const centre = { x: 323.4, y: 177.9 };

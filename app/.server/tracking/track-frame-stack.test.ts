@@ -7,7 +7,8 @@ import type { SyntheticRunSpec, SyntheticTracer } from "../../lib/tracking/synth
 import type { FrameDetections, Track, TrackingSetup } from "../../lib/tracking/types";
 import { writeSyntheticStack, type WrittenStack } from "../../../tests/fixtures/tracking/write-stack";
 import { TrackingError } from "./errors";
-import { closeTrackingPool, trackFrameStack } from "./track-frame-stack";
+import { trackFrameStack } from "./track-frame-stack";
+import { closeTrackingPool } from "./tracking-pool";
 
 const centre = { x: 160.3, y: 119.6 };
 const circle = { kind: "inertial-circle", centre: { x: -20, y: 10 }, radius: 45, phase: 0.3 } as const;

@@ -3,12 +3,6 @@
  * in a pool of worker threads (one fewer than the cores), link detections into tracks, measure quality.
  * Frames stream through a bounded window, so memory does not grow with the stack.
  */
-import { existsSync } from "node:fs";
-import os from "node:os";
-import path from "node:path";
-import { fileURLToPath } from "node:url";
-import Piscina from "piscina";
-import { backgroundSampleIndices, fillChannelsFromSurroundings, minimumFreeSamples, tracerExclusions, type ExclusionSet } from "../../lib/tracking/background";
 import type { DiscFit } from "../../lib/tracking/disc-fit";
 import { defaultLinking, linkDetections, type LinkingOptions } from "../../lib/tracking/link";
 import { extendTracks, withExtension, type DiscRequest } from "../../lib/tracking/track-extension";
@@ -16,14 +10,12 @@ import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../.
 import { trackingQuality } from "../../lib/tracking/quality";
 import { lastWholeFrame, searchedWhole, searchWindows } from "../../lib/tracking/search-windows";
 import type { SearchWindow } from "../../lib/tracking/threshold";
-import { discPixels } from "../../lib/tracking/turning-geometry";
-import { ringMedians, samplesMisfit, turningPixels, turnExclusions, type TurningBackground } from "../../lib/tracking/turning-background";
+import type { TurningBackground } from "../../lib/tracking/turning-background";
 import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup } from "../../lib/tracking/types";
 import { decodeFrame, readFrameSize, type FrameSize } from "./decode-frame";
-import { TrackingError } from "./errors";
-import { bundledWorker } from "./worker-bundle";
-import { workerExecArgv } from "./worker-options";
-import type { TiltedTurning, TrackTask, TrackTaskResult } from "./track-worker";
+import { cancelled, searchFailed, TrackingError } from "./errors";
+import { stillBackground } from "./stack-background";
+import { backgroundId, cores, runTask, startWorkers, trackingPool } from "./tracking-pool";
 
 export interface TrackFrameStackInput {
   /** Frame files in stack order. */
@@ -53,15 +45,6 @@ export interface TrackFrameStackResult {
   search: { crop: DetectionPlan["crop"]; shrink: number };
 }
 
-const cores = Math.max(1, os.availableParallelism());
-/**
- * Worker threads: one fewer than the cores (at least one). Decoding, on libvips's threads, is most
- * of a job's work; the detector needs a fraction of a core, and every further thread loads OpenCV
- * and compiles the detector again (one thread instead of two saved about 0.25 s of processor time
- * per 600-frame job on a 2-core machine, Decision 68).
- */
-export const trackingThreads = Math.max(1, cores - 1);
-const threads = trackingThreads;
 /** Frames decoded or being searched at once: enough to keep every worker busy while sharp decodes. */
 const inFlightLimit = cores * 3;
 /**
@@ -72,113 +55,6 @@ const windowLag = inFlightLimit;
 const progressIntervalMs = 200;
 /** How far from its foreseen place a float's fitted disc may lie, px (track-extension.ts). */
 const extensionReachPx = 4;
-
-interface TrackingPool {
-  piscina: Piscina<TrackTask, TrackTaskResult>;
-  /** Rejects when a worker dies outside a task (it would not load, or ran out of memory). */
-  failed: Promise<never>;
-}
-
-let pool: TrackingPool | null = null;
-
-/**
- * The worker is bundled from its TypeScript source at the first job (worker-bundle.ts), so it runs
- * the same library code as the routes and the command line. A bundled server has no copy beside
- * it: fall back to the source tree under the working directory. The name sits in a variable so
- * that the bundler does not take `new URL(…, import.meta.url)` for an asset and copy the file away
- * from its imports.
- */
-const workerName = "track-worker.ts";
-
-function workerFile(): string {
-  const beside = path.join(path.dirname(fileURLToPath(import.meta.url)), workerName);
-  if (existsSync(beside)) return beside;
-  const inSource = path.resolve(process.cwd(), "app/.server/tracking", workerName);
-  if (existsSync(inSource)) return inSource;
-  throw new Error(`The tracking worker was not found at ${beside} or ${inSource}.`);
-}
-
-async function trackingPool(): Promise<TrackingPool> {
-  if (pool) return pool;
-  const filename = await bundledWorker(workerFile());
-  // Another job may have made the pool while the bundle was being made.
-  if (pool) return pool;
-  const piscina = new Piscina<TrackTask, TrackTaskResult>({
-    filename,
-    minThreads: 0,
-    maxThreads: threads,
-    // Idle workers give back their OpenCV heaps after a while; a new job pays ~0.5 s to reload.
-    idleTimeout: 60_000,
-    execArgv: workerExecArgv(),
-  });
-  let reject: (error: Error) => void = () => {};
-  const failed = new Promise<never>((_, r) => {
-    reject = r;
-  });
-  failed.catch(() => {});
-  // Piscina reports a worker that fails to load only here, and its tasks would wait forever.
-  piscina.on("error", (error: unknown) => {
-    if (pool?.piscina === piscina) pool = null;
-    const reason = error instanceof Error ? error.message : String(error);
-    reject(new Error(`The tracking workers stopped: ${reason}`));
-    piscina.destroy().catch(() => {});
-  });
-  const made: TrackingPool = { piscina, failed };
-  pool = made;
-  return made;
-}
-
-/** A number per background array, the same for the same array (track-worker.ts keeps one view of it). */
-const backgroundIds = new WeakMap<Uint8Array, number>();
-let nextBackgroundId = 1;
-
-function backgroundId(background: Uint8Array | null): number | undefined {
-  if (!background) return undefined;
-  let id = backgroundIds.get(background);
-  if (id === undefined) {
-    id = nextBackgroundId++;
-    backgroundIds.set(background, id);
-  }
-  return id;
-}
-
-function runTask(workers: TrackingPool, task: TrackTask, transferList?: ArrayBuffer[]): Promise<TrackTaskResult> {
-  return Promise.race([workers.piscina.run(task, { transferList }), workers.failed]);
-}
-
-/** Every worker of the pool started (each counts itself in and waits for the others). */
-async function startWorkers(workers: TrackingPool): Promise<void> {
-  const arrived = new Int32Array(new SharedArrayBuffer(4));
-  await Promise.all(Array.from({ length: threads }, () => runTask(workers, { kind: "warm-up", arrived, expected: threads })));
-}
-
-/**
- * Starts the tracking workers ahead of a job: loading one (its bundle, OpenCV) costs about 0.8 s of
- * processor time, which a job would otherwise spend before its first frame. Kept for the pool's
- * idle time (a minute).
- */
-export async function warmTrackingPool(): Promise<void> {
-  await startWorkers(await trackingPool());
-}
-
-/** Stops the worker threads, so a server or a test can exit. The next job starts a new pool. */
-export async function closeTrackingPool(): Promise<void> {
-  const closing = pool;
-  pool = null;
-  if (closing) await closing.piscina.destroy();
-}
-
-function cancelled(): TrackingError {
-  return new TrackingError("cancelled", "The tracking job was cancelled.");
-}
-
-function searchFailed(index: number, error: unknown): TrackingError {
-  const reason = error instanceof Error ? error.message : String(error);
-  return new TrackingError("unreadable-frame", `Frame ${index + 1} could not be searched: ${reason}`, {
-    frameIndex: index,
-    cause: error,
-  });
-}
 
 function validate(input: TrackFrameStackInput): void {
   const { files, times } = input;
@@ -206,196 +82,6 @@ function makePlan(setup: TrackingSetup, width: number, height: number): Detectio
     if (error instanceof ViewSetupError) throw new TrackingError("bad-setup", error.message, { cause: error });
     throw error;
   }
-}
-
-/**
- * The still background of a stack (lib/tracking/background.ts), the tracer left out of it. Samples
- * and results live in shared memory: the workers split the pixels between them, and every
- * frame's task then reads the same background without a copy.
- *
- * The median of frames sampled over the stack (each channel's for dye), the tracer found in each
- * sample against it, then the median again with a disc around each float, or the ellipse each
- * dye patch covers, left out.
- */
-async function stillBackground(
-  files: string[],
-  plan: DetectionPlan,
-  key: string,
-  workers: TrackingPool,
-  signal: AbortSignal | undefined,
-  frameTime: ((index: number) => number) | undefined,
-): Promise<{ still: Uint8Array; turning: TurningBackground | null; samples: Uint8Array; indices: number[] }> {
-  if (files.length < 3) {
-    throw new TrackingError("bad-input", "Tracking a float needs at least 3 frames: the still background is their median.");
-  }
-  const channels = plan.channels;
-  const indices = backgroundSampleIndices(files.length);
-  const pixels = plan.crop.width * plan.crop.height;
-  const length = pixels * channels;
-  const samples = new Uint8Array(new SharedArrayBuffer(indices.length * length));
-  let next = 0;
-  await Promise.all(
-    Array.from({ length: cores * 2 }, async () => {
-      while (next < indices.length) {
-        if (signal?.aborted) throw cancelled();
-        const j = next++;
-        samples.set(await decodeFrame(files[indices[j]!]!, indices[j]!, plan), j * length);
-      }
-    }),
-  );
-  const median = async (exclusions?: ExclusionSet, plain?: Uint8Array, from: Uint8Array = samples): Promise<Uint8Array> => {
-    const out = new Uint8Array(new SharedArrayBuffer(length));
-    const used = exclusions ? new Uint8Array(new SharedArrayBuffer(pixels)) : undefined;
-    const strip = Math.ceil(pixels / threads);
-    await Promise.all(
-      Array.from({ length: threads }, (_, w) =>
-        runTask(workers, {
-          kind: "background",
-          samples: from,
-          count: indices.length,
-          out,
-          from: Math.min(pixels, w * strip),
-          to: Math.min(pixels, (w + 1) * strip),
-          exclusions,
-          used,
-          channels,
-          plain,
-        }),
-      ),
-    );
-    if (used) fillChannelsFromSurroundings(out, used, plan.crop.width, channels, minimumFreeSamples(indices.length));
-    return out;
-  };
-  const findIn = (background: Uint8Array): Promise<Detection[][]> =>
-    Promise.all(
-      indices.map(async (index, j) => {
-        // A copy of its own (slice of shared memory is not shared), handed over to the worker.
-        const image = samples.slice(j * length, (j + 1) * length);
-        try {
-          return (await runTask(workers, { kind: "detect", plan, planKey: key, image, background, backgroundId: backgroundId(background) }, [
-            image.buffer,
-          ])) as Detection[];
-        } catch (error) {
-          throw searchFailed(index, error);
-        }
-      }),
-    );
-  const plain = await median();
-  if (signal?.aborted) throw cancelled();
-  const discs = tracerExclusions(await findIn(plain), plan.crop, plan.shrink);
-  if (signal?.aborted) throw cancelled();
-  const still = discs.length === 0 ? plain : await median({ width: plan.crop.width, discs }, plain);
-  if (!plan.turn || !frameTime) return { still, turning: null, samples, indices };
-  const angles = indices.map((index) => plan.turn!.rate * frameTime(index));
-  const turning = await turningModel(plan, workers, samples, indices.length, still, discs, angles, median);
-  return { still, turning, samples, indices };
-}
-
-/**
- * The second model of a stack whose view has a turning part (lib/tracking/turning-background.ts):
- * where the still model misfits the samples, the samples turned back into the turning frame and
- * their median there, the tracer left out as in the still model. Null where nothing turns
- * through the view (every pixel's misfit is like the rest), so such a stack costs one pass more.
- */
-/** Whether anything turns is judged on every fourth row and column: a sixteenth of the pass. */
-const misfitStride = 4;
-/**
- * A tilted view's turning centre found this close to the marked one (px) is taken for it: the
- * camera is straight down for what turns, and Decision 70's model serves (Decision 76).
- */
-const sameCentrePx = 1;
-/** The share of the still model's misfit the two models together must stay below to be used. */
-const keptMisfitShare = 0.5;
-
-async function turningModel(
-  plan: DetectionPlan,
-  workers: TrackingPool,
-  samples: Uint8Array,
-  count: number,
-  still: Uint8Array,
-  discs: ReturnType<typeof tracerExclusions>,
-  angles: number[],
-  median: (exclusions?: ExclusionSet, plain?: Uint8Array, from?: Uint8Array) => Promise<Uint8Array>,
-): Promise<TurningBackground | null> {
-  let turn = plan.turn!;
-  const width = plan.crop.width;
-  const pixels = width * plan.crop.height;
-  const misfit = new Float32Array(new SharedArrayBuffer(pixels * 4));
-  const strip = Math.ceil(pixels / threads);
-  await Promise.all(
-    Array.from({ length: threads }, (_, w) =>
-      runTask(workers, {
-        kind: "misfit",
-        samples,
-        count,
-        model: still,
-        width,
-        discs,
-        out: misfit,
-        stride: misfitStride,
-        from: Math.min(pixels, w * strip),
-        to: Math.min(pixels, (w + 1) * strip),
-      }),
-    ),
-  );
-  let inDisc = turningPixels(misfit, width, turn, misfitStride);
-  if (!inDisc) return null;
-  const frames = Array.from({ length: count }, (_, j) => samples.subarray(j * pixels, (j + 1) * pixels));
-  let turning: Uint8Array;
-  let factor: Float32Array | null = null;
-  if (turn.rectify) {
-    // A tilted view: what turns does so about its own centre (turning-centre.ts, Decision 76), and
-    // its model is a factor on the still model's darkness (turning-median.ts), made in a worker.
-    const tilted = (await runTask(workers, {
-      kind: "tilted-turning",
-      samples,
-      count,
-      still,
-      width,
-      height: plan.crop.height,
-      turn,
-      angles,
-      discs,
-      sameCentrePx,
-    })) as TiltedTurning;
-    if (tilted.turn && tilted.factor) {
-      turn = tilted.turn;
-      factor = new Float32Array(new SharedArrayBuffer(tilted.factor.length * 4));
-      factor.set(tilted.factor);
-    } else {
-      // About the marked centre after all (a camera nearly straight down): Decision 70's model in the image.
-      turn = { cx: turn.cx, cy: turn.cy, r: turn.r - 1, rate: turn.rate };
-    }
-    inDisc = discPixels(turn, width, plan.crop.height);
-  }
-  if (factor) {
-    turning = still;
-  } else {
-    const turned = new Uint8Array(new SharedArrayBuffer(samples.length));
-    const share = Math.ceil(count / threads);
-    const turnedPlan = { ...plan, turn };
-    await Promise.all(
-      Array.from({ length: threads }, (_, w) =>
-        runTask(workers, {
-          kind: "turn-back",
-          samples,
-          plan: turnedPlan,
-          angles,
-          out: turned,
-          from: Math.min(count, w * share),
-          to: Math.min(count, (w + 1) * share),
-        }),
-      ),
-    );
-    const turnedDiscs = turnExclusions(discs, turn, angles);
-    turning = await median(turnedDiscs.length ? { width, discs: turnedDiscs } : undefined, undefined, turned);
-  }
-  const shared = new Int32Array(new SharedArrayBuffer(inDisc.length * 4));
-  shared.set(inDisc);
-  const model: TurningBackground = { turn, turning, rings: factor ? new Float32Array(0) : ringMedians(turning, width, turn), pixels: shared, factor };
-  const misfits = samplesMisfit(frames, still, model, width, plan.crop.height, angles);
-  // Kept only where it explains the samples clearly better than the still model alone.
-  return misfits.combined < keptMisfitShare * misfits.still ? model : null;
 }
 
 function copyInto(slot: Uint8Array, crop: Uint8Array): Uint8Array {

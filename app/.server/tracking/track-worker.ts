@@ -8,7 +8,7 @@ import { createDetector, type Detector } from "../../lib/tracking/detect";
 import type { OpenCv } from "../../lib/tracking/opencv-types";
 import type { DetectionPlan } from "../../lib/tracking/plan";
 import type { SearchWindow } from "../../lib/tracking/threshold";
-import { backgroundAt, meanSquareMisfit, turnBack, type TurningBackground } from "../../lib/tracking/turning-background";
+import { backgroundAt, meanSquareMisfit, samplesMisfit, turnBack, type TurningBackground } from "../../lib/tracking/turning-background";
 import type { BackgroundExclusion } from "../../lib/tracking/background";
 import type { Detection } from "../../lib/tracking/types";
 import { fitDisc, type DiscFit } from "../../lib/tracking/disc-fit";
@@ -88,6 +88,22 @@ export type TrackTask =
       to: number;
     }
   | {
+      /**
+       * Mean square misfit of samples [from, to) against the still model alone and against the
+       * still and turning models together (turning-background.ts `samplesMisfit`).
+       */
+      kind: "samples-misfit";
+      samples: Uint8Array;
+      count: number;
+      still: Uint8Array;
+      model: TurningBackground;
+      width: number;
+      height: number;
+      angles: number[];
+      from: number;
+      to: number;
+    }
+  | {
       /** Median of the sampled frames for pixels [from, to), written into the shared `out`. */
       kind: "background";
       samples: Uint8Array;
@@ -116,7 +132,13 @@ export interface TiltedTurning {
   factor: Float32Array | null;
 }
 
-export type TrackTaskResult = Detection[] | DiscFit | TiltedTurning | null;
+/** Means over one share of the samples (a "samples-misfit" task). */
+export interface MisfitMeans {
+  still: number;
+  combined: number;
+}
+
+export type TrackTaskResult = Detection[] | DiscFit | TiltedTurning | MisfitMeans | null;
 
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };
 const warmUpWaitMs = 5_000;
@@ -184,6 +206,11 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
     const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));
     meanSquareMisfit(frames, task.model, task.width, task.from, task.to, task.discs, task.out, task.stride);
     return null;
+  }
+  if (task.kind === "samples-misfit") {
+    const length = task.still.length;
+    const frames = Array.from({ length: task.to - task.from }, (_, j) => task.samples.subarray((task.from + j) * length, (task.from + j + 1) * length));
+    return samplesMisfit(frames, task.still, task.model, task.width, task.height, task.angles.slice(task.from, task.to));
   }
   const { plan } = task;
   const { width, height } = plan.crop;

@@ -4,7 +4,8 @@ import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { smallLabFloatCentre, smallLabFloatSpec, writeSyntheticStack, type WrittenStack } from "../../../tests/fixtures/tracking/write-stack";
-import { closeTrackingPool, trackFrameStack } from "./track-frame-stack";
+import { trackFrameStack } from "./track-frame-stack";
+import { closeTrackingPool } from "./tracking-pool";
 
 const centre = smallLabFloatCentre;
 let dir: string;

@@ -1,0 +1,118 @@
+/**
+ * The tracking job's pool of worker threads (piscina): one fewer than the cores, started on the
+ * first job or ahead of it, each task raced against a worker that dies outside a task.
+ */
+import { existsSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import Piscina from "piscina";
+import type { TrackTask, TrackTaskResult } from "./track-worker";
+import { bundledWorker } from "./worker-bundle";
+import { workerExecArgv } from "./worker-options";
+
+/** The machine's cores: the pool's size and the decoders' share follow from it. */
+export const cores = Math.max(1, os.availableParallelism());
+/**
+ * Worker threads: one fewer than the cores (at least one). Decoding, on libvips's threads, is most
+ * of a job's work; the detector needs a fraction of a core, and every further thread loads OpenCV
+ * and compiles the detector again (one thread instead of two saved about 0.25 s of processor time
+ * per 600-frame job on a 2-core machine, Decision 68).
+ */
+export const trackingThreads = Math.max(1, cores - 1);
+export const threads = trackingThreads;
+
+export interface TrackingPool {
+  piscina: Piscina<TrackTask, TrackTaskResult>;
+  /** Rejects when a worker dies outside a task (it would not load, or ran out of memory). */
+  failed: Promise<never>;
+}
+
+let pool: TrackingPool | null = null;
+
+/**
+ * The worker is bundled from its TypeScript source at the first job (worker-bundle.ts), so it runs
+ * the same library code as the routes and the command line. A bundled server has no copy beside
+ * it: fall back to the source tree under the working directory. The name sits in a variable so
+ * that the bundler does not take `new URL(…, import.meta.url)` for an asset and copy the file away
+ * from its imports.
+ */
+const workerName = "track-worker.ts";
+
+function workerFile(): string {
+  const beside = path.join(path.dirname(fileURLToPath(import.meta.url)), workerName);
+  if (existsSync(beside)) return beside;
+  const inSource = path.resolve(process.cwd(), "app/.server/tracking", workerName);
+  if (existsSync(inSource)) return inSource;
+  throw new Error(`The tracking worker was not found at ${beside} or ${inSource}.`);
+}
+
+export async function trackingPool(): Promise<TrackingPool> {
+  if (pool) return pool;
+  const filename = await bundledWorker(workerFile());
+  // Another job may have made the pool while the bundle was being made.
+  if (pool) return pool;
+  const piscina = new Piscina<TrackTask, TrackTaskResult>({
+    filename,
+    minThreads: 0,
+    maxThreads: threads,
+    // Idle workers give back their OpenCV heaps after a while; a new job pays ~0.5 s to reload.
+    idleTimeout: 60_000,
+    execArgv: workerExecArgv(),
+  });
+  let reject: (error: Error) => void = () => {};
+  const failed = new Promise<never>((_, r) => {
+    reject = r;
+  });
+  failed.catch(() => {});
+  // Piscina reports a worker that fails to load only here, and its tasks would wait forever.
+  piscina.on("error", (error: unknown) => {
+    if (pool?.piscina === piscina) pool = null;
+    const reason = error instanceof Error ? error.message : String(error);
+    reject(new Error(`The tracking workers stopped: ${reason}`));
+    piscina.destroy().catch(() => {});
+  });
+  const made: TrackingPool = { piscina, failed };
+  pool = made;
+  return made;
+}
+
+/** A number per background array, the same for the same array (track-worker.ts keeps one view of it). */
+const backgroundIds = new WeakMap<Uint8Array, number>();
+let nextBackgroundId = 1;
+
+export function backgroundId(background: Uint8Array | null): number | undefined {
+  if (!background) return undefined;
+  let id = backgroundIds.get(background);
+  if (id === undefined) {
+    id = nextBackgroundId++;
+    backgroundIds.set(background, id);
+  }
+  return id;
+}
+
+export function runTask(workers: TrackingPool, task: TrackTask, transferList?: ArrayBuffer[]): Promise<TrackTaskResult> {
+  return Promise.race([workers.piscina.run(task, { transferList }), workers.failed]);
+}
+
+/** Every worker of the pool started (each counts itself in and waits for the others). */
+export async function startWorkers(workers: TrackingPool): Promise<void> {
+  const arrived = new Int32Array(new SharedArrayBuffer(4));
+  await Promise.all(Array.from({ length: threads }, () => runTask(workers, { kind: "warm-up", arrived, expected: threads })));
+}
+
+/**
+ * Starts the tracking workers ahead of a job: loading one (its bundle, OpenCV) costs about 0.8 s of
+ * processor time, which a job would otherwise spend before its first frame. Kept for the pool's
+ * idle time (a minute).
+ */
+export async function warmTrackingPool(): Promise<void> {
+  await startWorkers(await trackingPool());
+}
+
+/** Stops the worker threads, so a server or a test can exit. The next job starts a new pool. */
+export async function closeTrackingPool(): Promise<void> {
+  const closing = pool;
+  pool = null;
+  if (closing) await closing.piscina.destroy();
+}

@@ -22,7 +22,8 @@
  * noise sits symmetrically about the centre and does not pull it. The Gaussian weight halves the
  * measured moments, so the next window takes twice them; that converges to the patch's own.
  */
-import { differenceAlong, levelDifference } from "./dye-signal";
+import { bottomLevel, fitBottomSurface, type BottomSurface } from "./dye-bottom";
+import { levelDifference } from "./dye-signal";
 import { robustStats } from "./robust-stats";
 
 /** Threshold below which the signal gets no weight, in noise widths. */
@@ -37,7 +38,8 @@ const firstShare = 0.5;
 const firstGrowth = 1 / 0.217;
 /** Largest variance of the window along an axis, px² (a 100 px standard deviation). */
 const maxVariance = 1e4;
-const maxIterations = 12;
+/** Each pass moves the centre about halfway to the patch's; a window with clipped pixels, by less. */
+const maxIterations = 40;
 /** The ring around the box where the background's misfit is read is at least this wide, px. */
 const ringMinPx = 4;
 /** The window stops when it moves less than this, px. */
@@ -49,6 +51,10 @@ const noiseStride = 8;
 /** Histogram bins per unit of signal (a relative change of colour), and its half-range. */
 const binsPerUnit = 4096;
 const halfRange = 0.5;
+/** A pixel's brightness part counts within this many robust widths of what its colour part says. */
+const slackWidths = 3;
+/** A pixel with a channel at or above this is clipped (saturated glare): it tells nothing of the dye. */
+const clippedLevel = 250;
 
 export interface DyeImage {
   /** Interleaved RGB, row-major. */
@@ -93,11 +99,60 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
   const signals = new Float64Array(width * height);
   const stamp = new Uint32Array(width * height);
   let measurement = 0;
+  /** The bottom's level under the light (dye-bottom.ts), fitted once per background. */
+  let surfaceOf: Uint8Array | null = null;
+  let surface: BottomSurface | null = null;
+  /** The most of the background's level at pixel `p` that the dye darkens. */
+  function capAt(p: number): number {
+    if (!surface) return Infinity;
+    const row = Math.floor(p / width);
+    return bottomLevel(surface, p - row * width, row) + surface.margin;
+  }
+  /** Scratch: how far each ring pixel's brightness strays from its colour's. */
+  let strays = new Float64Array(0);
 
-  /** The change of colour at one pixel along the dye's direction (dye-signal.ts). */
+  /** The signal's weights on a pixel's brightness part (the mean over the channels) and colour part (along `hue`). */
+  let brightCoefficient = 0;
+  let colourCoefficient = 1;
+  /** The patch's brightness part per unit of its colour part, and how far a pixel's brightness may stray from that. */
+  let brightPerColour = 0;
+  let brightSlack = Infinity;
+
+  /**
+   * The change at one pixel along the dye's direction (dye-signal.ts), its brightness part held
+   * within `brightSlack` of what its colour part says the dye there darkens.
+   */
   function signalAt(img: Uint8Array, bg: Uint8Array, p: number): number {
     const q = 3 * p;
-    return differenceAlong(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, direction);
+    levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change, capAt(q / 3));
+    const mean = (change[0]! + change[1]! + change[2]!) / 3;
+    const along = change[0]! * hue[0]! + change[1]! * hue[1]! + change[2]! * hue[2]!;
+    const expected = brightPerColour * along;
+    const bright = Math.min(expected + brightSlack, Math.max(expected - brightSlack, mean));
+    return brightCoefficient * bright + colourCoefficient * along;
+  }
+
+  /** Whether a pixel lies outside the frame or is clipped in some channel. */
+  function clipped(img: Uint8Array, col: number, row: number): boolean {
+    if (col < 0 || col >= width || row < 0 || row >= height) return true;
+    const q = 3 * (row * width + col);
+    return img[q]! >= clippedLevel || img[q + 1]! >= clippedLevel || img[q + 2]! >= clippedLevel;
+  }
+
+  /**
+   * The signal at a point between pixel centres, interpolated bilinearly from the four pixels
+   * round it; null when one of them is clipped or outside the frame.
+   */
+  function mirrorSignal(img: Uint8Array, bg: Uint8Array, atX: number, atY: number): number | null {
+    const c = Math.floor(atX);
+    const r = Math.floor(atY);
+    if (clipped(img, c, r) || clipped(img, c + 1, r) || clipped(img, c, r + 1) || clipped(img, c + 1, r + 1)) return null;
+    const fx = atX - c;
+    const fy = atY - r;
+    const p = r * width + c;
+    const top = (1 - fx) * signalOnce(img, bg, p) + fx * signalOnce(img, bg, p + 1);
+    const under = (1 - fx) * signalOnce(img, bg, p + width) + fx * signalOnce(img, bg, p + width + 1);
+    return (1 - fy) * top + fy * under;
   }
 
   /** signalAt, once per pixel per measurement. */
@@ -117,6 +172,10 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     const col1 = Math.min(width, box.col1);
     const row1 = Math.min(height, box.row1);
     if (col1 <= col0 || row1 <= row0) return null;
+    if (surfaceOf !== bg) {
+      surfaceOf = bg;
+      surface = fitBottomSurface(bg, width, height, spans, 4);
+    }
 
     // The patch's summed difference over its box (dye-signal.ts), split into its change of colour
     // (the part that sums to zero over the channels) and its change of brightness.
@@ -125,8 +184,10 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       const a = Math.max(col0, spans[2 * row]!);
       const b = Math.min(col1, spans[2 * row + 1]!);
       for (let col = a; col < b; col++) {
+        // A clipped pixel's colour is not the dye's.
+        if (clipped(img, col, row)) continue;
         const q = 3 * (row * width + col);
-        levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change);
+        levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change, capAt(q / 3));
         sum[0]! += change[0]!;
         sum[1]! += change[1]!;
         sum[2]! += change[2]!;
@@ -145,25 +206,27 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     // colour does.
     const ringX = Math.max(ringMinPx, (col1 - col0) >> 1);
     const ringY = Math.max(ringMinPx, (row1 - row0) >> 1);
+    /** Each pixel of the ring round the box, inside the searched spans (`q` = 3 × its index). */
+    const eachInRing = (visit: (q: number) => void): void => {
+      for (let row = Math.max(0, row0 - ringY); row < Math.min(height, row1 + ringY); row++) {
+        const inRows = row >= row0 && row < row1;
+        const a = Math.max(col0 - ringX, spans[2 * row]!);
+        const b = Math.min(col1 + ringX, spans[2 * row + 1]!);
+        for (let col = a; col < b; col++) if (!(inRows && col >= col0 && col < col1)) visit(3 * (row * width + col));
+      }
+    };
     let brightSquares = 0;
     let colourSquares = 0;
     let ringCount = 0;
-    for (let row = Math.max(0, row0 - ringY); row < Math.min(height, row1 + ringY); row++) {
-      const inRows = row >= row0 && row < row1;
-      const a = Math.max(col0 - ringX, spans[2 * row]!);
-      const b = Math.min(col1 + ringX, spans[2 * row + 1]!);
-      for (let col = a; col < b; col++) {
-        if (inRows && col >= col0 && col < col1) continue;
-        const q = 3 * (row * width + col);
-        levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change);
-        const mean = (change[0]! + change[1]! + change[2]!) / 3;
-        // Along (1, 1, 1)/√3 the brightness part is √3 × the mean.
-        brightSquares += 3 * mean * mean;
-        const along = (change[0]! - mean) * hue[0]! + (change[1]! - mean) * hue[1]! + (change[2]! - mean) * hue[2]!;
-        colourSquares += along * along;
-        ringCount++;
-      }
-    }
+    eachInRing((q) => {
+      levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change, capAt(q / 3));
+      const mean = (change[0]! + change[1]! + change[2]!) / 3;
+      // Along (1, 1, 1)/√3 the brightness part is √3 × the mean.
+      brightSquares += 3 * mean * mean;
+      const along = (change[0]! - mean) * hue[0]! + (change[1]! - mean) * hue[1]! + (change[2]! - mean) * hue[2]!;
+      colourSquares += along * along;
+      ringCount++;
+    });
     let brightWeight = 0;
     let colourWeight = 1;
     if (ringCount > 0 && colourSquares > 0 && brightSquares > 0) {
@@ -175,6 +238,27 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     const norm = Math.hypot(direction[0]!, direction[1]!, direction[2]!);
     if (!(norm > 0)) return null;
     for (let c = 0; c < 3; c++) direction[c] = direction[c]! / norm;
+    // The projection on `direction`, as brightness part m and colour part a: (w_b·√3·m + w_c·a) / norm.
+    brightCoefficient = (brightWeight * unit) / norm;
+    colourCoefficient = colourWeight / norm;
+    // Seen through, the dye darkens in proportion to its change of colour (brightness/chromaNorm over
+    // the box); white glare the background lacks adds to the brightness alone, a line or shadow it
+    // lacks takes from it. So a pixel's brightness part counts only within the ring's noise of
+    // what its colour part says: beyond that the pixel's brightness tells of something else.
+    brightPerColour = brightness / chromaNorm;
+    brightSlack = Infinity;
+    if (ringCount > 0) {
+      if (strays.length < ringCount) strays = new Float64Array(ringCount);
+      let n = 0;
+      eachInRing((q) => {
+        levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change, capAt(q / 3));
+        const mean = (change[0]! + change[1]! + change[2]!) / 3;
+        const along = change[0]! * hue[0]! + change[1]! * hue[1]! + change[2]! * hue[2]!;
+        strays[n++] = Math.abs(mean - brightPerColour * along);
+      });
+      const sorted = strays.subarray(0, n).sort();
+      brightSlack = slackWidths * 1.4826 * sorted[n >> 1]!;
+    }
     // A new colour direction: signals worked out before belong to another measurement.
     measurement = measurement === 0xffffffff ? 1 : measurement + 1;
     if (measurement === 1) stamp.fill(0);
@@ -220,6 +304,8 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       }
       let w = 0;
       let wx = 0;
+      /** The weight of clipped pixels standing in for their mirror image, and of that image. */
+      let pairedWeight = 0;
       let wy = 0;
       let wxx = 0;
       let wxy = 0;
@@ -244,11 +330,24 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
           if (inverse) {
             const q = inverse[0] * dx * dx + 2 * inverse[1] * dx * dy + inverse[2] * dy * dy;
             if (q > windowSigmas * windowSigmas) continue;
-            const s = signalOnce(img, bg, row * width + col);
-            if (s > peak) peak = s;
+            // A clipped pixel tells nothing: it takes the signal of its mirror image through the
+            // centre, as a symmetric patch would have there. The pair then pulls the centre neither
+            // way (as if both were left out) while the patch's measured shape keeps its extent.
+            // Where both are clipped the pixel is left out.
+            let s: number;
+            const stands = clipped(img, col, row);
+            if (stands) {
+              const mirrored = mirrorSignal(img, bg, 2 * x - col, 2 * y - row);
+              if (mirrored === null) continue;
+              s = mirrored;
+            } else {
+              s = signalOnce(img, bg, row * width + col);
+              if (s > peak) peak = s;
+            }
             weight = Math.max(0, s - offset) * Math.exp(-0.5 * q);
+            if (stands) pairedWeight += 2 * weight;
           } else {
-            if (free && !free(col, row)) continue;
+            if ((free && !free(col, row)) || clipped(img, col, row)) continue;
             const s = signalOnce(img, bg, row * width + col);
             if (s > peak) peak = s;
             weight = s - firstFloor;
@@ -265,8 +364,12 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       if (!(w > 0)) return null;
       const mx = wx / w;
       const my = wy / w;
-      x += mx;
-      y += my;
+      // A clipped pixel and its mirror image pull the centre neither way: the step is the pull of
+      // the other pixels, over their weight alone (else it would shrink with the clipped share and
+      // the window would settle short of the centre).
+      const stepGain = w - pairedWeight > 0.05 * w ? w / (w - pairedWeight) : 1;
+      x += mx * stepGain;
+      y += my * stepGain;
       // Moments about the new centre; a Gaussian weight of the patch's own shape halves them.
       const grow: number = shape ? 2 : firstGrowth;
       let sxx = Math.max(minVariance, grow * (wxx / w - mx * mx));

@@ -20,9 +20,9 @@
  * around the patch.
  */
 
-/** The background's mean level, at least 1. */
-function levelOf(b0: number, b1: number, b2: number): number {
-  const level = (b0 + b1 + b2) / 3;
+/** The background's mean level, at most `cap` and at least 1. */
+function levelOf(b0: number, b1: number, b2: number, cap = Infinity): number {
+  const level = Math.min(cap, (b0 + b1 + b2) / 3);
   return level > 1 ? level : 1;
 }
 
@@ -43,9 +43,13 @@ export function relativeChangeSquared(i0: number, i1: number, i2: number, b0: nu
   return s0 * s0 + s1 * s1 + s2 * s2;
 }
 
-/** The pixel's difference from the background per channel over the background's mean level, into `out`. */
-export function levelDifference(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, out: Float64Array): void {
-  const scale = 1 / levelOf(b0, b1, b2);
+/**
+ * The pixel's difference from the background per channel over the background's mean level, into
+ * `out`. A background level above `cap` counts as `cap`: white light the background holds on top
+ * of the bottom (a still glare on the water) does not pass through the dye (dye-bottom.ts).
+ */
+export function levelDifference(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, out: Float64Array, cap = Infinity): void {
+  const scale = 1 / levelOf(b0, b1, b2, cap);
   out[0] = (i0 - b0) * scale;
   out[1] = (i1 - b1) * scale;
   out[2] = (i2 - b2) * scale;

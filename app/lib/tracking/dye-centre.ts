@@ -22,8 +22,8 @@
  * noise sits symmetrically about the centre and does not pull it. The Gaussian weight halves the
  * measured moments, so the next window takes twice them; that converges to the patch's own.
  */
-import { bottomLevel, fitBottomSurface, type BottomSurface } from "./dye-bottom";
-import { levelDifference } from "./dye-signal";
+import { bottomLevel, fitBottomSurface } from "./dye-bottom";
+import { inverseLevel } from "./dye-signal";
 import { robustStats } from "./robust-stats";
 
 /** Threshold below which the signal gets no weight, in noise widths. */
@@ -46,11 +46,21 @@ const ringMinPx = 4;
 const settledPx = 2e-3;
 /** Smallest variance of the window along any direction, px². */
 const minVariance = 0.5;
-/** Every 8th pixel of every 8th row: some 7000 samples in a 670 px tank, plenty for a median and MAD. */
-const noiseStride = 8;
+/**
+ * Every 5th pixel of every 13th row: some 5500 samples in a 670 px tank, plenty for a median and
+ * MAD. Read along rows, neighbouring samples share the memory's cache lines (every 8th pixel of
+ * every 8th row took a cache miss each); strides prime to 8 meet every position in JPEG's 8 × 8
+ * blocks, whose noise differs by position (every 8th row met only the blocks' first rows).
+ */
+const noiseRowStride = 13;
+const noiseColumnStride = 5;
 /** Histogram bins per unit of signal (a relative change of colour), and its half-range. */
 const binsPerUnit = 4096;
 const halfRange = 0.5;
+/** The background is known again by runs of its bytes spread over it; the bottom's surface is fitted on every 8th pixel of every 8th row. */
+const fingerprintRuns = 64;
+const fingerprintRun = 64;
+const surfaceStride = 8;
 /** A pixel's brightness part counts within this many robust widths of what its colour part says. */
 const slackWidths = 3;
 /** A pixel with a channel at or above this is clipped (saturated glare): it tells nothing of the dye. */
@@ -99,14 +109,48 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
   const signals = new Float64Array(width * height);
   const stamp = new Uint32Array(width * height);
   let measurement = 0;
-  /** The bottom's level under the light (dye-bottom.ts), fitted once per background. */
-  let surfaceOf: Uint8Array | null = null;
-  let surface: BottomSurface | null = null;
-  /** The most of the background's level at pixel `p` that the dye darkens. */
-  function capAt(p: number): number {
-    if (!surface) return Infinity;
-    const row = Math.floor(p / width);
-    return bottomLevel(surface, p - row * width, row) + surface.margin;
+  /**
+   * The bottom's level under the light (dye-bottom.ts), fitted once per background: a frame's
+   * background comes to a worker as a new view of the same memory, so it is known again by a
+   * sample of its bytes (`surfaceOf`), not by identity.
+   */
+  const surfaceOf = new Int16Array(fingerprintRuns * fingerprintRun).fill(-1);
+  /** Whether the background differs from the one the surface was fitted to; if so, records it. */
+  function newBackground(bg: Uint8Array): boolean {
+    let changed = false;
+    const step = Math.floor(bg.length / fingerprintRuns);
+    for (let run = 0, i = 0; run < fingerprintRuns; run++) {
+      for (let at = run * step, end = at + fingerprintRun; at < end; at++, i++) {
+        const value = at < bg.length ? bg[at]! : -1;
+        if (surfaceOf[i] !== value) {
+          surfaceOf[i] = value;
+          changed = true;
+        }
+      }
+    }
+    return changed;
+  }
+  /**
+   * Per pixel, 1 over the background's level, taken as at most the bottom's (dye-signal.ts): made
+   * once per background, as the frames of a stack share it.
+   */
+  const inverseLevels = new Float32Array(width * height);
+  function levelsFor(bg: Uint8Array): void {
+    const surface = fitBottomSurface(bg, width, height, spans, surfaceStride);
+    for (let row = 0, p = 0; row < height; row++) {
+      for (let col = 0; col < width; col++, p++) {
+        const cap = surface ? bottomLevel(surface, col, row) + surface.margin : Infinity;
+        inverseLevels[p] = inverseLevel(bg[3 * p]!, bg[3 * p + 1]!, bg[3 * p + 2]!, cap);
+      }
+    }
+  }
+  /** levelDifference (dye-signal.ts) at pixel `p`, with the bottom's cap, into `out`. */
+  function differenceAt(img: Uint8Array, bg: Uint8Array, p: number, out: Float64Array): void {
+    const q = 3 * p;
+    const scale = inverseLevels[p]!;
+    out[0] = (img[q]! - bg[q]!) * scale;
+    out[1] = (img[q + 1]! - bg[q + 1]!) * scale;
+    out[2] = (img[q + 2]! - bg[q + 2]!) * scale;
   }
   /** Scratch: how far each ring pixel's brightness strays from its colour's. */
   let strays = new Float64Array(0);
@@ -123,8 +167,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
    * within `brightSlack` of what its colour part says the dye there darkens.
    */
   function signalAt(img: Uint8Array, bg: Uint8Array, p: number): number {
-    const q = 3 * p;
-    levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change, capAt(q / 3));
+    differenceAt(img, bg, p, change);
     const mean = (change[0]! + change[1]! + change[2]!) / 3;
     const along = change[0]! * hue[0]! + change[1]! * hue[1]! + change[2]! * hue[2]!;
     const expected = brightPerColour * along;
@@ -172,10 +215,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     const col1 = Math.min(width, box.col1);
     const row1 = Math.min(height, box.row1);
     if (col1 <= col0 || row1 <= row0) return null;
-    if (surfaceOf !== bg) {
-      surfaceOf = bg;
-      surface = fitBottomSurface(bg, width, height, spans, 4);
-    }
+    if (newBackground(bg)) levelsFor(bg);
 
     // The patch's summed difference over its box (dye-signal.ts), split into its change of colour
     // (the part that sums to zero over the channels) and its change of brightness.
@@ -187,7 +227,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
         // A clipped pixel's colour is not the dye's.
         if (clipped(img, col, row)) continue;
         const q = 3 * (row * width + col);
-        levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change, capAt(q / 3));
+        differenceAt(img, bg, q / 3, change);
         sum[0]! += change[0]!;
         sum[1]! += change[1]!;
         sum[2]! += change[2]!;
@@ -207,26 +247,29 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     const ringX = Math.max(ringMinPx, (col1 - col0) >> 1);
     const ringY = Math.max(ringMinPx, (row1 - row0) >> 1);
     /** Each pixel of the ring round the box, inside the searched spans (`q` = 3 × its index). */
-    const eachInRing = (visit: (q: number) => void): void => {
-      for (let row = Math.max(0, row0 - ringY); row < Math.min(height, row1 + ringY); row++) {
-        const inRows = row >= row0 && row < row1;
-        const a = Math.max(col0 - ringX, spans[2 * row]!);
-        const b = Math.min(col1 + ringX, spans[2 * row + 1]!);
-        for (let col = a; col < b; col++) if (!(inRows && col >= col0 && col < col1)) visit(3 * (row * width + col));
-      }
-    };
+    // One pass over the ring: the mean squares of both parts, and (for brightSlack below) how far
+    // each pixel's brightness part strays from what its colour part says.
+    const brightPerColourHere = brightness / chromaNorm;
+    const ringMost = (col1 - col0 + 2 * ringX) * (row1 - row0 + 2 * ringY);
+    if (strays.length < ringMost) strays = new Float64Array(ringMost);
     let brightSquares = 0;
     let colourSquares = 0;
     let ringCount = 0;
-    eachInRing((q) => {
-      levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change, capAt(q / 3));
-      const mean = (change[0]! + change[1]! + change[2]!) / 3;
-      // Along (1, 1, 1)/√3 the brightness part is √3 × the mean.
-      brightSquares += 3 * mean * mean;
-      const along = (change[0]! - mean) * hue[0]! + (change[1]! - mean) * hue[1]! + (change[2]! - mean) * hue[2]!;
-      colourSquares += along * along;
-      ringCount++;
-    });
+    for (let row = Math.max(0, row0 - ringY); row < Math.min(height, row1 + ringY); row++) {
+      const inRows = row >= row0 && row < row1;
+      const a = Math.max(col0 - ringX, spans[2 * row]!);
+      const b = Math.min(col1 + ringX, spans[2 * row + 1]!);
+      for (let col = a; col < b; col++) {
+        if (inRows && col >= col0 && col < col1) continue;
+        differenceAt(img, bg, row * width + col, change);
+        const mean = (change[0]! + change[1]! + change[2]!) / 3;
+        const along = change[0]! * hue[0]! + change[1]! * hue[1]! + change[2]! * hue[2]!;
+        // Along (1, 1, 1)/√3 the brightness part is √3 × the mean; `hue` sums to zero, so `along` is the colour part.
+        brightSquares += 3 * mean * mean;
+        colourSquares += along * along;
+        strays[ringCount++] = Math.abs(mean - brightPerColourHere * along);
+      }
+    }
     let brightWeight = 0;
     let colourWeight = 1;
     if (ringCount > 0 && colourSquares > 0 && brightSquares > 0) {
@@ -245,30 +288,18 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     // the box); white glare the background lacks adds to the brightness alone, a line or shadow it
     // lacks takes from it. So a pixel's brightness part counts only within the ring's noise of
     // what its colour part says: beyond that the pixel's brightness tells of something else.
-    brightPerColour = brightness / chromaNorm;
-    brightSlack = Infinity;
-    if (ringCount > 0) {
-      if (strays.length < ringCount) strays = new Float64Array(ringCount);
-      let n = 0;
-      eachInRing((q) => {
-        levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change, capAt(q / 3));
-        const mean = (change[0]! + change[1]! + change[2]!) / 3;
-        const along = change[0]! * hue[0]! + change[1]! * hue[1]! + change[2]! * hue[2]!;
-        strays[n++] = Math.abs(mean - brightPerColour * along);
-      });
-      const sorted = strays.subarray(0, n).sort();
-      brightSlack = slackWidths * 1.4826 * sorted[n >> 1]!;
-    }
+    brightPerColour = brightPerColourHere;
+    brightSlack = ringCount > 0 ? slackWidths * 1.4826 * strays.subarray(0, ringCount).sort()[ringCount >> 1]! : Infinity;
     // A new colour direction: signals worked out before belong to another measurement.
     measurement = measurement === 0xffffffff ? 1 : measurement + 1;
     if (measurement === 1) stamp.fill(0);
 
     // Offset and noise of the signal over the searched region (the patch is a small part of it).
     hist.fill(0);
-    for (let row = 0; row < height; row += noiseStride) {
+    for (let row = 0; row < height; row += noiseRowStride) {
       const a = spans[2 * row]!;
       const b = spans[2 * row + 1]!;
-      for (let col = a; col < b; col += noiseStride) {
+      for (let col = a; col < b; col += noiseColumnStride) {
         const s = signalAt(img, bg, row * width + col);
         const bin = Math.round((Math.max(-halfRange, Math.min(halfRange, s)) + halfRange) * binsPerUnit);
         hist[bin]!++;

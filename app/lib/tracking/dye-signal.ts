@@ -44,12 +44,17 @@ export function relativeChangeSquared(i0: number, i1: number, i2: number, b0: nu
 }
 
 /**
- * The pixel's difference from the background per channel over the background's mean level, into
- * `out`. A background level above `cap` counts as `cap`: white light the background holds on top
- * of the bottom (a still glare on the water) does not pass through the dye (dye-bottom.ts).
+ * 1 over the background's mean level, the level taken as at most `cap`: white light the background
+ * holds on top of the bottom (a still glare on the water) does not pass through the dye, and is no
+ * part of what it darkens (dye-bottom.ts). dye-centre.ts makes it once per background.
  */
-export function levelDifference(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, out: Float64Array, cap = Infinity): void {
-  const scale = 1 / levelOf(b0, b1, b2, cap);
+export function inverseLevel(b0: number, b1: number, b2: number, cap = Infinity): number {
+  return 1 / levelOf(b0, b1, b2, cap);
+}
+
+/** The pixel's difference from the background per channel over the background's mean level, into `out`. */
+export function levelDifference(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, out: Float64Array): void {
+  const scale = 1 / levelOf(b0, b1, b2);
   out[0] = (i0 - b0) * scale;
   out[1] = (i1 - b1) * scale;
   out[2] = (i2 - b2) * scale;

@@ -39,7 +39,8 @@ const firstGrowth = 1 / 0.217;
 /** Largest variance of the window along an axis, px² (a 100 px standard deviation). */
 const maxVariance = 1e4;
 /** Each pass moves the centre about halfway to the patch's; a window with clipped pixels, by less. */
-const maxIterations = 40;
+const maxIterations = 12;
+const maxClippedIterations = 40;
 /** The ring around the box where the background's misfit is read is at least this wide, px. */
 const ringMinPx = 4;
 /** The window stops when it moves less than this, px. */
@@ -323,7 +324,8 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     let reachX = (col1 - col0) / 2;
     let reachY = (row1 - row0) / 2;
     let peak = 0;
-    for (let iteration = 0; iteration < maxIterations; iteration++) {
+    let clippedSeen = false;
+    for (let iteration = 0; iteration < (clippedSeen ? maxClippedIterations : maxIterations); iteration++) {
       const r0 = Math.max(0, Math.floor(y - reachY));
       const r1 = Math.min(height - 1, Math.ceil(y + reachY));
       const c0 = Math.max(0, Math.floor(x - reachX));
@@ -414,6 +416,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       shape = [sxx, sxy, syy];
       reachX = windowSigmas * Math.sqrt(sxx) + 1;
       reachY = windowSigmas * Math.sqrt(syy) + 1;
+      if (pairedWeight > 0) clippedSeen = true;
       if (iteration > 1 && Math.hypot(mx, my) < settledPx) break;
     }
     if (!shape) return null;

@@ -51,7 +51,7 @@ const minVariance = 0.5;
  * Every 5th pixel of every 13th row: some 5500 samples in a 670 px tank, plenty for a median and
  * MAD. Read along rows, neighbouring samples share the memory's cache lines (every 8th pixel of
  * every 8th row took a cache miss each); strides prime to 8 meet every position in JPEG's 8 × 8
- * blocks, whose noise differs by position (every 8th row met only the blocks' first rows).
+ * blocks, whose noise differs by position (every 8th pixel of every 8th row met one a row).
  */
 const noiseRowStride = 13;
 const noiseColumnStride = 5;

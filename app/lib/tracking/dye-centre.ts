@@ -21,9 +21,14 @@
  * centre estimate can reach at that contrast; with a window of the shape's size the clipped
  * noise sits symmetrically about the centre and does not pull it. The Gaussian weight halves the
  * measured moments, so the next window takes twice them; that converges to the patch's own.
+ *
+ * The signal per pixel is dye-patch-signal.ts's: the difference is over the bottom's level, not
+ * over a still glare's the background also holds (dye-bottom.ts), and a pixel's brightness part
+ * counts only within the ring's noise of what its colour part says. A clipped pixel (glare at 255)
+ * tells nothing: in the window it takes the signal of its mirror image through the centre, so the
+ * pair pulls neither way, and the step is taken over the weight of the other pixels.
  */
-import { bottomLevel, fitBottomSurface } from "./dye-bottom";
-import { inverseLevel } from "./dye-signal";
+import { createPatchSignal } from "./dye-patch-signal";
 import { robustStats } from "./robust-stats";
 
 /** Threshold below which the signal gets no weight, in noise widths. */
@@ -58,14 +63,8 @@ const noiseColumnStride = 5;
 /** Histogram bins per unit of signal (a relative change of colour), and its half-range. */
 const binsPerUnit = 4096;
 const halfRange = 0.5;
-/** The background is known again by runs of its bytes spread over it; the bottom's surface is fitted on every 8th pixel of every 8th row. */
-const fingerprintRuns = 64;
-const fingerprintRun = 64;
-const surfaceStride = 8;
 /** A pixel's brightness part counts within this many robust widths of what its colour part says. */
 const slackWidths = 3;
-/** A pixel with a channel at or above this is clipped (saturated glare): it tells nothing of the dye. */
-const clippedLevel = 250;
 
 export interface DyeImage {
   /** Interleaved RGB, row-major. */
@@ -105,108 +104,9 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
   const change = new Float64Array(3);
   /** The patch's change of colour alone, unit length (its components sum to zero). */
   const hue = new Float64Array(3);
-  // The window's passes visit mostly the same pixels, and a pixel's signal is fixed for the
-  // frame: each is worked out once per frame (`stamp` says for which measurement).
-  const signals = new Float64Array(width * height);
-  const stamp = new Uint32Array(width * height);
-  let measurement = 0;
-  /**
-   * The bottom's level under the light (dye-bottom.ts), fitted once per background: a frame's
-   * background comes to a worker as a new view of the same memory, so it is known again by a
-   * sample of its bytes (`surfaceOf`), not by identity.
-   */
-  const surfaceOf = new Int16Array(fingerprintRuns * fingerprintRun).fill(-1);
-  /** Whether the background differs from the one the surface was fitted to; if so, records it. */
-  function newBackground(bg: Uint8Array): boolean {
-    let changed = false;
-    const step = Math.floor(bg.length / fingerprintRuns);
-    for (let run = 0, i = 0; run < fingerprintRuns; run++) {
-      for (let at = run * step, end = at + fingerprintRun; at < end; at++, i++) {
-        const value = at < bg.length ? bg[at]! : -1;
-        if (surfaceOf[i] !== value) {
-          surfaceOf[i] = value;
-          changed = true;
-        }
-      }
-    }
-    return changed;
-  }
-  /**
-   * Per pixel, 1 over the background's level, taken as at most the bottom's (dye-signal.ts): made
-   * once per background, as the frames of a stack share it.
-   */
-  const inverseLevels = new Float32Array(width * height);
-  function levelsFor(bg: Uint8Array): void {
-    const surface = fitBottomSurface(bg, width, height, spans, surfaceStride);
-    for (let row = 0, p = 0; row < height; row++) {
-      for (let col = 0; col < width; col++, p++) {
-        const cap = surface ? bottomLevel(surface, col, row) + surface.margin : Infinity;
-        inverseLevels[p] = inverseLevel(bg[3 * p]!, bg[3 * p + 1]!, bg[3 * p + 2]!, cap);
-      }
-    }
-  }
-  /** levelDifference (dye-signal.ts) at pixel `p`, with the bottom's cap, into `out`. */
-  function differenceAt(img: Uint8Array, bg: Uint8Array, p: number, out: Float64Array): void {
-    const q = 3 * p;
-    const scale = inverseLevels[p]!;
-    out[0] = (img[q]! - bg[q]!) * scale;
-    out[1] = (img[q + 1]! - bg[q + 1]!) * scale;
-    out[2] = (img[q + 2]! - bg[q + 2]!) * scale;
-  }
+  const signal = createPatchSignal(width, height, spans);
   /** Scratch: how far each ring pixel's brightness strays from its colour's. */
   let strays = new Float64Array(0);
-
-  /** The signal's weights on a pixel's brightness part (the mean over the channels) and colour part (along `hue`). */
-  let brightCoefficient = 0;
-  let colourCoefficient = 1;
-  /** The patch's brightness part per unit of its colour part, and how far a pixel's brightness may stray from that. */
-  let brightPerColour = 0;
-  let brightSlack = Infinity;
-
-  /**
-   * The change at one pixel along the dye's direction (dye-signal.ts), its brightness part held
-   * within `brightSlack` of what its colour part says the dye there darkens.
-   */
-  function signalAt(img: Uint8Array, bg: Uint8Array, p: number): number {
-    differenceAt(img, bg, p, change);
-    const mean = (change[0]! + change[1]! + change[2]!) / 3;
-    const along = change[0]! * hue[0]! + change[1]! * hue[1]! + change[2]! * hue[2]!;
-    const expected = brightPerColour * along;
-    const bright = Math.min(expected + brightSlack, Math.max(expected - brightSlack, mean));
-    return brightCoefficient * bright + colourCoefficient * along;
-  }
-
-  /** Whether a pixel lies outside the frame or is clipped in some channel. */
-  function clipped(img: Uint8Array, col: number, row: number): boolean {
-    if (col < 0 || col >= width || row < 0 || row >= height) return true;
-    const q = 3 * (row * width + col);
-    return img[q]! >= clippedLevel || img[q + 1]! >= clippedLevel || img[q + 2]! >= clippedLevel;
-  }
-
-  /**
-   * The signal at a point between pixel centres, interpolated bilinearly from the four pixels
-   * round it; null when one of them is clipped or outside the frame.
-   */
-  function mirrorSignal(img: Uint8Array, bg: Uint8Array, atX: number, atY: number): number | null {
-    const c = Math.floor(atX);
-    const r = Math.floor(atY);
-    if (clipped(img, c, r) || clipped(img, c + 1, r) || clipped(img, c, r + 1) || clipped(img, c + 1, r + 1)) return null;
-    const fx = atX - c;
-    const fy = atY - r;
-    const p = r * width + c;
-    const top = (1 - fx) * signalOnce(img, bg, p) + fx * signalOnce(img, bg, p + 1);
-    const under = (1 - fx) * signalOnce(img, bg, p + width) + fx * signalOnce(img, bg, p + width + 1);
-    return (1 - fy) * top + fy * under;
-  }
-
-  /** signalAt, once per pixel per measurement. */
-  function signalOnce(img: Uint8Array, bg: Uint8Array, p: number): number {
-    if (stamp[p] === measurement) return signals[p]!;
-    const s = signalAt(img, bg, p);
-    signals[p] = s;
-    stamp[p] = measurement;
-    return s;
-  }
 
   return function measure(image: DyeImage, background: Uint8Array, box: PatchBox, free?: (col: number, row: number) => boolean): PatchCentre | null {
     const img = image.data;
@@ -216,7 +116,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     const col1 = Math.min(width, box.col1);
     const row1 = Math.min(height, box.row1);
     if (col1 <= col0 || row1 <= row0) return null;
-    if (newBackground(bg)) levelsFor(bg);
+    signal.useFrame(img, bg);
 
     // The patch's summed difference over its box (dye-signal.ts), split into its change of colour
     // (the part that sums to zero over the channels) and its change of brightness.
@@ -226,9 +126,9 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       const b = Math.min(col1, spans[2 * row + 1]!);
       for (let col = a; col < b; col++) {
         // A clipped pixel's colour is not the dye's.
-        if (clipped(img, col, row)) continue;
+        if (signal.clipped(col, row)) continue;
         const q = 3 * (row * width + col);
-        differenceAt(img, bg, q / 3, change);
+        signal.difference(q / 3, change);
         sum[0]! += change[0]!;
         sum[1]! += change[1]!;
         sum[2]! += change[2]!;
@@ -262,7 +162,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       const b = Math.min(col1 + ringX, spans[2 * row + 1]!);
       for (let col = a; col < b; col++) {
         if (inRows && col >= col0 && col < col1) continue;
-        differenceAt(img, bg, row * width + col, change);
+        signal.difference(row * width + col, change);
         const mean = (change[0]! + change[1]! + change[2]!) / 3;
         const along = change[0]! * hue[0]! + change[1]! * hue[1]! + change[2]! * hue[2]!;
         // Along (1, 1, 1)/√3 the brightness part is √3 × the mean; `hue` sums to zero, so `along` is the colour part.
@@ -283,17 +183,14 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     if (!(norm > 0)) return null;
     for (let c = 0; c < 3; c++) direction[c] = direction[c]! / norm;
     // The projection on `direction`, as brightness part m and colour part a: (w_b·√3·m + w_c·a) / norm.
-    brightCoefficient = (brightWeight * unit) / norm;
-    colourCoefficient = colourWeight / norm;
+    const brightCoefficient = (brightWeight * unit) / norm;
+    const colourCoefficient = colourWeight / norm;
     // Seen through, the dye darkens in proportion to its change of colour (brightness/chromaNorm over
     // the box); white glare the background lacks adds to the brightness alone, a line or shadow it
     // lacks takes from it. So a pixel's brightness part counts only within the ring's noise of
     // what its colour part says: beyond that the pixel's brightness tells of something else.
-    brightPerColour = brightPerColourHere;
-    brightSlack = ringCount > 0 ? slackWidths * 1.4826 * strays.subarray(0, ringCount).sort()[ringCount >> 1]! : Infinity;
-    // A new colour direction: signals worked out before belong to another measurement.
-    measurement = measurement === 0xffffffff ? 1 : measurement + 1;
-    if (measurement === 1) stamp.fill(0);
+    const brightSlack = ringCount > 0 ? slackWidths * 1.4826 * strays.subarray(0, ringCount).sort()[ringCount >> 1]! : Infinity;
+    signal.aim(hue, brightCoefficient, colourCoefficient, brightPerColourHere, brightSlack);
 
     // Offset and noise of the signal over the searched region (the patch is a small part of it).
     hist.fill(0);
@@ -301,7 +198,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       const a = spans[2 * row]!;
       const b = spans[2 * row + 1]!;
       for (let col = a; col < b; col += noiseColumnStride) {
-        const s = signalAt(img, bg, row * width + col);
+        const s = signal.at(row * width + col);
         const bin = Math.round((Math.max(-halfRange, Math.min(halfRange, s)) + halfRange) * binsPerUnit);
         hist[bin]!++;
       }
@@ -314,7 +211,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     for (let row = row0; row < row1; row++) {
       const a = Math.max(col0, spans[2 * row]!);
       const b = Math.min(col1, spans[2 * row + 1]!);
-      for (let col = a; col < b; col++) if (!free || free(col, row)) top = Math.max(top, signalOnce(img, bg, row * width + col));
+      for (let col = a; col < b; col++) if (!free || free(col, row)) top = Math.max(top, signal.once(row * width + col));
     }
     const firstFloor = Math.max(floor, firstShare * top);
     const offset = stats.median / binsPerUnit;
@@ -368,20 +265,20 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
             // way (as if both were left out) while the patch's measured shape keeps its extent.
             // Where both are clipped the pixel is left out.
             let s: number;
-            const stands = clipped(img, col, row);
+            const stands = signal.clipped(col, row);
             if (stands) {
-              const mirrored = mirrorSignal(img, bg, 2 * x - col, 2 * y - row);
+              const mirrored = signal.mirrored(2 * x - col, 2 * y - row);
               if (mirrored === null) continue;
               s = mirrored;
             } else {
-              s = signalOnce(img, bg, row * width + col);
+              s = signal.once(row * width + col);
               if (s > peak) peak = s;
             }
             weight = Math.max(0, s - offset) * Math.exp(-0.5 * q);
             if (stands) pairedWeight += 2 * weight;
           } else {
-            if ((free && !free(col, row)) || clipped(img, col, row)) continue;
-            const s = signalOnce(img, bg, row * width + col);
+            if ((free && !free(col, row)) || signal.clipped(col, row)) continue;
+            const s = signal.once(row * width + col);
             if (s > peak) peak = s;
             weight = s - firstFloor;
             if (weight <= 0) continue;

@@ -247,5 +247,9 @@ function sameBackground(background: Uint8Array | null, id: number | undefined): 
   return background;
 }
 
-/** This worker's frame background where a turning model takes part, reused from frame to frame. */
+/**
+ * This worker's frame background where a turning model takes part, reused from frame to frame.
+ * Floats only (plan.ts gives dye no turning model): the dye detector keeps work per background
+ * array (threshold.ts, dye-patch-signal.ts), which an array rewritten every frame would defeat.
+ */
 let composed: Uint8Array | null = null;

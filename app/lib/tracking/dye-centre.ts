@@ -21,8 +21,14 @@
  * centre estimate can reach at that contrast; with a window of the shape's size the clipped
  * noise sits symmetrically about the centre and does not pull it. The Gaussian weight halves the
  * measured moments, so the next window takes twice them; that converges to the patch's own.
+ *
+ * The signal per pixel is dye-patch-signal.ts's: the difference is over the bottom's level, not
+ * over a still glare's the background also holds (dye-bottom.ts), and a pixel's brightness part
+ * counts only within the ring's noise of what its colour part says. A clipped pixel (glare at 255)
+ * tells nothing: in the window it takes the signal of its mirror image through the centre, so the
+ * pair pulls neither way, and the step is taken over the weight of the other pixels.
  */
-import { differenceAlong, levelDifference } from "./dye-signal";
+import { createPatchSignal } from "./dye-patch-signal";
 import { robustStats } from "./robust-stats";
 
 /** Threshold below which the signal gets no weight, in noise widths. */
@@ -37,18 +43,28 @@ const firstShare = 0.5;
 const firstGrowth = 1 / 0.217;
 /** Largest variance of the window along an axis, px² (a 100 px standard deviation). */
 const maxVariance = 1e4;
+/** Each pass moves the centre about halfway to the patch's; a window with clipped pixels, by less. */
 const maxIterations = 12;
+const maxClippedIterations = 40;
 /** The ring around the box where the background's misfit is read is at least this wide, px. */
 const ringMinPx = 4;
 /** The window stops when it moves less than this, px. */
 const settledPx = 2e-3;
 /** Smallest variance of the window along any direction, px². */
 const minVariance = 0.5;
-/** Every 8th pixel of every 8th row: some 7000 samples in a 670 px tank, plenty for a median and MAD. */
-const noiseStride = 8;
+/**
+ * Every 5th pixel of every 13th row: some 5500 samples in a 670 px tank, plenty for a median and
+ * MAD. Read along rows, neighbouring samples share the memory's cache lines (every 8th pixel of
+ * every 8th row took a cache miss each); strides prime to 8 meet every position in JPEG's 8 × 8
+ * blocks, whose noise differs by position (every 8th pixel of every 8th row met one a row).
+ */
+const noiseRowStride = 13;
+const noiseColumnStride = 5;
 /** Histogram bins per unit of signal (a relative change of colour), and its half-range. */
 const binsPerUnit = 4096;
 const halfRange = 0.5;
+/** A pixel's brightness part counts within this many robust widths of what its colour part says. */
+const slackWidths = 3;
 
 export interface DyeImage {
   /** Interleaved RGB, row-major. */
@@ -88,26 +104,9 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
   const change = new Float64Array(3);
   /** The patch's change of colour alone, unit length (its components sum to zero). */
   const hue = new Float64Array(3);
-  // The window's passes visit mostly the same pixels, and a pixel's signal is fixed for the
-  // frame: each is worked out once per frame (`stamp` says for which measurement).
-  const signals = new Float64Array(width * height);
-  const stamp = new Uint32Array(width * height);
-  let measurement = 0;
-
-  /** The change of colour at one pixel along the dye's direction (dye-signal.ts). */
-  function signalAt(img: Uint8Array, bg: Uint8Array, p: number): number {
-    const q = 3 * p;
-    return differenceAlong(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, direction);
-  }
-
-  /** signalAt, once per pixel per measurement. */
-  function signalOnce(img: Uint8Array, bg: Uint8Array, p: number): number {
-    if (stamp[p] === measurement) return signals[p]!;
-    const s = signalAt(img, bg, p);
-    signals[p] = s;
-    stamp[p] = measurement;
-    return s;
-  }
+  const signal = createPatchSignal(width, height, spans);
+  /** Scratch: how far each ring pixel's brightness strays from its colour's. */
+  let strays = new Float64Array(0);
 
   return function measure(image: DyeImage, background: Uint8Array, box: PatchBox, free?: (col: number, row: number) => boolean): PatchCentre | null {
     const img = image.data;
@@ -117,6 +116,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     const col1 = Math.min(width, box.col1);
     const row1 = Math.min(height, box.row1);
     if (col1 <= col0 || row1 <= row0) return null;
+    signal.useFrame(img, bg);
 
     // The patch's summed difference over its box (dye-signal.ts), split into its change of colour
     // (the part that sums to zero over the channels) and its change of brightness.
@@ -125,8 +125,10 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       const a = Math.max(col0, spans[2 * row]!);
       const b = Math.min(col1, spans[2 * row + 1]!);
       for (let col = a; col < b; col++) {
+        // A clipped pixel's colour is not the dye's.
+        if (signal.clipped(col, row)) continue;
         const q = 3 * (row * width + col);
-        levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change);
+        signal.difference(q / 3, change);
         sum[0]! += change[0]!;
         sum[1]! += change[1]!;
         sum[2]! += change[2]!;
@@ -145,6 +147,12 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     // colour does.
     const ringX = Math.max(ringMinPx, (col1 - col0) >> 1);
     const ringY = Math.max(ringMinPx, (row1 - row0) >> 1);
+    /** Each pixel of the ring round the box, inside the searched spans (`q` = 3 × its index). */
+    // One pass over the ring: the mean squares of both parts, and (for brightSlack below) how far
+    // each pixel's brightness part strays from what its colour part says.
+    const brightPerColourHere = brightness / chromaNorm;
+    const ringMost = (col1 - col0 + 2 * ringX) * (row1 - row0 + 2 * ringY);
+    if (strays.length < ringMost) strays = new Float64Array(ringMost);
     let brightSquares = 0;
     let colourSquares = 0;
     let ringCount = 0;
@@ -154,14 +162,13 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       const b = Math.min(col1 + ringX, spans[2 * row + 1]!);
       for (let col = a; col < b; col++) {
         if (inRows && col >= col0 && col < col1) continue;
-        const q = 3 * (row * width + col);
-        levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, change);
+        signal.difference(row * width + col, change);
         const mean = (change[0]! + change[1]! + change[2]!) / 3;
-        // Along (1, 1, 1)/√3 the brightness part is √3 × the mean.
+        const along = change[0]! * hue[0]! + change[1]! * hue[1]! + change[2]! * hue[2]!;
+        // Along (1, 1, 1)/√3 the brightness part is √3 × the mean; `hue` sums to zero, so `along` is the colour part.
         brightSquares += 3 * mean * mean;
-        const along = (change[0]! - mean) * hue[0]! + (change[1]! - mean) * hue[1]! + (change[2]! - mean) * hue[2]!;
         colourSquares += along * along;
-        ringCount++;
+        strays[ringCount++] = Math.abs(mean - brightPerColourHere * along);
       }
     }
     let brightWeight = 0;
@@ -175,17 +182,23 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     const norm = Math.hypot(direction[0]!, direction[1]!, direction[2]!);
     if (!(norm > 0)) return null;
     for (let c = 0; c < 3; c++) direction[c] = direction[c]! / norm;
-    // A new colour direction: signals worked out before belong to another measurement.
-    measurement = measurement === 0xffffffff ? 1 : measurement + 1;
-    if (measurement === 1) stamp.fill(0);
+    // The projection on `direction`, as brightness part m and colour part a: (w_b·√3·m + w_c·a) / norm.
+    const brightCoefficient = (brightWeight * unit) / norm;
+    const colourCoefficient = colourWeight / norm;
+    // Seen through, the dye darkens in proportion to its change of colour (brightness/chromaNorm over
+    // the box); white glare the background lacks adds to the brightness alone, a line or shadow it
+    // lacks takes from it. So a pixel's brightness part counts only within the ring's noise of
+    // what its colour part says: beyond that the pixel's brightness tells of something else.
+    const brightSlack = ringCount > 0 ? slackWidths * 1.4826 * strays.subarray(0, ringCount).sort()[ringCount >> 1]! : Infinity;
+    signal.aim(hue, brightCoefficient, colourCoefficient, brightPerColourHere, brightSlack);
 
     // Offset and noise of the signal over the searched region (the patch is a small part of it).
     hist.fill(0);
-    for (let row = 0; row < height; row += noiseStride) {
+    for (let row = 0; row < height; row += noiseRowStride) {
       const a = spans[2 * row]!;
       const b = spans[2 * row + 1]!;
-      for (let col = a; col < b; col += noiseStride) {
-        const s = signalAt(img, bg, row * width + col);
+      for (let col = a; col < b; col += noiseColumnStride) {
+        const s = signal.at(row * width + col);
         const bin = Math.round((Math.max(-halfRange, Math.min(halfRange, s)) + halfRange) * binsPerUnit);
         hist[bin]!++;
       }
@@ -198,7 +211,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     for (let row = row0; row < row1; row++) {
       const a = Math.max(col0, spans[2 * row]!);
       const b = Math.min(col1, spans[2 * row + 1]!);
-      for (let col = a; col < b; col++) if (!free || free(col, row)) top = Math.max(top, signalOnce(img, bg, row * width + col));
+      for (let col = a; col < b; col++) if (!free || free(col, row)) top = Math.max(top, signal.once(row * width + col));
     }
     const firstFloor = Math.max(floor, firstShare * top);
     const offset = stats.median / binsPerUnit;
@@ -208,7 +221,8 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     let reachX = (col1 - col0) / 2;
     let reachY = (row1 - row0) / 2;
     let peak = 0;
-    for (let iteration = 0; iteration < maxIterations; iteration++) {
+    let clippedSeen = false;
+    for (let iteration = 0; iteration < (clippedSeen ? maxClippedIterations : maxIterations); iteration++) {
       const r0 = Math.max(0, Math.floor(y - reachY));
       const r1 = Math.min(height - 1, Math.ceil(y + reachY));
       const c0 = Math.max(0, Math.floor(x - reachX));
@@ -220,6 +234,8 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       }
       let w = 0;
       let wx = 0;
+      /** The weight of clipped pixels standing in for their mirror image, and of that image. */
+      let pairedWeight = 0;
       let wy = 0;
       let wxx = 0;
       let wxy = 0;
@@ -244,12 +260,25 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
           if (inverse) {
             const q = inverse[0] * dx * dx + 2 * inverse[1] * dx * dy + inverse[2] * dy * dy;
             if (q > windowSigmas * windowSigmas) continue;
-            const s = signalOnce(img, bg, row * width + col);
-            if (s > peak) peak = s;
+            // A clipped pixel tells nothing: it takes the signal of its mirror image through the
+            // centre, as a symmetric patch would have there. The pair then pulls the centre neither
+            // way (as if both were left out) while the patch's measured shape keeps its extent.
+            // Where both are clipped the pixel is left out.
+            let s: number;
+            const stands = signal.clipped(col, row);
+            if (stands) {
+              const mirrored = signal.mirrored(2 * x - col, 2 * y - row);
+              if (mirrored === null) continue;
+              s = mirrored;
+            } else {
+              s = signal.once(row * width + col);
+              if (s > peak) peak = s;
+            }
             weight = Math.max(0, s - offset) * Math.exp(-0.5 * q);
+            if (stands) pairedWeight += 2 * weight;
           } else {
-            if (free && !free(col, row)) continue;
-            const s = signalOnce(img, bg, row * width + col);
+            if ((free && !free(col, row)) || signal.clipped(col, row)) continue;
+            const s = signal.once(row * width + col);
             if (s > peak) peak = s;
             weight = s - firstFloor;
             if (weight <= 0) continue;
@@ -265,8 +294,12 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       if (!(w > 0)) return null;
       const mx = wx / w;
       const my = wy / w;
-      x += mx;
-      y += my;
+      // A clipped pixel and its mirror image pull the centre neither way: the step is the pull of
+      // the other pixels, over their weight alone (else it would shrink with the clipped share and
+      // the window would settle short of the centre).
+      const stepGain = w - pairedWeight > 0.05 * w ? w / (w - pairedWeight) : 1;
+      x += mx * stepGain;
+      y += my * stepGain;
       // Moments about the new centre; a Gaussian weight of the patch's own shape halves them.
       const grow: number = shape ? 2 : firstGrowth;
       let sxx = Math.max(minVariance, grow * (wxx / w - mx * mx));
@@ -280,6 +313,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       shape = [sxx, sxy, syy];
       reachX = windowSigmas * Math.sqrt(sxx) + 1;
       reachY = windowSigmas * Math.sqrt(syy) + 1;
+      if (pairedWeight > 0) clippedSeen = true;
       if (iteration > 1 && Math.hypot(mx, my) < settledPx) break;
     }
     if (!shape) return null;

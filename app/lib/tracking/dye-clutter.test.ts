@@ -34,7 +34,16 @@ interface Clutter {
   glare?: number;
   /** The dye's shadow on the bottom, lit by this share of the light, offset by (22, −14) px. */
   shadow?: number;
+  /** White glare the background holds too (a lamp's glare still in the view): this peak, σ 18 px, centred 12 px off the patch's centre across its long axis. */
+  stillGlare?: number;
+  /** A small white glare (σ 4 px, this peak in grey levels) on the patch's long axis 7 px from its centre, clipped at 255 where it is brightest. */
+  spot?: number;
 }
+
+/** Where `spot` lies: 7 px along the patch's long axis (turned 0.5 rad). */
+const spotAt = { x: truth.x + 7 * Math.cos(0.5), y: truth.y + 7 * Math.sin(0.5) };
+/** Where `stillGlare` lies: 12 px from the patch's centre across its long axis. */
+const stillGlareAt = { x: truth.x - 12 * Math.sin(0.5), y: truth.y + 12 * Math.cos(0.5) };
 
 /** The dye's amount at a pixel: a 3:1 Gaussian ellipse (σ 6 × 2 px) turned 0.5 rad. */
 function amount(col: number, row: number, at: { x: number; y: number }): number {
@@ -47,11 +56,20 @@ function amount(col: number, row: number, at: { x: number; y: number }): number 
 
 function scene(clutter: Clutter = {}): { frame: FrameImage; background: Uint8Array } {
   const background = new Uint8Array(width * height * 3).fill(bottom);
+  if (clutter.stillGlare) {
+    for (let p = 0; p < width * height; p++) {
+      const still = clutter.stillGlare * Math.exp(-(((p % width) - stillGlareAt.x) ** 2 + (Math.floor(p / width) - stillGlareAt.y) ** 2) / (2 * 18 * 18));
+      background.fill(Math.min(255, Math.round(bottom + still)), 3 * p, 3 * p + 3);
+    }
+  }
   const data = new Uint8Array(width * height * 3);
   for (let row = 0; row < height; row++) {
     for (let col = 0; col < width; col++) {
       const light = clutter.lineAt !== undefined && Math.abs(col + 0.5 - clutter.lineAt) < 1 ? 0.7 : 1;
-      const glare = clutter.glare ? clutter.glare * Math.exp(-((col - 110) ** 2 + (row - 70) ** 2) / (2 * 18 * 18)) : 0;
+      const glare =
+        (clutter.glare ? clutter.glare * Math.exp(-((col - 110) ** 2 + (row - 70) ** 2) / (2 * 18 * 18)) : 0) +
+        (clutter.spot ? clutter.spot * Math.exp(-((col - spotAt.x) ** 2 + (row - spotAt.y) ** 2) / (2 * 4 * 4)) : 0) +
+        (clutter.stillGlare ? clutter.stillGlare * Math.exp(-((col - stillGlareAt.x) ** 2 + (row - stillGlareAt.y) ** 2) / (2 * 18 * 18)) : 0);
       const dye = amount(col, row, truth);
       const shade = clutter.shadow ? amount(col, row, { x: truth.x + 22, y: truth.y - 14 }) : 0;
       for (let c = 0; c < 3; c++) {
@@ -100,6 +118,24 @@ describe("a faint dye patch among a tank's clutter (exact images)", () => {
     console.info(`dye under glare: ${miss(found[0]!).toFixed(3)} px off`);
     expect(found).toHaveLength(1);
     expect(miss(found[0]!)).toBeLessThan(0.05);
+  });
+
+  it("is centred within 0.1 px under a small glare that clips one end of it at 255 (read as it is, 0.14 px): a clipped pixel takes its mirror image's signal", () => {
+    const { frame } = scene({ spot: 90 });
+    let clippedPixels = 0;
+    for (let p = 0; p < width * height; p++) if (frame.data[3 * p] === 255) clippedPixels++;
+    const found = detectIn({ spot: 90 });
+    console.info(`dye under a clipped glare (${clippedPixels} pixels at 255): ${miss(found[0]!).toFixed(3)} px off`);
+    expect(clippedPixels).toBeGreaterThan(10);
+    expect(found).toHaveLength(1);
+    expect(miss(found[0]!)).toBeLessThan(0.1);
+  });
+
+  it("is centred within 0.01 px under white glare of 60 grey levels that the background holds as well (divided by the glare's level, 0.034 px): the bottom's level divides the difference", () => {
+    const found = detectIn({ stillGlare: 60 });
+    console.info(`dye under a still glare: ${miss(found[0]!).toFixed(3)} px off`);
+    expect(found).toHaveLength(1);
+    expect(miss(found[0]!)).toBeLessThan(0.01);
   });
 
   it("is found alone when its shadow, lit by half the light, lies 26 px away: the shadow changes the colour less", () => {

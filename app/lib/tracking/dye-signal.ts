@@ -20,9 +20,9 @@
  * around the patch.
  */
 
-/** The background's mean level, at least 1. */
-function levelOf(b0: number, b1: number, b2: number): number {
-  const level = (b0 + b1 + b2) / 3;
+/** The background's mean level, at most `cap` and at least 1. */
+function levelOf(b0: number, b1: number, b2: number, cap = Infinity): number {
+  const level = Math.min(cap, (b0 + b1 + b2) / 3);
   return level > 1 ? level : 1;
 }
 
@@ -41,6 +41,15 @@ export function relativeChangeSquared(i0: number, i1: number, i2: number, b0: nu
   const s1 = r1 * scale - 1;
   const s2 = r2 * scale - 1;
   return s0 * s0 + s1 * s1 + s2 * s2;
+}
+
+/**
+ * 1 over the background's mean level, the level taken as at most `cap`: white light the background
+ * holds on top of the bottom (a still glare on the water) does not pass through the dye, and is no
+ * part of what it darkens (dye-bottom.ts). dye-centre.ts makes it once per background.
+ */
+export function inverseLevel(b0: number, b1: number, b2: number, cap = Infinity): number {
+  return 1 / levelOf(b0, b1, b2, cap);
 }
 
 /** The pixel's difference from the background per channel over the background's mean level, into `out`. */

@@ -1,0 +1,136 @@
+/**
+ * The bottom's level under the light, over the whole tank, from the stack's colour background:
+ * what a dye patch darkens is the light that reaches the bottom and comes back through the dye,
+ * not white light the background also holds on top of it (a lamp's glare on the water, still in
+ * the view), which does not pass through the dye. The lamps light the bottom smoothly over the
+ * tank, so its level is fitted as a quadratic surface over the image; glare only brightens, so the
+ * fit leaves out, one-sided, what lies well above it, round after round. Dark grid lines and marks
+ * the background holds lie under the surface and stay as they are. dye-centre.ts takes a
+ * background brighter than the surface (plus its noise margin) as the surface's level.
+ */
+
+/** Quadratic in the image's coordinates about (x, y), scaled by `scale`: c0 + c1·u + c2·v + c3·u² + c4·u·v + c5·v². */
+export interface BottomSurface {
+  x: number;
+  y: number;
+  scale: number;
+  c: Float64Array;
+  /** Noise allowance above the surface, grey levels. */
+  margin: number;
+}
+
+/** Rounds of fitting with the bright outliers left out. */
+const rounds = 10;
+/** Outliers lie this many robust widths above the surface; the margin is as many. */
+const outlierWidths = 2.5;
+/** The smallest robust width taken, grey levels (an exact, noiseless background). */
+const minWidth = 1;
+const terms = 6;
+
+function basis(u: number, v: number, out: Float64Array): void {
+  out[0] = 1;
+  out[1] = u;
+  out[2] = v;
+  out[3] = u * u;
+  out[4] = u * v;
+  out[5] = v * v;
+}
+
+/** Solves the 6 × 6 system `a`·x = `b` in place (Gaussian elimination with pivoting); false when singular. */
+function solve(a: Float64Array, b: Float64Array): boolean {
+  for (let col = 0; col < terms; col++) {
+    let pivot = col;
+    for (let row = col + 1; row < terms; row++) if (Math.abs(a[row * terms + col]!) > Math.abs(a[pivot * terms + col]!)) pivot = row;
+    if (!(Math.abs(a[pivot * terms + col]!) > 1e-12)) return false;
+    if (pivot !== col) {
+      for (let k = 0; k < terms; k++) {
+        const t = a[col * terms + k]!;
+        a[col * terms + k] = a[pivot * terms + k]!;
+        a[pivot * terms + k] = t;
+      }
+      const t = b[col]!;
+      b[col] = b[pivot]!;
+      b[pivot] = t;
+    }
+    for (let row = 0; row < terms; row++) {
+      if (row === col) continue;
+      const f = a[row * terms + col]! / a[col * terms + col]!;
+      if (f === 0) continue;
+      for (let k = col; k < terms; k++) a[row * terms + k]! -= f * a[col * terms + k]!;
+      b[row]! -= f * b[col]!;
+    }
+  }
+  for (let row = 0; row < terms; row++) b[row] = b[row]! / a[row * terms + row]!;
+  return true;
+}
+
+/** The surface's level at (col, row), without the margin. */
+export function bottomLevel(s: BottomSurface, col: number, row: number): number {
+  const u = (col - s.x) / s.scale;
+  const v = (row - s.y) / s.scale;
+  const c = s.c;
+  return c[0]! + c[1]! * u + c[2]! * v + c[3]! * u * u + c[4]! * u * v + c[5]! * v * v;
+}
+
+/**
+ * The surface fitted to the background's mean level over the channels, on every `stride`-th pixel
+ * of every `stride`-th row inside `spans` (per row, the half-open column range searched); null
+ * when too few pixels are searched.
+ */
+export function fitBottomSurface(background: Uint8Array, width: number, height: number, spans: Int32Array, stride: number): BottomSurface | null {
+  const cols: number[] = [];
+  const rows: number[] = [];
+  const levels: number[] = [];
+  for (let row = 0; row < height; row += stride) {
+    for (let col = spans[2 * row]!; col < spans[2 * row + 1]!; col += stride) {
+      const q = 3 * (row * width + col);
+      cols.push(col);
+      rows.push(row);
+      levels.push((background[q]! + background[q + 1]! + background[q + 2]!) / 3);
+    }
+  }
+  const count = levels.length;
+  if (count < 4 * terms) return null;
+  const x = cols.reduce((s, v) => s + v, 0) / count;
+  const y = rows.reduce((s, v) => s + v, 0) / count;
+  const scale = Math.max(1, Math.max(width, height) / 2);
+  const a = new Float64Array(terms * terms);
+  const b = new Float64Array(terms);
+  const f = new Float64Array(terms);
+  const residuals = new Float64Array(count);
+  // A start that lines and glare do not move: the median level, and the median distance from it.
+  const sorted = Float64Array.from(levels).sort();
+  const median = sorted[count >> 1]!;
+  for (let i = 0; i < count; i++) residuals[i] = Math.abs(levels[i]! - median);
+  let surface: BottomSurface = { x, y, scale, c: Float64Array.of(median, 0, 0, 0, 0, 0), margin: 0 };
+  let limit = outlierWidths * Math.max(minWidth, 1.4826 * residuals.sort()[count >> 1]!);
+  surface.margin = limit;
+  for (let round = 0; round <= rounds; round++) {
+    a.fill(0);
+    b.fill(0);
+    let used = 0;
+    for (let i = 0; i < count; i++) {
+      if (Math.abs(levels[i]! - bottomLevel(surface, cols[i]!, rows[i]!)) > limit) continue;
+      basis((cols[i]! - x) / scale, (rows[i]! - y) / scale, f);
+      for (let j = 0; j < terms; j++) {
+        b[j]! += f[j]! * levels[i]!;
+        for (let k = 0; k < terms; k++) a[j * terms + k]! += f[j]! * f[k]!;
+      }
+      used++;
+    }
+    if (used < 4 * terms || !solve(a, b)) break;
+    const next: BottomSurface = { x, y, scale, c: Float64Array.from(b), margin: 0 };
+    // The robust width of the residuals below and near the surface: the median absolute residual
+    // of the samples not left out, × 1.4826.
+    let n = 0;
+    for (let i = 0; i < count; i++) {
+      const r = levels[i]! - bottomLevel(next, cols[i]!, rows[i]!);
+      if (Math.abs(r) <= limit) residuals[n++] = Math.abs(r);
+    }
+    const width = Math.max(minWidth, 1.4826 * residuals.subarray(0, n).sort()[n >> 1]!);
+    limit = outlierWidths * width;
+    next.margin = limit;
+    surface = next;
+  }
+  return surface;
+}

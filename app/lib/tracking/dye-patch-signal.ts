@@ -1,0 +1,138 @@
+/**
+ * A dye patch's signal at each pixel of one frame, for dye-centre.ts: the difference from the
+ * background over the bottom's level (dye-signal.ts, dye-bottom.ts), projected on the patch's own
+ * direction, its brightness part held within a slack of what its colour part says, worked out once
+ * per pixel per measurement; and which pixels are clipped, with the signal at a point between
+ * pixels for a clipped pixel's mirror image.
+ */
+import { bottomLevel, fitBottomSurface } from "./dye-bottom";
+import { inverseLevel } from "./dye-signal";
+
+/** The bottom's surface is fitted on every 8th pixel of every 8th row. */
+const surfaceStride = 8;
+/** A pixel with a channel at or above this is clipped (saturated glare): it tells nothing of the dye. */
+const clippedLevel = 250;
+
+export interface PatchSignal {
+  /** The frame and background measured next; the background's divisors are made when it is new. */
+  useFrame(image: Uint8Array, background: Uint8Array): void;
+  /** The difference per channel over the (capped) background level at pixel `p`, into `out`. */
+  difference(p: number, out: Float64Array): void;
+  /**
+   * A new measurement: the signal is b·m' + c·a, with a the colour part along `hue` (unit, summing
+   * to zero), m the brightness part (the channels' mean) and m' = m held within `slack` of
+   * `brightPerColour`·a. Signals worked out before belong to another measurement.
+   */
+  aim(hue: Float64Array, b: number, c: number, brightPerColour: number, slack: number): void;
+  /** The signal at pixel `p`. */
+  at(p: number): number;
+  /** The signal at pixel `p`, worked out once per measurement. */
+  once(p: number): number;
+  /** Whether a pixel lies outside the frame or is clipped in some channel. */
+  clipped(col: number, row: number): boolean;
+  /** The signal at a point between pixel centres (bilinear); null when one of the four pixels round it is clipped. */
+  mirrored(atX: number, atY: number): number | null;
+}
+
+/** For frames of one size; `spans` holds, per row, the half-open column range searched. */
+export function createPatchSignal(width: number, height: number, spans: Int32Array): PatchSignal {
+  let img: Uint8Array = new Uint8Array(0);
+  let bg: Uint8Array = new Uint8Array(0);
+  const change = new Float64Array(3);
+  const hue = new Float64Array(3);
+  let brightCoefficient = 0;
+  let colourCoefficient = 1;
+  let brightPerColour = 0;
+  let brightSlack = Infinity;
+  // The window's passes visit mostly the same pixels, and a pixel's signal is fixed for the
+  // measurement: each is worked out once (`stamp` says for which measurement).
+  const signals = new Float64Array(width * height);
+  const stamp = new Uint32Array(width * height);
+  let measurement = 0;
+  /**
+   * Per pixel, 1 over the background's level, taken as at most the bottom's (dye-signal.ts,
+   * dye-bottom.ts): made once per background array (the tracking worker hands the detector the
+   * same array for the same background, and one that changes must be a new array, as for the
+   * threshold's sums).
+   */
+  let levelsOf: Uint8Array | null = null;
+  const inverseLevels = new Float32Array(width * height);
+
+  function makeLevels(): void {
+    const surface = fitBottomSurface(bg, width, height, spans, surfaceStride);
+    for (let row = 0, p = 0; row < height; row++) {
+      for (let col = 0; col < width; col++, p++) {
+        const cap = surface ? bottomLevel(surface, col, row) + surface.margin : Infinity;
+        inverseLevels[p] = inverseLevel(bg[3 * p]!, bg[3 * p + 1]!, bg[3 * p + 2]!, cap);
+      }
+    }
+  }
+
+  function difference(p: number, out: Float64Array): void {
+    const q = 3 * p;
+    const scale = inverseLevels[p]!;
+    out[0] = (img[q]! - bg[q]!) * scale;
+    out[1] = (img[q + 1]! - bg[q + 1]!) * scale;
+    out[2] = (img[q + 2]! - bg[q + 2]!) * scale;
+  }
+
+  // White glare the background lacks adds to the brightness alone, a line or shadow it lacks takes
+  // from it: beyond the slack a pixel's brightness tells of something other than the dye.
+  function at(p: number): number {
+    difference(p, change);
+    const mean = (change[0]! + change[1]! + change[2]!) / 3;
+    const along = change[0]! * hue[0]! + change[1]! * hue[1]! + change[2]! * hue[2]!;
+    const expected = brightPerColour * along;
+    const bright = Math.min(expected + brightSlack, Math.max(expected - brightSlack, mean));
+    return brightCoefficient * bright + colourCoefficient * along;
+  }
+
+  function once(p: number): number {
+    if (stamp[p] === measurement) return signals[p]!;
+    const s = at(p);
+    signals[p] = s;
+    stamp[p] = measurement;
+    return s;
+  }
+
+  function clipped(col: number, row: number): boolean {
+    if (col < 0 || col >= width || row < 0 || row >= height) return true;
+    const q = 3 * (row * width + col);
+    return img[q]! >= clippedLevel || img[q + 1]! >= clippedLevel || img[q + 2]! >= clippedLevel;
+  }
+
+  return {
+    useFrame(image, background) {
+      img = image;
+      bg = background;
+      if (background !== levelsOf) {
+        levelsOf = background;
+        makeLevels();
+      }
+    },
+    difference,
+    aim(direction, b, c, perColour, slack) {
+      hue.set(direction);
+      brightCoefficient = b;
+      colourCoefficient = c;
+      brightPerColour = perColour;
+      brightSlack = slack;
+      measurement = measurement === 0xffffffff ? 1 : measurement + 1;
+      if (measurement === 1) stamp.fill(0);
+    },
+    at,
+    once,
+    clipped,
+    mirrored(atX, atY) {
+      const c = Math.floor(atX);
+      const r = Math.floor(atY);
+      if (clipped(c, r) || clipped(c + 1, r) || clipped(c, r + 1) || clipped(c + 1, r + 1)) return null;
+      const fx = atX - c;
+      const fy = atY - r;
+      const p = r * width + c;
+      const top = (1 - fx) * once(p) + fx * once(p + 1);
+      const under = (1 - fx) * once(p + width) + fx * once(p + width + 1);
+      return (1 - fy) * top + fy * under;
+    },
+  };
+}

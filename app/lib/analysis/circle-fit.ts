@@ -4,6 +4,7 @@
  * Levenberg–Marquardt, which minimises the sum of squared distances from the points to the circle.
  */
 import { leastSquares } from "./regression";
+import { solveLinear } from "../linear-solve";
 
 export interface PlanePoint {
   x: number;
@@ -56,28 +57,6 @@ function geometricCost(points: readonly PlanePoint[], c: Circle): number {
   return s;
 }
 
-/** Solve a 3×3 system by Gaussian elimination with partial pivoting; null if singular. */
-function solve3(a: number[][], b: number[]): number[] | null {
-  const m = a.map((row, i) => [...row, b[i]!]);
-  for (let c = 0; c < 3; c++) {
-    let piv = c;
-    for (let r = c + 1; r < 3; r++) if (Math.abs(m[r]![c]!) > Math.abs(m[piv]![c]!)) piv = r;
-    if (Math.abs(m[piv]![c]!) < 1e-300) return null;
-    [m[c], m[piv]] = [m[piv]!, m[c]!];
-    for (let r = c + 1; r < 3; r++) {
-      const factor = m[r]![c]! / m[c]![c]!;
-      for (let k = c; k < 4; k++) m[r]![k] = m[r]![k]! - factor * m[c]![k]!;
-    }
-  }
-  const x = [0, 0, 0];
-  for (let r = 2; r >= 0; r--) {
-    let s = m[r]![3]!;
-    for (let k = r + 1; k < 3; k++) s -= m[r]![k]! * x[k]!;
-    x[r] = s / m[r]![r]!;
-  }
-  return x.every(Number.isFinite) ? x : null;
-}
-
 /**
  * Geometric circle fit by Levenberg–Marquardt on (cx, cy, r), residuals dᵢ = ‖pᵢ − c‖ − r.
  * Starts from the algebraic fit unless a start is given. Null when the points fit no circle
@@ -118,9 +97,10 @@ export function fitCircle(points: readonly PlanePoint[], start?: Circle): Circle
     let improved = false;
     for (let attempt = 0; attempt < 30; attempt++) {
       const damped = jtj.map((row, a) => row.map((v, b) => (a === b ? v * (1 + lambda) : v)));
-      const step = solve3(
-        damped,
+      const step = solveLinear(
+        damped.flat(),
         jtd.map((v) => -v),
+        3,
       );
       if (!step) {
         lambda *= 10;

@@ -15,6 +15,7 @@
  * is the Fisher matrix's inverse scaled by the residual's variance (Gauss–Newton's covariance,
  * e.g. Press et al. 2007, Numerical Recipes, §15.5).
  */
+import { invertMatrix, solveLinear } from "../linear-solve";
 
 export interface DiscFitInput {
   /** One channel, row-major, `width` × `height`. */
@@ -206,7 +207,7 @@ export function fitDisc(input: DiscFitInput): DiscFit | null {
     // A face at white stays at white: the camera shows nothing brighter, so F is held there
     // unless the pixels ask for a darker face.
     if (pinned && g[2]! < 0) pinned = false;
-    let step = pinned ? null : solve(a, g, n);
+    let step = pinned ? null : solveLinear(a, g, n);
     if (step && f + step[2]! > 255) {
       pinned = true;
       step = null;
@@ -214,7 +215,7 @@ export function fitDisc(input: DiscFitInput): DiscFit | null {
     if (pinned) {
       f = 255;
       const reduced = withoutFace(a, g, n);
-      const part = solve(reduced.a, reduced.g, n - 1);
+      const part = solveLinear(reduced.a, reduced.g, n - 1);
       step = part && Float64Array.from([part[0]!, part[1]!, 0, ...(n === 4 ? [part[2]!] : [])]);
     }
     if (!step) return null;
@@ -237,7 +238,7 @@ export function fitDisc(input: DiscFitInput): DiscFit | null {
     rise += s * (f - q.b);
   }
   const free = pinned ? n - 1 : n;
-  const inverse = pinned ? invert(withoutFace(a, g, n).a, free) : invert(a, n);
+  const inverse = pinned ? invertMatrix(withoutFace(a, g, n).a, free) : invertMatrix(a, n);
   if (!inverse) return null;
   const variance = weightedSq / (counted - free);
   return {
@@ -267,42 +268,4 @@ function withoutFace(a: Float64Array, g: Float64Array, n: number): { a: Float64A
     });
   });
   return { a: ra, g: rg };
-}
-
-/** Solves the n × n symmetric system a·x = g (Gaussian elimination with partial pivoting). */
-function solve(a: Float64Array, g: Float64Array, n: number): Float64Array | null {
-  const m = Float64Array.from(a);
-  const x = Float64Array.from(g);
-  for (let col = 0; col < n; col++) {
-    let pivot = col;
-    for (let row = col + 1; row < n; row++) if (Math.abs(m[row * n + col]!) > Math.abs(m[pivot * n + col]!)) pivot = row;
-    if (!(Math.abs(m[pivot * n + col]!) > 1e-12)) return null;
-    if (pivot !== col) {
-      for (let k = 0; k < n; k++) [m[col * n + k], m[pivot * n + k]] = [m[pivot * n + k]!, m[col * n + k]!];
-      [x[col], x[pivot]] = [x[pivot]!, x[col]!];
-    }
-    for (let row = col + 1; row < n; row++) {
-      const factor = m[row * n + col]! / m[col * n + col]!;
-      for (let k = col; k < n; k++) m[row * n + k] = m[row * n + k]! - factor * m[col * n + k]!;
-      x[row] = x[row]! - factor * x[col]!;
-    }
-  }
-  for (let row = n - 1; row >= 0; row--) {
-    let sum = x[row]!;
-    for (let k = row + 1; k < n; k++) sum -= m[row * n + k]! * x[k]!;
-    x[row] = sum / m[row * n + row]!;
-  }
-  return x;
-}
-
-function invert(a: Float64Array, n: number): Float64Array | null {
-  const out = new Float64Array(n * n);
-  for (let k = 0; k < n; k++) {
-    const e = new Float64Array(n);
-    e[k] = 1;
-    const col = solve(a, e, n);
-    if (!col) return null;
-    for (let row = 0; row < n; row++) out[row * n + k] = col[row]!;
-  }
-  return out;
 }

@@ -8,6 +8,7 @@
  * the background holds lie under the surface and stay as they are. dye-centre.ts takes a
  * background brighter than the surface (plus its noise margin) as the surface's level.
  */
+import { solveLinear } from "../linear-solve";
 
 /** Quadratic in the image's coordinates about (x, y), scaled by `scale`: c0 + c1·u + c2·v + c3·u² + c4·u·v + c5·v². */
 export interface BottomSurface {
@@ -34,34 +35,6 @@ function basis(u: number, v: number, out: Float64Array): void {
   out[3] = u * u;
   out[4] = u * v;
   out[5] = v * v;
-}
-
-/** Solves the 6 × 6 system `a`·x = `b` in place (Gaussian elimination with pivoting); false when singular. */
-function solve(a: Float64Array, b: Float64Array): boolean {
-  for (let col = 0; col < terms; col++) {
-    let pivot = col;
-    for (let row = col + 1; row < terms; row++) if (Math.abs(a[row * terms + col]!) > Math.abs(a[pivot * terms + col]!)) pivot = row;
-    if (!(Math.abs(a[pivot * terms + col]!) > 1e-12)) return false;
-    if (pivot !== col) {
-      for (let k = 0; k < terms; k++) {
-        const t = a[col * terms + k]!;
-        a[col * terms + k] = a[pivot * terms + k]!;
-        a[pivot * terms + k] = t;
-      }
-      const t = b[col]!;
-      b[col] = b[pivot]!;
-      b[pivot] = t;
-    }
-    for (let row = 0; row < terms; row++) {
-      if (row === col) continue;
-      const f = a[row * terms + col]! / a[col * terms + col]!;
-      if (f === 0) continue;
-      for (let k = col; k < terms; k++) a[row * terms + k]! -= f * a[col * terms + k]!;
-      b[row]! -= f * b[col]!;
-    }
-  }
-  for (let row = 0; row < terms; row++) b[row] = b[row]! / a[row * terms + row]!;
-  return true;
 }
 
 /** The surface's level at (col, row), without the margin. */
@@ -118,8 +91,9 @@ export function fitBottomSurface(background: Uint8Array, width: number, height: 
       }
       used++;
     }
-    if (used < 4 * terms || !solve(a, b)) break;
-    const next: BottomSurface = { x, y, scale, c: Float64Array.from(b), margin: 0 };
+    const solved = used < 4 * terms ? null : solveLinear(a, b, terms);
+    if (!solved) break;
+    const next: BottomSurface = { x, y, scale, c: solved, margin: 0 };
     // The robust width of the residuals below and near the surface: the median absolute residual
     // of the samples not left out, × 1.4826.
     let n = 0;

@@ -5,32 +5,10 @@
  */
 import { mean } from "simple-statistics";
 import type { FrameDetections, Track, TrackPoint, TrackQuality, TrackingQuality } from "./types";
+import { solveLinear } from "../linear-solve";
 
 const window = 7;
 const minWindow = 5;
-
-/** Solves the 3×3 system a·x = b in place (Gaussian elimination with partial pivoting). */
-function solve3(a: number[][], b: number[]): number[] | null {
-  for (let c = 0; c < 3; c++) {
-    let pivot = c;
-    for (let r = c + 1; r < 3; r++) if (Math.abs(a[r]![c]!) > Math.abs(a[pivot]![c]!)) pivot = r;
-    if (Math.abs(a[pivot]![c]!) < 1e-12) return null;
-    [a[c], a[pivot]] = [a[pivot]!, a[c]!];
-    [b[c], b[pivot]] = [b[pivot]!, b[c]!];
-    for (let r = c + 1; r < 3; r++) {
-      const m = a[r]![c]! / a[c]![c]!;
-      for (let k = c; k < 3; k++) a[r]![k]! -= m * a[c]![k]!;
-      b[r]! -= m * b[c]!;
-    }
-  }
-  const x = [0, 0, 0];
-  for (let r = 2; r >= 0; r--) {
-    let s = b[r]!;
-    for (let k = r + 1; k < 3; k++) s -= a[r]![k]! * x[k]!;
-    x[r] = s / a[r]![r]!;
-  }
-  return x;
-}
 
 /**
  * Sum of squared 2-D residuals and their count. Each residual is divided by √(1 − h), h the
@@ -58,7 +36,7 @@ function residuals(points: readonly TrackPoint[]): { sum: number; count: number 
     ];
     const ui = (points[i]!.t - tMean) / span;
     const row = [1, ui, ui * ui];
-    const inverseRow = solve3(normal(), [...row]);
+    const inverseRow = solveLinear(normal().flat(), row, 3);
     if (!inverseRow) continue;
     const leverage = row[0]! * inverseRow[0]! + row[1]! * inverseRow[1]! + row[2]! * inverseRow[2]!;
     if (leverage >= 1 - 1e-9) continue;
@@ -70,7 +48,7 @@ function residuals(points: readonly TrackPoint[]): { sum: number; count: number 
         rhs[1] += p[axis] * u[j]!;
         rhs[2] += p[axis] * u[j]! * u[j]!;
       });
-      const c = solve3(normal(), rhs);
+      const c = solveLinear(normal().flat(), rhs, 3);
       if (!c) continue;
       const fitted = c[0]! + c[1]! * ui + c[2]! * ui * ui;
       r2 += (points[i]![axis] - fitted) ** 2;

@@ -1,8 +1,8 @@
 /**
  * Where to search a frame first, once the tracers are being followed: a window around where each
  * one is heading, from frames already searched. The detector searches only the windows, and the
- * whole frame when a window comes back empty or a find sits near a window's edge (threshold.ts),
- * so a window never changes what is found in it, only what is not looked at: the rest of the
+ * whole frame when a window comes back empty or a find sits near a window's edge (threshold.ts;
+ * for dye once widening the search round it has not settled it), so a window never changes what is found in it, only what is not looked at: the rest of the
  * frame. A tracer that comes into view there is caught by the frames searched whole: every
  * `wholeSearchEvery`-th frame, and every frame after one of those found more than the windows did,
  * until the newcomer is followed too.

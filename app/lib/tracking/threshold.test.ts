@@ -1,7 +1,8 @@
 /**
  * The dye threshold at reduced resolution keeps the colour background's block sums from one frame
  * to the next: what it marks must be what a fresh threshold marks, for the same background and for
- * a new one.
+ * a new one. A windowed search that meets a find near its edge widens round it instead of giving
+ * the frame up, and then finds there what the whole search finds.
  */
 import { describe, expect, it } from "vitest";
 import { defaultDyeColour, type DetectionPlan } from "./plan";
@@ -78,5 +79,59 @@ describe("the dye threshold at reduced resolution", () => {
     // The patches are found, and the tinted background marks differently from the still one.
     expect(marks).toBeGreaterThan(0);
     expect(marked(other, frames[0]!).mask).not.toEqual(marked(still, frames[0]!).mask);
+  });
+});
+
+describe("a windowed dye search beside a dark still mark", () => {
+  const side = 320;
+
+  /** An untilted full-resolution dye plan over a `wide` × 320 px frame, the tank covering it all. */
+  function fullPlan(wide: number): { plan: DetectionPlan; spans: Int32Array } {
+    const spans = new Int32Array(side * 2);
+    for (let r = 0; r < side; r++) spans[2 * r + 1] = wide;
+    const crop = { left: 0, top: 0, width: wide, height: side };
+    return { plan: { ...plan, frameWidth: wide, frameHeight: side, crop, shrink: 1, smallWidth: wide, smallHeight: side }, spans };
+  }
+
+  /** Exact images: pale water, and on the frame discs of the given colours (a dye patch, a dark brownish mark). */
+  function image(wide: number, discs: { x: number; y: number; r: number; rgb: readonly [number, number, number] }[]): Uint8Array {
+    const data = new Uint8Array(wide * side * 3);
+    for (let y = 0; y < side; y++) {
+      for (let x = 0; x < wide; x++) {
+        const disc = discs.find((d) => Math.hypot(x - d.x, y - d.y) < d.r);
+        data.set(disc ? disc.rgb : [180, 182, 178], 3 * (y * wide + x));
+      }
+    }
+    return data;
+  }
+  const patch = { x: 160, y: 160, r: 6, rgb: [90, 60, 170] as const };
+  const mark = [60, 52, 50] as const;
+
+  function search(wide: number, frame: Uint8Array, windowed: boolean) {
+    const full = fullPlan(wide);
+    const threshold = createThreshold(full.plan, full.spans, 5);
+    const mask = new Uint8Array(wide * side);
+    const tiles = windowed ? threshold.windowTiles([{ x: 160, y: 160, reach: 20 }]) : undefined;
+    const regions = threshold.run(mask, { data: frame }, image(wide, []), 0.005, 0.004, tiles);
+    return { mask, regions };
+  }
+
+  it("finds the patch and the mark two tiles off the window's edge as the whole search does, instead of giving up", () => {
+    // The window's tiles run from column 2 to 7 (32 px tiles, two of margin); the mark lies in column 2.
+    const frame = image(side, [patch, { x: 80, y: 160, r: 8, rgb: mark }]);
+    const whole = search(side, frame, false);
+    expect(whole.regions).toHaveLength(2);
+    const windowed = search(side, frame, true);
+    expect(windowed.regions).toEqual(whole.regions);
+    expect(windowed.mask).toEqual(whole.mask);
+  });
+
+  it("gives the frame up to the whole search when what lies at the edge runs on past three widenings", () => {
+    // A dark line across 20 tiles: each widening reaches two tiles further along it.
+    const wide = 640;
+    const line = Array.from({ length: 80 }, (_, i) => ({ x: 4 + 8 * i, y: 160, r: 5, rgb: mark }));
+    const frame = image(wide, [patch, ...line]);
+    expect(search(wide, frame, true).regions).toBeNull();
+    expect(search(wide, frame, false).regions).toHaveLength(1);
   });
 });

@@ -13,7 +13,10 @@
  * long as no tile holding a find lies within two tiles of the windows' edge: such a tile and its
  * neighbours were searched in full, so its group of tiles, the region around it (two pixels past
  * the tiles) and the pixel beyond that which the 3 × 3 cleaning reads are the same either way.
- * Otherwise the windows are not trusted and the caller searches the whole frame.
+ * Otherwise, for dye, the search widens by two tiles round each tile of such a group and runs again
+ * (a dark mark on the turning table beside a window is such a group far more often than the patch
+ * itself: Decision 82), up to `maxWidenings` times; after that, and at once for floats, the windows
+ * are not trusted and the caller searches the whole frame.
  */
 import { relativeChangeAbove } from "./dye-signal";
 import { hsv, hueInRange } from "./hsv";
@@ -27,6 +30,8 @@ const tileShift = 5;
 const minContrast = 5;
 /** Lowest change of colour against the background that counts for dye (2 %), likewise. */
 export const minColourChange = 0.02;
+/** How many times a windowed dye search may widen round finds near its edge before the caller searches the whole frame. */
+const maxWidenings = 3;
 
 /** A square of the frame to search: centre and half-side, full-frame px. */
 export interface SearchWindow {
@@ -44,8 +49,9 @@ export interface Threshold {
    * Fills `mask` (the detection image, zeroed first) and returns the regions worth cleaning:
    * groups of touching tiles holding at least two neighbouring pixels above the threshold. Stray
    * noise pixels set no tile, so the OpenCV work stays near the tracer however large the tank
-   * is. With `tiles` (from `windowTiles`) only those tiles are searched, and null comes back if
-   * a find lies too close to their edge to be sure of it. For dye, `background` is the stack's
+   * is. With `tiles` (from `windowTiles`) only those tiles are searched (for dye, widened round
+   * finds near their edge), and null comes back if a find still lies too close to their edge to be
+   * sure of it. For dye, `background` is the stack's
    * colour background (or null: the colour range alone), and `offset` and `sigma` describe the
    * change of colour (dye-signal.ts) over the tank.
    */
@@ -147,7 +153,33 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     return true;
   }
 
+  /** Tiles a windowed pass found it must search too: those within two of a find near the edge. */
+  const wanted = new Uint8Array(tilesX * tilesY);
+
+  /** Marks every tile within two of `t` in `wanted`. */
+  function want(t: number): void {
+    const tx = t % tilesX;
+    const ty = (t / tilesX) | 0;
+    for (let ny = Math.max(0, ty - 2); ny <= Math.min(tilesY - 1, ty + 2); ny++) {
+      wanted.fill(1, ny * tilesX + Math.max(0, tx - 2), ny * tilesX + Math.min(tilesX - 1, tx + 2) + 1);
+    }
+  }
+
   function run(mask: Uint8Array, image: ThresholdImage, background: Uint8Array | null, offset: number, sigma: number, tiles?: Uint8Array): CvRect[] | null {
+    if (!tiles) return pass(mask, image, background, offset, sigma);
+    // A find near the windows' edge widens the search round it, until its group of tiles lies deep inside.
+    const searched = tiles.slice();
+    for (let round = 0, last = dye ? maxWidenings : 0; round <= last; round++) {
+      wanted.fill(0);
+      const regions = pass(mask, image, background, offset, sigma, searched);
+      if (regions) return regions;
+      for (let t = 0; t < searched.length; t++) searched[t] = searched[t]! | wanted[t]!;
+    }
+    return null;
+  }
+
+  /** One threshold pass over `tiles` (or the whole frame); null, with `wanted` filled, if a find lies too close to their edge. */
+  function pass(mask: Uint8Array, image: ThresholdImage, background: Uint8Array | null, offset: number, sigma: number, tiles?: Uint8Array): CvRect[] | null {
     const m = mask;
     const img = image.data;
     m.fill(0);
@@ -272,6 +304,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     }
     if (!any) return [];
     const regions: CvRect[] = [];
+    let short = false;
     seen.fill(0);
     for (let start = 0; start < tileHits.length; start++) {
       if (!tileHits[start] || seen[start]) continue;
@@ -283,7 +316,11 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
       seen[start] = 1;
       while (queue.length > 0) {
         const t = queue.pop() as number;
-        if (tiles && !deepInside(t, tiles)) return null;
+        if (tiles && !deepInside(t, tiles)) {
+          if (!dye) return null;
+          short = true;
+          want(t);
+        }
         const tx = t % tilesX;
         const ty = (t / tilesX) | 0;
         tx0 = Math.min(tx0, tx);
@@ -310,7 +347,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
       const bottom = Math.min(sh, (ty1 + 1) * tileSize + 2);
       regions.push({ x, y, width: right - x, height: bottom - y });
     }
-    return regions;
+    return short ? null : regions;
   }
 
   function windowTiles(windows: readonly SearchWindow[]): Uint8Array {

@@ -13,6 +13,8 @@ test("the calibrations list filters by kind, item, standing and text, with the f
   // A choice applies at once and lands in the address.
   await page.getByLabel("Standing").selectOption("draft");
   await expect(page).toHaveURL(/[?&]standing=draft\b/);
+  // The address changes as the navigation commits; the filtered list is read once it is drawn.
+  await expect(page.getByRole("heading", { name: new RegExp(`^\\d+ of ${all} records match$`) })).toBeVisible();
   const drafts = await rows(page).count();
   expect(drafts).toBeGreaterThan(0);
   expect(drafts).toBeLessThan(all);
@@ -40,6 +42,7 @@ test("the calibrations list filters by kind, item, standing and text, with the f
   await page.getByLabel("Text in item, person or notes").fill("TABLE A");
   await page.getByRole("button", { name: "Search" }).click();
   await expect(page).toHaveURL(/[?&]q=TABLE\+A\b/);
+  await expect(page.getByRole("heading", { name: new RegExp(`^\\d+ of ${all} records match$`) })).toBeVisible();
   expect(await rows(page).count()).toBeGreaterThan(0);
   for (const row of await rows(page).all()) await expect(row).toContainText("Table A");
   await page.getByLabel("Text in item, person or notes").fill("no such words anywhere");

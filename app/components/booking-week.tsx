@@ -1,4 +1,4 @@
-import { useMemo, type CSSProperties, type KeyboardEvent, type ReactNode } from "react";
+import { useEffect, useMemo, useRef, type CSSProperties, type KeyboardEvent, type ReactNode } from "react";
 import { Calendar, dateFnsLocalizer, type Components, type Event as CalendarEvent, type EventWrapperProps } from "react-big-calendar";
 import { format, getDay, parse, startOfWeek } from "date-fns";
 import { enGB } from "date-fns/locale";
@@ -136,8 +136,18 @@ export function BookingWeek({ bookings, week, itemId }: { bookings: WeekBooking[
     [bookings, zone],
   );
   const date = useMemo(() => new Date(`${week}T12:00:00`), [week]);
+  // The library's hours grid scrolls on its own; in a week without bookings nothing in it takes the
+  // keyboard's focus, so the grid itself does, or a keyboard could not scroll to the evening.
+  const box = useRef<HTMLDivElement>(null);
+  useEffect(() => {
+    const hours = box.current?.querySelector<HTMLElement>(".rbc-time-content");
+    if (!hours) return;
+    hours.tabIndex = 0;
+    hours.setAttribute("role", "region");
+    hours.setAttribute("aria-label", "Hours of the week");
+  }, [week, events]);
   return (
-    <div className="tankside-week" data-testid="booking-week">
+    <div className="tankside-week" data-testid="booking-week" ref={box}>
       {/* Seven days need more than a phone's width: the week scrolls sideways in its own box there. */}
       <ScrollRegion label="Week of bookings">
         <div className="min-w-[46rem] md:min-w-0">

@@ -127,8 +127,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       for (let col = a; col < b; col++) {
         // A clipped pixel's colour is not the dye's.
         if (signal.clipped(col, row)) continue;
-        const q = 3 * (row * width + col);
-        signal.difference(q / 3, change);
+        signal.difference(row * width + col, change);
         sum[0]! += change[0]!;
         sum[1]! += change[1]!;
         sum[2]! += change[2]!;

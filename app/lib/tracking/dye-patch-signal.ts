@@ -6,7 +6,7 @@
  * pixels for a clipped pixel's mirror image.
  */
 import { bottomLevel, fitBottomSurface } from "./dye-bottom";
-import { inverseLevel } from "./dye-signal";
+import { inverseLevel, levelDifference } from "./dye-signal";
 
 /** The bottom's surface is fitted on every 8th pixel of every 8th row. */
 const surfaceStride = 8;
@@ -70,10 +70,7 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
 
   function difference(p: number, out: Float64Array): void {
     const q = 3 * p;
-    const scale = inverseLevels[p]!;
-    out[0] = (img[q]! - bg[q]!) * scale;
-    out[1] = (img[q + 1]! - bg[q + 1]!) * scale;
-    out[2] = (img[q + 2]! - bg[q + 2]!) * scale;
+    levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, out, inverseLevels[p]);
   }
 
   // White glare the background lacks adds to the brightness alone, a line or shadow it lacks takes

@@ -11,7 +11,7 @@
  * shadow on the bottom, lit by only part of the lamps (I = B·(1 − f + f·T)), gives less: that is
  * how a patch is told from its shadow (detect.ts). White glare on top of the dye weakens it.
  *
- * *Centring a patch* (levelDifference, differenceAlong): the difference itself per channel, over
+ * *Centring a patch* (levelDifference): the difference itself per channel, over
  * the background's mean level, projected on the patch's own direction (dye-centre.ts). Its part
  * that sums to zero over the channels, the change of colour, is untouched by white glare
  * (I = B + g adds the same g to every channel, on top of the dye too) and, on a grey bottom, by
@@ -52,17 +52,24 @@ export function inverseLevel(b0: number, b1: number, b2: number, cap = Infinity)
   return 1 / levelOf(b0, b1, b2, cap);
 }
 
-/** The pixel's difference from the background per channel over the background's mean level, into `out`. */
-export function levelDifference(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, out: Float64Array): void {
-  const scale = 1 / levelOf(b0, b1, b2);
+/**
+ * The pixel's difference from the background per channel over the background's mean level, into
+ * `out`; `scale` is 1 over that level, when made beforehand (dye-patch-signal.ts makes it once per
+ * background, capped at the bottom's level).
+ */
+export function levelDifference(
+  i0: number,
+  i1: number,
+  i2: number,
+  b0: number,
+  b1: number,
+  b2: number,
+  out: Float64Array,
+  scale = 1 / levelOf(b0, b1, b2),
+): void {
   out[0] = (i0 - b0) * scale;
   out[1] = (i1 - b1) * scale;
   out[2] = (i2 - b2) * scale;
-}
-
-/** levelDifference projected on a unit direction `u`. */
-export function differenceAlong(i0: number, i1: number, i2: number, b0: number, b1: number, b2: number, u: Float64Array): number {
-  return ((i0 - b0) * u[0]! + (i1 - b1) * u[1]! + (i2 - b2) * u[2]!) / levelOf(b0, b1, b2);
 }
 
 /**

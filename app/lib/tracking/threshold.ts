@@ -155,6 +155,8 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
 
   /** Tiles a windowed pass found it must search too: those within two of a find near the edge. */
   const wanted = new Uint8Array(tilesX * tilesY);
+  /** The tiles a windowed search covers, widened round such finds (reused from frame to frame). */
+  const widened = new Uint8Array(tilesX * tilesY);
 
   /** Marks every tile within two of `t` in `wanted`. */
   function want(t: number): void {
@@ -168,7 +170,8 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
   function run(mask: Uint8Array, image: ThresholdImage, background: Uint8Array | null, offset: number, sigma: number, tiles?: Uint8Array): CvRect[] | null {
     if (!tiles) return pass(mask, image, background, offset, sigma);
     // A find near the windows' edge widens the search round it, until its group of tiles lies deep inside.
-    const searched = tiles.slice();
+    const searched = widened;
+    searched.set(tiles);
     for (let round = 0, last = dye ? maxWidenings : 0; round <= last; round++) {
       wanted.fill(0);
       const regions = pass(mask, image, background, offset, sigma, searched);

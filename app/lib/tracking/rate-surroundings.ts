@@ -47,7 +47,12 @@ export function createSurroundingsFollower(options: SurroundingsOptions): Surrou
     const outer = Math.min(centre.x, centre.y, image.width - 1 - centre.x, image.height - 1 - centre.y) - 1;
     const inner = Math.max(1, options.innerRadiusPx);
     if (!(outer - inner >= 3)) {
-      problem = `The tank fills the frame: no band of the surroundings shows between the tank edge (${formatNumber(inner, 3)} px from the centre) and the frame's edge (${formatNumber(Math.max(0, outer), 3)} px).`;
+      // `inner` is past the rim and wall, not the tank edge the view setup shows: say which is which.
+      problem =
+        `The tank fills the frame across its narrower side, so the rate cannot be read from the room beyond it: ` +
+        `a full ring of the surroundings would start ${formatNumber(inner, 3)} px from the centre (past the tank's rim and wall), ` +
+        `but the nearest edge of the frame is ${formatNumber(Math.max(0, outer), 3)} px away. ` +
+        `With a co-rotating camera, leave a band of the room showing all round the tank.`;
       return;
     }
     const step = Math.max(1, (outer - inner) / MAX_RINGS);

@@ -172,6 +172,8 @@ export function BookingWeek({ bookings, week, itemId }: { bookings: WeekBooking[
               timeGutterFormat: "HH:mm",
               eventTimeRangeFormat: ({ start, end }) => `${format(start, "HH:mm")}–${format(end, "HH:mm")}`,
               dayFormat: "EEE d MMM",
+              // "30 Nov – 6 Dec 2026", as the rest of the page writes days (not the library's "November 30 – December 06").
+              dayRangeHeaderFormat: ({ start, end }) => `${format(start, "d MMM")} – ${format(end, "d MMM yyyy")}`,
             }}
             messages={{ today: "This week", previous: "Previous week", next: "Next week", noEventsInRange: "No bookings this week." }}
             style={{ height: 640 }}

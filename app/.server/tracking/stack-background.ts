@@ -12,7 +12,7 @@ import type { Detection } from "../../lib/tracking/types";
 import { decodeFrame } from "./decode-frame";
 import { cancelled, searchFailed, TrackingError } from "./errors";
 import type { MisfitMeans, TiltedTurning } from "./track-worker";
-import { backgroundId, cores, runTask, threads, type TrackingPool } from "./tracking-pool";
+import { backgroundId, cores, runTask, threadShares, type TrackingPool } from "./tracking-pool";
 
 /**
  * The still background of a stack (lib/tracking/background.ts), the tracer left out of it. Samples
@@ -52,16 +52,14 @@ export async function stillBackground(
   const median = async (exclusions?: ExclusionSet, plain?: Uint8Array, from: Uint8Array = samples): Promise<Uint8Array> => {
     const out = new Uint8Array(new SharedArrayBuffer(length));
     const used = exclusions ? new Uint8Array(new SharedArrayBuffer(pixels)) : undefined;
-    const strip = Math.ceil(pixels / threads);
     await Promise.all(
-      Array.from({ length: threads }, (_, w) =>
+      threadShares(pixels).map((range) =>
         runTask(workers, {
           kind: "background",
           samples: from,
           count: indices.length,
           out,
-          from: Math.min(pixels, w * strip),
-          to: Math.min(pixels, (w + 1) * strip),
+          ...range,
           exclusions,
           used,
           channels,
@@ -127,9 +125,8 @@ async function turningModel(
   const width = plan.crop.width;
   const pixels = width * plan.crop.height;
   const misfit = new Float32Array(new SharedArrayBuffer(pixels * 4));
-  const strip = Math.ceil(pixels / threads);
   await Promise.all(
-    Array.from({ length: threads }, (_, w) =>
+    threadShares(pixels).map((range) =>
       runTask(workers, {
         kind: "misfit",
         samples,
@@ -139,8 +136,7 @@ async function turningModel(
         discs,
         out: misfit,
         stride: misfitStride,
-        from: Math.min(pixels, w * strip),
-        to: Math.min(pixels, (w + 1) * strip),
+        ...range,
       }),
     ),
   );
@@ -177,18 +173,16 @@ async function turningModel(
     turning = still;
   } else {
     const turned = new Uint8Array(new SharedArrayBuffer(samples.length));
-    const share = Math.ceil(count / threads);
     const turnedPlan = { ...plan, turn };
     await Promise.all(
-      Array.from({ length: threads }, (_, w) =>
+      threadShares(count).map((range) =>
         runTask(workers, {
           kind: "turn-back",
           samples,
           plan: turnedPlan,
           angles,
           out: turned,
-          from: Math.min(count, w * share),
-          to: Math.min(count, (w + 1) * share),
+          ...range,
         }),
       ),
     );
@@ -200,10 +194,7 @@ async function turningModel(
   const model: TurningBackground = { turn, turning, rings: factor ? new Float32Array(0) : ringMedians(turning, width, turn), pixels: shared, factor };
   // The samples' misfit against both models, split by samples between the workers (up to 0.4 s of
   // processor time a stack, off the server's main thread): each gives its means over its share.
-  const share = Math.ceil(count / threads);
-  const shares = Array.from({ length: threads }, (_, w) => ({ from: Math.min(count, w * share), to: Math.min(count, (w + 1) * share) })).filter(
-    ({ from, to }) => from < to,
-  );
+  const shares = threadShares(count).filter(({ from, to }) => from < to);
   const parts = await Promise.all(
     shares.map(
       ({ from, to }) =>

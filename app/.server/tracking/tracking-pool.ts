@@ -91,6 +91,12 @@ export function backgroundId(background: Uint8Array | null): number | undefined 
   return id;
 }
 
+/** [from, to) ranges splitting `total` items between the pool's threads; a range is empty where there are fewer items than threads. */
+export function threadShares(total: number): { from: number; to: number }[] {
+  const share = Math.ceil(total / threads);
+  return Array.from({ length: threads }, (_, w) => ({ from: Math.min(total, w * share), to: Math.min(total, (w + 1) * share) }));
+}
+
 export function runTask(workers: TrackingPool, task: TrackTask, transferList?: ArrayBuffer[]): Promise<TrackTaskResult> {
   return Promise.race([workers.piscina.run(task, { transferList }), workers.failed]);
 }

@@ -1,7 +1,7 @@
 import { Op, Transaction } from "sequelize";
 import { Calibration, Equipment, locking, sequelize } from "./db";
 import { getLabSettings, getLabTimeZone } from "./settings";
-import { fromZonedInput, systemTimeZone, zonedDay } from "~/lib/time-format";
+import { addDays, fromZonedInput, systemTimeZone, zonedDay } from "~/lib/time-format";
 import { canEditCalibration, type CurrentUser } from "./auth/permissions";
 import { calibrationEdits, noteCalibrationChange, noteCalibrationEdits } from "./calibration-history";
 import {
@@ -40,11 +40,6 @@ function dayStart(day: string, zone: string): Date {
 /** …and a due date holds through the whole of its day there. */
 function dayEnd(day: string, zone: string): Date {
   return new Date(dayStart(addDays(day, 1), zone).getTime() - 1);
-}
-/** "2026-12-03" plus n calendar days. */
-function addDays(day: string, n: number): string {
-  const [y, m, d] = day.split("-").map(Number) as [number, number, number];
-  return new Date(Date.UTC(y, m - 1, d + n)).toISOString().slice(0, 10);
 }
 /** The lab's day of an instant, "2026-12-03"; without a zone, the server's (the lab's until one is set). */
 export function toDayString(d: Date, zone: string = systemTimeZone()): string {

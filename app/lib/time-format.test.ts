@@ -1,5 +1,5 @@
 import { afterEach, describe, expect, it } from "vitest";
-import { formatDuration, fromZonedInput, isTimeZone, timeFormat, toZonedInput } from "./time-format";
+import { addDays, formatDuration, fromZonedInput, isTimeZone, mondayOf, timeFormat, toZonedInput } from "./time-format";
 
 const at = new Date("2026-12-03T08:50:00Z");
 const savedTz = process.env.TZ;
@@ -98,5 +98,15 @@ describe("durations", () => {
     expect(formatDuration(600)).toBe("10 min");
     expect(formatDuration(9000)).toBe("2.5 h");
     expect(formatDuration(null)).toBe("—");
+  });
+});
+
+describe("calendar days", () => {
+  it("adds days across a month's and a year's end, and finds the week's Monday", () => {
+    expect(addDays("2026-12-30", 3)).toBe("2027-01-02");
+    expect(addDays("2027-03-01", -1)).toBe("2027-02-28");
+    expect(mondayOf("2026-12-07")).toBe("2026-12-07");
+    expect(mondayOf("2026-12-13")).toBe("2026-12-07");
+    expect(mondayOf("2027-01-01")).toBe("2026-12-28");
   });
 });

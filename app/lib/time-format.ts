@@ -227,3 +227,15 @@ export function formatDuration(seconds: number | null | undefined): string {
   if (abs < 7200) return `${durationNumber.format(seconds / 60)} min`;
   return `${durationNumber.format(seconds / 3600)} h`;
 }
+
+/** "2026-12-03" plus n calendar days (n may be negative). */
+export function addDays(day: string, n: number): string {
+  const [y, m, d] = day.split("-").map(Number) as [number, number, number];
+  return new Date(Date.UTC(y, m - 1, d + n)).toISOString().slice(0, 10);
+}
+
+/** The Monday of a calendar day's week, "2026-12-07" for any day from the 7th to the 13th. */
+export function mondayOf(day: string): string {
+  const weekday = new Date(`${day}T12:00:00Z`).getUTCDay();
+  return addDays(day, -((weekday + 6) % 7));
+}

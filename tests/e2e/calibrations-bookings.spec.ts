@@ -30,6 +30,11 @@ test("an instructor requests a table in the browser, the lab manager approves it
   await instructorPage.getByRole("button", { name: "Request booking" }).click();
   await expect(instructorPage.getByText(/Booking #\d+ requested/)).toBeVisible();
   const id = Number(/#(\d+)/.exec((await instructorPage.getByText(/Booking #\d+ requested/).textContent())!)![1]);
+  // Sent again without a purpose: the form's errors show and the last answer gives way to them.
+  await instructorPage.getByLabel("Purpose").fill("");
+  await instructorPage.getByRole("button", { name: "Request booking" }).click();
+  await expect(instructorPage.getByLabel("Purpose")).toHaveAttribute("aria-invalid", "true");
+  await expect(instructorPage.getByText(/Booking #\d+ requested/)).toBeHidden();
 
   const toManager = await waitForMail(baseURL!, people.manager, "Booking requested: Table A (east bench)", before);
   expect(toManager.text).toContain("Evening demonstration for visitors");

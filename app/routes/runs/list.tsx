@@ -1,46 +1,21 @@
 import { useEffect, useRef, useState, type FormEvent } from "react";
 import { data, Link, useFetcher, useLocation, useSearchParams, type ShouldRevalidateFunctionArgs } from "react-router";
-import {
-  columnVisibilityFeature,
-  createColumnHelper,
-  rowPaginationFeature,
-  rowSortingFeature,
-  tableFeatures,
-  useTable,
-  type ColumnVisibilityState,
-  type PaginationState,
-  type SortingState,
-  type Updater,
-} from "@tanstack/react-table";
+import { useTable, type PaginationState, type SortingState } from "@tanstack/react-table";
 import type { Route } from "./+types/list";
 import { readForm } from "~/.server/http";
 import type { loader as rowsLoader } from "./rows";
 import { requireUser } from "~/.server/auth/permissions";
-import {
-  getRunColumnChoice,
-  listRuns,
-  RunFilterError,
-  runFilterOptions,
-  runFiltersFrom,
-  saveRunColumnChoice,
-  type RunListItem,
-  type RunPage,
-} from "~/.server/runs/queries";
+import { getRunColumnChoice, listRuns, RunFilterError, runFilterOptions, runFiltersFrom, saveRunColumnChoice, type RunPage } from "~/.server/runs/queries";
 import { Button, ButtonLink } from "~/components/ui/button";
 import { PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
-import { SelectField, TextField } from "~/components/ui/field";
-import { RunStateTag, VerdictTag } from "~/components/run-record/tags";
-import { formatNumber } from "~/lib/number-format";
-import { LabDateTime } from "~/components/lab-time";
-import { runStates, runStateLabels, tracerLabels } from "~/lib/runs";
+import { apply, noRows, runColumns, runTableFeatures, sortableRunColumns, visibilityOf } from "~/components/runs/run-table-columns";
+import { RunColumnChooser, RunFilterFields, RunsPager, RunsTable } from "~/components/runs/runs-table";
 import {
   DEFAULT_PAGE_SIZE,
-  pageSizes,
   parseRunFilters,
   runColumnChoiceSchema,
   runFiltersToSearch,
-  runSortFields,
   runTableColumns,
   type RunFilters,
   type RunSortField,
@@ -90,57 +65,6 @@ export function shouldRevalidate({ currentUrl, nextUrl, formData, defaultShouldR
   return defaultShouldRevalidate;
 }
 
-const features = tableFeatures({ columnVisibilityFeature, rowSortingFeature, rowPaginationFeature });
-const col = createColumnHelper<typeof features, RunListItem>();
-const sortable = new Set<string>(runSortFields);
-const labelOf = Object.fromEntries(runTableColumns.map((c) => [c.id, c.label])) as Record<string, string>;
-
-const columns = col.columns([
-  col.accessor("id", {
-    id: "id",
-    header: "Run",
-    enableHiding: false,
-    cell: (info) => (
-      <Link to={`/runs/${info.row.original.id}`} className="inline-flex min-h-12 items-center font-mono text-lg font-bold whitespace-nowrap">
-        {info.row.original.label}
-      </Link>
-    ),
-  }),
-  col.accessor("createdAt", { header: labelOf.createdAt, cell: (info) => <LabDateTime value={info.getValue()} /> }),
-  col.accessor((r) => r.table.name, { id: "table", header: labelOf.table, enableSorting: false }),
-  col.accessor((r) => r.tank.name, { id: "tank", header: labelOf.tank, enableSorting: false }),
-  col.accessor((r) => r.camera.name, { id: "camera", header: labelOf.camera, enableSorting: false }),
-  col.accessor((r) => r.technician.name, { id: "technician", header: labelOf.technician, enableSorting: false }),
-  col.accessor("setRateRpm", {
-    header: labelOf.setRateRpm,
-    cell: (info) => `${formatNumber(info.getValue())} rpm ${info.row.original.direction === "ccw" ? "ccw" : "cw"}`,
-  }),
-  col.accessor("waterDepthM", { header: labelOf.waterDepthM, cell: (info) => `${formatNumber(info.getValue() * 100)} cm` }),
-  col.accessor("waterTemperatureC", { header: labelOf.waterTemperatureC, cell: (info) => `${formatNumber(info.getValue(), 3)} °C` }),
-  col.accessor("cameraMode", { header: labelOf.cameraMode, enableSorting: false, cell: (info) => (info.getValue() === "lab" ? "Lab-fixed" : "Co-rotating") }),
-  col.accessor("tracer", { header: labelOf.tracer, enableSorting: false, cell: (info) => tracerLabels[info.getValue()] }),
-  col.accessor("frameCount", { header: labelOf.frameCount }),
-  col.accessor("state", { header: labelOf.state, cell: (info) => <RunStateTag state={info.getValue()} /> }),
-  col.accessor("verdict", {
-    header: labelOf.verdict,
-    cell: (info) => <VerdictTag verdict={info.getValue()} outOfDate={info.row.original.state === "checked"} />,
-  }),
-  col.accessor("purpose", {
-    header: labelOf.purpose,
-    enableSorting: false,
-    cell: (info) => <span className="line-clamp-2 max-w-md">{info.getValue()}</span>,
-  }),
-]);
-
-function visibilityOf(hidden: readonly string[]): ColumnVisibilityState {
-  return Object.fromEntries(hidden.map((id) => [id, false]));
-}
-
-const apply = <T,>(updater: Updater<T>, current: T): T => (typeof updater === "function" ? (updater as (old: T) => T)(current) : updater);
-
-/** One empty list for every render, so the table does not see new data while a page loads. */
-const noRows: RunListItem[] = [];
-
 export default function RunsList({ loaderData }: Route.ComponentProps) {
   const location = useLocation();
   const [searchParams, setSearchParams] = useSearchParams();
@@ -169,8 +93,8 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
   const pagination: PaginationState = { pageIndex: filters.page - 1, pageSize: filters.pageSize };
 
   const table = useTable({
-    features,
-    columns,
+    features: runTableFeatures,
+    columns: runColumns,
     data: result.page?.items ?? noRows,
     getRowId: (r) => String(r.id),
     state: { sorting, pagination, columnVisibility: visibilityOf(hidden) },
@@ -181,7 +105,7 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
     enableSortingRemoval: false,
     onSortingChange: (updater) => {
       const next = apply(updater, sorting)[0];
-      if (next && sortable.has(next.id)) go({ sort: next.id as RunSortField, dir: next.desc ? "desc" : "asc", page: 1 });
+      if (next && sortableRunColumns.has(next.id)) go({ sort: next.id as RunSortField, dir: next.desc ? "desc" : "asc", page: 1 });
     },
     onPaginationChange: (updater) => {
       const next = apply(updater, pagination);
@@ -244,42 +168,7 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
         className="no-print mb-4 grid gap-4 rounded-card border border-line bg-sheet p-4 md:grid-cols-4"
         aria-label="Filter runs"
       >
-        <SelectField label="Table" name="table" defaultValue={filters.table ?? ""}>
-          <option value="">Any table</option>
-          {loaderData.options.tables.map((t) => (
-            <option key={t.id} value={t.id}>
-              {t.name}
-            </option>
-          ))}
-        </SelectField>
-        <SelectField label="Technician" name="technician" defaultValue={filters.technician ?? ""}>
-          <option value="">Anyone</option>
-          {loaderData.options.technicians.map((u) => (
-            <option key={u.id} value={u.id}>
-              {u.name}
-            </option>
-          ))}
-        </SelectField>
-        <SelectField label="State" name="state" defaultValue={filters.state ?? ""}>
-          <option value="">Any state</option>
-          {runStates.map((s) => (
-            <option key={s} value={s}>
-              {runStateLabels[s]}
-            </option>
-          ))}
-        </SelectField>
-        <SelectField label="Verdict" name="verdict" defaultValue={filters.verdict ?? ""}>
-          <option value="">Any verdict</option>
-          <option value="agrees">Agrees</option>
-          <option value="disagrees">Disagrees</option>
-          <option value="inconclusive">Inconclusive</option>
-          <option value="none">Not checked yet</option>
-        </SelectField>
-        <TextField label="Logged from" name="from" type="date" defaultValue={filters.from ?? ""} />
-        <TextField label="Logged to" name="to" type="date" defaultValue={filters.to ?? ""} />
-        <div className="md:col-span-2">
-          <TextField label="Text in purpose or notes" name="q" type="search" defaultValue={filters.q ?? ""} maxLength={100} />
-        </div>
+        <RunFilterFields filters={filters} options={loaderData.options} />
         <div className="flex flex-wrap items-end gap-3 md:col-span-4">
           <Button type="submit">Search</Button>
           {hasFilters ? (
@@ -287,24 +176,7 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
               Clear filters
             </ButtonLink>
           ) : null}
-          <details className="relative max-sm:open:basis-full">
-            <summary className="inline-flex min-h-12 cursor-pointer items-center rounded-lg border-2 border-line-strong px-5 font-bold">Columns</summary>
-            <fieldset className="z-10 mt-2 grid w-72 max-w-full gap-1 sm:absolute rounded-card border border-line bg-sheet p-3 shadow-lg">
-              <legend className="sr-only">Columns to show</legend>
-              {table
-                .getAllLeafColumns()
-                .filter((c) => c.getCanHide())
-                .map((c) => (
-                  <label key={c.id} className="flex min-h-12 items-center gap-3">
-                    <input type="checkbox" className="size-5" checked={c.getIsVisible()} onChange={c.getToggleVisibilityHandler()} />
-                    {labelOf[c.id]}
-                  </label>
-                ))}
-              <p className="text-sm text-muted" role="status">
-                {saveColumns.state !== "idle" ? "Saving…" : (saveColumns.data?.message ?? "Kept for you on every device.")}
-              </p>
-            </fieldset>
-          </details>
+          <RunColumnChooser table={table} saving={saveColumns.state !== "idle"} message={saveColumns.data?.message} />
         </div>
       </form>
 
@@ -326,79 +198,8 @@ export default function RunsList({ loaderData }: Route.ComponentProps) {
                 ? "No runs match."
                 : `${page.total} run${page.total === 1 ? "" : "s"} · page ${page.page} of ${page.pageCount}`}
           </p>
-          <div className={`relative overflow-x-auto rounded-card border border-line bg-sheet ${loading ? "opacity-60" : ""}`} aria-busy={loading}>
-            <table className="w-full text-left">
-              <thead className="border-b-2 border-line-strong bg-paper">
-                {table.getHeaderGroups().map((group) => (
-                  <tr key={group.id}>
-                    {group.headers.map((header) => {
-                      const sorted = header.column.getIsSorted();
-                      return (
-                        <th
-                          key={header.id}
-                          scope="col"
-                          className="px-3 py-2 align-bottom"
-                          aria-sort={sorted === "asc" ? "ascending" : sorted === "desc" ? "descending" : undefined}
-                        >
-                          {header.column.getCanSort() && sortable.has(header.column.id) ? (
-                            <button
-                              type="button"
-                              onClick={header.column.getToggleSortingHandler()}
-                              className="inline-flex min-h-12 items-center gap-1 font-bold text-tank-700 hover:underline"
-                            >
-                              <table.FlexRender header={header} />
-                              <span aria-hidden="true">{sorted === "asc" ? "▲" : sorted === "desc" ? "▼" : "↕"}</span>
-                              <span className="sr-only">{sorted ? `sorted ${sorted === "asc" ? "ascending" : "descending"}` : "sort"}</span>
-                            </button>
-                          ) : (
-                            <span className="inline-flex min-h-12 items-center font-bold">
-                              <table.FlexRender header={header} />
-                            </span>
-                          )}
-                        </th>
-                      );
-                    })}
-                  </tr>
-                ))}
-              </thead>
-              <tbody className="divide-y divide-line">
-                {table.getRowModel().rows.map((row) => (
-                  <tr key={row.id} className="hover:bg-tank-50">
-                    {row.getVisibleCells().map((cell) => (
-                      <td key={cell.id} className="px-3 py-1 align-middle">
-                        <table.FlexRender cell={cell} />
-                      </td>
-                    ))}
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
-          <nav aria-label="Pages" className="no-print mt-4 flex flex-wrap items-center gap-3">
-            <Button type="button" tone="plain" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>
-              ← Previous page
-            </Button>
-            <span>
-              Page {page.page} of {page.pageCount}
-            </span>
-            <Button type="button" tone="plain" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>
-              Next page →
-            </Button>
-            <label className="ml-auto flex items-center gap-2">
-              Runs per page
-              <select
-                className="min-h-12 rounded-lg border-2 border-line-strong bg-sheet px-3"
-                value={filters.pageSize}
-                onChange={(e) => table.setPageSize(Number(e.target.value))}
-              >
-                {pageSizes.map((n) => (
-                  <option key={n} value={n}>
-                    {n}
-                  </option>
-                ))}
-              </select>
-            </label>
-          </nav>
+          <RunsTable table={table} loading={loading} />
+          <RunsPager table={table} page={page.page} pageCount={page.pageCount} pageSize={filters.pageSize} />
         </>
       ) : null}
     </div>

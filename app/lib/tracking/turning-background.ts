@@ -301,11 +301,23 @@ export function backgroundAt(
     const x = turn.cx + cos * dx + sin * dy;
     const y = turn.cy - sin * dx + cos * dy;
     // The ring median at this distance, between the two nearest rings' (ring i is centred on i + ½).
-    const at = Math.min(last, Math.max(0, Math.hypot(dx, dy) - 0.5));
+    // (Math.hypot, kept for one channel, where the floats' figures were measured with it, costs several times Math.sqrt.)
+    const at = Math.min(last, Math.max(0, (channels === 1 ? Math.hypot(dx, dy) : Math.sqrt(dx * dx + dy * dy)) - 0.5));
     const i0 = Math.min(last - 1, Math.floor(at));
+    // bilinear() at (x, y), its weights worked out once for every channel.
+    const x0 = Math.min(width - 2, Math.max(0, Math.floor(x)));
+    const y0 = Math.min(height - 2, Math.max(0, Math.floor(y)));
+    const fx = Math.min(1, Math.max(0, x - x0));
+    const fy = Math.min(1, Math.max(0, y - y0));
+    const corner = (y0 * width + x0) * channels;
+    const below = corner + width * channels;
     for (let c = 0; c < channels; c++) {
       const q = p * channels + c;
-      const turned = bilinear(turning, width, height, x, y, channels, c);
+      const a = corner + c;
+      const b = below + c;
+      const top = turning[a]! + fx * (turning[a + channels]! - turning[a]!);
+      const under = turning[b]! + fx * (turning[b + channels]! - turning[b]!);
+      const turned = top + fy * (under - top);
       const r0 = rings[Math.max(0, i0) * channels + c]!;
       const ring = i0 < 0 ? r0 : r0 + (at - i0) * (rings[(i0 + 1) * channels + c]! - r0);
       // In darkness (255 − value) the two models multiply: glare lets through a share of the bottom's darkness.

@@ -136,6 +136,7 @@ async function turningModel(
         discs,
         out: misfit,
         stride: misfitStride,
+        channels: plan.channels,
         ...range,
       }),
     ),
@@ -191,7 +192,8 @@ async function turningModel(
   }
   const shared = new Int32Array(new SharedArrayBuffer(inDisc.length * 4));
   shared.set(inDisc);
-  const model: TurningBackground = { turn, turning, rings: factor ? new Float32Array(0) : ringMedians(turning, width, turn), pixels: shared, factor };
+  const rings = factor ? new Float32Array(0) : ringMedians(turning, width, turn, plan.channels);
+  const model: TurningBackground = { turn, turning, rings, pixels: shared, factor };
   // The samples' misfit against both models, split by samples between the workers (up to 0.4 s of
   // processor time a stack, off the server's main thread): each gives its means over its share.
   const shares = threadShares(count).filter(({ from, to }) => from < to);

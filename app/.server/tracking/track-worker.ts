@@ -46,7 +46,7 @@ export type TrackTask =
       request: DiscRequest;
     }
   | {
-      /** Samples [from, to) turned back into the turning frame, each by its angle, into the shared `out`. */
+      /** Samples [from, to) turned back into the turning frame, each by its angle (each of the plan's channels), into the shared `out`. */
       kind: "turn-back";
       samples: Uint8Array;
       plan: DetectionPlan;
@@ -86,6 +86,8 @@ export type TrackTask =
       stride: number;
       from: number;
       to: number;
+      /** Interleaved channels per pixel (3 for dye); the misfit is their mean. */
+      channels?: number;
     }
   | {
       /**
@@ -186,11 +188,13 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   }
   if (task.kind === "turn-back") {
     const { width, height } = task.plan.crop;
-    const length = width * height;
+    const channels = task.plan.channels;
+    const length = width * height * channels;
     const turn = task.plan.turn;
     if (!turn) throw new Error("This plan has no turning part.");
     for (let j = task.from; j < task.to; j++) {
-      turnBack(task.samples.subarray(j * length, (j + 1) * length), width, height, turn, task.angles[j]!, task.out.subarray(j * length, (j + 1) * length));
+      const out = task.out.subarray(j * length, (j + 1) * length);
+      turnBack(task.samples.subarray(j * length, (j + 1) * length), width, height, turn, task.angles[j]!, out, channels);
     }
     return null;
   }
@@ -204,7 +208,7 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   if (task.kind === "misfit") {
     const length = task.model.length;
     const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));
-    meanSquareMisfit(frames, task.model, task.width, task.from, task.to, task.discs, task.out, task.stride);
+    meanSquareMisfit(frames, task.model, task.width, task.from, task.to, task.discs, task.out, task.stride, task.channels ?? 1);
     return null;
   }
   if (task.kind === "samples-misfit") {
@@ -215,10 +219,20 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   const { plan } = task;
   const { width, height } = plan.crop;
   let background = task.kind === "detect" ? sameBackground(task.background, task.backgroundId) : task.background;
+  const still = background ?? undefined;
   if (task.turning && background) {
-    if (composed?.length !== background.length) composed = new Uint8Array(background.length);
-    backgroundAt(background, task.turning.model, task.image, width, height, task.turning.angle, composed);
-    background = composed;
+    // A float's background is rewritten in place frame by frame; a dye's must be a new array each
+    // frame, since the dye detector keeps work per background array (threshold.ts), and is told
+    // the still model its bottom's level is fitted to once (dye-patch-signal.ts).
+    let frameBackground: Uint8Array;
+    if (plan.tracer === "dye") {
+      frameBackground = new Uint8Array(background.length);
+    } else {
+      if (composed?.length !== background.length) composed = new Uint8Array(background.length);
+      frameBackground = composed;
+    }
+    backgroundAt(background, task.turning.model, task.image, width, height, task.turning.angle, frameBackground);
+    background = frameBackground;
   }
   if (task.kind === "fit-disc") {
     const tank = plan.tank;
@@ -231,7 +245,8 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
       inside: tank ? (col, row) => (col - tank.cx) ** 2 + (row - tank.cy) ** 2 <= tank.r * tank.r : undefined,
     });
   }
-  return detectorFor(task.planKey, plan).detect({ data: task.image, width, height, channels: plan.channels }, background, task.windows ?? undefined);
+  const turned = task.turning && plan.tracer === "dye" ? still : undefined;
+  return detectorFor(task.planKey, plan).detect({ data: task.image, width, height, channels: plan.channels }, background, task.windows ?? undefined, turned);
 }
 
 /** The first view this worker had of each of the last few named backgrounds. */
@@ -248,8 +263,8 @@ function sameBackground(background: Uint8Array | null, id: number | undefined): 
 }
 
 /**
- * This worker's frame background where a turning model takes part, reused from frame to frame.
- * Floats only (plan.ts gives dye no turning model): the dye detector keeps work per background
- * array (threshold.ts, dye-patch-signal.ts), which an array rewritten every frame would defeat.
+ * This worker's float frame background where a turning model takes part, reused from frame to
+ * frame. Not for dye: its detector keeps work per background array (threshold.ts,
+ * dye-patch-signal.ts), which an array rewritten every frame would leave stale.
  */
 let composed: Uint8Array | null = null;

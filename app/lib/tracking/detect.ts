@@ -44,8 +44,12 @@ export interface Detector {
    *
    * A background is read as it is at its first use with this detector: one that changes must be
    * given as a new array (threshold.ts keeps a dye background's block sums per array).
+   *
+   * `still`: for dye, the stack's still background when `background` is composed for this frame
+   * with a turning model (turning-background.ts); the bottom's level under the light is fitted to
+   * it once instead of to every frame's new array (dye-patch-signal.ts).
    */
-  detect(image: FrameImage, background: Uint8Array | null, windows?: readonly SearchWindow[]): Detection[];
+  detect(image: FrameImage, background: Uint8Array | null, windows?: readonly SearchWindow[], still?: Uint8Array): Detection[];
   /** Frees the OpenCV matrices: wasm memory is not garbage-collected. */
   dispose(): void;
 }
@@ -311,7 +315,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   }
 
   /** A dye blob's centre from the whole patch against the background (dye-centre.ts). */
-  function patchCentre(blob: Blob, image: FrameImage, background: Uint8Array): Detection | null {
+  function patchCentre(blob: Blob, image: FrameImage, background: Uint8Array, still: Uint8Array | undefined): Detection | null {
     if (!dyeCentre) return null;
     const margin = k + 2;
     const lab = labels.data;
@@ -329,6 +333,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
         const owner = lab[Math.min(sh - 1, Math.floor(row / k)) * sw + Math.min(sw - 1, Math.floor(col / k))];
         return owner === 0 || owner === blob.label;
       },
+      still,
     );
     if (!found || !(found.x >= 0 && found.x <= width - 1 && found.y >= 0 && found.y <= height - 1)) return null;
     // The hue the colour changes towards: that of grey moved along the dye's direction (any step gives the same hue).
@@ -345,7 +350,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   }
 
   return {
-    detect(image, background, windows) {
+    detect(image, background, windows, still) {
       check(image, background);
       const bg = plan.tracer === "float" ? background : null;
       const dyeBackground = plan.tracer === "dye" ? background : null;
@@ -364,7 +369,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
           const patches: { detection: Detection; change: number }[] = [];
           for (const { blob, change } of found) {
             if (!(change >= shadowShare * strongest)) continue;
-            const detection = patchCentre(blob, image, dyeBackground);
+            const detection = patchCentre(blob, image, dyeBackground, still);
             if (detection) patches.push({ detection, change });
           }
           detections = distinctPatches(patches);

@@ -108,7 +108,17 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
   /** Scratch: how far each ring pixel's brightness strays from its colour's. */
   let strays = new Float64Array(0);
 
-  return function measure(image: DyeImage, background: Uint8Array, box: PatchBox, free?: (col: number, row: number) => boolean): PatchCentre | null {
+  /**
+   * `bottomFrom`: the stack's still background when `background` is composed for this frame with a
+   * turning model (the bottom's level is fitted to it once, dye-patch-signal.ts).
+   */
+  return function measure(
+    image: DyeImage,
+    background: Uint8Array,
+    box: PatchBox,
+    free?: (col: number, row: number) => boolean,
+    bottomFrom?: Uint8Array,
+  ): PatchCentre | null {
     const img = image.data;
     const bg = background;
     const col0 = Math.max(0, box.col0);
@@ -116,7 +126,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     const col1 = Math.min(width, box.col1);
     const row1 = Math.min(height, box.row1);
     if (col1 <= col0 || row1 <= row0) return null;
-    signal.useFrame(img, bg);
+    signal.useFrame(img, bg, bottomFrom);
 
     // The patch's summed difference over its box (dye-signal.ts), split into its change of colour
     // (the part that sums to zero over the channels) and its change of brightness.

@@ -14,8 +14,12 @@ const surfaceStride = 8;
 const clippedLevel = 250;
 
 export interface PatchSignal {
-  /** The frame and background measured next; the background's divisors are made when it is new. */
-  useFrame(image: Uint8Array, background: Uint8Array): void;
+  /**
+   * The frame and background measured next. The bottom's level is fitted to `bottomFrom` once per
+   * array: the background itself, or the stack's still model when `background` is composed for this
+   * frame from it and a turning model (a new array every frame, turning-background.ts).
+   */
+  useFrame(image: Uint8Array, background: Uint8Array, bottomFrom?: Uint8Array): void;
   /** The difference per channel over the (capped) background level at pixel `p`, into `out`. */
   difference(p: number, out: Float64Array): void;
   /**
@@ -50,27 +54,33 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
   const stamp = new Uint32Array(width * height);
   let measurement = 0;
   /**
-   * Per pixel, 1 over the background's level, taken as at most the bottom's (dye-signal.ts,
-   * dye-bottom.ts): made once per background array (the tracking worker hands the detector the
-   * same array for the same background, and one that changes must be a new array, as for the
-   * threshold's sums).
+   * Per pixel, the bottom's level plus its margin (`caps`) and 1 over the background's level taken
+   * as at most that (dye-signal.ts, dye-bottom.ts): made once per array the bottom is fitted to
+   * (the tracking worker hands the detector the same array for the same background, and one that
+   * changes must be a new array, as for the threshold's sums). A background composed per frame
+   * divides by its own level under the same caps, worked out pixel by pixel as it is read.
    */
   let levelsOf: Uint8Array | null = null;
+  const caps = new Float32Array(width * height);
   const inverseLevels = new Float32Array(width * height);
 
-  function makeLevels(): void {
-    const surface = fitBottomSurface(bg, width, height, spans, surfaceStride);
+  function makeLevels(from: Uint8Array): void {
+    const surface = fitBottomSurface(from, width, height, spans, surfaceStride);
     for (let row = 0, p = 0; row < height; row++) {
       for (let col = 0; col < width; col++, p++) {
         const cap = surface ? bottomLevel(surface, col, row) + surface.margin : Infinity;
-        inverseLevels[p] = inverseLevel(bg[3 * p]!, bg[3 * p + 1]!, bg[3 * p + 2]!, cap);
+        caps[p] = cap;
+        inverseLevels[p] = inverseLevel(from[3 * p]!, from[3 * p + 1]!, from[3 * p + 2]!, cap);
       }
     }
   }
 
   function difference(p: number, out: Float64Array): void {
     const q = 3 * p;
-    levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, bg[q]!, bg[q + 1]!, bg[q + 2]!, out, inverseLevels[p]);
+    const b0 = bg[q]!;
+    const b1 = bg[q + 1]!;
+    const b2 = bg[q + 2]!;
+    levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, b0, b1, b2, out, bg === levelsOf ? inverseLevels[p] : inverseLevel(b0, b1, b2, caps[p]));
   }
 
   // White glare the background lacks adds to the brightness alone, a line or shadow it lacks takes
@@ -99,12 +109,12 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
   }
 
   return {
-    useFrame(image, background) {
+    useFrame(image, background, bottomFrom = background) {
       img = image;
       bg = background;
-      if (background !== levelsOf) {
-        levelsOf = background;
-        makeLevels();
+      if (bottomFrom !== levelsOf) {
+        levelsOf = bottomFrom;
+        makeLevels(bottomFrom);
       }
     },
     difference,

@@ -34,7 +34,8 @@ export interface DetectionPlan {
   dyeColour: DyeColour;
   /**
    * What turns in the view about the rotation centre (crop px) and how fast, when the setup gives
-   * the table's rate and a tank edge: floats only. Null: the still background alone.
+   * the table's rate and a tank edge (for dye, only under a lab-fixed camera without tilt marks).
+   * Null: the still background alone.
    */
   turn: TurnInView | null;
 }
@@ -115,12 +116,17 @@ export function planDetection(setup: TrackingSetup, frameWidth: number, frameHei
 
 /**
  * The turning disc: centred on the rotation centre, as far as the tank edge and the crop allow
- * (a turned pixel must stay inside the tank and the crop). None for dye, a table at rest or a
- * rotation centre outside the tank.
+ * (a turned pixel must stay inside the tank and the crop). None for a table at rest or a rotation
+ * centre outside the tank. For dye only under a lab-fixed camera, where the table's grid turns
+ * through the view, and not under a tilted view's correction (its turning model is a factor on one
+ * channel, turning-median.ts); under a co-rotating camera the turning light and glare measured
+ * worse with the model than without (Decision 84).
  */
 function planTurn(setup: TrackingSetup, crop: CropBox, tank: DetectionPlan["tank"]): TurnInView | null {
   const rotation = setup.rotation;
-  if (!rotation || setup.tracer !== "float" || !tank || !finite(rotation.omega) || rotation.omega === 0) return null;
+  if (!rotation || !tank || !finite(rotation.omega) || rotation.omega === 0) return null;
+  // Dye: only the table's own pattern turning under a lab-fixed camera pays (Decision 84).
+  if (setup.tracer === "dye" && (setup.correction || rotation.cameraMode !== "lab")) return null;
   if (!finite(setup.centre.x) || !finite(setup.centre.y)) return null;
   const cx = setup.centre.x - crop.left;
   const cy = setup.centre.y - crop.top;

@@ -171,13 +171,14 @@ describe("the turning background model", () => {
     expect(elsewhere.combined).toBeGreaterThan(0.5 * elsewhere.still);
   });
 
-  it("is planned for a float with a tank edge and a turning table, at −Ω under a lab-fixed camera; not for dye or without a rate", () => {
+  it("is planned for a float with a tank edge and a turning table, at −Ω under a lab-fixed camera; for dye under a lab-fixed camera only; not without a rate", () => {
     const base = { tracer: "float" as const, centre: { x: 60, y: 50 }, tankEdge: { cx: 60, cy: 50, r: 40 }, mirrored: false };
     const lab = planDetection({ ...base, rotation: { omega: 1.2, cameraMode: "lab" } }, 160, 120);
     expect(lab.turn).toMatchObject({ cx: 40, cy: 40, rate: -1.2 });
     expect(lab.turn!.r).toBeGreaterThan(30);
     expect(planDetection({ ...base, rotation: { omega: 1.2, cameraMode: "rotating" } }, 160, 120).turn!.rate).toBe(1.2);
-    expect(planDetection({ ...base, tracer: "dye", rotation: { omega: 1.2, cameraMode: "lab" } }, 160, 120).turn).toBeNull();
+    expect(planDetection({ ...base, tracer: "dye", rotation: { omega: 1.2, cameraMode: "lab" } }, 160, 120).turn).toEqual(lab.turn);
+    expect(planDetection({ ...base, tracer: "dye", rotation: { omega: 1.2, cameraMode: "rotating" } }, 160, 120).turn).toBeNull();
     expect(planDetection(base, 160, 120).turn).toBeNull();
     expect(planDetection({ ...base, rotation: { omega: 0, cameraMode: "lab" } }, 160, 120).turn).toBeNull();
   });

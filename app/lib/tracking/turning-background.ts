@@ -36,10 +36,10 @@ export function turnRateInView(omega: number, cameraMode: "rotating" | "lab", mi
 /**
  * Samples the turning frame out of one frame: `out(q) = frame(c + R(angle)(q − c))` inside the
  * turning disc (bilinear), the frame itself outside it. `angle` is the turning part's angle at the
- * frame's time.
+ * frame's time. A frame of interleaved channels (RGB for dye) turns each channel alike.
  */
-export function turnBack(frame: Uint8Array, width: number, height: number, turn: TurnInView, angle: number, out: Uint8Array): void {
-  if (frame.length !== width * height || out.length !== frame.length) throw new Error("A turned frame must match the frame's size.");
+export function turnBack(frame: Uint8Array, width: number, height: number, turn: TurnInView, angle: number, out: Uint8Array, channels = 1): void {
+  if (frame.length !== width * height * channels || out.length !== frame.length) throw new Error("A turned frame must match the frame's size.");
   const cos = Math.cos(angle);
   const sin = Math.sin(angle);
   if (turn.rectify) throw new Error("A tilted view's turning model is made by turningMedian (turning-median.ts).");
@@ -50,22 +50,28 @@ export function turnBack(frame: Uint8Array, width: number, height: number, turn:
       const p = row * width + col;
       const dx = col - turn.cx;
       if (dx * dx + dy * dy > r2) {
-        out[p] = frame[p]!;
+        for (let c = 0; c < channels; c++) out[p * channels + c] = frame[p * channels + c]!;
         continue;
       }
-      out[p] = Math.round(bilinear(frame, width, height, turn.cx + cos * dx - sin * dy, turn.cy + sin * dx + cos * dy));
+      const x = turn.cx + cos * dx - sin * dy;
+      const y = turn.cy + sin * dx + cos * dy;
+      if (channels === 1) out[p] = Math.round(bilinear(frame, width, height, x, y));
+      else for (let c = 0; c < channels; c++) out[p * channels + c] = Math.round(bilinear(frame, width, height, x, y, channels, c));
     }
   }
 }
 
-export function bilinear(image: ArrayLike<number>, width: number, height: number, x: number, y: number): number {
+/** `image` at (x, y), bilinear; of channel `channel` when its `channels` are interleaved. */
+export function bilinear(image: ArrayLike<number>, width: number, height: number, x: number, y: number, channels = 1, channel = 0): number {
   const x0 = Math.min(width - 2, Math.max(0, Math.floor(x)));
   const y0 = Math.min(height - 2, Math.max(0, Math.floor(y)));
   const fx = Math.min(1, Math.max(0, x - x0));
   const fy = Math.min(1, Math.max(0, y - y0));
-  const p = y0 * width + x0;
-  const top = image[p]! + fx * (image[p + 1]! - image[p]!);
-  const bottom = image[p + width]! + fx * (image[p + width + 1]! - image[p + width]!);
+  const p = (y0 * width + x0) * channels + channel;
+  const right = p + channels;
+  const below = p + width * channels;
+  const top = image[p]! + fx * (image[right]! - image[p]!);
+  const bottom = image[below]! + fx * (image[below + channels]! - image[below]!);
   return top + fy * (bottom - top);
 }
 
@@ -78,15 +84,26 @@ export function turnExclusions(discs: readonly BackgroundExclusion[], turn: Turn
     const sin = Math.sin(angle);
     const dx = d.x - turn.cx;
     const dy = d.y - turn.cy;
-    // The inverse of turnBack's map: q = c + R(−angle)(p − c).
-    return { ...d, x: turn.cx + cos * dx + sin * dy, y: turn.cy - sin * dx + cos * dy };
+    // The inverse of turnBack's map: q = c + R(−angle)(p − c); a dye patch's ellipse turns with it
+    // (its second moments become R(−angle) S R(−angle)ᵀ).
+    const moved = { ...d, x: turn.cx + cos * dx + sin * dy, y: turn.cy - sin * dx + cos * dy };
+    if (d.shape) {
+      const { xx, xy, yy } = d.shape;
+      moved.shape = {
+        xx: cos * cos * xx + 2 * cos * sin * xy + sin * sin * yy,
+        xy: (cos * cos - sin * sin) * xy + cos * sin * (yy - xx),
+        yy: sin * sin * xx - 2 * cos * sin * xy + cos * cos * yy,
+      };
+    }
+    return moved;
   });
 }
 
 /**
  * Mean square difference between each sample and a model, pixels [from, to), the samples a disc
  * covers at a pixel left out (where all are covered: +∞). Written into `out`; with `stride`, only
- * at pixels whose row and column are multiples of it (the rest are left as they are).
+ * at pixels whose row and column are multiples of it (the rest are left as they are). Samples of
+ * interleaved `channels` give the mean over their channels too.
  */
 export function meanSquareMisfit(
   samples: readonly Uint8Array[],
@@ -97,6 +114,7 @@ export function meanSquareMisfit(
   discs: readonly BackgroundExclusion[],
   out: Float32Array,
   stride = 1,
+  channels = 1,
 ): void {
   const n = samples.length;
   const covered = new Uint8Array(n);
@@ -128,14 +146,17 @@ export function meanSquareMisfit(
       covered.fill(0);
       for (const s of spans) if (col >= s.from && col <= s.to) covered[s.sample] = 1;
     }
-    const m = model[p]!;
     let sum = 0;
     let count = 0;
-    for (let j = 0; j < n; j++) {
-      if (spans.length > 0 && covered[j]) continue;
-      const d = samples[j]![p]! - m;
-      sum += d * d;
-      count++;
+    for (let c = 0; c < channels; c++) {
+      const q = p * channels + c;
+      const m = model[q]!;
+      for (let j = 0; j < n; j++) {
+        if (spans.length > 0 && covered[j]) continue;
+        const d = samples[j]![q]! - m;
+        sum += d * d;
+        count++;
+      }
     }
     out[p] = count > 0 ? sum / count : Number.POSITIVE_INFINITY;
   }
@@ -204,39 +225,44 @@ export interface TurningBackground {
 /**
  * The median of the turning model over each 1 px ring about the centre, ring i holding the pixels
  * at distance [i, i + 1). A ring's median is what does not depend on the angle (the illumination
- * a ring gets on average, the rings of a grid), which the still model holds too.
+ * a ring gets on average, the rings of a grid), which the still model holds too. With interleaved
+ * `channels`, each channel's: ring i's channel c at i·channels + c.
  */
-export function ringMedians(turning: Uint8Array, width: number, turn: TurnInView): Float32Array {
+export function ringMedians(turning: Uint8Array, width: number, turn: TurnInView, channels = 1): Float32Array {
   const count = Math.ceil(turn.r) + 1;
-  const rings: number[][] = Array.from({ length: count }, () => []);
-  const height = Math.floor(turning.length / width);
+  const rings: number[][] = Array.from({ length: count * channels }, () => []);
+  const height = Math.floor(turning.length / (width * channels));
   const { row0, row1, col0, col1 } = discBox(turn, width, height);
   const scratch = new Float64Array(2);
   for (let row = row0; row <= row1; row++) {
     for (let col = col0; col <= col1; col++) {
       const i = Math.floor(turnDistance(turn, col, row, scratch));
-      if (i < count) rings[i]!.push(turning[row * width + col]!);
+      if (i < count) for (let c = 0; c < channels; c++) rings[i * channels + c]!.push(turning[(row * width + col) * channels + c]!);
     }
   }
-  const out = new Float32Array(count);
-  let last = 0;
-  rings.forEach((values, i) => {
-    if (values.length > 0) {
-      values.sort((a, b) => a - b);
-      last = values[values.length >> 1]!;
+  const out = new Float32Array(count * channels);
+  for (let c = 0; c < channels; c++) {
+    let last = 0;
+    for (let i = 0; i < count; i++) {
+      const values = rings[i * channels + c]!;
+      if (values.length > 0) {
+        values.sort((x, y) => x - y);
+        last = values[values.length >> 1]!;
+      }
+      out[i * channels + c] = last;
     }
-    out[i] = last;
-  });
+  }
   return out;
 }
 
 /**
  * The background of one frame, whose turning part stands at `angle`: the still model, and at the
- * turning disc's pixels the turning model's departure from its ring median added to it. Both models see
- * the same ring average (the illumination, the grid's rings), so the sum counts it once: a lamp's
- * glare on the water over a grid line is the line from the one model plus the glare from the
- * other, where choosing either model alone would leave one of them in the difference. Written into
- * `out`.
+ * turning disc's pixels the turning model combined with it. Both models see the same ring average
+ * (the illumination, the grid's rings), which the combination counts once: a lamp's glare on the
+ * water over a grid line is the line from the one model plus the glare from the other, where
+ * choosing either model alone would leave one of them in the difference. The images may hold
+ * interleaved channels (RGB for dye, the channel count read from the sizes); each channel
+ * combines on its own. Written into `out`.
  */
 export function backgroundAt(
   still: Uint8Array,
@@ -247,7 +273,8 @@ export function backgroundAt(
   angle: number,
   out: Uint8Array,
 ): void {
-  if (still.length !== width * height || frame.length !== still.length || out.length !== still.length) {
+  const channels = still.length / (width * height);
+  if (!(channels === 1 || channels === 3) || frame.length !== still.length || out.length !== still.length) {
     throw new Error("The background, the frame and the output must be the same size.");
   }
   out.set(still);
@@ -255,8 +282,9 @@ export function backgroundAt(
   // The turning model at this frame: a pixel p shows turning-frame point c + R(−angle)(p − c).
   const cos = Math.cos(angle);
   const sin = Math.sin(angle);
-  const last = rings.length - 1;
+  const last = rings.length / channels - 1;
   if (turn.rectify && !model.factor) throw new Error("A tilted view's turning model is a factor (turning-median.ts).");
+  if (model.factor && channels !== 1) throw new Error("A tilted view's turning model is made for one channel.");
   const plane = new Float64Array(2);
   for (let i = 0; i < pixels.length; i++) {
     const p = pixels[i]!;
@@ -270,14 +298,32 @@ export function backgroundAt(
       out[p] = value <= 0 ? 0 : value >= 255 ? 255 : Math.round(value);
       continue;
     }
-    const turned = bilinear(turning, width, height, turn.cx + cos * dx + sin * dy, turn.cy - sin * dx + cos * dy);
+    const x = turn.cx + cos * dx + sin * dy;
+    const y = turn.cy - sin * dx + cos * dy;
     // The ring median at this distance, between the two nearest rings' (ring i is centred on i + ½).
-    const at = Math.min(last, Math.max(0, Math.hypot(dx, dy) - 0.5));
+    // (Math.hypot, kept for one channel, where the floats' figures were measured with it, costs several times Math.sqrt.)
+    const at = Math.min(last, Math.max(0, (channels === 1 ? Math.hypot(dx, dy) : Math.sqrt(dx * dx + dy * dy)) - 0.5));
     const i0 = Math.min(last - 1, Math.floor(at));
-    const ring = i0 < 0 ? rings[0]! : rings[i0]! + (at - i0) * (rings[i0 + 1]! - rings[i0]!);
-    // In darkness (255 − value) the two models multiply: glare lets through a share of the bottom's darkness.
-    const value = 255 - ((255 - still[p]!) * (255 - turned)) / Math.max(1, 255 - ring);
-    out[p] = value <= 0 ? 0 : value >= 255 ? 255 : Math.round(value);
+    // bilinear() at (x, y), its weights worked out once for every channel.
+    const x0 = Math.min(width - 2, Math.max(0, Math.floor(x)));
+    const y0 = Math.min(height - 2, Math.max(0, Math.floor(y)));
+    const fx = Math.min(1, Math.max(0, x - x0));
+    const fy = Math.min(1, Math.max(0, y - y0));
+    const corner = (y0 * width + x0) * channels;
+    const below = corner + width * channels;
+    for (let c = 0; c < channels; c++) {
+      const q = p * channels + c;
+      const a = corner + c;
+      const b = below + c;
+      const top = turning[a]! + fx * (turning[a + channels]! - turning[a]!);
+      const under = turning[b]! + fx * (turning[b + channels]! - turning[b]!);
+      const turned = top + fy * (under - top);
+      const r0 = rings[Math.max(0, i0) * channels + c]!;
+      const ring = i0 < 0 ? r0 : r0 + (at - i0) * (rings[(i0 + 1) * channels + c]! - r0);
+      // In darkness (255 − value) the two models multiply: glare lets through a share of the bottom's darkness.
+      const value = 255 - ((255 - still[q]!) * (255 - turned)) / Math.max(1, 255 - ring);
+      out[q] = value <= 0 ? 0 : value >= 255 ? 255 : Math.round(value);
+    }
   }
 }
 
@@ -299,13 +345,16 @@ export function samplesMisfit(
   const combined = new Uint8Array(still.length);
   let stillSum = 0;
   let combinedSum = 0;
+  const channels = still.length / (width * height);
   samples.forEach((sample, j) => {
     backgroundAt(still, model, sample, width, height, angles[j]!, combined);
     for (const p of model.pixels) {
-      stillSum += (sample[p]! - still[p]!) ** 2;
-      combinedSum += (sample[p]! - combined[p]!) ** 2;
+      for (let q = p * channels, end = q + channels; q < end; q++) {
+        stillSum += (sample[q]! - still[q]!) ** 2;
+        combinedSum += (sample[q]! - combined[q]!) ** 2;
+      }
     }
   });
-  const count = Math.max(1, samples.length * model.pixels.length);
+  const count = Math.max(1, samples.length * model.pixels.length * channels);
   return { still: stillSum / count, combined: combinedSum / count };
 }

@@ -8,7 +8,8 @@ import { createDetector, type Detector } from "../../lib/tracking/detect";
 import type { OpenCv } from "../../lib/tracking/opencv-types";
 import type { DetectionPlan } from "../../lib/tracking/plan";
 import type { SearchWindow } from "../../lib/tracking/threshold";
-import { backgroundAt, meanSquareMisfit, samplesMisfit, turnBack, type TurningBackground } from "../../lib/tracking/turning-background";
+import { meanSquareMisfit, turnBack, type TurningBackground } from "../../lib/tracking/turning-background";
+import { backgroundAt, composeGeometry, samplesMisfit, type ComposeGeometry } from "../../lib/tracking/turning-compose";
 import type { BackgroundExclusion } from "../../lib/tracking/background";
 import type { Detection } from "../../lib/tracking/types";
 import { fitDisc, type DiscFit } from "../../lib/tracking/disc-fit";
@@ -231,7 +232,16 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
       if (composed?.length !== background.length) composed = new Uint8Array(background.length);
       frameBackground = composed;
     }
-    backgroundAt(background, task.turning.model, task.image, width, height, task.turning.angle, frameBackground);
+    backgroundAt(
+      background,
+      task.turning.model,
+      task.image,
+      width,
+      height,
+      task.turning.angle,
+      frameBackground,
+      geometryFor(background, task.turning.model, width, plan.channels),
+    );
     background = frameBackground;
   }
   if (task.kind === "fit-disc") {
@@ -247,6 +257,23 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   }
   const turned = task.turning && plan.tracer === "dye" ? still : undefined;
   return detectorFor(task.planKey, plan).detect({ data: task.image, width, height, channels: plan.channels }, background, task.windows ?? undefined, turned);
+}
+
+/**
+ * The angle-free part of composing a frame's background (turning-compose.ts), kept for the still
+ * background's view: a detect task's is the same array frame after frame (`sameBackground`), and
+ * its turning model came with it. A tilted view's model (a factor) needs none.
+ */
+const geometries = new WeakMap<Uint8Array, ComposeGeometry>();
+
+function geometryFor(still: Uint8Array, model: TurningBackground, width: number, channels: number): ComposeGeometry | undefined {
+  if (model.factor) return undefined;
+  let geometry = geometries.get(still);
+  if (!geometry || geometry.cols.length !== model.pixels.length) {
+    geometry = composeGeometry(model, width, channels);
+    geometries.set(still, geometry);
+  }
+  return geometry;
 }
 
 /** The first view this worker had of each of the last few named backgrounds. */

@@ -9,7 +9,8 @@ import { describe, expect, it } from "vitest";
 import { fillChannelsFromSurroundings, medianInto, minimumFreeSamples, patchExclusionSigmas, type BackgroundExclusion } from "./background";
 import { createDyeCentre } from "./dye-centre";
 import { planDetection } from "./plan";
-import { backgroundAt, meanSquareMisfit, ringMedians, turnBack, turnExclusions, turningPixels, type TurnInView } from "./turning-background";
+import { meanSquareMisfit, ringMedians, turnBack, turnExclusions, turningPixels, type TurnInView } from "./turning-background";
+import { backgroundAt } from "./turning-compose";
 import { discPixels } from "./turning-geometry";
 
 const size = 161;

@@ -1,17 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { medianBackground } from "./background";
 import { planDetection } from "./plan";
-import {
-  backgroundAt,
-  meanSquareMisfit,
-  ringMedians,
-  samplesMisfit,
-  turnBack,
-  turnExclusions,
-  turningPixels,
-  turnRateInView,
-  type TurnInView,
-} from "./turning-background";
+import { meanSquareMisfit, ringMedians, turnBack, turnExclusions, turningPixels, turnRateInView, type TurnInView } from "./turning-background";
+import { backgroundAt, samplesMisfit } from "./turning-compose";
 
 const width = 121;
 const height = 121;

@@ -19,7 +19,7 @@
  * `turnRateInView` converts the table's Ω and the camera mode to one.
  */
 import type { BackgroundExclusion } from "./background";
-import { discBox, discPixels, inTurningDisc, turnDistance, turnPoint, type TurnInView } from "./turning-geometry";
+import { discBox, discPixels, inTurningDisc, turnDistance, type TurnInView } from "./turning-geometry";
 
 export type { TurnInView } from "./turning-geometry";
 
@@ -253,108 +253,4 @@ export function ringMedians(turning: Uint8Array, width: number, turn: TurnInView
     }
   }
   return out;
-}
-
-/**
- * The background of one frame, whose turning part stands at `angle`: the still model, and at the
- * turning disc's pixels the turning model combined with it. Both models see the same ring average
- * (the illumination, the grid's rings), which the combination counts once: a lamp's glare on the
- * water over a grid line is the line from the one model plus the glare from the other, where
- * choosing either model alone would leave one of them in the difference. The images may hold
- * interleaved channels (RGB for dye, the channel count read from the sizes); each channel
- * combines on its own. Written into `out`.
- */
-export function backgroundAt(
-  still: Uint8Array,
-  model: TurningBackground,
-  frame: Uint8Array,
-  width: number,
-  height: number,
-  angle: number,
-  out: Uint8Array,
-): void {
-  const channels = still.length / (width * height);
-  if (!(channels === 1 || channels === 3) || frame.length !== still.length || out.length !== still.length) {
-    throw new Error("The background, the frame and the output must be the same size.");
-  }
-  out.set(still);
-  const { turn, turning, rings, pixels } = model;
-  // The turning model at this frame: a pixel p shows turning-frame point c + R(−angle)(p − c).
-  const cos = Math.cos(angle);
-  const sin = Math.sin(angle);
-  const last = rings.length / channels - 1;
-  if (turn.rectify && !model.factor) throw new Error("A tilted view's turning model is a factor (turning-median.ts).");
-  if (model.factor && channels !== 1) throw new Error("A tilted view's turning model is made for one channel.");
-  const plane = new Float64Array(2);
-  for (let i = 0; i < pixels.length; i++) {
-    const p = pixels[i]!;
-    const row = (p / width) | 0;
-    const dx = p - row * width - turn.cx;
-    const dy = row - turn.cy;
-    if (model.factor) {
-      // A tilted view: the factor at H⁻¹(c + R(−angle)(H p − c)) on the still model's darkness.
-      turnPoint(turn, -angle, p - row * width, row, plane, cos, -sin);
-      const value = 255 - (255 - still[p]!) * bilinear(model.factor, width, height, plane[0]!, plane[1]!);
-      out[p] = value <= 0 ? 0 : value >= 255 ? 255 : Math.round(value);
-      continue;
-    }
-    const x = turn.cx + cos * dx + sin * dy;
-    const y = turn.cy - sin * dx + cos * dy;
-    // The ring median at this distance, between the two nearest rings' (ring i is centred on i + ½).
-    // (Math.hypot, kept for one channel, where the floats' figures were measured with it, costs several times Math.sqrt.)
-    const at = Math.min(last, Math.max(0, (channels === 1 ? Math.hypot(dx, dy) : Math.sqrt(dx * dx + dy * dy)) - 0.5));
-    const i0 = Math.min(last - 1, Math.floor(at));
-    // bilinear() at (x, y), its weights worked out once for every channel.
-    const x0 = Math.min(width - 2, Math.max(0, Math.floor(x)));
-    const y0 = Math.min(height - 2, Math.max(0, Math.floor(y)));
-    const fx = Math.min(1, Math.max(0, x - x0));
-    const fy = Math.min(1, Math.max(0, y - y0));
-    const corner = (y0 * width + x0) * channels;
-    const below = corner + width * channels;
-    for (let c = 0; c < channels; c++) {
-      const q = p * channels + c;
-      const a = corner + c;
-      const b = below + c;
-      const top = turning[a]! + fx * (turning[a + channels]! - turning[a]!);
-      const under = turning[b]! + fx * (turning[b + channels]! - turning[b]!);
-      const turned = top + fy * (under - top);
-      const r0 = rings[Math.max(0, i0) * channels + c]!;
-      const ring = i0 < 0 ? r0 : r0 + (at - i0) * (rings[(i0 + 1) * channels + c]! - r0);
-      // In darkness (255 − value) the two models multiply: glare lets through a share of the bottom's darkness.
-      const value = 255 - ((255 - still[q]!) * (255 - turned)) / Math.max(1, 255 - ring);
-      out[q] = value <= 0 ? 0 : value >= 255 ? 255 : Math.round(value);
-    }
-  }
-}
-
-/**
- * The mean square difference between the samples and each background over the turning disc:
- * the still model alone, and the still and turning models together (each sample at its angle).
- * Where the turning part does not turn about the centre as the plan says (a camera not quite
- * overhead sees the bottom turn about another point than the water's surface), the turning model
- * is blurred and the two together explain the samples worse than the still model alone.
- */
-export function samplesMisfit(
-  samples: readonly Uint8Array[],
-  still: Uint8Array,
-  model: TurningBackground,
-  width: number,
-  height: number,
-  angles: readonly number[],
-): { still: number; combined: number } {
-  const combined = new Uint8Array(still.length);
-  let stillSum = 0;
-  let combinedSum = 0;
-  const channels = still.length / (width * height);
-  samples.forEach((sample, j) => {
-    backgroundAt(still, model, sample, width, height, angles[j]!, combined);
-    for (const p of model.pixels) {
-      for (let q = p * channels, end = q + channels; q < end; q++) {
-        stillSum += (sample[q]! - still[q]!) ** 2;
-        combinedSum += (sample[q]! - combined[q]!) ** 2;
-      }
-    }
-  });
-  const count = Math.max(1, samples.length * model.pixels.length * channels);
-  return { still: stillSum / count, combined: combinedSum / count };
 }

@@ -9,7 +9,8 @@
 import { describe, expect, it } from "vitest";
 import type { Mat3 } from "../projective/matrix";
 import { invert } from "../projective/matrix";
-import { backgroundAt, type TurningBackground } from "./turning-background";
+import type { TurningBackground } from "./turning-background";
+import { backgroundAt } from "./turning-compose";
 import { discPixels, type TurnInView } from "./turning-geometry";
 import { departures, findTurningCentre, recentredTurn, turningSpread } from "./turning-centre";
 import { turningMedian } from "./turning-median";

@@ -1,9 +1,11 @@
 /**
  * Detections to tracks: frame by frame, each live track is paired with at most one detection by
  * optimal assignment (Hungarian algorithm) on squared distance from where the track was heading,
- * within a gate. A track may miss a few frames; its gate grows with the frames missed.
+ * within a gate. A track may miss a few frames; its gate grows with the frames missed. Pieces of one
+ * path parted by a longer gap are then joined where each foresees the other (gap-closing.ts).
  */
 import { munkres } from "munkres";
+import { closeGaps } from "./gap-closing";
 import type { FrameDetections, Track, TrackPoint } from "./types";
 
 export interface LinkingOptions {
@@ -13,9 +15,11 @@ export interface LinkingOptions {
   maxGapFrames: number;
   /** Tracks with fewer points are left out. */
   minTrackPoints: number;
+  /** Longer gaps, up to this many frames, are closed where the pieces on either side foresee each other (gap-closing.ts); none when absent. */
+  closeGapFrames?: number;
 }
 
-export const defaultLinking: Omit<LinkingOptions, "maxStepPx"> = { maxGapFrames: 3, minTrackPoints: 5 };
+export const defaultLinking: Omit<LinkingOptions, "maxStepPx"> = { maxGapFrames: 3, minTrackPoints: 5, closeGapFrames: 8 };
 
 export interface LinkResult {
   tracks: Track[];
@@ -82,11 +86,11 @@ export function linkDetections(frames: readonly FrameDetections[], options: Link
   }
   finished.push(...live);
 
-  const kept = finished
-    .filter((track) => track.points.length >= minTrackPoints)
-    .sort((a, b) => a.points[0]!.frameIndex - b.points[0]!.frameIndex || a.points[0]!.x - b.points[0]!.x);
+  const pieces = finished.map((track) => track.points);
+  const paths = options.closeGapFrames ? closeGaps(pieces, { maxGapFrames: options.closeGapFrames }) : pieces;
+  const kept = paths.filter((points) => points.length >= minTrackPoints).sort((a, b) => a[0]!.frameIndex - b[0]!.frameIndex || a[0]!.x - b[0]!.x);
   return {
-    tracks: kept.map((track, i) => ({ id: i + 1, points: track.points })),
-    shortTracksDropped: finished.length - kept.length,
+    tracks: kept.map((points, i) => ({ id: i + 1, points })),
+    shortTracksDropped: paths.length - kept.length,
   };
 }

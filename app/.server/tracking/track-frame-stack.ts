@@ -5,7 +5,7 @@
  */
 import type { DiscFit } from "../../lib/tracking/disc-fit";
 import { defaultLinking, linkDetections, type LinkingOptions } from "../../lib/tracking/link";
-import { extendTracks, withExtension, type DiscRequest } from "../../lib/tracking/track-extension";
+import { extendTracks, piecesToExtend, withExtension, type DiscRequest } from "../../lib/tracking/track-extension";
 import { planDetection, planKey, ViewSetupError, type DetectionPlan } from "../../lib/tracking/plan";
 import { trackingQuality } from "../../lib/tracking/quality";
 import { lastWholeFrame, searchedWhole, searchWindows } from "../../lib/tracking/search-windows";
@@ -289,18 +289,23 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
   }
   const linking: LinkingOptions = { maxStepPx: defaultStep(plan), ...defaultLinking, ...input.linking };
   let { tracks, shortTracksDropped } = linkDetections(detections, linking);
-  if (plan.tracer === "float" && tracks.length > 0) {
-    // Floats hidden in part by glare: the tracks carried on by fitting the float's disc (track-extension.ts).
-    let fitter = search;
-    const fit = async (index: number, request: DiscRequest) => {
-      fitter ??= await prepareStackSearch(files, setup, size, signal, (i) => times[i]!, true);
-      return fitter.fitDisc(files[index]!, index, request);
-    };
-    const extension = await extendTracks(tracks, fit, { frames: total, reachPx: extensionReachPx });
-    if (extension.added.size > 0) {
-      const extended = withExtension(detections, extension);
-      detections.splice(0, detections.length, ...extended);
-      ({ tracks, shortTracksDropped } = linkDetections(detections, linking));
+  if (plan.tracer === "float") {
+    // Floats hidden in part by glare: the pieces of their paths carried on by fitting the float's
+    // disc (track-extension.ts), from pieces as short as the extension can start from and before
+    // pieces are joined across gaps, so it works into a gap from both sides; then linked again.
+    const pieces = piecesToExtend(detections, linking);
+    if (pieces.length > 0) {
+      let fitter = search;
+      const fit = async (index: number, request: DiscRequest) => {
+        fitter ??= await prepareStackSearch(files, setup, size, signal, (i) => times[i]!, true);
+        return fitter.fitDisc(files[index]!, index, request);
+      };
+      const extension = await extendTracks(pieces, fit, { frames: total, reachPx: extensionReachPx });
+      if (extension.added.size > 0) {
+        const extended = withExtension(detections, extension);
+        detections.splice(0, detections.length, ...extended);
+        ({ tracks, shortTracksDropped } = linkDetections(detections, linking));
+      }
     }
   }
   if (tracks.length === 0) {

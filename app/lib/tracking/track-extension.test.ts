@@ -6,7 +6,7 @@ import { fitDisc } from "./disc-fit";
 import { linkDetections } from "./link";
 import type { OpenCv } from "./opencv-types";
 import { planDetection } from "./plan";
-import { extendTracks, maxFitSdPx, withExtension, type FitInFrame } from "./track-extension";
+import { extendTracks, maxFitSdPx, piecesToExtend, withExtension, type FitInFrame } from "./track-extension";
 import type { FrameDetections } from "./types";
 
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };
@@ -102,5 +102,39 @@ describe("a float's track carried through glare by its fitted disc", () => {
     const first = tracks.reduce((a, b) => (a.points[0]!.frameIndex <= b.points[0]!.frameIndex ? a : b));
     const extension = await extendTracks([first], blind, { frames, reachPx: 4 });
     for (const index of extension.added.keys()) expect(index).toBeLessThanOrEqual(8);
+  });
+});
+
+describe("pieces of a path carried on before they are joined", () => {
+  // Only frames 0–6 and 22–25 hold blobs (4 of them: too few for a track), and no disc can be
+  // placed in frames 14–17 (glare over the whole disc).
+  const sparse = found.map((f) => ({ ...f, detections: f.frameIndex <= 6 || (f.frameIndex >= 22 && f.frameIndex <= 25) ? f.detections : [] }));
+  const blind: FitInFrame = async (index, request) => {
+    if (index < 14 || index > 17) return fit(index, request);
+    const white = new Uint8Array(cw * ch).fill(255);
+    return fitDisc({ image: white, background: white, width: cw, height: ch, ...request, x: request.x - left, y: request.y - top });
+  };
+  const closing = { ...linking, closeGapFrames: 8 };
+
+  it("carries a piece too short to be a track back into the gap, and the two pieces become one track", async () => {
+    const pieces = piecesToExtend(sparse, closing);
+    expect(pieces.map((p) => [p.points[0]!.frameIndex, p.points.at(-1)!.frameIndex])).toEqual([
+      [0, 5],
+      [22, 25],
+    ]);
+    const extension = await extendTracks(pieces, blind, { frames, reachPx: 4 });
+    const { tracks } = linkDetections(withExtension(sparse, extension), closing);
+    expect(tracks).toHaveLength(1);
+    const expected = Array.from({ length: frames }, (_, i) => i).filter((i) => i < 14 || i > 17);
+    expect(tracks[0]!.points.map((p) => p.frameIndex)).toEqual(expected);
+    for (const p of tracks[0]!.points) expect(Math.hypot(p.x - place(p.frameIndex).x, p.y - place(p.frameIndex).y)).toBeLessThan(0.15);
+  });
+
+  it("carries only the first piece on when the linked tracks alone are carried: the short one is never worked from", async () => {
+    const { tracks } = linkDetections(sparse, closing);
+    const extension = await extendTracks(tracks, blind, { frames, reachPx: 4 });
+    const relinked = linkDetections(withExtension(sparse, extension), closing);
+    // The gap is still closed, but frames 18–21 and 26–35 are in no track.
+    expect(relinked.tracks.map((t) => t.points.map((p) => p.frameIndex))).toEqual([[...Array.from({ length: 14 }, (_, i) => i), 22, 23, 24, 25]]);
   });
 });

@@ -12,6 +12,7 @@
  * side. What is kept is a measured position with its uncertainty, never the foreseen one.
  */
 import type { DiscFit } from "./disc-fit";
+import { linkDetections, type LinkingOptions } from "./link";
 import type { Detection, FrameDetections, Track, TrackPoint } from "./types";
 
 export interface DiscRequest {
@@ -45,6 +46,18 @@ const maxResidualRatio = 1.5;
 const faceTolerance = 30;
 /** Clear frames of a track measured for the radius and face, from each end. */
 const calibrationFrames = 3;
+/** The fewest points a piece of a path needs to be carried on: its clear frames measured, a parabola through its last three. */
+const extensionStartPoints = calibrationFrames;
+
+/**
+ * The pieces of paths to carry on: linked as `linking` says, but kept from `extensionStartPoints`
+ * points and not yet joined across longer gaps (gap-closing.ts), so a piece too short to be a track
+ * can grow into one and a gap is worked into from both sides. The result is linked again with
+ * `linking` itself.
+ */
+export function piecesToExtend(frames: readonly FrameDetections[], linking: LinkingOptions): Track[] {
+  return linkDetections(frames, { ...linking, minTrackPoints: Math.min(linking.minTrackPoints, extensionStartPoints), closeGapFrames: undefined }).tracks;
+}
 /**
  * Tracks carried on, longest first: each end costs a few decodes, and a stack cluttered with
  * short tracks should not pay that for all of them.

@@ -23,6 +23,21 @@ import { hsv, hueInRange } from "./hsv";
 import type { CvRect } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
 
+/**
+ * Marks (255 in `mask`) the pixels [from, to) of a full-resolution frame whose change of colour
+ * against the background exceeds `level` (dye-signal.ts); returns how many. A loop of its own, so
+ * that the pass's other branches do not weigh on its compilation.
+ */
+function markChange(img: Uint8Array, background: Uint8Array, mask: Uint8Array, from: number, to: number, level: number): number {
+  let marked = 0;
+  for (let at = from, p = 3 * from; at < to; at++, p += 3) {
+    if (!relativeChangeAbove(img[p]!, img[p + 1]!, img[p + 2]!, background[p]!, background[p + 1]!, background[p + 2]!, level)) continue;
+    mask[at] = 255;
+    marked++;
+  }
+  return marked;
+}
+
 /** Side of the tiles that group the thresholded pixels, detection-image px. */
 export const tileSize = 32;
 const tileShift = 5;
@@ -118,6 +133,21 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     summedFor = background;
   }
 
+  /** Whether block (`sx`, `sy`)'s mean change of colour against the background's exceeds `changeLevel` (dye-signal.ts). */
+  function blockChangeAbove(img: Uint8Array, sx: number, sy: number, changeLevel: number): boolean {
+    blockSum3(img, sx, sy, sums);
+    const b = 3 * (sy * sw + sx);
+    return relativeChangeAbove(
+      sums[0]! / block,
+      sums[1]! / block,
+      sums[2]! / block,
+      backgroundSums[b]! / block,
+      backgroundSums[b + 1]! / block,
+      backgroundSums[b + 2]! / block,
+      changeLevel,
+    );
+  }
+
   /** Column ranges of one tile row to search, [from, to) pairs in detection-image px. */
   const runs = new Int32Array(tilesX + 1);
 
@@ -206,33 +236,27 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
         const c1 = Math.min(b, runs[2 * r + 1]!);
         if (c0 >= c1) continue;
         if (background && dye) {
-          // The change of colour against the background, of the block's mean at reduced resolution.
-          for (let sx = c0; sx < c1; sx++) {
-            let above: boolean;
-            if (k === 1) {
-              const p = 3 * (rowAt + sx);
-              above = relativeChangeAbove(img[p]!, img[p + 1]!, img[p + 2]!, background[p]!, background[p + 1]!, background[p + 2]!, changeLevel);
-            } else {
-              blockSum3(img, sx, sy, sums);
-              const b = 3 * (rowAt + sx);
-              above = relativeChangeAbove(
-                sums[0]! / block,
-                sums[1]! / block,
-                sums[2]! / block,
-                backgroundSums[b]! / block,
-                backgroundSums[b + 1]! / block,
-                backgroundSums[b + 2]! / block,
-                changeLevel,
-              );
+          // The change of colour against the background (of the block's mean at reduced resolution),
+          // marked first; the tiles then set by the marks in order.
+          let marked = 0;
+          if (k === 1) {
+            marked = markChange(img, background, m, rowAt + c0, rowAt + c1, changeLevel);
+          } else {
+            for (let sx = c0; sx < c1; sx++) {
+              if (!blockChangeAbove(img, sx, sy, changeLevel)) continue;
+              m[rowAt + sx] = 255;
+              marked++;
             }
-            if (!above) continue;
-            const at = rowAt + sx;
-            m[at] = 255;
-            if (previous === at - 1) {
-              tileHits[tileRow + (sx >> tileShift)] = 1;
-              any = true;
+          }
+          if (marked > 0) {
+            for (let at = rowAt + c0, end = rowAt + c1; at < end; at++) {
+              if (m[at] === 0) continue;
+              if (previous === at - 1) {
+                tileHits[tileRow + ((at - rowAt) >> tileShift)] = 1;
+                any = true;
+              }
+              previous = at;
             }
-            previous = at;
           }
           continue;
         }

@@ -38,6 +38,17 @@ function markChange(img: Uint8Array, background: Uint8Array, mask: Uint8Array, f
   return marked;
 }
 
+/** Copies the marks of [from, to) from `marks` into `mask`; returns how many. */
+function markFrom(marks: Uint8Array, mask: Uint8Array, from: number, to: number): number {
+  let marked = 0;
+  for (let at = from; at < to; at++) {
+    if (marks[at] === 0) continue;
+    mask[at] = 255;
+    marked++;
+  }
+  return marked;
+}
+
 /** Side of the tiles that group the thresholded pixels, detection-image px. */
 export const tileSize = 32;
 const tileShift = 5;
@@ -188,6 +199,15 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
   /** The tiles a windowed search covers, widened round such finds (reused from frame to frame). */
   const widened = new Uint8Array(tilesX * tilesY);
 
+  /**
+   * A widening round searches the union of its tiles afresh, but the same image against the same
+   * background and level gives the tiles an earlier round searched the same verdicts: for dye,
+   * the mask of the round before is kept (`marks`) and read back for the tiles in `judged` instead
+   * of working their pixels out again (some half of a windowed search's pixels on the bench's stack).
+   */
+  const judged = new Uint8Array(tilesX * tilesY);
+  const marks = new Uint8Array(dye ? sw * sh : 0);
+
   /** Marks every tile within two of `t` in `wanted`. */
   function want(t: number): void {
     const tx = t % tilesX;
@@ -204,15 +224,29 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     searched.set(tiles);
     for (let round = 0, last = dye ? maxWidenings : 0; round <= last; round++) {
       wanted.fill(0);
-      const regions = pass(mask, image, background, offset, sigma, searched);
+      const regions = pass(mask, image, background, offset, sigma, searched, round > 0 ? judged : undefined);
       if (regions) return regions;
+      // The tiles searched so far keep their marks for the next, wider round.
+      judged.set(searched);
+      marks.set(mask);
       for (let t = 0; t < searched.length; t++) searched[t] = searched[t]! | wanted[t]!;
     }
     return null;
   }
 
-  /** One threshold pass over `tiles` (or the whole frame); null, with `wanted` filled, if a find lies too close to their edge. */
-  function pass(mask: Uint8Array, image: ThresholdImage, background: Uint8Array | null, offset: number, sigma: number, tiles?: Uint8Array): CvRect[] | null {
+  /**
+   * One threshold pass over `tiles` (or the whole frame); null, with `wanted` filled, if a find lies
+   * too close to their edge. For dye, the tiles in `known` take their pixels' verdicts from `marks`.
+   */
+  function pass(
+    mask: Uint8Array,
+    image: ThresholdImage,
+    background: Uint8Array | null,
+    offset: number,
+    sigma: number,
+    tiles?: Uint8Array,
+    known?: Uint8Array,
+  ): CvRect[] | null {
     const m = mask;
     const img = image.data;
     m.fill(0);
@@ -237,26 +271,32 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
         if (c0 >= c1) continue;
         if (background && dye) {
           // The change of colour against the background (of the block's mean at reduced resolution),
-          // marked first; the tiles then set by the marks in order.
-          let marked = 0;
-          if (k === 1) {
-            marked = markChange(img, background, m, rowAt + c0, rowAt + c1, changeLevel);
-          } else {
-            for (let sx = c0; sx < c1; sx++) {
-              if (!blockChangeAbove(img, sx, sy, changeLevel)) continue;
-              m[rowAt + sx] = 255;
-              marked++;
-            }
-          }
-          if (marked > 0) {
-            for (let at = rowAt + c0, end = rowAt + c1; at < end; at++) {
-              if (m[at] === 0) continue;
-              if (previous === at - 1) {
-                tileHits[tileRow + ((at - rowAt) >> tileShift)] = 1;
-                any = true;
+          // tile by tile: a tile an earlier round of this search judged takes its marks back.
+          for (let s0 = c0; s0 < c1;) {
+            const s1 = Math.min(c1, ((s0 >> tileShift) + 1) << tileShift);
+            let marked = 0;
+            if (known !== undefined && known[tileRow + (s0 >> tileShift)] === 1) {
+              marked = markFrom(marks, m, rowAt + s0, rowAt + s1);
+            } else if (k === 1) {
+              marked = markChange(img, background, m, rowAt + s0, rowAt + s1, changeLevel);
+            } else {
+              for (let sx = s0; sx < s1; sx++) {
+                if (!blockChangeAbove(img, sx, sy, changeLevel)) continue;
+                m[rowAt + sx] = 255;
+                marked++;
               }
-              previous = at;
             }
+            if (marked > 0) {
+              for (let at = rowAt + s0, end = rowAt + s1; at < end; at++) {
+                if (m[at] === 0) continue;
+                if (previous === at - 1) {
+                  tileHits[tileRow + ((at - rowAt) >> tileShift)] = 1;
+                  any = true;
+                }
+                previous = at;
+              }
+            }
+            s0 = s1;
           }
           continue;
         }

@@ -18,25 +18,10 @@
  * itself: Decision 82), up to `maxWidenings` times; after that, and at once for floats, the windows
  * are not trusted and the caller searches the whole frame.
  */
-import { relativeChangeAbove } from "./dye-signal";
+import { backgroundProducts, markChangeAbove, relativeChangeAbove } from "./dye-signal";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
-
-/**
- * Marks (255 in `mask`) the pixels [from, to) of a full-resolution frame whose change of colour
- * against the background exceeds `level` (dye-signal.ts); returns how many. A loop of its own, so
- * that the pass's other branches do not weigh on its compilation.
- */
-function markChange(img: Uint8Array, background: Uint8Array, mask: Uint8Array, from: number, to: number, level: number): number {
-  let marked = 0;
-  for (let at = from, p = 3 * from; at < to; at++, p += 3) {
-    if (!relativeChangeAbove(img[p]!, img[p + 1]!, img[p + 2]!, background[p]!, background[p + 1]!, background[p + 2]!, level)) continue;
-    mask[at] = 255;
-    marked++;
-  }
-  return marked;
-}
 
 /** Copies the marks of [from, to) from `marks` into `mask`; returns how many. */
 function markFrom(marks: Uint8Array, mask: Uint8Array, from: number, to: number): number {
@@ -142,6 +127,19 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
       }
     }
     summedFor = background;
+  }
+
+  /** At full resolution, the dye background's products (dye-signal.ts), made once for the array last given. */
+  let products = new Float64Array(0);
+  let productsFor: Uint8Array | null = null;
+
+  function productsOf(background: Uint8Array): Float64Array {
+    if (productsFor !== background) {
+      if (products.length !== background.length) products = new Float64Array(background.length);
+      backgroundProducts(background, products);
+      productsFor = background;
+    }
+    return products;
   }
 
   /** Whether block (`sx`, `sy`)'s mean change of colour against the background's exceeds `changeLevel` (dye-signal.ts). */
@@ -258,6 +256,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     // A block's mean change of colour has 1/k of a pixel's noise, and so has its offset (|s| is never negative).
     const changeLevel = background && dye ? Math.max(minColourChange, (offset + detectSigmas * sigma) / k) : 0;
     if (background && dye && k > 1) sumBackground(background);
+    const dyeProducts = background && dye && k === 1 ? productsOf(background) : products;
     for (let sy = 0; sy < sh; sy++) {
       const a = smallSpans[2 * sy]!;
       const b = smallSpans[2 * sy + 1]!;
@@ -278,7 +277,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
             if (known !== undefined && known[tileRow + (s0 >> tileShift)] === 1) {
               marked = markFrom(marks, m, rowAt + s0, rowAt + s1);
             } else if (k === 1) {
-              marked = markChange(img, background, m, rowAt + s0, rowAt + s1, changeLevel);
+              marked = markChangeAbove(img, dyeProducts, m, rowAt + s0, rowAt + s1, changeLevel);
             } else {
               for (let sx = s0; sx < s1; sx++) {
                 if (!blockChangeAbove(img, sx, sy, changeLevel)) continue;

@@ -155,6 +155,25 @@ describe("a windowed dye search beside a dark still mark", () => {
     }
   });
 
+  it("gives a float's windowed search up at once when a find lies near the windows' edge", () => {
+    // Floats do not widen: such a search comes back null for the whole search, as before.
+    const { plan: dyePlan, spans: floatSpans } = fullPlan(side);
+    const floatPlan: DetectionPlan = { ...dyePlan, tracer: "float", channels: 1 };
+    const threshold = createThreshold(floatPlan, floatSpans, 5);
+    const background = new Uint8Array(side * side).fill(40);
+    const frame = background.slice();
+    for (const [cx, cy] of [
+      [160, 160],
+      [80, 160],
+    ] as const) {
+      for (let y = cy - 5; y <= cy + 5; y++) for (let x = cx - 5; x <= cx + 5; x++) frame[y * side + x] = 200;
+    }
+    const mask = new Uint8Array(side * side);
+    const windowed = threshold.run(mask, { data: frame }, background, 0, 2, threshold.windowTiles([{ x: 160, y: 160, reach: 20 }]));
+    expect(windowed).toBeNull();
+    expect(threshold.run(mask, { data: frame }, background, 0, 2)).toHaveLength(2);
+  });
+
   it("gives the frame up to the whole search when what lies at the edge runs on past three widenings", () => {
     // A dark line across 20 tiles: each widening reaches two tiles further along it.
     const wide = 640;

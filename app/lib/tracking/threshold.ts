@@ -224,6 +224,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
       wanted.fill(0);
       const regions = pass(mask, image, background, offset, sigma, searched, round > 0 ? judged : undefined);
       if (regions) return regions;
+      if (round === last) break;
       // The tiles searched so far keep their marks for the next, wider round.
       judged.set(searched);
       marks.set(mask);

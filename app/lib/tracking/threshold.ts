@@ -4,7 +4,7 @@
  *
  * Floats: the difference from the background above a noise threshold, compared as block sums so
  * that no pixel needs a division. Dye against the stack's background: the block's change of colour
- * (dye-signal.ts, free of brightness) above a noise threshold, whatever its hue. Dye without a
+ * (dye-signal.ts, free of brightness) above a noise threshold, whatever its hue, marked by dye-marks.ts. Dye without a
  * background (fewer than 3 frames): the block's colour inside the plan's HSV range, value and
  * saturation checked before any hue is worked out.
  *
@@ -18,21 +18,10 @@
  * itself: Decision 82), up to `maxWidenings` times; after that, and at once for floats, the windows
  * are not trusted and the caller searches the whole frame.
  */
-import { backgroundProducts, markChangeAbove, relativeChangeAbove } from "./dye-signal";
+import { blockSum3, createDyeMarker, markKept } from "./dye-marks";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
-
-/** Copies the marks of [from, to) from `marks` into `mask`; returns how many. */
-function markFrom(marks: Uint8Array, mask: Uint8Array, from: number, to: number): number {
-  let marked = 0;
-  for (let at = from; at < to; at++) {
-    if (marks[at] === 0) continue;
-    mask[at] = 255;
-    marked++;
-  }
-  return marked;
-}
 
 /** Side of the tiles that group the thresholded pixels, detection-image px. */
 export const tileSize = 32;
@@ -92,71 +81,8 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
   // for every pixel of water.
   const wholeSaturation = k === 1 && Number.isInteger(satMin);
   const sums = new Float64Array(3);
-  /**
-   * The colour background's block sums, channel by channel, for dye at reduced resolution: a
-   * stack's background stays as it is from frame to frame, so it is summed once for the array it
-   * was last given (`summedFor`) instead of in every frame's searched blocks.
-   */
-  let backgroundSums = new Float64Array(0);
-  let summedFor: Uint8Array | null = null;
-
-  /** The three channels of block (`sx`, `sy`) of an interleaved RGB image, summed into `out`. */
-  function blockSum3(data: Uint8Array, sx: number, sy: number, out: Float64Array): void {
-    let c0 = 0;
-    let c1 = 0;
-    let c2 = 0;
-    for (let ky = 0; ky < k; ky++) {
-      for (let p = 3 * ((sy * k + ky) * width + sx * k), end = p + 3 * k; p < end; p += 3) {
-        c0 += data[p]!;
-        c1 += data[p + 1]!;
-        c2 += data[p + 2]!;
-      }
-    }
-    out[0] = c0;
-    out[1] = c1;
-    out[2] = c2;
-  }
-
-  function sumBackground(background: Uint8Array): void {
-    if (summedFor === background) return;
-    if (backgroundSums.length !== sw * sh * 3) backgroundSums = new Float64Array(sw * sh * 3);
-    for (let sy = 0; sy < sh; sy++) {
-      for (let sx = 0; sx < sw; sx++) {
-        blockSum3(background, sx, sy, sums);
-        backgroundSums.set(sums, 3 * (sy * sw + sx));
-      }
-    }
-    summedFor = background;
-  }
-
-  /** At full resolution, the dye background's products (dye-signal.ts), made once for the array last given. */
-  let products = new Float64Array(0);
-  let productsFor: Uint8Array | null = null;
-
-  function productsOf(background: Uint8Array): Float64Array {
-    if (productsFor !== background) {
-      if (products.length !== background.length) products = new Float64Array(background.length);
-      backgroundProducts(background, products);
-      productsFor = background;
-    }
-    return products;
-  }
-
-  /** Whether block (`sx`, `sy`)'s mean change of colour against the background's exceeds `changeLevel` (dye-signal.ts). */
-  function blockChangeAbove(img: Uint8Array, sx: number, sy: number, changeLevel: number): boolean {
-    blockSum3(img, sx, sy, sums);
-    const b = 3 * (sy * sw + sx);
-    return relativeChangeAbove(
-      sums[0]! / block,
-      sums[1]! / block,
-      sums[2]! / block,
-      backgroundSums[b]! / block,
-      backgroundSums[b + 1]! / block,
-      backgroundSums[b + 2]! / block,
-      changeLevel,
-    );
-  }
-
+  /** Dye against a background: the marks, with the background's terms made once per array (dye-marks.ts). */
+  const dyeMarker = createDyeMarker(plan);
   /** Column ranges of one tile row to search, [from, to) pairs in detection-image px. */
   const runs = new Int32Array(tilesX + 1);
 
@@ -256,8 +182,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     const level = background && !dye ? (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block : 0;
     // A block's mean change of colour has 1/k of a pixel's noise, and so has its offset (|s| is never negative).
     const changeLevel = background && dye ? Math.max(minColourChange, (offset + detectSigmas * sigma) / k) : 0;
-    if (background && dye && k > 1) sumBackground(background);
-    const dyeProducts = background && dye && k === 1 ? productsOf(background) : products;
+    if (background && dye) dyeMarker.use(background);
     for (let sy = 0; sy < sh; sy++) {
       const a = smallSpans[2 * sy]!;
       const b = smallSpans[2 * sy + 1]!;
@@ -274,18 +199,10 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
           // tile by tile: a tile an earlier round of this search judged takes its marks back.
           for (let s0 = c0; s0 < c1;) {
             const s1 = Math.min(c1, ((s0 >> tileShift) + 1) << tileShift);
-            let marked = 0;
-            if (known !== undefined && known[tileRow + (s0 >> tileShift)] === 1) {
-              marked = markFrom(marks, m, rowAt + s0, rowAt + s1);
-            } else if (k === 1) {
-              marked = markChangeAbove(img, dyeProducts, m, rowAt + s0, rowAt + s1, changeLevel);
-            } else {
-              for (let sx = s0; sx < s1; sx++) {
-                if (!blockChangeAbove(img, sx, sy, changeLevel)) continue;
-                m[rowAt + sx] = 255;
-                marked++;
-              }
-            }
+            const marked =
+              known !== undefined && known[tileRow + (s0 >> tileShift)] === 1
+                ? markKept(marks, m, rowAt + s0, rowAt + s1)
+                : dyeMarker.mark(img, m, sy, s0, s1, changeLevel);
             if (marked > 0) {
               for (let at = rowAt + s0, end = rowAt + s1; at < end; at++) {
                 if (m[at] === 0) continue;
@@ -347,7 +264,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
             g = img[p + 1]!;
             bl = img[p + 2]!;
           } else {
-            blockSum3(img, sx, sy, sums);
+            blockSum3(img, width, k, sx, sy, sums);
             r = sums[0]! / block;
             g = sums[1]! / block;
             bl = sums[2]! / block;

@@ -28,6 +28,7 @@
  * tells nothing: in the window it takes the signal of its mirror image through the centre, so the
  * pair pulls neither way, and the step is taken over the weight of the other pixels.
  */
+import { quickselect } from "simple-statistics";
 import { createPatchSignal } from "./dye-patch-signal";
 import { robustStats } from "./robust-stats";
 
@@ -105,8 +106,20 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
   /** The patch's change of colour alone, unit length (its components sum to zero). */
   const hue = new Float64Array(3);
   const signal = createPatchSignal(width, height, spans);
-  /** Scratch: how far each ring pixel's brightness strays from its colour's. */
-  let strays = new Float64Array(0);
+  /** Scratch: how far each ring pixel's brightness strays from its colour's (the first `ringCount` entries count). */
+  const strays: number[] = [];
+
+  /**
+   * The value a sort of the first `count` strays would put at `count >> 1`, found by selection
+   * (Floyd and Rivest, 1975, through simple-statistics) in linear time: the ring holds thousands
+   * of pixels, and sorting them took more than any other step of a measurement.
+   */
+  function middleStray(count: number): number {
+    const k = count >> 1;
+    // quickselect reads a `right` of 0 as the array's end: with one stray there is nothing to select.
+    if (count > 1) quickselect(strays, k, 0, count - 1);
+    return strays[k]!;
+  }
 
   /**
    * `bottomFrom`: the stack's still background when `background` is composed for this frame with a
@@ -160,8 +173,6 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     // One pass over the ring: the mean squares of both parts, and (for brightSlack below) how far
     // each pixel's brightness part strays from what its colour part says.
     const brightPerColourHere = brightness / chromaNorm;
-    const ringMost = (col1 - col0 + 2 * ringX) * (row1 - row0 + 2 * ringY);
-    if (strays.length < ringMost) strays = new Float64Array(ringMost);
     let brightSquares = 0;
     let colourSquares = 0;
     let ringCount = 0;
@@ -198,7 +209,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     // the box); white glare the background lacks adds to the brightness alone, a line or shadow it
     // lacks takes from it. So a pixel's brightness part counts only within the ring's noise of
     // what its colour part says: beyond that the pixel's brightness tells of something else.
-    const brightSlack = ringCount > 0 ? slackWidths * 1.4826 * strays.subarray(0, ringCount).sort()[ringCount >> 1]! : Infinity;
+    const brightSlack = ringCount > 0 ? slackWidths * 1.4826 * middleStray(ringCount) : Infinity;
     signal.aim(hue, brightCoefficient, colourCoefficient, brightPerColourHere, brightSlack);
 
     // Offset and noise of the signal over the searched region (the patch is a small part of it).

@@ -126,6 +126,54 @@ describe("a windowed dye search beside a dark still mark", () => {
     expect(windowed.mask).toEqual(whole.mask);
   });
 
+  it("marks, after one and after two widenings, frame after frame, what the whole search marks", () => {
+    // A widening round takes the marks of the tiles the round before searched from that round:
+    // they must be this frame's, whatever the frames before left. The second frame's line runs on
+    // two tiles past the first widening, so it widens twice; the third needs no widening.
+    const noisy = (discs: Parameters<typeof image>[1], seed: number) => {
+      const data = image(side, discs);
+      for (let i = 0, a = seed; i < data.length; i++) {
+        a = (Math.imul(a, 1664525) + 1013904223) >>> 0;
+        data[i] = Math.max(0, Math.min(255, data[i]! + (a >>> 29) - 4));
+      }
+      return data;
+    };
+    const frames = [
+      noisy([patch, { x: 80, y: 160, r: 8, rgb: mark }], 1),
+      noisy([patch, ...Array.from({ length: 6 }, (_, i) => ({ x: 80 - 8 * i, y: 150, r: 5, rgb: mark }))], 2),
+      noisy([patch], 3),
+    ];
+    const full = fullPlan(side);
+    const kept = createThreshold(full.plan, full.spans, 5);
+    const background = image(side, []);
+    for (const frame of frames) {
+      const mask = new Uint8Array(side * side);
+      const regions = kept.run(mask, { data: frame }, background, 0.005, 0.004, kept.windowTiles([{ x: 160, y: 160, reach: 20 }]));
+      const whole = search(side, frame, false);
+      expect(regions).toEqual(whole.regions);
+      expect(mask).toEqual(whole.mask);
+    }
+  });
+
+  it("gives a float's windowed search up at once when a find lies near the windows' edge", () => {
+    // Floats do not widen: such a search comes back null for the whole search, as before.
+    const { plan: dyePlan, spans: floatSpans } = fullPlan(side);
+    const floatPlan: DetectionPlan = { ...dyePlan, tracer: "float", channels: 1 };
+    const threshold = createThreshold(floatPlan, floatSpans, 5);
+    const background = new Uint8Array(side * side).fill(40);
+    const frame = background.slice();
+    for (const [cx, cy] of [
+      [160, 160],
+      [80, 160],
+    ] as const) {
+      for (let y = cy - 5; y <= cy + 5; y++) for (let x = cx - 5; x <= cx + 5; x++) frame[y * side + x] = 200;
+    }
+    const mask = new Uint8Array(side * side);
+    const windowed = threshold.run(mask, { data: frame }, background, 0, 2, threshold.windowTiles([{ x: 160, y: 160, reach: 20 }]));
+    expect(windowed).toBeNull();
+    expect(threshold.run(mask, { data: frame }, background, 0, 2)).toHaveLength(2);
+  });
+
   it("gives the frame up to the whole search when what lies at the edge runs on past three widenings", () => {
     // A dark line across 20 tiles: each widening reaches two tiles further along it.
     const wide = 640;

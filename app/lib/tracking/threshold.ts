@@ -4,7 +4,7 @@
  *
  * Floats: the difference from the background above a noise threshold, compared as block sums so
  * that no pixel needs a division. Dye against the stack's background: the block's change of colour
- * (dye-signal.ts, free of brightness) above a noise threshold, whatever its hue. Dye without a
+ * (dye-signal.ts, free of brightness) above a noise threshold, whatever its hue, marked by dye-marks.ts. Dye without a
  * background (fewer than 3 frames): the block's colour inside the plan's HSV range, value and
  * saturation checked before any hue is worked out.
  *
@@ -18,7 +18,7 @@
  * itself: Decision 82), up to `maxWidenings` times; after that, and at once for floats, the windows
  * are not trusted and the caller searches the whole frame.
  */
-import { relativeChangeAbove } from "./dye-signal";
+import { blockSum3, createDyeMarker, markKept } from "./dye-marks";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
@@ -81,43 +81,8 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
   // for every pixel of water.
   const wholeSaturation = k === 1 && Number.isInteger(satMin);
   const sums = new Float64Array(3);
-  /**
-   * The colour background's block sums, channel by channel, for dye at reduced resolution: a
-   * stack's background stays as it is from frame to frame, so it is summed once for the array it
-   * was last given (`summedFor`) instead of in every frame's searched blocks.
-   */
-  let backgroundSums = new Float64Array(0);
-  let summedFor: Uint8Array | null = null;
-
-  /** The three channels of block (`sx`, `sy`) of an interleaved RGB image, summed into `out`. */
-  function blockSum3(data: Uint8Array, sx: number, sy: number, out: Float64Array): void {
-    let c0 = 0;
-    let c1 = 0;
-    let c2 = 0;
-    for (let ky = 0; ky < k; ky++) {
-      for (let p = 3 * ((sy * k + ky) * width + sx * k), end = p + 3 * k; p < end; p += 3) {
-        c0 += data[p]!;
-        c1 += data[p + 1]!;
-        c2 += data[p + 2]!;
-      }
-    }
-    out[0] = c0;
-    out[1] = c1;
-    out[2] = c2;
-  }
-
-  function sumBackground(background: Uint8Array): void {
-    if (summedFor === background) return;
-    if (backgroundSums.length !== sw * sh * 3) backgroundSums = new Float64Array(sw * sh * 3);
-    for (let sy = 0; sy < sh; sy++) {
-      for (let sx = 0; sx < sw; sx++) {
-        blockSum3(background, sx, sy, sums);
-        backgroundSums.set(sums, 3 * (sy * sw + sx));
-      }
-    }
-    summedFor = background;
-  }
-
+  /** Dye against a background: the marks, with the background's terms made once per array (dye-marks.ts). */
+  const dyeMarker = createDyeMarker(plan);
   /** Column ranges of one tile row to search, [from, to) pairs in detection-image px. */
   const runs = new Int32Array(tilesX + 1);
 
@@ -158,6 +123,15 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
   /** The tiles a windowed search covers, widened round such finds (reused from frame to frame). */
   const widened = new Uint8Array(tilesX * tilesY);
 
+  /**
+   * A widening round searches the union of its tiles afresh, but the same image against the same
+   * background and level gives the tiles an earlier round searched the same verdicts: for dye,
+   * the mask of the round before is kept (`marks`) and read back for the tiles in `judged` instead
+   * of working their pixels out again (some half of a windowed search's pixels on the bench's stack).
+   */
+  const judged = new Uint8Array(tilesX * tilesY);
+  const marks = new Uint8Array(dye ? sw * sh : 0);
+
   /** Marks every tile within two of `t` in `wanted`. */
   function want(t: number): void {
     const tx = t % tilesX;
@@ -174,15 +148,30 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     searched.set(tiles);
     for (let round = 0, last = dye ? maxWidenings : 0; round <= last; round++) {
       wanted.fill(0);
-      const regions = pass(mask, image, background, offset, sigma, searched);
+      const regions = pass(mask, image, background, offset, sigma, searched, round > 0 ? judged : undefined);
       if (regions) return regions;
+      if (round === last) break;
+      // The tiles searched so far keep their marks for the next, wider round.
+      judged.set(searched);
+      marks.set(mask);
       for (let t = 0; t < searched.length; t++) searched[t] = searched[t]! | wanted[t]!;
     }
     return null;
   }
 
-  /** One threshold pass over `tiles` (or the whole frame); null, with `wanted` filled, if a find lies too close to their edge. */
-  function pass(mask: Uint8Array, image: ThresholdImage, background: Uint8Array | null, offset: number, sigma: number, tiles?: Uint8Array): CvRect[] | null {
+  /**
+   * One threshold pass over `tiles` (or the whole frame); null, with `wanted` filled, if a find lies
+   * too close to their edge. For dye, the tiles in `known` take their pixels' verdicts from `marks`.
+   */
+  function pass(
+    mask: Uint8Array,
+    image: ThresholdImage,
+    background: Uint8Array | null,
+    offset: number,
+    sigma: number,
+    tiles?: Uint8Array,
+    known?: Uint8Array,
+  ): CvRect[] | null {
     const m = mask;
     const img = image.data;
     m.fill(0);
@@ -193,7 +182,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     const level = background && !dye ? (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block : 0;
     // A block's mean change of colour has 1/k of a pixel's noise, and so has its offset (|s| is never negative).
     const changeLevel = background && dye ? Math.max(minColourChange, (offset + detectSigmas * sigma) / k) : 0;
-    if (background && dye && k > 1) sumBackground(background);
+    if (background && dye) dyeMarker.use(background);
     for (let sy = 0; sy < sh; sy++) {
       const a = smallSpans[2 * sy]!;
       const b = smallSpans[2 * sy + 1]!;
@@ -206,33 +195,25 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
         const c1 = Math.min(b, runs[2 * r + 1]!);
         if (c0 >= c1) continue;
         if (background && dye) {
-          // The change of colour against the background, of the block's mean at reduced resolution.
-          for (let sx = c0; sx < c1; sx++) {
-            let above: boolean;
-            if (k === 1) {
-              const p = 3 * (rowAt + sx);
-              above = relativeChangeAbove(img[p]!, img[p + 1]!, img[p + 2]!, background[p]!, background[p + 1]!, background[p + 2]!, changeLevel);
-            } else {
-              blockSum3(img, sx, sy, sums);
-              const b = 3 * (rowAt + sx);
-              above = relativeChangeAbove(
-                sums[0]! / block,
-                sums[1]! / block,
-                sums[2]! / block,
-                backgroundSums[b]! / block,
-                backgroundSums[b + 1]! / block,
-                backgroundSums[b + 2]! / block,
-                changeLevel,
-              );
+          // The change of colour against the background (of the block's mean at reduced resolution),
+          // tile by tile: a tile an earlier round of this search judged takes its marks back.
+          for (let s0 = c0; s0 < c1;) {
+            const s1 = Math.min(c1, ((s0 >> tileShift) + 1) << tileShift);
+            const marked =
+              known !== undefined && known[tileRow + (s0 >> tileShift)] === 1
+                ? markKept(marks, m, rowAt + s0, rowAt + s1)
+                : dyeMarker.mark(img, m, sy, s0, s1, changeLevel);
+            if (marked > 0) {
+              for (let at = rowAt + s0, end = rowAt + s1; at < end; at++) {
+                if (m[at] === 0) continue;
+                if (previous === at - 1) {
+                  tileHits[tileRow + ((at - rowAt) >> tileShift)] = 1;
+                  any = true;
+                }
+                previous = at;
+              }
             }
-            if (!above) continue;
-            const at = rowAt + sx;
-            m[at] = 255;
-            if (previous === at - 1) {
-              tileHits[tileRow + (sx >> tileShift)] = 1;
-              any = true;
-            }
-            previous = at;
+            s0 = s1;
           }
           continue;
         }
@@ -283,7 +264,7 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
             g = img[p + 1]!;
             bl = img[p + 2]!;
           } else {
-            blockSum3(img, sx, sy, sums);
+            blockSum3(img, width, k, sx, sy, sums);
             r = sums[0]! / block;
             g = sums[1]! / block;
             bl = sums[2]! / block;

@@ -1,0 +1,100 @@
+/**
+ * The dye threshold's marks over a run of detection-image pixels (threshold.ts): each pixel's, or
+ * at reduced resolution each block's, change of colour against the stack's colour background
+ * (dye-signal.ts) above a level. What the background contributes stays as it is from frame to frame,
+ * so it is made once for the background array last given: at full resolution the products of
+ * `relativeChangeAbove` (3 doubles a pixel), at reduced resolution the background's block sums
+ * (Decision 78). A background that changes must be a new array (detect.ts says so). A widening
+ * search also takes marks back from an earlier round over the same frame (`markKept`, Decision 85).
+ */
+import { backgroundProducts, markChangeAbove, relativeChangeAbove } from "./dye-signal";
+import type { DetectionPlan } from "./plan";
+
+/** The three channels of block (`sx`, `sy`), `k` px a side, of an interleaved RGB image `width` px wide, summed into `out`. */
+export function blockSum3(data: Uint8Array, width: number, k: number, sx: number, sy: number, out: Float64Array): void {
+  let c0 = 0;
+  let c1 = 0;
+  let c2 = 0;
+  for (let ky = 0; ky < k; ky++) {
+    for (let p = 3 * ((sy * k + ky) * width + sx * k), end = p + 3 * k; p < end; p += 3) {
+      c0 += data[p]!;
+      c1 += data[p + 1]!;
+      c2 += data[p + 2]!;
+    }
+  }
+  out[0] = c0;
+  out[1] = c1;
+  out[2] = c2;
+}
+
+/** Copies the marks of [from, to) from `marks` into `mask`; returns how many. */
+export function markKept(marks: Uint8Array, mask: Uint8Array, from: number, to: number): number {
+  let marked = 0;
+  for (let at = from; at < to; at++) {
+    if (marks[at] === 0) continue;
+    mask[at] = 255;
+    marked++;
+  }
+  return marked;
+}
+
+export interface DyeMarker {
+  /** The background the next marks are against; its terms are made when it is a new array. */
+  use(background: Uint8Array): void;
+  /**
+   * Marks (255 in `mask`) the pixels [c0, c1) of detection-image row `sy` whose change of colour
+   * against the background exceeds `level`; returns how many.
+   */
+  mark(img: Uint8Array, mask: Uint8Array, sy: number, c0: number, c1: number, level: number): number;
+}
+
+export function createDyeMarker(plan: DetectionPlan): DyeMarker {
+  const { smallWidth: sw, smallHeight: sh, shrink: k } = plan;
+  const width = plan.crop.width;
+  const block = k * k;
+  const sums = new Float64Array(3);
+  /** Full resolution: the products; reduced: the block sums, channel by channel. */
+  let terms = new Float64Array(0);
+  let madeFor: Uint8Array | null = null;
+
+  function use(background: Uint8Array): void {
+    if (madeFor === background) return;
+    if (terms.length !== sw * sh * 3) terms = new Float64Array(sw * sh * 3);
+    if (k === 1) {
+      backgroundProducts(background, terms);
+    } else {
+      for (let sy = 0; sy < sh; sy++) {
+        for (let sx = 0; sx < sw; sx++) {
+          blockSum3(background, width, k, sx, sy, sums);
+          terms.set(sums, 3 * (sy * sw + sx));
+        }
+      }
+    }
+    madeFor = background;
+  }
+
+  function mark(img: Uint8Array, mask: Uint8Array, sy: number, c0: number, c1: number, level: number): number {
+    const rowAt = sy * sw;
+    if (k === 1) return markChangeAbove(img, terms, mask, rowAt + c0, rowAt + c1, level);
+    let marked = 0;
+    for (let sx = c0; sx < c1; sx++) {
+      blockSum3(img, width, k, sx, sy, sums);
+      const b = 3 * (rowAt + sx);
+      const above = relativeChangeAbove(
+        sums[0]! / block,
+        sums[1]! / block,
+        sums[2]! / block,
+        terms[b]! / block,
+        terms[b + 1]! / block,
+        terms[b + 2]! / block,
+        level,
+      );
+      if (!above) continue;
+      mask[rowAt + sx] = 255;
+      marked++;
+    }
+    return marked;
+  }
+
+  return { use, mark };
+}

@@ -1,7 +1,8 @@
 import { createRequire } from "node:module";
 import { describe, expect, it } from "vitest";
 import { backgroundSampleIndices, fillFromSurroundings, floatBackground, medianBackground, medianInto } from "./background";
-import { createDetector, cropForPlan } from "./detect";
+import { createDetector } from "./detect";
+import { cropForPlan } from "./plan-crop";
 import type { OpenCv } from "./opencv-types";
 import { planDetection } from "./plan";
 import { createSyntheticRenderer, type SyntheticRunSpec } from "./synthetic";

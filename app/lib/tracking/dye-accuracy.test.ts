@@ -5,7 +5,8 @@
 import { createRequire } from "node:module";
 import { afterAll, describe, expect, it } from "vitest";
 import { backgroundSampleIndices, dyeBackground, floatBackground } from "./background";
-import { createDetector, cropForPlan, type Detector, type FrameImage } from "./detect";
+import { createDetector, type Detector, type FrameImage } from "./detect";
+import { cropForPlan } from "./plan-crop";
 import type { OpenCv } from "./opencv-types";
 import { planDetection, type DetectionPlan } from "./plan";
 import { createSyntheticRenderer, type SyntheticFrame, type SyntheticRunSpec, type SyntheticTracer } from "./synthetic";

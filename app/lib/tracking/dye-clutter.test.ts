@@ -7,7 +7,8 @@
  */
 import { createRequire } from "node:module";
 import { afterAll, describe, expect, it } from "vitest";
-import { createDetector, cropForPlan, type Detector, type FrameImage } from "./detect";
+import { createDetector, type Detector, type FrameImage } from "./detect";
+import { cropForPlan } from "./plan-crop";
 import { distinctPatches } from "./dye-patches";
 import { relativeChangeAbove, relativeChangeSquared, levelDifference } from "./dye-signal";
 import { hsv } from "./hsv";

@@ -5,7 +5,8 @@
 import { createRequire } from "node:module";
 import { afterAll, describe, expect, it } from "vitest";
 import { backgroundSampleIndices, medianBackground } from "./background";
-import { createDetector, cropForPlan, type Detector } from "./detect";
+import { createDetector, type Detector } from "./detect";
+import { cropForPlan } from "./plan-crop";
 import type { OpenCv } from "./opencv-types";
 import { planDetection } from "./plan";
 import { lastWholeFrame, searchedWhole, searchWindows, wholeSearchEvery } from "./search-windows";

@@ -1,7 +1,8 @@
 import { createRequire } from "node:module";
 import { afterAll, describe, expect, it } from "vitest";
 import { gaussian, seededRandom } from "../random";
-import { createDetector, cropForPlan } from "./detect";
+import { createDetector } from "./detect";
+import { cropForPlan } from "./plan-crop";
 import { fitDisc } from "./disc-fit";
 import { linkDetections } from "./link";
 import type { OpenCv } from "./opencv-types";

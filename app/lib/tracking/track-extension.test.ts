@@ -131,6 +131,20 @@ describe("pieces of a path carried on before they are joined", () => {
     for (const p of tracks[0]!.points) expect(Math.hypot(p.x - place(p.frameIndex).x, p.y - place(p.frameIndex).y)).toBeLessThan(0.15);
   });
 
+  it("does not grow a piece of false finds where no float is: the disc fit places nothing there", async () => {
+    // Three finds on the bare water (a patch of noise the detector took), far from the float's path.
+    const junk = sparse.map((f) =>
+      f.frameIndex >= 26 && f.frameIndex <= 28 ? { ...f, detections: [...f.detections, { x: 60, y: 150, area: 300, roundness: 0.9, intensity: 30 }] } : f,
+    );
+    const pieces = piecesToExtend(junk, closing);
+    expect(pieces.some((p) => p.points[0]!.x === 60)).toBe(true);
+    const extension = await extendTracks(pieces, blind, { frames, reachPx: 4 });
+    for (const [index, d] of extension.added) expect(Math.hypot(d.x - place(index).x, d.y - place(index).y), `frame ${index}`).toBeLessThan(0.15);
+    const { tracks } = linkDetections(withExtension(junk, extension), closing);
+    expect(tracks).toHaveLength(1);
+    expect(tracks[0]!.points.every((p) => p.x !== 60)).toBe(true);
+  });
+
   it("carries only the first piece on when the linked tracks alone are carried: the short one is never worked from", async () => {
     const { tracks } = linkDetections(sparse, closing);
     const extension = await extendTracks(tracks, blind, { frames, reachPx: 4 });

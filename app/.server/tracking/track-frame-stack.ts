@@ -288,11 +288,11 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
     throw new TrackingError("tracer-not-found", `The tracer was not found in any frame — check the tracer kind (${setup.tracer}) and the tank edge.`);
   }
   const linking: LinkingOptions = { maxStepPx: defaultStep(plan), ...defaultLinking, ...input.linking };
-  let { tracks, shortTracksDropped } = linkDetections(detections, linking);
   if (plan.tracer === "float") {
     // Floats hidden in part by glare: the pieces of their paths carried on by fitting the float's
     // disc (track-extension.ts), from pieces as short as the extension can start from and before
-    // pieces are joined across gaps, so it works into a gap from both sides; then linked again.
+    // pieces are joined across gaps, so it works into a gap from both sides; the fitted
+    // detections join the blobs' before the one linking below.
     const pieces = piecesToExtend(detections, linking);
     if (pieces.length > 0) {
       let fitter = search;
@@ -301,13 +301,10 @@ export async function trackFrameStack(input: TrackFrameStackInput): Promise<Trac
         return fitter.fitDisc(files[index]!, index, request);
       };
       const extension = await extendTracks(pieces, fit, { frames: total, reachPx: extensionReachPx });
-      if (extension.added.size > 0) {
-        const extended = withExtension(detections, extension);
-        detections.splice(0, detections.length, ...extended);
-        ({ tracks, shortTracksDropped } = linkDetections(detections, linking));
-      }
+      if (extension.added.size > 0) detections.splice(0, detections.length, ...withExtension(detections, extension));
     }
   }
+  const { tracks, shortTracksDropped } = linkDetections(detections, linking);
   if (tracks.length === 0) {
     const seen = detections.filter((f) => f.detections.length > 0).length;
     throw new TrackingError(

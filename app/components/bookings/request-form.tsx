@@ -1,6 +1,6 @@
 import { Form, useNavigation } from "react-router";
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
-import { useEffect, useState } from "react";
+import { useState } from "react";
 import { formCheck } from "~/lib/form-check";
 import { bookingRequestSchema } from "~/lib/validation/bookings";
 import { spinUpLeadS, tableBookingCaution } from "~/lib/bookings";
@@ -14,39 +14,41 @@ import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
 import { Notice, FormProblem } from "~/components/ui/notice";
 import type { BookingsPage } from "~/.server/bookings-page";
 
+/** The request form's state (conform), held by the page, which also reads whether it shows errors. */
+export function useBookingRequestForm(items: BookingsPage["items"], defaults: BookingsPage["defaults"], lastResult: SubmissionResult<string[]> | undefined) {
+  const bookable = items.filter((i) => i.status === "in_service");
+  return useForm({
+    lastResult,
+    ...formCheck(bookingRequestSchema),
+    defaultValue: { equipmentId: String(bookable.find((i) => i.kind === "table")?.id ?? ""), start: defaults.start, end: defaults.end },
+  });
+}
+
+type BookingRequestForm = ReturnType<typeof useBookingRequestForm>;
+
 /**
  * The request for equipment time. For a table it asks the planned rate and depth and proposes
  * starting earlier by the water's spin-up time, τ = H/√(νΩ) times the lab's setting.
  */
 export function BookingRequestCard({
   items,
-  defaults,
   spinUpTimesToWait,
-  lastResult,
-  onErrors,
+  form,
+  fields,
 }: {
   items: BookingsPage["items"];
-  defaults: BookingsPage["defaults"];
   spinUpTimesToWait: number;
-  lastResult: SubmissionResult<string[]> | undefined;
-  /** Told whether the form shows errors, so the page's last answer can give way to them. */
-  onErrors?: (shown: boolean) => void;
+  form: BookingRequestForm[0];
+  fields: BookingRequestForm[1];
 }) {
   const time = useLabTime();
   const navigation = useNavigation();
   const bookable = items.filter((i) => i.status === "in_service");
-  const [form, fields] = useForm({
-    lastResult,
-    ...formCheck(bookingRequestSchema),
-    defaultValue: { equipmentId: String(bookable.find((i) => i.kind === "table")?.id ?? ""), start: defaults.start, end: defaults.end },
-  });
   const [chosen, setChosen] = useState(typeof fields.equipmentId.initialValue === "string" ? fields.equipmentId.initialValue : "");
   const [rate, setRate] = useState("");
   const [depth, setDepth] = useState("");
   const [start, setStart] = useState(String(fields.start.initialValue ?? ""));
   const chosenItem = items.find((i) => String(i.id) === chosen);
-  const hasErrors = Object.keys(form.allErrors).length > 0;
-  useEffect(() => onErrors?.(hasErrors), [hasErrors, onErrors]);
   const rateRpm = numberOrNull(rate) ?? 0;
   const depthCm = numberOrNull(depth) ?? 0;
   const leadS = rateRpm > 0 && depthCm > 0 ? spinUpLeadS(depthCm / 100, rateRpm, spinUpTimesToWait) : null;

@@ -31,45 +31,65 @@ export const sidePoints = 4;
 const gatePerFramePx = 0.5;
 const gateFloorPx = 1;
 
-/** Where a steady turn through `points` (in frame order, the last one latest) stands `frames` after the last. */
-export function foreseeTurning(points: readonly TrackPoint[], frames: number): { x: number; y: number; speed: number } {
-  const n = points.length;
+/** A steady turn fitted to the end of a piece: where it ends, its heading there, its turn a frame and its speed along the arc. */
+interface SteadyTurn {
+  x: number;
+  y: number;
+  heading: number;
+  delta: number;
+  speed: number;
+}
+
+/** The steady turn through `points` (in frame order, the last one latest). */
+function steadyTurn(points: readonly TrackPoint[]): SteadyTurn {
   let chord = 0;
   let span = 0;
   let turn = 0;
   let turnSpan = 0;
-  let previous = 0;
-  let lastHeading = 0;
+  let heading = 0;
   let lastSpan = 1;
-  for (let k = 1; k < n; k++) {
+  for (let k = 1; k < points.length; k++) {
     const a = points[k - 1]!;
     const b = points[k]!;
     const df = Math.abs(b.frameIndex - a.frameIndex);
-    const heading = Math.atan2(b.y - a.y, b.x - a.x);
+    const next = Math.atan2(b.y - a.y, b.x - a.x);
     chord += Math.hypot(b.x - a.x, b.y - a.y);
     span += df;
     if (k > 1) {
-      const d = heading - previous;
+      const d = next - heading;
       turn += Math.atan2(Math.sin(d), Math.cos(d));
       turnSpan += (df + lastSpan) / 2;
     }
-    previous = heading;
-    lastHeading = heading;
+    heading = next;
     lastSpan = df;
   }
   const delta = turnSpan > 0 ? turn / turnSpan : 0;
   const perFrame = span > 0 ? chord / span : 0;
+  const end = points[points.length - 1]!;
   // A chord of a circle is shorter than its arc by sin(δ/2)/(δ/2); the heading at the last point is the last chord's turned on by half a step.
-  const speed = Math.abs(delta) > 1e-9 ? (perFrame * (delta / 2)) / Math.sin(delta / 2) : perFrame;
-  const heading = lastHeading + (delta * lastSpan) / 2;
-  const end = points[n - 1]!;
-  if (Math.abs(delta) <= 1e-9) return { x: end.x + speed * frames * Math.cos(heading), y: end.y + speed * frames * Math.sin(heading), speed };
-  const radius = speed / delta;
   return {
-    x: end.x + radius * (Math.sin(heading + delta * frames) - Math.sin(heading)),
-    y: end.y - radius * (Math.cos(heading + delta * frames) - Math.cos(heading)),
-    speed,
+    x: end.x,
+    y: end.y,
+    heading: heading + (delta * lastSpan) / 2,
+    delta,
+    speed: Math.abs(delta) > 1e-9 ? (perFrame * (delta / 2)) / Math.sin(delta / 2) : perFrame,
   };
+}
+
+/** Where a steady turn stands `frames` after its end. */
+function turnAhead(t: SteadyTurn, frames: number): { x: number; y: number } {
+  if (Math.abs(t.delta) <= 1e-9) return { x: t.x + t.speed * frames * Math.cos(t.heading), y: t.y + t.speed * frames * Math.sin(t.heading) };
+  const radius = t.speed / t.delta;
+  return {
+    x: t.x + radius * (Math.sin(t.heading + t.delta * frames) - Math.sin(t.heading)),
+    y: t.y - radius * (Math.cos(t.heading + t.delta * frames) - Math.cos(t.heading)),
+  };
+}
+
+/** Where a steady turn through `points` (in frame order, the last one latest) stands `frames` after the last. */
+export function foreseeTurning(points: readonly TrackPoint[], frames: number): { x: number; y: number; speed: number } {
+  const t = steadyTurn(points);
+  return { ...turnAhead(t, frames), speed: t.speed };
 }
 
 interface Candidate {
@@ -85,42 +105,47 @@ interface Candidate {
  */
 export function closeGaps(pieces: readonly TrackPoint[][], options: GapClosingOptions): TrackPoint[][] {
   const candidates: Candidate[] = [];
+  // Each piece's ends as steady turns, once: its end carried forward, its start carried back (the piece read backwards in time).
+  const ends = pieces.map((p) => (p.length < sidePoints ? null : steadyTurn(p.slice(-sidePoints))));
+  const starts = pieces.map((p) =>
+    p.length < sidePoints
+      ? null
+      : steadyTurn(
+          p
+            .slice(0, sidePoints)
+            .reverse()
+            .map((q) => ({ ...q, frameIndex: -q.frameIndex })),
+        ),
+  );
   pieces.forEach((a, i) => {
-    if (a.length < sidePoints) return;
+    const end = ends[i];
+    if (!end) return;
     const last = a[a.length - 1]!;
     pieces.forEach((b, j) => {
-      if (i === j || b.length < sidePoints) return;
-      const first = b[0]!;
-      const gap = first.frameIndex - last.frameIndex - 1;
+      const start = starts[j];
+      if (i === j || !start) return;
+      const gap = b[0]!.frameIndex - last.frameIndex - 1;
       if (gap < 1 || gap > options.maxGapFrames) return;
+      const speed = (end.speed + start.speed) / 2;
+      if (!(Math.abs(end.speed - start.speed) <= 0.25 * speed + 0.5)) return;
       const half = (gap + 1) / 2;
-      const forward = foreseeTurning(a.slice(-sidePoints), half);
-      // The second piece read backwards in time foresees where it came from.
-      const backward = foreseeTurning(
-        b
-          .slice(0, sidePoints)
-          .reverse()
-          .map((p) => ({ ...p, frameIndex: -p.frameIndex })),
-        half,
-      );
-      const speed = (forward.speed + backward.speed) / 2;
-      if (!(Math.abs(forward.speed - backward.speed) <= 0.25 * speed + 0.5)) return;
+      const forward = turnAhead(end, half);
+      const backward = turnAhead(start, half);
       const gate = gateFloorPx + gatePerFramePx * (gap + 1);
-      const miss = Math.hypot(forward.x - backward.x, forward.y - backward.y);
-      if (miss <= gate) candidates.push({ from: i, to: j });
+      if (Math.hypot(forward.x - backward.x, forward.y - backward.y) <= gate) candidates.push({ from: i, to: j });
     });
   });
   // One partner a side, or none.
-  const ends = new Map<number, number>();
-  const starts = new Map<number, number>();
+  const partnersAfter = new Map<number, number>();
+  const partnersBefore = new Map<number, number>();
   for (const c of candidates) {
-    ends.set(c.from, (ends.get(c.from) ?? 0) + 1);
-    starts.set(c.to, (starts.get(c.to) ?? 0) + 1);
+    partnersAfter.set(c.from, (partnersAfter.get(c.from) ?? 0) + 1);
+    partnersBefore.set(c.to, (partnersBefore.get(c.to) ?? 0) + 1);
   }
   const next = new Map<number, number>();
   const joined = new Set<number>();
   for (const c of candidates) {
-    if (ends.get(c.from) !== 1 || starts.get(c.to) !== 1) continue;
+    if (partnersAfter.get(c.from) !== 1 || partnersBefore.get(c.to) !== 1) continue;
     next.set(c.from, c.to);
     joined.add(c.to);
   }

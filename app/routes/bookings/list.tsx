@@ -1,6 +1,5 @@
 import { Form, data } from "react-router";
 import { parseWithZod } from "@conform-to/zod/v4";
-import { useState } from "react";
 import type { SubmissionResult } from "@conform-to/react";
 import type { Route } from "./+types/list";
 import { readForm } from "~/.server/http";
@@ -16,7 +15,7 @@ import { fromZonedInput, timeFormat } from "~/lib/time-format";
 import { BookingWeek } from "~/components/booking-week";
 import { type BookingRowOutcome } from "~/components/booking-actions";
 import { AllBookingsCard } from "~/components/bookings/bookings-table";
-import { BookingRequestCard } from "~/components/bookings/request-form";
+import { BookingRequestCard, useBookingRequestForm } from "~/components/bookings/request-form";
 import { CalendarFeedCard } from "~/components/bookings/calendar-feed-card";
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
@@ -110,7 +109,8 @@ export async function action({ request }: Route.ActionArgs) {
 export default function Bookings({ loaderData, actionData }: Route.ComponentProps) {
   const outcome = actionData ?? {};
   const { items, week } = loaderData;
-  const [formHasErrors, setFormHasErrors] = useState(false);
+  const [form, fields] = useBookingRequestForm(items, loaderData.defaults, outcome.request);
+  const formHasErrors = Object.keys(form.allErrors).length > 0;
   const weekItem = items.find((i) => i.id === week.itemId);
 
   return (
@@ -130,13 +130,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
       </div>
 
       <div className="grid grid-cols-1 gap-6 lg:grid-cols-[1fr_2fr]">
-        <BookingRequestCard
-          items={items}
-          defaults={loaderData.defaults}
-          spinUpTimesToWait={loaderData.spinUpTimesToWait}
-          lastResult={outcome.request}
-          onErrors={setFormHasErrors}
-        />
+        <BookingRequestCard items={items} spinUpTimesToWait={loaderData.spinUpTimesToWait} form={form} fields={fields} />
 
         <Card title={<span id="week">Week view{weekItem ? `: ${weekItem.name}` : ""}</span>}>
           <Form method="get" className="mb-4 flex flex-wrap items-end gap-3" preventScrollReset>

@@ -9,41 +9,30 @@
  * worker thread shows beside decoding and the hand-over.
  */
 import { createHash } from "node:crypto";
-import { readdirSync, readFileSync } from "node:fs";
+import { existsSync, readdirSync, readFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import path from "node:path";
-import { fileURLToPath } from "node:url";
 import { decodeFrame } from "../app/.server/tracking/decode-frame";
 import { backgroundSampleIndices, dyeBackground } from "../app/lib/tracking/background";
 import { createDetector } from "../app/lib/tracking/detect";
 import type { OpenCv } from "../app/lib/tracking/opencv-types";
 import { planDetection } from "../app/lib/tracking/plan";
 import { lastWholeFrame, searchedWhole, searchWindows } from "../app/lib/tracking/search-windows";
-import type { Detection, TrackingSetup } from "../app/lib/tracking/types";
+import type { Detection } from "../app/lib/tracking/types";
+import { benchSetup, benchStackDir } from "./bench-stacks";
 
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const repsArg = process.argv.indexOf("--reps");
 const reps = repsArg >= 0 ? Number(process.argv[repsArg + 1]) : 3;
 /** As track-frame-stack.ts on 2 cores: the windows of frame i come from frame i − 6 and the two before it. */
 const lag = 6;
 
-const benchDir = path.join(root, "node_modules/.cache/tankside-bench");
-const stacks = readdirSync(benchDir).filter((n) => n.startsWith("dye-600-1280x720-"));
-if (stacks.length !== 1) throw new Error(`Expected one dye bench stack in ${benchDir}: run \`npm run bench -- --tracer dye\` first.`);
-const stackDir = path.join(benchDir, stacks[0]!);
+const stackDir = benchStackDir("dye");
+if (!existsSync(path.join(stackDir, "complete.json"))) throw new Error(`No dye bench stack in ${stackDir}: run \`npm run bench -- --tracer dye\` first.`);
 const files = readdirSync(stackDir)
   .filter((n) => n.endsWith(".jpg"))
   .sort()
   .map((n) => path.join(stackDir, n));
-const omega = (2 * Math.PI * 10) / 60;
-// The bench's setup (scripts/bench-tracking.ts).
-const setup: TrackingSetup = {
-  tracer: "dye",
-  centre: { x: 640, y: 360 },
-  tankEdge: { cx: 640, cy: 360, r: 335 },
-  mirrored: false,
-  rotation: { omega, cameraMode: "lab" },
-};
+const setup = benchSetup("dye");
 const plan = planDetection(setup, 1280, 720);
 const { width, height } = plan.crop;
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };

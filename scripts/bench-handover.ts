@@ -12,20 +12,13 @@ import os from "node:os";
 import path from "node:path";
 import Piscina from "piscina";
 import { planDetection, planKey } from "../app/lib/tracking/plan";
-import type { TrackingSetup } from "../app/lib/tracking/types";
+import { benchSetup } from "./bench-stacks";
 
 const frames = 3000;
 const inFlight = 6;
 const rounds = 3;
-const omega = (2 * Math.PI * 10) / 60;
 // The float view of `npm run bench`.
-const setup: TrackingSetup = {
-  tracer: "float",
-  centre: { x: 640, y: 360 },
-  tankEdge: { cx: 640, cy: 360, r: 335 },
-  mirrored: false,
-  rotation: { omega, cameraMode: "rotating" },
-};
+const setup = benchSetup("float");
 
 async function main(): Promise<void> {
   const plan = planDetection(setup, 1280, 720);

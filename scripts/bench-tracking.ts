@@ -1,7 +1,7 @@
 /**
- * Tracking speed and memory on a 600-frame 1280×720 JPEG stack: by default a float on an
- * inertial circle; with `--tracer dye` an elongated low-contrast dye patch (3:1, contrast 0.6,
- * noise σ 7) carried round by the table under a lab-fixed camera. The stack is rendered once into
+ * Tracking speed and memory on a 600-frame 1280×720 JPEG stack (bench-stacks.ts): by default a
+ * float on an inertial circle; with `--tracer dye` an elongated low-contrast dye patch carried
+ * round by the table under a lab-fixed camera. The stack is rendered once into
  * node_modules/.cache (a separate process, so its memory does not count) and reused. Prints
  * details on stderr and, as the last line of stdout, one JSON object: frames, width, height,
  * framesPerSecond, decodeOnlyFramesPerSecond, peakRssMB, and (added later) tracer, cpuMsPerFrame,
@@ -20,7 +20,6 @@
  * (scripts/thread-times.ts): where the time beyond decoding goes.
  */
 import { spawnSync } from "node:child_process";
-import { createHash } from "node:crypto";
 import { existsSync, readFileSync } from "node:fs";
 import { mkdir, readdir, rm, writeFile } from "node:fs/promises";
 import os from "node:os";
@@ -30,76 +29,20 @@ import { decodeFrame } from "../app/.server/tracking/decode-frame";
 import { trackFrameStack } from "../app/.server/tracking/track-frame-stack";
 import { closeTrackingPool, trackingThreads, warmTrackingPool } from "../app/.server/tracking/tracking-pool";
 import { planDetection } from "../app/lib/tracking/plan";
-import type { SyntheticRunSpec } from "../app/lib/tracking/synthetic";
-import type { Track, TrackingSetup } from "../app/lib/tracking/types";
+import type { Track } from "../app/lib/tracking/types";
 import { writeSyntheticStack } from "../tests/fixtures/tracking/write-stack";
+import { benchSetup, benchSpec, benchStackDir, root, type BenchTracer } from "./bench-stacks";
 import { threadSnapshot, threadTimes } from "./thread-times";
 
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const tracerArg = process.argv.indexOf("--tracer");
 const tracerName = tracerArg >= 0 ? process.argv[tracerArg + 1] : "float";
 if (tracerName !== "float" && tracerName !== "dye") throw new Error(`--tracer is float or dye, not ${String(tracerName)}.`);
-const tracer: "float" | "dye" = tracerName;
+const tracer: BenchTracer = tracerName;
 const warmPool = process.argv.includes("--warm-pool");
 const byThread = process.argv.includes("--threads");
-const omega = (2 * Math.PI * 10) / 60;
-const floatSpec: SyntheticRunSpec = {
-  width: 1280,
-  height: 720,
-  frames: 600,
-  fps: 30,
-  seed: 2024,
-  camera: "rotating",
-  omega,
-  centre: { x: 640, y: 360 },
-  pxPerM: 1000,
-  tankRadiusPx: 340,
-  noiseSigma: 3,
-  illuminationGradient: 0.25,
-  glare: { x: 820, y: 230, radiusPx: 12, strength: 150 },
-  tracers: [
-    {
-      kind: "float",
-      path: { kind: "inertial-circle", centre: { x: -0.05, y: 0.03 }, radius: 0.12, phase: 0.5, drag: 0.02 },
-      sigmaPx: 3.5,
-      brightness: 120,
-    },
-  ],
-};
-const dyeSpec: SyntheticRunSpec = {
-  ...floatSpec,
-  camera: "lab",
-  noiseSigma: 7,
-  tracers: [
-    {
-      kind: "dye",
-      path: { kind: "still", at: { x: -0.15, y: 0.08 } },
-      sigmaAlongPx: 9,
-      sigmaAcrossPx: 3,
-      colour: [200, 30, 60],
-      opacity: 0.6,
-      spreadPerS: 0.02,
-      stretchPerS: 0.01,
-      turnRadPerS: 0.1,
-    },
-  ],
-};
-const spec = tracer === "dye" ? dyeSpec : floatSpec;
-const setup: TrackingSetup = {
-  tracer,
-  centre: spec.centre,
-  tankEdge: { cx: 640, cy: 360, r: 335 },
-  mirrored: false,
-  // As the server gives it (the run's set rate and camera mode), for the background's turning model.
-  rotation: { omega, cameraMode: spec.camera },
-};
-/** Keyed by the stack's description and the renderer's source, so a change to either renders anew. */
-const stackKey = createHash("sha256")
-  .update(JSON.stringify(spec))
-  .update(readFileSync(path.join(root, "app/lib/tracking/synthetic.ts")))
-  .digest("hex")
-  .slice(0, 12);
-const cacheDir = path.join(root, `node_modules/.cache/tankside-bench/${tracer}-600-1280x720-${stackKey}`);
+const spec = benchSpec(tracer);
+const setup = benchSetup(tracer);
+const cacheDir = benchStackDir(tracer);
 const doneMarker = path.join(cacheDir, "complete.json");
 
 function log(message: string): void {

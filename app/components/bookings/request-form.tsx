@@ -67,14 +67,9 @@ export function BookingRequestCard({
           defaultValue={chosen}
           error={fields.equipmentId.errors}
           onChange={(e) => setChosen(e.target.value)}
-        >
-          <option value="">Choose…</option>
-          {bookable.map((i) => (
-            <option key={i.id} value={i.id}>
-              {i.name} ({kindLabels[i.kind].toLowerCase()})
-            </option>
-          ))}
-        </SelectField>
+          blank="Choose…"
+          choices={bookable.map((i) => ({ value: i.id, label: `${i.name} (${kindLabels[i.kind].toLowerCase()})` }))}
+        />
         <TextField
           label="Start"
           type="datetime-local"

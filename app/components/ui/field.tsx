@@ -62,7 +62,31 @@ export function TextField({ label, name, hint, error, unit, ...input }: FieldShe
   );
 }
 
-export function SelectField({ label, name, hint, error, children, ...select }: FieldShell & SelectHTMLAttributes<HTMLSelectElement>) {
+/** One option of a SelectField. */
+export interface Choice {
+  value: string | number;
+  label: ReactNode;
+}
+
+/** Choices from a fixed list of values and their labels (a kind, a state, a role). */
+export function choicesOf<V extends string>(values: readonly V[], labels: Readonly<Record<V, ReactNode>>): Choice[] {
+  return values.map((value) => ({ value, label: labels[value] }));
+}
+
+/**
+ * A labelled select. Its options are `choices`, after a first empty option reading `blank` when
+ * given ("Any state" in a filter, "Choose…" in a form); `children` come after them.
+ */
+export function SelectField({
+  label,
+  name,
+  hint,
+  error,
+  choices,
+  blank,
+  children,
+  ...select
+}: FieldShell & SelectHTMLAttributes<HTMLSelectElement> & { choices?: readonly Choice[]; blank?: string }) {
   const message = errorText(error);
   return (
     <Shell label={label} name={name} hint={hint} error={error}>
@@ -74,6 +98,12 @@ export function SelectField({ label, name, hint, error, children, ...select }: F
         className={control}
         {...select}
       >
+        {blank !== undefined ? <option value="">{blank}</option> : null}
+        {choices?.map((c) => (
+          <option key={c.value} value={c.value}>
+            {c.label}
+          </option>
+        ))}
         {children}
       </select>
     </Shell>

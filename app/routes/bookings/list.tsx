@@ -135,15 +135,12 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
         <Card title={<span id="week">Week view{weekItem ? `: ${weekItem.name}` : ""}</span>}>
           <Form method="get" className="mb-4 flex flex-wrap items-end gap-3" preventScrollReset>
             <div className="min-w-64 flex-1">
-              <SelectField label="Item" name="item" defaultValue={String(week.itemId || "")}>
-                {items
-                  .filter((i) => i.status !== "retired")
-                  .map((i) => (
-                    <option key={i.id} value={i.id}>
-                      {i.name}
-                    </option>
-                  ))}
-              </SelectField>
+              <SelectField
+                label="Item"
+                name="item"
+                defaultValue={String(week.itemId || "")}
+                choices={items.filter((i) => i.status !== "retired").map((i) => ({ value: i.id, label: i.name }))}
+              />
             </div>
             <input type="hidden" name="week" value={week.start} />
             <Button tone="plain" type="submit">

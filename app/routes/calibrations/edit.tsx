@@ -14,7 +14,7 @@ import { calibrationSchema } from "~/lib/validation/calibrations";
 import { calibrationKindFor, calibrationKindLabels, calibrationKinds, intervalDaysFor, MIN_RATE_READINGS, type CalibrationKind } from "~/lib/calibrations";
 import { Button, ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
-import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
+import { choicesOf, SelectField, TextAreaField, TextField } from "~/components/ui/field";
 import { Notice, FormProblem } from "~/components/ui/notice";
 
 export const meta: Route.MetaFunction = ({ data }) => [
@@ -151,13 +151,8 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
             error={fields.kind.errors}
             disabled={Boolean(record)}
             onChange={(e) => setKind(e.target.value as CalibrationKind)}
-          >
-            {calibrationKinds.map((k) => (
-              <option key={k} value={k}>
-                {calibrationKindLabels[k]}
-              </option>
-            ))}
-          </SelectField>
+            choices={choicesOf(calibrationKinds, calibrationKindLabels)}
+          />
           {record ? <input type="hidden" name={fields.kind.name} value={record.kind} /> : null}
           <SelectField
             label={kind === "rate" ? "Table" : "Camera"}
@@ -166,14 +161,9 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
             defaultValue={fields.equipmentId.initialValue as string | undefined}
             error={fields.equipmentId.errors}
             disabled={Boolean(record)}
-          >
-            <option value="">Choose…</option>
-            {candidates.map((i) => (
-              <option key={i.id} value={i.id}>
-                {i.name}
-              </option>
-            ))}
-          </SelectField>
+            blank="Choose…"
+            choices={candidates.map((i) => ({ value: i.id, label: i.name }))}
+          />
           {record ? <input type="hidden" name={fields.equipmentId.name} value={record.equipmentId} /> : null}
           {text("performedOn", "Calibration date", { type: "date", max: loaderData.today })}
           {text("dueOn", "Due date", {
@@ -190,14 +180,9 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
                   key={fields.meterId.key}
                   defaultValue={fields.meterId.initialValue as string | undefined}
                   error={fields.meterId.errors}
-                >
-                  <option value="">Choose…</option>
-                  {meters.map((m) => (
-                    <option key={m.id} value={m.id}>
-                      {m.name}
-                    </option>
-                  ))}
-                </SelectField>
+                  blank="Choose…"
+                  choices={meters.map((m) => ({ value: m.id, label: m.name }))}
+                />
               </div>
               <fieldset className="md:col-span-2" aria-describedby={fields.readings.errors ? "readings-error" : undefined}>
                 <legend className="font-bold">Readings</legend>

@@ -8,7 +8,7 @@ import { calibrationKindLabels, calibrationKinds, standingLabels } from "~/lib/c
 import { calibrationMatches, calibrationStandings, parseCalibrationFilters, type CalibrationFilters } from "~/lib/validation/calibration-filters";
 import { useLabTime } from "~/components/lab-time";
 import { Button, ButtonLink } from "~/components/ui/button";
-import { SelectField, TextField } from "~/components/ui/field";
+import { choicesOf, SelectField, TextField } from "~/components/ui/field";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { StandingTag, calibrationResult } from "~/components/calibration-facts";
@@ -88,30 +88,21 @@ export default function Calibrations({ loaderData }: Route.ComponentProps) {
         aria-label="Filter calibrations"
         key={JSON.stringify(filters)}
       >
-        <SelectField label="Kind" name="kind" defaultValue={filters.kind ?? ""}>
-          <option value="">Any kind</option>
-          {calibrationKinds.map((k) => (
-            <option key={k} value={k}>
-              {calibrationKindLabels[k]}
-            </option>
-          ))}
-        </SelectField>
-        <SelectField label="Item" name="equipment" defaultValue={filters.equipment ?? ""}>
-          <option value="">Any item</option>
-          {loaderData.items.map((i) => (
-            <option key={i.id} value={i.id}>
-              {i.name}
-            </option>
-          ))}
-        </SelectField>
-        <SelectField label="Standing" name="standing" defaultValue={filters.standing ?? ""}>
-          <option value="">Any standing</option>
-          {calibrationStandings.map((st) => (
-            <option key={st} value={st}>
-              {standingLabels[st]}
-            </option>
-          ))}
-        </SelectField>
+        <SelectField label="Kind" name="kind" defaultValue={filters.kind ?? ""} blank="Any kind" choices={choicesOf(calibrationKinds, calibrationKindLabels)} />
+        <SelectField
+          label="Item"
+          name="equipment"
+          defaultValue={filters.equipment ?? ""}
+          blank="Any item"
+          choices={loaderData.items.map((i) => ({ value: i.id, label: i.name }))}
+        />
+        <SelectField
+          label="Standing"
+          name="standing"
+          defaultValue={filters.standing ?? ""}
+          blank="Any standing"
+          choices={choicesOf(calibrationStandings, standingLabels)}
+        />
         <TextField label="Text in item, person or notes" name="q" type="search" defaultValue={filters.q ?? ""} maxLength={100} />
         <div className="flex flex-wrap items-end gap-3 md:col-span-4">
           <Button type="submit">Search</Button>

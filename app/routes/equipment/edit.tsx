@@ -11,7 +11,7 @@ import { equipmentSchema } from "~/lib/validation/equipment";
 import { equipmentKinds, equipmentStatuses, kindLabels, meterTypes, statusLabels, type EquipmentKind } from "~/lib/equipment";
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
-import { SelectField, TextAreaField, TextField } from "~/components/ui/field";
+import { choicesOf, SelectField, TextAreaField, TextField } from "~/components/ui/field";
 import { FormProblem } from "~/components/ui/notice";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.item ? `Edit ${data.item.name}` : "Add equipment"} · Tankside` }];
@@ -93,22 +93,17 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
             error={fields.kind.errors}
             disabled={Boolean(item)}
             onChange={(e) => setKind(e.target.value as EquipmentKind)}
-          >
-            {equipmentKinds.map((k) => (
-              <option key={k} value={k}>
-                {kindLabels[k]}
-              </option>
-            ))}
-          </SelectField>
+            choices={choicesOf(equipmentKinds, kindLabels)}
+          />
           {item ? <input type="hidden" name={fields.kind.name} value={item.kind} /> : null}
           {text("name", "Name", { maxLength: 120, placeholder: "e.g. Table B (west bench)" })}
-          <SelectField label="Status" name={fields.status.name} defaultValue={fields.status.initialValue} error={fields.status.errors}>
-            {equipmentStatuses.map((s) => (
-              <option key={s} value={s}>
-                {statusLabels[s]}
-              </option>
-            ))}
-          </SelectField>
+          <SelectField
+            label="Status"
+            name={fields.status.name}
+            defaultValue={fields.status.initialValue}
+            error={fields.status.errors}
+            choices={choicesOf(equipmentStatuses, statusLabels)}
+          />
           {text("location", "Location")}
           {text("maker", "Maker")}
           {text("model", "Model")}
@@ -148,13 +143,8 @@ export default function EditEquipment({ loaderData, actionData }: Route.Componen
               label="Type"
               name={fields.meterType.name}
               defaultValue={typeof fields.meterType.initialValue === "string" ? fields.meterType.initialValue : "tachometer"}
-            >
-              {meterTypes.map((m) => (
-                <option key={m} value={m}>
-                  {m}
-                </option>
-              ))}
-            </SelectField>
+              choices={meterTypes.map((m) => ({ value: m, label: m }))}
+            />
           ) : null}
           <div className="md:col-span-2">
             <TextAreaField label="Notes" name={fields.notes.name} defaultValue={fields.notes.initialValue as string | undefined} error={fields.notes.errors} />

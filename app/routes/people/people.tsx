@@ -11,7 +11,7 @@ import { roleLabels, roles } from "~/lib/roles";
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
 import { PersonRow } from "~/components/person-row";
-import { SelectField, TextField } from "~/components/ui/field";
+import { choicesOf, SelectField, TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
 import { ScrollRegion } from "~/components/ui/scroll-region";
 import { formText } from "~/lib/form-text";
@@ -121,13 +121,8 @@ export default function People({ loaderData, actionData }: Route.ComponentProps)
               key={fields.role.key}
               defaultValue={fields.role.initialValue ?? "technician"}
               error={fields.role.errors}
-            >
-              {roles.map((r) => (
-                <option key={r} value={r}>
-                  {roleLabels[r]}
-                </option>
-              ))}
-            </SelectField>
+              choices={choicesOf(roles, roleLabels)}
+            />
             <Button type="submit">Send invitation</Button>
             <p className="text-sm text-muted">The invitation link lets them choose a password; it works once, for three days.</p>
           </Form>

@@ -198,33 +198,26 @@ export default function RunForm({ loaderData, actionData }: Route.ComponentProps
               defaultValue={live.tableId}
               error={fields.tableId.errors}
               onChange={(e) => setLive({ ...live, tableId: e.target.value })}
-            >
-              {tables.map((t) => (
-                <option key={t.id} value={t.id}>
-                  {t.name} (up to {formatNumber(t.maxRateRpm, 6)} rpm)
-                </option>
-              ))}
-            </SelectField>
+              choices={tables.map((t) => ({ value: t.id, label: `${t.name} (up to ${formatNumber(t.maxRateRpm, 6)} rpm)` }))}
+            />
             <SelectField
               label="Tank"
               name="tankId"
               defaultValue={live.tankId}
               error={fields.tankId.errors}
               onChange={(e) => setLive({ ...live, tankId: e.target.value })}
-            >
-              {tanks.map((t) => (
-                <option key={t.id} value={t.id}>
-                  {t.name} ({formatCentimetres(t.diameterM)} × {formatCentimetres(t.depthM)})
-                </option>
-              ))}
-            </SelectField>
-            <SelectField label="Camera" name="cameraId" defaultValue={String(source?.cameraId ?? cameras[0]?.id ?? "")} error={fields.cameraId.errors}>
-              {cameras.map((c) => (
-                <option key={c.id} value={c.id}>
-                  {c.name} ({c.resolutionWidthPx}×{c.resolutionHeightPx}, {formatNumber(c.nominalFrameRateFps, 6)} frames/s)
-                </option>
-              ))}
-            </SelectField>
+              choices={tanks.map((t) => ({ value: t.id, label: `${t.name} (${formatCentimetres(t.diameterM)} × ${formatCentimetres(t.depthM)})` }))}
+            />
+            <SelectField
+              label="Camera"
+              name="cameraId"
+              defaultValue={String(source?.cameraId ?? cameras[0]?.id ?? "")}
+              error={fields.cameraId.errors}
+              choices={cameras.map((c) => ({
+                value: c.id,
+                label: `${c.name} (${c.resolutionWidthPx}×${c.resolutionHeightPx}, ${formatNumber(c.nominalFrameRateFps, 6)} frames/s)`,
+              }))}
+            />
             <TextField
               label="Set rate"
               name="setRateRpm"

@@ -13,9 +13,6 @@ export interface FrameSize {
   height: number;
 }
 
-/** What decoding a frame needs of the plan: the frame's size, the crop and the channels. */
-export type DecodePlan = Pick<DetectionPlan, "frameWidth" | "frameHeight" | "crop" | "channels">;
-
 function frameName(file: string, index: number): string {
   return `frame ${index + 1} (${path.basename(file)})`;
 }
@@ -91,7 +88,7 @@ export async function readFrameSize(file: string, index: number): Promise<FrameS
  * `into` (at least the crop's size, e.g. a slot of shared memory that worker threads read) the
  * bytes are written there and a view of them returned; otherwise into a new array.
  */
-export async function decodeFrame(file: string, index: number, plan: DecodePlan, into?: Uint8Array): Promise<Uint8Array> {
+export async function decodeFrame(file: string, index: number, plan: DetectionPlan, into?: Uint8Array): Promise<Uint8Array> {
   const bytes = await readBytes(file, index);
   // One instance for the header check and the decode, as sharp allows.
   const image = sharp(bytes, sharpOptions);

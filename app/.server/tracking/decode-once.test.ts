@@ -4,18 +4,12 @@ import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { smallLabFloatCentre, smallLabFloatSpec, writeSyntheticStack, type WrittenStack } from "../../../tests/fixtures/tracking/write-stack";
 import { decodeFrame } from "./decode-frame";
-import { decodeInto } from "./decode-thread";
 import { prepareStackSearch, trackFrameStack } from "./track-frame-stack";
 import { closeTrackingPool } from "./tracking-pool";
 
 vi.mock("./decode-frame", async (importOriginal) => {
   const actual = await importOriginal<typeof import("./decode-frame")>();
   return { ...actual, decodeFrame: vi.fn(actual.decodeFrame) };
-});
-// A searched frame is decoded on the decoding thread, asked for here (decode-thread.ts).
-vi.mock("./decode-thread", async (importOriginal) => {
-  const actual = await importOriginal<typeof import("./decode-thread")>();
-  return { ...actual, decodeInto: vi.fn(actual.decodeInto) };
 });
 
 const centre = smallLabFloatCentre;
@@ -34,22 +28,16 @@ afterAll(async () => {
   await rm(dir, { recursive: true, force: true });
 });
 
-/** How many times each frame index was decoded, on this thread or the decoding thread, since the mocks were last cleared. */
+/** How many times each frame index was decoded since the mock was last cleared. */
 function decodesPerFrame(): number[] {
   const counts = new Array<number>(stack.files.length).fill(0);
   for (const call of vi.mocked(decodeFrame).mock.calls) counts[call[1]]!++;
-  for (const call of vi.mocked(decodeInto).mock.calls) counts[call[1]]!++;
   return counts;
-}
-
-function clearDecodes(): void {
-  vi.mocked(decodeFrame).mockClear();
-  vi.mocked(decodeInto).mockClear();
 }
 
 describe("a job's pass decodes each frame once", () => {
   it("searches the background's sampled frames from the crops already decoded for it, and finds the same", async () => {
-    clearDecodes();
+    vi.mocked(decodeFrame).mockClear();
     const result = await trackFrameStack({ files: stack.files, times: stack.times, setup });
     expect(decodesPerFrame()).toEqual(new Array<number>(stack.files.length).fill(1));
     expect(result.tracks).toHaveLength(1);
@@ -57,7 +45,7 @@ describe("a job's pass decodes each frame once", () => {
 
     // The streaming tracker's way (frames may be replaced after the background is made): every
     // searched frame decoded from its file; the detections are the same.
-    clearDecodes();
+    vi.mocked(decodeFrame).mockClear();
     const search = await prepareStackSearch(stack.files, setup, { width: 320, height: 240 });
     const sampled = decodesPerFrame();
     for (const [index, file] of stack.files.entries()) {

@@ -13,7 +13,6 @@ import type { SearchWindow } from "../../lib/tracking/threshold";
 import type { TurningBackground } from "../../lib/tracking/turning-background";
 import type { Detection, FrameDetections, Track, TrackingQuality, TrackingSetup } from "../../lib/tracking/types";
 import { decodeFrame, readFrameSize, type FrameSize } from "./decode-frame";
-import { decodeInto, startDecodeThread } from "./decode-thread";
 import { cancelled, searchFailed, TrackingError } from "./errors";
 import { stillBackground } from "./stack-background";
 import { backgroundId, cores, runTask, startWorkers, trackingPool } from "./tracking-pool";
@@ -134,7 +133,7 @@ export async function prepareStackSearch(
   const plan = makePlan(setup, width, height);
   const key = planKey(plan);
   const workers = await trackingPool();
-  const warmUp = Promise.all([startWorkers(workers), startDecodeThread()]);
+  const warmUp = startWorkers(workers);
   warmUp.catch(() => {});
   let background: Uint8Array | null;
   let turning: TurningBackground | null = null;
@@ -182,11 +181,10 @@ export async function prepareStackSearch(
     async detect(file: string, index: number, windows?: Promise<SearchWindow[] | null>) {
       const slot = freeSlots.pop() ?? new Uint8Array(new SharedArrayBuffer(frameBytes));
       try {
-        // Decoded while the earlier frames that place the windows are still being searched, on the
-        // decoding thread (decode-thread.ts), whose heap takes sharp's buffer a frame.
+        // Decoded while the earlier frames that place the windows are still being searched.
         const j = sampleAt.get(index);
         const image =
-          sampled && j !== undefined ? copyInto(slot, sampled.subarray(j * frameBytes, (j + 1) * frameBytes)) : await decodeInto(file, index, plan, slot);
+          sampled && j !== undefined ? copyInto(slot, sampled.subarray(j * frameBytes, (j + 1) * frameBytes)) : await decodeFrame(file, index, plan, slot);
         const inWindows = (await windows) ?? null;
         if (signal?.aborted) throw cancelled();
         try {

@@ -2,11 +2,13 @@
  * The tracking job's pool of worker threads (piscina): one fewer than the cores, started on the
  * first job or ahead of it, each task raced against a worker that dies outside a task.
  */
+import { existsSync } from "node:fs";
 import os from "node:os";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
 import Piscina from "piscina";
-import { closeDecodeThread, startDecodeThread } from "./decode-thread";
 import type { TrackTask, TrackTaskResult } from "./track-worker";
-import { bundledWorker, workerSource } from "./worker-bundle";
+import { bundledWorker } from "./worker-bundle";
 import { workerExecArgv } from "./worker-options";
 
 /** The machine's cores: the pool's size and the decoders' share follow from it. */
@@ -28,12 +30,26 @@ export interface TrackingPool {
 
 let pool: TrackingPool | null = null;
 
-/** The worker's source, bundled at the first job (worker-bundle.ts). */
+/**
+ * The worker is bundled from its TypeScript source at the first job (worker-bundle.ts), so it runs
+ * the same library code as the routes and the command line. A bundled server has no copy beside
+ * it: fall back to the source tree under the working directory. The name sits in a variable so
+ * that the bundler does not take `new URL(…, import.meta.url)` for an asset and copy the file away
+ * from its imports.
+ */
 const workerName = "track-worker.ts";
+
+function workerFile(): string {
+  const beside = path.join(path.dirname(fileURLToPath(import.meta.url)), workerName);
+  if (existsSync(beside)) return beside;
+  const inSource = path.resolve(process.cwd(), "app/.server/tracking", workerName);
+  if (existsSync(inSource)) return inSource;
+  throw new Error(`The tracking worker was not found at ${beside} or ${inSource}.`);
+}
 
 export async function trackingPool(): Promise<TrackingPool> {
   if (pool) return pool;
-  const filename = await bundledWorker(workerSource(workerName));
+  const filename = await bundledWorker(workerFile());
   // Another job may have made the pool while the bundle was being made.
   if (pool) return pool;
   const piscina = new Piscina<TrackTask, TrackTaskResult>({
@@ -97,12 +113,12 @@ export async function startWorkers(workers: TrackingPool): Promise<void> {
  * idle time (a minute).
  */
 export async function warmTrackingPool(): Promise<void> {
-  await Promise.all([startWorkers(await trackingPool()), startDecodeThread()]);
+  await startWorkers(await trackingPool());
 }
 
-/** Stops the worker threads (the decoding thread too, decode-thread.ts), so a server or a test can exit. The next job starts a new pool. */
+/** Stops the worker threads, so a server or a test can exit. The next job starts a new pool. */
 export async function closeTrackingPool(): Promise<void> {
   const closing = pool;
   pool = null;
-  await Promise.all([closing?.piscina.destroy(), closeDecodeThread()]);
+  if (closing) await closing.piscina.destroy();
 }

@@ -7,24 +7,8 @@ import { createHash } from "node:crypto";
 import { mkdir, rename, writeFile } from "node:fs/promises";
 import { existsSync } from "node:fs";
 import path from "node:path";
-import { fileURLToPath } from "node:url";
 
 const made = new Map<string, Promise<string>>();
-
-/**
- * A worker entry's TypeScript source (`name`, e.g. "track-worker.ts"), bundled at the first job
- * so that it runs the same library code as the routes and the command line. A bundled server has
- * no copy beside this module: fall back to the source tree under the working directory. Callers
- * keep the name in a variable, so that the bundler does not take `new URL(…, import.meta.url)` for
- * an asset and copy the file away from its imports.
- */
-export function workerSource(name: string): string {
-  const beside = path.join(path.dirname(fileURLToPath(import.meta.url)), name);
-  if (existsSync(beside)) return beside;
-  const inSource = path.resolve(process.cwd(), "app/.server/tracking", name);
-  if (existsSync(inSource)) return inSource;
-  throw new Error(`The worker ${name} was not found at ${beside} or ${inSource}.`);
-}
 
 /**
  * The bundle of the worker at `source`, written under the project's node_modules/.cache (so the

@@ -17,7 +17,8 @@
  * (decodeFrame as a job calls it), run before the tracking pass in the same process.
  *
  * `--threads` also prints, on stderr, each pass's processor time by kind of thread
- * (scripts/thread-times.ts): where the time beyond decoding goes.
+ * (scripts/thread-times.ts): where the time beyond decoding goes, and the main thread's garbage
+ * collections in each pass (scripts/gc-counts.ts). `--each-thread` prints every thread's time too.
  */
 import { spawnSync } from "node:child_process";
 import { existsSync, readFileSync } from "node:fs";
@@ -32,14 +33,16 @@ import { planDetection } from "../app/lib/tracking/plan";
 import type { Track } from "../app/lib/tracking/types";
 import { writeSyntheticStack } from "../tests/fixtures/tracking/write-stack";
 import { benchSetup, benchSpec, benchStackDir, root, type BenchTracer } from "./bench-stacks";
-import { threadSnapshot, threadTimes } from "./thread-times";
+import { collectionCounter } from "./gc-counts";
+import { eachThread, threadSnapshot, threadTimes } from "./thread-times";
 
 const tracerArg = process.argv.indexOf("--tracer");
 const tracerName = tracerArg >= 0 ? process.argv[tracerArg + 1] : "float";
 if (tracerName !== "float" && tracerName !== "dye") throw new Error(`--tracer is float or dye, not ${String(tracerName)}.`);
 const tracer: BenchTracer = tracerName;
 const warmPool = process.argv.includes("--warm-pool");
-const byThread = process.argv.includes("--threads");
+const everyThread = process.argv.includes("--each-thread");
+const byThread = everyThread || process.argv.includes("--threads");
 const spec = benchSpec(tracer);
 const setup = benchSetup(tracer);
 const cacheDir = benchStackDir(tracer);
@@ -115,16 +118,22 @@ async function main(): Promise<void> {
   const times = files.map((_, i) => i / spec.fps);
   const sampler = rssSampler();
 
+  const collections = byThread ? collectionCounter() : null;
   const existing = threadSnapshot();
   const decodeCpuBefore = process.cpuUsage();
   const decodeFps = await decodeOnly(files);
   const decodeCpu = process.cpuUsage(decodeCpuBefore);
   const afterDecode = threadSnapshot();
-  if (byThread) log(`decode only, ms of processor time by thread: ${JSON.stringify(threadTimes(existing, afterDecode, existing))}`);
+  if (byThread) {
+    log(`decode only, ms of processor time by thread: ${JSON.stringify(threadTimes(existing, afterDecode, existing))}`);
+    if (everyThread) log(`decode only, each thread: ${JSON.stringify(eachThread(existing, afterDecode))}`);
+    log(`decode only, the main thread's collections: ${JSON.stringify(collections?.take())}`);
+  }
   const decodeCpuMsPerFrame = (decodeCpu.user + decodeCpu.system) / 1000 / files.length;
   log(`decode only: ${decodeFps.toFixed(1)} frames/s, ${decodeCpuMsPerFrame.toFixed(1)} ms CPU a frame`);
 
   if (warmPool) await warmTrackingPool();
+  collections?.take();
   const beforeTracking = threadSnapshot();
   const started = performance.now();
   const cpuBefore = process.cpuUsage();
@@ -135,7 +144,13 @@ async function main(): Promise<void> {
   const cpu = process.cpuUsage(cpuBefore);
   const cpuMsPerFrame = (cpu.user + cpu.system) / 1000 / files.length;
   const fps = files.length / seconds;
-  if (byThread) log(`tracking, ms of processor time by thread: ${JSON.stringify(threadTimes(beforeTracking, threadSnapshot(), afterDecode))}`);
+  if (byThread) {
+    const afterTracking = threadSnapshot();
+    log(`tracking, ms of processor time by thread: ${JSON.stringify(threadTimes(beforeTracking, afterTracking, afterDecode))}`);
+    if (everyThread) log(`tracking, each thread: ${JSON.stringify(eachThread(beforeTracking, afterTracking))}`);
+    log(`tracking, the main thread's collections: ${JSON.stringify(collections?.take())}`);
+    collections?.stop();
+  }
   await closeTrackingPool();
   const sampledPeak = sampler.stop();
   // The kernel's high-water mark for the whole process, threads included; no render happened here.

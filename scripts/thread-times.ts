@@ -48,3 +48,13 @@ export function threadTimes(before: ThreadSnapshot, after: ThreadSnapshot, exist
   }
   return times;
 }
+
+/** Processor time of each thread that spent any between `before` and `after`, most first: tid, name, ms. */
+export function eachThread(before: ThreadSnapshot, after: ThreadSnapshot): { tid: string; name: string; ms: number }[] {
+  const out: { tid: string; name: string; ms: number }[] = [];
+  for (const [tid, { name, ms }] of after) {
+    const spent = ms - (before.get(tid)?.ms ?? 0);
+    if (spent > 0) out.push({ tid, name, ms: spent });
+  }
+  return out.sort((a, b) => b.ms - a.ms);
+}

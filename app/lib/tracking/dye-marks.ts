@@ -4,11 +4,18 @@
  * (dye-signal.ts) above a level. What the background contributes stays as it is from frame to frame,
  * so it is made once for the background array last given: at full resolution the products of
  * `relativeChangeAbove` (3 doubles a pixel), at reduced resolution the background's block sums
- * (Decision 78). A background that changes must be a new array (detect.ts says so). A widening
- * search also takes marks back from an earlier round over the same frame (`markKept`, Decision 85).
+ * (Decision 78). They are made piece by piece (`termSpan` detection-image px of one row), when a
+ * search first reads the piece: a background composed anew for every frame (a lab-fixed view of a
+ * turning table, turning-compose.ts) then costs the pieces searched, not the whole crop (Decision
+ * 91). A background that changes must be a new array (detect.ts says so). A widening search also
+ * takes marks back from an earlier round over the same frame (`markKept`, Decision 85).
  */
 import { backgroundProducts, markChangeAbove, relativeChangeAbove } from "./dye-signal";
 import type { DetectionPlan } from "./plan";
+
+/** The background's terms are made in pieces of this many detection-image px of one row (a threshold tile's width). */
+const termSpan = 32;
+const termShift = 5;
 
 /** The three channels of block (`sx`, `sy`), `k` px a side, of an interleaved RGB image `width` px wide, summed into `out`. */
 export function blockSum3(data: Uint8Array, width: number, k: number, sx: number, sy: number, out: Float64Array): void {
@@ -39,7 +46,7 @@ export function markKept(marks: Uint8Array, mask: Uint8Array, from: number, to: 
 }
 
 export interface DyeMarker {
-  /** The background the next marks are against; its terms are made when it is a new array. */
+  /** The background the next marks are against; when it is a new array its terms are made anew, piece by piece as marks read them. */
   use(background: Uint8Array): void;
   /**
    * Marks (255 in `mask`) the pixels [c0, c1) of detection-image row `sy` whose change of colour
@@ -53,27 +60,47 @@ export function createDyeMarker(plan: DetectionPlan): DyeMarker {
   const width = plan.crop.width;
   const block = k * k;
   const sums = new Float64Array(3);
+  const piecesX = Math.ceil(sw / termSpan);
   /** Full resolution: the products; reduced: the block sums, channel by channel. */
   let terms = new Float64Array(0);
+  let background: Uint8Array = new Uint8Array(0);
   let madeFor: Uint8Array | null = null;
+  /** Per piece of a row, the background (by `generation`) its terms were made for; 0: none yet. */
+  const madeIn = new Uint32Array(piecesX * sh);
+  let generation = 0;
 
-  function use(background: Uint8Array): void {
-    if (madeFor === background) return;
+  function use(next: Uint8Array): void {
+    if (madeFor === next) return;
     if (terms.length !== sw * sh * 3) terms = new Float64Array(sw * sh * 3);
-    if (k === 1) {
-      backgroundProducts(background, terms);
-    } else {
-      for (let sy = 0; sy < sh; sy++) {
-        for (let sx = 0; sx < sw; sx++) {
-          blockSum3(background, width, k, sx, sy, sums);
-          terms.set(sums, 3 * (sy * sw + sx));
-        }
+    background = next;
+    madeFor = next;
+    generation = generation === 0xffffffff ? 1 : generation + 1;
+    if (generation === 1) madeIn.fill(0);
+  }
+
+  /** The terms of detection-image row `sy`, columns [c0, c1), made for the current background where not yet. */
+  function ensureTerms(sy: number, c0: number, c1: number): void {
+    const rowAt = sy * sw;
+    for (let piece = c0 >> termShift, last = (c1 - 1) >> termShift; piece <= last; piece++) {
+      const at = sy * piecesX + piece;
+      if (madeIn[at] === generation) continue;
+      madeIn[at] = generation;
+      const s0 = piece << termShift;
+      const s1 = Math.min(sw, s0 + termSpan);
+      if (k === 1) {
+        backgroundProducts(background, terms, rowAt + s0, rowAt + s1);
+        continue;
+      }
+      for (let sx = s0; sx < s1; sx++) {
+        blockSum3(background, width, k, sx, sy, sums);
+        terms.set(sums, 3 * (rowAt + sx));
       }
     }
-    madeFor = background;
   }
 
   function mark(img: Uint8Array, mask: Uint8Array, sy: number, c0: number, c1: number, level: number): number {
+    if (c0 >= c1) return 0;
+    ensureTerms(sy, c0, c1);
     const rowAt = sy * sw;
     if (k === 1) return markChangeAbove(img, terms, mask, rowAt + c0, rowAt + c1, level);
     let marked = 0;

@@ -90,12 +90,13 @@ export function relativeChangeAbove(i0: number, i1: number, i2: number, b0: numb
 }
 
 /**
- * The products P_c of relativeChangeAbove for every pixel of a background (a black channel taken
- * as 1), into `out` (3 per pixel): they stay as they are for the background's frames, so the
- * threshold makes them once per background array.
+ * The products P_c of relativeChangeAbove for the pixels [from, to) of a background (all of them
+ * by default; a black channel taken as 1), into the same places of `out` (3 per pixel): they stay
+ * as they are for the background's frames, so the threshold makes them once per background array,
+ * for the parts it searches (dye-marks.ts).
  */
-export function backgroundProducts(background: Uint8Array, out: Float64Array): void {
-  for (let q = 0; q < background.length; q += 3) {
+export function backgroundProducts(background: Uint8Array, out: Float64Array, from = 0, to = background.length / 3): void {
+  for (let q = 3 * from, end = 3 * to; q < end; q += 3) {
     const c0 = background[q]! > 1 ? background[q]! : 1;
     const c1 = background[q + 1]! > 1 ? background[q + 1]! : 1;
     const c2 = background[q + 2]! > 1 ? background[q + 2]! : 1;

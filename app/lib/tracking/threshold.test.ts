@@ -174,6 +174,35 @@ describe("a windowed dye search beside a dark still mark", () => {
     expect(threshold.run(mask, { data: frame }, background, 0, 2)).toHaveLength(2);
   });
 
+  it("makes the background's products for the tiles it searches, and anew for a new background, as a fresh threshold does", () => {
+    // The products are made piece by piece as a search reads them (dye-marks.ts): a window elsewhere
+    // under the same background reads pieces not made yet, and a new background array (as a frame's
+    // composed background is) must not be read through the pieces made for the one before.
+    const markDisc = { x: 80, y: 160, r: 8, rgb: mark };
+    const still = image(side, []);
+    const holdingMark = image(side, [markDisc]);
+    const withMark = image(side, [patch, markDisc]);
+    const elsewhere = image(side, [{ ...patch, x: 250, y: 60 }]);
+    const full = fullPlan(side);
+    const kept = createThreshold(full.plan, full.spans, 5);
+    const runs = [
+      { background: still, frame: withMark, at: patch, regions: 2 },
+      { background: still, frame: elsewhere, at: { x: 250, y: 60 }, regions: 1 },
+      { background: holdingMark, frame: withMark, at: patch, regions: 1 },
+      { background: still, frame: withMark, at: patch, regions: 2 },
+    ];
+    for (const { background, frame, at, regions } of runs) {
+      const windows = [{ x: at.x, y: at.y, reach: 20 }];
+      const mask = new Uint8Array(side * side);
+      const found = kept.run(mask, { data: frame }, background, 0.005, 0.004, kept.windowTiles(windows));
+      const fresh = createThreshold(full.plan, full.spans, 5);
+      const freshMask = new Uint8Array(side * side);
+      expect(found).toEqual(fresh.run(freshMask, { data: frame }, background, 0.005, 0.004, fresh.windowTiles(windows)));
+      expect(mask).toEqual(freshMask);
+      expect(found).toHaveLength(regions);
+    }
+  });
+
   it("gives the frame up to the whole search when what lies at the edge runs on past three widenings", () => {
     // A dark line across 20 tiles: each widening reaches two tiles further along it.
     const wide = 640;

@@ -64,7 +64,7 @@ const startExplained = 0.3;
 /** The candidate's peak (a 3 × 3 mean) must stand this many noise widths of that mean above zero. */
 const peakWidths = 4;
 /** The candidates' grid, px. */
-const gridPx = 2;
+const gridPx = 4;
 /** Fewest grid points round the patch to judge a copy by. */
 const minSamples = 50;
 /** Candidates tried, strongest first; copies kept (one per lamp that lights the bottom). */
@@ -97,7 +97,7 @@ export function findShadowCopies(search: ShadowSearch): ShadowCopy[] {
     return (1 - fy) * ((1 - fx) * at(c, r) + fx * at(c + 1, r)) + fy * ((1 - fx) * at(c, r + 1) + fx * at(c + 1, r + 1));
   };
 
-  // Candidates, on a grid of every other pixel each way (a copy is several pixels across): the
+  // Candidates, on a grid of every 4th pixel each way (a copy is several pixels across): the
   // means of the excess over 3 × 3 grid points outside the core and within the reach that stand
   // above the noise and above their eight neighbours' means, strongest first. The mirror image is
   // read at the nearest pixel here (the centre rounded to half a pixel); the match below reads

@@ -26,12 +26,13 @@
  * over a still glare's the background also holds (dye-bottom.ts), and a pixel's brightness part
  * counts only within the ring's noise of what its colour part says. A clipped pixel (glare at 255)
  * tells nothing: in the window it takes the signal of its mirror image through the centre, so the
- * pair pulls neither way, and the step is taken over the weight of the other pixels.
+ * pair pulls neither way, and the step is taken over the weight of the other pixels. The patch's
+ * coloured shadows beside it, weaker copies of it (dye-shadow.ts), are taken out of the signal and
+ * the window settles again.
  */
 import { quickselect } from "simple-statistics";
 import { createPatchSignal } from "./dye-patch-signal";
 import { findShadowCopies, withoutShadows } from "./dye-shadow";
-import { robustStats } from "./robust-stats";
 
 /** Threshold below which the signal gets no weight, in noise widths. */
 const thresholdSigmas = 2;
@@ -54,17 +55,6 @@ const ringMinPx = 4;
 const settledPx = 2e-3;
 /** Smallest variance of the window along any direction, px². */
 const minVariance = 0.5;
-/**
- * Every 5th pixel of every 13th row: some 5500 samples in a 670 px tank, plenty for a median and
- * MAD. Read along rows, neighbouring samples share the memory's cache lines (every 8th pixel of
- * every 8th row took a cache miss each); strides prime to 8 meet every position in JPEG's 8 × 8
- * blocks, whose noise differs by position (every 8th pixel of every 8th row met one a row).
- */
-const noiseRowStride = 13;
-const noiseColumnStride = 5;
-/** Histogram bins per unit of signal (a relative change of colour), and its half-range. */
-const binsPerUnit = 4096;
-const halfRange = 0.5;
 /** A pixel's brightness part counts within this many robust widths of what its colour part says. */
 const slackWidths = 3;
 /** The shadow's copies are looked for again round the centre and shape found without them, this many times in all. */
@@ -102,7 +92,6 @@ export interface PatchCentre {
  * searched (inside the tank edge).
  */
 export function createDyeCentre(width: number, height: number, spans: Int32Array) {
-  const hist = new Uint32Array(2 * halfRange * binsPerUnit + 1);
   /** The dye's direction of change, unit length. */
   const direction = new Float64Array(3);
   const change = new Float64Array(3);
@@ -216,18 +205,8 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     signal.aim(hue, brightCoefficient, colourCoefficient, brightPerColourHere, brightSlack);
 
     // Offset and noise of the signal over the searched region (the patch is a small part of it).
-    hist.fill(0);
-    for (let row = 0; row < height; row += noiseRowStride) {
-      const a = spans[2 * row]!;
-      const b = spans[2 * row + 1]!;
-      for (let col = a; col < b; col += noiseColumnStride) {
-        const s = signal.at(row * width + col);
-        const bin = Math.round((Math.max(-halfRange, Math.min(halfRange, s)) + halfRange) * binsPerUnit);
-        hist[bin]!++;
-      }
-    }
-    const stats = robustStats(hist, halfRange * binsPerUnit);
-    const floor = (stats.median + thresholdSigmas * stats.sigma) / binsPerUnit;
+    const stats = signal.spread();
+    const floor = stats.median + thresholdSigmas * stats.sigma;
 
     // First pass: the signal over the box above half its highest gives a first centre and shape.
     let top = 0;
@@ -237,7 +216,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       for (let col = a; col < b; col++) if (!free || free(col, row)) top = Math.max(top, signal.once(row * width + col));
     }
     const firstFloor = Math.max(floor, firstShare * top);
-    const offset = stats.median / binsPerUnit;
+    const offset = stats.median;
     let x = (col0 + col1 - 1) / 2;
     let y = (row0 + row1 - 1) / 2;
     let shape: [number, number, number] | null = null;
@@ -353,7 +332,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       return signal.clipped(col, row) ? 0 : signal.once(p) - offset;
     };
     for (let round = 0; round < shadowRounds; round++) {
-      const search = { width, height, spans, value: patchSignal, x, y, shape, noise: stats.sigma / binsPerUnit };
+      const search = { width, height, spans, value: patchSignal, x, y, shape, noise: stats.sigma };
       const copies = findShadowCopies(search);
       if (copies.length === 0) break;
       read = withoutShadows(copies, search);

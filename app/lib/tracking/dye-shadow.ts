@@ -9,12 +9,15 @@
  * lies beside the patch; where the patch's long axis points at it, the copy's near end overlaps the
  * patch's tail and draws the centre towards it.
  *
- * Here, around a patch already centred: the strongest signal outside the patch's core and within
- * a reach of it is a candidate copy; the displacement d is refined to the whole pixel that best
- * matches the patch's own signal shifted by d to the signal there (least squares with the share α
- * free), then to a fraction of a pixel by a parabola through the neighbours. The copy is kept only
- * when it explains most of the signal where it lies and its share is that of a copy (a real second
- * patch of the same shape is as strong as the first, or stronger, and is measured on its own).
+ * Here, around a patch already centred: the dye is point-symmetric about its centre and a copy
+ * beside it is not, so the candidates are the peaks of the signal's excess over its mirror image
+ * through the centre (outside the patch's core, within a reach of it, above the noise of that
+ * excess). From each, the displacement d climbs to the whole pixel where the patch's own signal
+ * moved by d best matches that excess (least squares with the share α free: the patch's own tail
+ * leaves no excess, so a copy over it is matched without it), then to a fraction of a pixel by a
+ * parabola through the neighbours. The copy is kept only when it explains most of the excess where
+ * it lies and its share is that of a copy (a real second patch of the same shape is as strong as
+ * the first, or stronger, and is measured on its own).
  * The corrected signal is s(p) − α·s(p − d) for the pixels whose p − d falls in the patch's window:
  * for the copy's overlap with the patch's tail that is the copy itself, up to the copy of the copy
  * (α² at 2d, beyond the window).
@@ -27,7 +30,7 @@ export interface ShadowCopy {
   dy: number;
   /** Its strength as a share of the patch's. */
   share: number;
-  /** The share of the signal where the copy lies that the copy explains. */
+  /** The share of the excess where the copy lies that the copy explains. */
   explained: number;
 }
 
@@ -61,7 +64,7 @@ const maxShare = 0.8;
 const minExplained = 0.5;
 /** A candidate is climbed from only when the patch at its peak explains this share there. */
 const startExplained = 0.3;
-/** The candidate's peak (a 3 × 3 mean) must stand this many noise widths of that mean above zero. */
+/** A candidate's peak (a mean of 3 × 3 grid points) must stand this many robust widths of such means above zero. */
 const peakWidths = 4;
 /** The candidates' grid, px. */
 const gridPx = 4;
@@ -70,7 +73,7 @@ const minSamples = 50;
 /** Candidates tried, strongest first; copies kept (one per lamp that lights the bottom). */
 const maxCandidates = 4;
 const maxCopies = 2;
-/** Candidates or copies closer than this (px) are one copy. */
+/** Copies closer than this (px) are one copy. */
 const sameCopyPx = 8;
 
 function inverseOf(shape: readonly [number, number, number]): [number, number, number] {

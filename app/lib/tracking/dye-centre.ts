@@ -26,11 +26,13 @@
  * over a still glare's the background also holds (dye-bottom.ts), and a pixel's brightness part
  * counts only within the ring's noise of what its colour part says. A clipped pixel (glare at 255)
  * tells nothing: in the window it takes the signal of its mirror image through the centre, so the
- * pair pulls neither way, and the step is taken over the weight of the other pixels.
+ * pair pulls neither way, and the step is taken over the weight of the other pixels. The patch's
+ * coloured shadows beside it, weaker copies of it (dye-shadow.ts), are taken out of the signal and
+ * the window settles again.
  */
 import { quickselect } from "simple-statistics";
 import { createPatchSignal } from "./dye-patch-signal";
-import { robustStats } from "./robust-stats";
+import { findShadowCopies, withoutShadows } from "./dye-shadow";
 
 /** Threshold below which the signal gets no weight, in noise widths. */
 const thresholdSigmas = 2;
@@ -53,19 +55,10 @@ const ringMinPx = 4;
 const settledPx = 2e-3;
 /** Smallest variance of the window along any direction, px². */
 const minVariance = 0.5;
-/**
- * Every 5th pixel of every 13th row: some 5500 samples in a 670 px tank, plenty for a median and
- * MAD. Read along rows, neighbouring samples share the memory's cache lines (every 8th pixel of
- * every 8th row took a cache miss each); strides prime to 8 meet every position in JPEG's 8 × 8
- * blocks, whose noise differs by position (every 8th pixel of every 8th row met one a row).
- */
-const noiseRowStride = 13;
-const noiseColumnStride = 5;
-/** Histogram bins per unit of signal (a relative change of colour), and its half-range. */
-const binsPerUnit = 4096;
-const halfRange = 0.5;
 /** A pixel's brightness part counts within this many robust widths of what its colour part says. */
 const slackWidths = 3;
+/** The shadow's copies are looked for again round the centre and shape found without them, this many times in all. */
+const shadowRounds = 2;
 
 export interface DyeImage {
   /** Interleaved RGB, row-major. */
@@ -99,7 +92,6 @@ export interface PatchCentre {
  * searched (inside the tank edge).
  */
 export function createDyeCentre(width: number, height: number, spans: Int32Array) {
-  const hist = new Uint32Array(2 * halfRange * binsPerUnit + 1);
   /** The dye's direction of change, unit length. */
   const direction = new Float64Array(3);
   const change = new Float64Array(3);
@@ -213,18 +205,8 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     signal.aim(hue, brightCoefficient, colourCoefficient, brightPerColourHere, brightSlack);
 
     // Offset and noise of the signal over the searched region (the patch is a small part of it).
-    hist.fill(0);
-    for (let row = 0; row < height; row += noiseRowStride) {
-      const a = spans[2 * row]!;
-      const b = spans[2 * row + 1]!;
-      for (let col = a; col < b; col += noiseColumnStride) {
-        const s = signal.at(row * width + col);
-        const bin = Math.round((Math.max(-halfRange, Math.min(halfRange, s)) + halfRange) * binsPerUnit);
-        hist[bin]!++;
-      }
-    }
-    const stats = robustStats(hist, halfRange * binsPerUnit);
-    const floor = (stats.median + thresholdSigmas * stats.sigma) / binsPerUnit;
+    const stats = signal.spread();
+    const floor = stats.median + thresholdSigmas * stats.sigma;
 
     // First pass: the signal over the box above half its highest gives a first centre and shape.
     let top = 0;
@@ -234,7 +216,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       for (let col = a; col < b; col++) if (!free || free(col, row)) top = Math.max(top, signal.once(row * width + col));
     }
     const firstFloor = Math.max(floor, firstShare * top);
-    const offset = stats.median / binsPerUnit;
+    const offset = stats.median;
     let x = (col0 + col1 - 1) / 2;
     let y = (row0 + row1 - 1) / 2;
     let shape: [number, number, number] | null = null;
@@ -242,99 +224,119 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     let reachY = (row1 - row0) / 2;
     let peak = 0;
     let clippedSeen = false;
-    for (let iteration = 0; iteration < (clippedSeen ? maxClippedIterations : maxIterations); iteration++) {
-      const r0 = Math.max(0, Math.floor(y - reachY));
-      const r1 = Math.min(height - 1, Math.ceil(y + reachY));
-      const c0 = Math.max(0, Math.floor(x - reachX));
-      const c1 = Math.min(width - 1, Math.ceil(x + reachX));
-      let inverse: [number, number, number] | null = null;
-      if (shape) {
-        const det = shape[0] * shape[2] - shape[1] * shape[1];
-        inverse = [shape[2] / det, -shape[1] / det, shape[0] / det];
-      }
-      let w = 0;
-      let wx = 0;
-      /** The weight of clipped pixels standing in for their mirror image, and of that image. */
-      let pairedWeight = 0;
-      let wy = 0;
-      let wxx = 0;
-      let wxy = 0;
-      let wyy = 0;
-      peak = 0;
-      for (let row = r0; row <= r1; row++) {
-        let a = Math.max(c0, spans[2 * row]!);
-        let b = Math.min(c1 + 1, spans[2 * row + 1]!);
-        const dy = row - y;
-        if (inverse) {
-          // Only the columns of this row inside the window's ellipse (a pixel's margin each side:
-          // the test below decides), rather than the whole box around a tilted patch.
-          const half = inverse[1] * inverse[1] * dy * dy - inverse[0] * (inverse[2] * dy * dy - windowSigmas * windowSigmas);
-          if (!(half >= 0)) continue;
-          const root = Math.sqrt(half);
-          a = Math.max(a, Math.floor(x + (-inverse[1] * dy - root) / inverse[0]) - 1);
-          b = Math.min(b, Math.ceil(x + (-inverse[1] * dy + root) / inverse[0]) + 2);
+    /** The signal the window reads where a pixel is not clipped: the measured one, or with the shadow's copy taken out. */
+    let read: ((col: number, row: number) => number) | null = null;
+    // Moves the window until it settles; false when it holds no weight.
+    const settle = (): boolean => {
+      for (let iteration = 0; iteration < (clippedSeen ? maxClippedIterations : maxIterations); iteration++) {
+        const r0 = Math.max(0, Math.floor(y - reachY));
+        const r1 = Math.min(height - 1, Math.ceil(y + reachY));
+        const c0 = Math.max(0, Math.floor(x - reachX));
+        const c1 = Math.min(width - 1, Math.ceil(x + reachX));
+        let inverse: [number, number, number] | null = null;
+        if (shape) {
+          const det = shape[0] * shape[2] - shape[1] * shape[1];
+          inverse = [shape[2] / det, -shape[1] / det, shape[0] / det];
         }
-        for (let col = a; col < b; col++) {
-          const dx = col - x;
-          let weight: number;
+        let w = 0;
+        let wx = 0;
+        /** The weight of clipped pixels standing in for their mirror image, and of that image. */
+        let pairedWeight = 0;
+        let wy = 0;
+        let wxx = 0;
+        let wxy = 0;
+        let wyy = 0;
+        peak = 0;
+        for (let row = r0; row <= r1; row++) {
+          let a = Math.max(c0, spans[2 * row]!);
+          let b = Math.min(c1 + 1, spans[2 * row + 1]!);
+          const dy = row - y;
           if (inverse) {
-            const q = inverse[0] * dx * dx + 2 * inverse[1] * dx * dy + inverse[2] * dy * dy;
-            if (q > windowSigmas * windowSigmas) continue;
-            // A clipped pixel tells nothing: it takes the signal of its mirror image through the
-            // centre, as a symmetric patch would have there. The pair then pulls the centre neither
-            // way (as if both were left out) while the patch's measured shape keeps its extent.
-            // Where both are clipped the pixel is left out.
-            let s: number;
-            const stands = signal.clipped(col, row);
-            if (stands) {
-              const mirrored = signal.mirrored(2 * x - col, 2 * y - row);
-              if (mirrored === null) continue;
-              s = mirrored;
-            } else {
-              s = signal.once(row * width + col);
-              if (s > peak) peak = s;
-            }
-            weight = Math.max(0, s - offset) * Math.exp(-0.5 * q);
-            if (stands) pairedWeight += 2 * weight;
-          } else {
-            if ((free && !free(col, row)) || signal.clipped(col, row)) continue;
-            const s = signal.once(row * width + col);
-            if (s > peak) peak = s;
-            weight = s - firstFloor;
-            if (weight <= 0) continue;
+            // Only the columns of this row inside the window's ellipse (a pixel's margin each side:
+            // the test below decides), rather than the whole box around a tilted patch.
+            const half = inverse[1] * inverse[1] * dy * dy - inverse[0] * (inverse[2] * dy * dy - windowSigmas * windowSigmas);
+            if (!(half >= 0)) continue;
+            const root = Math.sqrt(half);
+            a = Math.max(a, Math.floor(x + (-inverse[1] * dy - root) / inverse[0]) - 1);
+            b = Math.min(b, Math.ceil(x + (-inverse[1] * dy + root) / inverse[0]) + 2);
           }
-          w += weight;
-          wx += weight * dx;
-          wy += weight * dy;
-          wxx += weight * dx * dx;
-          wxy += weight * dx * dy;
-          wyy += weight * dy * dy;
+          for (let col = a; col < b; col++) {
+            const dx = col - x;
+            let weight: number;
+            if (inverse) {
+              const q = inverse[0] * dx * dx + 2 * inverse[1] * dx * dy + inverse[2] * dy * dy;
+              if (q > windowSigmas * windowSigmas) continue;
+              // A clipped pixel tells nothing: it takes the signal of its mirror image through the
+              // centre, as a symmetric patch would have there. The pair then pulls the centre neither
+              // way (as if both were left out) while the patch's measured shape keeps its extent.
+              // Where both are clipped the pixel is left out.
+              let s: number;
+              const stands = signal.clipped(col, row);
+              if (stands) {
+                const mirrored = signal.mirrored(2 * x - col, 2 * y - row);
+                if (mirrored === null) continue;
+                s = mirrored;
+              } else {
+                s = read ? offset + read(col, row) : signal.once(row * width + col);
+                if (s > peak) peak = s;
+              }
+              weight = Math.max(0, s - offset) * Math.exp(-0.5 * q);
+              if (stands) pairedWeight += 2 * weight;
+            } else {
+              if ((free && !free(col, row)) || signal.clipped(col, row)) continue;
+              const s = signal.once(row * width + col);
+              if (s > peak) peak = s;
+              weight = s - firstFloor;
+              if (weight <= 0) continue;
+            }
+            w += weight;
+            wx += weight * dx;
+            wy += weight * dy;
+            wxx += weight * dx * dx;
+            wxy += weight * dx * dy;
+            wyy += weight * dy * dy;
+          }
         }
+        if (!(w > 0)) return false;
+        const mx = wx / w;
+        const my = wy / w;
+        // A clipped pixel and its mirror image pull the centre neither way: the step is the pull of
+        // the other pixels, over their weight alone (else it would shrink with the clipped share and
+        // the window would settle short of the centre).
+        const stepGain = w - pairedWeight > 0.05 * w ? w / (w - pairedWeight) : 1;
+        x += mx * stepGain;
+        y += my * stepGain;
+        // Moments about the new centre; a Gaussian weight of the patch's own shape halves them.
+        const grow: number = shape ? 2 : firstGrowth;
+        let sxx = Math.max(minVariance, grow * (wxx / w - mx * mx));
+        let syy = Math.max(minVariance, grow * (wyy / w - my * my));
+        let sxy: number = grow * (wxy / w - mx * my);
+        const limit = sxx * syy - minVariance * minVariance;
+        if (sxy * sxy > limit) sxy = Math.sign(sxy) * Math.sqrt(Math.max(0, limit));
+        if (!(sxx > 0 && syy > 0)) return false;
+        sxx = Math.min(sxx, maxVariance);
+        syy = Math.min(syy, maxVariance);
+        shape = [sxx, sxy, syy];
+        reachX = windowSigmas * Math.sqrt(sxx) + 1;
+        reachY = windowSigmas * Math.sqrt(syy) + 1;
+        if (pairedWeight > 0) clippedSeen = true;
+        if (iteration > 1 && Math.hypot(mx, my) < settledPx) break;
       }
-      if (!(w > 0)) return null;
-      const mx = wx / w;
-      const my = wy / w;
-      // A clipped pixel and its mirror image pull the centre neither way: the step is the pull of
-      // the other pixels, over their weight alone (else it would shrink with the clipped share and
-      // the window would settle short of the centre).
-      const stepGain = w - pairedWeight > 0.05 * w ? w / (w - pairedWeight) : 1;
-      x += mx * stepGain;
-      y += my * stepGain;
-      // Moments about the new centre; a Gaussian weight of the patch's own shape halves them.
-      const grow: number = shape ? 2 : firstGrowth;
-      let sxx = Math.max(minVariance, grow * (wxx / w - mx * mx));
-      let syy = Math.max(minVariance, grow * (wyy / w - my * my));
-      let sxy: number = grow * (wxy / w - mx * my);
-      const limit = sxx * syy - minVariance * minVariance;
-      if (sxy * sxy > limit) sxy = Math.sign(sxy) * Math.sqrt(Math.max(0, limit));
-      if (!(sxx > 0 && syy > 0)) return null;
-      sxx = Math.min(sxx, maxVariance);
-      syy = Math.min(syy, maxVariance);
-      shape = [sxx, sxy, syy];
-      reachX = windowSigmas * Math.sqrt(sxx) + 1;
-      reachY = windowSigmas * Math.sqrt(syy) + 1;
-      if (pairedWeight > 0) clippedSeen = true;
-      if (iteration > 1 && Math.hypot(mx, my) < settledPx) break;
+      return shape !== null;
+    };
+    if (!settle() || !shape) return null;
+    // The patch's coloured shadow beside it, a weaker copy (dye-shadow.ts): taken out, the window settles again.
+    const patchSignal = (p: number) => {
+      const col = p % width;
+      const row = (p - col) / width;
+      return signal.clipped(col, row) ? 0 : signal.once(p) - offset;
+    };
+    for (let round = 0; round < shadowRounds; round++) {
+      const search = { width, height, spans, value: patchSignal, x, y, shape, noise: stats.sigma };
+      const copies = findShadowCopies(search);
+      if (copies.length === 0) break;
+      read = withoutShadows(copies, search);
+      if (!settle() || !shape) return null;
     }
     if (!shape) return null;
     // The background's brightness at the box's centre turns the relative change into grey levels.

@@ -7,9 +7,21 @@
  */
 import { bottomLevel, fitBottomSurface } from "./dye-bottom";
 import { inverseLevel, levelDifference } from "./dye-signal";
+import { robustStats } from "./robust-stats";
 
 /** The bottom's surface is fitted on every 8th pixel of every 8th row. */
 const surfaceStride = 8;
+/**
+ * Every 5th pixel of every 13th row: some 5500 samples in a 670 px tank, plenty for a median and
+ * MAD. Read along rows, neighbouring samples share the memory's cache lines (every 8th pixel of
+ * every 8th row took a cache miss each); strides prime to 8 meet every position in JPEG's 8 × 8
+ * blocks, whose noise differs by position (every 8th pixel of every 8th row met one a row).
+ */
+const noiseRowStride = 13;
+const noiseColumnStride = 5;
+/** Histogram bins per unit of signal (a relative change of colour), and its half-range. */
+const binsPerUnit = 4096;
+const halfRange = 0.5;
 /** A pixel with a channel at or above this is clipped (saturated glare): it tells nothing of the dye. */
 const clippedLevel = 250;
 
@@ -30,6 +42,8 @@ export interface PatchSignal {
   aim(hue: Float64Array, b: number, c: number, brightPerColour: number, slack: number): void;
   /** The signal at pixel `p`. */
   at(p: number): number;
+  /** The median and robust width of the signal over the searched spans (a patch is a small part of them). */
+  spread(): { median: number; sigma: number };
   /** The signal at pixel `p`, worked out once per measurement. */
   once(p: number): number;
   /** Whether a pixel lies outside the frame or is clipped in some channel. */
@@ -94,6 +108,22 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
     return brightCoefficient * bright + colourCoefficient * along;
   }
 
+  const hist = new Uint32Array(2 * halfRange * binsPerUnit + 1);
+  function spread(): { median: number; sigma: number } {
+    hist.fill(0);
+    for (let row = 0; row < height; row += noiseRowStride) {
+      const a = spans[2 * row]!;
+      const b = spans[2 * row + 1]!;
+      for (let col = a; col < b; col += noiseColumnStride) {
+        const s = at(row * width + col);
+        const bin = Math.round((Math.max(-halfRange, Math.min(halfRange, s)) + halfRange) * binsPerUnit);
+        hist[bin]!++;
+      }
+    }
+    const stats = robustStats(hist, halfRange * binsPerUnit);
+    return { median: stats.median / binsPerUnit, sigma: stats.sigma / binsPerUnit };
+  }
+
   function once(p: number): number {
     if (stamp[p] === measurement) return signals[p]!;
     const s = at(p);
@@ -128,6 +158,7 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
       if (measurement === 1) stamp.fill(0);
     },
     at,
+    spread,
     once,
     clipped,
     mirrored(atX, atY) {

@@ -226,6 +226,8 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     let clippedSeen = false;
     /** The signal the window reads where a pixel is not clipped: the measured one, or with the shadow's copy taken out. */
     let read: ((col: number, row: number) => number) | null = null;
+    /** `read` on the scale of `signal.once` (the offset put back), for a clipped pixel's mirror image. */
+    let readWithOffset: ((col: number, row: number) => number) | null = null;
     // Moves the window until it settles; false when it holds no weight.
     const settle = (): boolean => {
       for (let iteration = 0; iteration < (clippedSeen ? maxClippedIterations : maxIterations); iteration++) {
@@ -273,7 +275,8 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
               let s: number;
               const stands = signal.clipped(col, row);
               if (stands) {
-                const mirrored = signal.mirrored(2 * x - col, 2 * y - row);
+                // The image reads what its pixels read: with the shadow's copies taken out when they are.
+                const mirrored = signal.mirrored(2 * x - col, 2 * y - row, readWithOffset ?? undefined);
                 if (mirrored === null) continue;
                 s = mirrored;
               } else {
@@ -335,7 +338,9 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       const search = { width, height, spans, value: patchSignal, x, y, shape, noise: stats.sigma };
       const copies = findShadowCopies(search);
       if (copies.length === 0) break;
-      read = withoutShadows(copies, search);
+      const without = withoutShadows(copies, search);
+      read = without;
+      readWithOffset = (col, row) => offset + without(col, row);
       if (!settle() || !shape) return null;
     }
     if (!shape) return null;

@@ -48,8 +48,13 @@ export interface PatchSignal {
   once(p: number): number;
   /** Whether a pixel lies outside the frame or is clipped in some channel. */
   clipped(col: number, row: number): boolean;
-  /** The signal at a point between pixel centres (bilinear); null when one of the four pixels round it is clipped. */
-  mirrored(atX: number, atY: number): number | null;
+  /**
+   * The signal at a point between pixel centres (bilinear); null when one of the four pixels round
+   * it is clipped. `read` gives a pixel's signal instead of `once` (the same signal with something
+   * taken out, such as the patch's shadow copies: a clipped pixel standing in for its mirror image
+   * must read what that image reads, or the pair pulls towards the clipped side).
+   */
+  mirrored(atX: number, atY: number, read?: (col: number, row: number) => number): number | null;
 }
 
 /** For frames of one size; `spans` holds, per row, the half-open column range searched. */
@@ -161,12 +166,17 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
     spread,
     once,
     clipped,
-    mirrored(atX, atY) {
+    mirrored(atX, atY, read) {
       const c = Math.floor(atX);
       const r = Math.floor(atY);
       if (clipped(c, r) || clipped(c + 1, r) || clipped(c, r + 1) || clipped(c + 1, r + 1)) return null;
       const fx = atX - c;
       const fy = atY - r;
+      if (read) {
+        const top = (1 - fx) * read(c, r) + fx * read(c + 1, r);
+        const under = (1 - fx) * read(c, r + 1) + fx * read(c + 1, r + 1);
+        return (1 - fy) * top + fy * under;
+      }
       const p = r * width + c;
       const top = (1 - fx) * once(p) + fx * once(p + 1);
       const under = (1 - fx) * once(p + width) + fx * once(p + width + 1);

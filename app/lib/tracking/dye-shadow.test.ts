@@ -19,14 +19,23 @@ function share(col: number, row: number, cx: number, cy: number): number {
   return 0.6 * Math.exp(-0.5 * ((u / 7) ** 2 + (v / 3) ** 2));
 }
 
+/** White glare on the water, still in the view (the background holds it too): a Gaussian of this peak and σ, in grey levels and px. */
+interface Glare {
+  x: number;
+  y: number;
+  peak: number;
+  sigma: number;
+}
+
 /**
  * A grey bottom under an uneven light, a red patch seen through and, when `copy` is given, its
  * coloured shadow: the light through the patch, a share `copy.share` of all the light, falling on
  * the bottom displaced by (copy.dx, copy.dy). Each channel of a pixel is the light times what the
  * patch lets through on the way up times what the shadow leaves on the bottom (exact, no noise
- * unless `seed` is given).
+ * unless `seed` is given). `glare` adds white light on top, in the frame and its background alike,
+ * both clipped at 255.
  */
-function scene(cx: number, cy: number, copy: { dx: number; dy: number; share: number } | null, seed?: number) {
+function scene(cx: number, cy: number, copy: { dx: number; dy: number; share: number } | null, seed?: number, glare?: Glare) {
   const background = new Uint8Array(width * height * 3);
   const image = new Uint8Array(width * height * 3);
   const noise = seed === undefined ? () => 0 : gaussian(seededRandom(seed));
@@ -36,11 +45,12 @@ function scene(cx: number, cy: number, copy: { dx: number; dy: number; share: nu
       const light = 120 + (40 * col) / width;
       const seen = share(col, row, cx, cy);
       const shaded = copy ? share(col - copy.dx, row - copy.dy, cx, cy) : 0;
+      const white = glare ? glare.peak * Math.exp(-((col - glare.x) ** 2 + (row - glare.y) ** 2) / (2 * glare.sigma ** 2)) : 0;
       for (let c = 0; c < 3; c++) {
         const through = (s: number) => 1 - s + (dye[c]! * s) / 160;
         const shadow = copy ? 1 - copy.share * (1 - through(shaded)) : 1;
-        background[q + c] = Math.round(light);
-        image[q + c] = Math.max(0, Math.min(255, Math.round(light * through(seen) * shadow + 3 * noise())));
+        background[q + c] = Math.min(255, Math.round(light + white));
+        image[q + c] = Math.max(0, Math.min(255, Math.round(light * through(seen) * shadow + white + 3 * noise())));
       }
     }
   }
@@ -61,6 +71,23 @@ describe("a dye patch's coloured shadow", () => {
     expect(found).not.toBeNull();
     const off = Math.hypot(found!.x - cx, found!.y - cy);
     console.log(`dye with its shadow over its tail: ${off.toFixed(3)} px off`);
+    expect(off).toBeLessThan(0.05);
+  });
+
+  it("is not pulled towards a glare that clips the other end of the patch: a clipped pixel's mirror image reads the signal with the copy taken out (exact image)", () => {
+    const cx = 55.3;
+    const cy = 48.6;
+    const copy = { dx: 24 * Math.cos(angle + 0.15), dy: 24 * Math.sin(angle + 0.15), share: 0.2 };
+    // Still glare on the long axis 11 px from the centre, on the side away from the copy.
+    const glare = { x: cx - 11 * along[0], y: cy - 11 * along[1], peak: 160, sigma: 4 };
+    const { image, background } = scene(cx, cy, copy, undefined, glare);
+    let clipped = 0;
+    for (let p = 0; p < width * height; p++) if (image[3 * p]! >= 250 || image[3 * p + 1]! >= 250 || image[3 * p + 2]! >= 250) clipped++;
+    const found = createDyeCentre(width, height, spans)({ data: image, width, height }, background, box(cx, cy));
+    expect(found).not.toBeNull();
+    const off = Math.hypot(found!.x - cx, found!.y - cy);
+    console.log(`dye with its shadow over its tail and ${clipped} clipped pixels at the other end: ${off.toFixed(3)} px off`);
+    expect(clipped).toBeGreaterThan(10);
     expect(off).toBeLessThan(0.05);
   });
 

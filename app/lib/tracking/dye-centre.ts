@@ -225,9 +225,11 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     let peak = 0;
     let clippedSeen = false;
     /** The signal the window reads where a pixel is not clipped: the measured one, or with the shadow's copy taken out. */
-    let read: ((col: number, row: number) => number) | null = null;
-    /** `read` on the scale of `signal.once` (the offset put back), for a clipped pixel's mirror image. */
-    let readWithOffset: ((col: number, row: number) => number) | null = null;
+    /**
+     * Once a shadow's copies are found, the signal with them taken out, on the scale of
+     * `signal.once` (the offset put back): what the window and a clipped pixel's mirror image read.
+     */
+    let shadowFree: ((col: number, row: number) => number) | null = null;
     // Moves the window until it settles; false when it holds no weight.
     const settle = (): boolean => {
       for (let iteration = 0; iteration < (clippedSeen ? maxClippedIterations : maxIterations); iteration++) {
@@ -276,11 +278,11 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
               const stands = signal.clipped(col, row);
               if (stands) {
                 // The image reads what its pixels read: with the shadow's copies taken out when they are.
-                const mirrored = signal.mirrored(2 * x - col, 2 * y - row, readWithOffset ?? undefined);
+                const mirrored = signal.mirrored(2 * x - col, 2 * y - row, shadowFree ?? undefined);
                 if (mirrored === null) continue;
                 s = mirrored;
               } else {
-                s = read ? offset + read(col, row) : signal.once(row * width + col);
+                s = shadowFree ? shadowFree(col, row) : signal.once(row * width + col);
                 if (s > peak) peak = s;
               }
               weight = Math.max(0, s - offset) * Math.exp(-0.5 * q);
@@ -339,8 +341,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
       const copies = findShadowCopies(search);
       if (copies.length === 0) break;
       const without = withoutShadows(copies, search);
-      read = without;
-      readWithOffset = (col, row) => offset + without(col, row);
+      shadowFree = (col, row) => offset + without(col, row);
       if (!settle() || !shape) return null;
     }
     if (!shape) return null;

@@ -129,6 +129,8 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
     return { median: stats.median / binsPerUnit, sigma: stats.sigma / binsPerUnit };
   }
 
+  const onceAt = (col: number, row: number) => once(row * width + col);
+
   function once(p: number): number {
     if (stamp[p] === measurement) return signals[p]!;
     const s = at(p);
@@ -172,14 +174,9 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
       if (clipped(c, r) || clipped(c + 1, r) || clipped(c, r + 1) || clipped(c + 1, r + 1)) return null;
       const fx = atX - c;
       const fy = atY - r;
-      if (read) {
-        const top = (1 - fx) * read(c, r) + fx * read(c + 1, r);
-        const under = (1 - fx) * read(c, r + 1) + fx * read(c + 1, r + 1);
-        return (1 - fy) * top + fy * under;
-      }
-      const p = r * width + c;
-      const top = (1 - fx) * once(p) + fx * once(p + 1);
-      const under = (1 - fx) * once(p + width) + fx * once(p + width + 1);
+      const s = read ?? onceAt;
+      const top = (1 - fx) * s(c, r) + fx * s(c + 1, r);
+      const under = (1 - fx) * s(c, r + 1) + fx * s(c + 1, r + 1);
       return (1 - fy) * top + fy * under;
     },
   };

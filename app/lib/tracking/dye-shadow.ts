@@ -81,17 +81,9 @@ function inverseOf(shape: readonly [number, number, number]): [number, number, n
   return [shape[2] / det, -shape[1] / det, shape[0] / det];
 }
 
-/** The weaker displaced copies of the patch round it (at most `maxCopies`, strongest first); none when there are none to see. */
-export function findShadowCopies(search: ShadowSearch): ShadowCopy[] {
-  const { width, height, spans, value, x, y, shape, noise } = search;
-  const inv = inverseOf(shape);
-  const q = (dx: number, dy: number) => inv[0] * dx * dx + 2 * inv[1] * dx * dy + inv[2] * dy * dy;
-  const inside = (col: number, row: number) => row >= 0 && row < height && col >= spans[2 * row]! && col < spans[2 * row + 1]!;
-  const at = (col: number, row: number) => (inside(col, row) ? value(row * width + col) : 0);
-  const longSigma = Math.sqrt(Math.max(shape[0], shape[2]) + Math.abs(shape[1]));
-  const reach = Math.min(maxReachPx, reachSigmas * longSigma);
-
-  /** The signal between pixel centres (bilinear). */
+/** The signal at a pixel (0 outside the searched spans) and between pixel centres (bilinear). */
+function signalReader({ width, height, spans, value }: Pick<ShadowSearch, "width" | "height" | "spans" | "value">) {
+  const at = (col: number, row: number) => (row >= 0 && row < height && col >= spans[2 * row]! && col < spans[2 * row + 1]! ? value(row * width + col) : 0);
   const bilinear = (sx: number, sy: number) => {
     const c = Math.floor(sx);
     const r = Math.floor(sy);
@@ -99,6 +91,17 @@ export function findShadowCopies(search: ShadowSearch): ShadowCopy[] {
     const fy = sy - r;
     return (1 - fy) * ((1 - fx) * at(c, r) + fx * at(c + 1, r)) + fy * ((1 - fx) * at(c, r + 1) + fx * at(c + 1, r + 1));
   };
+  return { at, bilinear };
+}
+
+/** The weaker displaced copies of the patch round it (at most `maxCopies`, strongest first); none when there are none to see. */
+export function findShadowCopies(search: ShadowSearch): ShadowCopy[] {
+  const { x, y, shape, noise } = search;
+  const inv = inverseOf(shape);
+  const q = (dx: number, dy: number) => inv[0] * dx * dx + 2 * inv[1] * dx * dy + inv[2] * dy * dy;
+  const { at, bilinear } = signalReader(search);
+  const longSigma = Math.sqrt(Math.max(shape[0], shape[2]) + Math.abs(shape[1]));
+  const reach = Math.min(maxReachPx, reachSigmas * longSigma);
 
   // Candidates, on a grid of every 4th pixel each way (a copy is several pixels across): the
   // means of the excess over 3 × 3 grid points outside the core and within the reach that stand
@@ -282,9 +285,9 @@ export function withoutShadows(
   copies: readonly ShadowCopy[],
   search: Pick<ShadowSearch, "width" | "height" | "spans" | "value" | "x" | "y" | "shape">,
 ): (col: number, row: number) => number {
-  const { width, height, spans, value, x, y, shape } = search;
+  const { x, y, shape } = search;
   const inv = inverseOf(shape);
-  const at = (col: number, row: number) => (row >= 0 && row < height && col >= spans[2 * row]! && col < spans[2 * row + 1]! ? value(row * width + col) : 0);
+  const { at, bilinear } = signalReader(search);
   return (col, row) => {
     let out = at(col, row);
     for (const copy of copies) {
@@ -294,11 +297,7 @@ export function withoutShadows(
       const ex = sx - x;
       const ey = sy - y;
       if (inv[0] * ex * ex + 2 * inv[1] * ex * ey + inv[2] * ey * ey > copySigmas * copySigmas) continue;
-      const c = Math.floor(sx);
-      const r = Math.floor(sy);
-      const fx = sx - c;
-      const fy = sy - r;
-      out -= copy.share * ((1 - fy) * ((1 - fx) * at(c, r) + fx * at(c + 1, r)) + fy * ((1 - fx) * at(c, r + 1) + fx * at(c + 1, r + 1)));
+      out -= copy.share * bilinear(sx, sy);
     }
     return out;
   };

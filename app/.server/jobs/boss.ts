@@ -1,4 +1,5 @@
 import PgBoss from "pg-boss";
+import pg from "pg";
 import type { Transaction } from "sequelize";
 import { isSqlite } from "../db";
 import { env } from "../env";
@@ -50,8 +51,29 @@ export function bossOptions(extra: Partial<PgBoss.ConstructorOptions> = {}): PgB
   };
 }
 
+/**
+ * Makes this app's queues where they are missing. pg-boss's create_queue makes a partition table and
+ * adds keys to the job table; two processes doing it at once on a fresh database deadlock in
+ * PostgreSQL, and one of them dies at start-up. So the making is done under one advisory lock of the
+ * database, held on a connection of its own (a pooled one would not keep it), and a process that
+ * finds the queues there once it has the lock makes nothing. The lock goes with the connection if
+ * the process dies holding it.
+ */
 export async function createQueues(boss: PgBoss) {
-  for (const options of Object.values(QUEUE_OPTIONS)) await boss.createQueue(options.name, options);
+  const wanted = Object.values(QUEUE_OPTIONS);
+  const missing = async () => {
+    const have = new Set((await boss.getQueues()).map((q) => q.name));
+    return wanted.filter((q) => !have.has(q.name));
+  };
+  if ((await missing()).length === 0) return;
+  const client = new pg.Client({ connectionString: env.databaseUrl, application_name: "tankside-queue-setup" });
+  await client.connect();
+  try {
+    await client.query("SELECT pg_advisory_lock(hashtextextended($1, 0))", ["tankside.queues"]);
+    for (const options of await missing()) await boss.createQueue(options.name, options);
+  } finally {
+    await client.end();
+  }
 }
 
 const key = "__tanksideBossClient" as const;

@@ -88,6 +88,9 @@ export function describeS3(settings: S3Settings) {
     : `S3 bucket '${settings.bucket}' in AWS region ${settings.region}`;
 }
 
+/** How many times the start-up check asks when the answer is a server error (500 or 503). */
+export const STARTUP_TRIES = 3;
+
 function clientConfig(settings: S3Settings, forCheck: boolean): S3ClientConfig {
   return {
     region: settings.region,
@@ -236,8 +239,8 @@ export class S3Store implements ObjectStore {
 
   /**
    * At start: the bucket is listed (it exists, the credentials are good) and a small object is
-   * written and removed again (they may write), with one attempt and short time limits, so a bad
-   * setting stops the server in seconds with a line saying which.
+   * written and removed again (they may write), with short time limits and no retry but for a
+   * server error, so a bad setting stops the server in seconds with a line saying which.
    */
   async startupProblem() {
     const client = new S3Client(clientConfig(this.settings, true));
@@ -265,16 +268,31 @@ export class S3Store implements ObjectStore {
           return `Tankside will not start: ${where} cannot be used (${why}). Check S3_BUCKET, S3_ENDPOINT, S3_REGION and the AWS credentials.`;
       }
     };
+    // An answer of 500 or 503 says "try again" (S3's InternalError and SlowDown): two more tries, a
+    // moment apart, before the server gives up. A second process checking the same bucket at the
+    // same moment is enough to draw one from some S3-compatible servers. Everything else is
+    // answered at once: a wrong setting does not get better by asking again.
+    const asking = async <T>(request: () => Promise<T>): Promise<T> => {
+      for (let attempt = 1; ; attempt++) {
+        try {
+          return await request();
+        } catch (err) {
+          const status = (err as { $metadata?: { httpStatusCode?: number } })?.$metadata?.httpStatusCode ?? 0;
+          if (status < 500 || attempt >= STARTUP_TRIES) throw err;
+          await new Promise((resolve) => setTimeout(resolve, 250 * attempt));
+        }
+      }
+    };
     try {
       try {
-        await client.send(new ListObjectsV2Command({ Bucket: this.settings.bucket, MaxKeys: 1, Prefix: "runs/" }));
+        await asking(() => client.send(new ListObjectsV2Command({ Bucket: this.settings.bucket, MaxKeys: 1, Prefix: "runs/" })));
       } catch (err) {
         return line(err, "list");
       }
       const probe = `tankside-start-check/${crypto.randomUUID()}`;
       try {
-        await client.send(new PutObjectCommand({ Bucket: this.settings.bucket, Key: probe, Body: Buffer.from("ok"), ContentLength: 2 }));
-        await client.send(new DeleteObjectCommand({ Bucket: this.settings.bucket, Key: probe }));
+        await asking(() => client.send(new PutObjectCommand({ Bucket: this.settings.bucket, Key: probe, Body: Buffer.from("ok"), ContentLength: 2 })));
+        await asking(() => client.send(new DeleteObjectCommand({ Bucket: this.settings.bucket, Key: probe })));
       } catch (err) {
         return line(err, "write");
       }

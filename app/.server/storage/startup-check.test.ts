@@ -1,12 +1,13 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { spawn } from "node:child_process";
+import http from "node:http";
 import net from "node:net";
 import os from "node:os";
 import path from "node:path";
 import crypto from "node:crypto";
 import { createBucket, s3Env, startFakeS3, type FakeS3 } from "../../../tests/setup/fake-s3";
 import { S3Store } from "./index";
-import { classifyS3Error } from "./s3";
+import { STARTUP_TRIES, classifyS3Error } from "./s3";
 
 /**
  * Bad S3 settings stop the start with one line naming the setting: checked on the store, and
@@ -84,6 +85,65 @@ describe("S3 settings checked at start", () => {
     expect(await store({ endpoint: `http://127.0.0.1:${port}` }).startupProblem()).toBe(
       `Tankside will not start: S3_ENDPOINT http://127.0.0.1:${port} is not reachable (ECONNREFUSED: connect ECONNREFUSED 127.0.0.1:${port}), so S3 bucket '${bucket}' cannot be used. Check S3_ENDPOINT.`,
     );
+  });
+});
+
+/**
+ * An endpoint in front of the fake S3 server whose first `failing` requests are answered as S3
+ * answers a passing fault: 500 with an InternalError body. The rest are passed through.
+ */
+async function flakyEndpoint(failing: number) {
+  const target = new URL(s3.endpoint);
+  let seen = 0;
+  const server = http.createServer((req, res) => {
+    seen++;
+    if (seen <= failing) {
+      req.resume();
+      res.writeHead(500, { "content-type": "application/xml" });
+      res.end(
+        `<?xml version="1.0" encoding="UTF-8"?><Error><Code>InternalError</Code><Message>We encountered an internal error. Please try again.</Message></Error>`,
+      );
+      return;
+    }
+    const upstream = http.request({ host: target.hostname, port: target.port, path: req.url, method: req.method, headers: req.headers }, (answer) => {
+      res.writeHead(answer.statusCode ?? 502, answer.headers);
+      answer.pipe(res);
+    });
+    req.pipe(upstream);
+  });
+  await new Promise<void>((resolve) => server.listen(0, "127.0.0.1", resolve));
+  return {
+    endpoint: `http://127.0.0.1:${(server.address() as net.AddressInfo).port}`,
+    requests: () => seen,
+    close: () => new Promise<void>((resolve) => server.close(() => resolve())),
+  };
+}
+
+describe("a server error at start is asked again, a little later", () => {
+  it("passes when the bucket answers 500 twice and then properly; the list, the write and the removal all arrive", async () => {
+    process.env.AWS_ACCESS_KEY_ID = "S3RVER";
+    process.env.AWS_SECRET_ACCESS_KEY = "S3RVER";
+    const flaky = await flakyEndpoint(STARTUP_TRIES - 1);
+    try {
+      expect(await store({ endpoint: flaky.endpoint }).startupProblem()).toBeNull();
+      expect(flaky.requests()).toBe(STARTUP_TRIES - 1 + 3);
+    } finally {
+      await flaky.close();
+    }
+  });
+
+  it("gives up with the server's own words after three answers of 500", async () => {
+    process.env.AWS_ACCESS_KEY_ID = "S3RVER";
+    process.env.AWS_SECRET_ACCESS_KEY = "S3RVER";
+    const flaky = await flakyEndpoint(Number.POSITIVE_INFINITY);
+    try {
+      expect(await store({ endpoint: flaky.endpoint }).startupProblem()).toBe(
+        `Tankside will not start: S3 bucket '${bucket}' at S3_ENDPOINT ${flaky.endpoint} cannot be used (InternalError: We encountered an internal error. Please try again.). Check S3_BUCKET, S3_ENDPOINT, S3_REGION and the AWS credentials.`,
+      );
+      expect(flaky.requests()).toBe(STARTUP_TRIES);
+    } finally {
+      await flaky.close();
+    }
   });
 });
 

@@ -9,7 +9,8 @@
  * background (darkness-weighted centroid within 2.5 px, sampled every ⅛ px along the circle,
  * bilinear, the channels' mean): the frame's position less the background's (positive
  * counter-clockwise in the image), and each one's depth and width (darkness area over depth).
- * Spokes within 35 px of the patch, or with a pixel at 245 or more (glare), are skipped.
+ * Spokes within 35 px of the patch, or with a pixel at 245 or more (glare), are skipped. The
+ * offsets are also fitted as one shift of the whole pattern (translationOf).
  *
  * *Centre.* The bottom's grid repeats every 15° (tank-parts.inc) and the table turns 6° a frame,
  * so frames 5, 10, … apart show the same grid under the same lab-fixed lamps and glare: their mean,
@@ -66,6 +67,31 @@ function dip(profile: Float64Array, at: number): { pos: number; area: number; de
   return { pos: area > 0 ? moment / area / stepsPerPx : Number.NaN, area: area / stepsPerPx, depth };
 }
 
+/**
+ * The shift (x, y) of the frame's lines against the background's that best explains the spokes'
+ * offsets along their circles (least squares, offset = shift · (−sin θ, cos θ)): a rotation centre
+ * or angle off by a little moves the whole turned pattern by about such a shift, which the mean
+ * offset round a circle does not show.
+ */
+function translationOf(lines: readonly { angle: number; offset: number }[]): { x: number; y: number } {
+  let sxx = 0;
+  let sxy = 0;
+  let syy = 0;
+  let bx = 0;
+  let by = 0;
+  for (const { angle, offset } of lines) {
+    const tx = -Math.sin(angle);
+    const ty = Math.cos(angle);
+    sxx += tx * tx;
+    sxy += tx * ty;
+    syy += ty * ty;
+    bx += tx * offset;
+    by += ty * offset;
+  }
+  const det = sxx * syy - sxy * sxy;
+  return det > 0 ? { x: (syy * bx - sxy * by) / det, y: (sxx * by - sxy * bx) / det } : { x: Number.NaN, y: Number.NaN };
+}
+
 async function main(): Promise<void> {
   const [variant] = variantsNamed(["lab-dye"]);
   const { truth, files } = await ensureSceneStack(variant!, (m) => process.stderr.write(`${m}\n`));
@@ -98,7 +124,7 @@ async function main(): Promise<void> {
       const seen = grey(image, pixels);
       const held = grey(composed, pixels);
       const dye = truthAt(f);
-      const lines: { offset: number; depthRatio: number; widthFrame: number; widthComposed: number }[] = [];
+      const lines: { angle: number; offset: number; depthRatio: number; widthFrame: number; widthComposed: number }[] = [];
       for (const r of radii) {
         const n = Math.round(2 * Math.PI * r * stepsPerPx);
         const along = (img: Float32Array) =>
@@ -123,7 +149,7 @@ async function main(): Promise<void> {
           const a = dip(inFrame, i);
           const b = dip(inComposed, i);
           if (!Number.isFinite(a.pos) || !Number.isFinite(b.pos) || !(b.depth > 0)) continue;
-          lines.push({ offset: a.pos - b.pos, depthRatio: a.depth / b.depth, widthFrame: a.area / a.depth, widthComposed: b.area / b.depth });
+          lines.push({ angle, offset: a.pos - b.pos, depthRatio: a.depth / b.depth, widthFrame: a.area / a.depth, widthComposed: b.area / b.depth });
         }
       }
       offsets.push(...lines.map((l) => l.offset));
@@ -148,11 +174,13 @@ async function main(): Promise<void> {
       squares.composed += errors.composed ** 2;
       squares.dyeFree += errors.dyeFree ** 2;
       const mean = lines.reduce((s, l) => s + l.offset, 0) / Math.max(1, lines.length);
+      const shift = translationOf(lines);
       process.stdout.write(
         `${JSON.stringify({
           frame: f,
           spokes: lines.length,
           meanOffsetPx: Number(mean.toFixed(3)),
+          shiftPx: { x: Number(shift.x.toFixed(3)), y: Number(shift.y.toFixed(3)) },
           rmsOffsetPx: Number(Math.sqrt(lines.reduce((s, l) => s + l.offset ** 2, 0) / Math.max(1, lines.length)).toFixed(3)),
           depthFrameOverComposed: Number(median(lines.map((l) => l.depthRatio)).toFixed(3)),
           widthFramePx: Number(median(lines.map((l) => l.widthFrame)).toFixed(2)),

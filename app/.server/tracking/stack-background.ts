@@ -4,7 +4,8 @@
  * model (lib/tracking/turning-background.ts). The pixel work runs in the tracking pool's workers on
  * shared memory; this thread only hands it out and keeps what explains the samples.
  */
-import { backgroundSampleIndices, fillChannelsFromSurroundings, minimumFreeSamples, tracerExclusions, type ExclusionSet } from "../../lib/tracking/background";
+import { backgroundSampleIndices, tracerExclusions, type ExclusionSet } from "../../lib/tracking/background";
+import { fillChannelsFromSurroundings, minimumFreeSamples } from "../../lib/tracking/background-fill";
 import type { DetectionPlan } from "../../lib/tracking/plan";
 import { discPixels } from "../../lib/tracking/turning-geometry";
 import { ringMedians, turningPixels, turnExclusions, type TurningBackground } from "../../lib/tracking/turning-background";

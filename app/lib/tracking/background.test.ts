@@ -1,6 +1,7 @@
 import { createRequire } from "node:module";
 import { describe, expect, it } from "vitest";
-import { backgroundSampleIndices, fillFromSurroundings, floatBackground, medianBackground, medianInto } from "./background";
+import { backgroundSampleIndices, floatBackground, medianBackground, medianInto } from "./background";
+import { fillFromSurroundings } from "./background-fill";
 import { createDetector } from "./detect";
 import { cropForPlan } from "./plan-crop";
 import type { OpenCv } from "./opencv-types";

@@ -6,7 +6,8 @@
  * absorbs by Beer–Lambert's law (common practice for a dye in water), as in dye-clutter.test.ts.
  */
 import { describe, expect, it } from "vitest";
-import { fillChannelsFromSurroundings, medianInto, minimumFreeSamples, patchExclusionSigmas, type BackgroundExclusion } from "./background";
+import { medianInto, patchExclusionSigmas, type BackgroundExclusion } from "./background";
+import { fillChannelsFromSurroundings, minimumFreeSamples } from "./background-fill";
 import { createDyeCentre } from "./dye-centre";
 import { planDetection } from "./plan";
 import { meanSquareMisfit, ringMedians, turnBack, turnExclusions, turningPixels, type TurnInView } from "./turning-background";

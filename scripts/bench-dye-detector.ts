@@ -5,11 +5,14 @@
  * 8th frame whole), `--reps` times over. Prints, as one JSON line, the best pass's processor time of
  * this thread a frame (from /proc, 10 ms ticks over the pass) and its wall time a frame, and a
  * digest of every frame's detections: a change meant to be faster only must leave it as it was.
+ * `--save <file>` keeps the detections; `--compare <file>` says how far from those saved each find
+ * now lies (the largest shift of a centre, px, and of an area), for a change that reorders the
+ * arithmetic and so moves centres in their last digits, which the digest cannot tell from a real move.
  * No worker, no decoding in the timed passes: a guide to the detector's own cost, which the bench's
  * worker thread shows beside decoding and the hand-over.
  */
 import { createHash } from "node:crypto";
-import { existsSync, readdirSync, readFileSync } from "node:fs";
+import { existsSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import path from "node:path";
 import { decodeFrame } from "../app/.server/tracking/decode-frame";
@@ -23,6 +26,12 @@ import { benchSetup, benchStackDir } from "./bench-stacks";
 
 const repsArg = process.argv.indexOf("--reps");
 const reps = repsArg >= 0 ? Number(process.argv[repsArg + 1]) : 3;
+const argAfter = (flag: string) => {
+  const at = process.argv.indexOf(flag);
+  return at >= 0 ? process.argv[at + 1] : undefined;
+};
+const saveTo = argAfter("--save");
+const compareWith = argAfter("--compare");
 /** As track-frame-stack.ts on 2 cores: the windows of frame i come from frame i − 6 and the two before it. */
 const lag = 6;
 
@@ -72,6 +81,8 @@ async function main(): Promise<void> {
   }
   detector.dispose();
   const digest = createHash("sha256").update(JSON.stringify(found)).digest("hex").slice(0, 16);
+  if (saveTo) writeFileSync(saveTo, JSON.stringify(found));
+  const compared = compareWith ? compare(JSON.parse(readFileSync(compareWith, "utf8")) as Detection[][], found) : undefined;
   const load = readFileSync("/proc/loadavg", "utf8").split(" ")[0];
   process.stdout.write(
     `${JSON.stringify({
@@ -81,9 +92,30 @@ async function main(): Promise<void> {
       wallMsPerFrame: +(bestWall / frames.length).toFixed(2),
       framesWithFinds: found.filter((f) => f.length > 0).length,
       detectionsDigest: digest,
+      ...(compared ? { compared } : {}),
       loadAverage: Number(load),
     })}\n`,
   );
+}
+
+/** Frame by frame, the same number of finds, and how far the farthest moved. */
+function compare(before: Detection[][], now: Detection[][]) {
+  let sameCounts = before.length === now.length;
+  let maxShiftPx = 0;
+  let maxAreaChange = 0;
+  for (let i = 0; i < Math.min(before.length, now.length); i++) {
+    const a = before[i]!;
+    const b = now[i]!;
+    if (a.length !== b.length) {
+      sameCounts = false;
+      continue;
+    }
+    for (let j = 0; j < a.length; j++) {
+      maxShiftPx = Math.max(maxShiftPx, Math.hypot(a[j]!.x - b[j]!.x, a[j]!.y - b[j]!.y));
+      maxAreaChange = Math.max(maxAreaChange, Math.abs(a[j]!.area - b[j]!.area));
+    }
+  }
+  return { sameCounts, maxShiftPx, maxAreaChange };
 }
 
 await main();

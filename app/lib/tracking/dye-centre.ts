@@ -264,10 +264,24 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
             a = Math.max(a, Math.floor(x + (-inverse[1] * dy - root) / inverse[0]) - 1);
             b = Math.min(b, Math.ceil(x + (-inverse[1] * dy + root) / inverse[0]) + 2);
           }
+          // Along a row the window's Gaussian changes by a factor that itself changes by a fixed
+          // one (exp(−i₀) a column), so two products a pixel stand for its exp.
+          let gauss = 0;
+          let ratio = 0;
+          let ratioStep = 0;
+          if (inverse) {
+            const dx = a - x;
+            gauss = Math.exp(-0.5 * (inverse[0] * dx * dx + 2 * inverse[1] * dx * dy + inverse[2] * dy * dy));
+            ratio = Math.exp(-0.5 * (inverse[0] * (2 * dx + 1) + 2 * inverse[1] * dy));
+            ratioStep = Math.exp(-inverse[0]);
+          }
           for (let col = a; col < b; col++) {
             const dx = col - x;
             let weight: number;
             if (inverse) {
+              const window = gauss;
+              gauss *= ratio;
+              ratio *= ratioStep;
               const q = inverse[0] * dx * dx + 2 * inverse[1] * dx * dy + inverse[2] * dy * dy;
               if (q > windowSigmas * windowSigmas) continue;
               // A clipped pixel tells nothing: it takes the signal of its mirror image through the
@@ -285,7 +299,7 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
                 s = shadowFree ? shadowFree(col, row) : signal.once(row * width + col);
                 if (s > peak) peak = s;
               }
-              weight = Math.max(0, s - offset) * Math.exp(-0.5 * q);
+              weight = Math.max(0, s - offset) * window;
               if (stands) pairedWeight += 2 * weight;
             } else {
               if ((free && !free(col, row)) || signal.clipped(col, row)) continue;

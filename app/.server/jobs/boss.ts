@@ -1,7 +1,7 @@
 import PgBoss from "pg-boss";
-import pg from "pg";
 import type { Transaction } from "sequelize";
 import { isSqlite } from "../db";
+import { ADVISORY_LOCKS, withAdvisoryLock } from "../db/advisory-lock";
 import { env } from "../env";
 
 /**
@@ -54,10 +54,9 @@ export function bossOptions(extra: Partial<PgBoss.ConstructorOptions> = {}): PgB
 /**
  * Makes this app's queues where they are missing. pg-boss's create_queue makes a partition table and
  * adds keys to the job table; two processes doing it at once on a fresh database deadlock in
- * PostgreSQL, and one of them dies at start-up. So the making is done under one advisory lock of the
- * database, held on a connection of its own (a pooled one would not keep it), and a process that
- * finds the queues there once it has the lock makes nothing. The lock goes with the connection if
- * the process dies holding it.
+ * PostgreSQL, and one of them dies at start-up. So the making is done under an advisory lock of the
+ * database (advisory-lock.ts), and a process that finds the queues there once it has the lock makes
+ * nothing.
  */
 export async function createQueues(boss: PgBoss) {
   const wanted = Object.values(QUEUE_OPTIONS);
@@ -66,14 +65,9 @@ export async function createQueues(boss: PgBoss) {
     return wanted.filter((q) => !have.has(q.name));
   };
   if ((await missing()).length === 0) return;
-  const client = new pg.Client({ connectionString: env.databaseUrl, application_name: "tankside-queue-setup" });
-  await client.connect();
-  try {
-    await client.query("SELECT pg_advisory_lock(hashtextextended($1, 0))", ["tankside.queues"]);
+  await withAdvisoryLock(ADVISORY_LOCKS.queues, async () => {
     for (const options of await missing()) await boss.createQueue(options.name, options);
-  } finally {
-    await client.end();
-  }
+  });
 }
 
 const key = "__tanksideBossClient" as const;

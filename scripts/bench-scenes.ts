@@ -6,10 +6,10 @@
  * projected centre), the fitted f and its error against 2Ω (%), the verdict, and the seconds the
  * render (null when cached) and the tracking took. `npm run bench:scenes -- lab-float` runs one.
  */
-import { closeTrackingPool } from "../app/.server/tracking/tracking-pool";
 import { measureScene } from "../tests/fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";
 import { variantsNamed } from "../tests/fixtures/scenes/scene-model";
+import { runTrackingScript } from "./run-tracking-script";
 
 const round = (v: number | null, digits: number): number | null => (v === null ? null : Number(v.toFixed(digits)));
 
@@ -33,9 +33,4 @@ async function main(): Promise<void> {
   }
 }
 
-main()
-  .catch((error: unknown) => {
-    process.stderr.write(`${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);
-    process.exitCode = 1;
-  })
-  .finally(() => closeTrackingPool());
+runTrackingScript(main);

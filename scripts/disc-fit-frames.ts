@@ -21,11 +21,11 @@
  */
 import { readFrameSize } from "../app/.server/tracking/decode-frame";
 import { prepareStackSearch } from "../app/.server/tracking/track-frame-stack";
-import { closeTrackingPool } from "../app/.server/tracking/tracking-pool";
 import { maxFitSdPx } from "../app/lib/tracking/track-extension";
 import { viewSetup } from "../tests/fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";
 import { variantsNamed } from "../tests/fixtures/scenes/scene-model";
+import { runTrackingScript } from "./run-tracking-script";
 
 const round = (v: number, digits = 3): number => Number(v.toFixed(digits));
 const median = (values: number[]): number => {
@@ -110,9 +110,4 @@ async function main(): Promise<void> {
   );
 }
 
-main()
-  .catch((error: unknown) => {
-    process.stderr.write(`${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);
-    process.exitCode = 1;
-  })
-  .finally(() => closeTrackingPool());
+runTrackingScript(main);

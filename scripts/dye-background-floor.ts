@@ -22,7 +22,7 @@
 import { createRequire } from "node:module";
 import { decodeFrame } from "../app/.server/tracking/decode-frame";
 import { stillBackground } from "../app/.server/tracking/stack-background";
-import { closeTrackingPool, trackingPool } from "../app/.server/tracking/tracking-pool";
+import { trackingPool } from "../app/.server/tracking/tracking-pool";
 import { createDetector } from "../app/lib/tracking/detect";
 import type { OpenCv } from "../app/lib/tracking/opencv-types";
 import { planDetection, planKey } from "../app/lib/tracking/plan";
@@ -31,6 +31,7 @@ import { backgroundAt } from "../app/lib/tracking/turning-compose";
 import { viewSetup } from "../tests/fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";
 import { variantsNamed } from "../tests/fixtures/scenes/scene-model";
+import { runTrackingScript } from "./run-tracking-script";
 
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };
 const spokeStepDeg = 15;
@@ -206,9 +207,4 @@ async function main(): Promise<void> {
   );
 }
 
-main()
-  .catch((error: unknown) => {
-    process.stderr.write(`${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);
-    process.exitCode = 1;
-  })
-  .finally(() => closeTrackingPool());
+runTrackingScript(main);

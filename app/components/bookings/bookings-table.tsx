@@ -6,7 +6,7 @@ import { useLabTime } from "~/components/lab-time";
 import { BookingActions } from "~/components/booking-actions";
 import { Button } from "~/components/ui/button";
 import { Card, Tag } from "~/components/ui/card";
-import { choicesOf, SelectField, TextField } from "~/components/ui/field";
+import { choicesByName, choicesOf, SelectField, TextField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
 import { TableHead } from "~/components/ui/table-head";
 import type { BookingsPage } from "~/.server/bookings-page";
@@ -31,13 +31,7 @@ export function AllBookingsCard({
   return (
     <Card title="All bookings" className="mt-6">
       <Form method="get" className="mb-4 grid gap-3 md:grid-cols-5 md:items-end">
-        <SelectField
-          label="Equipment"
-          name="equipmentId"
-          defaultValue={filter.equipmentId ?? ""}
-          blank="Any"
-          choices={items.map((i) => ({ value: i.id, label: i.name }))}
-        />
+        <SelectField label="Equipment" name="equipmentId" defaultValue={filter.equipmentId ?? ""} blank="Any" choices={choicesByName(items)} />
         <SelectField label="State" name="state" defaultValue={filter.state ?? ""} blank="Any" choices={choicesOf(bookingStates, bookingStateLabels)} />
         <TextField label="From" type="date" name="from" defaultValue={filter.from ?? ""} hint="Default: a week ago" />
         <TextField label="To" type="date" name="to" defaultValue={filter.to ?? ""} />

@@ -5,7 +5,7 @@
 import { pageSizes, type RunFilters } from "~/lib/validation/run-filters";
 import { runStates, runStateLabels } from "~/lib/runs";
 import { Button } from "~/components/ui/button";
-import { choicesOf, SelectField, TextField } from "~/components/ui/field";
+import { choicesByName, choicesOf, SelectField, TextField } from "~/components/ui/field";
 import type { ReactTable } from "@tanstack/react-table";
 import type { RunListItem } from "~/.server/runs/queries";
 import { runColumnLabel, sortableRunColumns, type runTableFeatures } from "./run-table-columns";
@@ -22,20 +22,8 @@ export function RunFilterFields({
 }) {
   return (
     <>
-      <SelectField
-        label="Table"
-        name="table"
-        defaultValue={filters.table ?? ""}
-        blank="Any table"
-        choices={options.tables.map((t) => ({ value: t.id, label: t.name }))}
-      />
-      <SelectField
-        label="Technician"
-        name="technician"
-        defaultValue={filters.technician ?? ""}
-        blank="Anyone"
-        choices={options.technicians.map((u) => ({ value: u.id, label: u.name }))}
-      />
+      <SelectField label="Table" name="table" defaultValue={filters.table ?? ""} blank="Any table" choices={choicesByName(options.tables)} />
+      <SelectField label="Technician" name="technician" defaultValue={filters.technician ?? ""} blank="Anyone" choices={choicesByName(options.technicians)} />
       <SelectField label="State" name="state" defaultValue={filters.state ?? ""} blank="Any state" choices={choicesOf(runStates, runStateLabels)} />
       <SelectField label="Verdict" name="verdict" defaultValue={filters.verdict ?? ""}>
         <option value="">Any verdict</option>

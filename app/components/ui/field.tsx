@@ -73,6 +73,11 @@ export function choicesOf<V extends string>(values: readonly V[], labels: Readon
   return values.map((value) => ({ value, label: labels[value] }));
 }
 
+/** Choices of rows picked by their id and shown by their name (a table, an item, a person). */
+export function choicesByName(rows: readonly { id: number; name: string }[]): Choice[] {
+  return rows.map((row) => ({ value: row.id, label: row.name }));
+}
+
 /**
  * A labelled select. Its options are `choices`, after a first empty option reading `blank` when
  * given ("Any state" in a filter, "Choose…" in a form); `children` come after them.

@@ -19,7 +19,7 @@ import { BookingRequestCard, useBookingRequestForm } from "~/components/bookings
 import { CalendarFeedCard } from "~/components/bookings/calendar-feed-card";
 import { Button } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
-import { SelectField } from "~/components/ui/field";
+import { choicesByName, SelectField } from "~/components/ui/field";
 import { Notice } from "~/components/ui/notice";
 import { formText } from "~/lib/form-text";
 
@@ -139,7 +139,7 @@ export default function Bookings({ loaderData, actionData }: Route.ComponentProp
                 label="Item"
                 name="item"
                 defaultValue={String(week.itemId || "")}
-                choices={items.filter((i) => i.status !== "retired").map((i) => ({ value: i.id, label: i.name }))}
+                choices={choicesByName(items.filter((i) => i.status !== "retired"))}
               />
             </div>
             <input type="hidden" name="week" value={week.start} />

@@ -14,7 +14,7 @@ import { calibrationSchema } from "~/lib/validation/calibrations";
 import { calibrationKindFor, calibrationKindLabels, calibrationKinds, intervalDaysFor, MIN_RATE_READINGS, type CalibrationKind } from "~/lib/calibrations";
 import { Button, ButtonLink } from "~/components/ui/button";
 import { Card, PageHeader } from "~/components/ui/card";
-import { choicesOf, SelectField, TextAreaField, TextField } from "~/components/ui/field";
+import { choicesByName, choicesOf, SelectField, TextAreaField, TextField } from "~/components/ui/field";
 import { Notice, FormProblem } from "~/components/ui/notice";
 
 export const meta: Route.MetaFunction = ({ data }) => [
@@ -162,7 +162,7 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
             error={fields.equipmentId.errors}
             disabled={Boolean(record)}
             blank="Choose…"
-            choices={candidates.map((i) => ({ value: i.id, label: i.name }))}
+            choices={choicesByName(candidates)}
           />
           {record ? <input type="hidden" name={fields.equipmentId.name} value={record.equipmentId} /> : null}
           {text("performedOn", "Calibration date", { type: "date", max: loaderData.today })}
@@ -181,7 +181,7 @@ export default function EditCalibration({ loaderData, actionData }: Route.Compon
                   defaultValue={fields.meterId.initialValue as string | undefined}
                   error={fields.meterId.errors}
                   blank="Choose…"
-                  choices={meters.map((m) => ({ value: m.id, label: m.name }))}
+                  choices={choicesByName(meters)}
                 />
               </div>
               <fieldset className="md:col-span-2" aria-describedby={fields.readings.errors ? "readings-error" : undefined}>

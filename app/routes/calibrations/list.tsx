@@ -8,7 +8,7 @@ import { calibrationKindLabels, calibrationKinds, standingLabels } from "~/lib/c
 import { calibrationMatches, calibrationStandings, parseCalibrationFilters, type CalibrationFilters } from "~/lib/validation/calibration-filters";
 import { useLabTime } from "~/components/lab-time";
 import { Button, ButtonLink } from "~/components/ui/button";
-import { choicesOf, SelectField, TextField } from "~/components/ui/field";
+import { choicesByName, choicesOf, SelectField, TextField } from "~/components/ui/field";
 import { Card, PageHeader } from "~/components/ui/card";
 import { Notice } from "~/components/ui/notice";
 import { StandingTag, calibrationResult } from "~/components/calibration-facts";
@@ -89,13 +89,7 @@ export default function Calibrations({ loaderData }: Route.ComponentProps) {
         key={JSON.stringify(filters)}
       >
         <SelectField label="Kind" name="kind" defaultValue={filters.kind ?? ""} blank="Any kind" choices={choicesOf(calibrationKinds, calibrationKindLabels)} />
-        <SelectField
-          label="Item"
-          name="equipment"
-          defaultValue={filters.equipment ?? ""}
-          blank="Any item"
-          choices={loaderData.items.map((i) => ({ value: i.id, label: i.name }))}
-        />
+        <SelectField label="Item" name="equipment" defaultValue={filters.equipment ?? ""} blank="Any item" choices={choicesByName(loaderData.items)} />
         <SelectField
           label="Standing"
           name="standing"

@@ -135,7 +135,6 @@ export function createDyeCentre(width: number, height: number, spans: Int32Array
     let reachY = (row1 - row0) / 2;
     let peak = 0;
     let clippedSeen = false;
-    /** The signal the window reads where a pixel is not clipped: the measured one, or with the shadow's copy taken out. */
     /**
      * Once a shadow's copies are found, the signal with them taken out, on the scale of
      * `signal.once` (the offset put back): what the window and a clipped pixel's mirror image read.

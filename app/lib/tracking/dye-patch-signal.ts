@@ -57,6 +57,15 @@ export interface PatchSignal {
   mirrored(atX: number, atY: number, read?: (col: number, row: number) => number): number | null;
 }
 
+/** A pixel reader read between pixel centres: bilinear over the four pixels round (`x`, `y`). */
+export function bilinearAt(read: (col: number, row: number) => number, x: number, y: number): number {
+  const c = Math.floor(x);
+  const r = Math.floor(y);
+  const fx = x - c;
+  const fy = y - r;
+  return (1 - fy) * ((1 - fx) * read(c, r) + fx * read(c + 1, r)) + fy * ((1 - fx) * read(c, r + 1) + fx * read(c + 1, r + 1));
+}
+
 /** For frames of one size; `spans` holds, per row, the half-open column range searched. */
 export function createPatchSignal(width: number, height: number, spans: Int32Array): PatchSignal {
   let img: Uint8Array = new Uint8Array(0);
@@ -172,12 +181,7 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
       const c = Math.floor(atX);
       const r = Math.floor(atY);
       if (clipped(c, r) || clipped(c + 1, r) || clipped(c, r + 1) || clipped(c + 1, r + 1)) return null;
-      const fx = atX - c;
-      const fy = atY - r;
-      const s = read ?? onceAt;
-      const top = (1 - fx) * s(c, r) + fx * s(c + 1, r);
-      const under = (1 - fx) * s(c, r + 1) + fx * s(c + 1, r + 1);
-      return (1 - fy) * top + fy * under;
+      return bilinearAt(read ?? onceAt, atX, atY);
     },
   };
 }

@@ -23,6 +23,7 @@
  * (α² at 2d, beyond the window).
  */
 import { quickselect } from "simple-statistics";
+import { bilinearAt } from "./dye-patch-signal";
 
 export interface ShadowCopy {
   /** The copy's displacement from the patch, px. */
@@ -84,13 +85,7 @@ function inverseOf(shape: readonly [number, number, number]): [number, number, n
 /** The signal at a pixel (0 outside the searched spans) and between pixel centres (bilinear). */
 function signalReader({ width, height, spans, value }: Pick<ShadowSearch, "width" | "height" | "spans" | "value">) {
   const at = (col: number, row: number) => (row >= 0 && row < height && col >= spans[2 * row]! && col < spans[2 * row + 1]! ? value(row * width + col) : 0);
-  const bilinear = (sx: number, sy: number) => {
-    const c = Math.floor(sx);
-    const r = Math.floor(sy);
-    const fx = sx - c;
-    const fy = sy - r;
-    return (1 - fy) * ((1 - fx) * at(c, r) + fx * at(c + 1, r)) + fy * ((1 - fx) * at(c, r + 1) + fx * at(c + 1, r + 1));
-  };
+  const bilinear = (sx: number, sy: number) => bilinearAt(at, sx, sy);
   return { at, bilinear };
 }
 

@@ -133,6 +133,7 @@ async function main(): Promise<void> {
   log(`decode only: ${decodeFps.toFixed(1)} frames/s, ${decodeCpuMsPerFrame.toFixed(1)} ms CPU a frame`);
 
   if (warmPool) await warmTrackingPool();
+  // Collections while the pool started ahead are not the tracking pass's.
   collections?.take();
   const beforeTracking = threadSnapshot();
   const started = performance.now();

@@ -3,7 +3,7 @@
  * at reduced resolution each block's, change of colour against the stack's colour background
  * (dye-signal.ts) above a level. What the background contributes stays as it is from frame to frame,
  * so it is made once for the background array last given: at full resolution the products of
- * `relativeChangeAbove` (3 doubles a pixel), at reduced resolution the background's block sums
+ * `relativeChangeAbove` (three 16-bit whole numbers a pixel), at reduced resolution the background's block sums
  * (Decision 78). They are made piece by piece (`termSpan` detection-image px of one row), when a
  * search first reads the piece: a background composed anew for every frame (a lab-fixed view of a
  * turning table, turning-compose.ts) then costs the pieces searched, not the whole crop (Decision
@@ -61,8 +61,9 @@ export function createDyeMarker(plan: DetectionPlan): DyeMarker {
   const block = k * k;
   const sums = new Float64Array(3);
   const piecesX = Math.ceil(sw / termSpan);
-  /** Full resolution: the products; reduced: the block sums, channel by channel. */
-  let terms = new Float64Array(0);
+  /** Full resolution: the products (16 bits hold them exactly, dye-signal.ts); reduced: the block sums, channel by channel. */
+  let products = new Uint16Array(0);
+  let blockSums = new Float64Array(0);
   let background: Uint8Array = new Uint8Array(0);
   let madeFor: Uint8Array | null = null;
   /** Per piece of a row, the background (by `generation`) its terms were made for; 0: none yet. */
@@ -71,7 +72,8 @@ export function createDyeMarker(plan: DetectionPlan): DyeMarker {
 
   function use(next: Uint8Array): void {
     if (madeFor === next) return;
-    if (terms.length !== sw * sh * 3) terms = new Float64Array(sw * sh * 3);
+    if (k === 1 && products.length !== sw * sh * 3) products = new Uint16Array(sw * sh * 3);
+    if (k > 1 && blockSums.length !== sw * sh * 3) blockSums = new Float64Array(sw * sh * 3);
     background = next;
     madeFor = next;
     generation = generation === 0xffffffff ? 1 : generation + 1;
@@ -88,12 +90,12 @@ export function createDyeMarker(plan: DetectionPlan): DyeMarker {
       const s0 = piece << termShift;
       const s1 = Math.min(sw, s0 + termSpan);
       if (k === 1) {
-        backgroundProducts(background, terms, rowAt + s0, rowAt + s1);
+        backgroundProducts(background, products, rowAt + s0, rowAt + s1);
         continue;
       }
       for (let sx = s0; sx < s1; sx++) {
         blockSum3(background, width, k, sx, sy, sums);
-        terms.set(sums, 3 * (rowAt + sx));
+        blockSums.set(sums, 3 * (rowAt + sx));
       }
     }
   }
@@ -102,7 +104,7 @@ export function createDyeMarker(plan: DetectionPlan): DyeMarker {
     if (c0 >= c1) return 0;
     ensureTerms(sy, c0, c1);
     const rowAt = sy * sw;
-    if (k === 1) return markChangeAbove(img, terms, mask, rowAt + c0, rowAt + c1, level);
+    if (k === 1) return markChangeAbove(img, products, mask, rowAt + c0, rowAt + c1, level);
     let marked = 0;
     for (let sx = c0; sx < c1; sx++) {
       blockSum3(img, width, k, sx, sy, sums);
@@ -111,9 +113,9 @@ export function createDyeMarker(plan: DetectionPlan): DyeMarker {
         sums[0]! / block,
         sums[1]! / block,
         sums[2]! / block,
-        terms[b]! / block,
-        terms[b + 1]! / block,
-        terms[b + 2]! / block,
+        blockSums[b]! / block,
+        blockSums[b + 1]! / block,
+        blockSums[b + 2]! / block,
         level,
       );
       if (!above) continue;

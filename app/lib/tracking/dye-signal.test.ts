@@ -17,7 +17,7 @@ describe("marking a row from the background's products", () => {
     };
     const background = Uint8Array.from({ length: 3 * pixels }, level);
     const image = background.map((b) => (random() < 0.3 ? b : Math.max(0, Math.min(255, b + Math.round((random() - 0.5) * 60)))));
-    const products = new Float64Array(3 * pixels);
+    const products = new Uint16Array(3 * pixels);
     backgroundProducts(background, products);
     let marked = 0;
     for (const at of [0.02, 0.05, 0.09, 0.2, 0.5]) {
@@ -33,5 +33,12 @@ describe("marking a row from the background's products", () => {
       marked += count;
     }
     expect(marked).toBeGreaterThan(1000);
+  });
+
+  it("holds every product exactly in 16 bits, the largest (255 · 255) included", () => {
+    const background = Uint8Array.from([255, 255, 255, 0, 1, 255, 254, 255, 253]);
+    const products = new Uint16Array(9);
+    backgroundProducts(background, products);
+    expect(Array.from(products)).toEqual([65025, 65025, 65025, 255, 255, 1, 64515, 64262, 64770]);
   });
 });

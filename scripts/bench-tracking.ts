@@ -7,7 +7,8 @@
  * framesPerSecond, decodeOnlyFramesPerSecond, peakRssMB, and (added later) tracer, cpuMsPerFrame,
  * rmsErrorPx (the longest track against the rendered truth), ratioToDecode (framesPerSecond over
  * decodeOnlyFramesPerSecond, both of this run), warmPool, decodeCpuMsPerFrame and cpuRatioToDecode
- * (decoding's processor time a frame over tracking's).
+ * (decoding's processor time a frame over tracking's), and serverNodeFlags (whether this process
+ * runs with the V8 option a server starts with, scripts/node-flags.mjs, as `npm run bench` does).
  *
  * The tracking pass starts its worker pool, as a job on an idle server does (one thread fewer
  * than the cores, each loading OpenCV: about 0.2 s of processor time apiece). `--warm-pool`
@@ -34,6 +35,7 @@ import type { Track } from "../app/lib/tracking/types";
 import { writeSyntheticStack } from "../tests/fixtures/tracking/write-stack";
 import { benchSetup, benchSpec, benchStackDir, root, type BenchTracer } from "./bench-stacks";
 import { collectionCounter } from "./gc-counts";
+import { serverNodeFlags } from "./node-flags.mjs";
 import { eachThread, threadSnapshot, threadTimes } from "./thread-times";
 
 const tracerArg = process.argv.indexOf("--tracer");
@@ -115,6 +117,8 @@ async function main(): Promise<void> {
     return;
   }
   const files = await frameFiles();
+  const asServer = serverNodeFlags.every((flag) => process.execArgv.includes(flag));
+  if (!asServer) log(`not started with ${serverNodeFlags.join(" ")} as a server is (npm run bench is): decoding collects garbage more often`);
   const times = files.map((_, i) => i / spec.fps);
   const sampler = rssSampler();
 
@@ -194,6 +198,7 @@ async function main(): Promise<void> {
       // it on a machine other work shares.
       decodeCpuMsPerFrame: Number(decodeCpuMsPerFrame.toFixed(1)),
       cpuRatioToDecode: Number((decodeCpuMsPerFrame / cpuMsPerFrame).toFixed(2)),
+      serverNodeFlags: asServer,
     })}\n`,
   );
 }

@@ -19,6 +19,7 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { freshDatabaseUrl } from "../tests/setup/test-database.mjs";
 import { streamingOrder } from "../app/lib/frame-stream";
+import { serverNodeFlags } from "./node-flags.mjs";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const arg = (name: string, fallback: string) => {
@@ -134,7 +135,7 @@ async function main() {
   }
   const serverEnv = { ...process.env, ...env };
   delete serverEnv.SMTP_URL;
-  const server = spawn(process.execPath, ["server.mjs"], { cwd: root, env: serverEnv, stdio: ["ignore", "pipe", "pipe"] });
+  const server = spawn(process.execPath, [...serverNodeFlags, "server.mjs"], { cwd: root, env: serverEnv, stdio: ["ignore", "pipe", "pipe"] });
   let serverLog = "";
   server.stdout.on("data", (b: Buffer) => (serverLog += b.toString()));
   server.stderr.on("data", (b: Buffer) => (serverLog += b.toString()));

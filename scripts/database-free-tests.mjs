@@ -22,6 +22,7 @@ export const databaseFree = [
   },
   { glob: "tests/unit/scene-projection.test.ts", why: "POV-Ray renders of the scene check against the projection, in a temporary folder" },
   { glob: "tests/unit/compressed-answers.test.ts", why: "long answers through the compression middleware, on a server of its own" },
+  { glob: "tests/unit/node-flags.test.ts", why: "the V8 option on the start commands, read back by a process and its thread" },
 ];
 
 export const databaseFreeTests = databaseFree.map((d) => d.glob);

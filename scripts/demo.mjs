@@ -6,6 +6,7 @@ import { spawn } from "node:child_process";
 import http from "node:http";
 import path from "node:path";
 import { buildIsCurrent, demoSessionSecret, recordBuild, sqliteFileOf } from "./demo-support.mjs";
+import { serverNodeFlags } from "./node-flags.mjs";
 
 const root = path.resolve(import.meta.dirname, "..");
 const port = Number(process.env.PORT ?? 3000);
@@ -109,7 +110,11 @@ if (process.argv.includes("--no-build") || buildIsCurrent(root, buildDir)) {
   console.log(`[demo] built in ${seconds()} s`);
 }
 
-const server = spawn("node", ["server.mjs"], { cwd: root, env: { ...env, TANKSIDE_SOCKET_FROM_PARENT: "1" }, stdio: ["inherit", "inherit", "inherit", "ipc"] });
+const server = spawn("node", [...serverNodeFlags, "server.mjs"], {
+  cwd: root,
+  env: { ...env, TANKSIDE_SOCKET_FROM_PARENT: "1" },
+  stdio: ["inherit", "inherit", "inherit", "ipc"],
+});
 child = { process: server, group: false };
 server.on("message", (message) => {
   if (message?.tankside === "ready") server.send({ tankside: "socket" }, placeholder);

@@ -6,6 +6,7 @@ import net from "node:net";
 import path from "node:path";
 import { ListObjectsV2Command, S3Client } from "@aws-sdk/client-s3";
 import { FAKE_S3_ACCESS_KEY, FAKE_S3_SECRET_KEY, type FakeS3 } from "../tests/setup/fake-s3";
+import { serverNodeFlags } from "./node-flags.mjs";
 
 export const root = path.resolve(import.meta.dirname, "..");
 
@@ -51,9 +52,9 @@ export class Proc {
 }
 
 export const web = (label: string, port: number, env: NodeJS.ProcessEnv) =>
-  new Proc(label, ["server.mjs"], { ...env, PORT: String(port), HOST: "127.0.0.1", APP_URL: `http://127.0.0.1:${port}` });
+  new Proc(label, [...serverNodeFlags, "server.mjs"], { ...env, PORT: String(port), HOST: "127.0.0.1", APP_URL: `http://127.0.0.1:${port}` });
 // What `npm run worker` runs (tsx app/.server/worker.ts), as one process so it stops with one signal.
-export const worker = (label: string, env: NodeJS.ProcessEnv) => new Proc(label, ["--import", "tsx", "app/.server/worker.ts"], env);
+export const worker = (label: string, env: NodeJS.ProcessEnv) => new Proc(label, [...serverNodeFlags, "--import", "tsx", "app/.server/worker.ts"], env);
 
 /** Objects under a prefix of the fake server's bucket, counted through the S3 API. */
 export async function countObjects(s3: FakeS3, bucketName: string, prefix: string) {

@@ -4,6 +4,7 @@ import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
 import path from "node:path";
 import { freshDatabaseUrl, onPostgres } from "./test-database.mjs";
+import { serverNodeFlags } from "../../scripts/node-flags.mjs";
 
 const root = path.resolve(import.meta.dirname, "../..");
 // One folder per port, so two test runs on one machine do not share a database.
@@ -28,6 +29,6 @@ Object.assign(env, {
 console.log(`[e2e] database: ${onPostgres ? "PostgreSQL" : "SQLite"}`);
 const seed = spawnSync("npx", ["tsx", "scripts/seed-demo.ts"], { cwd: root, env, stdio: "inherit" });
 if (seed.status !== 0) process.exit(seed.status ?? 1);
-const server = spawn("node", ["server.mjs"], { cwd: root, env, stdio: "inherit" });
+const server = spawn("node", [...serverNodeFlags, "server.mjs"], { cwd: root, env, stdio: "inherit" });
 for (const sig of ["SIGINT", "SIGTERM"]) process.on(sig, () => server.kill(sig));
 server.on("exit", (code) => process.exit(code ?? 0));

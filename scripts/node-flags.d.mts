@@ -1,0 +1,1 @@
+export declare const serverNodeFlags: readonly string[];

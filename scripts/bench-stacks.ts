@@ -81,6 +81,7 @@ export function benchStackDir(tracer: BenchTracer): string {
   const key = createHash("sha256")
     .update(JSON.stringify(benchSpec(tracer)))
     .update(readFileSync(path.join(root, "app/lib/tracking/synthetic.ts")))
+    .update(readFileSync(path.join(root, "app/lib/tracking/synthetic-spec.ts")))
     .digest("hex")
     .slice(0, 12);
   return path.join(root, `node_modules/.cache/tankside-bench/${tracer}-600-1280x720-${key}`);

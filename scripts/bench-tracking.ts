@@ -8,7 +8,8 @@
  * rmsErrorPx (the longest track against the rendered truth), ratioToDecode (framesPerSecond over
  * decodeOnlyFramesPerSecond, both of this run), warmPool, decodeCpuMsPerFrame and cpuRatioToDecode
  * (decoding's processor time a frame over tracking's), and serverNodeFlags (whether this process
- * runs with the V8 option a server starts with, scripts/node-flags.mjs, as `npm run bench` does).
+ * runs with the V8 option a server starts with, scripts/node-flags.mjs, as `npm run bench` does)
+ * and passes.
  *
  * The tracking pass starts its worker pool, as a job on an idle server does (one thread fewer
  * than the cores, each loading OpenCV: about 0.2 s of processor time apiece). `--warm-pool`
@@ -16,6 +17,10 @@
  * minute, or that started the pool when the frames began to arrive; the JSON line says which
  * (warmPool). The decode-only pass is the decoder's own work on the same frames and crop
  * (decodeFrame as a job calls it), run before the tracking pass in the same process.
+ *
+ * `--passes N` decodes and tracks the stack N times in this process, the pool kept between passes
+ * as a server keeps it for a minute after a job, and the JSON line gives the last pass: a server
+ * that has tracked before, whose compiled code has settled (stderr gives every pass).
  *
  * `--threads` also prints, on stderr, each pass's processor time by kind of thread
  * (scripts/thread-times.ts): where the time beyond decoding goes, and the main thread's garbage
@@ -45,6 +50,9 @@ const tracer: BenchTracer = tracerName;
 const warmPool = process.argv.includes("--warm-pool");
 const everyThread = process.argv.includes("--each-thread");
 const byThread = everyThread || process.argv.includes("--threads");
+const passesArg = process.argv.indexOf("--passes");
+const passes = passesArg >= 0 ? Number(process.argv[passesArg + 1]) : 1;
+if (!(Number.isInteger(passes) && passes >= 1 && passes <= 20)) throw new Error("--passes is a whole number from 1 to 20.");
 const spec = benchSpec(tracer);
 const setup = benchSetup(tracer);
 const cacheDir = benchStackDir(tracer);
@@ -111,18 +119,12 @@ async function decodeOnly(files: string[]): Promise<number> {
   return files.length / ((performance.now() - started) / 1000);
 }
 
-async function main(): Promise<void> {
-  if (process.argv.includes("--render")) {
-    await render();
-    return;
-  }
-  const files = await frameFiles();
-  const asServer = serverNodeFlags.every((flag) => process.execArgv.includes(flag));
-  if (!asServer) log(`not started with ${serverNodeFlags.join(" ")} as a server is (npm run bench is): decoding collects garbage more often`);
-  const times = files.map((_, i) => i / spec.fps);
-  const sampler = rssSampler();
-
-  const collections = byThread ? collectionCounter() : null;
+/**
+ * One decode-only pass and one tracking pass. Later passes (`--passes N`) track the same stack
+ * again in this process, with the pool kept (as a server does for a minute after a job): what a
+ * server that has tracked before spends, once its compiled code has settled.
+ */
+async function onePass(files: string[], times: number[], pass: number, collections: ReturnType<typeof collectionCounter> | null) {
   const existing = threadSnapshot();
   const decodeCpuBefore = process.cpuUsage();
   const decodeFps = await decodeOnly(files);
@@ -134,9 +136,10 @@ async function main(): Promise<void> {
     log(`decode only, the main thread's collections: ${JSON.stringify(collections?.take())}`);
   }
   const decodeCpuMsPerFrame = (decodeCpu.user + decodeCpu.system) / 1000 / files.length;
-  log(`decode only: ${decodeFps.toFixed(1)} frames/s, ${decodeCpuMsPerFrame.toFixed(1)} ms CPU a frame`);
+  const label = passes > 1 ? `pass ${pass}, ` : "";
+  log(`${label}decode only: ${decodeFps.toFixed(1)} frames/s, ${decodeCpuMsPerFrame.toFixed(1)} ms CPU a frame`);
 
-  if (warmPool) await warmTrackingPool();
+  if (warmPool && pass === 1) await warmTrackingPool();
   // Collections while the pool started ahead are not the tracking pass's.
   collections?.take();
   const beforeTracking = threadSnapshot();
@@ -154,8 +157,32 @@ async function main(): Promise<void> {
     log(`tracking, ms of processor time by thread: ${JSON.stringify(threadTimes(beforeTracking, afterTracking, afterDecode))}`);
     if (everyThread) log(`tracking, each thread: ${JSON.stringify(eachThread(beforeTracking, afterTracking))}`);
     log(`tracking, the main thread's collections: ${JSON.stringify(collections?.take())}`);
-    collections?.stop();
   }
+  if (passes > 1)
+    log(
+      `${label}tracking: ${fps.toFixed(1)} frames/s, ${cpuMsPerFrame.toFixed(1)} ms CPU a frame, cpuRatioToDecode ${(decodeCpuMsPerFrame / cpuMsPerFrame).toFixed(2)}`,
+    );
+  return { decodeFps, decodeCpuMsPerFrame, fps, seconds, cpuMsPerFrame, result };
+}
+
+async function main(): Promise<void> {
+  if (process.argv.includes("--render")) {
+    await render();
+    return;
+  }
+  const files = await frameFiles();
+  const asServer = serverNodeFlags.every((flag) => process.execArgv.includes(flag));
+  if (!asServer) log(`not started with ${serverNodeFlags.join(" ")} as a server is (npm run bench is): decoding collects garbage more often`);
+  const times = files.map((_, i) => i / spec.fps);
+  const sampler = rssSampler();
+
+  const collections = byThread ? collectionCounter() : null;
+  let last: Awaited<ReturnType<typeof onePass>> | null = null;
+  for (let pass = 1; pass <= passes; pass++) {
+    last = await onePass(files, times, pass, collections);
+  }
+  collections?.stop();
+  const { decodeFps, decodeCpuMsPerFrame, fps, seconds, cpuMsPerFrame, result } = last!;
   await closeTrackingPool();
   const sampledPeak = sampler.stop();
   // The kernel's high-water mark for the whole process, threads included; no render happened here.
@@ -174,7 +201,7 @@ async function main(): Promise<void> {
   }
   const rmsErrorPx = counted > 0 ? Math.sqrt(squares / counted) : null;
   log(
-    `tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${trackingThreads} worker(s) ${warmPool ? "already started" : "started in the pass"}, block ${result.search.shrink} px), ` +
+    `${passes > 1 ? `pass ${passes}, ` : ""}tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${trackingThreads} worker(s) ${passes > 1 ? "kept from the pass before" : warmPool ? "already started" : "started in the pass"}, block ${result.search.shrink} px), ` +
       `${cpuMsPerFrame.toFixed(1)} ms CPU a frame, load average ${os.loadavg()[0]!.toFixed(1)}, ` +
       `${result.tracks.length} track(s), longest ${longest.points.length} points, ` +
       `frames detected ${(result.quality.framesDetectedShare * 100).toFixed(1)} %, jitter ${result.quality.jitterPx?.toFixed(3)} px, ` +
@@ -199,6 +226,7 @@ async function main(): Promise<void> {
       decodeCpuMsPerFrame: Number(decodeCpuMsPerFrame.toFixed(1)),
       cpuRatioToDecode: Number((decodeCpuMsPerFrame / cpuMsPerFrame).toFixed(2)),
       serverNodeFlags: asServer,
+      passes,
     })}\n`,
   );
 }

@@ -12,6 +12,7 @@
  * colour less than half as much as the strongest patch of the frame: a dye's coloured shadow on
  * the bottom, lit by only part of the light, is such a weaker copy of it.
  */
+import { type Blob, createBlobFinder } from "./blob-finder";
 import { createDyeCentre } from "./dye-centre";
 import { blobStrength, createColourNoise, distinctPatches, shadowShare } from "./dye-patches";
 import { floatCentre } from "./float-centre";
@@ -59,7 +60,6 @@ export interface Detector {
 const detectSigmas = 5;
 const weightSigmas = 3;
 const noiseStride = 4;
-const maxBlobs = 254;
 const maxDetections = 50;
 /** A float with more unreadable pixels than this share of its area is not placed (float-centre.ts). */
 const hiddenShare = 0.25;
@@ -70,16 +70,12 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   const height = plan.crop.height;
   if (sw < 3 || sh < 3) throw new Error("The searched region is too small to find a tracer in.");
 
-  const mask = new cv.Mat(sh, sw, cv.CV_8UC1);
-  const opened = new cv.Mat(sh, sw, cv.CV_8UC1);
-  const labels = new cv.Mat(sh, sw, cv.CV_8UC1);
-  const kernel = cv.getStructuringElement(cv.MORPH_RECT, new cv.Size(3, 3));
+  const { mask, labels, blobs, dispose: disposeBlobs } = createBlobFinder(cv, plan);
   const fullSpans = rowSpans(height, width, 1, 0, plan.tank);
   const smallSpans = rowSpans(sh, sw, k, (k - 1) / 2, plan.tank);
   const hist = new Uint32Array(511);
   const colourNoise = createColourNoise(width, height, fullSpans);
   const colour = new Float64Array(3);
-  const block = k * k;
   const threshold = createThreshold(plan, smallSpans, detectSigmas);
   const { hueMin, hueMax, satMin, valMin } = plan.dyeColour;
   const dyeCentre = plan.tracer === "dye" ? createDyeCentre(width, height, fullSpans) : null;
@@ -116,81 +112,6 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
       }
     }
     return robustStats(hist, background ? 255 : 0);
-  }
-
-  interface Blob {
-    label: number;
-    rect: CvRect;
-    roundness: number;
-    pixels: number;
-  }
-
-  /** Opening and closing, then outlines and their filled labels, within each region. */
-  function blobs(regions: CvRect[]): Blob[] {
-    opened.data.fill(0);
-    labels.data.fill(0);
-    const found: Blob[] = [];
-    let nextLabel = 1;
-    for (const region of regions) {
-      if (nextLabel > maxBlobs) break;
-      const rect = new cv.Rect(region.x, region.y, region.width, region.height);
-      const maskRoi = mask.roi(rect);
-      const openedRoi = opened.roi(rect);
-      const labelsRoi = labels.roi(rect);
-      const contours = new cv.MatVector();
-      const hierarchy = new cv.Mat(0, 0, cv.CV_8UC1);
-      try {
-        cv.morphologyEx(maskRoi, openedRoi, cv.MORPH_OPEN, kernel);
-        cv.morphologyEx(openedRoi, maskRoi, cv.MORPH_CLOSE, kernel);
-        cv.findContours(maskRoi, contours, hierarchy, cv.RETR_EXTERNAL, cv.CHAIN_APPROX_SIMPLE);
-        const candidates: { index: number; area: number; perimeter: number; rect: CvRect }[] = [];
-        const count = contours.size();
-        for (let i = 0; i < count; i++) {
-          const contour = contours.get(i);
-          try {
-            const r = cv.boundingRect(contour);
-            // The box bounds the pixel count from above, the outline's area from below.
-            if (r.width * r.height * block < plan.minAreaPx) continue;
-            const area = cv.contourArea(contour);
-            if (area * block > plan.maxAreaPx) continue;
-            candidates.push({
-              index: i,
-              area,
-              perimeter: cv.arcLength(contour, true),
-              rect: { x: r.x + region.x, y: r.y + region.y, width: r.width, height: r.height },
-            });
-          } finally {
-            contour.delete();
-          }
-        }
-        candidates.sort((a, b) => b.area - a.area);
-        candidates.length = Math.min(candidates.length, maxBlobs + 1 - nextLabel);
-        const first = nextLabel;
-        for (const c of candidates) cv.drawContours(labelsRoi, contours, c.index, new cv.Scalar(nextLabel++), -1);
-        const lab = labels.data;
-        candidates.forEach((c, n) => {
-          const label = first + n;
-          let pixels = 0;
-          for (let row = c.rect.y; row < c.rect.y + c.rect.height; row++) {
-            for (let col = c.rect.x; col < c.rect.x + c.rect.width; col++) {
-              if (lab[row * sw + col] === label) pixels++;
-            }
-          }
-          const areaPx = pixels * block;
-          if (areaPx < plan.minAreaPx || areaPx > plan.maxAreaPx) return;
-          const roundness = c.perimeter > 0 ? (4 * Math.PI * c.area) / (c.perimeter * c.perimeter) : 0;
-          if (roundness < plan.minRoundness) return;
-          found.push({ label, rect: c.rect, roundness: Math.min(1, roundness), pixels: areaPx });
-        });
-      } finally {
-        contours.delete();
-        hierarchy.delete();
-        maskRoi.delete();
-        openedRoi.delete();
-        labelsRoi.delete();
-      }
-    }
-    return found;
   }
 
   /** A float's centre from its share of each pixel (float-centre.ts); dye found by colour alone, its saturation-weighted centroid. */
@@ -347,10 +268,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
     dispose() {
       if (disposed) return;
       disposed = true;
-      mask.delete();
-      opened.delete();
-      labels.delete();
-      kernel.delete();
+      disposeBlobs();
     },
   };
 }

@@ -11,20 +11,28 @@
  * per condition (with `--frames`, one a frame as well). A condition already rendered is reused.
  *
  * Conditions (none named: all):
- *   scene           the scene files as committed (checks that this path gives the cached stack's figures)
- *   no-glare        the water's surface without its highlight (specular 0): no lamp's glare
- *   shadowless      both lamps cast no shadow: no coloured copies of the patch on the bottom
- *   no-near-copy    only the second (point) lamp casts no shadow: the near copy gone, its glare kept
- *   no-grid         the bottom plain, its light grey, without the polar grid
- *   no-refraction   water and dye with n = 1: the dye seen straight (its truth then projected straight)
- *   water-on-bottom the water's body reaching into the bottom: no water face 10 µm over the bottom, whose
- *                   highlight of the second lamp the dye's shadow and the dye itself darken
- *   linear-output   the image written in linear light (File_Gamma=1.0) instead of POV-Ray's sRGB encoding,
- *                   so that glare adds to a pixel's value as it adds light
- *   png             the `scene` render with noise but no JPEG (lossless PNG)
- *   jpeg-444        the `scene` render with noise and JPEG at quality 85 without halving the colour
- *   clean           the `scene` render with neither noise nor JPEG
- *   bare            no glare, no shadows, no grid, neither noise nor JPEG
+ *   scene                  the scene files as committed (checks that this path gives the cached stack's frames)
+ *   no-glare               the water's surfaces without their highlight (specular 0): no lamp's glare
+ *   no-copies              the dye casts no shadow: no coloured copies of the patch on the bottom
+ *   second-lamp-shadowless the second (point) lamp casts no shadow; POV-Ray then gives it no highlight
+ *                          either, so its near copy and its glare go together
+ *   no-grid                the bottom plain, its light grey, without the polar grid
+ *   no-refraction          water and dye with n = 1: the dye seen straight (its truth then projected straight)
+ *   png                    the `scene` render with noise but no JPEG (lossless PNG)
+ *   jpeg-444               the `scene` render with noise and JPEG at quality 85 without halving the colour
+ *   clean                  the `scene` render with neither noise nor JPEG
+ *   glare-only             no copies, no grid: of the render's conditions only the glare (noise and JPEG kept)
+ *   copies-only            no glare, no grid: only the lamps' coloured copies
+ *   grid-only              no glare, no copies: only the grid
+ *   bare                   no glare, no copies, no grid, neither noise nor JPEG
+ *   bare-jpeg              the `bare` render with noise and JPEG
+ *   bare-png               the `bare` render with noise, no JPEG
+ *   bare-jpeg-444          the `bare` render with noise and JPEG without halving the colour
+ *   water-on-bottom        the water's body reaching into the bottom: no water face 10 µm over the bottom,
+ *                          whose highlight of the second lamp adds to the surface's own
+ *   weak-glare-only        as water-on-bottom, with no copies and no grid: only the surface's own glare
+ *   linear-output          the image written in linear light (File_Gamma=1.0) instead of POV-Ray's sRGB
+ *                          encoding, so that glare adds to a pixel's value as it adds light
  */
 import { spawn } from "node:child_process";
 import { existsSync, readFileSync } from "node:fs";
@@ -51,8 +59,10 @@ interface Edit {
 
 const edits = {
   noGlare: [{ file: "tank-parts.inc", from: "finish { specular 0.9 roughness 0.0015 }", to: "finish { specular 0 }" }],
-  noNearCopy: [{ file: "room.inc", from: "    color rgb 0.35\n  }", to: "    color rgb 0.35\n    shadowless\n  }" }],
-  noMainCopy: [{ file: "room.inc", from: "    circular\n    orient\n  }", to: "    circular\n    orient\n    shadowless\n  }" }],
+  // The dye casts no shadow: neither lamp's coloured copy; the lamps' light and the second lamp's glare stay.
+  noCopies: [{ file: "tank-parts.inc", from: "  hollow\n  pigment { rgbt 1 }", to: "  hollow\n  no_shadow\n  pigment { rgbt 1 }" }],
+  // POV-Ray gives a shadowless light no highlight: this takes the second lamp's glare away with its copy.
+  secondLampShadowless: [{ file: "room.inc", from: "    color rgb 0.35\n  }", to: "    color rgb 0.35\n    shadowless\n  }" }],
   noGrid: [
     {
       file: "tank-parts.inc",
@@ -81,21 +91,28 @@ const full: PostProcessSteps = { noise: true, output: "jpeg" };
 const conditions: Condition[] = [
   { name: "scene", render: "scene", edits: [], steps: full },
   { name: "no-glare", render: "no-glare", edits: edits.noGlare, steps: full },
-  { name: "shadowless", render: "shadowless", edits: [...edits.noNearCopy, ...edits.noMainCopy], steps: full },
-  { name: "no-near-copy", render: "no-near-copy", edits: edits.noNearCopy, steps: full },
+  { name: "no-copies", render: "no-copies", edits: edits.noCopies, steps: full },
+  { name: "second-lamp-shadowless", render: "second-lamp-shadowless", edits: edits.secondLampShadowless, steps: full },
   { name: "no-grid", render: "no-grid", edits: edits.noGrid, steps: full },
   { name: "no-refraction", render: "no-refraction", edits: edits.noRefraction, steps: full, straight: true },
-  { name: "water-on-bottom", render: "water-on-bottom", edits: edits.waterOnBottom, steps: full },
-  { name: "linear-output", render: "linear-output", edits: [], steps: full, options: ["File_Gamma=1.0"] },
   { name: "png", render: "scene", edits: [], steps: { noise: true, output: "png" } },
   { name: "jpeg-444", render: "scene", edits: [], steps: { noise: true, output: "jpeg-444" } },
   { name: "clean", render: "scene", edits: [], steps: { noise: false, output: "png" } },
+  { name: "glare-only", render: "glare-only", edits: [...edits.noCopies, ...edits.noGrid], steps: full },
+  { name: "copies-only", render: "copies-only", edits: [...edits.noGlare, ...edits.noGrid], steps: full },
+  { name: "grid-only", render: "grid-only", edits: [...edits.noGlare, ...edits.noCopies], steps: full },
+  { name: "bare", render: "bare", edits: [...edits.noGlare, ...edits.noCopies, ...edits.noGrid], steps: { noise: false, output: "png" } },
+  { name: "bare-jpeg", render: "bare", edits: [...edits.noGlare, ...edits.noCopies, ...edits.noGrid], steps: full },
+  { name: "bare-png", render: "bare", edits: [...edits.noGlare, ...edits.noCopies, ...edits.noGrid], steps: { noise: true, output: "png" } },
   {
-    name: "bare",
+    name: "bare-jpeg-444",
     render: "bare",
-    edits: [...edits.noGlare, ...edits.noNearCopy, ...edits.noMainCopy, ...edits.noGrid],
-    steps: { noise: false, output: "png" },
+    edits: [...edits.noGlare, ...edits.noCopies, ...edits.noGrid],
+    steps: { noise: true, output: "jpeg-444" },
   },
+  { name: "water-on-bottom", render: "water-on-bottom", edits: edits.waterOnBottom, steps: full },
+  { name: "weak-glare-only", render: "weak-glare-only", edits: [...edits.waterOnBottom, ...edits.noCopies, ...edits.noGrid], steps: full },
+  { name: "linear-output", render: "linear-output", edits: [], steps: full, options: ["File_Gamma=1.0"] },
 ];
 
 const root = process.env.TANKSIDE_SCENE_ATTRIB ?? "/tmp/tankside-scene-attrib";

@@ -1,5 +1,5 @@
 /**
- * `TANKSIDE_SCENE_ATTRIB=/scratch npx tsx scripts/dye-attribution.ts [condition …] [--frames]`:
+ * `TANKSIDE_SCENE_ATTRIB=/scratch npx tsx scripts/dye-attribution.ts [condition …] [--frames] [--variant name]`:
  * what each of the lab-fixed dye scene's conditions costs the dye track. The scene
  * (tests/fixtures/scenes, variant lab-dye) is rendered again with ONE condition taken away, into a
  * scratch folder of its own (default /tmp/tankside-scene-attrib), never into the scene cache: the
@@ -115,7 +115,11 @@ const conditions: Condition[] = [
   { name: "linear-output", render: "linear-output", edits: [], steps: full, options: ["File_Gamma=1.0"] },
 ];
 
-const root = process.env.TANKSIDE_SCENE_ATTRIB ?? "/tmp/tankside-scene-attrib";
+const variantArg = process.argv.indexOf("--variant");
+/** The scene variant rendered: lab-dye unless `--variant <name>` names another (its floats are tracked and measured, not split). */
+const variantName = variantArg >= 0 ? process.argv[variantArg + 1]! : "lab-dye";
+const attribRoot = process.env.TANKSIDE_SCENE_ATTRIB ?? "/tmp/tankside-scene-attrib";
+const root = variantName === "lab-dye" ? attribRoot : path.join(attribRoot, variantName);
 
 function edited(file: SceneFile, all: readonly Edit[]): string {
   let text = readFileSync(path.join(scenesDir, file), "utf8");
@@ -146,7 +150,7 @@ async function rawFrames(condition: Condition, total: number): Promise<string> {
   if (existsSync(path.join(dir, "rendered.json"))) return raw;
   await rm(dir, { recursive: true, force: true });
   await mkdir(raw, { recursive: true });
-  const [variant] = variantsNamed(["lab-dye"]);
+  const [variant] = variantsNamed([variantName]);
   await writeFile(path.join(dir, "variant.inc"), variantInclude(variant!, sceneFrames(variant!)));
   for (const file of sceneFiles) await writeFile(path.join(dir, file), edited(file, condition.edits));
   // Only the scratch folder on the library path: the edited copies, never the committed files.
@@ -167,7 +171,7 @@ async function rawFrames(condition: Condition, total: number): Promise<string> {
 }
 
 function truthFor(condition: Condition): SceneTruth {
-  const [variant] = variantsNamed(["lab-dye"]);
+  const [variant] = variantsNamed([variantName]);
   const truth = sceneTruth(variant!);
   if (!condition.straight) return truth;
   const states = sceneFrames(variant!);
@@ -182,7 +186,7 @@ function truthFor(condition: Condition): SceneTruth {
 }
 
 async function measure(condition: Condition, withFrames: boolean): Promise<void> {
-  const [variant] = variantsNamed(["lab-dye"]);
+  const [variant] = variantsNamed([variantName]);
   const total = sceneFrames(variant!).length;
   const raw = await rawFrames(condition, total);
   const dir = path.join(root, condition.name === condition.render ? condition.render : `${condition.render}-${condition.name}`, "frames");
@@ -196,7 +200,7 @@ async function measure(condition: Condition, withFrames: boolean): Promise<void>
   }
   const truth = truthFor(condition);
   const { measurement, longest } = await measureSceneTrack({ dir, files, truth, renderSeconds: null });
-  const rows = longest ? frameErrors(variant!, truth, longest) : [];
+  const rows = longest && truth.tracer === "dye" ? frameErrors(variant!, truth, longest) : [];
   if (withFrames) for (const r of rows) process.stdout.write(`${JSON.stringify({ condition: condition.name, ...frameLine(r) })}\n`);
   process.stdout.write(
     `${JSON.stringify({
@@ -213,7 +217,7 @@ async function measure(condition: Condition, withFrames: boolean): Promise<void>
 }
 
 async function main(): Promise<void> {
-  const named = process.argv.slice(2).filter((a) => !a.startsWith("-"));
+  const named = process.argv.slice(2).filter((a, i, all) => !a.startsWith("-") && all[i - 1] !== "--variant");
   const unknown = named.filter((n) => !conditions.some((c) => c.name === n));
   if (unknown.length > 0) throw new Error(`No such condition: ${unknown.join(", ")} (there are ${conditions.map((c) => c.name).join(", ")}).`);
   const chosen = named.length > 0 ? conditions.filter((c) => named.includes(c.name)) : conditions;

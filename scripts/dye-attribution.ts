@@ -28,9 +28,8 @@
  *   bare-jpeg              the `bare` render with noise and JPEG
  *   bare-png               the `bare` render with noise, no JPEG
  *   bare-jpeg-444          the `bare` render with noise and JPEG without halving the colour
- *   water-on-bottom        the water's body reaching into the bottom: no water face 10 µm over the bottom,
- *                          whose highlight of the second lamp adds to the surface's own
- *   weak-glare-only        as water-on-bottom, with no copies and no grid: only the surface's own glare
+ *   water-face-over-bottom the scenes as rendered before Decision 99: the water's body starting 10 µm over
+ *                          the bottom, whose face there mirrors the second lamp a second time
  *   linear-output          the image written in linear light (File_Gamma=1.0) instead of POV-Ray's sRGB
  *                          encoding, so that glare adds to a pixel's value as it adds light
  */
@@ -71,8 +70,9 @@ const edits = {
     },
   ],
   noRefraction: [{ file: "tank-parts.inc", from: "ior 1.33", to: "ior 1.0", count: 2 }],
-  // The water's body reaches into the bottom, so no water face lies 10 µm over it (where a second highlight forms).
-  waterOnBottom: [{ file: "tank-parts.inc", from: "<0, 0.001, 0>, <0, WaterLevel, 0>", to: "<0, -0.5, 0>, <0, WaterLevel, 0>" }],
+  // The scenes as rendered before Decision 99: the water's body starting 10 µm over the bottom, whose
+  // face there mirrors the second lamp a second time.
+  waterFaceOverBottom: [{ file: "tank-parts.inc", from: "<0, -0.5, 0>, <0, WaterLevel, 0>", to: "<0, 0.001, 0>, <0, WaterLevel, 0>" }],
 } satisfies Record<string, Edit[]>;
 
 interface Condition {
@@ -110,8 +110,7 @@ const conditions: Condition[] = [
     edits: [...edits.noGlare, ...edits.noCopies, ...edits.noGrid],
     steps: { noise: true, output: "jpeg-444" },
   },
-  { name: "water-on-bottom", render: "water-on-bottom", edits: edits.waterOnBottom, steps: full },
-  { name: "weak-glare-only", render: "weak-glare-only", edits: [...edits.waterOnBottom, ...edits.noCopies, ...edits.noGrid], steps: full },
+  { name: "water-face-over-bottom", render: "water-face-over-bottom", edits: edits.waterFaceOverBottom, steps: full },
   { name: "linear-output", render: "linear-output", edits: [], steps: full, options: ["File_Gamma=1.0"] },
 ];
 

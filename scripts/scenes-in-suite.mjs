@@ -5,7 +5,7 @@
 /** Files run whole. */
 export const sceneTestFilesInSuite = ["tests/scenes/scene-tilt.test.ts"];
 /** The scenes scene-tracking.test.ts is run on (TANKSIDE_SCENE_VARIANTS). */
-export const trackedScenesInSuite = ["rotating-float", "lab-float", "rotating-dye"];
+export const trackedScenesInSuite = ["rotating-float", "lab-float", "rotating-float-tilt5", "lab-float-tilt5"];
 /**
  * Every stack the tests above read (scene-tilt.test.ts reads the tilted floats): `npm test` renders
  * the missing ones at the start, at low priority, so POV-Ray uses what the other steps leave idle.

@@ -50,3 +50,27 @@ describe("the tilt preview of known points", () => {
     expect(tiltReadout(liveTilt({ ...base, centre: null, knownPoints: known }), 5)).toBe("Mark the rotation centre too: the correction is built about it.");
   });
 });
+
+describe("the tilt preview of rim points", () => {
+  const rim = (project: (p: { x: number; y: number }) => { x: number; y: number }, wobblePx = 0) =>
+    [10, 80, 150, 200, 260, 320].map((deg, i) => {
+      const p = project({ x: 14 * Math.cos((deg * Math.PI) / 180), y: 14 * Math.sin((deg * Math.PI) / 180) });
+      // A click's placing: a few tenths of a pixel either way.
+      return { x: p.x + (i % 2 ? wobblePx : -wobblePx), y: p.y + (i % 3 ? -wobblePx : wobblePx) };
+    });
+
+  it("says when the ellipse's axes differ by less than a pixel, so a lean that small is not told from none", () => {
+    const overhead = tiltedCamera(0, 0);
+    const t = liveTilt({ ...base, centre: overhead.project({ x: 0, y: 0 }), rimPoints: rim((p) => overhead.project(p), 0.3) });
+    expect(t.correction?.summary.ellipse).not.toBeNull();
+    expect(tiltReadout(t, 0)).toMatch(
+      / Its axes differ by only 0\.\d px, less than a click places a point to at 1× zoom, so a lean this small is not told from none/,
+    );
+  });
+
+  it("reads a lean whose axes differ by more without that warning", () => {
+    const leaning = tiltedCamera(12, 90);
+    const t = liveTilt({ ...base, centre: leaning.project({ x: 0, y: 0 }), rimPoints: rim((p) => leaning.project(p)) });
+    expect(tiltReadout(t, 0)).toMatch(/^Camera tilted 12\.0° towards the top of the frame; the points sit 0\.00 px from their ellipse on average\.$/);
+  });
+});

@@ -36,11 +36,23 @@ export function liveTilt(v: SetupValues): LiveTilt {
   }
 }
 
+/**
+ * Rim ellipses whose axes differ by less than this (frame px) do not tell a lean from none: a
+ * camera straight overhead, marked by clicks good to about a pixel, reads a few degrees. A circle
+ * of radius r seen tilted θ has axes r and r·cos θ, so r = 200 px and θ = 5° differ by 0.76 px.
+ */
+const closeAxesPx = 1;
+
 /** The readout under the tilt tools: the lean and how well the marks fit, or what is missing. */
 export function tiltReadout({ correction, message }: LiveTilt, knownCount: number): string {
   if (!correction) return message ?? "No tilt correction: positions are used as the camera saw them.";
   const lean = upperFirst(tiltInWords(correction.summary, (d) => formatFixed(d, 1)));
-  if (correction.summary.ellipse) return `${lean}; the points sit ${formatFixed(correction.summary.residualPx, 2)} px from their ellipse on average.`;
+  const { ellipse } = correction.summary;
+  if (ellipse) {
+    const fit = `${lean}; the points sit ${formatFixed(correction.summary.residualPx, 2)} px from their ellipse on average.`;
+    if (ellipse.a - ellipse.b >= closeAxesPx) return fit;
+    return `${fit} Its axes differ by only ${formatFixed(ellipse.a - ellipse.b, 1)} px, less than a click places a point to at 1× zoom, so a lean this small is not told from none: zoom in and place the points again, closer to the water line.`;
+  }
   if (knownCount === minKnownPoints) return `${lean}. Four points fix the map exactly, so it cannot show a misplaced one: add a fifth to check them.`;
   return `${lean}; the points sit ${formatFixed(correction.summary.residualPx, 2)} px from where the fitted map puts them on average.`;
 }

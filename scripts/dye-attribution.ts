@@ -33,12 +33,11 @@
  *   linear-output          the image written in linear light (File_Gamma=1.0) instead of POV-Ray's sRGB
  *                          encoding, so that glare adds to a pixel's value as it adds light
  */
-import { spawn } from "node:child_process";
 import { existsSync, readFileSync } from "node:fs";
 import { mkdir, readdir, rm, writeFile } from "node:fs/promises";
 import path from "node:path";
 import type { PostProcessSteps } from "../tests/fixtures/scenes/render-scene-stack";
-import { frameName, postProcessFrame, povrayArgs, rawFrameName, scenesDir } from "../tests/fixtures/scenes/render-scene-stack";
+import { frameName, postProcessFrame, povrayArgs, rawFrameName, runPovray, scenesDir } from "../tests/fixtures/scenes/render-scene-stack";
 import { measureSceneTrack } from "../tests/fixtures/scenes/measure-scene";
 import { sceneFrames, variantInclude, variantsNamed } from "../tests/fixtures/scenes/scene-model";
 import type { SceneTruth } from "../tests/fixtures/scenes/scene-truth";
@@ -130,18 +129,6 @@ function edited(file: SceneFile, all: readonly Edit[]): string {
   return text;
 }
 
-function niced(args: string[], cwd: string): Promise<void> {
-  return new Promise((resolve, reject) => {
-    const child = spawn("nice", ["-n", "19", "povray", ...args], { cwd, stdio: ["ignore", "ignore", "pipe"] });
-    let stderr = "";
-    child.stderr.on("data", (chunk: Buffer) => {
-      stderr = (stderr + chunk.toString()).slice(-4000);
-    });
-    child.on("error", reject);
-    child.on("close", (code) => (code === 0 ? resolve() : reject(new Error(`POV-Ray failed (exit ${String(code)}):\n${stderr}`))));
-  });
-}
-
 /** The render's raw PNGs (POV-Ray's), made once into root/<render>/raw. */
 async function rawFrames(condition: Condition, total: number): Promise<string> {
   const dir = path.join(root, condition.render);
@@ -159,7 +146,7 @@ async function rawFrames(condition: Condition, total: number): Promise<string> {
   ];
   const started = performance.now();
   const half = Math.ceil(total / 2);
-  await Promise.all([niced(args(1, half), dir), niced(args(half + 1, total), dir)]);
+  await Promise.all([runPovray(args(1, half), dir, 19), runPovray(args(half + 1, total), dir, 19)]);
   const seconds = (performance.now() - started) / 1000;
   await writeFile(
     path.join(dir, "rendered.json"),

@@ -30,11 +30,10 @@ import { bilinear } from "../app/lib/tracking/turning-background";
 import { backgroundAt } from "../app/lib/tracking/turning-compose";
 import { viewSetup } from "../tests/fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";
-import { variantsNamed } from "../tests/fixtures/scenes/scene-model";
+import { gridSpokeStepDeg, variantsNamed } from "../tests/fixtures/scenes/scene-model";
 import { runTrackingScript } from "./run-tracking-script";
 
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };
-const spokeStepDeg = 15;
 const radii = [30, 60, 80, 100, 120, 140];
 const stepsPerPx = 8;
 const halfWindowPx = 2.5;
@@ -104,7 +103,7 @@ async function main(): Promise<void> {
   const pixels = width * height;
   const { cx, cy } = turning.turn;
   const turnDeg = (Math.abs(turning.turn.rate) / truth.fps) * (180 / Math.PI);
-  const period = Array.from({ length: 20 }, (_, k) => k + 1).find((k) => Math.abs(((k * turnDeg + 1e-6) % spokeStepDeg) - 1e-6) < 1e-6);
+  const period = Array.from({ length: 20 }, (_, k) => k + 1).find((k) => Math.abs(((k * turnDeg + 1e-6) % gridSpokeStepDeg) - 1e-6) < 1e-6);
   if (!period) throw new Error("The grid does not come back to its place within 20 frames.");
   const detector = createDetector(cv, plan);
   const decoded = new Map<number, Uint8Array>();
@@ -134,7 +133,7 @@ async function main(): Promise<void> {
           );
         const inFrame = along(seen);
         const inComposed = along(held);
-        const half = Math.floor(n / (360 / spokeStepDeg) / 2);
+        const half = Math.floor(n / (360 / gridSpokeStepDeg) / 2);
         for (let i = 0; i < n; i++) {
           let lowest = true;
           let highest = -1;

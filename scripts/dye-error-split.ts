@@ -21,16 +21,12 @@ import type { Track } from "../app/lib/tracking/types";
 import { checkSceneTracks, measureSceneTrack } from "../tests/fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";
 import type { SceneVariant, Vec3 } from "../tests/fixtures/scenes/scene-model";
-import { sceneCamera, sceneFrames, tablePoint, variantsNamed, waterLevelCm } from "../tests/fixtures/scenes/scene-model";
+import { gridSpokeStepDeg, lampsCm, sceneCamera, sceneFrames, tablePoint, variantsNamed, waterLevelCm } from "../tests/fixtures/scenes/scene-model";
 import type { SceneTruth } from "../tests/fixtures/scenes/scene-truth";
 import { projectPoint } from "../tests/fixtures/scenes/scene-truth";
 import { runTrackingScript } from "./run-tracking-script";
 
 type Xy = { x: number; y: number };
-
-/** The lamps' places in room.inc (table cm: x, y in the plan, z up): the soft main lamp and the small second one. */
-const lamps = { main: { x: -55, y: 35, z: 140 }, second: { x: 16, y: 9, z: 60 } } as const;
-const spokeStepDeg = 15;
 
 export interface FrameError {
   frame: number;
@@ -86,10 +82,10 @@ export function frameErrors(variant: SceneVariant, truth: SceneTruth, track: Tra
     const tangentialUnit = { x: radialUnit.y, y: -radialUnit.x };
     const toward = (lamp: { x: number; y: number }) => unit(image({ x: lamp.x - state.tracer.x, y: lamp.y - state.tracer.y }));
     const lampAt = (lamp: { x: number; y: number; z: number }) => ({ ...turn(lamp, state.roomDeg), z: lamp.z });
-    const glare = glareAt(variant, lampAt(lamps.second));
+    const glare = glareAt(variant, lampAt(lampsCm.second));
     const onTable = turn(state.tracer, -state.tableDeg);
     const angle = (Math.atan2(onTable.y, onTable.x) * 180) / Math.PI;
-    const phase = ((((angle + spokeStepDeg / 2) % spokeStepDeg) + spokeStepDeg) % spokeStepDeg) - spokeStepDeg / 2;
+    const phase = ((((angle + gridSpokeStepDeg / 2) % gridSpokeStepDeg) + gridSpokeStepDeg) % gridSpokeStepDeg) - gridSpokeStepDeg / 2;
     return [
       {
         frame: p.frameIndex,
@@ -99,8 +95,8 @@ export function frameErrors(variant: SceneVariant, truth: SceneTruth, track: Tra
         across: dot(e, { x: -axis.y, y: axis.x }),
         radial: dot(e, radialUnit),
         tangential: dot(e, tangentialUnit),
-        towardMainLamp: dot(e, toward(lampAt(lamps.main))),
-        towardSecondLamp: dot(e, toward(lampAt(lamps.second))),
+        towardMainLamp: dot(e, toward(lampAt(lampsCm.main))),
+        towardSecondLamp: dot(e, toward(lampAt(lampsCm.second))),
         towardGlare: dot(e, unit({ x: glare.x - at.x, y: glare.y - at.y })),
         glareDistancePx: Math.hypot(glare.x - at.x, glare.y - at.y),
         spokePhaseDeg: phase,

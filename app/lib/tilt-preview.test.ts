@@ -64,7 +64,7 @@ describe("the tilt preview of rim points", () => {
     const t = liveTilt({ ...base, centre: overhead.project({ x: 0, y: 0 }), rimPoints: rim((p) => overhead.project(p), 0.3) });
     expect(t.correction?.summary.ellipse).not.toBeNull();
     expect(tiltReadout(t, 0)).toMatch(
-      / Its axes differ by only 0\.\d px, less than a click places a point to at 1× zoom, so a lean this small is not told from none/,
+      / Its axes differ by only 0\.\d px, finer than a click places a point at 1× zoom, so a lean this small cannot be told from none/,
     );
   });
 

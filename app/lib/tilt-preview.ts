@@ -51,7 +51,7 @@ export function tiltReadout({ correction, message }: LiveTilt, knownCount: numbe
   if (ellipse) {
     const fit = `${lean}; the points sit ${formatFixed(correction.summary.residualPx, 2)} px from their ellipse on average.`;
     if (ellipse.a - ellipse.b >= closeAxesPx) return fit;
-    return `${fit} Its axes differ by only ${formatFixed(ellipse.a - ellipse.b, 1)} px, less than a click places a point to at 1× zoom, so a lean this small is not told from none: zoom in and place the points again, closer to the water line.`;
+    return `${fit} Its axes differ by only ${formatFixed(ellipse.a - ellipse.b, 1)} px, finer than a click places a point at 1× zoom, so a lean this small cannot be told from none: zoom in and place the points again, closer to the water line.`;
   }
   if (knownCount === minKnownPoints) return `${lean}. Four points fix the map exactly, so it cannot show a misplaced one: add a fifth to check them.`;
   return `${lean}; the points sit ${formatFixed(correction.summary.residualPx, 2)} px from where the fitted map puts them on average.`;

@@ -19,7 +19,7 @@ import { floatCentre } from "./float-centre";
 import { hsv, hueInRange } from "./hsv";
 import type { CvRect, OpenCv } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
-import { robustStats } from "./robust-stats";
+import { noiseColumnStride, noiseRowStride, robustStats } from "./robust-stats";
 import { rowSpans } from "./plan-crop";
 import { createThreshold, type SearchWindow } from "./threshold";
 import type { Detection } from "./types";
@@ -59,7 +59,6 @@ export interface Detector {
 /** Thresholds in noise units: detection well clear of noise, centroid weights just above it. */
 const detectSigmas = 5;
 const weightSigmas = 3;
-const noiseStride = 4;
 const maxDetections = 50;
 /** A float with more unreadable pixels than this share of its area is not placed (float-centre.ts). */
 const hiddenShare = 0.25;
@@ -98,10 +97,10 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   function noise(image: FrameImage, background: Uint8Array | null): { median: number; sigma: number } {
     hist.fill(0);
     const img = image.data;
-    for (let row = 0; row < height; row += noiseStride) {
+    for (let row = 0; row < height; row += noiseRowStride) {
       const a = fullSpans[2 * row]!;
       const b = fullSpans[2 * row + 1]!;
-      for (let col = a; col < b; col += noiseStride) {
+      for (let col = a; col < b; col += noiseColumnStride) {
         const p = row * width + col;
         if (background) {
           hist[img[p]! - background[p]! + 255]!++;

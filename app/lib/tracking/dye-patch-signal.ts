@@ -7,18 +7,10 @@
  */
 import { bottomLevel, fitBottomSurface } from "./dye-bottom";
 import { inverseLevel, levelDifference } from "./dye-signal";
-import { robustStats } from "./robust-stats";
+import { noiseColumnStride, noiseRowStride, robustStats } from "./robust-stats";
 
 /** The bottom's surface is fitted on every 8th pixel of every 8th row. */
 const surfaceStride = 8;
-/**
- * Every 5th pixel of every 13th row: some 5500 samples in a 670 px tank, plenty for a median and
- * MAD. Read along rows, neighbouring samples share the memory's cache lines (every 8th pixel of
- * every 8th row took a cache miss each); strides prime to 8 meet every position in JPEG's 8 × 8
- * blocks, whose noise differs by position (every 8th pixel of every 8th row met one a row).
- */
-const noiseRowStride = 13;
-const noiseColumnStride = 5;
 /** Histogram bins per unit of signal (a relative change of colour), and its half-range. */
 const binsPerUnit = 4096;
 const halfRange = 0.5;

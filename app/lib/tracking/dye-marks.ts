@@ -8,9 +8,11 @@
  * search first reads the piece: a background composed anew for every frame (a lab-fixed view of a
  * turning table, turning-compose.ts) then costs the pieces searched, not the whole crop (Decision
  * 91). A background that changes must be a new array (detect.ts says so). A widening search also
- * takes marks back from an earlier round over the same frame (`markKept`, Decision 85).
+ * takes marks back from an earlier round over the same frame (`markKept`, Decision 85). Without a
+ * background (fewer than 3 frames) the marks are the pixels whose colour lies in the plan's HSV range.
  */
 import { backgroundProducts, markChangeAbove, relativeChangeAbove } from "./dye-signal";
+import { hsv, hueInRange } from "./hsv";
 import type { DetectionPlan } from "./plan";
 
 /** The background's terms are made in pieces of this many detection-image px of one row (a threshold tile's width). */
@@ -126,4 +128,58 @@ export function createDyeMarker(plan: DetectionPlan): DyeMarker {
   }
 
   return { use, mark };
+}
+
+export interface ColourMarker {
+  /**
+   * Marks (255 in `mask`) the pixels [c0, c1) of detection-image row `sy` whose colour (a block's
+   * mean at reduced resolution) lies in the plan's HSV range; returns the mask index of the first
+   * marked, or −1. For dye without a background (fewer than 3 frames).
+   */
+  mark(img: Uint8Array, mask: Uint8Array, sy: number, c0: number, c1: number): number;
+}
+
+export function createColourMarker(plan: DetectionPlan): ColourMarker {
+  const { smallWidth: sw, shrink: k } = plan;
+  const width = plan.crop.width;
+  const block = k * k;
+  const { hueMin, hueMax, satMin, valMin } = plan.dyeColour;
+  // At full resolution the channels are whole numbers, and so is the usual saturation limit:
+  // then 255·(v − least) < satMin·v decides exactly what the quotient would, without a division
+  // for every pixel of water.
+  const wholeSaturation = k === 1 && Number.isInteger(satMin);
+  const sums = new Float64Array(3);
+  const colour = new Float64Array(3);
+  return {
+    mark(img, m, sy, c0, c1) {
+      const rowAt = sy * sw;
+      let first = -1;
+      for (let sx = c0; sx < c1; sx++) {
+        let r: number;
+        let g: number;
+        let bl: number;
+        if (k === 1) {
+          const p = 3 * (rowAt + sx);
+          r = img[p]!;
+          g = img[p + 1]!;
+          bl = img[p + 2]!;
+        } else {
+          blockSum3(img, width, k, sx, sy, sums);
+          r = sums[0]! / block;
+          g = sums[1]! / block;
+          bl = sums[2]! / block;
+        }
+        const v = r > g ? (r > bl ? r : bl) : g > bl ? g : bl;
+        // Value and saturation reject the water before any hue is worked out.
+        if (v < valMin) continue;
+        const least = r < g ? (r < bl ? r : bl) : g < bl ? g : bl;
+        if (wholeSaturation ? 255 * (v - least) < satMin * v : (255 * (v - least)) / v < satMin) continue;
+        hsv(r, g, bl, colour);
+        if (!hueInRange(colour[0]!, hueMin, hueMax)) continue;
+        m[rowAt + sx] = 255;
+        if (first < 0) first = rowAt + sx;
+      }
+      return first;
+    },
+  };
 }

@@ -18,8 +18,8 @@
  * itself: Decision 82), up to `maxWidenings` times; after that, and at once for floats, the windows
  * are not trusted and the caller searches the whole frame.
  */
-import { blockSum3, createDyeMarker, markKept } from "./dye-marks";
-import { hsv, hueInRange } from "./hsv";
+import { createColourMarker, createDyeMarker, markKept } from "./dye-marks";
+import { createFloatMarker } from "./float-marks";
 import type { CvRect } from "./opencv-types";
 import type { DetectionPlan } from "./plan";
 
@@ -66,23 +66,18 @@ export interface Threshold {
  */
 export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, detectSigmas: number): Threshold {
   const { smallWidth: sw, smallHeight: sh, shrink: k } = plan;
-  const width = plan.crop.width;
   const block = k * k;
   const tilesX = Math.ceil(sw / tileSize);
   const tilesY = Math.ceil(sh / tileSize);
   const tileHits = new Uint8Array(tilesX * tilesY);
   const seen = new Uint8Array(tilesX * tilesY);
-  const blockSums = new Float64Array(sw * 3);
-  const colour = new Float64Array(3);
-  const { hueMin, hueMax, satMin, valMin } = plan.dyeColour;
   const dye = plan.tracer === "dye";
-  // At full resolution the channels are whole numbers, and so is the usual saturation limit:
-  // then 255·(v − least) < satMin·v decides exactly what the quotient would, without a division
-  // for every pixel of water.
-  const wholeSaturation = k === 1 && Number.isInteger(satMin);
-  const sums = new Float64Array(3);
   /** Dye against a background: the marks, with the background's terms made once per array (dye-marks.ts). */
   const dyeMarker = createDyeMarker(plan);
+  /** A float against its background (float-marks.ts). */
+  const floatMarker = createFloatMarker(plan);
+  /** Dye without a background: its colour range (dye-marks.ts). */
+  const colourMarker = createColourMarker(plan);
   /** Column ranges of one tile row to search, [from, to) pairs in detection-image px. */
   const runs = new Int32Array(tilesX + 1);
 
@@ -159,12 +154,30 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     return null;
   }
 
+  /** Whether the pass has set a tile; a tile is set by two neighbouring marked pixels in a row: `previous` is the last one marked. */
+  let any = false;
+  let previous = -2;
+  let mask: Uint8Array = new Uint8Array(0);
+
+  /** Sets the tiles of the marks in mask [from, to) of the detection-image row starting at `rowAt`. */
+  function note(from: number, to: number, rowAt: number, tileRow: number): void {
+    const m = mask;
+    for (let at = from; at < to; at++) {
+      if (m[at] === 0) continue;
+      if (previous === at - 1) {
+        tileHits[tileRow + ((at - rowAt) >> tileShift)] = 1;
+        any = true;
+      }
+      previous = at;
+    }
+  }
+
   /**
    * One threshold pass over `tiles` (or the whole frame); null, with `wanted` filled, if a find lies
    * too close to their edge. For dye, the tiles in `known` take their pixels' verdicts from `marks`.
    */
   function pass(
-    mask: Uint8Array,
+    into: Uint8Array,
     image: ThresholdImage,
     background: Uint8Array | null,
     offset: number,
@@ -172,13 +185,13 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
     tiles?: Uint8Array,
     known?: Uint8Array,
   ): CvRect[] | null {
-    const m = mask;
+    mask = into;
+    const m = into;
     const img = image.data;
     m.fill(0);
     tileHits.fill(0);
-    let any = false;
-    // A tile is set by two neighbouring marked pixels in a row: `previous` is the last one marked.
-    let previous = -2;
+    any = false;
+    previous = -2;
     const level = background && !dye ? (offset + Math.max(minContrast, (detectSigmas * sigma) / k)) * block : 0;
     // A block's mean change of colour has 1/k of a pixel's noise, and so has its offset (|s| is never negative).
     const changeLevel = background && dye ? Math.max(minColourChange, (offset + detectSigmas * sigma) / k) : 0;
@@ -203,86 +216,12 @@ export function createThreshold(plan: DetectionPlan, smallSpans: Int32Array, det
               known !== undefined && known[tileRow + (s0 >> tileShift)] === 1
                 ? markKept(marks, m, rowAt + s0, rowAt + s1)
                 : dyeMarker.mark(img, m, sy, s0, s1, changeLevel);
-            if (marked > 0) {
-              for (let at = rowAt + s0, end = rowAt + s1; at < end; at++) {
-                if (m[at] === 0) continue;
-                if (previous === at - 1) {
-                  tileHits[tileRow + ((at - rowAt) >> tileShift)] = 1;
-                  any = true;
-                }
-                previous = at;
-              }
-            }
+            if (marked > 0) note(rowAt + s0, rowAt + s1, rowAt, tileRow);
             s0 = s1;
           }
-          continue;
-        }
-        if (background && k === 1) {
-          // Full resolution: the detection image is the crop itself (sw = width).
-          for (let p = rowAt + c0, end = rowAt + c1; p < end; p++) {
-            if (img[p]! - background[p]! > level) {
-              m[p] = 255;
-              if (previous === p - 1) {
-                tileHits[tileRow + ((p - rowAt) >> tileShift)] = 1;
-                any = true;
-              }
-              previous = p;
-            }
-          }
-          continue;
-        }
-        if (background) {
-          blockSums.fill(0, c0, c1);
-          for (let ky = 0; ky < k; ky++) {
-            const base = (sy * k + ky) * width;
-            for (let sx = c0; sx < c1; sx++) {
-              let sum = 0;
-              for (let p = base + sx * k, end = p + k; p < end; p++) sum += img[p]! - background[p]!;
-              blockSums[sx]! += sum;
-            }
-          }
-          for (let sx = c0; sx < c1; sx++) {
-            if (blockSums[sx]! > level) {
-              const at = rowAt + sx;
-              m[at] = 255;
-              if (previous === at - 1) {
-                tileHits[tileRow + (sx >> tileShift)] = 1;
-                any = true;
-              }
-              previous = at;
-            }
-          }
-          continue;
-        }
-        for (let sx = c0; sx < c1; sx++) {
-          let r: number;
-          let g: number;
-          let bl: number;
-          if (k === 1) {
-            const p = 3 * (rowAt + sx);
-            r = img[p]!;
-            g = img[p + 1]!;
-            bl = img[p + 2]!;
-          } else {
-            blockSum3(img, width, k, sx, sy, sums);
-            r = sums[0]! / block;
-            g = sums[1]! / block;
-            bl = sums[2]! / block;
-          }
-          const v = r > g ? (r > bl ? r : bl) : g > bl ? g : bl;
-          // Value and saturation reject the water before any hue is worked out.
-          if (v < valMin) continue;
-          const least = r < g ? (r < bl ? r : bl) : g < bl ? g : bl;
-          if (wholeSaturation ? 255 * (v - least) < satMin * v : (255 * (v - least)) / v < satMin) continue;
-          hsv(r, g, bl, colour);
-          if (!hueInRange(colour[0]!, hueMin, hueMax)) continue;
-          const at = rowAt + sx;
-          m[at] = 255;
-          if (previous === at - 1) {
-            tileHits[tileRow + (sx >> tileShift)] = 1;
-            any = true;
-          }
-          previous = at;
+        } else {
+          const first = background ? floatMarker.mark(img, background, m, sy, c0, c1, level) : colourMarker.mark(img, m, sy, c0, c1);
+          if (first >= 0) note(first, rowAt + c1, rowAt, tileRow);
         }
       }
     }

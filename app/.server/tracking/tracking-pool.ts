@@ -24,8 +24,14 @@ export const threads = trackingThreads;
 
 export interface TrackingPool {
   piscina: Piscina<TrackTask, TrackTaskResult>;
-  /** Rejects when a worker dies outside a task (it would not load, or ran out of memory). */
-  failed: Promise<never>;
+  /** Set when a worker dies outside a task (it would not load, or ran out of memory): later tasks reject with it. */
+  failure: Error | null;
+  /**
+   * The rejecters of the tasks under way, each removed when its task settles. Racing every task
+   * against one promise that only a dead worker settles kept a reaction, and through it the task's
+   * result, for every task the pool ever ran (tracking-pool.test.ts measures it).
+   */
+  pending: Set<(error: Error) => void>;
 }
 
 let pool: TrackingPool | null = null;
@@ -60,19 +66,14 @@ export async function trackingPool(): Promise<TrackingPool> {
     idleTimeout: 60_000,
     execArgv: workerExecArgv(),
   });
-  let reject: (error: Error) => void = () => {};
-  const failed = new Promise<never>((_, r) => {
-    reject = r;
-  });
-  failed.catch(() => {});
+  const made: TrackingPool = { piscina, failure: null, pending: new Set() };
   // Piscina reports a worker that fails to load only here, and its tasks would wait forever.
   piscina.on("error", (error: unknown) => {
-    if (pool?.piscina === piscina) pool = null;
+    if (pool === made) pool = null;
     const reason = error instanceof Error ? error.message : String(error);
-    reject(new Error(`The tracking workers stopped: ${reason}`));
+    failPool(made, new Error(`The tracking workers stopped: ${reason}`));
     piscina.destroy().catch(() => {});
   });
-  const made: TrackingPool = { piscina, failed };
   pool = made;
   return made;
 }
@@ -98,7 +99,27 @@ export function threadShares(total: number): { from: number; to: number }[] {
 }
 
 export function runTask(workers: TrackingPool, task: TrackTask, transferList?: ArrayBuffer[]): Promise<TrackTaskResult> {
-  return Promise.race([workers.piscina.run(task, { transferList }), workers.failed]);
+  if (workers.failure) return Promise.reject(workers.failure);
+  return new Promise<TrackTaskResult>((resolve, reject) => {
+    workers.pending.add(reject);
+    workers.piscina.run(task, { transferList }).then(
+      (result) => {
+        workers.pending.delete(reject);
+        resolve(result);
+      },
+      (error: unknown) => {
+        workers.pending.delete(reject);
+        reject(error instanceof Error ? error : new Error(String(error)));
+      },
+    );
+  });
+}
+
+/** Rejects every task under way, and every later one, with `error`. */
+export function failPool(workers: TrackingPool, error: Error): void {
+  workers.failure ??= error;
+  for (const reject of workers.pending) reject(workers.failure);
+  workers.pending.clear();
 }
 
 /** Every worker of the pool started (each counts itself in and waits for the others). */

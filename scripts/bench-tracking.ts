@@ -11,12 +11,15 @@
  * runs with the V8 option a server starts with, scripts/node-flags.mjs, as `npm run bench` does)
  * and passes.
  *
- * The tracking pass starts its worker pool, as a job on an idle server does (one thread fewer
- * than the cores, each loading OpenCV: about 0.2 s of processor time apiece). `--warm-pool`
- * starts the pool before the timed pass instead, as on a server that has tracked within the last
- * minute, or that started the pool when the frames began to arrive; the JSON line says which
- * (warmPool). The decode-only pass is the decoder's own work on the same frames and crop
- * (decodeFrame as a job calls it), run before the tracking pass in the same process.
+ * The pool (`--pool`, the JSON line's `pool`): `ready` (the default) readies it before any timed
+ * pass as a server does when it starts taking tracking jobs (readyTrackingPool: the thread it keeps
+ * for its life started, OpenCV loaded, the detector practised), so the pass is a job on a running
+ * server; `started` starts the threads just before the tracking pass without practice (also
+ * `--warm-pool`), as for a job right after a server's start; `cold` leaves the tracking pass to
+ * start them, as a job does whose server's thread died, or that lost the race with the readying
+ * at start (one thread fewer than the cores, each loading OpenCV). `warmPool` says whether the
+ * threads were started before the pass. The decode-only pass is the decoder's own work on the same
+ * frames and crop (decodeFrame as a job calls it), run before the tracking pass in the same process.
  *
  * `--passes N` decodes and tracks the stack N times in this process, the pool kept between passes
  * as a server keeps it for a minute after a job, and the JSON line gives the last pass: a server
@@ -34,7 +37,7 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { decodeFrame } from "../app/.server/tracking/decode-frame";
 import { trackFrameStack } from "../app/.server/tracking/track-frame-stack";
-import { closeTrackingPool, trackingThreads, warmTrackingPool } from "../app/.server/tracking/tracking-pool";
+import { closeTrackingPool, readyTrackingPool, trackingThreads, warmTrackingPool } from "../app/.server/tracking/tracking-pool";
 import { planDetection } from "../app/lib/tracking/plan";
 import type { Track } from "../app/lib/tracking/types";
 import { writeSyntheticStack } from "../tests/fixtures/tracking/write-stack";
@@ -47,7 +50,11 @@ const tracerArg = process.argv.indexOf("--tracer");
 const tracerName = tracerArg >= 0 ? process.argv[tracerArg + 1] : "float";
 if (tracerName !== "float" && tracerName !== "dye") throw new Error(`--tracer is float or dye, not ${String(tracerName)}.`);
 const tracer: BenchTracer = tracerName;
-const warmPool = process.argv.includes("--warm-pool");
+const poolArg = process.argv.indexOf("--pool");
+const poolName = process.argv.includes("--warm-pool") ? "started" : poolArg >= 0 ? process.argv[poolArg + 1] : "ready";
+if (poolName !== "ready" && poolName !== "started" && poolName !== "cold") throw new Error(`--pool is ready, started or cold, not ${String(poolName)}.`);
+const poolCondition: "ready" | "started" | "cold" = poolName;
+const warmPool = poolCondition !== "cold";
 const everyThread = process.argv.includes("--each-thread");
 const byThread = everyThread || process.argv.includes("--threads");
 const passesArg = process.argv.indexOf("--passes");
@@ -121,7 +128,7 @@ async function decodeOnly(files: string[]): Promise<number> {
 
 /**
  * One decode-only pass and one tracking pass. Later passes (`--passes N`) track the same stack
- * again in this process, with the pool kept (as a server does for a minute after a job): what a
+ * again in this process, with the pool kept (as a server keeps its thread): what a
  * server that has tracked before spends, once its compiled code has settled.
  */
 async function onePass(files: string[], times: number[], pass: number, collections: ReturnType<typeof collectionCounter> | null) {
@@ -139,7 +146,7 @@ async function onePass(files: string[], times: number[], pass: number, collectio
   const label = passes > 1 ? `pass ${pass}, ` : "";
   log(`${label}decode only: ${decodeFps.toFixed(1)} frames/s, ${decodeCpuMsPerFrame.toFixed(1)} ms CPU a frame`);
 
-  if (warmPool && pass === 1) await warmTrackingPool();
+  if (poolCondition === "started" && pass === 1) await warmTrackingPool();
   // Collections while the pool started ahead are not the tracking pass's.
   collections?.take();
   const beforeTracking = threadSnapshot();
@@ -176,6 +183,14 @@ async function main(): Promise<void> {
   const times = files.map((_, i) => i / spec.fps);
   const sampler = rssSampler();
 
+  if (poolCondition === "ready") {
+    const readying = process.cpuUsage();
+    const practice = await readyTrackingPool();
+    const spent = process.cpuUsage(readying);
+    log(
+      `pool readied as a server starting does: ${((spent.user + spent.system) / 1000).toFixed(0)} ms of processor time, the tracer found in ${practice.found} of ${practice.searched} practice frames`,
+    );
+  }
   const collections = byThread ? collectionCounter() : null;
   let last: Awaited<ReturnType<typeof onePass>> | null = null;
   for (let pass = 1; pass <= passes; pass++) {
@@ -201,7 +216,7 @@ async function main(): Promise<void> {
   }
   const rmsErrorPx = counted > 0 ? Math.sqrt(squares / counted) : null;
   log(
-    `${passes > 1 ? `pass ${passes}, ` : ""}tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${trackingThreads} worker(s) ${passes > 1 ? "kept from the pass before" : warmPool ? "already started" : "started in the pass"}, block ${result.search.shrink} px), ` +
+    `${passes > 1 ? `pass ${passes}, ` : ""}tracking: ${fps.toFixed(1)} frames/s (${seconds.toFixed(2)} s, ${trackingThreads} worker(s) ${passes > 1 ? "kept from the pass before" : { ready: "readied as at a server's start", started: "already started", cold: "started in the pass" }[poolCondition]}, block ${result.search.shrink} px), ` +
       `${cpuMsPerFrame.toFixed(1)} ms CPU a frame, load average ${os.loadavg()[0]!.toFixed(1)}, ` +
       `${result.tracks.length} track(s), longest ${longest.points.length} points, ` +
       `frames detected ${(result.quality.framesDetectedShare * 100).toFixed(1)} %, jitter ${result.quality.jitterPx?.toFixed(3)} px, ` +
@@ -220,6 +235,7 @@ async function main(): Promise<void> {
       rmsErrorPx: rmsErrorPx === null ? null : Number(rmsErrorPx.toFixed(3)),
       ratioToDecode: Number((fps / decodeFps).toFixed(2)),
       warmPool,
+      pool: poolCondition,
       // Processor time a frame of decoding alone over that of tracking: roughly what the ratio
       // above comes to on an idle machine whose cores decoding keeps busy, and far steadier than
       // it on a machine other work shares.

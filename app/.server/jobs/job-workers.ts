@@ -7,7 +7,7 @@ import { OutboxSender } from "../mail/outbox-sender";
 import { setEnqueueListener } from "../mail/outbox";
 import { deliverOutboxRow, sweepOutbox } from "../mail/outbox-jobs";
 import { runCalibrationReminders } from "../calibration-reminders";
-import { closeTrackingPool } from "../tracking/tracking-pool";
+import { closeTrackingPool, readyTrackingInBackground } from "../tracking/tracking-pool";
 import { QUEUES, bossOptions, createQueues, queueClient, stopQueueClient, usesJobQueue } from "./boss";
 import { claimTrackingJob, handBack, heartbeatMs, leaseUntilLiteral, renewLease, sweepMs, sweepTrackingJobs } from "./tracking-leases";
 import { runTrackingJob } from "./tracking-run";
@@ -108,6 +108,8 @@ async function register(s: State, kind: WorkKind) {
       }),
     );
     s.workerIds.set(kind, id);
+    // This process takes tracking jobs: its tracking thread is readied now rather than by the first job.
+    readyTrackingInBackground();
     // Jobs whose worker died are taken back; queued jobs whose doorbell was lost are rung again.
     await sweepTrackingJobs();
     s.timers.push(every(sweepMs(), sweepTrackingJobs, "tracking sweep"));

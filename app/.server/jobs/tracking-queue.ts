@@ -2,7 +2,7 @@ import { Op } from "sequelize";
 import { Frame, Run, TrackingJob, ViewSetup, sequelize } from "../db";
 import { onBoot } from "../boot";
 import { env } from "../env";
-import { closeTrackingPool } from "../tracking/tracking-pool";
+import { closeTrackingPool, readyTrackingInBackground } from "../tracking/tracking-pool";
 import { stopFrameStreams } from "./frame-stream";
 import { usesJobQueue } from "./boss";
 import { JobError, runTrackingJob } from "./tracking-run";
@@ -170,4 +170,13 @@ export async function whenTrackingIdle() {
 }
 
 // On PostgreSQL the shared queue's workers start with the "job-workers" hook (job-workers.ts).
-onBoot({ name: "tracking-queue", start: async () => void (usesJobQueue || (await resumeInterruptedJobs())), stop: stopTrackingQueue });
+onBoot({
+  name: "tracking-queue",
+  async start() {
+    if (usesJobQueue) return;
+    // This process takes the tracking jobs: its tracking thread is readied now rather than by the first job.
+    readyTrackingInBackground();
+    await resumeInterruptedJobs();
+  },
+  stop: stopTrackingQueue,
+});

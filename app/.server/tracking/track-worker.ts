@@ -17,6 +17,7 @@ import type { DiscRequest } from "../../lib/tracking/track-extension";
 import { recentredTurn } from "../../lib/tracking/turning-centre";
 import type { TurnInView } from "../../lib/tracking/turning-geometry";
 import { turningMedian } from "../../lib/tracking/turning-median";
+import { practise, type PracticeResult } from "./worker-practice";
 
 export type TrackTask =
   | {
@@ -124,6 +125,10 @@ export type TrackTask =
       plain?: Uint8Array;
     }
   | {
+      /** The detector run on small rendered frames, so that V8 compiles it before the first job (worker-practice.ts). */
+      kind: "practise";
+    }
+  | {
       /** Each worker counts itself in and waits for the others, so that every worker is started. */
       kind: "warm-up";
       arrived: Int32Array;
@@ -141,7 +146,7 @@ export interface MisfitMeans {
   combined: number;
 }
 
-export type TrackTaskResult = Detection[] | DiscFit | TiltedTurning | MisfitMeans | null;
+export type TrackTaskResult = Detection[] | DiscFit | TiltedTurning | MisfitMeans | PracticeResult | null;
 
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };
 const warmUpWaitMs = 5_000;
@@ -181,6 +186,7 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
     }
     return null;
   }
+  if (task.kind === "practise") return practise(cv);
   if (task.kind === "background") {
     const length = task.out.length;
     const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));

@@ -1,6 +1,7 @@
 /**
- * The tracking job's pool of worker threads (piscina): one fewer than the cores, started on the
- * first job or ahead of it, each task raced against a worker that dies outside a task.
+ * The tracking job's pool of worker threads (piscina): one fewer than the cores, one of them kept
+ * for the life of the process and readied when the server starts taking tracking jobs, the others
+ * started by a job; a worker that dies outside a task fails the tasks under way.
  */
 import { existsSync } from "node:fs";
 import os from "node:os";
@@ -8,6 +9,7 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import Piscina from "piscina";
 import type { TrackTask, TrackTaskResult } from "./track-worker";
+import type { PracticeResult } from "./worker-practice";
 import { bundledWorker } from "./worker-bundle";
 import { workerExecArgv } from "./worker-options";
 
@@ -60,9 +62,11 @@ export async function trackingPool(): Promise<TrackingPool> {
   if (pool) return pool;
   const piscina = new Piscina<TrackTask, TrackTaskResult>({
     filename,
-    minThreads: 0,
+    // One thread is kept for the life of the process (readyTrackingPool readies it at the server's
+    // start); any further ones give back their OpenCV heaps after a minute idle, and a job that
+    // needs them again pays some 0.5 s of processor time apiece to reload.
+    minThreads: 1,
     maxThreads: threads,
-    // Idle workers give back their OpenCV heaps after a while; a new job pays ~0.5 s to reload.
     idleTimeout: 60_000,
     execArgv: workerExecArgv(),
   });
@@ -129,12 +133,46 @@ export async function startWorkers(workers: TrackingPool): Promise<void> {
 }
 
 /**
- * Starts the tracking workers ahead of a job: loading one (its bundle, OpenCV) costs about 0.8 s of
- * processor time, which a job would otherwise spend before its first frame. Kept for the pool's
- * idle time (a minute).
+ * Starts every tracking worker ahead of a job: loading one (its bundle, OpenCV) costs about 0.5 s of
+ * processor time, which a job would otherwise spend before its first frame. The first is kept for
+ * the life of the process, the others for a minute idle.
  */
 export async function warmTrackingPool(): Promise<void> {
   await startWorkers(await trackingPool());
+}
+
+/** The practice of the pool made last (the thread it keeps for the life of the process). */
+let readied: { pool: TrackingPool; practice: Promise<PracticeResult> } | null = null;
+
+/**
+ * Readies the thread the pool keeps for the life of the process, as a server does when it starts
+ * taking tracking jobs: started, OpenCV loaded, and the detector practised on small rendered frames
+ * (worker-practice.ts), so that a job does not pay for any of it (about 1 s of processor time on a
+ * 2-core machine, Decision 103). Once per pool; a pool made again after its threads died is not
+ * practised again.
+ */
+export async function readyTrackingPool(): Promise<PracticeResult> {
+  const workers = await trackingPool();
+  if (readied?.pool !== workers) readied = { pool: workers, practice: runTask(workers, { kind: "practise" }) as Promise<PracticeResult> };
+  return readied.practice;
+}
+
+/** `readyTrackingPool` without waiting for it, saying in the log how it went: what a server does as it starts taking tracking jobs. */
+export function readyTrackingInBackground(): void {
+  const started = performance.now();
+  readyTrackingPool().then(
+    (practice) =>
+      console.log(
+        `[tracking] a tracking thread is ready: OpenCV loaded and the detector practised (the tracer found in ${practice.found} of ${practice.searched} rendered frames) in ${((performance.now() - started) / 1000).toFixed(1)} s`,
+      ),
+    (error: unknown) => {
+      // A server stopped while the thread was being readied says nothing of it.
+      if (pool)
+        console.error(
+          `[tracking] the tracking thread was not readied (the first job will start it): ${error instanceof Error ? error.message : String(error)}`,
+        );
+    },
+  );
 }
 
 /** Stops the worker threads, so a server or a test can exit. The next job starts a new pool. */

@@ -9,6 +9,7 @@ import { createHash } from "node:crypto";
 import { readFileSync } from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
+import { exampleDyePatch, exampleFloat } from "../app/lib/tracking/example-tracers";
 import type { SyntheticRunSpec } from "../app/lib/tracking/synthetic";
 import type { TrackingSetup } from "../app/lib/tracking/types";
 
@@ -32,32 +33,13 @@ const floatSpec: SyntheticRunSpec = {
   noiseSigma: 3,
   illuminationGradient: 0.25,
   glare: { x: 820, y: 230, radiusPx: 12, strength: 150 },
-  tracers: [
-    {
-      kind: "float",
-      path: { kind: "inertial-circle", centre: { x: -0.05, y: 0.03 }, radius: 0.12, phase: 0.5, drag: 0.02 },
-      sigmaPx: 3.5,
-      brightness: 120,
-    },
-  ],
+  tracers: [exampleFloat({ kind: "inertial-circle", centre: { x: -0.05, y: 0.03 }, radius: 0.12, phase: 0.5, drag: 0.02 })],
 };
 const dyeSpec: SyntheticRunSpec = {
   ...floatSpec,
   camera: "lab",
   noiseSigma: 7,
-  tracers: [
-    {
-      kind: "dye",
-      path: { kind: "still", at: { x: -0.15, y: 0.08 } },
-      sigmaAlongPx: 9,
-      sigmaAcrossPx: 3,
-      colour: [200, 30, 60],
-      opacity: 0.6,
-      spreadPerS: 0.02,
-      stretchPerS: 0.01,
-      turnRadPerS: 0.1,
-    },
-  ],
+  tracers: [exampleDyePatch({ kind: "still", at: { x: -0.15, y: 0.08 } })],
 };
 
 export function benchSpec(tracer: BenchTracer): SyntheticRunSpec {

@@ -8,6 +8,7 @@
  */
 import { medianInto } from "../../lib/tracking/background";
 import { createDetector } from "../../lib/tracking/detect";
+import { exampleDyePatch, exampleFloat } from "../../lib/tracking/example-tracers";
 import type { OpenCv } from "../../lib/tracking/opencv-types";
 import { planDetection, type DetectionPlan } from "../../lib/tracking/plan";
 import { createSyntheticRenderer, type SyntheticRunSpec } from "../../lib/tracking/synthetic";
@@ -40,23 +41,8 @@ function spec(tracer: "float" | "dye"): SyntheticRunSpec {
     glare: null,
     tracers: [
       tracer === "float"
-        ? {
-            kind: "float",
-            path: { kind: "inertial-circle", centre: { x: -0.02, y: 0.01 }, radius: 0.08, phase: 0.5, drag: 0.02 },
-            sigmaPx: 3.5,
-            brightness: 120,
-          }
-        : {
-            kind: "dye",
-            path: { kind: "inertial-circle", centre: { x: 0.02, y: -0.01 }, radius: 0.08, phase: 2, drag: 0.02 },
-            sigmaAlongPx: 9,
-            sigmaAcrossPx: 3,
-            colour: [200, 30, 60],
-            opacity: 0.6,
-            spreadPerS: 0.02,
-            stretchPerS: 0.01,
-            turnRadPerS: 0.1,
-          },
+        ? exampleFloat({ kind: "inertial-circle", centre: { x: -0.02, y: 0.01 }, radius: 0.08, phase: 0.5, drag: 0.02 })
+        : exampleDyePatch({ kind: "inertial-circle", centre: { x: 0.02, y: -0.01 }, radius: 0.08, phase: 2, drag: 0.02 }),
     ],
   };
 }

@@ -1,5 +1,5 @@
 /**
- * `TANKSIDE_SCENE_ATTRIB=/scratch npx tsx scripts/dye-attribution.ts [condition …] [--frames] [--variant name]`:
+ * `TANKSIDE_SCENE_ATTRIB=/scratch npx tsx scripts/dye-attribution.ts [condition …] [--frames] [--variant name] [--linear-dye]`:
  * what each of the lab-fixed dye scene's conditions costs the dye track. The scene
  * (tests/fixtures/scenes, variant lab-dye) is rendered again with ONE condition taken away, into a
  * scratch folder of its own (default /tmp/tankside-scene-attrib), never into the scene cache: the
@@ -38,7 +38,7 @@ import { mkdir, readdir, rm, writeFile } from "node:fs/promises";
 import path from "node:path";
 import type { PostProcessSteps } from "../tests/fixtures/scenes/render-scene-stack";
 import { frameName, postProcessFrame, povrayArgs, rawFrameName, runPovray, scenesDir } from "../tests/fixtures/scenes/render-scene-stack";
-import { measureSceneTrack } from "../tests/fixtures/scenes/measure-scene";
+import { measureSceneTrack, trackingOptionsFrom } from "../tests/fixtures/scenes/measure-scene";
 import { sceneFrames, variantInclude, variantsNamed } from "../tests/fixtures/scenes/scene-model";
 import type { SceneTruth } from "../tests/fixtures/scenes/scene-truth";
 import { projectPoint, sceneTruth, tracerPoint } from "../tests/fixtures/scenes/scene-truth";
@@ -185,7 +185,7 @@ async function measure(condition: Condition, withFrames: boolean): Promise<void>
     }
   }
   const truth = truthFor(condition);
-  const { measurement, longest } = await measureSceneTrack({ dir, files, truth, renderSeconds: null });
+  const { measurement, longest } = await measureSceneTrack({ dir, files, truth, renderSeconds: null }, trackingOptionsFrom(process.argv));
   const rows = longest && truth.tracer === "dye" ? frameErrors(variant!, truth, longest) : [];
   if (withFrames) for (const r of rows) process.stdout.write(`${JSON.stringify({ condition: condition.name, ...frameLine(r) })}\n`);
   process.stdout.write(

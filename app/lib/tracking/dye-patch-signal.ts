@@ -118,18 +118,25 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
     }
   }
 
-  function difference(p: number, out: Float64Array): void {
+  function encodedDifference(p: number, out: Float64Array): void {
     const q = 3 * p;
     const b0 = bg[q]!;
     const b1 = bg[q + 1]!;
     const b2 = bg[q + 2]!;
-    if (linear) {
-      // A background composed for this frame holds the still model's glare where the still model does.
-      linearDifference(img[q]!, img[q + 1]!, img[q + 2]!, b0, b1, b2, out, bg === levelsOf ? inverseLevels[p]! : inverseFreeLevel(b0, b1, b2, glares[p]!));
-      return;
-    }
     levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, b0, b1, b2, out, bg === levelsOf ? inverseLevels[p] : inverseLevel(b0, b1, b2, caps[p]));
   }
+
+  function linearLightDifference(p: number, out: Float64Array): void {
+    const q = 3 * p;
+    const b0 = bg[q]!;
+    const b1 = bg[q + 1]!;
+    const b2 = bg[q + 2]!;
+    // A background composed for this frame holds the still model's glare where the still model does.
+    linearDifference(img[q]!, img[q + 1]!, img[q + 2]!, b0, b1, b2, out, bg === levelsOf ? inverseLevels[p]! : inverseFreeLevel(b0, b1, b2, glares[p]!));
+  }
+
+  /** Chosen once: the per-pixel path of the frames' own values stays as it was, without a test per pixel. */
+  const difference = linear ? linearLightDifference : encodedDifference;
 
   // White glare the background lacks adds to the brightness alone, a line or shadow it lacks takes
   // from it: beyond the slack a pixel's brightness tells of something other than the dye.

@@ -8,6 +8,7 @@
  * `--save <file>` keeps the detections; `--compare <file>` says how far from those saved each find
  * now lies (the largest shift of a centre, px, and of an area), for a change that reorders the
  * arithmetic and so moves centres in their last digits, which the digest cannot tell from a real move.
+ * `--linear-dye` reads each patch's centre in linear light (Decision 102).
  * No worker, no decoding in the timed passes: a guide to the detector's own cost, which the bench's
  * worker thread shows beside decoding and the hand-over.
  */
@@ -41,7 +42,7 @@ const files = readdirSync(stackDir)
   .filter((n) => n.endsWith(".jpg"))
   .sort()
   .map((n) => path.join(stackDir, n));
-const setup = benchSetup("dye");
+const setup = { ...benchSetup("dye"), ...(process.argv.includes("--linear-dye") ? { dyeLight: "linear" as const } : {}) };
 const plan = planDetection(setup, 1280, 720);
 const { width, height } = plan.crop;
 const { cv } = createRequire(import.meta.url)("opencv-wasm") as { cv: OpenCv };

@@ -1,5 +1,5 @@
 /**
- * `TANKSIDE_SCENE_ATTRIB=/scratch npx tsx scripts/dye-attribution.ts [condition …] [--frames] [--variant name]`:
+ * `TANKSIDE_SCENE_ATTRIB=/scratch npx tsx scripts/dye-attribution.ts [condition …] [--frames] [--variant name] [--linear-dye]`:
  * what each of the lab-fixed dye scene's conditions costs the dye track. The scene
  * (tests/fixtures/scenes, variant lab-dye) is rendered again with ONE condition taken away, into a
  * scratch folder of its own (default /tmp/tankside-scene-attrib), never into the scene cache: the
@@ -17,6 +17,7 @@
  *   second-lamp-shadowless the second (point) lamp casts no shadow; POV-Ray then gives it no highlight
  *                          either, so its near copy and its glare go together
  *   no-grid                the bottom plain, its light grey, without the polar grid
+ *   grey-lines             the grid's lines grey (0.13 in every channel) instead of a little blue
  *   no-refraction          water and dye with n = 1: the dye seen straight (its truth then projected straight)
  *   png                    the `scene` render with noise but no JPEG (lossless PNG)
  *   jpeg-444               the `scene` render with noise and JPEG at quality 85 without halving the colour
@@ -38,7 +39,7 @@ import { mkdir, readdir, rm, writeFile } from "node:fs/promises";
 import path from "node:path";
 import type { PostProcessSteps } from "../tests/fixtures/scenes/render-scene-stack";
 import { frameName, postProcessFrame, povrayArgs, rawFrameName, runPovray, scenesDir } from "../tests/fixtures/scenes/render-scene-stack";
-import { measureSceneTrack } from "../tests/fixtures/scenes/measure-scene";
+import { measureSceneTrack, trackingOptionsFrom } from "../tests/fixtures/scenes/measure-scene";
 import { sceneFrames, variantInclude, variantsNamed } from "../tests/fixtures/scenes/scene-model";
 import type { SceneTruth } from "../tests/fixtures/scenes/scene-truth";
 import { projectPoint, sceneTruth, tracerPoint } from "../tests/fixtures/scenes/scene-truth";
@@ -68,6 +69,7 @@ const edits = {
       to: "function { 1 }",
     },
   ],
+  greyLines: [{ file: "tank-parts.inc", from: "[0 rgb <0.12, 0.13, 0.15>] [0.45 rgb <0.12, 0.13, 0.15>]", to: "[0 rgb 0.13] [0.45 rgb 0.13]" }],
   noRefraction: [{ file: "tank-parts.inc", from: "ior 1.33", to: "ior 1.0", count: 2 }],
   // The scenes as rendered before Decision 99: the water's body starting 10 µm over the bottom, whose
   // face there mirrors the second lamp a second time.
@@ -93,6 +95,7 @@ const conditions: Condition[] = [
   { name: "no-copies", render: "no-copies", edits: edits.noCopies, steps: full },
   { name: "second-lamp-shadowless", render: "second-lamp-shadowless", edits: edits.secondLampShadowless, steps: full },
   { name: "no-grid", render: "no-grid", edits: edits.noGrid, steps: full },
+  { name: "grey-lines", render: "grey-lines", edits: edits.greyLines, steps: full },
   { name: "no-refraction", render: "no-refraction", edits: edits.noRefraction, steps: full, straight: true },
   { name: "png", render: "scene", edits: [], steps: { noise: true, output: "png" } },
   { name: "jpeg-444", render: "scene", edits: [], steps: { noise: true, output: "jpeg-444" } },
@@ -185,7 +188,7 @@ async function measure(condition: Condition, withFrames: boolean): Promise<void>
     }
   }
   const truth = truthFor(condition);
-  const { measurement, longest } = await measureSceneTrack({ dir, files, truth, renderSeconds: null });
+  const { measurement, longest } = await measureSceneTrack({ dir, files, truth, renderSeconds: null }, trackingOptionsFrom(process.argv));
   const rows = longest && truth.tracer === "dye" ? frameErrors(variant!, truth, longest) : [];
   if (withFrames) for (const r of rows) process.stdout.write(`${JSON.stringify({ condition: condition.name, ...frameLine(r) })}\n`);
   process.stdout.write(

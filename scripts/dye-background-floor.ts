@@ -1,5 +1,5 @@
 /**
- * `TANKSIDE_SCENE_CACHE=… npx tsx scripts/dye-background-floor.ts [frames]`: on the lab-fixed dye
+ * `TANKSIDE_SCENE_CACHE=… npx tsx scripts/dye-background-floor.ts [frames] [--linear-dye]`: on the lab-fixed dye
  * scene (tests/fixtures/scenes, rendered once into the cache), how well the composed turning
  * background (turning-compose.ts) holds the bottom's grid, and how far the dye's centre would
  * move with a background that held it exactly. Frames default to all; `0,6,21` names some.
@@ -28,7 +28,7 @@ import type { OpenCv } from "../app/lib/tracking/opencv-types";
 import { planDetection, planKey } from "../app/lib/tracking/plan";
 import { bilinear } from "../app/lib/tracking/turning-background";
 import { backgroundAt } from "../app/lib/tracking/turning-compose";
-import { viewSetup } from "../tests/fixtures/scenes/measure-scene";
+import { trackingOptionsFrom, viewSetup } from "../tests/fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";
 import { gridSpokeStepDeg, variantsNamed } from "../tests/fixtures/scenes/scene-model";
 import { runTrackingScript } from "./run-tracking-script";
@@ -95,8 +95,9 @@ function translationOf(lines: readonly { angle: number; offset: number }[]): { x
 async function main(): Promise<void> {
   const [variant] = variantsNamed(["lab-dye"]);
   const { truth, files } = await ensureSceneStack(variant!, (m) => process.stderr.write(`${m}\n`));
-  const frames = process.argv[2] ? process.argv[2].split(",").map(Number) : files.map((_, i) => i);
-  const plan = planDetection(viewSetup(truth), truth.width, truth.height);
+  const named = process.argv.slice(2).find((a) => !a.startsWith("-"));
+  const frames = named ? named.split(",").map(Number) : files.map((_, i) => i);
+  const plan = planDetection({ ...viewSetup(truth), ...trackingOptionsFrom(process.argv) }, truth.width, truth.height);
   const { still, turning } = await stillBackground(files, plan, planKey(plan), await trackingPool(), undefined, (i) => i / truth.fps);
   if (!turning) throw new Error("No turning background was made for this scene.");
   const { width, height } = plan.crop;

@@ -1,5 +1,5 @@
 /**
- * `TANKSIDE_SCENE_CACHE=… npx tsx scripts/dye-error-split.ts [lab-dye|rotating-dye] [--frames]`:
+ * `TANKSIDE_SCENE_CACHE=… npx tsx scripts/dye-error-split.ts [lab-dye|rotating-dye] [--frames] [--linear-dye]`:
  * the dye track's error on a ray-traced scene (tests/fixtures/scenes), frame by frame and split by
  * direction, and whether it is a bias or scatter. The track is the longest of Tankside's tracking
  * as the scene test runs it (measure-scene.ts); each frame's error vector (found less truth, px) is
@@ -18,7 +18,7 @@
  * which part moves f.
  */
 import type { Track } from "../app/lib/tracking/types";
-import { checkSceneTracks, measureSceneTrack } from "../tests/fixtures/scenes/measure-scene";
+import { checkSceneTracks, measureSceneTrack, trackingOptionsFrom } from "../tests/fixtures/scenes/measure-scene";
 import { ensureSceneStack } from "../tests/fixtures/scenes/render-scene-stack";
 import type { SceneVariant, Vec3 } from "../tests/fixtures/scenes/scene-model";
 import { gridSpokeStepDeg, lampsCm, sceneCamera, sceneFrames, tablePoint, variantsNamed, waterLevelCm } from "../tests/fixtures/scenes/scene-model";
@@ -215,7 +215,7 @@ async function main(): Promise<void> {
   const [variant] = variantsNamed(names.length > 0 ? names : ["lab-dye"]);
   if (!variant || variant.tracer !== "dye") throw new Error("Name one dye scene: lab-dye or rotating-dye.");
   const stack = await ensureSceneStack(variant, (m) => process.stderr.write(`${m}\n`));
-  const { measurement, longest } = await measureSceneTrack(stack);
+  const { measurement, longest } = await measureSceneTrack(stack, trackingOptionsFrom(process.argv));
   if (!longest) throw new Error(`No track: ${measurement.trackingError ?? "none found"}`);
   const rows = frameErrors(variant, stack.truth, longest);
   if (process.argv.includes("--frames")) for (const r of rows) process.stdout.write(`${JSON.stringify(frameLine(r))}\n`);

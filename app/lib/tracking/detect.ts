@@ -77,7 +77,7 @@ export function createDetector(cv: OpenCv, plan: DetectionPlan): Detector {
   const colour = new Float64Array(3);
   const threshold = createThreshold(plan, smallSpans, detectSigmas);
   const { hueMin, hueMax, satMin, valMin } = plan.dyeColour;
-  const dyeCentre = plan.tracer === "dye" ? createDyeCentre(width, height, fullSpans) : null;
+  const dyeCentre = plan.tracer === "dye" ? createDyeCentre(width, height, fullSpans, plan.dyeLight) : null;
   let disposed = false;
 
   function check(image: FrameImage, background: Uint8Array | null): void {

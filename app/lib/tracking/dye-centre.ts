@@ -33,6 +33,7 @@
 import { createDyeAim } from "./dye-aim";
 import { createPatchSignal } from "./dye-patch-signal";
 import { findShadowCopies, withoutShadows } from "./dye-shadow";
+import type { DyeLight } from "./types";
 
 /** Threshold below which the signal gets no weight, in noise widths. */
 const thresholdSigmas = 2;
@@ -87,8 +88,8 @@ export interface PatchCentre {
  * A reusable measurer for frames of one size. `spans` holds, per row, the half-open column range
  * searched (inside the tank edge).
  */
-export function createDyeCentre(width: number, height: number, spans: Int32Array) {
-  const signal = createPatchSignal(width, height, spans);
+export function createDyeCentre(width: number, height: number, spans: Int32Array, light: DyeLight = "encoded") {
+  const signal = createPatchSignal(width, height, spans, light);
   const aim = createDyeAim(width, height, spans, signal);
 
   /**

@@ -7,7 +7,9 @@
  */
 import { bottomLevel, fitBottomSurface } from "./dye-bottom";
 import { inverseLevel, levelDifference } from "./dye-signal";
+import { inverseFreeLevel, linearDifference, stillGlare } from "./dye-unmix";
 import { noiseColumnStride, noiseRowStride, robustStats } from "./robust-stats";
+import type { DyeLight } from "./types";
 
 /** The bottom's surface is fitted on every 8th pixel of every 8th row. */
 const surfaceStride = 8;
@@ -58,8 +60,12 @@ export function bilinearAt(read: (col: number, row: number) => number, x: number
   return (1 - fy) * ((1 - fx) * read(c, r) + fx * read(c + 1, r)) + fy * ((1 - fx) * read(c, r + 1) + fx * read(c + 1, r + 1));
 }
 
-/** For frames of one size; `spans` holds, per row, the half-open column range searched. */
-export function createPatchSignal(width: number, height: number, spans: Int32Array): PatchSignal {
+/**
+ * For frames of one size; `spans` holds, per row, the half-open column range searched. `light`:
+ * the difference in the frames' 8-bit values (`encoded`), or in linear light over the bottom's
+ * level free of the still model's glare (`linear`, dye-unmix.ts).
+ */
+export function createPatchSignal(width: number, height: number, spans: Int32Array, light: DyeLight = "encoded"): PatchSignal {
   let img: Uint8Array = new Uint8Array(0);
   let bg: Uint8Array = new Uint8Array(0);
   const change = new Float64Array(3);
@@ -83,6 +89,9 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
   let levelsOf: Uint8Array | null = null;
   const caps = new Float32Array(width * height);
   const inverseLevels = new Float32Array(width * height);
+  const linear = light === "linear";
+  /** In linear light: the white glare the still model holds over the bottom's level, per pixel (dye-unmix.ts). */
+  const glares = linear ? new Float32Array(width * height) : new Float32Array(0);
 
   function makeLevels(from: Uint8Array): void {
     const surface = fitBottomSurface(from, width, height, spans, surfaceStride);
@@ -90,18 +99,36 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
       for (let col = 0; col < width; col++, p++) {
         const cap = surface ? bottomLevel(surface, col, row) + surface.margin : Infinity;
         caps[p] = cap;
+        if (linear) {
+          const glare = stillGlare(from[3 * p]!, from[3 * p + 1]!, from[3 * p + 2]!, cap);
+          glares[p] = glare;
+          inverseLevels[p] = inverseFreeLevel(from[3 * p]!, from[3 * p + 1]!, from[3 * p + 2]!, glare);
+        } else {
         inverseLevels[p] = inverseLevel(from[3 * p]!, from[3 * p + 1]!, from[3 * p + 2]!, cap);
       }
     }
   }
+  }
 
-  function difference(p: number, out: Float64Array): void {
+  function encodedDifference(p: number, out: Float64Array): void {
     const q = 3 * p;
     const b0 = bg[q]!;
     const b1 = bg[q + 1]!;
     const b2 = bg[q + 2]!;
     levelDifference(img[q]!, img[q + 1]!, img[q + 2]!, b0, b1, b2, out, bg === levelsOf ? inverseLevels[p] : inverseLevel(b0, b1, b2, caps[p]));
   }
+
+  function linearLightDifference(p: number, out: Float64Array): void {
+    const q = 3 * p;
+    const b0 = bg[q]!;
+    const b1 = bg[q + 1]!;
+    const b2 = bg[q + 2]!;
+    // A background composed for this frame holds the still model's glare where the still model does.
+    linearDifference(img[q]!, img[q + 1]!, img[q + 2]!, b0, b1, b2, out, bg === levelsOf ? inverseLevels[p]! : inverseFreeLevel(b0, b1, b2, glares[p]!));
+  }
+
+  /** Chosen once: the per-pixel path of the frames' own values stays as it was, without a test per pixel. */
+  const difference = linear ? linearLightDifference : encodedDifference;
 
   // White glare the background lacks adds to the brightness alone, a line or shadow it lacks takes
   // from it: beyond the slack a pixel's brightness tells of something other than the dye.

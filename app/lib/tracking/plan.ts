@@ -1,4 +1,4 @@
-import type { DyeColour, TrackingSetup } from "./types";
+import type { DyeColour, DyeLight, TrackingSetup } from "./types";
 import { formatFixed } from "../number-format";
 import { turnRateInView, type TurnInView } from "./turning-background";
 import { invert, multiply, type Mat3 } from "../projective/matrix";
@@ -32,6 +32,8 @@ export interface DetectionPlan {
   maxAreaPx: number;
   minRoundness: number;
   dyeColour: DyeColour;
+  /** How a dye's centre reads the difference from the background (dye-patch-signal.ts); absent: `encoded`. */
+  dyeLight?: DyeLight;
   /**
    * What turns in the view about the rotation centre (crop px) and how fast, when the setup gives
    * the table's rate and a tank edge (for dye, only under a lab-fixed camera without tilt marks).
@@ -110,6 +112,8 @@ export function planDetection(setup: TrackingSetup, frameWidth: number, frameHei
     maxAreaPx,
     minRoundness,
     dyeColour: { ...defaultDyeColour, ...setup.dyeColour },
+    // Only when asked for, so that a plan (and its key) is as before otherwise.
+    ...(setup.dyeLight === "linear" ? { dyeLight: setup.dyeLight } : {}),
     turn: planTurn(setup, crop, tank),
   };
 }

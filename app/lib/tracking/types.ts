@@ -90,7 +90,16 @@ export interface TrackingSetup {
    * when the setup carries tilt marks: the background's turning model turns rigidly in that plane.
    */
   correction?: Mat3 | null;
+  /**
+   * How a dye's centre reads the frames: in their 8-bit values (`encoded`, the default) or in
+   * linear light, glare and dye unmixed (`linear`, dye-unmix.ts; measured on the ray-traced scenes,
+   * Decision 102, and not the default).
+   */
+  dyeLight?: DyeLight;
 }
+
+/** The light a dye's difference from the background is read in (dye-patch-signal.ts). */
+export type DyeLight = "encoded" | "linear";
 
 export interface TrackQuality {
   id: number;

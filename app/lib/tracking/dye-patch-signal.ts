@@ -104,10 +104,10 @@ export function createPatchSignal(width: number, height: number, spans: Int32Arr
           glares[p] = glare;
           inverseLevels[p] = inverseFreeLevel(from[3 * p]!, from[3 * p + 1]!, from[3 * p + 2]!, glare);
         } else {
-        inverseLevels[p] = inverseLevel(from[3 * p]!, from[3 * p + 1]!, from[3 * p + 2]!, cap);
+          inverseLevels[p] = inverseLevel(from[3 * p]!, from[3 * p + 1]!, from[3 * p + 2]!, cap);
+        }
       }
     }
-  }
   }
 
   function encodedDifference(p: number, out: Float64Array): void {

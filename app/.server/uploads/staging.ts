@@ -122,15 +122,19 @@ export async function stageMultipart(request: Request, opts: MultipartOptions): 
       fileStream?.destroy();
       out?.destroy();
       parser.destroy();
-      // Removed only once the write stream has let go of it.
-      writing
-        .catch(() => {})
+      // Removed only once the write stream has let go of it: its pipeline settled and its file
+      // closed (a stream destroyed while its open is still under way closes only after the open,
+      // which creates the file).
+      const target = out;
+      const closed = target && !target.closed ? new Promise<void>((done) => target.once("close", () => done())) : Promise.resolve();
+      Promise.all([writing.catch(() => {}), closed])
         .then(() => fsp.rm(stagingPath, { force: true }))
         .then(() => reject(err), () => reject(err));
     };
 
     parser.on("file", (name, stream, info) => {
-      if (name !== "file" || fileStream) {
+      // A part parsed after the upload was refused is not written: nothing would remove it.
+      if (failed || name !== "file" || fileStream) {
         stream.resume();
         return;
       }

@@ -6,6 +6,7 @@
  */
 import { backgroundSampleIndices, tracerExclusions, type ExclusionSet } from "../../lib/tracking/background";
 import { fillChannelsFromSurroundings, minimumFreeSamples } from "../../lib/tracking/background-fill";
+import { regionBeyond, tankRegion, withExclusions } from "../../lib/tracking/background-region";
 import type { DetectionPlan } from "../../lib/tracking/plan";
 import { discPixels } from "../../lib/tracking/turning-geometry";
 import { ringMedians, turningPixels, turnExclusions, type TurningBackground } from "../../lib/tracking/turning-background";
@@ -50,8 +51,17 @@ export async function stillBackground(
       }
     }),
   );
-  const median = async (exclusions?: ExclusionSet, plain?: Uint8Array, from: Uint8Array = samples): Promise<Uint8Array> => {
-    const out = new Uint8Array(new SharedArrayBuffer(length));
+  // A dye background is made only where it is read: inside the tank edge (background-region.ts),
+  // widened where a tracer's exclusion reaches past it. A float's is made over the whole crop.
+  const region = plan.tracer === "dye" ? tankRegion(plan.crop.width, plan.crop.height, plan.tank, plan.shrink + regionMarginPx) : null;
+  const median = async (
+    exclusions?: ExclusionSet,
+    plain?: Uint8Array,
+    from: Uint8Array = samples,
+    over: Uint8Array | null = region,
+    into?: Uint8Array,
+  ): Promise<Uint8Array> => {
+    const out = into ?? new Uint8Array(new SharedArrayBuffer(length));
     const used = exclusions ? new Uint8Array(new SharedArrayBuffer(pixels)) : undefined;
     await Promise.all(
       threadShares(pixels).map((range) =>
@@ -65,11 +75,19 @@ export async function stillBackground(
           used,
           channels,
           plain,
+          region: over ?? undefined,
         }),
       ),
     );
     if (used) fillChannelsFromSurroundings(out, used, plan.crop.width, channels, minimumFreeSamples(indices.length));
     return out;
+  };
+  /** The median with the tracers' exclusions left out; for dye, the plain median is first made where they and the fill round them reach past the tank edge. */
+  const excluding = async (exclusions: ExclusionSet, plain: Uint8Array | undefined, from: Uint8Array = samples): Promise<Uint8Array> => {
+    if (!region) return median(exclusions, plain, from);
+    const wider = withExclusions(region, plan.crop.width, exclusions.discs, fillPadPx);
+    if (plain && wider !== region) await median(undefined, undefined, from, regionBeyond(wider, region), plain);
+    return median(exclusions, plain, from, wider);
   };
   const findIn = (background: Uint8Array): Promise<Detection[][]> =>
     Promise.all(
@@ -89,12 +107,17 @@ export async function stillBackground(
   if (signal?.aborted) throw cancelled();
   const discs = tracerExclusions(await findIn(plain), plan.crop, plan.shrink);
   if (signal?.aborted) throw cancelled();
-  const still = discs.length === 0 ? plain : await median({ width: plan.crop.width, discs }, plain);
+  const still = discs.length === 0 ? plain : await excluding({ width: plan.crop.width, discs }, plain);
   if (!plan.turn || !frameTime) return { still, turning: null, samples, indices };
   const angles = indices.map((index) => plan.turn!.rate * frameTime(index));
-  const turning = await turningModel(plan, workers, samples, indices.length, still, discs, angles, median);
+  const turning = await turningModel(plan, workers, samples, indices.length, still, discs, angles, median, excluding);
   return { still, turning, samples, indices };
 }
+
+/** Beyond the detection block, what a reader takes past a pixel inside the tank edge (a bilinear read's neighbour, and one more). */
+const regionMarginPx = 2;
+/** Round each exclusion's box: the fill's neighbours and one more pixel. */
+const fillPadPx = 2;
 
 /**
  * The second model of a stack whose view has a turning part (lib/tracking/turning-background.ts):
@@ -121,6 +144,7 @@ async function turningModel(
   discs: ReturnType<typeof tracerExclusions>,
   angles: number[],
   median: (exclusions?: ExclusionSet, plain?: Uint8Array, from?: Uint8Array) => Promise<Uint8Array>,
+  excluding: (exclusions: ExclusionSet, plain: Uint8Array | undefined, from?: Uint8Array) => Promise<Uint8Array>,
 ): Promise<TurningBackground | null> {
   let turn = plan.turn!;
   const width = plan.crop.width;
@@ -189,7 +213,7 @@ async function turningModel(
       ),
     );
     const turnedDiscs = turnExclusions(discs, turn, angles);
-    turning = await median(turnedDiscs.length ? { width, discs: turnedDiscs } : undefined, undefined, turned);
+    turning = turnedDiscs.length ? await excluding({ width, discs: turnedDiscs }, undefined, turned) : await median(undefined, undefined, turned);
   }
   const shared = new Int32Array(new SharedArrayBuffer(inDisc.length * 4));
   shared.set(inDisc);

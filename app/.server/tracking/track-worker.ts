@@ -4,6 +4,7 @@
  */
 import { createRequire } from "node:module";
 import { medianInto, type ExclusionSet } from "../../lib/tracking/background";
+import { medianOverRegion } from "../../lib/tracking/background-region";
 import { createDetector, type Detector } from "../../lib/tracking/detect";
 import type { OpenCv } from "../../lib/tracking/opencv-types";
 import type { DetectionPlan } from "../../lib/tracking/plan";
@@ -123,6 +124,8 @@ export type TrackTask =
       channels?: number;
       /** The plain median, already taken: pixels no disc covers copy it. */
       plain?: Uint8Array;
+      /** Shared, per pixel: 1 where the median is made (background-region.ts); every pixel when absent. */
+      region?: Uint8Array;
     }
   | {
       /** The detector run on small rendered frames, so that V8 compiles it before the first job (worker-practice.ts). */
@@ -190,7 +193,8 @@ export default function runTrackTask(task: TrackTask): TrackTaskResult {
   if (task.kind === "background") {
     const length = task.out.length;
     const frames = Array.from({ length: task.count }, (_, j) => task.samples.subarray(j * length, (j + 1) * length));
-    medianInto(frames, task.out, task.from, task.to, task.exclusions, task.used, task.channels ?? 1, task.plain);
+    if (task.region) medianOverRegion(frames, task.out, task.from, task.to, task.region, task.exclusions, task.used, task.channels ?? 1, task.plain);
+    else medianInto(frames, task.out, task.from, task.to, task.exclusions, task.used, task.channels ?? 1, task.plain);
     return null;
   }
   if (task.kind === "turn-back") {

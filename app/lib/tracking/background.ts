@@ -151,7 +151,8 @@ export function dyeBackground(
  * Frames of several interleaved channels (RGB for dye) take each channel's median on its own;
  * `from`, `to` and `used` count pixels. `plain`, when given, is the plain median of the same
  * frames, already taken: a pixel no disc covers copies it instead of taking it again, so the
- * second median of a background costs only the pixels near the tracer.
+ * second median of a background costs only the pixels near the tracer. `region`, when given,
+ * names the pixels (1) whose median is made; the others are left as they are (background-region.ts).
  *
  * Each median is read off a count of the values (bytes, so at most 256 bins, and only those
  * between the pixel's lowest and highest value are visited), which on 21 samples takes less
@@ -166,6 +167,7 @@ export function medianInto(
   used?: Uint8Array,
   channels = 1,
   plain?: Uint8Array,
+  region?: Uint8Array,
 ): void {
   const length = out.length;
   if (plain && plain.length !== length) throw new Error("The plain median differs in size from the background.");
@@ -186,6 +188,11 @@ export function medianInto(
   const left = new Uint8Array(n);
   let row = -1;
   for (let p = from; p < to; p++) {
+    if (region && !region[p]) {
+      // Outside the pixels anything reads (background-region.ts): left as it is, seen by every sample.
+      if (used) used[p] = n;
+      continue;
+    }
     let covered = 0;
     if (discs.length > 0) {
       const r = Math.floor(p / width);

@@ -20,21 +20,14 @@
  * whose glare stays in it and is taken out here.
  */
 
-/** 8-bit sRGB value → linear light on the same 0–255 scale (IEC 61966-2-1:1999, its two pieces). */
-export const linearOf: Float64Array = (() => {
-  const table = new Float64Array(256);
-  for (let v = 0; v < 256; v++) {
-    const s = v / 255;
-    table[v] = 255 * (s <= 0.04045 ? s / 12.92 : ((s + 0.055) / 1.055) ** 2.4);
-  }
-  return table;
-})();
-
-/** Linear light on the 0–255 scale of a (possibly fractional) sRGB level. */
+/** Linear light on the 0–255 scale of a (possibly fractional) sRGB level (IEC 61966-2-1:1999, its two pieces). */
 export function linearOfLevel(level: number): number {
   const s = Math.min(1, Math.max(0, level / 255));
   return 255 * (s <= 0.04045 ? s / 12.92 : ((s + 0.055) / 1.055) ** 2.4);
 }
+
+/** 8-bit sRGB value → linear light on the same 0–255 scale, as a table. */
+export const linearOf: Float64Array = Float64Array.from({ length: 256 }, (_, v) => linearOfLevel(v));
 
 /** The channels' mean in linear light. */
 export function linearLevel(b0: number, b1: number, b2: number): number {
